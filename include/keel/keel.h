@@ -1,0 +1,18 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/* keel/keel.h - the whole public API of libkeel in one include. */
+#ifndef KEEL_KEEL_H
+#define KEEL_KEEL_H
+
+#include "keel/error.h"
+#include "keel/finding.h"
+#include "keel/metrics.h"
+#include "keel/plan.h"
+#include "keel/report.h"
+#include "keel/roster.h"
+#include "keel/solve.h"
+#include "keel/workload.h"
+
+/* The library's version, "MAJOR.MINOR.PATCH". */
+const char *keel_version(void);
+
+#endif

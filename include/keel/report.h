@@ -1,0 +1,62 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * keel/report.h - writers that format an assignment or a workload view.
+ * Writers are plugins behind one table ({name, write}): "text" for people,
+ * "yaml" (the roster again with every patient's nurse filled in, so it can
+ * be fed back in), "json" for other tools.  Writers only read: every number
+ * comes from keel_metrics.  Every format meant for people ends with the
+ * caution (KEEL_CAUTION).
+ */
+#ifndef KEEL_REPORT_H
+#define KEEL_REPORT_H
+
+#include <stdbool.h>
+#include <stddef.h>
+#include <stdio.h>
+
+#include "keel/error.h"
+#include "keel/finding.h"
+#include "keel/metrics.h"
+#include "keel/roster.h"
+#include "keel/solve.h"
+#include "keel/workload.h"
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+/* The safety caution carried by every human-facing output. */
+#define KEEL_CAUTION                                                                           \
+    "Decision support only: the charge nurse's judgement, facility policy and the staffing "   \
+    "law that applies locally govern every assignment."
+
+typedef enum keel_report_kind {
+    KEEL_REPORT_ASSIGN,   /* a solved assignment (keel assign) */
+    KEEL_REPORT_CHECK,    /* a workload view, and the score of a given plan if any (keel check) */
+} keel_report_kind;
+
+/* Everything a writer may show.  All borrowed. */
+typedef struct keel_report {
+    keel_report_kind kind;
+    const keel_roster *roster;
+    const keel_workload *workload;
+    const int *nurse_of;              /* the assignment shown, or NULL (check without a plan) */
+    const keel_metrics *metrics;      /* of nurse_of (of no assignment when nurse_of is NULL) */
+    const keel_solution *solution;    /* assign: the solve; check: the best-possible solve or NULL */
+    const keel_findings *violations;  /* check: rules the given plan breaks, or NULL */
+} keel_report;
+
+/* Writes the report in the named format to out.  Statuses: KEEL_OK,
+ * KEEL_ERR_USAGE (unknown format, or a format that cannot show this kind),
+ * KEEL_ERR_IO (a write failed). */
+keel_status keel_report_write(const char *format, const keel_report *report, FILE *out,
+                              keel_error *err);
+
+/* Number of formats and their names, for help texts. */
+size_t keel_report_nformats(void);
+const char *keel_report_format_name(size_t i);
+
+#ifdef __cplusplus
+}
+#endif
+#endif

@@ -1,0 +1,127 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * keel/roster.h - one unit, one shift: policy, nurses, patients and, when
+ * known, who has whom.  First stage of the pipeline:
+ *
+ *   roster (load + validate) -> workload -> solve -> metrics -> report
+ *
+ * The roster owns every string in it (copied out of the parser).  A loaded
+ * roster is valid: every reference resolves, every number is in its
+ * documented range, ids are unique.  Integer fields that the file may leave
+ * out hold KEEL_ABSENT when it does; the workload module applies defaults.
+ * The format is documented in docs/roster-format.md.
+ */
+#ifndef KEEL_ROSTER_H
+#define KEEL_ROSTER_H
+
+#include <stddef.h>
+
+#include "keel/error.h"
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+/* Value of an optional integer field that the roster does not give. */
+#define KEEL_ABSENT (-1)
+
+/* A 1-based position in the roster file; line 0 means "not from a file". */
+typedef struct keel_mark {
+    int line;
+    int column;
+} keel_mark;
+
+typedef struct keel_nurse {
+    char *id;            /* required, unique */
+    char *name;          /* NULL when absent */
+    size_t nskills;
+    char **skills;
+    int max_patients;    /* KEEL_ABSENT: policy.max_patients applies */
+    int minutes;         /* minutes on the unit; KEEL_ABSENT: shift.minutes */
+    int break_minutes;   /* KEEL_ABSENT: shift.break_minutes */
+    int duty_minutes;    /* fixed non-patient work; KEEL_ABSENT: 0 */
+    keel_mark mark;      /* where the nurse's mapping starts */
+} keel_nurse;
+
+typedef struct keel_patient {
+    char *id;            /* required, unique: the patient, not the bed */
+    char *bed;           /* NULL when absent */
+    char *name;          /* NULL when absent; hidden in de-identified output */
+    int acuity;          /* KEEL_ABSENT when not given */
+    int care_minutes;    /* explicit figure; KEEL_ABSENT when not given */
+    size_t nextras;
+    char **extras;       /* names of policy.extra_minutes entries */
+    size_t nneeds;
+    char **needs;        /* competencies the nurse must have, every one */
+    char *nurse;         /* id of the nurse who has this patient, or NULL */
+    keel_mark mark;      /* where the patient's mapping starts */
+} keel_patient;
+
+typedef struct keel_acuity_level {
+    int level;
+    int minutes;         /* care minutes per shift at this level */
+} keel_acuity_level;
+
+typedef struct keel_extra {
+    char *name;
+    int minutes;
+} keel_extra;
+
+typedef struct keel_roster {
+    char *path;          /* the file name used in messages */
+
+    struct {
+        char *name;      /* NULL when absent */
+        char *type;      /* NULL when absent */
+    } unit;
+
+    struct {
+        char *label;     /* NULL when absent */
+        char *date;      /* "YYYY-MM-DD" or NULL */
+        int start_minute;    /* minutes after midnight, KEEL_ABSENT if no start */
+        int minutes;         /* length of the shift, required */
+        int break_minutes;   /* KEEL_ABSENT: 0 */
+    } shift;
+
+    struct {
+        int max_patients;    /* KEEL_ABSENT: no unit-wide limit */
+        size_t nacuity;
+        keel_acuity_level *acuity_minutes;  /* sorted by level, unique */
+        size_t nextras;
+        keel_extra *extra_minutes;          /* in file order, unique names */
+    } policy;
+
+    size_t nnurses;
+    keel_nurse *nurses;
+    size_t npatients;
+    keel_patient *patients;
+} keel_roster;
+
+/* Reads and validates the roster file at path.  On success *out is a new
+ * roster: the caller owns it; free it with keel_roster_free().  Statuses:
+ * KEEL_OK; KEEL_ERR_IO (cannot read: one problem naming the file);
+ * KEEL_ERR_INPUT (every schema and syntax problem found in the file, each
+ * with line, column and key path; *out is NULL); KEEL_ERR_NOMEM. */
+keel_status keel_roster_load(const char *path, keel_roster **out, keel_error *err);
+
+/* Like keel_roster_load() but reads len bytes of YAML from text; name is
+ * used in messages as the file name. */
+keel_status keel_roster_parse(const char *name, const char *text, size_t len, keel_roster **out,
+                              keel_error *err);
+
+/* Frees the roster and everything it owns.  NULL-safe. */
+void keel_roster_free(keel_roster *roster);
+
+/* Index of the nurse with this id, or -1.  Borrowed strings only. */
+int keel_roster_find_nurse(const keel_roster *roster, const char *id);
+
+/* Minutes of an acuity level in policy.acuity_minutes, or KEEL_ABSENT. */
+int keel_roster_acuity_minutes(const keel_roster *roster, int level);
+
+/* Minutes of a named extra in policy.extra_minutes, or KEEL_ABSENT. */
+int keel_roster_extra_minutes(const keel_roster *roster, const char *name);
+
+#ifdef __cplusplus
+}
+#endif
+#endif

@@ -1,0 +1,91 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * keel/solve.h - turns a workload into an assignment, following the order
+ * of objectives of the design:
+ *
+ *   stage 1 "peak": minimise U, the heaviest utilisation of the counted nurses
+ *   stage 2 "lift": with U held at its optimum, raise L, the lightest one
+ *
+ * Methods are plugins behind one table ({name, solve}): "greedy" (heaviest
+ * patient first to the least-utilised eligible nurse, then improving moves
+ * and swaps) and "ilp" (greedy incumbent, then exact search with GLPK over
+ * the finitely many values a utilisation can take in whole minutes).
+ * The time limit covers the whole solve, shared by the stages.  A solution
+ * is called optimal only when every stage is proven; otherwise it carries
+ * its proven bound and gap.
+ */
+#ifndef KEEL_SOLVE_H
+#define KEEL_SOLVE_H
+
+#include <stddef.h>
+
+#include "keel/error.h"
+#include "keel/finding.h"
+#include "keel/roster.h"
+#include "keel/workload.h"
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+typedef enum keel_solve_status {
+    KEEL_SOLVE_OPTIMAL,     /* every stage proven optimal */
+    KEEL_SOLVE_TIME_LIMIT,  /* the time limit ended the search; bound and gap say how far */
+    KEEL_SOLVE_HEURISTIC,   /* the greedy method's answer; only the simple bound is known */
+    KEEL_SOLVE_INFEASIBLE,  /* no valid assignment exists; see diagnoses */
+} keel_solve_status;
+
+/* Name used in every output format: "optimal", "time_limit", "heuristic",
+ * "infeasible". */
+const char *keel_solve_status_name(keel_solve_status status);
+
+typedef struct keel_solve_options {
+    const char *method;     /* "ilp" (default when NULL) or "greedy" */
+    long time_limit_ms;     /* whole solve; <= 0 means the default, 10 000 ms */
+} keel_solve_options;
+
+/* What one stage achieved.  value and bound are utilisations: for "peak" the
+ * bound is a proven lower limit on U, for "lift" a proven upper limit on L.
+ * gap = |value - bound| / max(|value|, |bound|): 0 when proven, the usual
+ * relative MIP gap. */
+typedef struct keel_stage {
+    const char *name;           /* "peak" or "lift" */
+    keel_solve_status status;   /* OPTIMAL, TIME_LIMIT or HEURISTIC */
+    double value;
+    double bound;
+    double gap;
+    int solver_calls;           /* integer programmes solved in this stage */
+    double seconds;             /* wall time spent in this stage */
+} keel_stage;
+
+typedef struct keel_solution {
+    keel_solve_status status;
+    const char *method;         /* the method that ran */
+    size_t npatients;
+    int *nurse_of;              /* [npatients]: nurse index, -1 when infeasible */
+    size_t nstages;
+    keel_stage stages[2];
+    double seconds;             /* wall time of the whole solve */
+    keel_findings diagnoses;    /* why no assignment exists (INFEASIBLE only) */
+} keel_solution;
+
+/* Solves the workload of roster.  On KEEL_OK, *out is a new solution whose
+ * status may be INFEASIBLE (a status, not an error: diagnoses say why).
+ * The caller owns *out; free it with keel_solution_free().  Statuses:
+ * KEEL_OK, KEEL_ERR_USAGE (unknown method), KEEL_ERR_NOMEM, KEEL_ERR_SOLVER.
+ * Borrowed: roster and w must outlive the call only. */
+keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
+                       const keel_solve_options *options, keel_solution **out,
+                       keel_error *err);
+
+/* Frees the solution.  NULL-safe. */
+void keel_solution_free(keel_solution *solution);
+
+/* Number of methods and their names, for help texts. */
+size_t keel_solve_nmethods(void);
+const char *keel_solve_method_name(size_t i);
+
+#ifdef __cplusplus
+}
+#endif
+#endif

@@ -1,0 +1,65 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * keel/workload.h - the numbers the solver works on, derived once from a
+ * roster: care minutes per patient, capacity, duty minutes and patient
+ * limit per nurse, and which patient-nurse pairs are eligible.
+ *
+ *   care(p)     = care_minutes, or policy.acuity_minutes[acuity]; plus
+ *                 policy.extra_minutes[x] for each x in extras
+ *   capacity(n) = minutes - break_minutes      (both default to the shift's)
+ *   load(n)     = duty_minutes + sum of care(p) over n's patients
+ *   limit(n)    = the smallest of policy.max_patients and the nurse's own
+ *                 max_patients (no limit given: the census)
+ *
+ * A pair (p, n) is eligible when n has every competency p needs and
+ * limit(n) > 0.  "Counted" nurses are those with limit(n) > 0; every
+ * balance figure is taken over them.  All figures are whole minutes.
+ */
+#ifndef KEEL_WORKLOAD_H
+#define KEEL_WORKLOAD_H
+
+#include <stdbool.h>
+#include <stddef.h>
+
+#include "keel/error.h"
+#include "keel/roster.h"
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+typedef struct keel_workload {
+    size_t npatients;
+    size_t nnurses;
+    int *care_minutes;       /* [npatients] */
+    int *capacity_minutes;   /* [nnurses], > 0 for counted nurses */
+    int *duty_minutes;       /* [nnurses] */
+    int *max_patients;       /* [nnurses], the effective limit */
+    bool *eligible;          /* [npatients * nnurses], pair (p, n) at p * nnurses + n */
+} keel_workload;
+
+/* Derives the workload of a valid roster.  The caller owns *out; free it with
+ * keel_workload_free().  Statuses: KEEL_OK, KEEL_ERR_NOMEM, KEEL_ERR_INPUT
+ * (a counted nurse without capacity: one problem per nurse). */
+keel_status keel_workload_compute(const keel_roster *roster, keel_workload **out,
+                                  keel_error *err);
+
+/* Frees the workload.  NULL-safe. */
+void keel_workload_free(keel_workload *w);
+
+/* True when pair (patient p, nurse n) is eligible. */
+static inline bool keel_workload_eligible(const keel_workload *w, size_t p, size_t n)
+{
+    return w->eligible[p * w->nnurses + n];
+}
+
+/* True when nurse n may take patients (limit above zero). */
+static inline bool keel_workload_counted(const keel_workload *w, size_t n)
+{
+    return w->max_patients[n] > 0;
+}
+
+#ifdef __cplusplus
+}
+#endif
+#endif

@@ -1,0 +1,403 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * main.c - the keel command.  Thin: parses arguments, calls the library,
+ * prints problems, maps statuses to exit codes and checks that the output
+ * was written.
+ *
+ * Exit codes: 0 success; 1 usage error; 2 bad input; 3 no valid assignment
+ * exists; 4 internal or solver failure (including a failed write).
+ */
+#include <errno.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "keel/keel.h"
+#include "output.h"
+
+enum {
+    EXIT_USAGE = 1,
+    EXIT_INPUT = 2,
+    EXIT_INFEASIBLE = 3,
+    EXIT_INTERNAL = 4,
+};
+
+typedef struct options {
+    const char *roster;
+    const char *format;
+    const char *output;
+    const char *method;
+    long time_limit_ms;
+} options;
+
+typedef struct command {
+    const char *name;
+    const char *summary;
+    const char *usage;
+    int (*run)(const options *opt);
+} command;
+
+static int run_assign(const options *opt);
+static int run_check(const options *opt);
+
+static const command commands[] = {
+    {"assign", "balance the roster's patients across its nurses",
+     "usage: keel assign ROSTER [--format text|yaml|json] [--method ilp|greedy]\n"
+     "                   [--time-limit SECONDS] [-o FILE]\n"
+     "\n"
+     "Divides the roster's patients among its nurses so that the heaviest utilisation\n"
+     "(load / capacity) is as low as possible, then lifts the lightest one, and reports\n"
+     "each nurse's load, the imbalance, the proven bound and the gap.\n"
+     "\n"
+     "  -f, --format FMT       text (default), yaml (the roster with each patient's\n"
+     "                         nurse filled in) or json\n"
+     "  -m, --method NAME      ilp (default: exact search with GLPK) or greedy\n"
+     "  -t, --time-limit SECS  limit for the whole solve (default 10); on time-out the\n"
+     "                         best plan found is kept and reported as not proven\n"
+     "  -o, --output FILE      write to FILE (replaced atomically; never the roster)\n",
+     run_assign},
+    {"check", "validate a roster, show its workload, score its own plan",
+     "usage: keel check ROSTER [--format text|json] [--time-limit SECONDS] [-o FILE]\n"
+     "\n"
+     "Validates the roster and shows the workload: care minutes per patient, capacity\n"
+     "per nurse, totals and nurses needed at full utilisation.  When every patient\n"
+     "already has a nurse, scores that plan: loads, imbalance, every rule it breaks,\n"
+     "and the best heaviest utilisation that was possible.\n"
+     "\n"
+     "  -f, --format FMT       text (default) or json\n"
+     "  -t, --time-limit SECS  limit for finding the best possible (default 10)\n"
+     "  -o, --output FILE      write to FILE (replaced atomically; never the roster)\n",
+     run_check},
+};
+
+static const size_t ncommands = sizeof commands / sizeof commands[0];
+
+static void print_usage(FILE *out)
+{
+    fprintf(out, "usage: keel COMMAND [ARGS]\n\n"
+                 "keel balances patient-to-nurse assignments on a hospital unit.\n\n"
+                 "Commands:\n");
+    for (size_t i = 0; i < ncommands; i++)
+        fprintf(out, "  %-8s %s\n", commands[i].name, commands[i].summary);
+    fprintf(out, "  %-8s %s\n", "help", "show help for a command");
+    fprintf(out, "\nOptions: --help, --version\n"
+                 "Exit codes: 0 success, 1 usage error, 2 bad input, 3 no valid assignment "
+                 "exists,\n4 internal or solver failure.\n\n%s\n",
+            KEEL_CAUTION);
+}
+
+static const command *find_command(const char *name)
+{
+    for (size_t i = 0; i < ncommands; i++)
+        if (strcmp(commands[i].name, name) == 0)
+            return &commands[i];
+    return NULL;
+}
+
+static int usage_error(const command *cmd, const char *fmt, const char *arg)
+{
+    fprintf(stderr, "keel %s: ", cmd->name);
+    fprintf(stderr, fmt, arg);
+    fprintf(stderr, "\nTry 'keel help %s'.\n", cmd->name);
+    return EXIT_USAGE;
+}
+
+static void print_problems(const keel_error *err)
+{
+    for (size_t i = 0; i < err->nproblems; i++) {
+        const keel_problem *p = &err->problems[i];
+        char line[1024];
+        keel_problem_format(p, line, sizeof line);
+        fprintf(stderr, "%s%s\n", p->file ? "" : "keel: ", line);
+    }
+    if (err->nproblems == 0 && err->status)
+        fprintf(stderr, "keel: %s\n", keel_status_string(err->status));
+}
+
+static int exit_code(keel_status status)
+{
+    switch (status) {
+    case KEEL_OK:
+        return 0;
+    case KEEL_ERR_USAGE:
+        return EXIT_USAGE;
+    case KEEL_ERR_INPUT:
+    case KEEL_ERR_IO:
+        return EXIT_INPUT;
+    case KEEL_ERR_NOMEM:
+    case KEEL_ERR_SOLVER:
+        return EXIT_INTERNAL;
+    }
+    return EXIT_INTERNAL;
+}
+
+/* The value of an option: "--opt=value", or the next argument. */
+static const char *option_value(int argc, char **argv, int *i, const char *arg, size_t len)
+{
+    if (arg[len] == '=')
+        return arg + len + 1;
+    if (*i + 1 < argc)
+        return argv[++*i];
+    return NULL;
+}
+
+static bool matches(const char *arg, const char *shrt, const char *lng, size_t *len)
+{
+    size_t l = strlen(lng);
+    if (strcmp(arg, shrt) == 0) {
+        *len = strlen(shrt);
+        return true;
+    }
+    if (strncmp(arg, lng, l) == 0 && (arg[l] == '\0' || arg[l] == '=')) {
+        *len = l;
+        return true;
+    }
+    return false;
+}
+
+static int parse_time_limit(const command *cmd, const char *text, long *ms)
+{
+    char *end;
+    errno = 0;
+    double secs = strtod(text, &end);
+    if (errno || end == text || *end || !(secs > 0) || secs > 86400)
+        return usage_error(cmd, "--time-limit: '%s' is not a number of seconds between 0 and "
+                                "86400",
+                           text);
+    *ms = (long)(secs * 1000.0 + 0.5);
+    if (*ms < 1)
+        *ms = 1;
+    return 0;
+}
+
+static int parse_args(const command *cmd, int argc, char **argv, options *opt, bool *help)
+{
+    *opt = (options){.format = "text"};
+    for (int i = 0; i < argc; i++) {
+        const char *arg = argv[i], *value;
+        size_t len;
+        if (strcmp(arg, "-h") == 0 || strcmp(arg, "--help") == 0) {
+            *help = true;
+            return 0;
+        }
+        if (matches(arg, "-f", "--format", &len) || matches(arg, "-o", "--output", &len) ||
+            matches(arg, "-m", "--method", &len) || matches(arg, "-t", "--time-limit", &len)) {
+            value = option_value(argc, argv, &i, arg, len);
+            if (!value)
+                return usage_error(cmd, "%s needs a value", arg);
+            char which = arg[1] == '-' ? arg[2] : arg[1];
+            if (which == 'f')
+                opt->format = value;
+            else if (which == 'o')
+                opt->output = value;
+            else if (which == 'm')
+                opt->method = value;
+            else if (parse_time_limit(cmd, value, &opt->time_limit_ms))
+                return EXIT_USAGE;
+            continue;
+        }
+        if (arg[0] == '-' && arg[1] != '\0')
+            return usage_error(cmd, "unknown option '%s'", arg);
+        if (opt->roster)
+            return usage_error(cmd, "one roster at a time; '%s' is one too many", arg);
+        opt->roster = arg;
+    }
+    if (!opt->roster)
+        return usage_error(cmd, "%s", "which roster? Give the roster file");
+    return 0;
+}
+
+/* Everything one run holds; released by state_fini(). */
+typedef struct state {
+    keel_error err;
+    keel_roster *roster;
+    keel_workload *workload;
+    keel_solution *solution;
+    keel_metrics *metrics;
+    int *plan;
+    keel_findings violations;
+} state;
+
+static void state_fini(state *s)
+{
+    keel_findings_fini(&s->violations);
+    free(s->plan);
+    keel_metrics_free(s->metrics);
+    keel_solution_free(s->solution);
+    keel_workload_free(s->workload);
+    keel_roster_free(s->roster);
+    keel_error_fini(&s->err);
+}
+
+static keel_status load(state *s, const options *opt)
+{
+    keel_status rc = keel_roster_load(opt->roster, &s->roster, &s->err);
+    if (!rc)
+        rc = keel_workload_compute(s->roster, &s->workload, &s->err);
+    return rc;
+}
+
+static int write_report(const options *opt, const keel_report *rep)
+{
+    cli_output out;
+    keel_error err;
+    keel_error_init(&err);
+    int code = cli_output_open(&out, opt->output, opt->roster);
+    if (code)
+        return code;
+    keel_status rc = keel_report_write(opt->format, rep, out.stream, &err);
+    if (rc)
+        print_problems(&err);
+    keel_error_fini(&err);
+    bool written = cli_output_close(&out, rc == KEEL_OK);
+    if (rc)
+        return exit_code(rc);
+    return written ? 0 : EXIT_INTERNAL;
+}
+
+static bool known_format(const char *format)
+{
+    for (size_t i = 0; i < keel_report_nformats(); i++)
+        if (strcmp(keel_report_format_name(i), format) == 0)
+            return true;
+    return false;
+}
+
+static bool known_method(const char *method)
+{
+    for (size_t i = 0; i < keel_solve_nmethods(); i++)
+        if (strcmp(keel_solve_method_name(i), method) == 0)
+            return true;
+    return false;
+}
+
+static int run_assign(const options *opt)
+{
+    state s = {0};
+    keel_error_init(&s.err);
+    keel_solve_options so = {.method = opt->method, .time_limit_ms = opt->time_limit_ms};
+    keel_status rc = load(&s, opt);
+    if (!rc)
+        rc = keel_solve(s.roster, s.workload, &so, &s.solution, &s.err);
+    if (!rc)
+        rc = keel_metrics_compute(s.workload, s.solution->nurse_of, &s.metrics, &s.err);
+    if (rc) {
+        print_problems(&s.err);
+        state_fini(&s);
+        return exit_code(rc);
+    }
+    keel_report rep = {.kind = KEEL_REPORT_ASSIGN,
+                       .roster = s.roster,
+                       .workload = s.workload,
+                       .nurse_of = s.solution->nurse_of,
+                       .metrics = s.metrics,
+                       .solution = s.solution};
+    bool infeasible = s.solution->status == KEEL_SOLVE_INFEASIBLE;
+    if (infeasible) {
+        fprintf(stderr, "keel assign: %s: no valid assignment exists\n", opt->roster);
+        for (size_t i = 0; i < s.solution->diagnoses.n; i++)
+            fprintf(stderr, "  [%s] %s\n", s.solution->diagnoses.items[i].rule,
+                    s.solution->diagnoses.items[i].message);
+        rep.nurse_of = NULL;
+    }
+    int code = write_report(opt, &rep);
+    state_fini(&s);
+    if (code)
+        return code;
+    return infeasible ? EXIT_INFEASIBLE : 0;
+}
+
+static int run_check(const options *opt)
+{
+    state s = {0};
+    keel_error_init(&s.err);
+    keel_solve_options so = {.time_limit_ms = opt->time_limit_ms};
+    keel_status rc = load(&s, opt);
+    bool complete = false, partial = false;
+    if (!rc) {
+        s.plan = calloc(s.roster->npatients ? s.roster->npatients : 1, sizeof *s.plan);
+        if (!s.plan)
+            rc = keel_error_add(&s.err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    }
+    if (!rc) {
+        complete = keel_plan_from_roster(s.roster, s.plan);
+        for (size_t p = 0; p < s.roster->npatients; p++)
+            partial = partial || s.plan[p] >= 0;
+        rc = keel_metrics_compute(s.workload, complete ? s.plan : NULL, &s.metrics, &s.err);
+    }
+    if (!rc && complete)
+        rc = keel_plan_check(s.roster, s.workload, s.plan, &s.violations, &s.err);
+    if (!rc)
+        rc = keel_solve(s.roster, s.workload, &so, &s.solution, &s.err);
+    if (rc) {
+        print_problems(&s.err);
+        state_fini(&s);
+        return exit_code(rc);
+    }
+    if (partial && !complete)
+        fprintf(stderr, "keel check: %s: some patients have no nurse yet; a plan is scored when "
+                        "every patient has one\n",
+                opt->roster);
+    keel_report rep = {.kind = KEEL_REPORT_CHECK,
+                       .roster = s.roster,
+                       .workload = s.workload,
+                       .nurse_of = complete ? s.plan : NULL,
+                       .metrics = s.metrics,
+                       .solution = s.solution,
+                       .violations = &s.violations};
+    bool infeasible = s.solution->status == KEEL_SOLVE_INFEASIBLE;
+    int code = write_report(opt, &rep);
+    state_fini(&s);
+    if (code)
+        return code;
+    return infeasible ? EXIT_INFEASIBLE : 0;
+}
+
+int main(int argc, char **argv)
+{
+    if (argc < 2) {
+        print_usage(stderr);
+        return EXIT_USAGE;
+    }
+    const char *name = argv[1];
+    if (strcmp(name, "--help") == 0 || strcmp(name, "-h") == 0) {
+        print_usage(stdout);
+        return fflush(stdout) == 0 && !ferror(stdout) ? 0 : EXIT_INTERNAL;
+    }
+    if (strcmp(name, "--version") == 0) {
+        printf("keel %s\n", keel_version());
+        return fflush(stdout) == 0 && !ferror(stdout) ? 0 : EXIT_INTERNAL;
+    }
+    if (strcmp(name, "help") == 0) {
+        const command *cmd = argc > 2 ? find_command(argv[2]) : NULL;
+        if (argc > 2 && !cmd) {
+            fprintf(stderr, "keel help: no command '%s'\n", argv[2]);
+            return EXIT_USAGE;
+        }
+        if (cmd)
+            fputs(cmd->usage, stdout);
+        else
+            print_usage(stdout);
+        return fflush(stdout) == 0 && !ferror(stdout) ? 0 : EXIT_INTERNAL;
+    }
+    const command *cmd = find_command(name);
+    if (!cmd) {
+        fprintf(stderr, "keel: no command '%s'\n", name);
+        print_usage(stderr);
+        return EXIT_USAGE;
+    }
+    options opt;
+    bool help = false;
+    int code = parse_args(cmd, argc - 2, argv + 2, &opt, &help);
+    if (code)
+        return code;
+    if (help) {
+        fputs(cmd->usage, stdout);
+        return fflush(stdout) == 0 && !ferror(stdout) ? 0 : EXIT_INTERNAL;
+    }
+    if (!known_format(opt.format) || (cmd->run == run_check && strcmp(opt.format, "yaml") == 0))
+        return usage_error(cmd, "unknown format '%s'", opt.format);
+    if (opt.method && !known_method(opt.method))
+        return usage_error(cmd, "unknown method '%s'; expected ilp or greedy", opt.method);
+    return cmd->run(&opt);
+}

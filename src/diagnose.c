@@ -1,0 +1,330 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * diagnose.c - does any valid assignment exist, and if not, why not.
+ *
+ * Ignoring balance, a valid assignment is a b-matching: each patient to one
+ * eligible nurse, each nurse at most her limit.  Augmenting paths find one
+ * or stop at a patient that cannot be placed.  The patients and nurses the
+ * failed search reached form a proof (Hall's condition): every one of those
+ * patients can only go to those nurses, the nurses are full, and the
+ * patients outnumber the places.  Each such set becomes a finding in plain
+ * words.  Sits between workload and solve; the solver runs only when this
+ * says an assignment exists.
+ */
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "alloc.h"
+#include "finding_list.h"
+#include "solve_internal.h"
+
+typedef struct matcher {
+    const keel_workload *w;
+    int *nurse_of;
+    int *count;
+    bool *seen_patient;
+    bool *seen_nurse;
+} matcher;
+
+static bool augment(matcher *m, size_t p)
+{
+    const keel_workload *w = m->w;
+    m->seen_patient[p] = true;
+    for (size_t n = 0; n < w->nnurses; n++) {
+        if (!keel_workload_eligible(w, p, n) || m->seen_nurse[n])
+            continue;
+        m->seen_nurse[n] = true;
+        if (m->count[n] < w->max_patients[n]) {
+            m->count[n]++;
+            m->nurse_of[p] = (int)n;
+            return true;
+        }
+        for (size_t q = 0; q < w->npatients; q++) {
+            if (m->nurse_of[q] == (int)n && !m->seen_patient[q] && augment(m, q)) {
+                m->nurse_of[p] = (int)n;
+                return true;
+            }
+        }
+    }
+    return false;
+}
+
+/* One shortage: the nurses the failed searches reached (empty: no eligible
+ * nurse at all), the patients competing for them, and how many are left out. */
+typedef struct shortage {
+    bool *nurses;       /* [nnurses] */
+    bool *patients;     /* [npatients] */
+    size_t left_out;
+    char *needs_key; /* for "no eligible nurse": the patient whose needs name the group */
+} shortage;
+
+static bool same_nurses(const bool *a, const bool *b, size_t n)
+{
+    return memcmp(a, b, n * sizeof *a) == 0;
+}
+
+/* Text "A, B and C" of up to 10 names, then "and N more". */
+static char *join_names(char *const *names, size_t n)
+{
+    size_t cap = 64, len = 0;
+    char *s = keel_malloc(cap);
+    if (!s)
+        return NULL;
+    s[0] = '\0';
+    size_t shown = n > 10 ? 10 : n;
+    for (size_t i = 0; i < shown; i++) {
+        const char *sep = i == 0 ? "" : (i + 1 == n ? " and " : ", ");
+        size_t need = len + strlen(sep) + strlen(names[i]) + 32;
+        if (need > cap) {
+            cap = need * 2;
+            char *grown = keel_realloc(s, cap);
+            if (!grown) {
+                free(s);
+                return NULL;
+            }
+            s = grown;
+        }
+        len += (size_t)sprintf(s + len, "%s%s", sep, names[i]);
+    }
+    if (n > shown)
+        sprintf(s + len, " and %zu more", n - shown);
+    return s;
+}
+
+static bool nurse_has(const keel_nurse *n, const char *skill)
+{
+    for (size_t i = 0; i < n->nskills; i++)
+        if (strcmp(n->skills[i], skill) == 0)
+            return true;
+    return false;
+}
+
+/* Skills in p's needs that no nurse who may take patients has, as "a and b". */
+static size_t missing_needs(const keel_roster *r, const keel_workload *w, const keel_patient *p,
+                            char **out)
+{
+    size_t k = 0;
+    for (size_t i = 0; i < p->nneeds; i++) {
+        bool held = false;
+        for (size_t n = 0; n < r->nnurses && !held; n++)
+            held = w->max_patients[n] > 0 && nurse_has(&r->nurses[n], p->needs[i]);
+        if (!held)
+            out[k++] = p->needs[i];
+    }
+    return k;
+}
+
+/* Needs shared by every marked patient. */
+static size_t common_needs(const keel_roster *r, const bool *patients, char **out)
+{
+    size_t first = 0;
+    while (first < r->npatients && !patients[first])
+        first++;
+    if (first == r->npatients)
+        return 0;
+    size_t k = 0;
+    const keel_patient *p0 = &r->patients[first];
+    for (size_t i = 0; i < p0->nneeds; i++) {
+        bool everyone = true;
+        for (size_t q = first + 1; q < r->npatients && everyone; q++) {
+            if (!patients[q])
+                continue;
+            bool has = false;
+            for (size_t j = 0; j < r->patients[q].nneeds && !has; j++)
+                has = strcmp(r->patients[q].needs[j], p0->needs[i]) == 0;
+            everyone = has;
+        }
+        if (everyone)
+            out[k++] = p0->needs[i];
+    }
+    return k;
+}
+
+static size_t collect(const bool *marks, size_t n, size_t *idx)
+{
+    size_t k = 0;
+    for (size_t i = 0; i < n; i++)
+        if (marks[i])
+            idx[k++] = i;
+    return k;
+}
+
+static char *describe_unreachable(const keel_roster *r, const keel_workload *w,
+                                  const shortage *s, char **names, size_t npat, char **skills)
+{
+    size_t k = 0;
+    for (size_t p = 0; p < r->npatients; p++)
+        if (s->patients[p])
+            names[k++] = r->patients[p].id;
+    char *who = join_names(names, k);
+    const keel_patient *p0 = NULL;
+    for (size_t p = 0; p < r->npatients && !p0; p++)
+        if (s->patients[p])
+            p0 = &r->patients[p];
+    size_t nmiss = missing_needs(r, w, p0, skills);
+    char *what = NULL, *msg = NULL;
+    if (nmiss > 0) {
+        what = join_names(skills, nmiss);
+        if (who && what)
+            msg = keel_asprintf("%zu patient%s (%s) need%s %s; no nurse on shift who may take "
+                                "patients has %s",
+                                npat, npat == 1 ? "" : "s", who, npat == 1 ? "s" : "", what,
+                                nmiss == 1 ? "it" : "them");
+    } else {
+        what = join_names(p0->needs, p0->nneeds);
+        if (who && what)
+            msg = keel_asprintf("%zu patient%s (%s) need%s %s together; no nurse on shift who "
+                                "may take patients has them all",
+                                npat, npat == 1 ? "" : "s", who, npat == 1 ? "s" : "", what);
+    }
+    free(who);
+    free(what);
+    return msg;
+}
+
+static char *describe_shortage(const keel_roster *r, const keel_workload *w, const shortage *s,
+                               char **names, char **skills, size_t ncounted)
+{
+    size_t npat = 0, nnur = 0;
+    long places = 0;
+    for (size_t p = 0; p < r->npatients; p++)
+        if (s->patients[p])
+            names[npat++] = r->patients[p].id;
+    char *who = join_names(names, npat);
+    for (size_t n = 0; n < r->nnurses; n++)
+        if (s->nurses[n]) {
+            names[nnur++] = r->nurses[n].id;
+            places += w->max_patients[n];
+        }
+    char *nurses = join_names(names, nnur);
+    char *msg = NULL;
+    if (who && nurses && nnur == ncounted) {
+        msg = keel_asprintf("%zu patients, but the %zu nurses on shift who may take patients "
+                            "may take %ld in all under their patient limits: %zu more place%s "
+                            "needed (another nurse, or a higher limit where policy allows)",
+                            r->npatients, nnur, places, s->left_out,
+                            s->left_out == 1 ? " is" : "s are");
+    } else if (who && nurses) {
+        size_t ncommon = common_needs(r, s->patients, skills);
+        char *what = ncommon ? join_names(skills, ncommon) : keel_strdup("competencies");
+        if (what)
+            msg = keel_asprintf("patients %s need %s%s; only %s %s %s, and between them "
+                                "the patient limits leave %ld place%s: %zu more place%s "
+                                "needed",
+                                who, what, ncommon ? "" : " that few nurses have", nurses,
+                                nnur == 1 ? "has" : "have",
+                                ncommon ? (ncommon == 1 ? "it" : "them") : "them", places,
+                                places == 1 ? "" : "s", s->left_out,
+                                s->left_out == 1 ? " is" : "s are");
+        free(what);
+    }
+    free(who);
+    free(nurses);
+    return msg;
+}
+
+keel_status keel_diagnose(const keel_roster *r, const keel_workload *w, int *nurse_of,
+                          bool *feasible, keel_findings *out)
+{
+    keel_status rc = KEEL_OK;
+    size_t np = w->npatients, nn = w->nnurses, nshort = 0, ncounted = 0;
+    shortage *shorts = NULL;
+    matcher m = {.w = w, .nurse_of = nurse_of};
+    m.count = keel_calloc(nn, sizeof *m.count);
+    m.seen_patient = keel_calloc(np, sizeof *m.seen_patient);
+    m.seen_nurse = keel_calloc(nn, sizeof *m.seen_nurse);
+    size_t *pidx = keel_calloc(np, sizeof *pidx);
+    size_t *nidx = keel_calloc(nn, sizeof *nidx);
+    size_t nbig = (np > nn ? np : nn) + 1, nskills = 1;
+    for (size_t p = 0; p < np; p++)
+        nskills += r->patients[p].nneeds;
+    char **names = keel_calloc(nbig, sizeof *names);
+    char **skills = keel_calloc(nskills, sizeof *skills);
+    if (!m.count || !m.seen_patient || !m.seen_nurse || !pidx || !nidx || !names || !skills) {
+        rc = KEEL_ERR_NOMEM;
+        goto out;
+    }
+    for (size_t n = 0; n < nn; n++)
+        ncounted += keel_workload_counted(w, n);
+    for (size_t p = 0; p < np; p++)
+        nurse_of[p] = -1;
+
+    for (size_t p = 0; p < np; p++) {
+        memset(m.seen_patient, 0, np * sizeof *m.seen_patient);
+        memset(m.seen_nurse, 0, nn * sizeof *m.seen_nurse);
+        if (augment(&m, p))
+            continue;
+        /* Group with an earlier shortage over the same nurses; a patient with
+         * no eligible nurse groups with others that lack the same skills. */
+        size_t i;
+        bool none = true;
+        for (size_t n = 0; n < nn; n++)
+            none = none && !m.seen_nurse[n];
+        for (i = 0; i < nshort; i++) {
+            if (!same_nurses(shorts[i].nurses, m.seen_nurse, nn))
+                continue;
+            if (!none)
+                break;
+            size_t ka = missing_needs(r, w, &r->patients[p], skills);
+            char *ja = join_names(skills, ka);
+            if (!ja) {
+                rc = KEEL_ERR_NOMEM;
+                goto out;
+            }
+            bool same = strcmp(ja, shorts[i].needs_key) == 0;
+            free(ja);
+            if (same)
+                break;
+        }
+        if (i == nshort) {
+            shortage *grown = keel_reallocarray(shorts, nshort + 1, sizeof *grown);
+            if (!grown) {
+                rc = KEEL_ERR_NOMEM;
+                goto out;
+            }
+            shorts = grown;
+            shortage *s = &shorts[nshort];
+            *s = (shortage){0};
+            s->nurses = keel_calloc(nn, sizeof *s->nurses);
+            s->patients = keel_calloc(np, sizeof *s->patients);
+            size_t ka = missing_needs(r, w, &r->patients[p], skills);
+            s->needs_key = join_names(skills, ka);
+            nshort++;
+            if (!s->nurses || !s->patients || !s->needs_key) {
+                rc = KEEL_ERR_NOMEM;
+                goto out;
+            }
+            memcpy(s->nurses, m.seen_nurse, nn * sizeof *s->nurses);
+        }
+        for (size_t q = 0; q < np; q++)
+            shorts[i].patients[q] = shorts[i].patients[q] || m.seen_patient[q];
+        shorts[i].left_out++;
+    }
+
+    *feasible = nshort == 0;
+    for (size_t i = 0; i < nshort && !rc; i++) {
+        const shortage *s = &shorts[i];
+        size_t kp = collect(s->patients, np, pidx), kn = collect(s->nurses, nn, nidx);
+        char *msg = kn == 0 ? describe_unreachable(r, w, s, names, kp, skills)
+                            : describe_shortage(r, w, s, names, skills, ncounted);
+        bool everyone = kn == ncounted && kn > 0;
+        rc = keel_findings_add(out, kn == 0 ? "skill" : "patient_limit", pidx,
+                               everyone ? 0 : kp, nidx, kn, msg);
+    }
+out:
+    for (size_t i = 0; i < nshort; i++) {
+        free(shorts[i].nurses);
+        free(shorts[i].patients);
+        free(shorts[i].needs_key);
+    }
+    free(shorts);
+    free(m.count);
+    free(m.seen_patient);
+    free(m.seen_nurse);
+    free(pidx);
+    free(nidx);
+    free(names);
+    free(skills);
+    return rc;
+}

@@ -1,0 +1,99 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * error.c - the error value: a status and a list of positioned problems.
+ */
+#include "keel/error.h"
+
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "alloc.h"
+
+void keel_error_init(keel_error *err)
+{
+    err->status = KEEL_OK;
+    err->nproblems = 0;
+    err->problems = NULL;
+}
+
+void keel_error_fini(keel_error *err)
+{
+    if (!err)
+        return;
+    for (size_t i = 0; i < err->nproblems; i++) {
+        free(err->problems[i].file);
+        free(err->problems[i].key);
+        free(err->problems[i].message);
+    }
+    free(err->problems);
+    keel_error_init(err);
+}
+
+keel_status keel_error_add(keel_error *err, keel_status status, const char *file, int line,
+                           int column, const char *key, const char *fmt, ...)
+{
+    if (!err)
+        return status;
+    if (err->status == KEEL_OK)
+        err->status = status;
+
+    char *message = NULL;
+    va_list ap;
+    va_start(ap, fmt);
+    int len = vsnprintf(NULL, 0, fmt, ap);
+    va_end(ap);
+    if (len >= 0)
+        message = keel_malloc((size_t)len + 1);
+    if (message) {
+        va_start(ap, fmt);
+        vsnprintf(message, (size_t)len + 1, fmt, ap);
+        va_end(ap);
+    }
+    keel_problem *grown =
+        message ? keel_reallocarray(err->problems, err->nproblems + 1, sizeof *grown) : NULL;
+    char *file_copy = file ? keel_strdup(file) : NULL;
+    char *key_copy = key ? keel_strdup(key) : NULL;
+    if (grown)
+        err->problems = grown; /* the old array may be gone even if a copy below failed */
+    if (!message || !grown || (file && !file_copy) || (key && !key_copy)) {
+        free(message);
+        free(file_copy);
+        free(key_copy);
+        err->status = KEEL_ERR_NOMEM;
+        return status;
+    }
+    err->problems[err->nproblems++] = (keel_problem){
+        .file = file_copy, .line = line, .column = column, .key = key_copy, .message = message};
+    return status;
+}
+
+int keel_problem_format(const keel_problem *p, char *buf, size_t size)
+{
+    char where[64] = "";
+    if (p->line > 0)
+        snprintf(where, sizeof where, ":%d:%d", p->line, p->column);
+    return snprintf(buf, size, "%s%s%s%s%s%s", p->file ? p->file : "", where,
+                    p->file ? ": " : "", p->key ? p->key : "", p->key ? ": " : "",
+                    p->message ? p->message : "");
+}
+
+const char *keel_status_string(keel_status status)
+{
+    switch (status) {
+    case KEEL_OK:
+        return "success";
+    case KEEL_ERR_USAGE:
+        return "usage error";
+    case KEEL_ERR_INPUT:
+        return "bad input";
+    case KEEL_ERR_IO:
+        return "input/output error";
+    case KEEL_ERR_NOMEM:
+        return "out of memory";
+    case KEEL_ERR_SOLVER:
+        return "solver failure";
+    }
+    return "unknown status";
+}

@@ -1,0 +1,75 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * report.c - the table of writers and what they share.  Last stage of the
+ * pipeline: writers read the roster, the solution and the metrics and only
+ * format them.
+ */
+#include "keel/report.h"
+
+#include <string.h>
+
+#include "report_internal.h"
+
+static const keel_writer writers[] = {
+    {"text", keel_report_text},
+    {"yaml", keel_report_yaml},
+    {"json", keel_report_json},
+};
+
+size_t keel_report_nformats(void)
+{
+    return sizeof writers / sizeof writers[0];
+}
+
+const char *keel_report_format_name(size_t i)
+{
+    return i < keel_report_nformats() ? writers[i].name : NULL;
+}
+
+keel_status keel_report_write(const char *format, const keel_report *report, FILE *out,
+                              keel_error *err)
+{
+    for (size_t i = 0; i < keel_report_nformats(); i++) {
+        if (strcmp(writers[i].name, format) != 0)
+            continue;
+        keel_status rc = writers[i].write(report, out);
+        if (rc)
+            return keel_error_add(err, rc, NULL, 0, 0, NULL,
+                                  "the %s format cannot show this report", format);
+        if (fflush(out) != 0 || ferror(out))
+            return keel_error_add(err, KEEL_ERR_IO, NULL, 0, 0, NULL, "could not write the report");
+        return KEEL_OK;
+    }
+    return keel_error_add(err, KEEL_ERR_USAGE, NULL, 0, 0, NULL,
+                          "unknown format '%s'; expected text, yaml or json", format);
+}
+
+void keel_write_quoted(FILE *out, const char *s)
+{
+    fputc('"', out);
+    for (const unsigned char *c = (const unsigned char *)s; *c; c++) {
+        switch (*c) {
+        case '"':
+            fputs("\\\"", out);
+            break;
+        case '\\':
+            fputs("\\\\", out);
+            break;
+        case '\n':
+            fputs("\\n", out);
+            break;
+        case '\t':
+            fputs("\\t", out);
+            break;
+        case '\r':
+            fputs("\\r", out);
+            break;
+        default:
+            if (*c < 0x20)
+                fprintf(out, "\\u%04x", *c);
+            else
+                fputc(*c, out);
+        }
+    }
+    fputc('"', out);
+}

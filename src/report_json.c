@@ -1,0 +1,183 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * report_json.c - the machine-readable report.  Field names are a contract
+ * other tools rely on (docs/output.md): extend, never rename.  Utilisations
+ * and indices carry 10 significant digits.
+ */
+#include <stdio.h>
+
+#include "keel/keel.h"
+#include "report_internal.h"
+
+static void write_ids_of_patients(FILE *out, const keel_roster *r, const size_t *idx, size_t n)
+{
+    fputc('[', out);
+    for (size_t i = 0; i < n; i++) {
+        if (i)
+            fputs(", ", out);
+        keel_write_quoted(out, r->patients[idx[i]].id);
+    }
+    fputc(']', out);
+}
+
+static void write_ids_of_nurses(FILE *out, const keel_roster *r, const size_t *idx, size_t n)
+{
+    fputc('[', out);
+    for (size_t i = 0; i < n; i++) {
+        if (i)
+            fputs(", ", out);
+        keel_write_quoted(out, r->nurses[idx[i]].id);
+    }
+    fputc(']', out);
+}
+
+static void write_findings(FILE *out, const keel_roster *r, const char *key,
+                           const keel_findings *list)
+{
+    fprintf(out, "  \"%s\": [", key);
+    for (size_t i = 0; list && i < list->n; i++) {
+        const keel_finding *f = &list->items[i];
+        fputs(i ? ",\n    " : "\n    ", out);
+        fprintf(out, "{\"rule\": \"%s\", \"patients\": ", f->rule);
+        write_ids_of_patients(out, r, f->patients, f->npatients);
+        fputs(", \"nurses\": ", out);
+        write_ids_of_nurses(out, r, f->nurses, f->nnurses);
+        fputs(", \"message\": ", out);
+        keel_write_quoted(out, f->message);
+        fputc('}', out);
+    }
+    fputs(list && list->n ? "\n  ],\n" : "],\n", out);
+}
+
+static void write_nurses(FILE *out, const keel_report *rep)
+{
+    const keel_roster *r = rep->roster;
+    const keel_workload *w = rep->workload;
+    fputs("  \"nurses\": [", out);
+    for (size_t n = 0; n < r->nnurses; n++) {
+        fputs(n ? ",\n    " : "\n    ", out);
+        fputs("{\"id\": ", out);
+        keel_write_quoted(out, r->nurses[n].id);
+        fputs(", \"patients\": [", out);
+        size_t k = 0;
+        for (size_t p = 0; rep->nurse_of && p < r->npatients; p++) {
+            if (rep->nurse_of[p] != (int)n)
+                continue;
+            fputs(k++ ? ", " : "", out);
+            keel_write_quoted(out, r->patients[p].id);
+        }
+        fputc(']', out);
+        const keel_nurse_metrics *m = &rep->metrics->nurses[n];
+        if (rep->nurse_of)
+            fprintf(out, ", \"load_minutes\": %d, \"care_minutes\": %d", m->load_minutes,
+                    m->care_minutes);
+        fprintf(out, ", \"duty_minutes\": %d, \"capacity_minutes\": %d", w->duty_minutes[n],
+                w->capacity_minutes[n]);
+        if (rep->nurse_of)
+            fprintf(out, ", \"utilisation\": %.10g", m->utilisation);
+        fprintf(out, ", \"max_patients\": %d, \"counted\": %s}", w->max_patients[n],
+                keel_workload_counted(w, n) ? "true" : "false");
+    }
+    fputs("\n  ],\n", out);
+}
+
+static void write_patients(FILE *out, const keel_report *rep)
+{
+    const keel_roster *r = rep->roster;
+    fputs("  \"patients\": [", out);
+    for (size_t p = 0; p < r->npatients; p++) {
+        fputs(p ? ",\n    " : "\n    ", out);
+        fputs("{\"id\": ", out);
+        keel_write_quoted(out, r->patients[p].id);
+        if (r->patients[p].bed) {
+            fputs(", \"bed\": ", out);
+            keel_write_quoted(out, r->patients[p].bed);
+        }
+        fprintf(out, ", \"care_minutes\": %d, \"nurse\": ", rep->workload->care_minutes[p]);
+        int n = rep->nurse_of ? rep->nurse_of[p] : -1;
+        if (n >= 0)
+            keel_write_quoted(out, r->nurses[n].id);
+        else
+            fputs("null", out);
+        fputc('}', out);
+    }
+    fputs(r->npatients ? "\n  ],\n" : "],\n", out);
+}
+
+static void write_imbalance(FILE *out, const keel_metrics *m)
+{
+    fprintf(out,
+            "  \"imbalance\": {\"max_utilisation\": %.10g, \"min_utilisation\": %.10g, "
+            "\"mean_utilisation\": %.10g, \"spread\": %.10g, \"peak_to_mean\": %.10g, "
+            "\"cv\": %.10g, \"jain\": %.10g, \"gini\": %.10g, \"counted_nurses\": %zu},\n",
+            m->max_utilisation, m->min_utilisation, m->mean_utilisation, m->spread,
+            m->peak_to_mean, m->cv, m->jain, m->gini, m->ncounted);
+}
+
+static void write_stages(FILE *out, const keel_solution *s)
+{
+    if (s->nstages > 0)
+        fprintf(out, "  \"bound\": {\"max_utilisation\": %.10g, \"gap\": %.10g},\n",
+                s->stages[0].bound, s->stages[0].gap);
+    fputs("  \"stages\": [", out);
+    for (size_t i = 0; i < s->nstages; i++) {
+        const keel_stage *st = &s->stages[i];
+        fprintf(out,
+                "%s{\"name\": \"%s\", \"status\": \"%s\", \"value\": %.10g, \"bound\": %.10g, "
+                "\"gap\": %.10g, \"solver_calls\": %d, \"seconds\": %.3f}",
+                i ? ",\n    " : "\n    ", st->name, keel_solve_status_name(st->status),
+                st->value, st->bound, st->gap, st->solver_calls, st->seconds);
+    }
+    fputs(s->nstages ? "\n  ],\n" : "],\n", out);
+}
+
+static void write_staffing(FILE *out, const keel_report *rep)
+{
+    const keel_metrics *m = rep->metrics;
+    fprintf(out,
+            "  \"staffing\": {\"patients\": %zu, \"nurses_on_shift\": %zu, "
+            "\"nurses_taking_patients\": %zu, \"care_minutes\": %ld, \"duty_minutes\": %ld, "
+            "\"capacity_minutes\": %ld, \"utilisation\": %.10g, \"nurses_needed\": %.10g},\n",
+            rep->workload->npatients, m->nnurses, m->ncounted, m->care_minutes, m->duty_minutes,
+            m->capacity_minutes, m->unit_utilisation, m->nurses_needed);
+}
+
+keel_status keel_report_json(const keel_report *rep, FILE *out)
+{
+    const keel_roster *r = rep->roster;
+    const keel_solution *s = rep->solution;
+    fputs("{\n", out);
+    fprintf(out, "  \"keel_version\": \"%s\",\n", keel_version());
+    fprintf(out, "  \"command\": \"%s\",\n", rep->kind == KEEL_REPORT_ASSIGN ? "assign" : "check");
+    fputs("  \"roster\": ", out);
+    keel_write_quoted(out, r->path ? r->path : "");
+    fputs(",\n", out);
+    if (rep->kind == KEEL_REPORT_ASSIGN && s) {
+        fprintf(out, "  \"status\": \"%s\",\n  \"method\": \"%s\",\n  \"seconds\": %.3f,\n",
+                keel_solve_status_name(s->status), s->method, s->seconds);
+    }
+    if (rep->kind == KEEL_REPORT_CHECK)
+        fprintf(out, "  \"plan\": %s,\n", rep->nurse_of ? "true" : "false");
+    write_nurses(out, rep);
+    write_patients(out, rep);
+    write_staffing(out, rep);
+    if (rep->nurse_of && rep->metrics->nunassigned == 0)
+        write_imbalance(out, rep->metrics);
+    if (rep->kind == KEEL_REPORT_CHECK) {
+        write_findings(out, r, "violations", rep->violations);
+        if (s && s->status != KEEL_SOLVE_INFEASIBLE && s->nstages > 0)
+            fprintf(out,
+                    "  \"best_possible\": {\"status\": \"%s\", \"max_utilisation\": %.10g, "
+                    "\"bound\": %.10g},\n",
+                    keel_solve_status_name(s->stages[0].status), s->stages[0].value,
+                    s->stages[0].bound);
+    }
+    if (s && s->status != KEEL_SOLVE_INFEASIBLE)
+        write_stages(out, s);
+    if (s)
+        write_findings(out, r, "diagnosis", &s->diagnoses);
+    fputs("  \"caution\": ", out);
+    keel_write_quoted(out, KEEL_CAUTION);
+    fputs("\n}\n", out);
+    return KEEL_OK;
+}

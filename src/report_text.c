@@ -1,0 +1,166 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * report_text.c - the report a charge nurse reads: one block per nurse, the
+ * balance, the proof, the staffing line and the caution.  Patients appear by
+ * id and bed only (names stay out of anything that may be posted).
+ */
+#include <stdio.h>
+
+#include "keel/keel.h"
+#include "report_internal.h"
+
+static void write_heading(FILE *out, const keel_report *rep)
+{
+    const keel_roster *r = rep->roster;
+    fprintf(out, "keel %s: %s", rep->kind == KEEL_REPORT_ASSIGN ? "assignment" : "check",
+            r->unit.name ? r->unit.name : (r->path ? r->path : "roster"));
+    if (r->shift.label)
+        fprintf(out, ", %s shift", r->shift.label);
+    if (r->shift.date)
+        fprintf(out, " %s", r->shift.date);
+    if (r->shift.start_minute != KEEL_ABSENT)
+        fprintf(out, " from %02d:%02d", r->shift.start_minute / 60, r->shift.start_minute % 60);
+    fprintf(out, " (%d min)\n", r->shift.minutes);
+    fprintf(out, "%zu patients, %zu nurses\n\n", r->npatients, r->nnurses);
+}
+
+static void write_patient_line(FILE *out, const keel_report *rep, size_t p)
+{
+    const keel_patient *pat = &rep->roster->patients[p];
+    fprintf(out, "      %-10s bed %-8s %4d min", pat->id, pat->bed ? pat->bed : "-",
+            rep->workload->care_minutes[p]);
+    if (pat->acuity != KEEL_ABSENT)
+        fprintf(out, "  acuity %d", pat->acuity);
+    for (size_t i = 0; i < pat->nneeds; i++)
+        fprintf(out, "%s%s", i ? ", " : "  needs ", pat->needs[i]);
+    fputc('\n', out);
+}
+
+static void write_nurse_blocks(FILE *out, const keel_report *rep)
+{
+    const keel_roster *r = rep->roster;
+    const keel_workload *w = rep->workload;
+    for (size_t n = 0; n < r->nnurses; n++) {
+        const keel_nurse_metrics *m = &rep->metrics->nurses[n];
+        fprintf(out, "%-6s %-22s %2d patient%s  load %4d of %4d min  %5.1f %%", r->nurses[n].id,
+                r->nurses[n].name ? r->nurses[n].name : "", m->npatients,
+                m->npatients == 1 ? " " : "s", m->load_minutes, m->capacity_minutes,
+                100.0 * m->utilisation);
+        if (w->duty_minutes[n] > 0)
+            fprintf(out, "  (incl. %d duty min)", w->duty_minutes[n]);
+        if (!m->counted)
+            fputs("  takes no patients", out);
+        fputc('\n', out);
+        for (size_t p = 0; p < r->npatients; p++)
+            if (rep->nurse_of[p] == (int)n)
+                write_patient_line(out, rep, p);
+    }
+    fputc('\n', out);
+}
+
+static void write_balance(FILE *out, const keel_metrics *m)
+{
+    fprintf(out, "Balance over the %zu nurses who take patients\n", m->ncounted);
+    fprintf(out, "  heaviest %.1f %%, lightest %.1f %%, spread %.1f points\n",
+            100.0 * m->max_utilisation, 100.0 * m->min_utilisation, 100.0 * m->spread);
+    fprintf(out, "  peak-to-mean %.3f, coefficient of variation %.3f, Jain's index %.3f, "
+                 "Gini %.3f\n\n",
+            m->peak_to_mean, m->cv, m->jain, m->gini);
+}
+
+static void write_stage(FILE *out, const keel_stage *st, const char *what, const char *limit)
+{
+    fprintf(out, "  %-9s %5.1f %%  ", what, 100.0 * st->value);
+    if (st->status == KEEL_SOLVE_OPTIMAL)
+        fputs("proven best possible", out);
+    else
+        fprintf(out, "not proven: %s %.1f %% (gap %.2f %%)", limit, 100.0 * st->bound,
+                100.0 * st->gap);
+    if (st->solver_calls > 0)
+        fprintf(out, "  [%d integer programme%s, %.2f s]", st->solver_calls,
+                st->solver_calls == 1 ? "" : "s", st->seconds);
+    fputc('\n', out);
+}
+
+static void write_proof(FILE *out, const keel_solution *s)
+{
+    fprintf(out, "Status: %s (method %s, %.2f s)\n", keel_solve_status_name(s->status), s->method,
+            s->seconds);
+    if (s->nstages >= 2) {
+        write_stage(out, &s->stages[0], "heaviest", "no valid assignment is lighter than");
+        write_stage(out, &s->stages[1], "lightest", "none lifts the lightest above");
+    }
+    if (s->status == KEEL_SOLVE_TIME_LIMIT)
+        fputs("  The time limit ended the search: this plan is valid but not proven the most "
+              "even.\n",
+              out);
+    fputc('\n', out);
+}
+
+static void write_staffing(FILE *out, const keel_metrics *m)
+{
+    fprintf(out, "Staffing\n  care %ld min + duty %ld min against %ld min of nurse time: %.1f %%\n",
+            m->care_minutes, m->duty_minutes, m->capacity_minutes, 100.0 * m->unit_utilisation);
+    fprintf(out, "  %.1f nurses needed at full utilisation; %zu on shift take patients\n\n",
+            m->nurses_needed, m->ncounted);
+}
+
+static void write_findings(FILE *out, const char *title, const keel_findings *list)
+{
+    if (!list || list->n == 0)
+        return;
+    fprintf(out, "%s\n", title);
+    for (size_t i = 0; i < list->n; i++)
+        fprintf(out, "  [%s] %s\n", list->items[i].rule, list->items[i].message);
+    fputc('\n', out);
+}
+
+static void write_workload(FILE *out, const keel_report *rep)
+{
+    const keel_roster *r = rep->roster;
+    const keel_workload *w = rep->workload;
+    fputs("Care minutes per patient\n", out);
+    for (size_t p = 0; p < r->npatients; p++)
+        write_patient_line(out, rep, p);
+    fputs("\nNurses\n", out);
+    for (size_t n = 0; n < r->nnurses; n++)
+        fprintf(out, "  %-6s %-22s capacity %4d min  duty %3d min  limit %d patients\n",
+                r->nurses[n].id, r->nurses[n].name ? r->nurses[n].name : "",
+                w->capacity_minutes[n], w->duty_minutes[n], w->max_patients[n]);
+    fputc('\n', out);
+}
+
+keel_status keel_report_text(const keel_report *rep, FILE *out)
+{
+    const keel_solution *s = rep->solution;
+    write_heading(out, rep);
+    if (rep->kind == KEEL_REPORT_CHECK)
+        write_workload(out, rep);
+    if (s && s->status == KEEL_SOLVE_INFEASIBLE && rep->kind == KEEL_REPORT_ASSIGN) {
+        fputs("No valid assignment exists for this roster.\n\n", out);
+        write_findings(out, "Why", &s->diagnoses);
+    } else if (rep->nurse_of) {
+        if (rep->kind == KEEL_REPORT_CHECK)
+            fputs("The roster's own plan\n", out);
+        write_nurse_blocks(out, rep);
+        write_balance(out, rep->metrics);
+    }
+    if (rep->kind == KEEL_REPORT_ASSIGN && s && s->status != KEEL_SOLVE_INFEASIBLE)
+        write_proof(out, s);
+    if (rep->kind == KEEL_REPORT_CHECK) {
+        if (rep->nurse_of)
+            write_findings(out, "Rules the plan breaks", rep->violations);
+        if (rep->nurse_of && rep->violations && rep->violations->n == 0)
+            fputs("The plan keeps every rule keel checks.\n\n", out);
+        if (s && s->status == KEEL_SOLVE_INFEASIBLE)
+            write_findings(out, "No valid assignment exists", &s->diagnoses);
+        else if (s && s->nstages > 0)
+            fprintf(out, "Best possible heaviest utilisation: %.1f %% (%s)\n\n",
+                    100.0 * s->stages[0].value,
+                    s->stages[0].status == KEEL_SOLVE_OPTIMAL ? "proven"
+                                                              : "best found, not proven");
+    }
+    write_staffing(out, rep->metrics);
+    fprintf(out, "%s\n", KEEL_CAUTION);
+    return KEEL_OK;
+}

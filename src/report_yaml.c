@@ -1,0 +1,129 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * report_yaml.c - the roster again, every key it had, with each patient's
+ * `nurse:` set to the assignment, so the file can be fed back in (to
+ * `keel check`, or by hand edits to `keel assign`).  Strings are written
+ * double-quoted; the first lines carry the caution as a comment.
+ */
+#include <stdio.h>
+
+#include "keel/keel.h"
+#include "report_internal.h"
+
+static void write_key_string(FILE *out, const char *indent, const char *key, const char *value)
+{
+    if (!value)
+        return;
+    fprintf(out, "%s%s: ", indent, key);
+    keel_write_quoted(out, value);
+    fputc('\n', out);
+}
+
+static void write_key_int(FILE *out, const char *indent, const char *key, int value)
+{
+    if (value != KEEL_ABSENT)
+        fprintf(out, "%s%s: %d\n", indent, key, value);
+}
+
+static void write_key_list(FILE *out, const char *indent, const char *key, char *const *items,
+                           size_t n)
+{
+    if (n == 0)
+        return;
+    fprintf(out, "%s%s: [", indent, key);
+    for (size_t i = 0; i < n; i++) {
+        if (i)
+            fputs(", ", out);
+        keel_write_quoted(out, items[i]);
+    }
+    fputs("]\n", out);
+}
+
+static void write_head(FILE *out, const keel_roster *r)
+{
+    fputs("version: 1\n", out);
+    if (r->unit.name || r->unit.type) {
+        fputs("unit:\n", out);
+        write_key_string(out, "  ", "name", r->unit.name);
+        write_key_string(out, "  ", "type", r->unit.type);
+    }
+    fputs("shift:\n", out);
+    write_key_string(out, "  ", "label", r->shift.label);
+    write_key_string(out, "  ", "date", r->shift.date);
+    if (r->shift.start_minute != KEEL_ABSENT)
+        fprintf(out, "  start: \"%02d:%02d\"\n", r->shift.start_minute / 60,
+                r->shift.start_minute % 60);
+    write_key_int(out, "  ", "minutes", r->shift.minutes);
+    write_key_int(out, "  ", "break_minutes", r->shift.break_minutes);
+    if (r->policy.max_patients == KEEL_ABSENT && r->policy.nacuity == 0 &&
+        r->policy.nextras == 0)
+        return;
+    fputs("policy:\n", out);
+    write_key_int(out, "  ", "max_patients", r->policy.max_patients);
+    if (r->policy.nacuity) {
+        fputs("  acuity_minutes: {", out);
+        for (size_t i = 0; i < r->policy.nacuity; i++)
+            fprintf(out, "%s%d: %d", i ? ", " : "", r->policy.acuity_minutes[i].level,
+                    r->policy.acuity_minutes[i].minutes);
+        fputs("}\n", out);
+    }
+    if (r->policy.nextras) {
+        fputs("  extra_minutes: {", out);
+        for (size_t i = 0; i < r->policy.nextras; i++) {
+            fputs(i ? ", " : "", out);
+            keel_write_quoted(out, r->policy.extra_minutes[i].name);
+            fprintf(out, ": %d", r->policy.extra_minutes[i].minutes);
+        }
+        fputs("}\n", out);
+    }
+}
+
+static void write_nurses(FILE *out, const keel_roster *r)
+{
+    fputs("nurses:\n", out);
+    for (size_t n = 0; n < r->nnurses; n++) {
+        const keel_nurse *nu = &r->nurses[n];
+        fputs("  - id: ", out);
+        keel_write_quoted(out, nu->id);
+        fputc('\n', out);
+        write_key_string(out, "    ", "name", nu->name);
+        write_key_list(out, "    ", "skills", nu->skills, nu->nskills);
+        write_key_int(out, "    ", "max_patients", nu->max_patients);
+        write_key_int(out, "    ", "minutes", nu->minutes);
+        write_key_int(out, "    ", "break_minutes", nu->break_minutes);
+        write_key_int(out, "    ", "duty_minutes", nu->duty_minutes);
+    }
+}
+
+static void write_patients(FILE *out, const keel_report *rep)
+{
+    const keel_roster *r = rep->roster;
+    fputs("patients:\n", out);
+    for (size_t p = 0; p < r->npatients; p++) {
+        const keel_patient *pa = &r->patients[p];
+        fputs("  - id: ", out);
+        keel_write_quoted(out, pa->id);
+        fputc('\n', out);
+        write_key_string(out, "    ", "bed", pa->bed);
+        write_key_string(out, "    ", "name", pa->name);
+        write_key_int(out, "    ", "acuity", pa->acuity);
+        write_key_int(out, "    ", "care_minutes", pa->care_minutes);
+        write_key_list(out, "    ", "extras", pa->extras, pa->nextras);
+        write_key_list(out, "    ", "needs", pa->needs, pa->nneeds);
+        int n = rep->nurse_of ? rep->nurse_of[p] : -1;
+        write_key_string(out, "    ", "nurse", n >= 0 ? r->nurses[n].id : pa->nurse);
+    }
+}
+
+keel_status keel_report_yaml(const keel_report *rep, FILE *out)
+{
+    const keel_solution *s = rep->solution;
+    fprintf(out, "# Written by keel %s", keel_version());
+    if (s)
+        fprintf(out, " (%s, status %s)", s->method, keel_solve_status_name(s->status));
+    fprintf(out, "\n# %s\n", KEEL_CAUTION);
+    write_head(out, rep->roster);
+    write_nurses(out, rep->roster);
+    write_patients(out, rep);
+    return KEEL_OK;
+}

@@ -1,0 +1,1458 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * roster.c - loads a roster file and checks it against the roster format
+ * (docs/roster-format.md).  First stage of the pipeline: every later stage
+ * may trust that a keel_roster is complete and consistent.
+ *
+ * Two steps.  read_document() turns libyaml's event stream into a small
+ * owned tree of nodes (scalar, sequence, mapping) that keeps each node's
+ * 1-based position and whether a scalar was quoted; anchors, aliases and
+ * tags are reported, never expanded.  walk_mapping() then checks a mapping
+ * against a table of keys, one row per key naming its parser, so a new key
+ * is one new row.  Checks that need the whole file (unique ids, references,
+ * limits that depend on the shift) run after the walk, on the filled roster.
+ *
+ * Invariants: every problem in the file is reported, not only the first;
+ * on any failure *out is NULL and nothing leaks; a value that fails its
+ * check leaves its field absent, so later checks do not repeat the problem.
+ * This is the only file of keel that includes yaml.h.
+ */
+#include "keel/roster.h"
+
+#include <assert.h>
+#include <errno.h>
+#include <limits.h>
+#include <stdarg.h>
+#include <stdbool.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include <yaml.h>
+
+#include "alloc.h"
+
+#define ARRAY_LEN(a) (sizeof(a) / sizeof((a)[0]))
+
+enum {
+    MAX_DEPTH = 64,          /* nesting accepted; a roster needs 5 levels */
+    MAX_PATH = 256,          /* bytes of a key path in a message; longer ones are cut */
+    MAX_SHOWN = 40,          /* bytes of a file's text quoted back in a message */
+    SHOWN_SIZE = MAX_SHOWN + 4,
+    MAX_KEYS = 16,           /* rows in one key table */
+    MAX_SUGGEST = 64,        /* longest unknown key that gets a "did you mean" */
+    MINUTES_PER_DAY = 1440,  /* the upper bound of every minutes figure */
+    MAX_PATIENTS = 99,
+    MAX_LEVEL = 99,
+};
+
+/* ---------------------------------------------------------------------------
+ * The node tree
+ */
+
+typedef enum node_kind { NODE_SCALAR, NODE_SEQUENCE, NODE_MAPPING, NODE_ALIAS } node_kind;
+
+/* One YAML node.  A mapping keeps keys and values alternately in items. */
+typedef struct node {
+    node_kind kind;
+    keel_mark mark;
+    bool quoted;         /* scalar in quotes or block style: text, never a number */
+    char *text;          /* scalar text, NUL-terminated */
+    size_t len;          /* scalar bytes as written; more than strlen(text) if it holds NUL */
+    char *anchor;        /* the anchor it defines, or an alias's target; keel rejects both */
+    char *tag;           /* an explicit tag; keel rejects it */
+    size_t nitems;
+    size_t capacity;
+    struct node **items;
+} node;
+
+typedef enum table_state { TABLE_ABSENT, TABLE_BROKEN, TABLE_READ } table_state;
+
+/* Everything one load needs.  Problems go to err; nproblems counts them even
+ * when err is NULL.  Once memory runs out nothing more is reported. */
+typedef struct loader {
+    const char *file;
+    const char *text;
+    size_t len;
+    keel_error *err;
+    size_t first_problem;    /* index in err of this load's first problem */
+    size_t nproblems;
+    bool nomem;
+    char path[MAX_PATH];     /* key path of the value being checked */
+    size_t pathlen;
+    keel_roster *roster;
+    table_state acuity_table;
+    table_state extra_table;
+} loader;
+
+static void free_node(node *n)
+{
+    if (!n)
+        return;
+    for (size_t i = 0; i < n->nitems; i++)
+        free_node(n->items[i]);
+    free(n->items);
+    free(n->text);
+    free(n->anchor);
+    free(n->tag);
+    free(n);
+}
+
+/* libyaml's 0-based mark as keel's 1-based one: the one place they differ. */
+static keel_mark mark_of(yaml_mark_t m)
+{
+    return (keel_mark){.line = m.line < INT_MAX ? (int)m.line + 1 : INT_MAX,
+                       .column = m.column < INT_MAX ? (int)m.column + 1 : INT_MAX};
+}
+
+/* The value of key in mapping map (the first, if given twice), or NULL. */
+static const node *find_value(const node *map, const char *key)
+{
+    if (!map || map->kind != NODE_MAPPING)
+        return NULL;
+    for (size_t i = 0; i + 1 < map->nitems; i += 2) {
+        const node *k = map->items[i];
+        if (k->kind == NODE_SCALAR && strcmp(k->text, key) == 0)
+            return map->items[i + 1];
+    }
+    return NULL;
+}
+
+static bool is_null(const node *n)
+{
+    static const char *const nulls[] = {"", "~", "null", "Null", "NULL"};
+    if (n->kind != NODE_SCALAR || n->quoted)
+        return false;
+    for (size_t i = 0; i < ARRAY_LEN(nulls); i++)
+        if (strcmp(n->text, nulls[i]) == 0)
+            return true;
+    return false;
+}
+
+/* ---------------------------------------------------------------------------
+ * Reporting
+ */
+
+/* Copies s for a message into buf[SHOWN_SIZE]: control characters become
+ * '?', and text longer than MAX_SHOWN is cut (marked "...") between UTF-8
+ * characters.  Returns buf. */
+static const char *show(char *buf, const char *s)
+{
+    size_t len = strlen(s), cut = len;
+    if (len > MAX_SHOWN) {
+        cut = MAX_SHOWN;
+        while (cut > 0 && ((unsigned char)s[cut] & 0xC0) == 0x80)
+            cut--;
+    }
+    for (size_t i = 0; i < cut; i++)
+        buf[i] = ((unsigned char)s[i] < 0x20 || s[i] == 0x7F) ? '?' : s[i];
+    strcpy(buf + cut, cut < len ? "..." : "");
+    return buf;
+}
+
+static char *format_message(const char *fmt, va_list ap)
+{
+    va_list copy;
+    va_copy(copy, ap);
+    int len = vsnprintf(NULL, 0, fmt, copy);
+    va_end(copy);
+    char *message = len < 0 ? NULL : keel_malloc((size_t)len + 1);
+    if (message)
+        vsnprintf(message, (size_t)len + 1, fmt, ap);
+    return message;
+}
+
+/* Records an input problem at mark `at`, keyed by the current path. */
+static void report(loader *ld, keel_mark at, const char *fmt, ...)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 3, 4)))
+#endif
+    ;
+
+static void report(loader *ld, keel_mark at, const char *fmt, ...)
+{
+    if (ld->nomem)
+        return;
+    ld->nproblems++;
+    if (!ld->err)
+        return;
+    va_list ap;
+    va_start(ap, fmt);
+    char *message = format_message(fmt, ap);
+    va_end(ap);
+    size_t before = ld->err->nproblems;
+    if (message)
+        keel_error_add(ld->err, KEEL_ERR_INPUT, ld->file, at.line, at.column,
+                       ld->pathlen ? ld->path : NULL, "%s", message);
+    if (!message || ld->err->nproblems == before)
+        ld->nomem = true;
+    free(message);
+}
+
+/* Appends ".key" (or "key" at the top) to the path; returns the old length
+ * for pop_path(). */
+static size_t push_key(loader *ld, const char *key)
+{
+    char shown[SHOWN_SIZE];
+    size_t old = ld->pathlen;
+    int n = snprintf(ld->path + old, MAX_PATH - old, "%s%s", old ? "." : "", show(shown, key));
+    ld->pathlen = n < 0 ? old : strlen(ld->path);
+    return old;
+}
+
+static size_t push_index(loader *ld, size_t index)
+{
+    size_t old = ld->pathlen;
+    snprintf(ld->path + old, MAX_PATH - old, "[%zu]", index);
+    ld->pathlen = strlen(ld->path);
+    return old;
+}
+
+static void pop_path(loader *ld, size_t old)
+{
+    ld->pathlen = old;
+    ld->path[old] = '\0';
+}
+
+/* Sets the path to list[index].key (key may be NULL), for the checks that
+ * run after the walk. */
+static void set_path(loader *ld, const char *list, size_t index, const char *key)
+{
+    pop_path(ld, 0);
+    push_key(ld, list);
+    push_index(ld, index);
+    if (key)
+        push_key(ld, key);
+}
+
+/* Writes a short description of what node n is, for "found ...". */
+static const char *describe(const node *n, char *buf, size_t size)
+{
+    char shown[SHOWN_SIZE];
+    if (n->kind == NODE_SEQUENCE)
+        snprintf(buf, size, "a sequence");
+    else if (n->kind == NODE_MAPPING)
+        snprintf(buf, size, "a mapping");
+    else if (is_null(n))
+        snprintf(buf, size, "no value");
+    else if (n->quoted)
+        snprintf(buf, size, "the string \"%s\"", show(shown, n->text));
+    else
+        snprintf(buf, size, "'%s'", show(shown, n->text));
+    return buf;
+}
+
+/* Reports that n is not what was expected.  Aliases are reported once, by
+ * check_plain_yaml(), and not again here. */
+static void report_type(loader *ld, const node *n, const char *expected)
+{
+    char what[SHOWN_SIZE + 16];
+    if (n->kind != NODE_ALIAS)
+        report(ld, n->mark, "found %s; expected %s", describe(n, what, sizeof what), expected);
+}
+
+/* The mark of byte offset in the text, for reader errors that give no mark.
+ * Columns count characters, as libyaml's marks do. */
+static keel_mark mark_at_offset(const loader *ld, size_t offset)
+{
+    keel_mark at = {.line = 1, .column = 1};
+    for (size_t i = 0; i < offset && i < ld->len; i++) {
+        if (ld->text[i] == '\n') {
+            at.line++;
+            at.column = 1;
+        } else if (((unsigned char)ld->text[i] & 0xC0) != 0x80) {
+            at.column++;
+        }
+    }
+    return at;
+}
+
+static void report_parser_error(loader *ld, const yaml_parser_t *parser)
+{
+    const char *problem = parser->problem ? parser->problem : "unknown problem";
+    if (parser->error == YAML_MEMORY_ERROR) {
+        ld->nomem = true;
+    } else if (parser->error == YAML_READER_ERROR) {
+        keel_mark at = mark_at_offset(ld, parser->problem_offset);
+        if (parser->problem_value >= 0)
+            report(ld, at, "cannot read the text: %s (byte 0x%02X); expected UTF-8 text", problem,
+                   (unsigned)parser->problem_value);
+        else
+            report(ld, at, "cannot read the text: %s; expected UTF-8 text", problem);
+    } else if (parser->context) {
+        report(ld, mark_of(parser->problem_mark), "YAML syntax error: %s (%s on line %d)",
+               problem, parser->context, mark_of(parser->context_mark).line);
+    } else {
+        report(ld, mark_of(parser->problem_mark), "YAML syntax error: %s", problem);
+    }
+}
+
+/* ---------------------------------------------------------------------------
+ * Reading the YAML into nodes
+ */
+
+/* Parses the next event; on a syntax error reports it and returns false. */
+static bool next_event(loader *ld, yaml_parser_t *parser, yaml_event_t *event)
+{
+    if (yaml_parser_parse(parser, event))
+        return true;
+    report_parser_error(ld, parser);
+    return false;
+}
+
+/* Keeps the anchor and tag of a node's event, to be reported with their
+ * key paths by check_plain_yaml(). */
+static bool keep_anchor_and_tag(loader *ld, node *n, const yaml_event_t *event)
+{
+    const yaml_char_t *anchor = NULL, *tag = NULL;
+    if (event->type == YAML_SCALAR_EVENT) {
+        anchor = event->data.scalar.anchor;
+        tag = event->data.scalar.tag;
+    } else if (event->type == YAML_SEQUENCE_START_EVENT) {
+        anchor = event->data.sequence_start.anchor;
+        tag = event->data.sequence_start.tag;
+    } else if (event->type == YAML_MAPPING_START_EVENT) {
+        anchor = event->data.mapping_start.anchor;
+        tag = event->data.mapping_start.tag;
+    } else if (event->type == YAML_ALIAS_EVENT) {
+        anchor = event->data.alias.anchor;
+    }
+    n->anchor = keel_strdup((const char *)anchor);
+    n->tag = keel_strdup((const char *)tag);
+    if ((anchor && !n->anchor) || (tag && !n->tag))
+        ld->nomem = true;
+    return !ld->nomem;
+}
+
+static bool fill_scalar(loader *ld, node *n, const yaml_event_t *event)
+{
+    const char *value = (const char *)event->data.scalar.value;
+    size_t length = event->data.scalar.length;
+    n->kind = NODE_SCALAR;
+    n->quoted = event->data.scalar.style != YAML_PLAIN_SCALAR_STYLE;
+    n->text = keel_strndup(value, length);
+    n->len = length;
+    if (!n->text)
+        ld->nomem = true;
+    return n->text != NULL;
+}
+
+static bool add_child(loader *ld, node *parent, node *child)
+{
+    if (parent->nitems == parent->capacity) {
+        size_t capacity = parent->capacity ? 2 * parent->capacity : 8;
+        node **grown = keel_reallocarray(parent->items, capacity, sizeof *grown);
+        if (!grown) {
+            ld->nomem = true;
+            return false;
+        }
+        parent->items = grown;
+        parent->capacity = capacity;
+    }
+    parent->items[parent->nitems++] = child;
+    return true;
+}
+
+static bool read_node(loader *ld, yaml_parser_t *parser, yaml_event_t *event, int depth,
+                      node **out);
+
+/* Reads the children of a sequence or mapping up to its end event. */
+static bool read_children(loader *ld, yaml_parser_t *parser, node *n, int depth)
+{
+    if (depth >= MAX_DEPTH) {
+        report(ld, n->mark, "nesting deeper than %d levels; a roster needs at most 5", MAX_DEPTH);
+        return false;
+    }
+    for (;;) {
+        yaml_event_t event;
+        node *child;
+        if (!next_event(ld, parser, &event))
+            return false;
+        if (event.type == YAML_SEQUENCE_END_EVENT || event.type == YAML_MAPPING_END_EVENT) {
+            yaml_event_delete(&event);
+            return true;
+        }
+        if (!read_node(ld, parser, &event, depth + 1, &child))
+            return false;
+        if (!add_child(ld, n, child)) {
+            free_node(child);
+            return false;
+        }
+    }
+}
+
+/* Builds the node that starts with event (consumed) and everything in it. */
+static bool read_node(loader *ld, yaml_parser_t *parser, yaml_event_t *event, int depth,
+                      node **out)
+{
+    bool ok = true;
+    node *n = keel_calloc(1, sizeof *n);
+    *out = NULL;
+    if (!n) {
+        ld->nomem = true;
+        yaml_event_delete(event);
+        return false;
+    }
+    n->mark = mark_of(event->start_mark);
+    ok = keep_anchor_and_tag(ld, n, event);
+    if (!ok)
+        n->kind = NODE_ALIAS;
+    else if (event->type == YAML_SCALAR_EVENT)
+        ok = fill_scalar(ld, n, event);
+    else if (event->type == YAML_SEQUENCE_START_EVENT)
+        n->kind = NODE_SEQUENCE;
+    else if (event->type == YAML_MAPPING_START_EVENT)
+        n->kind = NODE_MAPPING;
+    else
+        n->kind = NODE_ALIAS;
+    yaml_event_delete(event);
+    if (ok && (n->kind == NODE_SEQUENCE || n->kind == NODE_MAPPING))
+        ok = read_children(ld, parser, n, depth);
+    if (!ok) {
+        free_node(n);
+        return false;
+    }
+    *out = n;
+    return true;
+}
+
+/* Reads the one document of the file into *root.  An empty file, a syntax
+ * error or a second document is reported and ends the load. */
+static bool read_document(loader *ld, yaml_parser_t *parser, node **root)
+{
+    yaml_event_t event;
+    *root = NULL;
+    if (!next_event(ld, parser, &event))   /* stream start */
+        return false;
+    yaml_event_delete(&event);
+    if (!next_event(ld, parser, &event))
+        return false;
+    if (event.type == YAML_STREAM_END_EVENT) {
+        yaml_event_delete(&event);
+        report(ld, (keel_mark){1, 1}, "the file is empty or only comments; expected a roster "
+                                      "with shift, nurses and patients");
+        return false;
+    }
+    yaml_event_delete(&event);             /* document start */
+    if (!next_event(ld, parser, &event) || !read_node(ld, parser, &event, 1, root))
+        return false;
+    if (!next_event(ld, parser, &event))   /* document end */
+        goto fail;
+    yaml_event_delete(&event);
+    if (!next_event(ld, parser, &event))
+        goto fail;
+    if (event.type == YAML_DOCUMENT_START_EVENT) {
+        report(ld, mark_of(event.start_mark),
+               "a second YAML document starts here; expected one roster per file");
+        yaml_event_delete(&event);
+        goto fail;
+    }
+    yaml_event_delete(&event);
+    return true;
+fail:
+    free_node(*root);
+    *root = NULL;
+    return false;
+}
+
+/* Reports every anchor, alias and tag in the tree: keel reads plain YAML
+ * only, so that each value is written where it applies. */
+static void check_plain_yaml(loader *ld, const node *n)
+{
+    char shown[SHOWN_SIZE];
+    if (n->kind == NODE_ALIAS)
+        report(ld, n->mark, "alias '*%s' is not supported; write the value out in full",
+               show(shown, n->anchor));
+    else if (n->anchor)
+        report(ld, n->mark, "anchor '&%s' is not supported; write each value out in full",
+               show(shown, n->anchor));
+    if (n->tag)
+        report(ld, n->mark, "tag '%s' is not supported; remove it (quotes make a value text)",
+               show(shown, n->tag));
+    if (n->kind == NODE_SCALAR && strlen(n->text) != n->len)
+        report(ld, n->mark, "text with a NUL character; expected text without one");
+    for (size_t i = 0; i < n->nitems; i++) {
+        size_t old = ld->pathlen;
+        if (n->kind == NODE_SEQUENCE)
+            push_index(ld, i);
+        else if (i % 2 == 1)
+            push_key(ld, n->items[i - 1]->kind == NODE_SCALAR ? n->items[i - 1]->text : "?");
+        check_plain_yaml(ld, n->items[i]);
+        pop_path(ld, old);
+    }
+}
+
+/* ---------------------------------------------------------------------------
+ * Scalar values
+ */
+
+/* Reads a plain decimal integer; values beyond a billion saturate, which
+ * every range check rejects.  False when n is not an integer. */
+static bool scan_int(const node *n, long *out)
+{
+    if (n->kind != NODE_SCALAR || n->quoted)
+        return false;
+    const char *s = n->text;
+    bool negative = *s == '-';
+    if (*s == '-' || *s == '+')
+        s++;
+    if (!*s)
+        return false;
+    long value = 0;
+    for (; *s; s++) {
+        if (*s < '0' || *s > '9')
+            return false;
+        if (value < 1000000000L)
+            value = value * 10 + (*s - '0');
+    }
+    *out = negative ? -value : value;
+    return true;
+}
+
+/* Reads an integer in [min, max] into *out; reports and returns false if n
+ * is not one. */
+static bool read_int(loader *ld, const node *n, int min, int max, int *out)
+{
+    long value;
+    char shown[SHOWN_SIZE];
+    if (!scan_int(n, &value)) {
+        report_type(ld, n, "an integer");
+        return false;
+    }
+    if (value < min || value > max) {
+        report(ld, n->mark, "%s is out of range; expected an integer from %d to %d",
+               show(shown, n->text), min, max);
+        return false;
+    }
+    *out = (int)value;
+    return true;
+}
+
+/* Copies a non-empty string into *out (NULL if n is not one, reported). */
+static bool read_string(loader *ld, const node *n, char **out)
+{
+    *out = NULL;
+    if (n->kind != NODE_SCALAR || is_null(n)) {
+        report_type(ld, n, "a string");
+        return false;
+    }
+    if (n->text[0] == '\0') {
+        report(ld, n->mark, "found an empty string; expected a non-empty string");
+        return false;
+    }
+    *out = keel_strdup(n->text);
+    if (!*out)
+        ld->nomem = true;
+    return *out != NULL;
+}
+
+/* Minutes after midnight of "H:MM" or "HH:MM", or -1. */
+static int scan_clock(const char *s)
+{
+    size_t hour_digits = strspn(s, "0123456789");
+    if (hour_digits < 1 || hour_digits > 2 || s[hour_digits] != ':')
+        return -1;
+    const char *m = s + hour_digits + 1;
+    if (strspn(m, "0123456789") != 2 || m[2] != '\0')
+        return -1;
+    int hours = atoi(s), minutes = (m[0] - '0') * 10 + (m[1] - '0');
+    if (hours > 23 || minutes > 59)
+        return -1;
+    return hours * 60 + minutes;
+}
+
+/* True when s is YYYY-MM-DD and names a day of the Gregorian calendar. */
+static bool is_calendar_date(const char *s)
+{
+    static const int days[] = {31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31};
+    if (strlen(s) != 10 || s[4] != '-' || s[7] != '-')
+        return false;
+    for (int i = 0; i < 10; i++)
+        if (i != 4 && i != 7 && (s[i] < '0' || s[i] > '9'))
+            return false;
+    int year = atoi(s), month = atoi(s + 5), day = atoi(s + 8);
+    bool leap = (year % 4 == 0 && year % 100 != 0) || year % 400 == 0;   /* Gregorian */
+    if (year < 1 || month < 1 || month > 12 || day < 1)
+        return false;
+    return day <= days[month - 1] + (month == 2 && leap);
+}
+
+/* ---------------------------------------------------------------------------
+ * Key tables and the mapping walker
+ */
+
+typedef struct key_rule key_rule;
+
+/* Checks value and stores it into target as the rule says. */
+typedef void (*parse_fn)(loader *ld, const node *value, void *target, const key_rule *rule);
+
+struct key_rule {
+    const char *name;
+    parse_fn parse;
+    size_t offset;          /* the field of target that the parser fills */
+    size_t count_offset;    /* lists: the size_t that counts the entries */
+    int min, max;           /* integers: the documented range */
+    const key_rule *keys;   /* nested mappings: their key table */
+    size_t nkeys;
+    const char *need;       /* required keys: why, for the "missing" message */
+};
+
+static void *field_of(void *target, size_t offset)
+{
+    return (char *)target + offset;
+}
+
+/* Optimal string alignment distance of a and b (both at most MAX_SUGGEST). */
+static size_t edit_distance(const char *a, const char *b)
+{
+    size_t la = strlen(a), lb = strlen(b);
+    size_t d[MAX_SUGGEST + 1][MAX_SUGGEST + 1];
+    for (size_t i = 0; i <= la; i++)
+        d[i][0] = i;
+    for (size_t j = 0; j <= lb; j++)
+        d[0][j] = j;
+    for (size_t i = 1; i <= la; i++) {
+        for (size_t j = 1; j <= lb; j++) {
+            size_t best = d[i - 1][j - 1] + (a[i - 1] != b[j - 1]);
+            if (d[i - 1][j] + 1 < best)
+                best = d[i - 1][j] + 1;
+            if (d[i][j - 1] + 1 < best)
+                best = d[i][j - 1] + 1;
+            if (i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1] &&
+                d[i - 2][j - 2] + 1 < best)
+                best = d[i - 2][j - 2] + 1;
+            d[i][j] = best;
+        }
+    }
+    return d[la][lb];
+}
+
+/* The valid key closest to word, when it is close enough to be a typo. */
+static const char *suggest_key(const char *word, const key_rule *keys, size_t nkeys)
+{
+    const char *best = NULL;
+    size_t best_distance = 3;
+    if (strlen(word) > MAX_SUGGEST)
+        return NULL;
+    for (size_t i = 0; i < nkeys; i++) {
+        size_t distance = edit_distance(word, keys[i].name);
+        size_t longer = strlen(word) > strlen(keys[i].name) ? strlen(word) : strlen(keys[i].name);
+        if (distance < best_distance && 3 * distance <= longer) {
+            best = keys[i].name;
+            best_distance = distance;
+        }
+    }
+    return best;
+}
+
+static void report_unknown_key(loader *ld, const node *key, const key_rule *keys, size_t nkeys)
+{
+    const char *suggestion = suggest_key(key->text, keys, nkeys);
+    char names[MAX_KEYS * 20] = "";
+    if (suggestion) {
+        report(ld, key->mark, "unknown key; did you mean '%s'?", suggestion);
+        return;
+    }
+    for (size_t i = 0; i < nkeys; i++) {
+        strcat(names, i ? ", " : "");
+        strcat(names, keys[i].name);
+    }
+    report(ld, key->mark, "unknown key; expected one of %s", names);
+}
+
+/* True when key can name something: a scalar with text (reported if not). */
+static bool check_key(loader *ld, const node *key)
+{
+    char what[SHOWN_SIZE + 16];
+    if (key->kind == NODE_SCALAR && !is_null(key) && key->text[0] != '\0')
+        return true;
+    if (key->kind != NODE_ALIAS)
+        report(ld, key->mark, "found %s as a key; expected a name",
+               describe(key, what, sizeof what));
+    return false;
+}
+
+/* Checks that map is a mapping whose keys are in the table, each at most
+ * once, with every required key present; hands each value to its parser. */
+static void walk_mapping(loader *ld, const node *map, const key_rule *keys, size_t nkeys,
+                         void *target)
+{
+    const node *seen[MAX_KEYS] = {NULL};
+    assert(nkeys <= MAX_KEYS);
+    if (map->kind != NODE_MAPPING) {
+        report_type(ld, map, "a mapping");
+        return;
+    }
+    for (size_t i = 0; i + 1 < map->nitems; i += 2) {
+        const node *key = map->items[i], *value = map->items[i + 1];
+        const key_rule *rule = NULL;
+        if (!check_key(ld, key))
+            continue;
+        for (size_t r = 0; r < nkeys && !rule; r++)
+            if (strcmp(keys[r].name, key->text) == 0)
+                rule = &keys[r];
+        size_t old = push_key(ld, key->text);
+        if (!rule) {
+            report_unknown_key(ld, key, keys, nkeys);
+        } else if (seen[rule - keys]) {
+            report(ld, key->mark, "given twice (first on line %d); expected each key once",
+                   seen[rule - keys]->mark.line);
+        } else {
+            seen[rule - keys] = key;
+            rule->parse(ld, value, target, rule);
+        }
+        pop_path(ld, old);
+    }
+    for (size_t r = 0; r < nkeys; r++) {
+        if (keys[r].need && !seen[r]) {
+            size_t old = push_key(ld, keys[r].name);
+            report(ld, map->mark, "missing; %s", keys[r].need);
+            pop_path(ld, old);
+        }
+    }
+}
+
+/* ---------------------------------------------------------------------------
+ * Parsers named in the key tables
+ */
+
+static void parse_string(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    read_string(ld, value, field_of(target, rule->offset));
+}
+
+static void parse_int(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    int number;
+    if (read_int(ld, value, rule->min, rule->max, &number))
+        *(int *)field_of(target, rule->offset) = number;
+}
+
+/* A list of names (skills, needs, extras): strings, each once. */
+static void parse_names(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    char ***names = field_of(target, rule->offset);
+    size_t *count = field_of(target, rule->count_offset);
+    char shown[SHOWN_SIZE];
+    if (value->kind != NODE_SEQUENCE) {
+        report_type(ld, value, "a list of names such as [a, b] ([] for none)");
+        return;
+    }
+    *names = keel_calloc(value->nitems, sizeof **names);
+    if (!*names) {
+        ld->nomem = true;
+        return;
+    }
+    *count = value->nitems;
+    for (size_t i = 0; i < value->nitems; i++) {
+        size_t old = push_index(ld, i);
+        if (read_string(ld, value->items[i], &(*names)[i])) {
+            for (size_t j = 0; j < i; j++) {
+                if ((*names)[j] && strcmp((*names)[j], (*names)[i]) == 0) {
+                    report(ld, value->items[i]->mark,
+                           "'%s' is already listed at [%zu]; expected each name once",
+                           show(shown, (*names)[i]), j);
+                    break;
+                }
+            }
+        }
+        pop_path(ld, old);
+    }
+}
+
+static void parse_section(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    walk_mapping(ld, value, rule->keys, rule->nkeys, target);
+}
+
+static void parse_version(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    long version;
+    char shown[SHOWN_SIZE];
+    (void)target;
+    (void)rule;
+    if (!scan_int(value, &version))
+        report_type(ld, value, "the integer 1");
+    else if (version != 1)
+        report(ld, value->mark, "%s is not supported; expected 1",
+               show(shown, value->text));
+}
+
+static void parse_clock(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    int minute = value->kind == NODE_SCALAR ? scan_clock(value->text) : -1;
+    if (minute < 0)
+        report_type(ld, value, "a time of day from 00:00 to 23:59");
+    else
+        *(int *)field_of(target, rule->offset) = minute;
+}
+
+static void parse_date(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    char **date = field_of(target, rule->offset);
+    if (value->kind != NODE_SCALAR || !is_calendar_date(value->text)) {
+        report_type(ld, value, "a calendar date as YYYY-MM-DD");
+        return;
+    }
+    *date = keel_strdup(value->text);
+    if (!*date)
+        ld->nomem = true;
+}
+
+static int compare_levels(const void *a, const void *b)
+{
+    const keel_acuity_level *x = a, *y = b;
+    return (x->level > y->level) - (x->level < y->level);
+}
+
+/* The line of the first key in map[0..end) that reads as level, or 0. */
+static int find_level_line(const node *map, size_t end, long level)
+{
+    long other;
+    for (size_t i = 0; i < end; i += 2)
+        if (scan_int(map->items[i], &other) && other == level)
+            return map->items[i]->mark.line;
+    return 0;
+}
+
+/* policy.acuity_minutes: acuity level -> care minutes, stored sorted. */
+static void parse_acuity_table(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    keel_roster *r = target;
+    char shown[SHOWN_SIZE];
+    (void)rule;
+    ld->acuity_table = TABLE_BROKEN;
+    if (value->kind != NODE_MAPPING) {
+        report_type(ld, value, "a mapping from acuity level to care minutes, like {1: 90}");
+        return;
+    }
+    if (value->nitems == 0) {
+        report(ld, value->mark, "found an empty mapping; expected care minutes per acuity level");
+        return;
+    }
+    r->policy.acuity_minutes = keel_calloc(value->nitems / 2, sizeof *r->policy.acuity_minutes);
+    if (!r->policy.acuity_minutes) {
+        ld->nomem = true;
+        return;
+    }
+    ld->acuity_table = TABLE_READ;
+    for (size_t i = 0; i + 1 < value->nitems; i += 2) {
+        const node *key = value->items[i];
+        long level;
+        int first;
+        if (!check_key(ld, key))
+            continue;
+        size_t old = push_key(ld, key->text);
+        keel_acuity_level entry = {.minutes = KEEL_ABSENT};
+        if (!scan_int(key, &level) || level < 0 || level > MAX_LEVEL) {
+            report(ld, key->mark, "level '%s' is not valid; expected an integer from 0 to %d",
+                   show(shown, key->text), MAX_LEVEL);
+        } else if ((first = find_level_line(value, i, level)) > 0) {
+            report(ld, key->mark, "level %ld given twice (first on line %d); expected each once",
+                   level, first);
+        } else {
+            entry.level = (int)level;
+            read_int(ld, value->items[i + 1], 0, MINUTES_PER_DAY, &entry.minutes);
+            r->policy.acuity_minutes[r->policy.nacuity++] = entry;
+        }
+        pop_path(ld, old);
+    }
+    qsort(r->policy.acuity_minutes, r->policy.nacuity, sizeof *r->policy.acuity_minutes,
+          compare_levels);
+}
+
+/* policy.extra_minutes: name of an extra -> care minutes, in file order. */
+static void parse_extra_table(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    keel_roster *r = target;
+    (void)rule;
+    ld->extra_table = TABLE_BROKEN;
+    if (value->kind != NODE_MAPPING) {
+        report_type(ld, value, "a mapping from extra to care minutes, like {admission: 90}");
+        return;
+    }
+    r->policy.extra_minutes = keel_calloc(value->nitems / 2, sizeof *r->policy.extra_minutes);
+    if (!r->policy.extra_minutes) {
+        ld->nomem = true;
+        return;
+    }
+    ld->extra_table = TABLE_READ;
+    for (size_t i = 0; i + 1 < value->nitems; i += 2) {
+        const node *key = value->items[i];
+        const node *first = NULL;
+        if (!check_key(ld, key))
+            continue;
+        size_t old = push_key(ld, key->text);
+        for (size_t j = 0; j < i && !first; j += 2) {
+            const node *earlier = value->items[j];
+            if (earlier->kind == NODE_SCALAR && strcmp(earlier->text, key->text) == 0)
+                first = earlier;
+        }
+        if (first) {
+            report(ld, key->mark, "given twice (first on line %d); expected each extra once",
+                   first->mark.line);
+        } else {
+            keel_extra *extra = &r->policy.extra_minutes[r->policy.nextras];
+            extra->minutes = KEEL_ABSENT;
+            if (read_string(ld, key, &extra->name)) {
+                r->policy.nextras++;
+                read_int(ld, value->items[i + 1], 0, MINUTES_PER_DAY, &extra->minutes);
+            }
+        }
+        pop_path(ld, old);
+    }
+}
+
+static const key_rule nurse_keys[] = {
+    {.name = "id", .parse = parse_string, .offset = offsetof(keel_nurse, id),
+     .need = "every nurse needs a unique id"},
+    {.name = "name", .parse = parse_string, .offset = offsetof(keel_nurse, name)},
+    {.name = "skills", .parse = parse_names, .offset = offsetof(keel_nurse, skills),
+     .count_offset = offsetof(keel_nurse, nskills)},
+    {.name = "max_patients", .parse = parse_int, .offset = offsetof(keel_nurse, max_patients),
+     .min = 0, .max = MAX_PATIENTS},
+    {.name = "minutes", .parse = parse_int, .offset = offsetof(keel_nurse, minutes),
+     .min = 1, .max = MINUTES_PER_DAY},
+    {.name = "break_minutes", .parse = parse_int, .offset = offsetof(keel_nurse, break_minutes),
+     .min = 0, .max = MINUTES_PER_DAY - 1},
+    {.name = "duty_minutes", .parse = parse_int, .offset = offsetof(keel_nurse, duty_minutes),
+     .min = 0, .max = MINUTES_PER_DAY},
+};
+
+static const key_rule patient_keys[] = {
+    {.name = "id", .parse = parse_string, .offset = offsetof(keel_patient, id),
+     .need = "every patient needs a unique id"},
+    {.name = "bed", .parse = parse_string, .offset = offsetof(keel_patient, bed)},
+    {.name = "name", .parse = parse_string, .offset = offsetof(keel_patient, name)},
+    {.name = "acuity", .parse = parse_int, .offset = offsetof(keel_patient, acuity),
+     .min = 0, .max = MAX_LEVEL},
+    {.name = "care_minutes", .parse = parse_int, .offset = offsetof(keel_patient, care_minutes),
+     .min = 0, .max = MINUTES_PER_DAY},
+    {.name = "extras", .parse = parse_names, .offset = offsetof(keel_patient, extras),
+     .count_offset = offsetof(keel_patient, nextras)},
+    {.name = "needs", .parse = parse_names, .offset = offsetof(keel_patient, needs),
+     .count_offset = offsetof(keel_patient, nneeds)},
+    {.name = "nurse", .parse = parse_string, .offset = offsetof(keel_patient, nurse)},
+};
+
+/* True when value is a non-empty sequence (reported if not). */
+static bool check_list(loader *ld, const node *value, const char *what)
+{
+    char expected[64];
+    snprintf(expected, sizeof expected, "a list of %ss", what);
+    if (value->kind != NODE_SEQUENCE) {
+        report_type(ld, value, expected);
+        return false;
+    }
+    if (value->nitems == 0) {
+        report(ld, value->mark, "found an empty list; expected at least one %s", what);
+        return false;
+    }
+    return true;
+}
+
+static void parse_nurses(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    keel_roster *r = target;
+    (void)rule;
+    if (!check_list(ld, value, "nurse"))
+        return;
+    r->nurses = keel_calloc(value->nitems, sizeof *r->nurses);
+    if (!r->nurses) {
+        ld->nomem = true;
+        return;
+    }
+    r->nnurses = value->nitems;
+    for (size_t i = 0; i < value->nitems; i++) {
+        r->nurses[i] = (keel_nurse){.max_patients = KEEL_ABSENT, .minutes = KEEL_ABSENT,
+                                    .break_minutes = KEEL_ABSENT, .duty_minutes = KEEL_ABSENT,
+                                    .mark = value->items[i]->mark};
+        size_t old = push_index(ld, i);
+        walk_mapping(ld, value->items[i], nurse_keys, ARRAY_LEN(nurse_keys), &r->nurses[i]);
+        pop_path(ld, old);
+    }
+}
+
+static void parse_patients(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    keel_roster *r = target;
+    (void)rule;
+    if (!check_list(ld, value, "patient"))
+        return;
+    r->patients = keel_calloc(value->nitems, sizeof *r->patients);
+    if (!r->patients) {
+        ld->nomem = true;
+        return;
+    }
+    r->npatients = value->nitems;
+    for (size_t i = 0; i < value->nitems; i++) {
+        r->patients[i] = (keel_patient){.acuity = KEEL_ABSENT, .care_minutes = KEEL_ABSENT,
+                                        .mark = value->items[i]->mark};
+        size_t old = push_index(ld, i);
+        walk_mapping(ld, value->items[i], patient_keys, ARRAY_LEN(patient_keys),
+                     &r->patients[i]);
+        pop_path(ld, old);
+    }
+}
+
+static const key_rule unit_keys[] = {
+    {.name = "name", .parse = parse_string, .offset = offsetof(keel_roster, unit.name)},
+    {.name = "type", .parse = parse_string, .offset = offsetof(keel_roster, unit.type)},
+};
+
+static const key_rule shift_keys[] = {
+    {.name = "label", .parse = parse_string, .offset = offsetof(keel_roster, shift.label)},
+    {.name = "date", .parse = parse_date, .offset = offsetof(keel_roster, shift.date)},
+    {.name = "start", .parse = parse_clock, .offset = offsetof(keel_roster, shift.start_minute)},
+    {.name = "minutes", .parse = parse_int, .offset = offsetof(keel_roster, shift.minutes),
+     .min = 1, .max = MINUTES_PER_DAY, .need = "every shift needs its length in minutes"},
+    {.name = "break_minutes", .parse = parse_int,
+     .offset = offsetof(keel_roster, shift.break_minutes), .min = 0, .max = MINUTES_PER_DAY - 1},
+};
+
+static const key_rule policy_keys[] = {
+    {.name = "max_patients", .parse = parse_int,
+     .offset = offsetof(keel_roster, policy.max_patients), .min = 0, .max = MAX_PATIENTS},
+    {.name = "acuity_minutes", .parse = parse_acuity_table},
+    {.name = "extra_minutes", .parse = parse_extra_table},
+};
+
+static const key_rule roster_keys[] = {
+    {.name = "version", .parse = parse_version},
+    {.name = "unit", .parse = parse_section, .keys = unit_keys, .nkeys = ARRAY_LEN(unit_keys)},
+    {.name = "shift", .parse = parse_section, .keys = shift_keys, .nkeys = ARRAY_LEN(shift_keys),
+     .need = "every roster needs a shift with its length in minutes"},
+    {.name = "policy", .parse = parse_section, .keys = policy_keys,
+     .nkeys = ARRAY_LEN(policy_keys)},
+    {.name = "nurses", .parse = parse_nurses, .need = "every roster needs a list of nurses"},
+    {.name = "patients", .parse = parse_patients, .need = "every roster needs a list of patients"},
+};
+
+/* ---------------------------------------------------------------------------
+ * Checks across the file, after the walk
+ */
+
+/* The shift's break must leave time for patients. */
+static void check_shift_break(loader *ld, const node *root)
+{
+    const keel_roster *r = ld->roster;
+    if (r->shift.minutes == KEEL_ABSENT || r->shift.break_minutes == KEEL_ABSENT ||
+        r->shift.break_minutes < r->shift.minutes)
+        return;
+    pop_path(ld, 0);
+    push_key(ld, "shift");
+    push_key(ld, "break_minutes");
+    report(ld, find_value(find_value(root, "shift"), "break_minutes")->mark,
+           "a %d-minute break leaves no time in a %d-minute shift; expected less than %d",
+           r->shift.break_minutes, r->shift.minutes, r->shift.minutes);
+}
+
+/* A nurse's time on the unit must fit the shift, and the nurse's break and
+ * duty minutes must fit that time. */
+static void check_nurse_minutes(loader *ld, size_t i, const node *item)
+{
+    const keel_roster *r = ld->roster;
+    const keel_nurse *n = &r->nurses[i];
+    int minutes = n->minutes == KEEL_ABSENT ? r->shift.minutes : n->minutes;
+    int shift_break = r->shift.break_minutes == KEEL_ABSENT ? 0 : r->shift.break_minutes;
+    int break_minutes = n->break_minutes == KEEL_ABSENT ? shift_break : n->break_minutes;
+    if (minutes == KEEL_ABSENT)
+        return;
+    if (r->shift.minutes != KEEL_ABSENT && minutes > r->shift.minutes) {
+        set_path(ld, "nurses", i, "minutes");
+        report(ld, find_value(item, "minutes")->mark,
+               "%d minutes on the unit exceed the %d-minute shift; expected at most %d", minutes,
+               r->shift.minutes, r->shift.minutes);
+        return;
+    }
+    if (break_minutes >= minutes && n->break_minutes != KEEL_ABSENT) {
+        set_path(ld, "nurses", i, "break_minutes");
+        report(ld, find_value(item, "break_minutes")->mark,
+               "a %d-minute break leaves no time in %d minutes on the unit; expected less than %d",
+               break_minutes, minutes, minutes);
+    } else if (break_minutes >= minutes && n->minutes != KEEL_ABSENT) {
+        set_path(ld, "nurses", i, "minutes");
+        report(ld, find_value(item, "minutes")->mark,
+               "%d minutes on the unit leave no time after the shift's %d-minute break; "
+               "expected more than %d, or break_minutes for this nurse",
+               minutes, break_minutes, break_minutes);
+    }
+    if (n->duty_minutes != KEEL_ABSENT && n->duty_minutes > minutes) {
+        set_path(ld, "nurses", i, "duty_minutes");
+        report(ld, find_value(item, "duty_minutes")->mark,
+               "%d duty minutes exceed the %d minutes on the unit; expected at most %d",
+               n->duty_minutes, minutes, minutes);
+    }
+}
+
+/* The id of list item i must differ from those before it.  what names the
+ * list's entries ("nurse"). */
+static void check_unique_id(loader *ld, const node *list, size_t i, const char *what)
+{
+    const node *id = find_value(list->items[i], "id");
+    char shown[SHOWN_SIZE], key[16];
+    if (!id || id->kind != NODE_SCALAR || is_null(id))
+        return;
+    for (size_t j = 0; j < i; j++) {
+        const node *other = find_value(list->items[j], "id");
+        if (other && other->kind == NODE_SCALAR && !is_null(other) &&
+            strcmp(other->text, id->text) == 0) {
+            snprintf(key, sizeof key, "%ss", what);
+            set_path(ld, key, i, "id");
+            report(ld, id->mark, "%s id '%s' is already used on line %d; expected a unique id",
+                   what, show(shown, id->text), other->mark.line);
+            return;
+        }
+    }
+}
+
+static void check_nurses(loader *ld, const node *list)
+{
+    for (size_t i = 0; i < ld->roster->nnurses; i++) {
+        if (list->items[i]->kind != NODE_MAPPING)
+            continue;
+        check_unique_id(ld, list, i, "nurse");
+        check_nurse_minutes(ld, i, list->items[i]);
+    }
+}
+
+/* Writes the levels of policy.acuity_minutes as ranges, like "1-5" or "1-3, 5". */
+static void format_levels(const keel_roster *r, char *buf, size_t size)
+{
+    size_t used = 0;
+    buf[0] = '\0';
+    for (size_t i = 0; i < r->policy.nacuity && used < size; i++) {
+        size_t last = i;
+        while (last + 1 < r->policy.nacuity &&
+               r->policy.acuity_minutes[last + 1].level == r->policy.acuity_minutes[last].level + 1)
+            last++;
+        int first_level = r->policy.acuity_minutes[i].level;
+        int last_level = r->policy.acuity_minutes[last].level;
+        if (last == i)
+            snprintf(buf + used, size - used, "%s%d", used ? ", " : "", first_level);
+        else
+            snprintf(buf + used, size - used, "%s%d-%d", used ? ", " : "", first_level,
+                     last_level);
+        used = strlen(buf);
+        i = last;
+    }
+}
+
+static void check_acuity(loader *ld, size_t i, const node *item)
+{
+    const keel_roster *r = ld->roster;
+    const keel_patient *p = &r->patients[i];
+    char levels[128];
+    if (p->acuity == KEEL_ABSENT || ld->acuity_table != TABLE_READ || r->policy.nacuity == 0)
+        return;
+    for (size_t k = 0; k < r->policy.nacuity; k++)
+        if (r->policy.acuity_minutes[k].level == p->acuity)
+            return;
+    format_levels(r, levels, sizeof levels);
+    set_path(ld, "patients", i, "acuity");
+    report(ld, find_value(item, "acuity")->mark, "level %d is not in policy.acuity_minutes (%s)",
+           p->acuity, levels);
+}
+
+static bool has_extra(const keel_roster *r, const char *name)
+{
+    for (size_t k = 0; k < r->policy.nextras; k++)
+        if (strcmp(r->policy.extra_minutes[k].name, name) == 0)
+            return true;
+    return false;
+}
+
+static void check_extras(loader *ld, size_t i, const node *item)
+{
+    const keel_roster *r = ld->roster;
+    const keel_patient *p = &r->patients[i];
+    const node *list = find_value(item, "extras");
+    char shown[SHOWN_SIZE], names[256] = "";
+    if (ld->extra_table == TABLE_BROKEN)
+        return;
+    for (size_t k = 0; k < r->policy.nextras; k++) {
+        const char *name = r->policy.extra_minutes[k].name;
+        if (strlen(names) + strlen(name) + 8 < sizeof names)
+            strcat(strcat(names, k ? ", " : ""), name);
+    }
+    for (size_t e = 0; e < p->nextras; e++) {
+        if (!p->extras[e] || has_extra(r, p->extras[e]))
+            continue;
+        set_path(ld, "patients", i, "extras");
+        push_index(ld, e);
+        if (r->policy.nextras == 0)
+            report(ld, list->items[e]->mark,
+                   "unknown extra '%s'; expected a name from policy.extra_minutes, which has none",
+                   show(shown, p->extras[e]));
+        else
+            report(ld, list->items[e]->mark, "unknown extra '%s'; expected one of %s",
+                   show(shown, p->extras[e]), names);
+    }
+}
+
+static void check_patient_nurse(loader *ld, size_t i, const node *item)
+{
+    const keel_roster *r = ld->roster;
+    const keel_patient *p = &r->patients[i];
+    char shown[SHOWN_SIZE];
+    if (!p->nurse || r->nnurses == 0 || keel_roster_find_nurse(r, p->nurse) >= 0)
+        return;
+    set_path(ld, "patients", i, "nurse");
+    report(ld, find_value(item, "nurse")->mark, "no nurse '%s' on this roster",
+           show(shown, p->nurse));
+}
+
+static void check_patients(loader *ld, const node *list)
+{
+    for (size_t i = 0; i < ld->roster->npatients; i++) {
+        const node *item = list->items[i];
+        if (item->kind != NODE_MAPPING)
+            continue;
+        check_unique_id(ld, list, i, "patient");
+        if (!find_value(item, "acuity") && !find_value(item, "care_minutes")) {
+            set_path(ld, "patients", i, "acuity");
+            report(ld, item->mark, "missing; every patient needs acuity or care_minutes");
+        }
+        check_acuity(ld, i, item);
+        check_extras(ld, i, item);
+        check_patient_nurse(ld, i, item);
+    }
+}
+
+/* Patients that give an acuity level need the policy's scale: keel has none
+ * of its own.  Reported once, where policy.acuity_minutes would go. */
+static void check_acuity_scale(loader *ld, const node *root, const node *patients)
+{
+    const keel_roster *r = ld->roster;
+    const node *policy = find_value(root, "policy");
+    if (ld->acuity_table != TABLE_ABSENT)
+        return;
+    for (size_t i = 0; i < r->npatients; i++) {
+        if (r->patients[i].acuity == KEEL_ABSENT)
+            continue;
+        pop_path(ld, 0);
+        push_key(ld, "policy");
+        push_key(ld, "acuity_minutes");
+        report(ld, policy ? policy->mark : root->mark,
+               "missing, but patients[%zu] on line %d gives an acuity level; expected care "
+               "minutes per level, as keel has no acuity scale of its own",
+               i, find_value(patients->items[i], "acuity")->mark.line);
+        return;
+    }
+}
+
+static void check_roster(loader *ld, const node *root)
+{
+    const node *nurses = find_value(root, "nurses"), *patients = find_value(root, "patients");
+    const node *policy = find_value(root, "policy");
+    if (policy && policy->kind != NODE_MAPPING) {
+        ld->acuity_table = TABLE_BROKEN;
+        ld->extra_table = TABLE_BROKEN;
+    }
+    check_shift_break(ld, root);
+    if (ld->roster->nnurses)
+        check_nurses(ld, nurses);
+    if (ld->roster->npatients) {
+        check_patients(ld, patients);
+        check_acuity_scale(ld, root, patients);
+    }
+    pop_path(ld, 0);
+}
+
+/* ---------------------------------------------------------------------------
+ * The public functions
+ */
+
+static keel_roster *new_roster(const char *name)
+{
+    keel_roster *r = keel_calloc(1, sizeof *r);
+    if (!r)
+        return NULL;
+    r->shift.start_minute = KEEL_ABSENT;
+    r->shift.minutes = KEEL_ABSENT;
+    r->shift.break_minutes = KEEL_ABSENT;
+    r->policy.max_patients = KEEL_ABSENT;
+    r->path = keel_strdup(name);
+    if (!r->path) {
+        free(r);
+        return NULL;
+    }
+    return r;
+}
+
+static void free_names(char **names, size_t count)
+{
+    for (size_t i = 0; names && i < count; i++)
+        free(names[i]);
+    free(names);
+}
+
+void keel_roster_free(keel_roster *roster)
+{
+    if (!roster)
+        return;
+    for (size_t i = 0; i < roster->nnurses; i++) {
+        keel_nurse *n = &roster->nurses[i];
+        free(n->id);
+        free(n->name);
+        free_names(n->skills, n->nskills);
+    }
+    free(roster->nurses);
+    for (size_t i = 0; i < roster->npatients; i++) {
+        keel_patient *p = &roster->patients[i];
+        free(p->id);
+        free(p->bed);
+        free(p->name);
+        free_names(p->extras, p->nextras);
+        free_names(p->needs, p->nneeds);
+        free(p->nurse);
+    }
+    free(roster->patients);
+    for (size_t i = 0; i < roster->policy.nextras; i++)
+        free(roster->policy.extra_minutes[i].name);
+    free(roster->policy.extra_minutes);
+    free(roster->policy.acuity_minutes);
+    free(roster->shift.label);
+    free(roster->shift.date);
+    free(roster->unit.name);
+    free(roster->unit.type);
+    free(roster->path);
+    free(roster);
+}
+
+/* Puts this load's problems in file order (line, then column), keeping the
+ * order of problems at the same place. */
+static bool comes_after(const keel_problem *a, const keel_problem *b)
+{
+    return a->line > b->line || (a->line == b->line && a->column > b->column);
+}
+
+static void sort_problems(loader *ld)
+{
+    keel_problem *p = ld->err ? ld->err->problems : NULL;
+    for (size_t i = ld->first_problem + 1; p && i < ld->err->nproblems; i++) {
+        keel_problem moved = p[i];
+        size_t j = i;
+        for (; j > ld->first_problem && comes_after(&p[j - 1], &moved); j--)
+            p[j] = p[j - 1];
+        p[j] = moved;
+    }
+}
+
+/* Turns the loader's outcome into a status; hands over or frees roster. */
+static keel_status finish(loader *ld, keel_roster *roster, keel_roster **out)
+{
+    if (ld->nomem) {
+        keel_roster_free(roster);
+        return keel_error_add(ld->err, KEEL_ERR_NOMEM, ld->file, 0, 0, NULL, "out of memory");
+    }
+    if (ld->nproblems) {
+        sort_problems(ld);
+        keel_roster_free(roster);
+        return KEEL_ERR_INPUT;
+    }
+    *out = roster;
+    return KEEL_OK;
+}
+
+keel_status keel_roster_parse(const char *name, const char *text, size_t len, keel_roster **out,
+                              keel_error *err)
+{
+    loader ld = {.file = name, .text = text, .len = len, .err = err,
+                 .first_problem = err ? err->nproblems : 0};
+    yaml_parser_t parser;
+    node *root = NULL;
+    if (!out || !name || (!text && len))
+        return keel_error_add(err, KEEL_ERR_USAGE, NULL, 0, 0, NULL,
+                              "keel_roster_parse: out, name and text are required");
+    *out = NULL;
+    ld.roster = new_roster(name);
+    if (!ld.roster || !yaml_parser_initialize(&parser)) {
+        ld.nomem = true;
+        return finish(&ld, ld.roster, out);
+    }
+    yaml_parser_set_input_string(&parser, (const unsigned char *)(text ? text : ""), len);
+    if (read_document(&ld, &parser, &root)) {
+        check_plain_yaml(&ld, root);
+        if (root->kind != NODE_MAPPING)
+            report_type(&ld, root, "a mapping with the keys shift, nurses and patients");
+        else
+            walk_mapping(&ld, root, roster_keys, ARRAY_LEN(roster_keys), ld.roster);
+        check_roster(&ld, root);
+    }
+    yaml_parser_delete(&parser);
+    free_node(root);
+    return finish(&ld, ld.roster, out);
+}
+
+/* Reads the whole file at path into a new buffer. */
+static keel_status read_file(const char *path, char **text, size_t *len, keel_error *err)
+{
+    size_t capacity = 0, used = 0;
+    char *buf = NULL;
+    FILE *f = fopen(path, "rb");
+    if (!f)
+        return keel_error_add(err, KEEL_ERR_IO, path, 0, 0, NULL, "cannot open: %s",
+                              strerror(errno));
+    for (size_t got = 1; got > 0; used += got) {
+        char *grown = used < capacity ? buf : keel_realloc(buf, capacity = 2 * capacity + 4096);
+        if (!grown) {
+            free(buf);
+            fclose(f);
+            return keel_error_add(err, KEEL_ERR_NOMEM, path, 0, 0, NULL, "out of memory");
+        }
+        buf = grown;
+        got = fread(buf + used, 1, capacity - used, f);
+    }
+    if (ferror(f)) {
+        int saved = errno;
+        free(buf);
+        fclose(f);
+        return keel_error_add(err, KEEL_ERR_IO, path, 0, 0, NULL, "cannot read: %s",
+                              strerror(saved));
+    }
+    fclose(f);
+    *text = buf;
+    *len = used;
+    return KEEL_OK;
+}
+
+keel_status keel_roster_load(const char *path, keel_roster **out, keel_error *err)
+{
+    char *text = NULL;
+    size_t len = 0;
+    if (!out || !path)
+        return keel_error_add(err, KEEL_ERR_USAGE, NULL, 0, 0, NULL,
+                              "keel_roster_load: out and path are required");
+    *out = NULL;
+    keel_status rc = read_file(path, &text, &len, err);
+    if (rc)
+        return rc;
+    rc = keel_roster_parse(path, text, len, out, err);
+    free(text);
+    return rc;
+}
+
+int keel_roster_find_nurse(const keel_roster *roster, const char *id)
+{
+    for (size_t i = 0; roster && id && i < roster->nnurses; i++)
+        if (roster->nurses[i].id && strcmp(roster->nurses[i].id, id) == 0)
+            return (int)i;
+    return -1;
+}
+
+int keel_roster_acuity_minutes(const keel_roster *roster, int level)
+{
+    for (size_t i = 0; roster && i < roster->policy.nacuity; i++)
+        if (roster->policy.acuity_minutes[i].level == level)
+            return roster->policy.acuity_minutes[i].minutes;
+    return KEEL_ABSENT;
+}
+
+int keel_roster_extra_minutes(const keel_roster *roster, const char *name)
+{
+    for (size_t i = 0; roster && name && i < roster->policy.nextras; i++)
+        if (strcmp(roster->policy.extra_minutes[i].name, name) == 0)
+            return roster->policy.extra_minutes[i].minutes;
+    return KEEL_ABSENT;
+}

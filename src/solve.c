@@ -1,0 +1,275 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * solve.c - orchestrates a solve: is any valid assignment possible
+ * (diagnose), the greedy incumbent, then the chosen method's stages, all
+ * under one time limit.  Also the small exact helpers every method shares
+ * (loads, heaviest and lightest utilisation, simple proven limits).
+ */
+#include "keel/solve.h"
+
+#include <stdlib.h>
+#include <string.h>
+#include <time.h>
+
+#include "alloc.h"
+#include "solve_internal.h"
+
+#define DEFAULT_TIME_LIMIT_MS 10000L
+
+/* A method fills the stages of sol, whose nurse_of holds the greedy
+ * incumbent on entry; it may replace the assignment with a better one. */
+typedef struct keel_method {
+    const char *name;
+    keel_status (*solve)(const keel_workload *w, long long deadline_ms, keel_solution *sol,
+                         keel_error *err);
+} keel_method;
+
+keel_status keel_method_greedy(const keel_workload *w, long long deadline_ms, keel_solution *sol,
+                               keel_error *err);
+keel_status keel_method_ilp(const keel_workload *w, long long deadline_ms, keel_solution *sol,
+                            keel_error *err);
+
+static const keel_method methods[] = {
+    {"ilp", keel_method_ilp},
+    {"greedy", keel_method_greedy},
+};
+
+size_t keel_solve_nmethods(void)
+{
+    return sizeof methods / sizeof methods[0];
+}
+
+const char *keel_solve_method_name(size_t i)
+{
+    return i < keel_solve_nmethods() ? methods[i].name : NULL;
+}
+
+const char *keel_solve_status_name(keel_solve_status status)
+{
+    switch (status) {
+    case KEEL_SOLVE_OPTIMAL:
+        return "optimal";
+    case KEEL_SOLVE_TIME_LIMIT:
+        return "time_limit";
+    case KEEL_SOLVE_HEURISTIC:
+        return "heuristic";
+    case KEEL_SOLVE_INFEASIBLE:
+        return "infeasible";
+    }
+    return "unknown";
+}
+
+long long keel_clock_ms(void)
+{
+    struct timespec ts;
+    clock_gettime(CLOCK_MONOTONIC, &ts);
+    return (long long)ts.tv_sec * 1000 + ts.tv_nsec / 1000000;
+}
+
+void keel_solve_loads(const keel_workload *w, const int *nurse_of, long long *load)
+{
+    for (size_t n = 0; n < w->nnurses; n++)
+        load[n] = w->duty_minutes[n];
+    for (size_t p = 0; p < w->npatients; p++)
+        if (nurse_of[p] >= 0)
+            load[nurse_of[p]] += w->care_minutes[p];
+}
+
+/* Heaviest (sign 1) or lightest (sign -1) utilisation of the counted nurses. */
+static keel_ratio extreme(const keel_workload *w, const int *nurse_of, int sign)
+{
+    keel_ratio best = {0, 1};
+    bool any = false;
+    long long *load = keel_calloc(w->nnurses, sizeof *load);
+    if (!load)
+        return best; /* callers hold a valid assignment; see keel_solve_peak() */
+    keel_solve_loads(w, nurse_of, load);
+    for (size_t n = 0; n < w->nnurses; n++) {
+        if (!keel_workload_counted(w, n))
+            continue;
+        keel_ratio u = {load[n], w->capacity_minutes[n]};
+        if (!any || keel_ratio_cmp(u, best) * sign > 0)
+            best = u;
+        any = true;
+    }
+    free(load);
+    return best;
+}
+
+keel_ratio keel_solve_peak(const keel_workload *w, const int *nurse_of)
+{
+    return extreme(w, nurse_of, 1);
+}
+
+keel_ratio keel_solve_lift(const keel_workload *w, const int *nurse_of)
+{
+    return extreme(w, nurse_of, -1);
+}
+
+/* Total work over total capacity of the counted nurses. */
+static keel_ratio unit_average(const keel_workload *w)
+{
+    keel_ratio avg = {0, 0};
+    for (size_t p = 0; p < w->npatients; p++)
+        avg.num += w->care_minutes[p];
+    for (size_t n = 0; n < w->nnurses; n++) {
+        if (!keel_workload_counted(w, n))
+            continue;
+        avg.num += w->duty_minutes[n];
+        avg.den += w->capacity_minutes[n];
+    }
+    if (avg.den == 0)
+        avg = (keel_ratio){0, 1};
+    return avg;
+}
+
+keel_ratio keel_solve_peak_floor(const keel_workload *w)
+{
+    keel_ratio floor = unit_average(w);
+    for (size_t n = 0; n < w->nnurses; n++) {
+        keel_ratio duty = {w->duty_minutes[n], w->capacity_minutes[n]};
+        if (keel_workload_counted(w, n) && keel_ratio_cmp(duty, floor) > 0)
+            floor = duty;
+    }
+    for (size_t p = 0; p < w->npatients; p++) {
+        bool any = false;
+        keel_ratio best = {0, 1};
+        for (size_t n = 0; n < w->nnurses; n++) {
+            if (!keel_workload_eligible(w, p, n))
+                continue;
+            keel_ratio u = {(long long)w->duty_minutes[n] + w->care_minutes[p],
+                            w->capacity_minutes[n]};
+            if (!any || keel_ratio_cmp(u, best) < 0)
+                best = u;
+            any = true;
+        }
+        if (any && keel_ratio_cmp(best, floor) > 0)
+            floor = best;
+    }
+    return floor;
+}
+
+keel_ratio keel_solve_lift_ceiling(const keel_workload *w)
+{
+    return unit_average(w);
+}
+
+void keel_solution_free(keel_solution *s)
+{
+    if (!s)
+        return;
+    free(s->nurse_of);
+    keel_findings_fini(&s->diagnoses);
+    free(s);
+}
+
+static const keel_method *find_method(const char *name)
+{
+    for (size_t i = 0; i < keel_solve_nmethods(); i++)
+        if (strcmp(methods[i].name, name) == 0)
+            return &methods[i];
+    return NULL;
+}
+
+/* The overall status follows the weakest stage. */
+static keel_solve_status overall_status(const keel_solution *s)
+{
+    keel_solve_status st = KEEL_SOLVE_OPTIMAL;
+    for (size_t i = 0; i < s->nstages; i++)
+        if (s->stages[i].status > st)
+            st = s->stages[i].status;
+    return st;
+}
+
+keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
+                       const keel_solve_options *options, keel_solution **out, keel_error *err)
+{
+    keel_status rc = KEEL_OK;
+    long long started = keel_clock_ms();
+    const char *name = options && options->method ? options->method : "ilp";
+    long limit = options && options->time_limit_ms > 0 ? options->time_limit_ms
+                                                        : DEFAULT_TIME_LIMIT_MS;
+    const keel_method *method = find_method(name);
+    *out = NULL;
+    if (!method)
+        return keel_error_add(err, KEEL_ERR_USAGE, NULL, 0, 0, NULL,
+                              "unknown method '%s'; expected ilp or greedy", name);
+
+    keel_solution *s = keel_calloc(1, sizeof *s);
+    if (!s)
+        return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    s->method = method->name;
+    s->npatients = w->npatients;
+    s->nurse_of = keel_calloc(w->npatients, sizeof *s->nurse_of);
+    if (!s->nurse_of) {
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+        goto out;
+    }
+
+    bool feasible = false;
+    rc = keel_diagnose(roster, w, s->nurse_of, &feasible, &s->diagnoses);
+    if (rc) {
+        keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
+        goto out;
+    }
+    if (!feasible) {
+        s->status = KEEL_SOLVE_INFEASIBLE;
+        for (size_t p = 0; p < w->npatients; p++)
+            s->nurse_of[p] = -1;
+        goto out;
+    }
+
+    /* The greedy placement may get stuck on patient limits even though an
+     * assignment exists; then start from the one diagnose found. */
+    int *greedy = keel_calloc(w->npatients, sizeof *greedy);
+    if (!greedy) {
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+        goto out;
+    }
+    if (keel_greedy_place(w, greedy))
+        memcpy(s->nurse_of, greedy, w->npatients * sizeof *greedy);
+    free(greedy);
+    rc = keel_greedy_improve(w, s->nurse_of);
+    if (rc) {
+        keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
+        goto out;
+    }
+    rc = method->solve(w, started + limit, s, err);
+    if (rc)
+        goto out;
+    s->status = overall_status(s);
+out:
+    s->seconds = (double)(keel_clock_ms() - started) / 1000.0;
+    if (rc)
+        keel_solution_free(s);
+    else
+        *out = s;
+    return rc;
+}
+
+/* The greedy method: the incumbent as it is, with the simple proven limits. */
+keel_status keel_method_greedy(const keel_workload *w, long long deadline_ms, keel_solution *sol,
+                               keel_error *err)
+{
+    (void)deadline_ms;
+    (void)err;
+    keel_ratio peak = keel_solve_peak(w, sol->nurse_of);
+    keel_ratio lift = keel_solve_lift(w, sol->nurse_of);
+    keel_ratio floor = keel_solve_peak_floor(w);
+    keel_ratio ceiling = keel_solve_lift_ceiling(w);
+    double u = keel_ratio_value(peak), l = keel_ratio_value(lift);
+    sol->nstages = 2;
+    sol->stages[0] = (keel_stage){
+        .name = "peak",
+        .status = keel_ratio_cmp(peak, floor) <= 0 ? KEEL_SOLVE_OPTIMAL : KEEL_SOLVE_HEURISTIC,
+        .value = u,
+        .bound = keel_ratio_value(floor),
+        .gap = keel_gap(u, keel_ratio_value(floor))};
+    sol->stages[1] = (keel_stage){
+        .name = "lift",
+        .status = keel_ratio_cmp(lift, ceiling) >= 0 ? KEEL_SOLVE_OPTIMAL : KEEL_SOLVE_HEURISTIC,
+        .value = l,
+        .bound = keel_ratio_value(ceiling),
+        .gap = keel_gap(l, keel_ratio_value(ceiling))};
+    return KEEL_OK;
+}

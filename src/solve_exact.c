@@ -1,0 +1,388 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * solve_exact.c - the "ilp" method: proves the best balance by asking
+ * yes/no questions about a finite list of candidate utilisations.
+ *
+ * Loads are whole minutes, so a nurse's utilisation can only take the values
+ * (duty + s) / capacity where s is a sum of care minutes of at most limit(n)
+ * patients she may take; a small dynamic programme per nurse lists those
+ * sums.  Stage 1 ("peak") sorts the candidate values between the proven
+ * floor and the incumbent and asks, at a candidate t, "is there an
+ * assignment in which every nurse's care stays within the largest reachable
+ * sum that keeps her at or under t?".  Yes gives a better incumbent; a
+ * proven no moves the proven bound past t.  When bound and incumbent meet,
+ * the optimum is proven, without waiting for an LP relaxation to close the
+ * gap.  Stage 2 ("lift") asks the same upwards for the lightest utilisation
+ * with every budget of stage 1 held.
+ *
+ * Each question goes first to the dedicated search (solve_fit.c), then to
+ * GLPK (solve_ilp.c).  Questions are time-boxed while the search narrows
+ * the range, so one hard question cannot stall it; at the end the decisive
+ * question (just below the incumbent) gets all the time that is left.
+ * Stage 1 may use most of the time limit; stage 2 the rest.
+ */
+#include <limits.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "alloc.h"
+#include "solve_internal.h"
+
+/* Nodes the dedicated search may spend on one question before GLPK takes it. */
+#define FIT_NODE_BUDGET 200000L
+/* Share of the time left that one question gets while the range narrows. */
+#define QUESTION_SHARE 5
+/* Share of the time limit stage 1 may use (in tenths). */
+#define PEAK_SHARE_TENTHS 7
+
+/* Per counted nurse: which care sums up to smax she can carry with at most
+ * her limit of patients she may take. */
+typedef struct sums {
+    long long smax;
+    bool *reach; /* [smax + 1] */
+} sums;
+
+typedef struct search {
+    const keel_workload *w;
+    sums *sums;         /* [nnurses] */
+    long long *lo;      /* windows of care minutes asked about */
+    long long *hi;
+    long long *peak_hi; /* stage 1's budgets, held in stage 2 */
+    int *trial;         /* the assignment an answer "yes" comes with */
+    keel_ratio *cand;   /* candidate utilisations, sorted, unique */
+    size_t ncand;
+    long long care_total;
+    int calls;          /* questions GLPK answered in this stage */
+} search;
+
+static keel_status reachable_sums(const keel_workload *w, size_t n, long long smax, sums *out)
+{
+    if (smax < 0)
+        smax = -1;
+    out->smax = smax;
+    size_t size = (size_t)(smax + 1) + 1;
+    out->reach = keel_calloc(size, sizeof *out->reach);
+    int *fewest = keel_malloc(size * sizeof *fewest);
+    if (!out->reach || !fewest) {
+        free(fewest);
+        return KEEL_ERR_NOMEM;
+    }
+    for (long long s = 0; s <= smax; s++)
+        fewest[s] = s == 0 ? 0 : INT_MAX;
+    for (size_t p = 0; p < w->npatients; p++) {
+        if (!keel_workload_eligible(w, p, n))
+            continue;
+        long long c = w->care_minutes[p];
+        for (long long s = smax; s >= c; s--)
+            if (fewest[s - c] != INT_MAX && fewest[s - c] + 1 < fewest[s])
+                fewest[s] = fewest[s - c] + 1;
+    }
+    for (long long s = 0; s <= smax; s++)
+        out->reach[s] = fewest[s] <= w->max_patients[n];
+    free(fewest);
+    return KEEL_OK;
+}
+
+/* Largest reachable sum s of nurse n with (duty + s) / capacity <= t, or -1. */
+static long long budget_below(const search *S, size_t n, keel_ratio t)
+{
+    const keel_workload *w = S->w;
+    for (long long s = S->sums[n].smax; s >= 0; s--) {
+        keel_ratio u = {w->duty_minutes[n] + s, w->capacity_minutes[n]};
+        if (S->sums[n].reach[s] && keel_ratio_cmp(u, t) <= 0)
+            return s;
+    }
+    return -1;
+}
+
+/* Smallest reachable sum s <= limit of nurse n with (duty + s) / capacity >= t,
+ * or -1. */
+static long long budget_above(const search *S, size_t n, keel_ratio t, long long limit)
+{
+    const keel_workload *w = S->w;
+    for (long long s = 0; s <= limit && s <= S->sums[n].smax; s++) {
+        keel_ratio u = {w->duty_minutes[n] + s, w->capacity_minutes[n]};
+        if (S->sums[n].reach[s] && keel_ratio_cmp(u, t) >= 0)
+            return s;
+    }
+    return -1;
+}
+
+static int ratio_order(const void *a, const void *b)
+{
+    return keel_ratio_cmp(*(const keel_ratio *)a, *(const keel_ratio *)b);
+}
+
+/* Lists every value (duty + s) / capacity with s reachable and s <= limit[n],
+ * between from and to inclusive, sorted and unique. */
+static keel_status collect_candidates(search *S, const long long *limit, keel_ratio from,
+                                      keel_ratio to)
+{
+    const keel_workload *w = S->w;
+    size_t total = 1;
+    for (size_t n = 0; n < w->nnurses; n++)
+        if (keel_workload_counted(w, n) && limit[n] >= 0)
+            total += (size_t)(limit[n] + 1);
+    free(S->cand);
+    S->ncand = 0;
+    S->cand = keel_malloc(total * sizeof *S->cand);
+    if (!S->cand)
+        return KEEL_ERR_NOMEM;
+    for (size_t n = 0; n < w->nnurses; n++) {
+        if (!keel_workload_counted(w, n))
+            continue;
+        for (long long s = 0; s <= limit[n]; s++) {
+            keel_ratio u = {w->duty_minutes[n] + s, w->capacity_minutes[n]};
+            if (S->sums[n].reach[s] && keel_ratio_cmp(u, from) >= 0 &&
+                keel_ratio_cmp(u, to) <= 0)
+                S->cand[S->ncand++] = u;
+        }
+    }
+    qsort(S->cand, S->ncand, sizeof *S->cand, ratio_order);
+    size_t k = 0;
+    for (size_t i = 0; i < S->ncand; i++)
+        if (k == 0 || keel_ratio_cmp(S->cand[i], S->cand[k - 1]) != 0)
+            S->cand[k++] = S->cand[i];
+    S->ncand = k;
+    return KEEL_OK;
+}
+
+/* Index of the first candidate >= t (ncand when none). */
+static size_t first_at_least(const search *S, keel_ratio t)
+{
+    size_t a = 0, b = S->ncand;
+    while (a < b) {
+        size_t m = a + (b - a) / 2;
+        if (keel_ratio_cmp(S->cand[m], t) < 0)
+            a = m + 1;
+        else
+            b = m;
+    }
+    return a;
+}
+
+/* Asks whether an assignment fits the windows S->lo..S->hi, answering by
+ * the cheap sums, the dedicated search or GLPK, in that order. */
+static keel_status ask(search *S, long long deadline_ms, keel_ilp_answer *answer,
+                       keel_error *err)
+{
+    const keel_workload *w = S->w;
+    long long low = 0, high = 0;
+    for (size_t n = 0; n < w->nnurses; n++) {
+        if (!keel_workload_counted(w, n))
+            continue;
+        if (S->lo[n] < 0 || S->hi[n] < 0 || S->lo[n] > S->hi[n]) {
+            *answer = KEEL_ILP_INFEASIBLE;
+            return KEEL_OK;
+        }
+        low += S->lo[n];
+        high += S->hi[n];
+    }
+    if (S->care_total < low || S->care_total > high) {
+        *answer = KEEL_ILP_INFEASIBLE;
+        return KEEL_OK;
+    }
+    keel_status rc = keel_fit_search(w, S->lo, S->hi, FIT_NODE_BUDGET, S->trial, answer);
+    if (rc)
+        return keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
+    if (*answer != KEEL_ILP_UNKNOWN)
+        return KEEL_OK;
+    long long left = deadline_ms - keel_clock_ms();
+    if (left <= 0)
+        return KEEL_OK;
+    S->calls++;
+    return keel_ilp_fit(w, S->lo, S->hi, left > LONG_MAX ? LONG_MAX : (long)left, S->trial,
+                        answer, err);
+}
+
+/* One direction of search.  Position i (0 = most wanted) maps to a
+ * candidate; set_windows() frames the question "can the stage reach the
+ * candidate at position i?"; position_of() says where an assignment's own
+ * value stands. */
+typedef struct direction {
+    void (*set_windows)(search *S, size_t i);
+    size_t (*position_of)(const search *S, const int *assignment);
+    bool improve; /* run the greedy improvement on each new incumbent */
+} direction;
+
+/* Narrows [lo, hi] (lo: the best position not yet ruled out; hi: the
+ * incumbent's) until they meet or time runs out.  Sets *proven_lo. */
+static keel_status descend(search *S, const direction *d, size_t lo, size_t hi,
+                           long long deadline_ms, int *best, size_t *proven_lo, keel_error *err)
+{
+    const keel_workload *w = S->w;
+    size_t soft = lo; /* below soft, questions were left unanswered */
+    keel_status rc = KEEL_OK;
+    while (lo < hi) {
+        long long now = keel_clock_ms();
+        if (now >= deadline_ms)
+            break;
+        bool decisive = soft >= hi;
+        size_t q = decisive ? hi - 1 : soft + (hi - soft) / 2;
+        long long limit = decisive ? deadline_ms : now + (deadline_ms - now) / QUESTION_SHARE + 1;
+        keel_ilp_answer answer;
+        d->set_windows(S, q);
+        rc = ask(S, limit, &answer, err);
+        if (rc)
+            break;
+        if (answer == KEEL_ILP_FEASIBLE) {
+            if (d->improve) {
+                rc = keel_greedy_improve(w, S->trial);
+                if (rc) {
+                    keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
+                    break;
+                }
+            }
+            memcpy(best, S->trial, w->npatients * sizeof *best);
+            hi = d->position_of(S, best);
+            if (soft > hi)
+                soft = hi;
+        } else if (answer == KEEL_ILP_INFEASIBLE) {
+            lo = q + 1;
+            if (soft < lo)
+                soft = lo;
+        } else if (decisive) {
+            break; /* the time limit came first */
+        } else {
+            soft = q + 1;
+        }
+    }
+    *proven_lo = lo;
+    return rc;
+}
+
+/* Stage 1 positions: candidate i itself, smallest first. */
+static void peak_windows(search *S, size_t i)
+{
+    for (size_t n = 0; n < S->w->nnurses; n++) {
+        S->lo[n] = 0;
+        if (keel_workload_counted(S->w, n))
+            S->hi[n] = budget_below(S, n, S->cand[i]);
+    }
+}
+
+static size_t peak_position(const search *S, const int *assignment)
+{
+    return first_at_least(S, keel_solve_peak(S->w, assignment));
+}
+
+/* Stage 2 positions: candidate ncand - 1 - i, largest first. */
+static void lift_windows(search *S, size_t i)
+{
+    keel_ratio t = S->cand[S->ncand - 1 - i];
+    for (size_t n = 0; n < S->w->nnurses; n++) {
+        if (!keel_workload_counted(S->w, n))
+            continue;
+        S->hi[n] = S->peak_hi[n];
+        S->lo[n] = budget_above(S, n, t, S->peak_hi[n]);
+    }
+}
+
+static size_t lift_position(const search *S, const int *assignment)
+{
+    size_t i = first_at_least(S, keel_solve_lift(S->w, assignment));
+    return S->ncand - 1 - (i < S->ncand ? i : S->ncand - 1);
+}
+
+static void finish_stage(keel_stage *st, keel_ratio value, keel_ratio bound, bool proven,
+                         int calls, long long started)
+{
+    st->value = keel_ratio_value(value);
+    st->bound = keel_ratio_value(proven ? value : bound);
+    st->gap = proven ? 0.0 : keel_gap(st->value, st->bound);
+    st->status = proven ? KEEL_SOLVE_OPTIMAL : KEEL_SOLVE_TIME_LIMIT;
+    st->solver_calls = calls;
+    st->seconds = (double)(keel_clock_ms() - started) / 1000.0;
+}
+
+static keel_status stage_peak(search *S, long long deadline_ms, int *best, keel_stage *st,
+                              keel_error *err)
+{
+    static const direction down = {peak_windows, peak_position, true};
+    const keel_workload *w = S->w;
+    long long started = keel_clock_ms();
+    keel_ratio incumbent = keel_solve_peak(w, best), floor = keel_solve_peak_floor(w);
+    for (size_t n = 0; n < w->nnurses; n++) {
+        S->lo[n] = 0;
+        S->hi[n] = -1;
+        if (!keel_workload_counted(w, n))
+            continue;
+        /* No nurse carries more than the incumbent's peak allows. */
+        long long smax =
+            incumbent.num * w->capacity_minutes[n] / incumbent.den - w->duty_minutes[n];
+        if (reachable_sums(w, n, smax, &S->sums[n]))
+            return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+        S->hi[n] = S->sums[n].smax;
+    }
+    if (collect_candidates(S, S->hi, floor, incumbent))
+        return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    S->calls = 0;
+    size_t proven_lo = 0, hi = S->ncand ? peak_position(S, best) : 0;
+    keel_status rc = descend(S, &down, 0, hi, deadline_ms, best, &proven_lo, err);
+    if (rc)
+        return rc;
+    keel_ratio value = keel_solve_peak(w, best);
+    bool proven = S->ncand == 0 || keel_ratio_cmp(S->cand[proven_lo], value) >= 0;
+    finish_stage(st, value, S->ncand ? S->cand[proven_lo] : floor, proven, S->calls, started);
+    /* Hold stage 1: the budgets at the best peak found. */
+    for (size_t n = 0; n < w->nnurses; n++)
+        S->peak_hi[n] = keel_workload_counted(w, n) ? budget_below(S, n, value) : -1;
+    return KEEL_OK;
+}
+
+static keel_status stage_lift(search *S, long long deadline_ms, int *best, keel_stage *st,
+                              keel_error *err)
+{
+    static const direction up = {lift_windows, lift_position, false};
+    const keel_workload *w = S->w;
+    long long started = keel_clock_ms();
+    keel_ratio incumbent = keel_solve_lift(w, best), ceiling = keel_solve_lift_ceiling(w);
+    if (collect_candidates(S, S->peak_hi, incumbent, ceiling))
+        return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    S->calls = 0;
+    size_t proven_lo = 0, hi = S->ncand ? lift_position(S, best) : 0;
+    keel_status rc = descend(S, &up, 0, hi, deadline_ms, best, &proven_lo, err);
+    if (rc)
+        return rc;
+    keel_ratio value = keel_solve_lift(w, best);
+    keel_ratio bound = S->ncand ? S->cand[S->ncand - 1 - proven_lo] : ceiling;
+    finish_stage(st, value, bound, keel_ratio_cmp(bound, value) <= 0, S->calls, started);
+    return KEEL_OK;
+}
+
+keel_status keel_method_ilp(const keel_workload *w, long long deadline_ms, keel_solution *sol,
+                            keel_error *err)
+{
+    size_t nn = w->nnurses;
+    keel_status rc = KEEL_OK;
+    search S = {.w = w};
+    S.sums = keel_calloc(nn, sizeof *S.sums);
+    S.lo = keel_calloc(nn, sizeof *S.lo);
+    S.hi = keel_calloc(nn, sizeof *S.hi);
+    S.peak_hi = keel_calloc(nn, sizeof *S.peak_hi);
+    S.trial = keel_calloc(w->npatients, sizeof *S.trial);
+    if (!S.sums || !S.lo || !S.hi || !S.peak_hi || !S.trial) {
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+        goto out;
+    }
+    for (size_t p = 0; p < w->npatients; p++)
+        S.care_total += w->care_minutes[p];
+    sol->nstages = 2;
+    sol->stages[0].name = "peak";
+    sol->stages[1].name = "lift";
+    long long now = keel_clock_ms();
+    long long peak_deadline = now + (deadline_ms - now) * PEAK_SHARE_TENTHS / 10;
+    rc = stage_peak(&S, peak_deadline, sol->nurse_of, &sol->stages[0], err);
+    if (!rc)
+        rc = stage_lift(&S, deadline_ms, sol->nurse_of, &sol->stages[1], err);
+out:
+    for (size_t n = 0; S.sums && n < nn; n++)
+        free(S.sums[n].reach);
+    free(S.sums);
+    free(S.lo);
+    free(S.hi);
+    free(S.peak_hi);
+    free(S.trial);
+    free(S.cand);
+    return rc;
+}

@@ -1,0 +1,210 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * solve_fit.c - a dedicated branch and bound for the question the exact
+ * method asks again and again: is there an assignment in which every
+ * counted nurse n carries between lo[n] and hi[n] minutes of care?
+ *
+ * Patients go heaviest first; each tries the eligible nurses with room, the
+ * one with the most room left first.  Two symmetries are cut: patients that
+ * are interchangeable (same care, same eligible nurses) take nurses in
+ * non-decreasing index order, and of several nurses that are
+ * interchangeable for the question and carry the same so far, only the
+ * first is tried.  A node is cut when the room left that the remaining
+ * patients could still use is less than their care, or the care they must
+ * still bring to nurses below their window is more than they have.
+ *
+ * The search stops after a node budget and answers "unknown"; the caller
+ * then asks GLPK.  A "feasible" or "infeasible" answer is exact.
+ */
+#include <stdlib.h>
+#include <string.h>
+
+#include "alloc.h"
+#include "solve_internal.h"
+
+typedef struct fit {
+    const keel_workload *w;
+    const long long *lo;
+    const long long *hi;
+    size_t *order;        /* patients, heaviest first, twins adjacent */
+    bool *twin_of_prev;   /* [k]: order[k] is interchangeable with order[k - 1] */
+    int *group;           /* [nnurses]: nurses with the same group are interchangeable */
+    long long *suffix;    /* [k]: care of order[k..] */
+    int *min_after;       /* [k]: smallest care among order[k..] */
+    long long *care;      /* [nnurses]: care so far */
+    int *count;           /* [nnurses]: patients so far */
+    int *assign;          /* [npatients] */
+    size_t *tried;        /* scratch per depth: nurses in trial order */
+    long nodes;
+    long budget;
+    bool gave_up;
+} fit;
+
+static const keel_workload *sort_w;
+
+static int heavier_first(const void *a, const void *b)
+{
+    size_t i = *(const size_t *)a, j = *(const size_t *)b;
+    const keel_workload *w = sort_w;
+    if (w->care_minutes[i] != w->care_minutes[j])
+        return w->care_minutes[i] > w->care_minutes[j] ? -1 : 1;
+    int c = memcmp(&w->eligible[i * w->nnurses], &w->eligible[j * w->nnurses],
+                   w->nnurses * sizeof *w->eligible);
+    if (c)
+        return c;
+    return (i > j) - (i < j);
+}
+
+static bool same_for_question(const fit *F, size_t a, size_t b)
+{
+    const keel_workload *w = F->w;
+    if (w->max_patients[a] != w->max_patients[b] || F->lo[a] != F->lo[b] ||
+        F->hi[a] != F->hi[b])
+        return false;
+    for (size_t p = 0; p < w->npatients; p++)
+        if (keel_workload_eligible(w, p, a) != keel_workload_eligible(w, p, b))
+            return false;
+    return true;
+}
+
+/* Cheap bounds on the remaining patients order[k..]. */
+static bool still_possible(const fit *F, size_t k)
+{
+    const keel_workload *w = F->w;
+    long long left = F->suffix[k], room = 0, owed = 0;
+    long long smallest = F->min_after[k];
+    for (size_t n = 0; n < w->nnurses; n++) {
+        if (!keel_workload_counted(w, n))
+            continue;
+        long long r = F->hi[n] - F->care[n];
+        if (r >= smallest && F->count[n] < w->max_patients[n])
+            room += r;
+        if (F->lo[n] > F->care[n]) {
+            if (F->count[n] >= w->max_patients[n])
+                return false;
+            owed += F->lo[n] - F->care[n];
+        }
+    }
+    return room >= left && owed <= left;
+}
+
+static bool search(fit *F, size_t k)
+{
+    const keel_workload *w = F->w;
+    size_t np = w->npatients, nn = w->nnurses;
+    if (k == np) {
+        for (size_t n = 0; n < nn; n++)
+            if (keel_workload_counted(w, n) && F->care[n] < F->lo[n])
+                return false;
+        return true;
+    }
+    if (++F->nodes > F->budget) {
+        F->gave_up = true;
+        return false;
+    }
+    if (!still_possible(F, k))
+        return false;
+    size_t p = F->order[k];
+    int c = w->care_minutes[p];
+    int first = F->twin_of_prev[k] ? F->assign[F->order[k - 1]] : 0;
+    size_t *tried = F->tried + k * nn, ntried = 0;
+    /* Candidates with room, most room first. */
+    for (size_t n = (size_t)first; n < nn; n++) {
+        if (!keel_workload_eligible(w, p, n) || F->count[n] >= w->max_patients[n] ||
+            F->care[n] + c > F->hi[n])
+            continue;
+        bool twin_seen = false;
+        for (size_t i = 0; i < ntried && !twin_seen; i++) {
+            size_t m = tried[i];
+            twin_seen = F->group[m] == F->group[n] && F->care[m] == F->care[n] &&
+                        F->count[m] == F->count[n];
+        }
+        if (twin_seen)
+            continue;
+        size_t at = ntried++;
+        while (at > 0 && F->hi[tried[at - 1]] - F->care[tried[at - 1]] < F->hi[n] - F->care[n]) {
+            tried[at] = tried[at - 1];
+            at--;
+        }
+        tried[at] = n;
+    }
+    for (size_t i = 0; i < ntried; i++) {
+        size_t n = tried[i];
+        F->assign[p] = (int)n;
+        F->care[n] += c;
+        F->count[n]++;
+        bool found = search(F, k + 1);
+        F->care[n] -= c;
+        F->count[n]--;
+        if (found)
+            return true;
+        if (F->gave_up)
+            return false;
+    }
+    return false;
+}
+
+keel_status keel_fit_search(const keel_workload *w, const long long *lo, const long long *hi,
+                            long node_budget, int *nurse_of, keel_ilp_answer *answer)
+{
+    size_t np = w->npatients, nn = w->nnurses;
+    fit F = {.w = w, .lo = lo, .hi = hi, .budget = node_budget};
+    F.order = keel_calloc(np, sizeof *F.order);
+    F.twin_of_prev = keel_calloc(np, sizeof *F.twin_of_prev);
+    F.group = keel_calloc(nn, sizeof *F.group);
+    F.suffix = keel_calloc(np + 1, sizeof *F.suffix);
+    F.min_after = keel_calloc(np + 1, sizeof *F.min_after);
+    F.care = keel_calloc(nn, sizeof *F.care);
+    F.count = keel_calloc(nn, sizeof *F.count);
+    F.assign = keel_calloc(np, sizeof *F.assign);
+    F.tried = keel_calloc((np ? np : 1) * (nn ? nn : 1), sizeof *F.tried);
+    keel_status rc = KEEL_OK;
+    if (!F.order || !F.twin_of_prev || !F.group || !F.suffix || !F.min_after || !F.care ||
+        !F.count || !F.assign || !F.tried) {
+        rc = KEEL_ERR_NOMEM;
+        goto out;
+    }
+    for (size_t p = 0; p < np; p++)
+        F.order[p] = p;
+    sort_w = w;
+    qsort(F.order, np, sizeof *F.order, heavier_first);
+    for (size_t k = 1; k < np; k++) {
+        size_t a = F.order[k - 1], b = F.order[k];
+        F.twin_of_prev[k] = w->care_minutes[a] == w->care_minutes[b] &&
+                            memcmp(&w->eligible[a * nn], &w->eligible[b * nn],
+                                   nn * sizeof *w->eligible) == 0;
+    }
+    F.min_after[np] = 0;
+    for (size_t k = np; k-- > 0;) {
+        F.suffix[k] = F.suffix[k + 1] + w->care_minutes[F.order[k]];
+        F.min_after[k] = w->care_minutes[F.order[k]]; /* heaviest first: the last is smallest */
+    }
+    for (size_t k = 0; k + 1 < np; k++)
+        F.min_after[k] = F.min_after[np - 1];
+    for (size_t n = 0; n < nn; n++) {
+        F.group[n] = (int)n;
+        for (size_t m = 0; m < n; m++) {
+            if (same_for_question(&F, m, n)) {
+                F.group[n] = F.group[m];
+                break;
+            }
+        }
+    }
+    if (search(&F, 0)) {
+        memcpy(nurse_of, F.assign, np * sizeof *nurse_of);
+        *answer = KEEL_ILP_FEASIBLE;
+    } else {
+        *answer = F.gave_up ? KEEL_ILP_UNKNOWN : KEEL_ILP_INFEASIBLE;
+    }
+out:
+    free(F.order);
+    free(F.twin_of_prev);
+    free(F.group);
+    free(F.suffix);
+    free(F.min_after);
+    free(F.care);
+    free(F.count);
+    free(F.assign);
+    free(F.tried);
+    return rc;
+}

@@ -1,0 +1,172 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * solve_greedy.c - the fast method: heaviest patient first to the eligible
+ * nurse with room whose utilisation after taking the patient is lowest
+ * (Graham's LPT rule, in utilisation), then improving moves and swaps.
+ *
+ * It gives the incumbent the ILP starts from, the answer of
+ * `--method greedy`, and a check in tests.  Every move keeps eligibility and
+ * patient limits.  Improvement accepts a move or swap between nurses a and b
+ * only when it lowers max(u_a, u_b) strictly, so the sorted vector of
+ * utilisations falls lexicographically and the search ends.
+ */
+#include <stdlib.h>
+
+#include "alloc.h"
+#include "solve_internal.h"
+
+/* Patients by care minutes, heaviest first; ties by index for determinism. */
+static const keel_workload *sort_w;
+
+static int heavier_first(const void *a, const void *b)
+{
+    size_t i = *(const size_t *)a, j = *(const size_t *)b;
+    int ci = sort_w->care_minutes[i], cj = sort_w->care_minutes[j];
+    if (ci != cj)
+        return ci > cj ? -1 : 1;
+    return (i > j) - (i < j);
+}
+
+bool keel_greedy_place(const keel_workload *w, int *nurse_of)
+{
+    size_t np = w->npatients, nn = w->nnurses;
+    size_t *order = keel_malloc((np ? np : 1) * sizeof *order);
+    long long *load = keel_calloc(nn, sizeof *load);
+    int *count = keel_calloc(nn, sizeof *count);
+    bool placed_all = order && load && count;
+    if (!placed_all)
+        goto out;
+    for (size_t p = 0; p < np; p++) {
+        order[p] = p;
+        nurse_of[p] = -1;
+    }
+    sort_w = w;
+    qsort(order, np, sizeof *order, heavier_first);
+    for (size_t n = 0; n < nn; n++)
+        load[n] = w->duty_minutes[n];
+    for (size_t k = 0; k < np; k++) {
+        size_t p = order[k];
+        int best = -1;
+        keel_ratio best_u = {0, 1};
+        for (size_t n = 0; n < nn; n++) {
+            if (!keel_workload_eligible(w, p, n) || count[n] >= w->max_patients[n])
+                continue;
+            keel_ratio u = {load[n] + w->care_minutes[p], w->capacity_minutes[n]};
+            if (best < 0 || keel_ratio_cmp(u, best_u) < 0) {
+                best = (int)n;
+                best_u = u;
+            }
+        }
+        if (best < 0) {
+            placed_all = false;
+            continue;
+        }
+        nurse_of[p] = best;
+        load[best] += w->care_minutes[p];
+        count[best]++;
+    }
+out:
+    free(order);
+    free(load);
+    free(count);
+    return placed_all;
+}
+
+static keel_ratio worse(keel_ratio a, keel_ratio b)
+{
+    return keel_ratio_cmp(a, b) >= 0 ? a : b;
+}
+
+/* Tries every move of one of a's patients to b; applies the first that
+ * lowers the pair's peak.  Returns true when it applied one. */
+static bool try_move(const keel_workload *w, int *nurse_of, long long *load, int *count, size_t a,
+                     size_t b)
+{
+    if (count[b] >= w->max_patients[b])
+        return false;
+    keel_ratio before = worse((keel_ratio){load[a], w->capacity_minutes[a]},
+                              (keel_ratio){load[b], w->capacity_minutes[b]});
+    for (size_t p = 0; p < w->npatients; p++) {
+        if (nurse_of[p] != (int)a || !keel_workload_eligible(w, p, b))
+            continue;
+        int c = w->care_minutes[p];
+        keel_ratio after = worse((keel_ratio){load[a] - c, w->capacity_minutes[a]},
+                                 (keel_ratio){load[b] + c, w->capacity_minutes[b]});
+        if (keel_ratio_cmp(after, before) < 0) {
+            nurse_of[p] = (int)b;
+            load[a] -= c;
+            load[b] += c;
+            count[a]--;
+            count[b]++;
+            return true;
+        }
+    }
+    return false;
+}
+
+/* Tries every swap of a patient of a with a patient of b; applies the first
+ * that lowers the pair's peak. */
+static bool try_swap(const keel_workload *w, int *nurse_of, long long *load, size_t a, size_t b)
+{
+    keel_ratio before = worse((keel_ratio){load[a], w->capacity_minutes[a]},
+                              (keel_ratio){load[b], w->capacity_minutes[b]});
+    for (size_t p = 0; p < w->npatients; p++) {
+        if (nurse_of[p] != (int)a || !keel_workload_eligible(w, p, b))
+            continue;
+        for (size_t q = 0; q < w->npatients; q++) {
+            if (nurse_of[q] != (int)b || !keel_workload_eligible(w, q, a))
+                continue;
+            long long d = (long long)w->care_minutes[p] - w->care_minutes[q];
+            if (d == 0)
+                continue;
+            keel_ratio after = worse((keel_ratio){load[a] - d, w->capacity_minutes[a]},
+                                     (keel_ratio){load[b] + d, w->capacity_minutes[b]});
+            if (keel_ratio_cmp(after, before) < 0) {
+                nurse_of[p] = (int)b;
+                nurse_of[q] = (int)a;
+                load[a] -= d;
+                load[b] += d;
+                return true;
+            }
+        }
+    }
+    return false;
+}
+
+keel_status keel_greedy_improve(const keel_workload *w, int *nurse_of)
+{
+    size_t nn = w->nnurses;
+    long long *load = keel_calloc(nn, sizeof *load);
+    int *count = keel_calloc(nn, sizeof *count);
+    if (!load || !count) {
+        free(load);
+        free(count);
+        return KEEL_ERR_NOMEM;
+    }
+    keel_solve_loads(w, nurse_of, load);
+    for (size_t p = 0; p < w->npatients; p++)
+        if (nurse_of[p] >= 0)
+            count[nurse_of[p]]++;
+    bool improved = true;
+    while (improved) {
+        improved = false;
+        for (size_t a = 0; a < nn; a++) {
+            if (!keel_workload_counted(w, a))
+                continue;
+            for (size_t b = 0; b < nn; b++) {
+                if (a == b || !keel_workload_counted(w, b))
+                    continue;
+                /* Only the heavier of the pair can give work away usefully. */
+                if (keel_ratio_cmp((keel_ratio){load[a], w->capacity_minutes[a]},
+                                   (keel_ratio){load[b], w->capacity_minutes[b]}) <= 0)
+                    continue;
+                while (try_move(w, nurse_of, load, count, a, b) ||
+                       try_swap(w, nurse_of, load, a, b))
+                    improved = true;
+            }
+        }
+    }
+    free(load);
+    free(count);
+    return KEEL_OK;
+}

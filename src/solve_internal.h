@@ -1,0 +1,103 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * solve_internal.h - what the solver stages share (internal).
+ *
+ * Utilisations are exact fractions load/capacity of whole minutes, so the
+ * stages compare them without rounding: a/b < c/d  <=>  a*d < c*b.
+ */
+#ifndef KEEL_SOLVE_INTERNAL_H
+#define KEEL_SOLVE_INTERNAL_H
+
+#include <stdbool.h>
+
+#include "keel/error.h"
+#include "keel/finding.h"
+#include "keel/roster.h"
+#include "keel/solve.h"
+#include "keel/workload.h"
+
+/* An exact utilisation: num minutes of load over den minutes of capacity. */
+typedef struct keel_ratio {
+    long long num;
+    long long den; /* > 0 */
+} keel_ratio;
+
+static inline int keel_ratio_cmp(keel_ratio a, keel_ratio b)
+{
+    long long l = a.num * b.den, r = b.num * a.den;
+    return (l > r) - (l < r);
+}
+
+static inline double keel_ratio_value(keel_ratio a)
+{
+    return (double)a.num / (double)a.den;
+}
+
+/* Relative gap between a stage's value and its proven limit:
+ * |value - bound| / max(|value|, |bound|), 0 when both are 0. */
+static inline double keel_gap(double value, double bound)
+{
+    double a = value < 0 ? -value : value, b = bound < 0 ? -bound : bound;
+    double d = value - bound, m = a > b ? a : b;
+    return m > 0 ? (d < 0 ? -d : d) / m : 0.0;
+}
+
+/* Loads of every nurse under nurse_of (-1 entries ignored) into load[nnurses]. */
+void keel_solve_loads(const keel_workload *w, const int *nurse_of, long long *load);
+
+/* Heaviest and lightest utilisation of the counted nurses under nurse_of.
+ * With no counted nurse both are 0/1. */
+keel_ratio keel_solve_peak(const keel_workload *w, const int *nurse_of);
+keel_ratio keel_solve_lift(const keel_workload *w, const int *nurse_of);
+
+/* Proven simple limits: a lower limit on the heaviest utilisation of any
+ * valid assignment (each counted nurse's duty, each patient on the nurse
+ * that suits it best, the unit's total over the total capacity), and an
+ * upper limit on the lightest (the unit's total over the total capacity). */
+keel_ratio keel_solve_peak_floor(const keel_workload *w);
+keel_ratio keel_solve_lift_ceiling(const keel_workload *w);
+
+/* diagnose.c: looks for any valid assignment, ignoring balance, by
+ * augmenting paths (patients to eligible nurses under their limits).
+ * Sets *feasible.  When one exists, nurse_of holds it; when not, one
+ * finding per shortage is appended to out, naming patients, nurses and what
+ * is short.  Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
+keel_status keel_diagnose(const keel_roster *r, const keel_workload *w, int *nurse_of,
+                          bool *feasible, keel_findings *out);
+
+/* solve_greedy.c: heaviest patient first to the eligible nurse with room
+ * whose utilisation after taking it is lowest (Graham's LPT rule in
+ * utilisation).  Returns false when some patient found no nurse with room
+ * (nurse_of is then partial). */
+bool keel_greedy_place(const keel_workload *w, int *nurse_of);
+
+/* solve_greedy.c: improving moves and swaps between pairs of nurses until
+ * none lowers the heavier utilisation of the pair.  Keeps every rule.
+ * Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
+keel_status keel_greedy_improve(const keel_workload *w, int *nurse_of);
+
+/* solve_ilp.c: answer of one feasibility search. */
+typedef enum keel_ilp_answer {
+    KEEL_ILP_FEASIBLE,    /* nurse_of holds an assignment inside the windows */
+    KEEL_ILP_INFEASIBLE,  /* proven: no assignment fits the windows */
+    KEEL_ILP_UNKNOWN,     /* the time limit came first */
+} keel_ilp_answer;
+
+/* solve_ilp.c: looks for an assignment (every patient one eligible nurse,
+ * limits kept) in which every counted nurse n carries between lo[n] and
+ * hi[n] minutes of care (duty not included), within time_limit_ms.
+ * Statuses: KEEL_OK (see *answer), KEEL_ERR_NOMEM, KEEL_ERR_SOLVER. */
+keel_status keel_ilp_fit(const keel_workload *w, const long long *lo, const long long *hi,
+                         long time_limit_ms, int *nurse_of, keel_ilp_answer *answer,
+                         keel_error *err);
+
+/* solve_fit.c: the same question as keel_ilp_fit(), answered by a
+ * dedicated branch and bound that gives up (KEEL_ILP_UNKNOWN) after
+ * node_budget nodes.  Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
+keel_status keel_fit_search(const keel_workload *w, const long long *lo, const long long *hi,
+                            long node_budget, int *nurse_of, keel_ilp_answer *answer);
+
+/* Monotonic wall clock in milliseconds. */
+long long keel_clock_ms(void);
+
+#endif

@@ -1,0 +1,105 @@
+#!/bin/sh
+# SPDX-License-Identifier: GPL-3.0-or-later
+#
+# CLI tests: exit codes, stdout and stderr of the keel command, as a TAP
+# stream for meson.  Usage: run_cli_tests.sh KEEL CLI_DATA_DIR EXAMPLES_DIR
+set -u
+keel=$(cd "$(dirname "$1")" && pwd)/$(basename "$1")
+data=$(cd "$2" && pwd)
+examples=$(cd "$3" && pwd)
+bad=$(cd "$data/../data/bad" && pwd)
+work=$(mktemp -d)
+trap 'rm -rf "$work"' EXIT
+n=0
+failed=0
+caution="Decision support only: the charge nurse's judgement, facility policy and the staffing law that applies locally govern every assignment."
+
+ok() { n=$((n + 1)); echo "ok $n - $1"; }
+not_ok() { n=$((n + 1)); failed=$((failed + 1)); echo "not ok $n - $1"; sed 's/^/# /' "$work/out" "$work/err" 2>/dev/null | head -40; }
+
+# expect CODE NAME -- COMMAND...: runs the command, stdout to $work/out,
+# stderr to $work/err, and checks the exit code.
+expect() {
+    code=$1 name=$2
+    shift 3
+    "$@" >"$work/out" 2>"$work/err"
+    got=$?
+    if [ "$got" -eq "$code" ]; then ok "$name (exit $code)"; else echo "# exit $got, wanted $code"; not_ok "$name"; fi
+}
+has() { # has FILE TEXT NAME
+    if grep -qF -- "$2" "$1"; then ok "$3"; else echo "# missing: $2"; not_ok "$3"; fi
+}
+last_line_is_caution() { # FILE NAME
+    if [ "$(tail -n 1 "$1")" = "$caution" ]; then ok "$2"; else not_ok "$2"; fi
+}
+
+expect 0 "version" -- "$keel" --version
+has "$work/out" "keel 0." "version names the release"
+expect 0 "help" -- "$keel" --help
+has "$work/out" "Exit codes" "help lists the exit codes"
+last_line_is_caution "$work/out" "help ends with the caution"
+expect 0 "help for assign" -- "$keel" help assign
+has "$work/out" "--time-limit" "assign help names its options"
+expect 1 "no command" -- "$keel"
+expect 1 "unknown command" -- "$keel" rota
+expect 1 "assign without a roster" -- "$keel" assign
+expect 1 "unknown format" -- "$keel" assign "$examples/icu-night.yaml" --format pdf
+expect 1 "bad time limit" -- "$keel" assign "$examples/icu-night.yaml" --time-limit soon
+expect 1 "unknown option" -- "$keel" assign "$examples/icu-night.yaml" --fast
+expect 2 "missing roster file" -- "$keel" assign "$work/nope.yaml"
+has "$work/err" "nope.yaml: cannot open" "a missing file is named"
+
+# Bad rosters: the CLI prints exactly the problems the loader reports.
+cd "$bad" || exit 1
+for f in many-problems unknown-keys wrong-types; do
+    expect 2 "bad roster $f" -- "$keel" assign "$f.yaml"
+    if cmp -s "$work/err" "$f.expected"; then ok "$f: every problem with file:line:column"; else
+        diff "$f.expected" "$work/err" | sed 's/^/# /'; not_ok "$f: every problem with file:line:column"; fi
+done
+cd "$work" || exit 1
+
+# A roster with no valid assignment: exit 3 and a reason in plain words.
+expect 3 "infeasible roster" -- "$keel" assign "$data/infeasible-chemo.yaml"
+has "$work/err" "2 patients (X-1 and X-3) need chemo; no nurse on shift" "the reason names patients and skill"
+expect 3 "infeasible roster as json" -- "$keel" assign "$data/infeasible-chemo.yaml" --format json
+has "$work/out" '"rule": "skill", "patients": ["X-1", "X-3"]' "json carries the diagnosis"
+has "$work/out" '"status": "infeasible"' "json says infeasible"
+
+# The main job on both examples.
+for ex in medsurg-day icu-night; do
+    expect 0 "assign $ex" -- "$keel" assign "$examples/$ex.yaml"
+    has "$work/out" "Balance over the" "$ex: the balance is shown"
+    has "$work/out" "Staffing" "$ex: the staffing line is shown"
+    last_line_is_caution "$work/out" "$ex: the report ends with the caution"
+    expect 0 "assign $ex as json" -- "$keel" assign "$examples/$ex.yaml" --format json
+    has "$work/out" '"imbalance": {"max_utilisation": ' "$ex: json has the imbalance"
+    has "$work/out" '"caution": ' "$ex: json has the caution"
+done
+
+# -o writes atomically, never over the input, and the yaml reads back.
+cp "$examples/icu-night.yaml" "$work/roster.yaml"
+expect 1 "refuses to write over the roster" -- "$keel" assign "$work/roster.yaml" -o "$work/roster.yaml"
+if cmp -s "$examples/icu-night.yaml" "$work/roster.yaml"; then ok "the roster is untouched"; else not_ok "the roster is untouched"; fi
+expect 0 "assign to a yaml file" -- "$keel" assign "$work/roster.yaml" --format yaml -o "$work/plan.yaml"
+if [ -s "$work/plan.yaml" ] && [ ! -s "$work/out" ]; then ok "the plan went to the file, not stdout"; else not_ok "the plan went to the file"; fi
+if ls "$work"/plan.yaml.tmp-* >/dev/null 2>&1; then not_ok "no temporary file is left"; else ok "no temporary file is left"; fi
+expect 0 "check the written plan" -- "$keel" check "$work/plan.yaml"
+has "$work/out" "The plan keeps every rule keel checks." "the written plan keeps every rule"
+has "$work/out" "Best possible heaviest utilisation" "check shows the best possible"
+
+# keel check scores a hand-made plan and names every rule it breaks.
+expect 0 "check a plan that breaks rules" -- "$keel" check "$data/plan-breaks-rules.yaml"
+has "$work/out" "[skill] Y-4 needs tele; B2 does not have it" "check names the missing competency"
+has "$work/out" "[patient_limit] B1 has 3 patients; the patient limit is 2" "check names the nurse over the limit"
+expect 0 "check as json" -- "$keel" check "$data/plan-breaks-rules.yaml" --format json
+has "$work/out" '"violations": [' "json lists the violations"
+expect 0 "check without a plan" -- "$keel" check "$examples/medsurg-day.yaml"
+has "$work/out" "Care minutes per patient" "check shows care minutes"
+has "$work/out" "nurses needed at full utilisation" "check shows nurses needed"
+
+# The greedy method is never called optimal unless its bound proves it.
+expect 0 "greedy method" -- "$keel" assign "$examples/medsurg-day.yaml" --method greedy --format json
+has "$work/out" '"method": "greedy"' "the greedy method says so"
+
+echo "1..$n"
+[ "$failed" -eq 0 ]

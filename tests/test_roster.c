@@ -1,0 +1,687 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * test_roster.c - tests of the roster loader (src/roster.c): what a valid
+ * roster turns into, every kind of problem a bad one reports, golden
+ * messages for the files under tests/data/bad/, the example rosters, and
+ * clean failure when any allocation fails.
+ *
+ * Usage: test_roster [DATA_DIR [EXAMPLES_DIR]].  Without arguments the
+ * directories come from $KEEL_TEST_DATA and $KEEL_TEST_EXAMPLES, else
+ * "tests/data" and "examples" (run from the source tree).
+ */
+#include <setjmp.h>
+#include <stdarg.h>
+#include <stdbool.h>
+#include <stddef.h>
+#include <stdint.h>
+
+#include <cmocka.h>
+
+#include <dirent.h>
+#include <errno.h>
+#include <fcntl.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+#include "alloc.h"
+#include "keel/roster.h"
+
+static const char *data_dir = "tests/data";
+static const char *examples_dir = "examples";
+
+/* The roster of the issue that defined the format, field for field. */
+static const char issue_example[] =
+    "version: 1\n"
+    "unit:    {name: \"5 North\", type: med-surg}\n"
+    "shift:   {label: day, date: 2026-03-14, start: \"07:00\", minutes: 720, break_minutes: 60}\n"
+    "policy:\n"
+    "  max_patients: 5\n"
+    "  acuity_minutes: {1: 90, 2: 150, 3: 210, 4: 300, 5: 420}\n"
+    "  extra_minutes: {admission: 90, discharge: 45, isolation: 30}\n"
+    "nurses:\n"
+    "  - id: N1\n"
+    "    name: \"Test Nurse One\"\n"
+    "    skills: [tele, chemo]\n"
+    "    max_patients: 4\n"
+    "    minutes: 480\n"
+    "    break_minutes: 30\n"
+    "    duty_minutes: 120\n"
+    "patients:\n"
+    "  - id: \"P-1042\"\n"
+    "    bed: \"512A\"\n"
+    "    name: \"Test Patient\"\n"
+    "    acuity: 3\n"
+    "    care_minutes: 320\n"
+    "    extras: [admission]\n"
+    "    needs: [tele]\n"
+    "    nurse: N1\n";
+
+static keel_status parse(const char *text, keel_roster **out, keel_error *err)
+{
+    return keel_roster_parse("roster.yaml", text, strlen(text), out, err);
+}
+
+/* Problem i of err as keel_problem_format() prints it. */
+static const char *problem_text(const keel_error *err, size_t i)
+{
+    static char buf[1024];
+    assert_true(i < err->nproblems);
+    keel_problem_format(&err->problems[i], buf, sizeof buf);
+    return buf;
+}
+
+/* Parses text, which must fail with exactly the expected problems (a
+ * NULL-terminated list of formatted lines). */
+static void assert_problems(const char *text, const char *const *expected)
+{
+    keel_error err;
+    keel_roster *roster = (keel_roster *)1;
+    size_t n = 0;
+    keel_error_init(&err);
+    assert_int_equal(parse(text, &roster, &err), KEEL_ERR_INPUT);
+    assert_null(roster);
+    assert_int_equal(err.status, KEEL_ERR_INPUT);
+    while (expected[n])
+        n++;
+    bool same = err.nproblems == n;
+    for (size_t i = 0; same && i < n; i++)
+        same = strcmp(problem_text(&err, i), expected[i]) == 0;
+    for (size_t i = 0; !same && i < err.nproblems; i++)
+        print_message("  %s\n", problem_text(&err, i));
+    assert_int_equal(err.nproblems, n);
+    for (size_t i = 0; i < n; i++)
+        assert_string_equal(problem_text(&err, i), expected[i]);
+    keel_error_fini(&err);
+}
+
+static char *read_text(const char *path)
+{
+    FILE *f = fopen(path, "rb");
+    size_t used = 0, capacity = 4096;
+    char *buf = malloc(capacity);
+    assert_non_null(f);
+    assert_non_null(buf);
+    for (size_t got; (got = fread(buf + used, 1, capacity - used - 1, f)) > 0;) {
+        used += got;
+        if (capacity - used == 1) {
+            capacity *= 2;
+            buf = realloc(buf, capacity);
+            assert_non_null(buf);
+        }
+    }
+    fclose(f);
+    buf[used] = '\0';
+    return buf;
+}
+
+static void test_roster_loads_the_issue_example(void **state)
+{
+    keel_roster *r = NULL;
+    keel_error err;
+    (void)state;
+    keel_error_init(&err);
+    assert_int_equal(parse(issue_example, &r, &err), KEEL_OK);
+    assert_int_equal(err.nproblems, 0);
+    assert_non_null(r);
+
+    assert_string_equal(r->path, "roster.yaml");
+    assert_string_equal(r->unit.name, "5 North");
+    assert_string_equal(r->unit.type, "med-surg");
+    assert_string_equal(r->shift.label, "day");
+    assert_string_equal(r->shift.date, "2026-03-14");
+    assert_int_equal(r->shift.start_minute, 7 * 60);
+    assert_int_equal(r->shift.minutes, 720);
+    assert_int_equal(r->shift.break_minutes, 60);
+
+    assert_int_equal(r->policy.max_patients, 5);
+    assert_int_equal(r->policy.nacuity, 5);
+    for (int level = 1; level <= 5; level++)
+        assert_int_equal(r->policy.acuity_minutes[level - 1].level, level);
+    assert_int_equal(keel_roster_acuity_minutes(r, 1), 90);
+    assert_int_equal(keel_roster_acuity_minutes(r, 5), 420);
+    assert_int_equal(keel_roster_acuity_minutes(r, 6), KEEL_ABSENT);
+    assert_int_equal(r->policy.nextras, 3);
+    assert_string_equal(r->policy.extra_minutes[0].name, "admission");
+    assert_string_equal(r->policy.extra_minutes[2].name, "isolation");
+    assert_int_equal(keel_roster_extra_minutes(r, "discharge"), 45);
+    assert_int_equal(keel_roster_extra_minutes(r, "transfer"), KEEL_ABSENT);
+
+    assert_int_equal(r->nnurses, 1);
+    const keel_nurse *n = &r->nurses[0];
+    assert_string_equal(n->id, "N1");
+    assert_string_equal(n->name, "Test Nurse One");
+    assert_int_equal(n->nskills, 2);
+    assert_string_equal(n->skills[0], "tele");
+    assert_string_equal(n->skills[1], "chemo");
+    assert_int_equal(n->max_patients, 4);
+    assert_int_equal(n->minutes, 480);
+    assert_int_equal(n->break_minutes, 30);
+    assert_int_equal(n->duty_minutes, 120);
+    assert_int_equal(n->mark.line, 9);
+    assert_int_equal(n->mark.column, 5);
+
+    assert_int_equal(r->npatients, 1);
+    const keel_patient *p = &r->patients[0];
+    assert_string_equal(p->id, "P-1042");
+    assert_string_equal(p->bed, "512A");
+    assert_string_equal(p->name, "Test Patient");
+    assert_int_equal(p->acuity, 3);
+    assert_int_equal(p->care_minutes, 320);
+    assert_int_equal(p->nextras, 1);
+    assert_string_equal(p->extras[0], "admission");
+    assert_int_equal(p->nneeds, 1);
+    assert_string_equal(p->needs[0], "tele");
+    assert_string_equal(p->nurse, "N1");
+    assert_int_equal(p->mark.line, 17);
+
+    assert_int_equal(keel_roster_find_nurse(r, "N1"), 0);
+    assert_int_equal(keel_roster_find_nurse(r, "N2"), -1);
+    keel_roster_free(r);
+    keel_error_fini(&err);
+}
+
+static void test_roster_leaves_unset_fields_absent(void **state)
+{
+    keel_roster *r = NULL;
+    (void)state;
+    assert_int_equal(parse("shift: {minutes: 600}\n"
+                           "nurses: [{id: A}]\n"
+                           "patients: [{id: B, care_minutes: 0}]\n",
+                           &r, NULL),
+                     KEEL_OK);
+    assert_null(r->unit.name);
+    assert_null(r->shift.date);
+    assert_int_equal(r->shift.start_minute, KEEL_ABSENT);
+    assert_int_equal(r->shift.break_minutes, KEEL_ABSENT);
+    assert_int_equal(r->policy.max_patients, KEEL_ABSENT);
+    assert_int_equal(r->policy.nacuity, 0);
+    assert_int_equal(r->nurses[0].max_patients, KEEL_ABSENT);
+    assert_int_equal(r->nurses[0].minutes, KEEL_ABSENT);
+    assert_int_equal(r->nurses[0].break_minutes, KEEL_ABSENT);
+    assert_int_equal(r->nurses[0].duty_minutes, KEEL_ABSENT);
+    assert_int_equal(r->nurses[0].nskills, 0);
+    assert_null(r->patients[0].name);
+    assert_null(r->patients[0].nurse);
+    assert_int_equal(r->patients[0].acuity, KEEL_ABSENT);
+    assert_int_equal(r->patients[0].care_minutes, 0);
+    keel_roster_free(r);
+}
+
+static void test_roster_accepts_unquoted_times(void **state)
+{
+    static const struct {
+        const char *start;
+        int minute;
+    } cases[] = {{"07:00", 420}, {"7:30", 450}, {"00:00", 0}, {"23:59", 1439},
+                 {"\"19:00\"", 1140}, {"'06:45'", 405}};
+    (void)state;
+    for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
+        char text[256];
+        keel_roster *r = NULL;
+        snprintf(text, sizeof text,
+                 "shift: {start: %s, date: 2028-02-29, minutes: 720}\n"
+                 "nurses: [{id: N1}]\npatients: [{id: P1, care_minutes: 60}]\n",
+                 cases[i].start);
+        assert_int_equal(parse(text, &r, NULL), KEEL_OK);
+        assert_int_equal(r->shift.start_minute, cases[i].minute);
+        assert_string_equal(r->shift.date, "2028-02-29");
+        keel_roster_free(r);
+    }
+}
+
+static void test_roster_rejects_times_and_dates_that_do_not_exist(void **state)
+{
+    static const char *const starts[] = {"24:00", "12:60", "7", "07:5", "-1:00", "07:00:00",
+                                         "noon", "[7, 0]"};
+    static const char *const dates[] = {"2026-02-29", "2100-02-29", "2026-04-31", "2026-13-01",
+                                        "2026-00-10", "0000-01-01", "26-03-14", "2026/03/14"};
+    (void)state;
+    for (size_t i = 0; i < sizeof starts / sizeof starts[0]; i++) {
+        char text[256];
+        keel_error err;
+        keel_roster *r = NULL;
+        keel_error_init(&err);
+        snprintf(text, sizeof text,
+                 "shift: {start: %s, minutes: 720}\n"
+                 "nurses: [{id: N1}]\npatients: [{id: P1, care_minutes: 60}]\n",
+                 starts[i]);
+        assert_int_equal(parse(text, &r, &err), KEEL_ERR_INPUT);
+        assert_int_equal(err.nproblems, 1);
+        assert_string_equal(err.problems[0].key, "shift.start");
+        assert_non_null(strstr(err.problems[0].message, "expected a time of day"));
+        keel_error_fini(&err);
+    }
+    for (size_t i = 0; i < sizeof dates / sizeof dates[0]; i++) {
+        char text[256];
+        keel_error err;
+        keel_roster *r = NULL;
+        keel_error_init(&err);
+        snprintf(text, sizeof text,
+                 "shift: {date: %s, minutes: 720}\n"
+                 "nurses: [{id: N1}]\npatients: [{id: P1, care_minutes: 60}]\n",
+                 dates[i]);
+        assert_int_equal(parse(text, &r, &err), KEEL_ERR_INPUT);
+        assert_int_equal(err.nproblems, 1);
+        assert_string_equal(err.problems[0].key, "shift.date");
+        keel_error_fini(&err);
+    }
+}
+
+static void test_roster_keeps_numeric_ids_as_text(void **state)
+{
+    keel_roster *r = NULL;
+    (void)state;
+    assert_int_equal(parse("shift: {minutes: 720}\n"
+                           "nurses: [{id: 12}, {id: 007}]\n"
+                           "patients: [{id: 12, bed: 4.10, care_minutes: 30, nurse: 007}]\n",
+                           &r, NULL),
+                     KEEL_OK);
+    assert_string_equal(r->nurses[0].id, "12");
+    assert_string_equal(r->nurses[1].id, "007");
+    assert_string_equal(r->patients[0].id, "12");
+    assert_string_equal(r->patients[0].bed, "4.10");
+    assert_int_equal(keel_roster_find_nurse(r, r->patients[0].nurse), 1);
+    keel_roster_free(r);
+}
+
+static void test_roster_stores_acuity_levels_sorted(void **state)
+{
+    keel_roster *r = NULL;
+    (void)state;
+    assert_int_equal(parse("shift: {minutes: 720}\n"
+                           "policy: {acuity_minutes: {5: 400, 0: 0, 3: 200, 99: 1440}}\n"
+                           "nurses: [{id: N1}]\n"
+                           "patients: [{id: P1, acuity: 0}, {id: P2, acuity: 99}]\n",
+                           &r, NULL),
+                     KEEL_OK);
+    assert_int_equal(r->policy.nacuity, 4);
+    static const int levels[] = {0, 3, 5, 99}, minutes[] = {0, 200, 400, 1440};
+    for (size_t i = 0; i < 4; i++) {
+        assert_int_equal(r->policy.acuity_minutes[i].level, levels[i]);
+        assert_int_equal(r->policy.acuity_minutes[i].minutes, minutes[i]);
+        assert_int_equal(keel_roster_acuity_minutes(r, levels[i]), minutes[i]);
+    }
+    keel_roster_free(r);
+}
+
+static void test_roster_reports_every_problem_in_a_file(void **state)
+{
+    static const char *const expected[] = {
+        "roster.yaml:1:18: shift.minutes: 0 is out of range; expected an integer from 1 to 1440",
+        "roster.yaml:4:5: nurses[0].skils: unknown key; did you mean 'skills'?",
+        "roster.yaml:5:9: nurses[1].id: nurse id 'N1' is already used on line 3; expected a "
+        "unique id",
+        "roster.yaml:7:5: patients[0].id: missing; every patient needs a unique id",
+        "roster.yaml:7:13: patients[0].acuity: level 7 is not in policy.acuity_minutes (1-3)",
+        "roster.yaml:8:5: patients[1].acuity: missing; every patient needs acuity or "
+        "care_minutes",
+        "roster.yaml:8:21: patients[1].nurse: no nurse 'N9' on this roster",
+        NULL};
+    (void)state;
+    assert_problems("shift: {minutes: 0}\n"
+                    "nurses:\n"
+                    "  - id: N1\n"
+                    "    skils: [tele]\n"
+                    "  - id: N1\n"
+                    "patients:\n"
+                    "  - acuity: 7\n"
+                    "  - {id: P2, nurse: N9}\n"
+                    "policy: {acuity_minutes: {1: 60, 2: 90, 3: 120}}\n",
+                    expected);
+}
+
+static void test_roster_suggests_the_nearest_key_only_when_close(void **state)
+{
+    static const char *const expected[] = {
+        "roster.yaml:1:1: shfit: unknown key; did you mean 'shift'?",
+        "roster.yaml:1:1: shift: missing; every roster needs a shift with its length in minutes",
+        "roster.yaml:2:19: nurses[0].nmae: unknown key; did you mean 'name'?",
+        "roster.yaml:2:28: nurses[0].Skills: unknown key; did you mean 'skills'?",
+        "roster.yaml:2:40: nurses[0].colour: unknown key; expected one of id, name, skills, "
+        "max_patients, minutes, break_minutes, duty_minutes",
+        "roster.yaml:3:12: patients[0].acuity: missing; every patient needs acuity or "
+        "care_minutes",
+        "roster.yaml:3:21: patients[0].acuty: unknown key; did you mean 'acuity'?",
+        NULL};
+    (void)state;
+    assert_problems("shfit: {minutes: 720}\n"
+                    "nurses: [{id: N1, nmae: A, Skills: [], colour: blue}]\n"
+                    "patients: [{id: P1, acuty: 2}]\n"
+                    "policy: {acuity_minutes: {2: 60}}\n",
+                    expected);
+}
+
+static void test_roster_expects_integers_without_quotes(void **state)
+{
+    static const char *const expected[] = {
+        "roster.yaml:1:19: shift.minutes: found '3.5'; expected an integer",
+        "roster.yaml:2:33: nurses[0].max_patients: found 'three'; expected an integer",
+        "roster.yaml:2:54: nurses[0].duty_minutes: found 'true'; expected an integer",
+        "roster.yaml:3:35: patients[0].care_minutes: found the string \"60\"; expected an integer",
+        "roster.yaml:4:35: patients[1].care_minutes: found no value; expected an integer",
+        "roster.yaml:5:35: patients[2].care_minutes: found '0x10'; expected an integer",
+        NULL};
+    (void)state;
+    assert_problems("shift: {minutes:  3.5}\n"
+                    "nurses: [{id: N1, max_patients: three, duty_minutes: true}]\n"
+                    "patients: [{id: P1, care_minutes: \"60\"},\n"
+                    "           {id: P2, care_minutes: ~},\n"
+                    "           {id: P3, care_minutes: 0x10}]\n",
+                    expected);
+}
+
+/* One range case: the fragments that replace the defaults, and the key of
+ * the one problem expected (NULL: the roster is valid). */
+typedef struct range_case {
+    const char *shift, *policy, *nurse, *patient, *bad_key;
+} range_case;
+
+static void check_range_case(const range_case *c)
+{
+    char text[512];
+    keel_error err;
+    keel_roster *r = NULL;
+    keel_error_init(&err);
+    snprintf(text, sizeof text,
+             "shift: {%s}\npolicy: {%s}\nnurses:\n  - {id: N1, %s}\npatients:\n  - {id: P1, %s}\n",
+             c->shift ? c->shift : "minutes: 720",
+             c->policy ? c->policy : "acuity_minutes: {1: 100}",
+             c->nurse ? c->nurse : "skills: []", c->patient ? c->patient : "acuity: 1");
+    keel_status rc = parse(text, &r, &err);
+    bool as_expected = c->bad_key ? rc == KEEL_ERR_INPUT && err.nproblems == 1 &&
+                                        strcmp(err.problems[0].key, c->bad_key) == 0
+                                  : rc == KEEL_OK;
+    for (size_t i = 0; !as_expected && i < err.nproblems; i++)
+        print_message("%s-> %s\n", text, problem_text(&err, i));
+    if (!c->bad_key) {
+        assert_int_equal(rc, KEEL_OK);
+        keel_roster_free(r);
+    } else {
+        assert_int_equal(rc, KEEL_ERR_INPUT);
+        assert_int_equal(err.nproblems, 1);
+        assert_string_equal(err.problems[0].key, c->bad_key);
+    }
+    keel_error_fini(&err);
+}
+
+static void test_roster_enforces_the_documented_ranges(void **state)
+{
+    static const range_case cases[] = {
+        {.shift = "minutes: 1"},
+        {.shift = "minutes: 1440, break_minutes: 1439"},
+        {.shift = "minutes: 0", .bad_key = "shift.minutes"},
+        {.shift = "minutes: 1441", .bad_key = "shift.minutes"},
+        {.shift = "minutes: -720", .bad_key = "shift.minutes"},
+        {.shift = "minutes: 99999999999999999999", .bad_key = "shift.minutes"},
+        {.shift = "minutes: 720, break_minutes: 0"},
+        {.shift = "minutes: 720, break_minutes: 719"},
+        {.shift = "minutes: 720, break_minutes: 720", .bad_key = "shift.break_minutes"},
+        {.shift = "minutes: 720, break_minutes: -1", .bad_key = "shift.break_minutes"},
+        {.policy = "max_patients: 0, acuity_minutes: {1: 1}"},
+        {.policy = "max_patients: 99, acuity_minutes: {1: 1}"},
+        {.policy = "max_patients: 100, acuity_minutes: {1: 1}", .bad_key = "policy.max_patients"},
+        {.policy = "acuity_minutes: {0: 0, 1: 1440, 99: 5}"},
+        {.policy = "acuity_minutes: {1: 1441}", .bad_key = "policy.acuity_minutes.1"},
+        {.policy = "acuity_minutes: {1: -1}", .bad_key = "policy.acuity_minutes.1"},
+        {.policy = "acuity_minutes: {1: 5, 100: 5}", .bad_key = "policy.acuity_minutes.100"},
+        {.policy = "acuity_minutes: {1: 5, -1: 5}", .bad_key = "policy.acuity_minutes.-1"},
+        {.policy = "acuity_minutes: {1: 5}, extra_minutes: {a: 0, b: 1440}"},
+        {.policy = "acuity_minutes: {1: 5}, extra_minutes: {a: 1441}",
+         .bad_key = "policy.extra_minutes.a"},
+        {.nurse = "max_patients: 0"},
+        {.nurse = "max_patients: 99"},
+        {.nurse = "max_patients: 100", .bad_key = "nurses[0].max_patients"},
+        {.nurse = "minutes: 1, break_minutes: 0"},
+        {.nurse = "minutes: 720"},
+        {.nurse = "minutes: 721", .bad_key = "nurses[0].minutes"},
+        {.nurse = "minutes: 0", .bad_key = "nurses[0].minutes"},
+        {.nurse = "minutes: 60, break_minutes: 59"},
+        {.nurse = "minutes: 60, break_minutes: 60", .bad_key = "nurses[0].break_minutes"},
+        {.shift = "minutes: 720, break_minutes: 60", .nurse = "minutes: 60",
+         .bad_key = "nurses[0].minutes"},
+        {.shift = "minutes: 720, break_minutes: 60", .nurse = "minutes: 60, break_minutes: 15"},
+        {.nurse = "duty_minutes: 0"},
+        {.nurse = "minutes: 480, duty_minutes: 480"},
+        {.nurse = "minutes: 480, duty_minutes: 481", .bad_key = "nurses[0].duty_minutes"},
+        {.nurse = "duty_minutes: 1441", .bad_key = "nurses[0].duty_minutes"},
+        {.patient = "acuity: 1, care_minutes: 0"},
+        {.patient = "care_minutes: 1440"},
+        {.patient = "care_minutes: 1441", .bad_key = "patients[0].care_minutes"},
+        {.patient = "acuity: 100", .bad_key = "patients[0].acuity"},
+        {.patient = "acuity: -1", .bad_key = "patients[0].acuity"},
+        {.patient = "acuity: 2", .bad_key = "patients[0].acuity"},
+    };
+    (void)state;
+    for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++)
+        check_range_case(&cases[i]);
+}
+
+static void test_roster_reports_a_file_that_cannot_be_opened(void **state)
+{
+    keel_error err;
+    keel_roster *r = (keel_roster *)1;
+    char expected[256];
+    (void)state;
+    keel_error_init(&err);
+    assert_int_equal(keel_roster_load("no-such-roster.yaml", &r, &err), KEEL_ERR_IO);
+    assert_null(r);
+    assert_int_equal(err.status, KEEL_ERR_IO);
+    assert_int_equal(err.nproblems, 1);
+    assert_int_equal(err.problems[0].line, 0);
+    snprintf(expected, sizeof expected, "no-such-roster.yaml: cannot open: %s", strerror(ENOENT));
+    assert_string_equal(problem_text(&err, 0), expected);
+    keel_error_fini(&err);
+}
+
+static void test_roster_free_and_lookups_accept_null(void **state)
+{
+    (void)state;
+    keel_roster_free(NULL);
+    assert_int_equal(keel_roster_find_nurse(NULL, "N1"), -1);
+    assert_int_equal(keel_roster_acuity_minutes(NULL, 1), KEEL_ABSENT);
+    assert_int_equal(keel_roster_extra_minutes(NULL, "admission"), KEEL_ABSENT);
+}
+
+static int compare_names(const void *a, const void *b)
+{
+    return strcmp(*(char *const *)a, *(char *const *)b);
+}
+
+/* The file names of the golden cases (<case>.yaml), sorted; caller frees. */
+static size_t list_cases(const char *dir, char ***names)
+{
+    DIR *d = opendir(dir);
+    size_t n = 0;
+    *names = NULL;
+    assert_non_null(d);
+    for (struct dirent *e; (e = readdir(d)) != NULL;) {
+        size_t len = strlen(e->d_name);
+        if (len < 6 || strcmp(e->d_name + len - 5, ".yaml") != 0)
+            continue;
+        *names = realloc(*names, (n + 1) * sizeof **names);
+        assert_non_null(*names);
+        (*names)[n] = strdup(e->d_name);
+        assert_non_null((*names)[n++]);
+    }
+    closedir(d);
+    qsort(*names, n, sizeof **names, compare_names);
+    return n;
+}
+
+/* Loads one golden case from the current directory and compares every
+ * formatted problem with <case>.expected; true when they match. */
+static bool check_golden_case(const char *name)
+{
+    char expected_name[512], line[1024];
+    keel_error err;
+    keel_roster *r = (keel_roster *)1;
+    size_t actual_len = 0, actual_size = 4096;
+    char *actual = calloc(1, actual_size);
+    assert_non_null(actual);
+    snprintf(expected_name, sizeof expected_name, "%.*s.expected", (int)(strlen(name) - 5), name);
+    char *expected = read_text(expected_name);
+
+    keel_error_init(&err);
+    keel_status rc = keel_roster_load(name, &r, &err);
+    for (size_t i = 0; i < err.nproblems; i++) {
+        int len = keel_problem_format(&err.problems[i], line, sizeof line);
+        while (actual_len + (size_t)len + 2 > actual_size) {
+            actual = realloc(actual, actual_size *= 2);
+            assert_non_null(actual);
+        }
+        snprintf(actual + actual_len, actual_size - actual_len, "%s\n", line);
+        actual_len += (size_t)len + 1;
+    }
+    bool ok = rc == KEEL_ERR_INPUT && r == NULL && err.nproblems > 0 &&
+              strcmp(actual, expected) == 0;
+    if (!ok)
+        print_message("golden case %s (status %d):\n--- expected\n%s--- actual\n%s", name, rc,
+                      expected, actual);
+    keel_error_fini(&err);
+    free(expected);
+    free(actual);
+    return ok;
+}
+
+static void test_roster_matches_the_golden_bad_inputs(void **state)
+{
+    char dir[1024];
+    char **names;
+    size_t failures = 0;
+    (void)state;
+    snprintf(dir, sizeof dir, "%s/bad", data_dir);
+    size_t n = list_cases(dir, &names);
+    assert_true(n >= 12);
+    int here = open(".", O_RDONLY);
+    assert_true(here >= 0);
+    assert_int_equal(chdir(dir), 0);
+    for (size_t i = 0; i < n; i++) {
+        failures += !check_golden_case(names[i]);
+        free(names[i]);
+    }
+    free(names);
+    assert_int_equal(fchdir(here), 0);
+    close(here);
+    assert_int_equal(failures, 0);
+}
+
+static void test_roster_loads_the_example_rosters(void **state)
+{
+    static const char *const names[] = {"medsurg-day.yaml", "icu-night.yaml"};
+    (void)state;
+    for (size_t i = 0; i < sizeof names / sizeof names[0]; i++) {
+        char path[1024];
+        keel_error err;
+        keel_roster *r = NULL;
+        snprintf(path, sizeof path, "%s/%s", examples_dir, names[i]);
+        keel_error_init(&err);
+        keel_status rc = keel_roster_load(path, &r, &err);
+        for (size_t k = 0; k < err.nproblems; k++)
+            print_message("%s\n", problem_text(&err, k));
+        assert_int_equal(rc, KEEL_OK);
+        assert_true(r->nnurses >= 6 && r->nnurses <= 7);
+        assert_int_equal(r->shift.minutes, 720);
+        for (size_t p = 0; p < r->npatients; p++) {
+            int care = r->patients[p].acuity == KEEL_ABSENT
+                           ? r->patients[p].care_minutes
+                           : keel_roster_acuity_minutes(r, r->patients[p].acuity);
+            assert_true(care >= 0);
+        }
+        keel_roster_free(r);
+        keel_error_fini(&err);
+    }
+}
+
+/* Fails the 1st, 2nd, ... allocation of one load until the load no longer
+ * allocates that many times, when it must end with status last.  Every run
+ * with a failed allocation must return KEEL_ERR_NOMEM, record it as its last
+ * problem, give no roster and (checked by the sanitizers) leak nothing. */
+static void run_with_failing_allocations(keel_status (*load)(keel_roster **, keel_error *),
+                                         keel_status last)
+{
+    long n;
+    for (n = 1; n < 100000; n++) {
+        keel_error err;
+        keel_roster *r = (keel_roster *)1;
+        keel_error_init(&err);
+        keel_alloc_fail_at(n);
+        keel_status rc = load(&r, &err);
+        long made = keel_alloc_fail_at(0);
+        if (made < n) {
+            assert_int_equal(rc, last);
+            assert_true((r != NULL) == (last == KEEL_OK));
+            keel_roster_free(r);
+            keel_error_fini(&err);
+            break;
+        }
+        if (rc != KEEL_ERR_NOMEM)
+            print_message("allocation %ld failed but the load returned %d\n", n, rc);
+        assert_int_equal(rc, KEEL_ERR_NOMEM);
+        assert_null(r);
+        assert_true(err.status == KEEL_ERR_NOMEM || err.status == KEEL_ERR_INPUT);
+        assert_true(err.nproblems > 0);
+        assert_string_equal(err.problems[err.nproblems - 1].message, "out of memory");
+        keel_error_fini(&err);
+    }
+    assert_true(n > 20);
+}
+
+static keel_status load_issue_example(keel_roster **out, keel_error *err)
+{
+    return keel_roster_parse("roster.yaml", issue_example, strlen(issue_example), out, err);
+}
+
+static keel_status load_medsurg_example(keel_roster **out, keel_error *err)
+{
+    char path[1024];
+    snprintf(path, sizeof path, "%s/medsurg-day.yaml", examples_dir);
+    return keel_roster_load(path, out, err);
+}
+
+static keel_status load_many_problems(keel_roster **out, keel_error *err)
+{
+    char path[1024];
+    snprintf(path, sizeof path, "%s/bad/many-problems.yaml", data_dir);
+    return keel_roster_load(path, out, err);
+}
+
+static void test_roster_fails_cleanly_when_any_allocation_fails(void **state)
+{
+    (void)state;
+    run_with_failing_allocations(load_issue_example, KEEL_OK);
+    run_with_failing_allocations(load_medsurg_example, KEEL_OK);
+    run_with_failing_allocations(load_many_problems, KEEL_ERR_INPUT);
+}
+
+int main(int argc, char **argv)
+{
+    if (argc > 1)
+        data_dir = argv[1];
+    else if (getenv("KEEL_TEST_DATA"))
+        data_dir = getenv("KEEL_TEST_DATA");
+    if (argc > 2)
+        examples_dir = argv[2];
+    else if (getenv("KEEL_TEST_EXAMPLES"))
+        examples_dir = getenv("KEEL_TEST_EXAMPLES");
+
+    const struct CMUnitTest tests[] = {
+        cmocka_unit_test(test_roster_loads_the_issue_example),
+        cmocka_unit_test(test_roster_leaves_unset_fields_absent),
+        cmocka_unit_test(test_roster_accepts_unquoted_times),
+        cmocka_unit_test(test_roster_rejects_times_and_dates_that_do_not_exist),
+        cmocka_unit_test(test_roster_keeps_numeric_ids_as_text),
+        cmocka_unit_test(test_roster_stores_acuity_levels_sorted),
+        cmocka_unit_test(test_roster_reports_every_problem_in_a_file),
+        cmocka_unit_test(test_roster_suggests_the_nearest_key_only_when_close),
+        cmocka_unit_test(test_roster_expects_integers_without_quotes),
+        cmocka_unit_test(test_roster_enforces_the_documented_ranges),
+        cmocka_unit_test(test_roster_reports_a_file_that_cannot_be_opened),
+        cmocka_unit_test(test_roster_free_and_lookups_accept_null),
+        cmocka_unit_test(test_roster_matches_the_golden_bad_inputs),
+        cmocka_unit_test(test_roster_loads_the_example_rosters),
+        cmocka_unit_test(test_roster_fails_cleanly_when_any_allocation_fails),
+    };
+    return cmocka_run_group_tests_name("roster", tests, NULL, NULL);
+}

@@ -1,0 +1,401 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * test_solve.c - the solver against things no one here wrote: Graham's
+ * worst case for LPT, and exhaustive enumeration of every assignment on
+ * small random rosters.
+ */
+#include <setjmp.h>
+#include <stdarg.h>
+#include <stddef.h>
+
+#include <cmocka.h>
+
+#include "solve_internal.h"
+#include "testutil.h"
+
+static keel_solution *solve(tu_case *c, const char *method)
+{
+    keel_solve_options opt = {.method = method, .time_limit_ms = 20000};
+    keel_solution *s = NULL;
+    keel_error err;
+    keel_error_init(&err);
+    assert_int_equal(keel_solve(&c->roster, &c->w, &opt, &s, &err), KEEL_OK);
+    keel_error_fini(&err);
+    return s;
+}
+
+/* Graham's family: m identical machines, 2m+1 jobs 2m-1, 2m-1, 2m-2, 2m-2,
+ * ..., m+1, m+1, m, m, m.  The optimum makespan is 3m; LPT gives 4m-1,
+ * exactly (4/3 - 1/(3m)) times the optimum.
+ * Source: R. L. Graham, "Bounds on multiprocessing timing anomalies",
+ * SIAM J. Appl. Math. 17(2), 1969 (the tight example for LPT). */
+static tu_case *graham_case(int m)
+{
+    tu_case *c = tu_case_new((size_t)m, (size_t)(2 * m + 1));
+    size_t p = 0;
+    for (int len = 2 * m - 1; len > m; len--) {
+        c->w.care_minutes[p++] = len;
+        c->w.care_minutes[p++] = len;
+    }
+    c->w.care_minutes[p++] = m;
+    c->w.care_minutes[p++] = m;
+    c->w.care_minutes[p++] = m;
+    for (int n = 0; n < m; n++)
+        c->w.capacity_minutes[n] = 1000;
+    return c;
+}
+
+static void test_plain_lpt_hits_grahams_worst_case(void **state)
+{
+    (void)state;
+    for (int m = 2; m <= 6; m++) {
+        tu_case *c = graham_case(m);
+        int *nurse_of = calloc(c->w.npatients, sizeof *nurse_of);
+        assert_true(keel_greedy_place(&c->w, nurse_of));
+        keel_ratio peak = keel_solve_peak(&c->w, nurse_of);
+        assert_int_equal(peak.num, 4 * m - 1);
+        free(nurse_of);
+        tu_case_free(c);
+    }
+}
+
+static void test_ilp_reaches_grahams_optimum(void **state)
+{
+    (void)state;
+    for (int m = 2; m <= 6; m++) {
+        tu_case *c = graham_case(m);
+        keel_solution *s = solve(c, "ilp");
+        assert_int_equal(s->status, KEEL_SOLVE_OPTIMAL);
+        keel_ratio peak = keel_solve_peak(&c->w, s->nurse_of);
+        assert_int_equal(peak.num, 3 * m);
+        assert_int_equal(peak.den, 1000);
+        keel_solution_free(s);
+        tu_case_free(c);
+    }
+}
+
+static void test_greedy_is_never_worse_than_the_lpt_bound(void **state)
+{
+    (void)state;
+    uint64_t seed = 17;
+    for (int round = 0; round < 60; round++) {
+        int m = tu_range(&seed, 2, 6);
+        int jobs = tu_range(&seed, m + 1, 3 * m + 2);
+        tu_case *c = tu_case_new((size_t)m, (size_t)jobs);
+        for (int p = 0; p < jobs; p++)
+            c->w.care_minutes[p] = tu_range(&seed, 10, 400);
+        keel_solution *g = solve(c, "greedy");
+        keel_solution *x = solve(c, "ilp");
+        assert_int_equal(x->status, KEEL_SOLVE_OPTIMAL);
+        double greedy = keel_ratio_value(keel_solve_peak(&c->w, g->nurse_of));
+        double best = keel_ratio_value(keel_solve_peak(&c->w, x->nurse_of));
+        /* Source: Graham 1969, LPT <= (4/3 - 1/(3m)) OPT on identical machines. */
+        assert_true(greedy <= (4.0 / 3.0 - 1.0 / (3.0 * m)) * best + 1e-12);
+        assert_true(best <= greedy + 1e-12);
+        keel_solution_free(g);
+        keel_solution_free(x);
+        tu_case_free(c);
+    }
+}
+
+/* ---- Exhaustive enumeration ------------------------------------------------ */
+
+typedef struct enumeration {
+    const keel_workload *w;
+    int *nurse_of;
+    int *count;
+    long long *load;
+    bool found;
+    keel_ratio best_peak;
+    keel_ratio best_lift;
+} enumeration;
+
+static void visit(enumeration *e, size_t p)
+{
+    const keel_workload *w = e->w;
+    if (p == w->npatients) {
+        keel_ratio peak = {0, 1}, lift = {0, 1};
+        bool any = false;
+        for (size_t n = 0; n < w->nnurses; n++) {
+            if (w->max_patients[n] <= 0)
+                continue;
+            keel_ratio u = {e->load[n], w->capacity_minutes[n]};
+            if (!any || keel_ratio_cmp(u, peak) > 0)
+                peak = u;
+            if (!any || keel_ratio_cmp(u, lift) < 0)
+                lift = u;
+            any = true;
+        }
+        int by_peak = e->found ? keel_ratio_cmp(peak, e->best_peak) : -1;
+        if (by_peak < 0 || (by_peak == 0 && keel_ratio_cmp(lift, e->best_lift) > 0)) {
+            e->best_peak = peak;
+            e->best_lift = lift;
+        }
+        e->found = true;
+        return;
+    }
+    for (size_t n = 0; n < w->nnurses; n++) {
+        if (!keel_workload_eligible(w, p, n) || e->count[n] >= w->max_patients[n])
+            continue;
+        e->count[n]++;
+        e->load[n] += w->care_minutes[p];
+        visit(e, p + 1);
+        e->count[n]--;
+        e->load[n] -= w->care_minutes[p];
+    }
+}
+
+static tu_case *random_small_case(uint64_t *seed)
+{
+    static const char *skills[] = {"tele", "chemo"};
+    size_t nn = (size_t)tu_range(seed, 1, 4), np = (size_t)tu_range(seed, 0, 9);
+    tu_case *c = tu_case_new(nn, np);
+    for (size_t n = 0; n < nn; n++) {
+        c->w.capacity_minutes[n] = tu_range(seed, 0, 2) == 0 ? 420 : 660;
+        c->w.duty_minutes[n] = tu_range(seed, 0, 3) == 0 ? tu_range(seed, 1, 12) * 10 : 0;
+        int kind = tu_range(seed, 0, 9);
+        c->w.max_patients[n] = kind < 3 ? (int)np : kind == 9 ? 0 : tu_range(seed, 1, 4);
+        for (size_t k = 0; k < 2; k++)
+            if (tu_range(seed, 0, 9) < 6)
+                tu_add_skill(c, n, skills[k]);
+    }
+    for (size_t p = 0; p < np; p++) {
+        c->w.care_minutes[p] = tu_range(seed, 0, 1) ? tu_range(seed, 1, 14) * 30
+                                                    : tu_range(seed, 20, 400);
+        for (size_t k = 0; k < 2; k++)
+            if (tu_range(seed, 0, 9) < 2)
+                tu_add_need(c, p, skills[k]);
+    }
+    tu_refresh(c);
+    return c;
+}
+
+static void test_ilp_matches_exhaustive_enumeration_on_small_rosters(void **state)
+{
+    (void)state;
+    uint64_t seed = 2026;
+    int feasible = 0;
+    for (int round = 0; round < 1000; round++) {
+        tu_case *c = random_small_case(&seed);
+        enumeration e = {.w = &c->w};
+        e.count = calloc(c->w.nnurses, sizeof *e.count);
+        e.load = calloc(c->w.nnurses, sizeof *e.load);
+        for (size_t n = 0; n < c->w.nnurses; n++)
+            e.load[n] = c->w.duty_minutes[n];
+        visit(&e, 0);
+        keel_solution *s = solve(c, "ilp");
+        if (!e.found) {
+            assert_int_equal(s->status, KEEL_SOLVE_INFEASIBLE);
+            assert_true(s->diagnoses.n > 0);
+        } else {
+            feasible++;
+            assert_int_equal(s->status, KEEL_SOLVE_OPTIMAL);
+            assert_int_equal(s->diagnoses.n, 0);
+            assert_int_equal(keel_ratio_cmp(keel_solve_peak(&c->w, s->nurse_of), e.best_peak), 0);
+            assert_int_equal(keel_ratio_cmp(keel_solve_lift(&c->w, s->nurse_of), e.best_lift), 0);
+            assert_true(s->stages[0].value == keel_ratio_value(e.best_peak));
+            assert_true(s->stages[0].bound == s->stages[0].value);
+            assert_true(s->stages[1].value == keel_ratio_value(e.best_lift));
+            /* Every patient once, eligible, limits kept. */
+            int *count = calloc(c->w.nnurses, sizeof *count);
+            for (size_t p = 0; p < c->w.npatients; p++) {
+                int n = s->nurse_of[p];
+                assert_true(n >= 0 && keel_workload_eligible(&c->w, p, (size_t)n));
+                count[n]++;
+            }
+            for (size_t n = 0; n < c->w.nnurses; n++)
+                assert_true(count[n] <= c->w.max_patients[n]);
+            free(count);
+        }
+        keel_solution_free(s);
+        free(e.count);
+        free(e.load);
+        tu_case_free(c);
+    }
+    /* The generator must exercise both outcomes, mostly feasible ones. */
+    print_message("%d of 1000 small rosters feasible\n", feasible);
+    assert_true(feasible >= 600);
+    assert_true(feasible < 1000);
+}
+
+/* ---- The two answerers of one question ------------------------------------- */
+
+/* Checks that nurse_of answers the window question: every patient one
+ * eligible nurse, limits kept, each counted nurse's care inside its window. */
+static void assert_fits(const keel_workload *w, const int *nurse_of, const long long *lo,
+                        const long long *hi)
+{
+    long long care[8] = {0};
+    int count[8] = {0};
+    for (size_t p = 0; p < w->npatients; p++) {
+        int n = nurse_of[p];
+        assert_true(n >= 0 && keel_workload_eligible(w, p, (size_t)n));
+        care[n] += w->care_minutes[p];
+        count[n]++;
+    }
+    for (size_t n = 0; n < w->nnurses; n++) {
+        assert_true(count[n] <= w->max_patients[n]);
+        if (keel_workload_counted(w, n))
+            assert_true(care[n] >= lo[n] && care[n] <= hi[n]);
+    }
+}
+
+/* The two answerers must agree; the dedicated search is exhaustive on these
+ * sizes.  This test caught GLPK 5.0's MIP preprocessor accepting a point
+ * outside a double-bounded row (one patient of 158 minutes, windows 45..148
+ * and 0..183), which is why solve_ilp.c runs without it. */
+static void test_glpk_and_the_dedicated_search_agree_on_every_question(void **state)
+{
+    (void)state;
+    uint64_t seed = 99;
+    int yes = 0, no = 0;
+    for (int round = 0; round < 400; round++) {
+        tu_case *c = random_small_case(&seed);
+        long long lo[8], hi[8], total = 0;
+        for (size_t p = 0; p < c->w.npatients; p++)
+            total += c->w.care_minutes[p];
+        long long share = c->w.nnurses ? total / (long long)c->w.nnurses : 0;
+        for (size_t n = 0; n < c->w.nnurses; n++) {
+            /* Windows around an even share, some tight, some loose. */
+            lo[n] = tu_range(&seed, 0, 1) ? share - tu_range(&seed, 0, (int)share + 1) : 0;
+            lo[n] = lo[n] < 0 ? 0 : lo[n];
+            hi[n] = share + tu_range(&seed, 0, (int)share + 60);
+        }
+        int *a = calloc(c->w.npatients + 1, sizeof *a), *b = calloc(c->w.npatients + 1, sizeof *b);
+        keel_ilp_answer by_search, by_glpk;
+        assert_int_equal(keel_fit_search(&c->w, lo, hi, 100000000L, a, &by_search), KEEL_OK);
+        assert_int_equal(keel_ilp_fit(&c->w, lo, hi, 60000, b, &by_glpk, NULL), KEEL_OK);
+        assert_int_not_equal(by_search, KEEL_ILP_UNKNOWN);
+        assert_int_equal(by_search, by_glpk);
+        if (by_glpk == KEEL_ILP_FEASIBLE) {
+            assert_fits(&c->w, a, lo, hi);
+            assert_fits(&c->w, b, lo, hi);
+            yes++;
+        } else {
+            no++;
+        }
+        free(a);
+        free(b);
+        tu_case_free(c);
+    }
+    /* Both answers must be exercised. */
+    assert_true(yes >= 50);
+    assert_true(no >= 50);
+}
+
+/* ---- Diagnoses ------------------------------------------------------------- */
+
+static void test_diagnosis_names_a_skill_nobody_has(void **state)
+{
+    (void)state;
+    tu_case *c = tu_case_new(3, 5);
+    for (size_t p = 0; p < 5; p++)
+        c->w.care_minutes[p] = 120;
+    tu_add_need(c, 1, "chemo");
+    tu_add_need(c, 3, "chemo");
+    tu_add_skill(c, 0, "tele");
+    tu_refresh(c);
+    keel_solution *s = solve(c, "ilp");
+    assert_int_equal(s->status, KEEL_SOLVE_INFEASIBLE);
+    assert_int_equal(s->diagnoses.n, 1);
+    assert_string_equal(s->diagnoses.items[0].rule, "skill");
+    assert_int_equal(s->diagnoses.items[0].npatients, 2);
+    assert_non_null(strstr(s->diagnoses.items[0].message, "2 patients (P2 and P4) need chemo"));
+    assert_non_null(strstr(s->diagnoses.items[0].message, "no nurse on shift"));
+    keel_solution_free(s);
+    tu_case_free(c);
+}
+
+static void test_diagnosis_counts_the_places_a_skill_group_lacks(void **state)
+{
+    (void)state;
+    tu_case *c = tu_case_new(3, 6);
+    for (size_t p = 0; p < 6; p++)
+        c->w.care_minutes[p] = 120;
+    for (size_t p = 0; p < 3; p++)
+        tu_add_need(c, p, "chemo");
+    tu_add_skill(c, 2, "chemo");
+    c->w.max_patients[2] = 2;
+    tu_refresh(c);
+    keel_solution *s = solve(c, "ilp");
+    assert_int_equal(s->status, KEEL_SOLVE_INFEASIBLE);
+    assert_int_equal(s->diagnoses.n, 1);
+    assert_string_equal(s->diagnoses.items[0].rule, "patient_limit");
+    assert_int_equal(s->diagnoses.items[0].nnurses, 1);
+    assert_int_equal(s->diagnoses.items[0].nurses[0], 2);
+    assert_int_equal(s->diagnoses.items[0].npatients, 3);
+    assert_non_null(strstr(s->diagnoses.items[0].message, "1 more place is needed"));
+    keel_solution_free(s);
+    tu_case_free(c);
+}
+
+static void test_diagnosis_says_when_the_census_exceeds_every_limit(void **state)
+{
+    (void)state;
+    tu_case *c = tu_case_new(2, 7);
+    for (size_t n = 0; n < 2; n++)
+        c->w.max_patients[n] = 3;
+    tu_refresh(c);
+    keel_solution *s = solve(c, "greedy");
+    assert_int_equal(s->status, KEEL_SOLVE_INFEASIBLE);
+    assert_int_equal(s->diagnoses.n, 1);
+    assert_string_equal(s->diagnoses.items[0].rule, "patient_limit");
+    assert_non_null(strstr(s->diagnoses.items[0].message, "may take 6 in all"));
+    keel_solution_free(s);
+    tu_case_free(c);
+}
+
+static void test_greedy_recovers_when_placement_gets_stuck_on_limits(void **state)
+{
+    (void)state;
+    /* The heaviest patient lands on the only nurse the chemo patient can
+     * have; placement alone would leave the chemo patient without a nurse. */
+    tu_case *c = tu_case_new(2, 2);
+    c->w.care_minutes[0] = 300;
+    c->w.care_minutes[1] = 100;
+    c->w.max_patients[0] = 1;
+    c->w.max_patients[1] = 1;
+    c->w.capacity_minutes[0] = 700;
+    tu_add_skill(c, 0, "chemo");
+    tu_add_need(c, 1, "chemo");
+    tu_refresh(c);
+    int nurse_of[2];
+    assert_false(keel_greedy_place(&c->w, nurse_of));
+    keel_solution *s = solve(c, "greedy");
+    assert_int_equal(s->nurse_of[0], 1);
+    assert_int_equal(s->nurse_of[1], 0);
+    keel_solution_free(s);
+    tu_case_free(c);
+}
+
+static void test_unknown_method_is_a_usage_error(void **state)
+{
+    (void)state;
+    tu_case *c = tu_case_new(1, 1);
+    keel_solve_options opt = {.method = "magic"};
+    keel_solution *s = NULL;
+    keel_error err;
+    keel_error_init(&err);
+    assert_int_equal(keel_solve(&c->roster, &c->w, &opt, &s, &err), KEEL_ERR_USAGE);
+    assert_null(s);
+    assert_int_equal(err.nproblems, 1);
+    keel_error_fini(&err);
+    tu_case_free(c);
+}
+
+int main(void)
+{
+    const struct CMUnitTest tests[] = {
+        cmocka_unit_test(test_plain_lpt_hits_grahams_worst_case),
+        cmocka_unit_test(test_ilp_reaches_grahams_optimum),
+        cmocka_unit_test(test_greedy_is_never_worse_than_the_lpt_bound),
+        cmocka_unit_test(test_ilp_matches_exhaustive_enumeration_on_small_rosters),
+        cmocka_unit_test(test_glpk_and_the_dedicated_search_agree_on_every_question),
+        cmocka_unit_test(test_diagnosis_names_a_skill_nobody_has),
+        cmocka_unit_test(test_diagnosis_counts_the_places_a_skill_group_lacks),
+        cmocka_unit_test(test_diagnosis_says_when_the_census_exceeds_every_limit),
+        cmocka_unit_test(test_greedy_recovers_when_placement_gets_stuck_on_limits),
+        cmocka_unit_test(test_unknown_method_is_a_usage_error),
+    };
+    return cmocka_run_group_tests_name("solve", tests, NULL, NULL);
+}
