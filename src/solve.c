@@ -75,24 +75,23 @@ void keel_solve_loads(const keel_workload *w, const int *nurse_of, long long *lo
             load[nurse_of[p]] += w->care_minutes[p];
 }
 
-/* Heaviest (sign 1) or lightest (sign -1) utilisation of the counted nurses. */
+/* Heaviest (sign 1) or lightest (sign -1) utilisation of the counted nurses.
+ * Sums each nurse's patients in turn so that it needs no memory. */
 static keel_ratio extreme(const keel_workload *w, const int *nurse_of, int sign)
 {
     keel_ratio best = {0, 1};
     bool any = false;
-    long long *load = keel_calloc(w->nnurses, sizeof *load);
-    if (!load)
-        return best; /* callers hold a valid assignment; see keel_solve_peak() */
-    keel_solve_loads(w, nurse_of, load);
     for (size_t n = 0; n < w->nnurses; n++) {
         if (!keel_workload_counted(w, n))
             continue;
-        keel_ratio u = {load[n], w->capacity_minutes[n]};
+        keel_ratio u = {w->duty_minutes[n], w->capacity_minutes[n]};
+        for (size_t p = 0; p < w->npatients; p++)
+            if (nurse_of[p] == (int)n)
+                u.num += w->care_minutes[p];
         if (!any || keel_ratio_cmp(u, best) * sign > 0)
             best = u;
         any = true;
     }
-    free(load);
     return best;
 }
 
@@ -226,10 +225,13 @@ keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }
-    if (keel_greedy_place(w, greedy))
+    bool placed_all = false;
+    rc = keel_greedy_place(w, greedy, &placed_all);
+    if (!rc && placed_all)
         memcpy(s->nurse_of, greedy, w->npatients * sizeof *greedy);
     free(greedy);
-    rc = keel_greedy_improve(w, s->nurse_of);
+    if (!rc)
+        rc = keel_greedy_improve(w, s->nurse_of);
     if (rc) {
         keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
         goto out;

@@ -27,15 +27,17 @@ static int heavier_first(const void *a, const void *b)
     return (i > j) - (i < j);
 }
 
-bool keel_greedy_place(const keel_workload *w, int *nurse_of)
+keel_status keel_greedy_place(const keel_workload *w, int *nurse_of, bool *placed_all)
 {
     size_t np = w->npatients, nn = w->nnurses;
     size_t *order = keel_malloc((np ? np : 1) * sizeof *order);
     long long *load = keel_calloc(nn, sizeof *load);
     int *count = keel_calloc(nn, sizeof *count);
-    bool placed_all = order && load && count;
-    if (!placed_all)
+    keel_status rc = order && load && count ? KEEL_OK : KEEL_ERR_NOMEM;
+    *placed_all = false;
+    if (rc)
         goto out;
+    *placed_all = true;
     for (size_t p = 0; p < np; p++) {
         order[p] = p;
         nurse_of[p] = -1;
@@ -58,7 +60,7 @@ bool keel_greedy_place(const keel_workload *w, int *nurse_of)
             }
         }
         if (best < 0) {
-            placed_all = false;
+            *placed_all = false;
             continue;
         }
         nurse_of[p] = best;
@@ -69,7 +71,7 @@ out:
     free(order);
     free(load);
     free(count);
-    return placed_all;
+    return rc;
 }
 
 static keel_ratio worse(keel_ratio a, keel_ratio b)

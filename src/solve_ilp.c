@@ -223,28 +223,27 @@ static int build_and_solve(const keel_workload *w, const long long *lo, const lo
 }
 
 /* Checks an answer before anyone relies on it: every patient one eligible
- * nurse, limits kept, each counted nurse's care inside its window.  scratch
- * holds nnurses ints. */
+ * nurse, limits kept, each counted nurse's care inside its window. */
 static bool fits(const keel_workload *w, const long long *lo, const long long *hi,
-                 const int *nurse_of, int *scratch)
+                 const int *nurse_of)
 {
-    long long *care = keel_calloc(w->nnurses, sizeof *care);
-    bool ok = care != NULL;
-    for (size_t n = 0; n < w->nnurses; n++)
-        scratch[n] = 0;
-    for (size_t p = 0; ok && p < w->npatients; p++) {
-        int n = nurse_of[p];
-        ok = n >= 0 && keel_workload_eligible(w, p, (size_t)n);
-        if (ok) {
-            care[n] += w->care_minutes[p];
-            scratch[n]++;
+    for (size_t p = 0; p < w->npatients; p++)
+        if (nurse_of[p] < 0 || !keel_workload_eligible(w, p, (size_t)nurse_of[p]))
+            return false;
+    for (size_t n = 0; n < w->nnurses; n++) {
+        long long care = 0;
+        int count = 0;
+        for (size_t p = 0; p < w->npatients; p++) {
+            if (nurse_of[p] == (int)n) {
+                care += w->care_minutes[p];
+                count++;
+            }
         }
+        if (count > w->max_patients[n] ||
+            (keel_workload_counted(w, n) && (care < lo[n] || care > hi[n])))
+            return false;
     }
-    for (size_t n = 0; ok && n < w->nnurses; n++)
-        ok = scratch[n] <= w->max_patients[n] &&
-             (!keel_workload_counted(w, n) || (care[n] >= lo[n] && care[n] <= hi[n]));
-    free(care);
-    return ok;
+    return true;
 }
 
 keel_status keel_ilp_fit(const keel_workload *w, const long long *lo, const long long *hi,
@@ -288,7 +287,7 @@ keel_status keel_ilp_fit(const keel_workload *w, const long long *lo, const long
     if (ret)
         rc = keel_error_add(err, KEEL_ERR_SOLVER, NULL, 0, 0, NULL,
                             "the integer programming solver (GLPK) stopped with code %d", ret);
-    else if (*answer == KEEL_ILP_FEASIBLE && !fits(w, lo, hi, nurse_of, m.count_row))
+    else if (*answer == KEEL_ILP_FEASIBLE && !fits(w, lo, hi, nurse_of))
         rc = keel_error_add(err, KEEL_ERR_SOLVER, NULL, 0, 0, NULL,
                             "the integer programming solver (GLPK) returned an assignment "
                             "that breaks its own constraints");

@@ -67,9 +67,9 @@ keel_status keel_diagnose(const keel_roster *r, const keel_workload *w, int *nur
 
 /* solve_greedy.c: heaviest patient first to the eligible nurse with room
  * whose utilisation after taking it is lowest (Graham's LPT rule in
- * utilisation).  Returns false when some patient found no nurse with room
- * (nurse_of is then partial). */
-bool keel_greedy_place(const keel_workload *w, int *nurse_of);
+ * utilisation).  *placed_all is false when some patient found no nurse with
+ * room (nurse_of is then partial).  Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
+keel_status keel_greedy_place(const keel_workload *w, int *nurse_of, bool *placed_all);
 
 /* solve_greedy.c: improving moves and swaps between pairs of nurses until
  * none lowers the heavier utilisation of the pair.  Keeps every rule.

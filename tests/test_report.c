@@ -10,6 +10,7 @@
 
 #include <cmocka.h>
 
+#include "alloc.h"
 #include "testutil.h"
 
 static const char *examples = "examples";
@@ -172,6 +173,61 @@ static void test_unknown_format_is_a_usage_error(void **state)
     run_fini(&r);
 }
 
+/* Runs the whole pipeline once; returns the first status that is not OK. */
+static keel_status run_pipeline(const char *path)
+{
+    keel_roster *roster = NULL;
+    keel_workload *w = NULL;
+    keel_solution *s = NULL;
+    keel_metrics *m = NULL;
+    keel_error err;
+    keel_error_init(&err);
+    keel_solve_options opt = {.time_limit_ms = 20000};
+    keel_status rc = keel_roster_load(path, &roster, &err);
+    if (!rc)
+        rc = keel_workload_compute(roster, &w, &err);
+    if (!rc)
+        rc = keel_solve(roster, w, &opt, &s, &err);
+    if (!rc)
+        rc = keel_metrics_compute(w, s->nurse_of, &m, &err);
+    if (!rc) {
+        keel_report rep = {.kind = KEEL_REPORT_ASSIGN, .roster = roster, .workload = w,
+                           .nurse_of = s->nurse_of, .metrics = m, .solution = s};
+        char *buf = NULL;
+        size_t len = 0;
+        FILE *out = open_memstream(&buf, &len);
+        assert_non_null(out);
+        rc = keel_report_write("json", &rep, out, &err);
+        fclose(out);
+        free(buf);
+    }
+    if (rc)
+        assert_true(err.status != KEEL_OK);
+    keel_metrics_free(m);
+    keel_solution_free(s);
+    keel_workload_free(w);
+    keel_roster_free(roster);
+    keel_error_fini(&err);
+    return rc;
+}
+
+static void test_every_failed_allocation_ends_in_a_clean_error(void **state)
+{
+    (void)state;
+    char path[1024];
+    snprintf(path, sizeof path, "%s/medsurg-day.yaml", examples);
+    for (long n = 1;; n++) {
+        keel_alloc_fail_at(n);
+        keel_status rc = run_pipeline(path);
+        long made = keel_alloc_fail_at(0);
+        if (made < n) {
+            assert_int_equal(rc, KEEL_OK); /* no failure was injected */
+            break;
+        }
+        assert_int_equal(rc, KEEL_ERR_NOMEM);
+    }
+}
+
 int main(int argc, char **argv)
 {
     if (argc > 1)
@@ -181,6 +237,7 @@ int main(int argc, char **argv)
         cmocka_unit_test(test_json_report_carries_the_contract_fields),
         cmocka_unit_test(test_text_report_ends_with_the_caution),
         cmocka_unit_test(test_unknown_format_is_a_usage_error),
+        cmocka_unit_test(test_every_failed_allocation_ends_in_a_clean_error),
     };
     return cmocka_run_group_tests_name("report", tests, NULL, NULL);
 }
