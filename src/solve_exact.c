@@ -161,8 +161,35 @@ static size_t first_at_least(const search *S, keel_ratio t)
     return a;
 }
 
+/* True when the patients whose eligible nurses all lie within the eligible
+ * nurses of some patient q need more care than those nurses' windows hold
+ * (a competency group that cannot fit: no assignment exists). */
+static bool group_overflows(const search *S)
+{
+    const keel_workload *w = S->w;
+    size_t np = w->npatients, nn = w->nnurses;
+    for (size_t q = 0; q < np; q++) {
+        const bool *set = &w->eligible[q * nn];
+        long long room = 0, need = 0;
+        for (size_t n = 0; n < nn; n++)
+            if (set[n])
+                room += S->hi[n];
+        for (size_t p = 0; p < np; p++) {
+            bool inside = true;
+            for (size_t n = 0; n < nn && inside; n++)
+                inside = !w->eligible[p * nn + n] || set[n];
+            if (inside)
+                need += w->care_minutes[p];
+        }
+        if (need > room)
+            return true;
+    }
+    return false;
+}
+
 /* Asks whether an assignment fits the windows S->lo..S->hi, answering by
- * the cheap sums, the dedicated search or GLPK, in that order. */
+ * the cheap sums, the competency groups, the dedicated search or GLPK, in
+ * that order. */
 static keel_status ask(search *S, long long deadline_ms, keel_ilp_answer *answer,
                        keel_error *err)
 {
@@ -178,7 +205,7 @@ static keel_status ask(search *S, long long deadline_ms, keel_ilp_answer *answer
         low += S->lo[n];
         high += S->hi[n];
     }
-    if (S->care_total < low || S->care_total > high) {
+    if (S->care_total < low || S->care_total > high || group_overflows(S)) {
         *answer = KEEL_ILP_INFEASIBLE;
         return KEEL_OK;
     }
