@@ -87,8 +87,8 @@ static void write_proof(FILE *out, const keel_solution *s)
     fprintf(out, "Status: %s (method %s, %.2f s)\n", keel_solve_status_name(s->status), s->method,
             s->seconds);
     if (s->nstages >= 2) {
-        write_stage(out, &s->stages[0], "heaviest", "no valid assignment is lighter than");
-        write_stage(out, &s->stages[1], "lightest", "none lifts the lightest above");
+        write_stage(out, &s->stages[0], "heaviest", "the best possible is at least");
+        write_stage(out, &s->stages[1], "lightest", "the best possible is at most");
     }
     if (s->status == KEEL_SOLVE_TIME_LIMIT)
         fputs("  The time limit ended the search: this plan is valid but not proven the most "
@@ -101,8 +101,14 @@ static void write_staffing(FILE *out, const keel_metrics *m)
 {
     fprintf(out, "Staffing\n  care %ld min + duty %ld min against %ld min of nurse time: %.1f %%\n",
             m->care_minutes, m->duty_minutes, m->capacity_minutes, 100.0 * m->unit_utilisation);
-    fprintf(out, "  %.1f nurses needed at full utilisation; %zu on shift take patients\n\n",
+    fprintf(out, "  %.1f nurses needed at full utilisation; %zu on shift take patients\n",
             m->nurses_needed, m->ncounted);
+    long work = m->care_minutes + m->duty_minutes;
+    if (work > m->capacity_minutes)
+        fprintf(out, "  The work exceeds the nurses' time by %ld min: every assignment leaves "
+                     "someone over 100 %%.\n",
+                work - m->capacity_minutes);
+    fputc('\n', out);
 }
 
 static void write_findings(FILE *out, const char *title, const keel_findings *list)
