@@ -11,8 +11,8 @@
 #include <stdlib.h>
 #include <string.h>
 
-static long fail_at;    /* 0: never fail; otherwise the countdown to the failing call */
-static long made;       /* allocations since the last keel_alloc_fail_at() */
+static long fail_at; /* 0: never fail; otherwise the countdown to the failing call */
+static long made;    /* allocations since the last keel_alloc_fail_at() */
 
 static int should_fail(void)
 {

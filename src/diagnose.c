@@ -53,8 +53,8 @@ static bool augment(matcher *m, size_t p)
 /* One shortage: the nurses the failed searches reached (empty: no eligible
  * nurse at all), the patients competing for them, and how many are left out. */
 typedef struct shortage {
-    bool *nurses;       /* [nnurses] */
-    bool *patients;     /* [npatients] */
+    bool *nurses;   /* [nnurses] */
+    bool *patients; /* [npatients] */
     size_t left_out;
     char *needs_key; /* for "no eligible nurse": the patient whose needs name the group */
 } shortage;
@@ -92,14 +92,6 @@ static char *join_names(char *const *names, size_t n)
     return s;
 }
 
-static bool nurse_has(const keel_nurse *n, const char *skill)
-{
-    for (size_t i = 0; i < n->nskills; i++)
-        if (strcmp(n->skills[i], skill) == 0)
-            return true;
-    return false;
-}
-
 /* Skills in p's needs that no nurse who may take patients has, as "a and b". */
 static size_t missing_needs(const keel_roster *r, const keel_workload *w, const keel_patient *p,
                             char **out)
@@ -108,7 +100,7 @@ static size_t missing_needs(const keel_roster *r, const keel_workload *w, const 
     for (size_t i = 0; i < p->nneeds; i++) {
         bool held = false;
         for (size_t n = 0; n < r->nnurses && !held; n++)
-            held = w->max_patients[n] > 0 && nurse_has(&r->nurses[n], p->needs[i]);
+            held = w->max_patients[n] > 0 && keel_nurse_has_skill(&r->nurses[n], p->needs[i]);
         if (!held)
             out[k++] = p->needs[i];
     }
@@ -150,8 +142,8 @@ static size_t collect(const bool *marks, size_t n, size_t *idx)
     return k;
 }
 
-static char *describe_unreachable(const keel_roster *r, const keel_workload *w,
-                                  const shortage *s, char **names, size_t npat, char **skills)
+static char *describe_unreachable(const keel_roster *r, const keel_workload *w, const shortage *s,
+                                  char **names, size_t npat, char **skills)
 {
     size_t k = 0;
     for (size_t p = 0; p < r->npatients; p++)
@@ -209,14 +201,13 @@ static char *describe_shortage(const keel_roster *r, const keel_workload *w, con
         size_t ncommon = common_needs(r, s->patients, skills);
         char *what = ncommon ? join_names(skills, ncommon) : keel_strdup("competencies");
         if (what)
-            msg = keel_asprintf("patients %s need %s%s; only %s %s %s, and between them "
-                                "the patient limits leave %ld place%s: %zu more place%s "
-                                "needed",
-                                who, what, ncommon ? "" : " that few nurses have", nurses,
-                                nnur == 1 ? "has" : "have",
-                                ncommon ? (ncommon == 1 ? "it" : "them") : "them", places,
-                                places == 1 ? "" : "s", s->left_out,
-                                s->left_out == 1 ? " is" : "s are");
+            msg = keel_asprintf(
+                "patients %s need %s%s; only %s %s %s, and between them "
+                "the patient limits leave %ld place%s: %zu more place%s "
+                "needed",
+                who, what, ncommon ? "" : " that few nurses have", nurses,
+                nnur == 1 ? "has" : "have", ncommon ? (ncommon == 1 ? "it" : "them") : "them",
+                places, places == 1 ? "" : "s", s->left_out, s->left_out == 1 ? " is" : "s are");
         free(what);
     }
     free(who);
@@ -309,8 +300,8 @@ keel_status keel_diagnose(const keel_roster *r, const keel_workload *w, int *nur
         char *msg = kn == 0 ? describe_unreachable(r, w, s, names, kp, skills)
                             : describe_shortage(r, w, s, names, skills, ncounted);
         bool everyone = kn == ncounted && kn > 0;
-        rc = keel_findings_add(out, kn == 0 ? "skill" : "patient_limit", pidx,
-                               everyone ? 0 : kp, nidx, kn, msg);
+        rc = keel_findings_add(out, kn == 0 ? "skill" : "patient_limit", pidx, everyone ? 0 : kp,
+                               nidx, kn, msg);
     }
 out:
     for (size_t i = 0; i < nshort; i++) {

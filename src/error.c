@@ -74,9 +74,8 @@ int keel_problem_format(const keel_problem *p, char *buf, size_t size)
     char where[64] = "";
     if (p->line > 0)
         snprintf(where, sizeof where, ":%d:%d", p->line, p->column);
-    return snprintf(buf, size, "%s%s%s%s%s%s", p->file ? p->file : "", where,
-                    p->file ? ": " : "", p->key ? p->key : "", p->key ? ": " : "",
-                    p->message ? p->message : "");
+    return snprintf(buf, size, "%s%s%s%s%s%s", p->file ? p->file : "", where, p->file ? ": " : "",
+                    p->key ? p->key : "", p->key ? ": " : "", p->message ? p->message : "");
 }
 
 const char *keel_status_string(keel_status status)

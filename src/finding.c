@@ -32,8 +32,7 @@ static size_t *copy_indices(const size_t *src, size_t n)
 }
 
 keel_status keel_findings_add(keel_findings *list, const char *rule, const size_t *patients,
-                              size_t npatients, const size_t *nurses, size_t nnurses,
-                              char *message)
+                              size_t npatients, const size_t *nurses, size_t nnurses, char *message)
 {
     size_t *p = NULL, *n = NULL;
     keel_finding *grown = NULL;

@@ -21,14 +21,6 @@ bool keel_plan_from_roster(const keel_roster *r, int *nurse_of)
     return complete;
 }
 
-static bool has_skill(const keel_nurse *n, const char *skill)
-{
-    for (size_t i = 0; i < n->nskills; i++)
-        if (strcmp(n->skills[i], skill) == 0)
-            return true;
-    return false;
-}
-
 static keel_status check_skills(const keel_roster *r, const int *nurse_of, keel_findings *out)
 {
     for (size_t p = 0; p < r->npatients; p++) {
@@ -37,7 +29,7 @@ static keel_status check_skills(const keel_roster *r, const int *nurse_of, keel_
         size_t n = (size_t)nurse_of[p];
         const keel_patient *pat = &r->patients[p];
         for (size_t i = 0; i < pat->nneeds; i++) {
-            if (has_skill(&r->nurses[n], pat->needs[i]))
+            if (keel_nurse_has_skill(&r->nurses[n], pat->needs[i]))
                 continue;
             char *msg = keel_asprintf("%s needs %s; %s does not have it", pat->id, pat->needs[i],
                                       r->nurses[n].id);
@@ -49,8 +41,8 @@ static keel_status check_skills(const keel_roster *r, const int *nurse_of, keel_
     return KEEL_OK;
 }
 
-static keel_status check_limits(const keel_roster *r, const keel_workload *w,
-                                const int *nurse_of, keel_findings *out)
+static keel_status check_limits(const keel_roster *r, const keel_workload *w, const int *nurse_of,
+                                keel_findings *out)
 {
     size_t *mine = keel_malloc((r->npatients ? r->npatients : 1) * sizeof *mine);
     if (!mine)
@@ -63,8 +55,8 @@ static keel_status check_limits(const keel_roster *r, const keel_workload *w,
                 mine[k++] = p;
         if ((long)k <= w->max_patients[n])
             continue;
-        char *msg = keel_asprintf("%s has %zu patients; the patient limit is %d", r->nurses[n].id, k,
-                                  w->max_patients[n]);
+        char *msg = keel_asprintf("%s has %zu patients; the patient limit is %d", r->nurses[n].id,
+                                  k, w->max_patients[n]);
         rc = keel_findings_add(out, "patient_limit", mine, k, &n, 1, msg);
     }
     free(mine);

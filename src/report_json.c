@@ -110,8 +110,8 @@ static void write_imbalance(FILE *out, const keel_metrics *m)
             "  \"imbalance\": {\"max_utilisation\": %.10g, \"min_utilisation\": %.10g, "
             "\"mean_utilisation\": %.10g, \"spread\": %.10g, \"peak_to_mean\": %.10g, "
             "\"cv\": %.10g, \"jain\": %.10g, \"gini\": %.10g, \"counted_nurses\": %zu},\n",
-            m->max_utilisation, m->min_utilisation, m->mean_utilisation, m->spread,
-            m->peak_to_mean, m->cv, m->jain, m->gini, m->ncounted);
+            m->max_utilisation, m->min_utilisation, m->mean_utilisation, m->spread, m->peak_to_mean,
+            m->cv, m->jain, m->gini, m->ncounted);
 }
 
 static void write_stages(FILE *out, const keel_solution *s)
@@ -125,8 +125,8 @@ static void write_stages(FILE *out, const keel_solution *s)
         fprintf(out,
                 "%s{\"name\": \"%s\", \"status\": \"%s\", \"value\": %.10g, \"bound\": %.10g, "
                 "\"gap\": %.10g, \"solver_calls\": %d, \"seconds\": %.3f}",
-                i ? ",\n    " : "\n    ", st->name, keel_solve_status_name(st->status),
-                st->value, st->bound, st->gap, st->solver_calls, st->seconds);
+                i ? ",\n    " : "\n    ", st->name, keel_solve_status_name(st->status), st->value,
+                st->bound, st->gap, st->solver_calls, st->seconds);
     }
     fputs(s->nstages ? "\n  ],\n" : "],\n", out);
 }

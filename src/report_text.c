@@ -63,8 +63,9 @@ static void write_balance(FILE *out, const keel_metrics *m)
     fprintf(out, "Balance over the %zu nurses who take patients\n", m->ncounted);
     fprintf(out, "  heaviest %.1f %%, lightest %.1f %%, spread %.1f points\n",
             100.0 * m->max_utilisation, 100.0 * m->min_utilisation, 100.0 * m->spread);
-    fprintf(out, "  peak-to-mean %.3f, coefficient of variation %.3f, Jain's index %.3f, "
-                 "Gini %.3f\n\n",
+    fprintf(out,
+            "  peak-to-mean %.3f, coefficient of variation %.3f, Jain's index %.3f, "
+            "Gini %.3f\n\n",
             m->peak_to_mean, m->cv, m->jain, m->gini);
 }
 
@@ -105,8 +106,9 @@ static void write_staffing(FILE *out, const keel_metrics *m)
             m->nurses_needed, m->ncounted);
     long work = m->care_minutes + m->duty_minutes;
     if (work > m->capacity_minutes)
-        fprintf(out, "  The work exceeds the nurses' time by %ld min: every assignment leaves "
-                     "someone over 100 %%.\n",
+        fprintf(out,
+                "  The work exceeds the nurses' time by %ld min: every assignment leaves "
+                "someone over 100 %%.\n",
                 work - m->capacity_minutes);
     fputc('\n', out);
 }
@@ -131,8 +133,8 @@ static void write_workload(FILE *out, const keel_report *rep)
     fputs("\nNurses\n", out);
     for (size_t n = 0; n < r->nnurses; n++)
         fprintf(out, "  %-6s %-22s capacity %4d min  duty %3d min  limit %d patients\n",
-                r->nurses[n].id, r->nurses[n].name ? r->nurses[n].name : "",
-                w->capacity_minutes[n], w->duty_minutes[n], w->max_patients[n]);
+                r->nurses[n].id, r->nurses[n].name ? r->nurses[n].name : "", w->capacity_minutes[n],
+                w->duty_minutes[n], w->max_patients[n]);
     fputc('\n', out);
 }
 

@@ -55,8 +55,7 @@ static void write_head(FILE *out, const keel_roster *r)
                 r->shift.start_minute % 60);
     write_key_int(out, "  ", "minutes", r->shift.minutes);
     write_key_int(out, "  ", "break_minutes", r->shift.break_minutes);
-    if (r->policy.max_patients == KEEL_ABSENT && r->policy.nacuity == 0 &&
-        r->policy.nextras == 0)
+    if (r->policy.max_patients == KEEL_ABSENT && r->policy.nacuity == 0 && r->policy.nextras == 0)
         return;
     fputs("policy:\n", out);
     write_key_int(out, "  ", "max_patients", r->policy.max_patients);

@@ -35,13 +35,13 @@
 #define ARRAY_LEN(a) (sizeof(a) / sizeof((a)[0]))
 
 enum {
-    MAX_DEPTH = 64,          /* nesting accepted; a roster needs 5 levels */
-    MAX_PATH = 256,          /* bytes of a key path in a message; longer ones are cut */
-    MAX_SHOWN = 40,          /* bytes of a file's text quoted back in a message */
+    MAX_DEPTH = 64, /* nesting accepted; a roster needs 5 levels */
+    MAX_PATH = 256, /* bytes of a key path in a message; longer ones are cut */
+    MAX_SHOWN = 40, /* bytes of a file's text quoted back in a message */
     SHOWN_SIZE = MAX_SHOWN + 4,
-    MAX_KEYS = 16,           /* rows in one key table */
-    MAX_SUGGEST = 64,        /* longest unknown key that gets a "did you mean" */
-    MINUTES_PER_DAY = 1440,  /* the upper bound of every minutes figure */
+    MAX_KEYS = 16,          /* rows in one key table */
+    MAX_SUGGEST = 64,       /* longest unknown key that gets a "did you mean" */
+    MINUTES_PER_DAY = 1440, /* the upper bound of every minutes figure */
     MAX_PATIENTS = 99,
     MAX_LEVEL = 99,
 };
@@ -56,11 +56,11 @@ typedef enum node_kind { NODE_SCALAR, NODE_SEQUENCE, NODE_MAPPING, NODE_ALIAS } 
 typedef struct node {
     node_kind kind;
     keel_mark mark;
-    bool quoted;         /* scalar in quotes or block style: text, never a number */
-    char *text;          /* scalar text, NUL-terminated */
-    size_t len;          /* scalar bytes as written; more than strlen(text) if it holds NUL */
-    char *anchor;        /* the anchor it defines, or an alias's target; keel rejects both */
-    char *tag;           /* an explicit tag; keel rejects it */
+    bool quoted;  /* scalar in quotes or block style: text, never a number */
+    char *text;   /* scalar text, NUL-terminated */
+    size_t len;   /* scalar bytes as written; more than strlen(text) if it holds NUL */
+    char *anchor; /* the anchor it defines, or an alias's target; keel rejects both */
+    char *tag;    /* an explicit tag; keel rejects it */
     size_t nitems;
     size_t capacity;
     struct node **items;
@@ -75,10 +75,10 @@ typedef struct loader {
     const char *text;
     size_t len;
     keel_error *err;
-    size_t first_problem;    /* index in err of this load's first problem */
+    size_t first_problem; /* index in err of this load's first problem */
     size_t nproblems;
     bool nomem;
-    char path[MAX_PATH];     /* key path of the value being checked */
+    char path[MAX_PATH]; /* key path of the value being checked */
     size_t pathlen;
     keel_roster *roster;
     table_state acuity_table;
@@ -280,8 +280,8 @@ static void report_parser_error(loader *ld, const yaml_parser_t *parser)
         else
             report(ld, at, "cannot read the text: %s; expected UTF-8 text", problem);
     } else if (parser->context) {
-        report(ld, mark_of(parser->problem_mark), "YAML syntax error: %s (%s on line %d)",
-               problem, parser->context, mark_of(parser->context_mark).line);
+        report(ld, mark_of(parser->problem_mark), "YAML syntax error: %s (%s on line %d)", problem,
+               parser->context, mark_of(parser->context_mark).line);
     } else {
         report(ld, mark_of(parser->problem_mark), "YAML syntax error: %s", problem);
     }
@@ -382,8 +382,7 @@ static bool read_children(loader *ld, yaml_parser_t *parser, node *n, int depth)
 }
 
 /* Builds the node that starts with event (consumed) and everything in it. */
-static bool read_node(loader *ld, yaml_parser_t *parser, yaml_event_t *event, int depth,
-                      node **out)
+static bool read_node(loader *ld, yaml_parser_t *parser, yaml_event_t *event, int depth, node **out)
 {
     bool ok = true;
     node *n = keel_calloc(1, sizeof *n);
@@ -422,21 +421,22 @@ static bool read_document(loader *ld, yaml_parser_t *parser, node **root)
 {
     yaml_event_t event;
     *root = NULL;
-    if (!next_event(ld, parser, &event))   /* stream start */
+    if (!next_event(ld, parser, &event)) /* stream start */
         return false;
     yaml_event_delete(&event);
     if (!next_event(ld, parser, &event))
         return false;
     if (event.type == YAML_STREAM_END_EVENT) {
         yaml_event_delete(&event);
-        report(ld, (keel_mark){1, 1}, "the file is empty or only comments; expected a roster "
-                                      "with shift, nurses and patients");
+        report(ld, (keel_mark){1, 1},
+               "the file is empty or only comments; expected a roster "
+               "with shift, nurses and patients");
         return false;
     }
-    yaml_event_delete(&event);             /* document start */
+    yaml_event_delete(&event); /* document start */
     if (!next_event(ld, parser, &event) || !read_node(ld, parser, &event, 1, root))
         return false;
-    if (!next_event(ld, parser, &event))   /* document end */
+    if (!next_event(ld, parser, &event)) /* document end */
         goto fail;
     yaml_event_delete(&event);
     if (!next_event(ld, parser, &event))
@@ -571,7 +571,7 @@ static bool is_calendar_date(const char *s)
         if (i != 4 && i != 7 && (s[i] < '0' || s[i] > '9'))
             return false;
     int year = atoi(s), month = atoi(s + 5), day = atoi(s + 8);
-    bool leap = (year % 4 == 0 && year % 100 != 0) || year % 400 == 0;   /* Gregorian */
+    bool leap = (year % 4 == 0 && year % 100 != 0) || year % 400 == 0; /* Gregorian */
     if (year < 1 || month < 1 || month > 12 || day < 1)
         return false;
     return day <= days[month - 1] + (month == 2 && leap);
@@ -589,12 +589,12 @@ typedef void (*parse_fn)(loader *ld, const node *value, void *target, const key_
 struct key_rule {
     const char *name;
     parse_fn parse;
-    size_t offset;          /* the field of target that the parser fills */
-    size_t count_offset;    /* lists: the size_t that counts the entries */
-    int min, max;           /* integers: the documented range */
-    const key_rule *keys;   /* nested mappings: their key table */
+    size_t offset;        /* the field of target that the parser fills */
+    size_t count_offset;  /* lists: the size_t that counts the entries */
+    int min, max;         /* integers: the documented range */
+    const key_rule *keys; /* nested mappings: their key table */
     size_t nkeys;
-    const char *need;       /* required keys: why, for the "missing" message */
+    const char *need; /* required keys: why, for the "missing" message */
 };
 
 static void *field_of(void *target, size_t offset)
@@ -774,8 +774,7 @@ static void parse_version(loader *ld, const node *value, void *target, const key
     if (!scan_int(value, &version))
         report_type(ld, value, "the integer 1");
     else if (version != 1)
-        report(ld, value->mark, "%s is not supported; expected 1",
-               show(shown, value->text));
+        report(ld, value->mark, "%s is not supported; expected 1", show(shown, value->text));
 }
 
 static void parse_clock(loader *ld, const node *value, void *target, const key_rule *rule)
@@ -904,33 +903,61 @@ static void parse_extra_table(loader *ld, const node *value, void *target, const
 }
 
 static const key_rule nurse_keys[] = {
-    {.name = "id", .parse = parse_string, .offset = offsetof(keel_nurse, id),
+    {.name = "id",
+     .parse = parse_string,
+     .offset = offsetof(keel_nurse, id),
      .need = "every nurse needs a unique id"},
     {.name = "name", .parse = parse_string, .offset = offsetof(keel_nurse, name)},
-    {.name = "skills", .parse = parse_names, .offset = offsetof(keel_nurse, skills),
+    {.name = "skills",
+     .parse = parse_names,
+     .offset = offsetof(keel_nurse, skills),
      .count_offset = offsetof(keel_nurse, nskills)},
-    {.name = "max_patients", .parse = parse_int, .offset = offsetof(keel_nurse, max_patients),
-     .min = 0, .max = MAX_PATIENTS},
-    {.name = "minutes", .parse = parse_int, .offset = offsetof(keel_nurse, minutes),
-     .min = 1, .max = MINUTES_PER_DAY},
-    {.name = "break_minutes", .parse = parse_int, .offset = offsetof(keel_nurse, break_minutes),
-     .min = 0, .max = MINUTES_PER_DAY - 1},
-    {.name = "duty_minutes", .parse = parse_int, .offset = offsetof(keel_nurse, duty_minutes),
-     .min = 0, .max = MINUTES_PER_DAY},
+    {.name = "max_patients",
+     .parse = parse_int,
+     .offset = offsetof(keel_nurse, max_patients),
+     .min = 0,
+     .max = MAX_PATIENTS},
+    {.name = "minutes",
+     .parse = parse_int,
+     .offset = offsetof(keel_nurse, minutes),
+     .min = 1,
+     .max = MINUTES_PER_DAY},
+    {.name = "break_minutes",
+     .parse = parse_int,
+     .offset = offsetof(keel_nurse, break_minutes),
+     .min = 0,
+     .max = MINUTES_PER_DAY - 1},
+    {.name = "duty_minutes",
+     .parse = parse_int,
+     .offset = offsetof(keel_nurse, duty_minutes),
+     .min = 0,
+     .max = MINUTES_PER_DAY},
 };
 
 static const key_rule patient_keys[] = {
-    {.name = "id", .parse = parse_string, .offset = offsetof(keel_patient, id),
+    {.name = "id",
+     .parse = parse_string,
+     .offset = offsetof(keel_patient, id),
      .need = "every patient needs a unique id"},
     {.name = "bed", .parse = parse_string, .offset = offsetof(keel_patient, bed)},
     {.name = "name", .parse = parse_string, .offset = offsetof(keel_patient, name)},
-    {.name = "acuity", .parse = parse_int, .offset = offsetof(keel_patient, acuity),
-     .min = 0, .max = MAX_LEVEL},
-    {.name = "care_minutes", .parse = parse_int, .offset = offsetof(keel_patient, care_minutes),
-     .min = 0, .max = MINUTES_PER_DAY},
-    {.name = "extras", .parse = parse_names, .offset = offsetof(keel_patient, extras),
+    {.name = "acuity",
+     .parse = parse_int,
+     .offset = offsetof(keel_patient, acuity),
+     .min = 0,
+     .max = MAX_LEVEL},
+    {.name = "care_minutes",
+     .parse = parse_int,
+     .offset = offsetof(keel_patient, care_minutes),
+     .min = 0,
+     .max = MINUTES_PER_DAY},
+    {.name = "extras",
+     .parse = parse_names,
+     .offset = offsetof(keel_patient, extras),
      .count_offset = offsetof(keel_patient, nextras)},
-    {.name = "needs", .parse = parse_names, .offset = offsetof(keel_patient, needs),
+    {.name = "needs",
+     .parse = parse_names,
+     .offset = offsetof(keel_patient, needs),
      .count_offset = offsetof(keel_patient, nneeds)},
     {.name = "nurse", .parse = parse_string, .offset = offsetof(keel_patient, nurse)},
 };
@@ -964,8 +991,10 @@ static void parse_nurses(loader *ld, const node *value, void *target, const key_
     }
     r->nnurses = value->nitems;
     for (size_t i = 0; i < value->nitems; i++) {
-        r->nurses[i] = (keel_nurse){.max_patients = KEEL_ABSENT, .minutes = KEEL_ABSENT,
-                                    .break_minutes = KEEL_ABSENT, .duty_minutes = KEEL_ABSENT,
+        r->nurses[i] = (keel_nurse){.max_patients = KEEL_ABSENT,
+                                    .minutes = KEEL_ABSENT,
+                                    .break_minutes = KEEL_ABSENT,
+                                    .duty_minutes = KEEL_ABSENT,
                                     .mark = value->items[i]->mark};
         size_t old = push_index(ld, i);
         walk_mapping(ld, value->items[i], nurse_keys, ARRAY_LEN(nurse_keys), &r->nurses[i]);
@@ -986,11 +1015,10 @@ static void parse_patients(loader *ld, const node *value, void *target, const ke
     }
     r->npatients = value->nitems;
     for (size_t i = 0; i < value->nitems; i++) {
-        r->patients[i] = (keel_patient){.acuity = KEEL_ABSENT, .care_minutes = KEEL_ABSENT,
-                                        .mark = value->items[i]->mark};
+        r->patients[i] = (keel_patient){
+            .acuity = KEEL_ABSENT, .care_minutes = KEEL_ABSENT, .mark = value->items[i]->mark};
         size_t old = push_index(ld, i);
-        walk_mapping(ld, value->items[i], patient_keys, ARRAY_LEN(patient_keys),
-                     &r->patients[i]);
+        walk_mapping(ld, value->items[i], patient_keys, ARRAY_LEN(patient_keys), &r->patients[i]);
         pop_path(ld, old);
     }
 }
@@ -1004,15 +1032,25 @@ static const key_rule shift_keys[] = {
     {.name = "label", .parse = parse_string, .offset = offsetof(keel_roster, shift.label)},
     {.name = "date", .parse = parse_date, .offset = offsetof(keel_roster, shift.date)},
     {.name = "start", .parse = parse_clock, .offset = offsetof(keel_roster, shift.start_minute)},
-    {.name = "minutes", .parse = parse_int, .offset = offsetof(keel_roster, shift.minutes),
-     .min = 1, .max = MINUTES_PER_DAY, .need = "every shift needs its length in minutes"},
-    {.name = "break_minutes", .parse = parse_int,
-     .offset = offsetof(keel_roster, shift.break_minutes), .min = 0, .max = MINUTES_PER_DAY - 1},
+    {.name = "minutes",
+     .parse = parse_int,
+     .offset = offsetof(keel_roster, shift.minutes),
+     .min = 1,
+     .max = MINUTES_PER_DAY,
+     .need = "every shift needs its length in minutes"},
+    {.name = "break_minutes",
+     .parse = parse_int,
+     .offset = offsetof(keel_roster, shift.break_minutes),
+     .min = 0,
+     .max = MINUTES_PER_DAY - 1},
 };
 
 static const key_rule policy_keys[] = {
-    {.name = "max_patients", .parse = parse_int,
-     .offset = offsetof(keel_roster, policy.max_patients), .min = 0, .max = MAX_PATIENTS},
+    {.name = "max_patients",
+     .parse = parse_int,
+     .offset = offsetof(keel_roster, policy.max_patients),
+     .min = 0,
+     .max = MAX_PATIENTS},
     {.name = "acuity_minutes", .parse = parse_acuity_table},
     {.name = "extra_minutes", .parse = parse_extra_table},
 };
@@ -1020,9 +1058,14 @@ static const key_rule policy_keys[] = {
 static const key_rule roster_keys[] = {
     {.name = "version", .parse = parse_version},
     {.name = "unit", .parse = parse_section, .keys = unit_keys, .nkeys = ARRAY_LEN(unit_keys)},
-    {.name = "shift", .parse = parse_section, .keys = shift_keys, .nkeys = ARRAY_LEN(shift_keys),
+    {.name = "shift",
+     .parse = parse_section,
+     .keys = shift_keys,
+     .nkeys = ARRAY_LEN(shift_keys),
      .need = "every roster needs a shift with its length in minutes"},
-    {.name = "policy", .parse = parse_section, .keys = policy_keys,
+    {.name = "policy",
+     .parse = parse_section,
+     .keys = policy_keys,
      .nkeys = ARRAY_LEN(policy_keys)},
     {.name = "nurses", .parse = parse_nurses, .need = "every roster needs a list of nurses"},
     {.name = "patients", .parse = parse_patients, .need = "every roster needs a list of patients"},
@@ -1131,8 +1174,7 @@ static void format_levels(const keel_roster *r, char *buf, size_t size)
         if (last == i)
             snprintf(buf + used, size - used, "%s%d", used ? ", " : "", first_level);
         else
-            snprintf(buf + used, size - used, "%s%d-%d", used ? ", " : "", first_level,
-                     last_level);
+            snprintf(buf + used, size - used, "%s%d-%d", used ? ", " : "", first_level, last_level);
         used = strlen(buf);
         i = last;
     }
@@ -1358,7 +1400,10 @@ static keel_status finish(loader *ld, keel_roster *roster, keel_roster **out)
 keel_status keel_roster_parse(const char *name, const char *text, size_t len, keel_roster **out,
                               keel_error *err)
 {
-    loader ld = {.file = name, .text = text, .len = len, .err = err,
+    loader ld = {.file = name,
+                 .text = text,
+                 .len = len,
+                 .err = err,
                  .first_problem = err ? err->nproblems : 0};
     yaml_parser_t parser;
     node *root = NULL;
@@ -1455,4 +1500,12 @@ int keel_roster_extra_minutes(const keel_roster *roster, const char *name)
         if (strcmp(roster->policy.extra_minutes[i].name, name) == 0)
             return roster->policy.extra_minutes[i].minutes;
     return KEEL_ABSENT;
+}
+
+bool keel_nurse_has_skill(const keel_nurse *nurse, const char *skill)
+{
+    for (size_t i = 0; i < nurse->nskills; i++)
+        if (strcmp(nurse->skills[i], skill) == 0)
+            return true;
+    return false;
 }

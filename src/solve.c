@@ -186,8 +186,8 @@ keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
     keel_status rc = KEEL_OK;
     long long started = keel_clock_ms();
     const char *name = options && options->method ? options->method : "ilp";
-    long limit = options && options->time_limit_ms > 0 ? options->time_limit_ms
-                                                        : DEFAULT_TIME_LIMIT_MS;
+    long limit =
+        options && options->time_limit_ms > 0 ? options->time_limit_ms : DEFAULT_TIME_LIMIT_MS;
     const keel_method *method = find_method(name);
     *out = NULL;
     if (!method)
@@ -261,12 +261,12 @@ keel_status keel_method_greedy(const keel_workload *w, long long deadline_ms, ke
     keel_ratio ceiling = keel_solve_lift_ceiling(w);
     double u = keel_ratio_value(peak), l = keel_ratio_value(lift);
     sol->nstages = 2;
-    sol->stages[0] = (keel_stage){
-        .name = "peak",
-        .status = keel_ratio_cmp(peak, floor) <= 0 ? KEEL_SOLVE_OPTIMAL : KEEL_SOLVE_HEURISTIC,
-        .value = u,
-        .bound = keel_ratio_value(floor),
-        .gap = keel_gap(u, keel_ratio_value(floor))};
+    sol->stages[0] = (keel_stage){.name = "peak",
+                                  .status = keel_ratio_cmp(peak, floor) <= 0 ? KEEL_SOLVE_OPTIMAL
+                                                                             : KEEL_SOLVE_HEURISTIC,
+                                  .value = u,
+                                  .bound = keel_ratio_value(floor),
+                                  .gap = keel_gap(u, keel_ratio_value(floor))};
     sol->stages[1] = (keel_stage){
         .name = "lift",
         .status = keel_ratio_cmp(lift, ceiling) >= 0 ? KEEL_SOLVE_OPTIMAL : KEEL_SOLVE_HEURISTIC,

@@ -44,15 +44,15 @@ typedef struct sums {
 
 typedef struct search {
     const keel_workload *w;
-    sums *sums;         /* [nnurses] */
-    long long *lo;      /* windows of care minutes asked about */
+    sums *sums;    /* [nnurses] */
+    long long *lo; /* windows of care minutes asked about */
     long long *hi;
     long long *peak_hi; /* stage 1's budgets, held in stage 2 */
     int *trial;         /* the assignment an answer "yes" comes with */
     keel_ratio *cand;   /* candidate utilisations, sorted, unique */
     size_t ncand;
     long long care_total;
-    int calls;          /* questions GLPK answered in this stage */
+    int calls; /* questions GLPK answered in this stage */
 } search;
 
 static keel_status reachable_sums(const keel_workload *w, size_t n, long long smax, sums *out)
@@ -133,8 +133,7 @@ static keel_status collect_candidates(search *S, const long long *limit, keel_ra
             continue;
         for (long long s = 0; s <= limit[n]; s++) {
             keel_ratio u = {w->duty_minutes[n] + s, w->capacity_minutes[n]};
-            if (S->sums[n].reach[s] && keel_ratio_cmp(u, from) >= 0 &&
-                keel_ratio_cmp(u, to) <= 0)
+            if (S->sums[n].reach[s] && keel_ratio_cmp(u, from) >= 0 && keel_ratio_cmp(u, to) <= 0)
                 S->cand[S->ncand++] = u;
         }
     }
@@ -190,8 +189,7 @@ static bool group_overflows(const search *S)
 /* Asks whether an assignment fits the windows S->lo..S->hi, answering by
  * the cheap sums, the competency groups, the dedicated search or GLPK, in
  * that order. */
-static keel_status ask(search *S, long long deadline_ms, keel_ilp_answer *answer,
-                       keel_error *err)
+static keel_status ask(search *S, long long deadline_ms, keel_ilp_answer *answer, keel_error *err)
 {
     const keel_workload *w = S->w;
     long long low = 0, high = 0;
@@ -218,8 +216,8 @@ static keel_status ask(search *S, long long deadline_ms, keel_ilp_answer *answer
     if (left <= 0)
         return KEEL_OK;
     S->calls++;
-    return keel_ilp_fit(w, S->lo, S->hi, left > LONG_MAX ? LONG_MAX : (long)left, S->trial,
-                        answer, err);
+    return keel_ilp_fit(w, S->lo, S->hi, left > LONG_MAX ? LONG_MAX : (long)left, S->trial, answer,
+                        err);
 }
 
 /* One direction of search.  Position i (0 = most wanted) maps to a
@@ -311,8 +309,8 @@ static size_t lift_position(const search *S, const int *assignment)
     return S->ncand - 1 - (i < S->ncand ? i : S->ncand - 1);
 }
 
-static void finish_stage(keel_stage *st, keel_ratio value, keel_ratio bound, bool proven,
-                         int calls, long long started)
+static void finish_stage(keel_stage *st, keel_ratio value, keel_ratio bound, bool proven, int calls,
+                         long long started)
 {
     st->value = keel_ratio_value(value);
     st->bound = keel_ratio_value(proven ? value : bound);

@@ -26,15 +26,15 @@ typedef struct fit {
     const keel_workload *w;
     const long long *lo;
     const long long *hi;
-    size_t *order;        /* patients, heaviest first, twins adjacent */
-    bool *twin_of_prev;   /* [k]: order[k] is interchangeable with order[k - 1] */
-    int *group;           /* [nnurses]: nurses with the same group are interchangeable */
-    long long *suffix;    /* [k]: care of order[k..] */
-    int *min_after;       /* [k]: smallest care among order[k..] */
-    long long *care;      /* [nnurses]: care so far */
-    int *count;           /* [nnurses]: patients so far */
-    int *assign;          /* [npatients] */
-    size_t *tried;        /* scratch per depth: nurses in trial order */
+    size_t *order;      /* patients, heaviest first, twins adjacent */
+    bool *twin_of_prev; /* [k]: order[k] is interchangeable with order[k - 1] */
+    int *group;         /* [nnurses]: nurses with the same group are interchangeable */
+    long long *suffix;  /* [k]: care of order[k..] */
+    int *min_after;     /* [k]: smallest care among order[k..] */
+    long long *care;    /* [nnurses]: care so far */
+    int *count;         /* [nnurses]: patients so far */
+    int *assign;        /* [npatients] */
+    size_t *tried;      /* scratch per depth: nurses in trial order */
     long nodes;
     long budget;
     bool gave_up;
@@ -58,8 +58,7 @@ static int heavier_first(const void *a, const void *b)
 static bool same_for_question(const fit *F, size_t a, size_t b)
 {
     const keel_workload *w = F->w;
-    if (w->max_patients[a] != w->max_patients[b] || F->lo[a] != F->lo[b] ||
-        F->hi[a] != F->hi[b])
+    if (w->max_patients[a] != w->max_patients[b] || F->lo[a] != F->lo[b] || F->hi[a] != F->hi[b])
         return false;
     for (size_t p = 0; p < w->npatients; p++)
         if (keel_workload_eligible(w, p, a) != keel_workload_eligible(w, p, b))
@@ -170,9 +169,9 @@ keel_status keel_fit_search(const keel_workload *w, const long long *lo, const l
     qsort(F.order, np, sizeof *F.order, heavier_first);
     for (size_t k = 1; k < np; k++) {
         size_t a = F.order[k - 1], b = F.order[k];
-        F.twin_of_prev[k] = w->care_minutes[a] == w->care_minutes[b] &&
-                            memcmp(&w->eligible[a * nn], &w->eligible[b * nn],
-                                   nn * sizeof *w->eligible) == 0;
+        F.twin_of_prev[k] =
+            w->care_minutes[a] == w->care_minutes[b] &&
+            memcmp(&w->eligible[a * nn], &w->eligible[b * nn], nn * sizeof *w->eligible) == 0;
     }
     F.min_after[np] = 0;
     for (size_t k = np; k-- > 0;) {

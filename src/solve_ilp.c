@@ -32,15 +32,15 @@ static void on_glpk_error(void *info)
  */
 typedef struct fit_model {
     size_t nclasses;
-    size_t *class_of;     /* [npatients] */
-    size_t *class_size;   /* [nclasses] */
-    int *class_care;      /* [nclasses] */
-    size_t *class_first;  /* [nclasses]: a member, for eligibility */
-    int *next_twin;       /* [nnurses]: the next nurse of the same group, or -1 */
-    int *count_row;       /* [nnurses] */
-    int *order_row;       /* [nnurses]: row "load(n) >= load(next twin)", or 0 */
-    int *col;             /* [nclasses * nnurses]: column of y[c, n], or 0 */
-    int *left;            /* [nclasses * nnurses]: members still to hand out */
+    size_t *class_of;    /* [npatients] */
+    size_t *class_size;  /* [nclasses] */
+    int *class_care;     /* [nclasses] */
+    size_t *class_first; /* [nclasses]: a member, for eligibility */
+    int *next_twin;      /* [nnurses]: the next nurse of the same group, or -1 */
+    int *count_row;      /* [nnurses] */
+    int *order_row;      /* [nnurses]: row "load(n) >= load(next twin)", or 0 */
+    int *col;            /* [nclasses * nnurses]: column of y[c, n], or 0 */
+    int *left;           /* [nclasses * nnurses]: members still to hand out */
 } fit_model;
 
 static bool same_patients(const keel_workload *w, size_t a, size_t b)
@@ -50,8 +50,8 @@ static bool same_patients(const keel_workload *w, size_t a, size_t b)
                   w->nnurses * sizeof *w->eligible) == 0;
 }
 
-static bool same_nurses(const keel_workload *w, const long long *lo, const long long *hi,
-                        size_t a, size_t b)
+static bool same_nurses(const keel_workload *w, const long long *lo, const long long *hi, size_t a,
+                        size_t b)
 {
     if (w->capacity_minutes[a] != w->capacity_minutes[b] ||
         w->duty_minutes[a] != w->duty_minutes[b] || w->max_patients[a] != w->max_patients[b] ||
@@ -63,8 +63,7 @@ static bool same_nurses(const keel_workload *w, const long long *lo, const long 
     return true;
 }
 
-static void group(const keel_workload *w, const long long *lo, const long long *hi,
-                  fit_model *m)
+static void group(const keel_workload *w, const long long *lo, const long long *hi, fit_model *m)
 {
     m->nclasses = 0;
     for (size_t p = 0; p < w->npatients; p++) {

@@ -78,9 +78,9 @@ keel_status keel_greedy_improve(const keel_workload *w, int *nurse_of);
 
 /* solve_ilp.c: answer of one feasibility search. */
 typedef enum keel_ilp_answer {
-    KEEL_ILP_FEASIBLE,    /* nurse_of holds an assignment inside the windows */
-    KEEL_ILP_INFEASIBLE,  /* proven: no assignment fits the windows */
-    KEEL_ILP_UNKNOWN,     /* the time limit came first */
+    KEEL_ILP_FEASIBLE,   /* nurse_of holds an assignment inside the windows */
+    KEEL_ILP_INFEASIBLE, /* proven: no assignment fits the windows */
+    KEEL_ILP_UNKNOWN,    /* the time limit came first */
 } keel_ilp_answer;
 
 /* solve_ilp.c: looks for an assignment (every patient one eligible nurse,

@@ -14,8 +14,8 @@
 
 static int patient_care(const keel_roster *r, const keel_patient *p)
 {
-    int care = p->care_minutes != KEEL_ABSENT ? p->care_minutes
-                                              : keel_roster_acuity_minutes(r, p->acuity);
+    int care =
+        p->care_minutes != KEEL_ABSENT ? p->care_minutes : keel_roster_acuity_minutes(r, p->acuity);
     if (care == KEEL_ABSENT)
         care = 0; /* unreachable for a validated roster */
     for (size_t i = 0; i < p->nextras; i++) {
@@ -41,18 +41,10 @@ static int or_default(int value, int fallback)
     return value != KEEL_ABSENT ? value : fallback;
 }
 
-static bool has_skill(const keel_nurse *n, const char *skill)
-{
-    for (size_t i = 0; i < n->nskills; i++)
-        if (strcmp(n->skills[i], skill) == 0)
-            return true;
-    return false;
-}
-
 static bool has_every_need(const keel_nurse *n, const keel_patient *p)
 {
     for (size_t i = 0; i < p->nneeds; i++)
-        if (!has_skill(n, p->needs[i]))
+        if (!keel_nurse_has_skill(n, p->needs[i]))
             return false;
     return true;
 }
@@ -98,8 +90,9 @@ keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, kee
         w->duty_minutes[n] = or_default(nurse->duty_minutes, 0);
         w->max_patients[n] = nurse_limit(r, nurse);
         if (w->max_patients[n] > 0 && w->capacity_minutes[n] <= 0)
-            rc = keel_error_add(err, KEEL_ERR_INPUT, r->path, nurse->mark.line,
-                                nurse->mark.column, "nurses", "nurse %s has %d minutes and %d "
+            rc = keel_error_add(err, KEEL_ERR_INPUT, r->path, nurse->mark.line, nurse->mark.column,
+                                "nurses",
+                                "nurse %s has %d minutes and %d "
                                 "break minutes, so no time for patients; expected breaks "
                                 "shorter than the time on the unit",
                                 nurse->id, minutes, breaks);

@@ -136,11 +136,23 @@ static void test_json_report_carries_the_contract_fields(void **state)
     run r = {0};
     run_example(&r, "medsurg-day.yaml");
     char *text = write_to_memory("json", &r.rep);
-    const char *fields[] = {"\"status\": \"", "\"nurses\": [", "\"load_minutes\": ",
-                            "\"capacity_minutes\": ", "\"utilisation\": ", "\"imbalance\": {",
-                            "\"max_utilisation\": ", "\"min_utilisation\": ", "\"spread\": ",
-                            "\"peak_to_mean\": ", "\"cv\": ", "\"jain\": ", "\"gini\": ",
-                            "\"bound\": {", "\"gap\": ", "\"diagnosis\": [", "\"caution\": "};
+    const char *fields[] = {"\"status\": \"",
+                            "\"nurses\": [",
+                            "\"load_minutes\": ",
+                            "\"capacity_minutes\": ",
+                            "\"utilisation\": ",
+                            "\"imbalance\": {",
+                            "\"max_utilisation\": ",
+                            "\"min_utilisation\": ",
+                            "\"spread\": ",
+                            "\"peak_to_mean\": ",
+                            "\"cv\": ",
+                            "\"jain\": ",
+                            "\"gini\": ",
+                            "\"bound\": {",
+                            "\"gap\": ",
+                            "\"diagnosis\": [",
+                            "\"caution\": "};
     for (size_t i = 0; i < sizeof fields / sizeof fields[0]; i++)
         assert_non_null(strstr(text, fields[i]));
     free(text);
@@ -191,8 +203,12 @@ static keel_status run_pipeline(const char *path)
     if (!rc)
         rc = keel_metrics_compute(w, s->nurse_of, &m, &err);
     if (!rc) {
-        keel_report rep = {.kind = KEEL_REPORT_ASSIGN, .roster = roster, .workload = w,
-                           .nurse_of = s->nurse_of, .metrics = m, .solution = s};
+        keel_report rep = {.kind = KEEL_REPORT_ASSIGN,
+                           .roster = roster,
+                           .workload = w,
+                           .nurse_of = s->nurse_of,
+                           .metrics = m,
+                           .solution = s};
         char *buf = NULL;
         size_t len = 0;
         FILE *out = open_memstream(&buf, &len);

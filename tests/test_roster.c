@@ -214,8 +214,8 @@ static void test_roster_accepts_unquoted_times(void **state)
     static const struct {
         const char *start;
         int minute;
-    } cases[] = {{"07:00", 420}, {"7:30", 450}, {"00:00", 0}, {"23:59", 1439},
-                 {"\"19:00\"", 1140}, {"'06:45'", 405}};
+    } cases[] = {{"07:00", 420},  {"7:30", 450},       {"00:00", 0},
+                 {"23:59", 1439}, {"\"19:00\"", 1140}, {"'06:45'", 405}};
     (void)state;
     for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
         char text[256];
@@ -233,10 +233,10 @@ static void test_roster_accepts_unquoted_times(void **state)
 
 static void test_roster_rejects_times_and_dates_that_do_not_exist(void **state)
 {
-    static const char *const starts[] = {"24:00", "12:60", "7", "07:5", "-1:00", "07:00:00",
-                                         "noon", "[7, 0]"};
+    static const char *const starts[] = {"24:00", "12:60",    "7",    "07:5",
+                                         "-1:00", "07:00:00", "noon", "[7, 0]"};
     static const char *const dates[] = {"2026-02-29", "2100-02-29", "2026-04-31", "2026-13-01",
-                                        "2026-00-10", "0000-01-01", "26-03-14", "2026/03/14"};
+                                        "2026-00-10", "0000-01-01", "26-03-14",   "2026/03/14"};
     (void)state;
     for (size_t i = 0; i < sizeof starts / sizeof starts[0]; i++) {
         char text[256];
@@ -387,8 +387,8 @@ static void check_range_case(const range_case *c)
     snprintf(text, sizeof text,
              "shift: {%s}\npolicy: {%s}\nnurses:\n  - {id: N1, %s}\npatients:\n  - {id: P1, %s}\n",
              c->shift ? c->shift : "minutes: 720",
-             c->policy ? c->policy : "acuity_minutes: {1: 100}",
-             c->nurse ? c->nurse : "skills: []", c->patient ? c->patient : "acuity: 1");
+             c->policy ? c->policy : "acuity_minutes: {1: 100}", c->nurse ? c->nurse : "skills: []",
+             c->patient ? c->patient : "acuity: 1");
     keel_status rc = parse(text, &r, &err);
     bool as_expected = c->bad_key ? rc == KEEL_ERR_INPUT && err.nproblems == 1 &&
                                         strcmp(err.problems[0].key, c->bad_key) == 0
@@ -439,7 +439,8 @@ static void test_roster_enforces_the_documented_ranges(void **state)
         {.nurse = "minutes: 0", .bad_key = "nurses[0].minutes"},
         {.nurse = "minutes: 60, break_minutes: 59"},
         {.nurse = "minutes: 60, break_minutes: 60", .bad_key = "nurses[0].break_minutes"},
-        {.shift = "minutes: 720, break_minutes: 60", .nurse = "minutes: 60",
+        {.shift = "minutes: 720, break_minutes: 60",
+         .nurse = "minutes: 60",
          .bad_key = "nurses[0].minutes"},
         {.shift = "minutes: 720, break_minutes: 60", .nurse = "minutes: 60, break_minutes: 15"},
         {.nurse = "duty_minutes: 0"},
@@ -534,8 +535,8 @@ static bool check_golden_case(const char *name)
         snprintf(actual + actual_len, actual_size - actual_len, "%s\n", line);
         actual_len += (size_t)len + 1;
     }
-    bool ok = rc == KEEL_ERR_INPUT && r == NULL && err.nproblems > 0 &&
-              strcmp(actual, expected) == 0;
+    bool ok =
+        rc == KEEL_ERR_INPUT && r == NULL && err.nproblems > 0 && strcmp(actual, expected) == 0;
     if (!ok)
         print_message("golden case %s (status %d):\n--- expected\n%s--- actual\n%s", name, rc,
                       expected, actual);

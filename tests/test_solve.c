@@ -162,8 +162,8 @@ static tu_case *random_small_case(uint64_t *seed)
                 tu_add_skill(c, n, skills[k]);
     }
     for (size_t p = 0; p < np; p++) {
-        c->w.care_minutes[p] = tu_range(seed, 0, 1) ? tu_range(seed, 1, 14) * 30
-                                                    : tu_range(seed, 20, 400);
+        c->w.care_minutes[p] =
+            tu_range(seed, 0, 1) ? tu_range(seed, 1, 14) * 30 : tu_range(seed, 20, 400);
         for (size_t k = 0; k < 2; k++)
             if (tu_range(seed, 0, 9) < 2)
                 tu_add_need(c, p, skills[k]);

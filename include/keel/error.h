@@ -19,12 +19,12 @@ extern "C" {
 
 /* One status enum for the whole library; 0 means success. */
 typedef enum keel_status {
-    KEEL_OK = 0,          /* success */
-    KEEL_ERR_USAGE = 1,   /* the caller passed an invalid argument or option */
-    KEEL_ERR_INPUT = 2,   /* the input is malformed or breaks the roster schema */
-    KEEL_ERR_IO = 3,      /* a file could not be read or written */
-    KEEL_ERR_NOMEM = 4,   /* an allocation failed */
-    KEEL_ERR_SOLVER = 5,  /* the solver failed in a way it should not */
+    KEEL_OK = 0,         /* success */
+    KEEL_ERR_USAGE = 1,  /* the caller passed an invalid argument or option */
+    KEEL_ERR_INPUT = 2,  /* the input is malformed or breaks the roster schema */
+    KEEL_ERR_IO = 3,     /* a file could not be read or written */
+    KEEL_ERR_NOMEM = 4,  /* an allocation failed */
+    KEEL_ERR_SOLVER = 5, /* the solver failed in a way it should not */
 } keel_status;
 
 /* One problem: where it is and what is wrong.  line and column are 1-based;

@@ -19,12 +19,12 @@ extern "C" {
 #endif
 
 typedef struct keel_finding {
-    const char *rule;    /* static rule name */
+    const char *rule; /* static rule name */
     size_t npatients;
-    size_t *patients;    /* patient indices into the roster */
+    size_t *patients; /* patient indices into the roster */
     size_t nnurses;
-    size_t *nurses;      /* nurse indices into the roster */
-    char *message;       /* plain words, naming patients, nurses and what is short */
+    size_t *nurses; /* nurse indices into the roster */
+    char *message;  /* plain words, naming patients, nurses and what is short */
 } keel_finding;
 
 /* A growable list of findings; owns its entries. */

@@ -28,18 +28,18 @@ extern "C" {
 
 typedef struct keel_nurse_metrics {
     int npatients;
-    int care_minutes;       /* sum of care of the nurse's patients */
-    int load_minutes;       /* duty + care */
+    int care_minutes; /* sum of care of the nurse's patients */
+    int load_minutes; /* duty + care */
     int capacity_minutes;
-    double utilisation;     /* load / capacity; 0 when capacity is 0 */
+    double utilisation; /* load / capacity; 0 when capacity is 0 */
     bool counted;
 } keel_nurse_metrics;
 
 typedef struct keel_metrics {
     size_t nnurses;
-    keel_nurse_metrics *nurses;   /* [nnurses] */
+    keel_nurse_metrics *nurses; /* [nnurses] */
     size_t ncounted;
-    size_t nunassigned;           /* patients without a nurse */
+    size_t nunassigned; /* patients without a nurse */
 
     double max_utilisation;
     double min_utilisation;
@@ -50,11 +50,11 @@ typedef struct keel_metrics {
     double jain;
     double gini;
 
-    long care_minutes;            /* all patients */
-    long duty_minutes;            /* counted nurses */
-    long capacity_minutes;        /* counted nurses */
-    double unit_utilisation;      /* (care + duty) / capacity, the census against the staff */
-    double nurses_needed;         /* (care + duty) / mean capacity of counted nurses */
+    long care_minutes;       /* all patients */
+    long duty_minutes;       /* counted nurses */
+    long capacity_minutes;   /* counted nurses */
+    double unit_utilisation; /* (care + duty) / capacity, the census against the staff */
+    double nurses_needed;    /* (care + duty) / mean capacity of counted nurses */
 } keel_metrics;
 
 /* Computes the metrics of the assignment nurse_of ([w->npatients], a nurse

@@ -26,8 +26,8 @@ bool keel_plan_from_roster(const keel_roster *roster, int *nurse_of);
  * (unassigned patients are skipped): `skill` for a missing competency,
  * `patient_limit` for a nurse over her limit.  Statuses: KEEL_OK,
  * KEEL_ERR_NOMEM.  The caller owns what is appended. */
-keel_status keel_plan_check(const keel_roster *roster, const keel_workload *w,
-                            const int *nurse_of, keel_findings *out, keel_error *err);
+keel_status keel_plan_check(const keel_roster *roster, const keel_workload *w, const int *nurse_of,
+                            keel_findings *out, keel_error *err);
 
 #ifdef __cplusplus
 }

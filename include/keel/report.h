@@ -26,13 +26,13 @@ extern "C" {
 #endif
 
 /* The safety caution carried by every human-facing output. */
-#define KEEL_CAUTION                                                                           \
-    "Decision support only: the charge nurse's judgement, facility policy and the staffing "   \
+#define KEEL_CAUTION                                                                               \
+    "Decision support only: the charge nurse's judgement, facility policy and the staffing "       \
     "law that applies locally govern every assignment."
 
 typedef enum keel_report_kind {
-    KEEL_REPORT_ASSIGN,   /* a solved assignment (keel assign) */
-    KEEL_REPORT_CHECK,    /* a workload view, and the score of a given plan if any (keel check) */
+    KEEL_REPORT_ASSIGN, /* a solved assignment (keel assign) */
+    KEEL_REPORT_CHECK,  /* a workload view, and the score of a given plan if any (keel check) */
 } keel_report_kind;
 
 /* Everything a writer may show.  All borrowed. */
@@ -40,10 +40,10 @@ typedef struct keel_report {
     keel_report_kind kind;
     const keel_roster *roster;
     const keel_workload *workload;
-    const int *nurse_of;              /* the assignment shown, or NULL (check without a plan) */
-    const keel_metrics *metrics;      /* of nurse_of (of no assignment when nurse_of is NULL) */
-    const keel_solution *solution;    /* assign: the solve; check: the best-possible solve or NULL */
-    const keel_findings *violations;  /* check: rules the given plan breaks, or NULL */
+    const int *nurse_of;             /* the assignment shown, or NULL (check without a plan) */
+    const keel_metrics *metrics;     /* of nurse_of (of no assignment when nurse_of is NULL) */
+    const keel_solution *solution;   /* assign: the solve; check: the best-possible solve or NULL */
+    const keel_findings *violations; /* check: rules the given plan breaks, or NULL */
 } keel_report;
 
 /* Writes the report in the named format to out.  Statuses: KEEL_OK,

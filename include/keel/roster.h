@@ -14,6 +14,7 @@
 #ifndef KEEL_ROSTER_H
 #define KEEL_ROSTER_H
 
+#include <stdbool.h>
 #include <stddef.h>
 
 #include "keel/error.h"
@@ -32,34 +33,34 @@ typedef struct keel_mark {
 } keel_mark;
 
 typedef struct keel_nurse {
-    char *id;            /* required, unique */
-    char *name;          /* NULL when absent */
+    char *id;   /* required, unique */
+    char *name; /* NULL when absent */
     size_t nskills;
     char **skills;
-    int max_patients;    /* KEEL_ABSENT: policy.max_patients applies */
-    int minutes;         /* minutes on the unit; KEEL_ABSENT: shift.minutes */
-    int break_minutes;   /* KEEL_ABSENT: shift.break_minutes */
-    int duty_minutes;    /* fixed non-patient work; KEEL_ABSENT: 0 */
-    keel_mark mark;      /* where the nurse's mapping starts */
+    int max_patients;  /* KEEL_ABSENT: policy.max_patients applies */
+    int minutes;       /* minutes on the unit; KEEL_ABSENT: shift.minutes */
+    int break_minutes; /* KEEL_ABSENT: shift.break_minutes */
+    int duty_minutes;  /* fixed non-patient work; KEEL_ABSENT: 0 */
+    keel_mark mark;    /* where the nurse's mapping starts */
 } keel_nurse;
 
 typedef struct keel_patient {
-    char *id;            /* required, unique: the patient, not the bed */
-    char *bed;           /* NULL when absent */
-    char *name;          /* NULL when absent; hidden in de-identified output */
-    int acuity;          /* KEEL_ABSENT when not given */
-    int care_minutes;    /* explicit figure; KEEL_ABSENT when not given */
+    char *id;         /* required, unique: the patient, not the bed */
+    char *bed;        /* NULL when absent */
+    char *name;       /* NULL when absent; hidden in de-identified output */
+    int acuity;       /* KEEL_ABSENT when not given */
+    int care_minutes; /* explicit figure; KEEL_ABSENT when not given */
     size_t nextras;
-    char **extras;       /* names of policy.extra_minutes entries */
+    char **extras; /* names of policy.extra_minutes entries */
     size_t nneeds;
-    char **needs;        /* competencies the nurse must have, every one */
-    char *nurse;         /* id of the nurse who has this patient, or NULL */
-    keel_mark mark;      /* where the patient's mapping starts */
+    char **needs;   /* competencies the nurse must have, every one */
+    char *nurse;    /* id of the nurse who has this patient, or NULL */
+    keel_mark mark; /* where the patient's mapping starts */
 } keel_patient;
 
 typedef struct keel_acuity_level {
     int level;
-    int minutes;         /* care minutes per shift at this level */
+    int minutes; /* care minutes per shift at this level */
 } keel_acuity_level;
 
 typedef struct keel_extra {
@@ -68,27 +69,27 @@ typedef struct keel_extra {
 } keel_extra;
 
 typedef struct keel_roster {
-    char *path;          /* the file name used in messages */
+    char *path; /* the file name used in messages */
 
     struct {
-        char *name;      /* NULL when absent */
-        char *type;      /* NULL when absent */
+        char *name; /* NULL when absent */
+        char *type; /* NULL when absent */
     } unit;
 
     struct {
-        char *label;     /* NULL when absent */
-        char *date;      /* "YYYY-MM-DD" or NULL */
-        int start_minute;    /* minutes after midnight, KEEL_ABSENT if no start */
-        int minutes;         /* length of the shift, required */
-        int break_minutes;   /* KEEL_ABSENT: 0 */
+        char *label;       /* NULL when absent */
+        char *date;        /* "YYYY-MM-DD" or NULL */
+        int start_minute;  /* minutes after midnight, KEEL_ABSENT if no start */
+        int minutes;       /* length of the shift, required */
+        int break_minutes; /* KEEL_ABSENT: 0 */
     } shift;
 
     struct {
-        int max_patients;    /* KEEL_ABSENT: no unit-wide limit */
+        int max_patients; /* KEEL_ABSENT: no unit-wide limit */
         size_t nacuity;
-        keel_acuity_level *acuity_minutes;  /* sorted by level, unique */
+        keel_acuity_level *acuity_minutes; /* sorted by level, unique */
         size_t nextras;
-        keel_extra *extra_minutes;          /* in file order, unique names */
+        keel_extra *extra_minutes; /* in file order, unique names */
     } policy;
 
     size_t nnurses;
@@ -120,6 +121,9 @@ int keel_roster_acuity_minutes(const keel_roster *roster, int level);
 
 /* Minutes of a named extra in policy.extra_minutes, or KEEL_ABSENT. */
 int keel_roster_extra_minutes(const keel_roster *roster, const char *name);
+
+/* True when the nurse has the named competency in skills. */
+bool keel_nurse_has_skill(const keel_nurse *nurse, const char *skill);
 
 #ifdef __cplusplus
 }

@@ -29,10 +29,10 @@ extern "C" {
 #endif
 
 typedef enum keel_solve_status {
-    KEEL_SOLVE_OPTIMAL,     /* every stage proven optimal */
-    KEEL_SOLVE_TIME_LIMIT,  /* the time limit ended the search; bound and gap say how far */
-    KEEL_SOLVE_HEURISTIC,   /* the greedy method's answer; only the simple bound is known */
-    KEEL_SOLVE_INFEASIBLE,  /* no valid assignment exists; see diagnoses */
+    KEEL_SOLVE_OPTIMAL,    /* every stage proven optimal */
+    KEEL_SOLVE_TIME_LIMIT, /* the time limit ended the search; bound and gap say how far */
+    KEEL_SOLVE_HEURISTIC,  /* the greedy method's answer; only the simple bound is known */
+    KEEL_SOLVE_INFEASIBLE, /* no valid assignment exists; see diagnoses */
 } keel_solve_status;
 
 /* Name used in every output format: "optimal", "time_limit", "heuristic",
@@ -40,8 +40,8 @@ typedef enum keel_solve_status {
 const char *keel_solve_status_name(keel_solve_status status);
 
 typedef struct keel_solve_options {
-    const char *method;     /* "ilp" (default when NULL) or "greedy" */
-    long time_limit_ms;     /* whole solve; <= 0 means the default, 10 000 ms */
+    const char *method; /* "ilp" (default when NULL) or "greedy" */
+    long time_limit_ms; /* whole solve; <= 0 means the default, 10 000 ms */
 } keel_solve_options;
 
 /* What one stage achieved.  value and bound are utilisations: for "peak" the
@@ -49,24 +49,24 @@ typedef struct keel_solve_options {
  * gap = |value - bound| / max(|value|, |bound|): 0 when proven, the usual
  * relative MIP gap. */
 typedef struct keel_stage {
-    const char *name;           /* "peak" or "lift" */
-    keel_solve_status status;   /* OPTIMAL, TIME_LIMIT or HEURISTIC */
+    const char *name;         /* "peak" or "lift" */
+    keel_solve_status status; /* OPTIMAL, TIME_LIMIT or HEURISTIC */
     double value;
     double bound;
     double gap;
-    int solver_calls;           /* integer programmes solved in this stage */
-    double seconds;             /* wall time spent in this stage */
+    int solver_calls; /* integer programmes solved in this stage */
+    double seconds;   /* wall time spent in this stage */
 } keel_stage;
 
 typedef struct keel_solution {
     keel_solve_status status;
-    const char *method;         /* the method that ran */
+    const char *method; /* the method that ran */
     size_t npatients;
-    int *nurse_of;              /* [npatients]: nurse index, -1 when infeasible */
+    int *nurse_of; /* [npatients]: nurse index, -1 when infeasible */
     size_t nstages;
     keel_stage stages[2];
-    double seconds;             /* wall time of the whole solve */
-    keel_findings diagnoses;    /* why no assignment exists (INFEASIBLE only) */
+    double seconds;          /* wall time of the whole solve */
+    keel_findings diagnoses; /* why no assignment exists (INFEASIBLE only) */
 } keel_solution;
 
 /* Solves the workload of roster.  On KEEL_OK, *out is a new solution whose
@@ -75,8 +75,7 @@ typedef struct keel_solution {
  * KEEL_OK, KEEL_ERR_USAGE (unknown method), KEEL_ERR_NOMEM, KEEL_ERR_SOLVER.
  * Borrowed: roster and w must outlive the call only. */
 keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
-                       const keel_solve_options *options, keel_solution **out,
-                       keel_error *err);
+                       const keel_solve_options *options, keel_solution **out, keel_error *err);
 
 /* Frees the solution.  NULL-safe. */
 void keel_solution_free(keel_solution *solution);

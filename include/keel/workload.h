@@ -31,18 +31,17 @@ extern "C" {
 typedef struct keel_workload {
     size_t npatients;
     size_t nnurses;
-    int *care_minutes;       /* [npatients] */
-    int *capacity_minutes;   /* [nnurses], > 0 for counted nurses */
-    int *duty_minutes;       /* [nnurses] */
-    int *max_patients;       /* [nnurses], the effective limit */
-    bool *eligible;          /* [npatients * nnurses], pair (p, n) at p * nnurses + n */
+    int *care_minutes;     /* [npatients] */
+    int *capacity_minutes; /* [nnurses], > 0 for counted nurses */
+    int *duty_minutes;     /* [nnurses] */
+    int *max_patients;     /* [nnurses], the effective limit */
+    bool *eligible;        /* [npatients * nnurses], pair (p, n) at p * nnurses + n */
 } keel_workload;
 
 /* Derives the workload of a valid roster.  The caller owns *out; free it with
  * keel_workload_free().  Statuses: KEEL_OK, KEEL_ERR_NOMEM, KEEL_ERR_INPUT
  * (a counted nurse without capacity: one problem per nurse). */
-keel_status keel_workload_compute(const keel_roster *roster, keel_workload **out,
-                                  keel_error *err);
+keel_status keel_workload_compute(const keel_roster *roster, keel_workload **out, keel_error *err);
 
 /* Frees the workload.  NULL-safe. */
 void keel_workload_free(keel_workload *w);

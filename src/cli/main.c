@@ -80,9 +80,10 @@ static void print_usage(FILE *out)
     for (size_t i = 0; i < ncommands; i++)
         fprintf(out, "  %-8s %s\n", commands[i].name, commands[i].summary);
     fprintf(out, "  %-8s %s\n", "help", "show help for a command");
-    fprintf(out, "\nOptions: --help, --version\n"
-                 "Exit codes: 0 success, 1 usage error, 2 bad input, 3 no valid assignment "
-                 "exists,\n4 internal or solver failure.\n\n%s\n",
+    fprintf(out,
+            "\nOptions: --help, --version\n"
+            "Exit codes: 0 success, 1 usage error, 2 bad input, 3 no valid assignment "
+            "exists,\n4 internal or solver failure.\n\n%s\n",
             KEEL_CAUTION);
 }
 
@@ -161,8 +162,9 @@ static int parse_time_limit(const command *cmd, const char *text, long *ms)
     errno = 0;
     double secs = strtod(text, &end);
     if (errno || end == text || *end || !(secs > 0) || secs > 86400)
-        return usage_error(cmd, "--time-limit: '%s' is not a number of seconds between 0 and "
-                                "86400",
+        return usage_error(cmd,
+                           "--time-limit: '%s' is not a number of seconds between 0 and "
+                           "86400",
                            text);
     *ms = (long)(secs * 1000.0 + 0.5);
     if (*ms < 1)
@@ -335,8 +337,9 @@ static int run_check(const options *opt)
         return exit_code(rc);
     }
     if (partial && !complete)
-        fprintf(stderr, "keel check: %s: some patients have no nurse yet; a plan is scored when "
-                        "every patient has one\n",
+        fprintf(stderr,
+                "keel check: %s: some patients have no nurse yet; a plan is scored when "
+                "every patient has one\n",
                 opt->roster);
     keel_report rep = {.kind = KEEL_REPORT_CHECK,
                        .roster = s.roster,

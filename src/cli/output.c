@@ -26,8 +26,10 @@ int cli_output_open(cli_output *o, const char *path, const char *input)
     if (!path || strcmp(path, "-") == 0)
         return 0;
     if (input && (strcmp(path, input) == 0 || same_file(path, input))) {
-        fprintf(stderr, "keel: %s: refusing to write over the input roster; choose another "
-                        "output file\n", path);
+        fprintf(stderr,
+                "keel: %s: refusing to write over the input roster; choose another "
+                "output file\n",
+                path);
         return 1;
     }
     size_t len = strlen(path);

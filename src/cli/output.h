@@ -8,8 +8,8 @@
 
 typedef struct cli_output {
     FILE *stream;
-    char *path;      /* final name, or NULL for stdout */
-    char *tmp_path;  /* temporary name written first */
+    char *path;     /* final name, or NULL for stdout */
+    char *tmp_path; /* temporary name written first */
 } cli_output;
 
 /* Opens the output: stdout when path is NULL or "-", else a temporary file
