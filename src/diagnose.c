@@ -3,7 +3,7 @@
  * diagnose.c - does any valid assignment exist, and if not, why not.
  *
  * Ignoring balance, a valid assignment is a b-matching: each patient to one
- * eligible nurse, each nurse at most her limit.  Augmenting paths find one
+ * eligible nurse, each nurse at most the nurse's limit.  Augmenting paths find one
  * or stop at a patient that cannot be placed.  The patients and nurses the
  * failed search reached form a proof (Hall's condition): every one of those
  * patients can only go to those nurses, the nurses are full, and the
@@ -202,9 +202,8 @@ static char *describe_shortage(const keel_roster *r, const keel_workload *w, con
         char *what = ncommon ? join_names(skills, ncommon) : keel_strdup("competencies");
         if (what)
             msg = keel_asprintf(
-                "patients %s need %s%s; only %s %s %s, and between them "
-                "the patient limits leave %ld place%s: %zu more place%s "
-                "needed",
+                "patients %s need %s%s; only %s %s %s, with %ld place%s under the "
+                "patient limits: %zu more place%s needed",
                 who, what, ncommon ? "" : " that few nurses have", nurses,
                 nnur == 1 ? "has" : "have", ncommon ? (ncommon == 1 ? "it" : "them") : "them",
                 places, places == 1 ? "" : "s", s->left_out, s->left_out == 1 ? " is" : "s are");

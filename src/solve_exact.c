@@ -5,11 +5,11 @@
  *
  * Loads are whole minutes, so a nurse's utilisation can only take the values
  * (duty + s) / capacity where s is a sum of care minutes of at most limit(n)
- * patients she may take; a small dynamic programme per nurse lists those
+ * patients the nurse may take; a small dynamic programme per nurse lists those
  * sums.  Stage 1 ("peak") sorts the candidate values between the proven
  * floor and the incumbent and asks, at a candidate t, "is there an
  * assignment in which every nurse's care stays within the largest reachable
- * sum that keeps her at or under t?".  Yes gives a better incumbent; a
+ * sum that keeps the nurse at or under t?".  Yes gives a better incumbent; a
  * proven no moves the proven bound past t.  When bound and incumbent meet,
  * the optimum is proven, without waiting for an LP relaxation to close the
  * gap.  Stage 2 ("lift") asks the same upwards for the lightest utilisation
@@ -35,8 +35,8 @@
 /* Share of the time limit stage 1 may use (in tenths). */
 #define PEAK_SHARE_TENTHS 7
 
-/* Per counted nurse: which care sums up to smax she can carry with at most
- * her limit of patients she may take. */
+/* Per counted nurse: which care sums up to smax the nurse can carry with
+ * at most the limit of eligible patients. */
 typedef struct sums {
     long long smax;
     bool *reach; /* [smax + 1] */

@@ -104,7 +104,7 @@ static int build_and_solve(const keel_workload *w, const long long *lo, const lo
     *lp_out = lp;
     glp_set_obj_dir(lp, GLP_MIN);
     /* Rows: one per class (its size), then per counted nurse: patient count,
-     * care minutes and, for a nurse with a twin after her, the load order. */
+     * care minutes and, for a nurse with a twin after it, the load order. */
     int crow = m->nclasses > 0 ? glp_add_rows(lp, (int)m->nclasses) : 1;
     for (size_t c = 0; c < m->nclasses; c++)
         glp_set_row_bnds(lp, crow + (int)c, GLP_FX, (double)m->class_size[c],
