@@ -162,11 +162,14 @@ keel_status keel_report_text(const keel_report *rep, FILE *out)
             fputs("The plan keeps every rule keel checks.\n\n", out);
         if (s && s->status == KEEL_SOLVE_INFEASIBLE)
             write_findings(out, "No valid assignment exists", &s->diagnoses);
-        else if (s && s->nstages > 0)
-            fprintf(out, "Best possible heaviest utilisation: %.1f %% (%s)\n\n",
-                    100.0 * s->stages[0].value,
-                    s->stages[0].status == KEEL_SOLVE_OPTIMAL ? "proven"
-                                                              : "best found, not proven");
+        else if (s && s->nstages > 0) {
+            fprintf(
+                out, "Best possible heaviest utilisation: %.1f %% (%s)", 100.0 * s->stages[0].value,
+                s->stages[0].status == KEEL_SOLVE_OPTIMAL ? "proven" : "best found, not proven");
+            if (rep->nurse_of)
+                fprintf(out, "; this plan's: %.1f %%", 100.0 * rep->metrics->max_utilisation);
+            fputs("\n\n", out);
+        }
     }
     write_staffing(out, rep->metrics);
     fprintf(out, "%s\n", KEEL_CAUTION);
