@@ -207,7 +207,8 @@ static keel_status ask(search *S, long long deadline_ms, keel_ilp_answer *answer
         *answer = KEEL_ILP_INFEASIBLE;
         return KEEL_OK;
     }
-    keel_status rc = keel_fit_search(w, S->lo, S->hi, FIT_NODE_BUDGET, S->trial, answer);
+    keel_status rc =
+        keel_fit_search(w, S->lo, S->hi, FIT_NODE_BUDGET, deadline_ms, S->trial, answer);
     if (rc)
         return keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
     if (*answer != KEEL_ILP_UNKNOWN)

@@ -13,8 +13,8 @@
  * patients could still use is less than their care, or the care they must
  * still bring to nurses below their window is more than they have.
  *
- * The search stops after a node budget and answers "unknown"; the caller
- * then asks GLPK.  A "feasible" or "infeasible" answer is exact.
+ * The search stops after a node budget or at a deadline and answers
+ * "unknown"; the caller then asks GLPK.  A "feasible" or "infeasible" answer is exact.
  */
 #include <stdlib.h>
 #include <string.h>
@@ -37,6 +37,7 @@ typedef struct fit {
     size_t *tried;      /* scratch per depth: nurses in trial order */
     long nodes;
     long budget;
+    long long deadline_ms; /* give up at this time too (0: no deadline) */
     bool gave_up;
 } fit;
 
@@ -97,7 +98,8 @@ static bool search(fit *F, size_t k)
                 return false;
         return true;
     }
-    if (++F->nodes > F->budget) {
+    if (++F->nodes > F->budget ||
+        (F->deadline_ms && (F->nodes & 1023) == 0 && keel_clock_ms() >= F->deadline_ms)) {
         F->gave_up = true;
         return false;
     }
@@ -144,10 +146,12 @@ static bool search(fit *F, size_t k)
 }
 
 keel_status keel_fit_search(const keel_workload *w, const long long *lo, const long long *hi,
-                            long node_budget, int *nurse_of, keel_ilp_answer *answer)
+                            long node_budget, long long deadline_ms, int *nurse_of,
+                            keel_ilp_answer *answer)
 {
     size_t np = w->npatients, nn = w->nnurses;
-    fit F = {.w = w, .lo = lo, .hi = hi, .budget = node_budget};
+    fit F = {.w = w, .lo = lo, .hi = hi, .budget = node_budget,
+             .deadline_ms = deadline_ms};
     F.order = keel_calloc(np, sizeof *F.order);
     F.twin_of_prev = keel_calloc(np, sizeof *F.twin_of_prev);
     F.group = keel_calloc(nn, sizeof *F.group);

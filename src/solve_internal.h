@@ -93,9 +93,11 @@ keel_status keel_ilp_fit(const keel_workload *w, const long long *lo, const long
 
 /* solve_fit.c: the same question as keel_ilp_fit(), answered by a
  * dedicated branch and bound that gives up (KEEL_ILP_UNKNOWN) after
- * node_budget nodes.  Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
+ * node_budget nodes or at deadline_ms on keel_clock_ms() (0: none).
+ * Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
 keel_status keel_fit_search(const keel_workload *w, const long long *lo, const long long *hi,
-                            long node_budget, int *nurse_of, keel_ilp_answer *answer);
+                            long node_budget, long long deadline_ms, int *nurse_of,
+                            keel_ilp_answer *answer);
 
 /* Monotonic wall clock in milliseconds. */
 long long keel_clock_ms(void);

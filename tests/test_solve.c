@@ -265,7 +265,7 @@ static void test_glpk_and_the_dedicated_search_agree_on_every_question(void **st
         }
         int *a = calloc(c->w.npatients + 1, sizeof *a), *b = calloc(c->w.npatients + 1, sizeof *b);
         keel_ilp_answer by_search, by_glpk;
-        assert_int_equal(keel_fit_search(&c->w, lo, hi, 100000000L, a, &by_search), KEEL_OK);
+        assert_int_equal(keel_fit_search(&c->w, lo, hi, 100000000L, 0, a, &by_search), KEEL_OK);
         assert_int_equal(keel_ilp_fit(&c->w, lo, hi, 60000, b, &by_glpk, NULL), KEEL_OK);
         assert_int_not_equal(by_search, KEEL_ILP_UNKNOWN);
         assert_int_equal(by_search, by_glpk);
