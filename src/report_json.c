@@ -74,7 +74,7 @@ static void write_nurses(FILE *out, const keel_report *rep)
         fprintf(out, ", \"duty_minutes\": %d, \"capacity_minutes\": %d", w->duty_minutes[n],
                 w->capacity_minutes[n]);
         if (rep->nurse_of)
-            fprintf(out, ", \"utilisation\": %.10g", m->utilisation);
+            fprintf(out, ", \"utilisation\": %.12g", m->utilisation);
         fprintf(out, ", \"max_patients\": %d, \"counted\": %s}", w->max_patients[n],
                 keel_workload_counted(w, n) ? "true" : "false");
     }
@@ -107,9 +107,9 @@ static void write_patients(FILE *out, const keel_report *rep)
 static void write_imbalance(FILE *out, const keel_metrics *m)
 {
     fprintf(out,
-            "  \"imbalance\": {\"max_utilisation\": %.10g, \"min_utilisation\": %.10g, "
-            "\"mean_utilisation\": %.10g, \"spread\": %.10g, \"peak_to_mean\": %.10g, "
-            "\"cv\": %.10g, \"jain\": %.10g, \"gini\": %.10g, \"counted_nurses\": %zu},\n",
+            "  \"imbalance\": {\"max_utilisation\": %.12g, \"min_utilisation\": %.12g, "
+            "\"mean_utilisation\": %.12g, \"spread\": %.12g, \"peak_to_mean\": %.12g, "
+            "\"cv\": %.12g, \"jain\": %.12g, \"gini\": %.12g, \"counted_nurses\": %zu},\n",
             m->max_utilisation, m->min_utilisation, m->mean_utilisation, m->spread, m->peak_to_mean,
             m->cv, m->jain, m->gini, m->ncounted);
 }
@@ -117,14 +117,14 @@ static void write_imbalance(FILE *out, const keel_metrics *m)
 static void write_stages(FILE *out, const keel_solution *s)
 {
     if (s->nstages > 0)
-        fprintf(out, "  \"bound\": {\"max_utilisation\": %.10g, \"gap\": %.10g},\n",
+        fprintf(out, "  \"bound\": {\"max_utilisation\": %.12g, \"gap\": %.12g},\n",
                 s->stages[0].bound, s->stages[0].gap);
     fputs("  \"stages\": [", out);
     for (size_t i = 0; i < s->nstages; i++) {
         const keel_stage *st = &s->stages[i];
         fprintf(out,
-                "%s{\"name\": \"%s\", \"status\": \"%s\", \"value\": %.10g, \"bound\": %.10g, "
-                "\"gap\": %.10g, \"solver_calls\": %d, \"seconds\": %.3f}",
+                "%s{\"name\": \"%s\", \"status\": \"%s\", \"value\": %.12g, \"bound\": %.12g, "
+                "\"gap\": %.12g, \"solver_calls\": %d, \"seconds\": %.3f}",
                 i ? ",\n    " : "\n    ", st->name, keel_solve_status_name(st->status), st->value,
                 st->bound, st->gap, st->solver_calls, st->seconds);
     }
@@ -137,7 +137,7 @@ static void write_staffing(FILE *out, const keel_report *rep)
     fprintf(out,
             "  \"staffing\": {\"patients\": %zu, \"nurses_on_shift\": %zu, "
             "\"nurses_taking_patients\": %zu, \"care_minutes\": %ld, \"duty_minutes\": %ld, "
-            "\"capacity_minutes\": %ld, \"utilisation\": %.10g, \"nurses_needed\": %.10g},\n",
+            "\"capacity_minutes\": %ld, \"utilisation\": %.12g, \"nurses_needed\": %.12g},\n",
             rep->workload->npatients, m->nnurses, m->ncounted, m->care_minutes, m->duty_minutes,
             m->capacity_minutes, m->unit_utilisation, m->nurses_needed);
 }
@@ -167,8 +167,8 @@ keel_status keel_report_json(const keel_report *rep, FILE *out)
         write_findings(out, r, "violations", rep->violations);
         if (s && s->status != KEEL_SOLVE_INFEASIBLE && s->nstages > 0)
             fprintf(out,
-                    "  \"best_possible\": {\"status\": \"%s\", \"max_utilisation\": %.10g, "
-                    "\"bound\": %.10g},\n",
+                    "  \"best_possible\": {\"status\": \"%s\", \"max_utilisation\": %.12g, "
+                    "\"bound\": %.12g},\n",
                     keel_solve_status_name(s->stages[0].status), s->stages[0].value,
                     s->stages[0].bound);
     }
