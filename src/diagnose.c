@@ -56,7 +56,8 @@ typedef struct shortage {
     bool *nurses;   /* [nnurses] */
     bool *patients; /* [npatients] */
     size_t left_out;
-    char *needs_key; /* for "no eligible nurse": the patient whose needs name the group */
+    char *needs_key;  /* for "no eligible nurse": what groups such patients */
+    const char *rule; /* skill, lock, avoid or patient_limit */
 } shortage;
 
 static bool same_nurses(const bool *a, const bool *b, size_t n)
@@ -140,6 +141,77 @@ static size_t collect(const bool *marks, size_t n, size_t *idx)
         if (marks[i])
             idx[k++] = i;
     return k;
+}
+
+/* Why patient p has no eligible nurse at all: its lock, its avoid list, or
+ * competencies; the rule name, and a key that groups patients with the same
+ * reason (each locked or avoiding patient is its own group). */
+static const char *unreachable_rule(const keel_roster *r, const keel_workload *w, size_t p,
+                                    char **skills)
+{
+    const keel_patient *pat = &r->patients[p];
+    if (pat->lock)
+        return "lock";
+    if (missing_needs(r, w, pat, skills) > 0 || pat->navoid == 0)
+        return "skill";
+    for (size_t n = 0; n < r->nnurses; n++) {
+        bool capable = w->max_patients[n] > 0;
+        for (size_t i = 0; i < pat->nneeds && capable; i++)
+            capable = keel_nurse_has_skill(&r->nurses[n], pat->needs[i]);
+        if (capable)
+            return "avoid"; /* someone could take the patient but for the avoid list */
+    }
+    return "skill";
+}
+
+static char *unreachable_key(const keel_roster *r, const keel_workload *w, size_t p, char **skills)
+{
+    const char *rule = unreachable_rule(r, w, p, skills);
+    if (strcmp(rule, "skill") != 0)
+        return keel_asprintf("%s %s", rule, r->patients[p].id);
+    return join_names(skills, missing_needs(r, w, &r->patients[p], skills));
+}
+
+/* "T-1 is locked to R3, who takes no patients" and the like. */
+static char *describe_restricted(const keel_roster *r, const keel_workload *w, const shortage *s,
+                                 char **skills)
+{
+    size_t p = 0;
+    while (!s->patients[p])
+        p++;
+    const keel_patient *pat = &r->patients[p];
+    if (strcmp(s->rule, "lock") == 0) {
+        int n = keel_roster_find_nurse(r, pat->nurse);
+        if (n < 0 || w->max_patients[n] == 0)
+            return keel_asprintf("%s is locked to %s, who takes no patients on this shift", pat->id,
+                                 pat->nurse);
+        size_t k = 0;
+        for (size_t i = 0; i < pat->nneeds; i++)
+            if (!keel_nurse_has_skill(&r->nurses[n], pat->needs[i]))
+                skills[k++] = pat->needs[i];
+        char *what = join_names(skills, k);
+        char *msg = what ? keel_asprintf("%s is locked to %s, who does not have %s", pat->id,
+                                         pat->nurse, what)
+                         : NULL;
+        free(what);
+        return msg;
+    }
+    char *avoided = join_names(pat->avoid, pat->navoid);
+    char *msg = NULL;
+    if (avoided && pat->nneeds == 0)
+        msg = keel_asprintf("every nurse on shift who may take patients is on %s's avoid list "
+                            "(%s)",
+                            pat->id, avoided);
+    else if (avoided) {
+        char *what = join_names(pat->needs, pat->nneeds);
+        if (what)
+            msg = keel_asprintf("%s needs %s, and every nurse on shift who has it and may take "
+                                "patients is on the patient's avoid list (%s)",
+                                pat->id, what, avoided);
+        free(what);
+    }
+    free(avoided);
+    return msg;
 }
 
 static char *describe_unreachable(const keel_roster *r, const keel_workload *w, const shortage *s,
@@ -256,8 +328,7 @@ keel_status keel_diagnose(const keel_roster *r, const keel_workload *w, int *nur
                 continue;
             if (!none)
                 break;
-            size_t ka = missing_needs(r, w, &r->patients[p], skills);
-            char *ja = join_names(skills, ka);
+            char *ja = unreachable_key(r, w, p, skills);
             if (!ja) {
                 rc = KEEL_ERR_NOMEM;
                 goto out;
@@ -278,8 +349,8 @@ keel_status keel_diagnose(const keel_roster *r, const keel_workload *w, int *nur
             *s = (shortage){0};
             s->nurses = keel_calloc(nn, sizeof *s->nurses);
             s->patients = keel_calloc(np, sizeof *s->patients);
-            size_t ka = missing_needs(r, w, &r->patients[p], skills);
-            s->needs_key = join_names(skills, ka);
+            s->needs_key = unreachable_key(r, w, p, skills);
+            s->rule = none ? unreachable_rule(r, w, p, skills) : "patient_limit";
             nshort++;
             if (!s->nurses || !s->patients || !s->needs_key) {
                 rc = KEEL_ERR_NOMEM;
@@ -294,13 +365,25 @@ keel_status keel_diagnose(const keel_roster *r, const keel_workload *w, int *nur
 
     *feasible = nshort == 0;
     for (size_t i = 0; i < nshort && !rc; i++) {
-        const shortage *s = &shorts[i];
+        shortage *s = &shorts[i];
         size_t kp = collect(s->patients, np, pidx), kn = collect(s->nurses, nn, nidx);
-        char *msg = kn == 0 ? describe_unreachable(r, w, s, names, kp, skills)
-                            : describe_shortage(r, w, s, names, skills, ncounted);
+        bool all_locked = kn == 1;
+        for (size_t i2 = 0; i2 < kp && all_locked; i2++)
+            all_locked = r->patients[pidx[i2]].lock;
+        if (all_locked && kn == 1) {
+            s->rule = "lock";
+            rc = keel_findings_add(
+                out, "lock", pidx, kp, nidx, kn,
+                keel_asprintf("%zu patients are locked to %s, whose patient limit is %d", kp,
+                              r->nurses[nidx[0]].id, w->max_patients[nidx[0]]));
+            continue;
+        }
+        char *msg = kn > 0 ? describe_shortage(r, w, s, names, skills, ncounted)
+                    : strcmp(s->rule, "skill") == 0
+                        ? describe_unreachable(r, w, s, names, kp, skills)
+                        : describe_restricted(r, w, s, skills);
         bool everyone = kn == ncounted && kn > 0;
-        rc = keel_findings_add(out, kn == 0 ? "skill" : "patient_limit", pidx, everyone ? 0 : kp,
-                               nidx, kn, msg);
+        rc = keel_findings_add(out, s->rule, pidx, everyone ? 0 : kp, nidx, kn, msg);
     }
 out:
     for (size_t i = 0; i < nshort; i++) {

@@ -63,12 +63,40 @@ static keel_status check_limits(const keel_roster *r, const keel_workload *w, co
     return rc;
 }
 
+/* A locked patient must stay with its nurse; nobody gets a patient who
+ * must avoid them. */
+static keel_status check_restrictions(const keel_roster *r, const int *nurse_of, keel_findings *out)
+{
+    keel_status rc = KEEL_OK;
+    for (size_t p = 0; p < r->npatients && !rc; p++) {
+        if (nurse_of[p] < 0)
+            continue;
+        size_t n = (size_t)nurse_of[p];
+        const keel_patient *pat = &r->patients[p];
+        if (pat->lock && pat->nurse && strcmp(pat->nurse, r->nurses[n].id) != 0) {
+            char *msg = keel_asprintf("%s is locked to %s but the plan gives the patient to %s",
+                                      pat->id, pat->nurse, r->nurses[n].id);
+            rc = keel_findings_add(out, "lock", &p, 1, &n, 1, msg);
+        }
+        for (size_t i = 0; i < pat->navoid && !rc; i++) {
+            if (strcmp(pat->avoid[i], r->nurses[n].id) != 0)
+                continue;
+            char *msg = keel_asprintf("%s must not be cared for by %s (avoid list)", pat->id,
+                                      r->nurses[n].id);
+            rc = keel_findings_add(out, "avoid", &p, 1, &n, 1, msg);
+        }
+    }
+    return rc;
+}
+
 keel_status keel_plan_check(const keel_roster *r, const keel_workload *w, const int *nurse_of,
                             keel_findings *out, keel_error *err)
 {
     keel_status rc = check_skills(r, nurse_of, out);
     if (!rc)
         rc = check_limits(r, w, nurse_of, out);
+    if (!rc)
+        rc = check_restrictions(r, nurse_of, out);
     if (rc)
         keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
     return rc;

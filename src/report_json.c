@@ -58,6 +58,7 @@ static void write_nurses(FILE *out, const keel_report *rep)
         fputs(n ? ",\n    " : "\n    ", out);
         fputs("{\"id\": ", out);
         keel_write_quoted(out, r->nurses[n].id);
+        fprintf(out, ", \"role\": \"%s\"", keel_role_name(r->nurses[n].role));
         fputs(", \"patients\": [", out);
         size_t k = 0;
         for (size_t p = 0; rep->nurse_of && p < r->npatients; p++) {

@@ -42,12 +42,19 @@ static void write_nurse_blocks(FILE *out, const keel_report *rep)
     const keel_workload *w = rep->workload;
     for (size_t n = 0; n < r->nnurses; n++) {
         const keel_nurse_metrics *m = &rep->metrics->nurses[n];
+        if (r->nurses[n].role == KEEL_ROLE_ORIENTEE) {
+            fprintf(out, "%-6s %-22s orientee: shares %s's assignment\n", r->nurses[n].id,
+                    r->nurses[n].name ? r->nurses[n].name : "", r->nurses[n].preceptor);
+            continue;
+        }
         fprintf(out, "%-6s %-22s %2d patient%s  load %4d of %4d min  %5.1f %%", r->nurses[n].id,
                 r->nurses[n].name ? r->nurses[n].name : "", m->npatients,
                 m->npatients == 1 ? " " : "s", m->load_minutes, m->capacity_minutes,
                 100.0 * m->utilisation);
         if (w->duty_minutes[n] > 0)
             fprintf(out, "  (incl. %d duty min)", w->duty_minutes[n]);
+        if (r->nurses[n].role != KEEL_ROLE_STAFF)
+            fprintf(out, "  %s", keel_role_name(r->nurses[n].role));
         if (!m->counted)
             fputs("  takes no patients", out);
         fputc('\n', out);

@@ -55,7 +55,12 @@ static void write_head(FILE *out, const keel_roster *r)
                 r->shift.start_minute % 60);
     write_key_int(out, "  ", "minutes", r->shift.minutes);
     write_key_int(out, "  ", "break_minutes", r->shift.break_minutes);
-    if (r->policy.max_patients == KEEL_ABSENT && r->policy.nacuity == 0 && r->policy.nextras == 0)
+    bool roles = false;
+    for (size_t i = 0; i < KEEL_NROLES; i++)
+        roles = roles || r->policy.roles[i].max_patients != KEEL_ABSENT ||
+                r->policy.roles[i].duty_minutes != KEEL_ABSENT;
+    if (r->policy.max_patients == KEEL_ABSENT && r->policy.nacuity == 0 && r->policy.nextras == 0 &&
+        !roles)
         return;
     fputs("policy:\n", out);
     write_key_int(out, "  ", "max_patients", r->policy.max_patients);
@@ -75,6 +80,16 @@ static void write_head(FILE *out, const keel_roster *r)
         }
         fputs("}\n", out);
     }
+    if (roles)
+        fputs("  roles:\n", out);
+    for (size_t i = 0; roles && i < KEEL_NROLES; i++) {
+        const keel_role_policy *rp = &r->policy.roles[i];
+        if (rp->max_patients == KEEL_ABSENT && rp->duty_minutes == KEEL_ABSENT)
+            continue;
+        fprintf(out, "    %s:\n", keel_role_name((keel_role)i));
+        write_key_int(out, "      ", "max_patients", rp->max_patients);
+        write_key_int(out, "      ", "duty_minutes", rp->duty_minutes);
+    }
 }
 
 static void write_nurses(FILE *out, const keel_roster *r)
@@ -91,6 +106,11 @@ static void write_nurses(FILE *out, const keel_roster *r)
         write_key_int(out, "    ", "minutes", nu->minutes);
         write_key_int(out, "    ", "break_minutes", nu->break_minutes);
         write_key_int(out, "    ", "duty_minutes", nu->duty_minutes);
+        if (nu->role != KEEL_ROLE_STAFF)
+            fprintf(out, "    role: %s\n", keel_role_name(nu->role));
+        if (nu->licence == KEEL_LICENCE_LPN)
+            fputs("    licence: lpn\n", out);
+        write_key_string(out, "    ", "preceptor", nu->preceptor);
     }
 }
 
@@ -111,6 +131,9 @@ static void write_patients(FILE *out, const keel_report *rep)
         write_key_list(out, "    ", "needs", pa->needs, pa->nneeds);
         int n = rep->nurse_of ? rep->nurse_of[p] : -1;
         write_key_string(out, "    ", "nurse", n >= 0 ? r->nurses[n].id : pa->nurse);
+        if (pa->lock)
+            fputs("    lock: true\n", out);
+        write_key_list(out, "    ", "avoid", pa->avoid, pa->navoid);
     }
 }
 

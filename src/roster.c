@@ -627,6 +627,18 @@ static size_t edit_distance(const char *a, const char *b)
     return d[la][lb];
 }
 
+/* True when candidate is closer to word than *best_distance and close
+ * enough to be a typo of it; then *best_distance becomes its distance. */
+static bool is_closer(const char *word, const char *candidate, size_t *best_distance)
+{
+    size_t distance = edit_distance(word, candidate);
+    size_t longer = strlen(word) > strlen(candidate) ? strlen(word) : strlen(candidate);
+    if (distance >= *best_distance || 3 * distance > longer)
+        return false;
+    *best_distance = distance;
+    return true;
+}
+
 /* The valid key closest to word, when it is close enough to be a typo. */
 static const char *suggest_key(const char *word, const key_rule *keys, size_t nkeys)
 {
@@ -634,14 +646,38 @@ static const char *suggest_key(const char *word, const key_rule *keys, size_t nk
     size_t best_distance = 3;
     if (strlen(word) > MAX_SUGGEST)
         return NULL;
-    for (size_t i = 0; i < nkeys; i++) {
-        size_t distance = edit_distance(word, keys[i].name);
-        size_t longer = strlen(word) > strlen(keys[i].name) ? strlen(word) : strlen(keys[i].name);
-        if (distance < best_distance && 3 * distance <= longer) {
+    for (size_t i = 0; i < nkeys; i++)
+        if (is_closer(word, keys[i].name, &best_distance))
             best = keys[i].name;
-            best_distance = distance;
-        }
+    return best;
+}
+
+/* True when a and b are the same ASCII text, ignoring case. */
+static bool same_ignoring_case(const char *a, const char *b)
+{
+    for (; *a && *b; a++, b++) {
+        char x = *a >= 'A' && *a <= 'Z' ? (char)(*a - 'A' + 'a') : *a;
+        char y = *b >= 'A' && *b <= 'Z' ? (char)(*b - 'A' + 'a') : *b;
+        if (x != y)
+            return false;
     }
+    return *a == *b;
+}
+
+/* The word of words[0..nwords) closest to word: one that differs only in
+ * case, else one close enough to be a typo; NULL when none is. */
+static const char *suggest_word(const char *word, const char *const *words, size_t nwords)
+{
+    const char *best = NULL;
+    size_t best_distance = 3;
+    for (size_t i = 0; i < nwords; i++)
+        if (same_ignoring_case(word, words[i]))
+            return words[i];
+    if (strlen(word) > MAX_SUGGEST)
+        return NULL;
+    for (size_t i = 0; i < nwords; i++)
+        if (is_closer(word, words[i], &best_distance))
+            best = words[i];
     return best;
 }
 
@@ -798,6 +834,130 @@ static void parse_date(loader *ld, const node *value, void *target, const key_ru
         ld->nomem = true;
 }
 
+/* The words a roster may use for unit.type, nurses[].role and
+ * nurses[].licence; each enum's values are in this order. */
+static const char *const unit_types[] = {
+    "icu",       "step-down", "telemetry",   "med-surg",       "pediatrics",
+    "emergency", "oncology",  "psychiatric", "labor-delivery", "postpartum",
+    "pacu",      "burn",      "nicu",        "other"};
+static const char *const role_names[KEEL_NROLES] = {"staff", "charge", "resource", "float",
+                                                    "orientee"};
+static const char *const licence_names[] = {"rn", "lpn"};
+
+/* Titles of unlicensed assistive staff, who take no assignment of their own
+ * (common practice, no source).  Compared ignoring case; a title that
+ * contains one of the stems also counts. */
+static const char *const unlicensed_titles[] = {"cna", "uap", "pct", "hca", "sitter", "tech"};
+static const char *const unlicensed_stems[] = {"assistant", "aide", "technician"};
+
+static bool contains_ignoring_case(const char *text, const char *stem)
+{
+    size_t n = strlen(stem);
+    for (; strlen(text) >= n; text++) {
+        size_t i = 0;
+        while (i < n && (text[i] | 0x20) == stem[i])
+            i++;
+        if (i == n)
+            return true;
+    }
+    return false;
+}
+
+static bool names_unlicensed_staff(const char *word)
+{
+    for (size_t i = 0; i < ARRAY_LEN(unlicensed_titles); i++)
+        if (same_ignoring_case(word, unlicensed_titles[i]))
+            return true;
+    for (size_t i = 0; i < ARRAY_LEN(unlicensed_stems); i++)
+        if (contains_ignoring_case(word, unlicensed_stems[i]))
+            return true;
+    return false;
+}
+
+/* Writes words[0..nwords) as "a, b, c" into buf. */
+static const char *join_words(char *buf, size_t size, const char *const *words, size_t nwords)
+{
+    size_t used = 0;
+    buf[0] = '\0';
+    for (size_t i = 0; i < nwords && used < size; i++) {
+        snprintf(buf + used, size - used, "%s%s", i ? ", " : "", words[i]);
+        used = strlen(buf);
+    }
+    return buf;
+}
+
+/* Reads n, which must be one of words[0..nwords), into *index.  what names
+ * the word in messages ("role"); for nurses' roles and licences a word that
+ * names unlicensed staff gets its own message.  Reports and returns false
+ * when n is not one of the words. */
+static bool read_word(loader *ld, const node *n, const char *what, const char *const *words,
+                      size_t nwords, bool of_nurse, int *index)
+{
+    char shown[SHOWN_SIZE], names[256];
+    join_words(names, sizeof names, words, nwords);
+    if (n->kind != NODE_SCALAR || is_null(n) || n->text[0] == '\0') {
+        char expected[sizeof names + 16];
+        snprintf(expected, sizeof expected, "one of %s", names);
+        report_type(ld, n, expected);
+        return false;
+    }
+    for (size_t i = 0; i < nwords; i++) {
+        if (strcmp(n->text, words[i]) == 0) {
+            *index = (int)i;
+            return true;
+        }
+    }
+    const char *suggestion = suggest_word(n->text, words, nwords);
+    if (of_nurse && names_unlicensed_staff(n->text))
+        report(ld, n->mark,
+               "'%s' names unlicensed staff, who do not belong under nurses; expected one of %s",
+               show(shown, n->text), names);
+    else if (suggestion)
+        report(ld, n->mark, "unknown %s '%s'; did you mean '%s'? expected one of %s", what,
+               show(shown, n->text), suggestion, names);
+    else
+        report(ld, n->mark, "unknown %s '%s'; expected one of %s", what, show(shown, n->text),
+               names);
+    return false;
+}
+
+static void parse_unit_type(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    char **type = field_of(target, rule->offset);
+    int index;
+    if (!read_word(ld, value, "unit type", unit_types, ARRAY_LEN(unit_types), false, &index))
+        return;
+    *type = keel_strdup(unit_types[index]);
+    if (!*type)
+        ld->nomem = true;
+}
+
+static void parse_role(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    int index;
+    if (read_word(ld, value, "role", role_names, KEEL_NROLES, true, &index))
+        *(keel_role *)field_of(target, rule->offset) = (keel_role)index;
+}
+
+static void parse_licence(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    int index;
+    if (read_word(ld, value, "licence", licence_names, ARRAY_LEN(licence_names), true, &index))
+        *(keel_licence *)field_of(target, rule->offset) = (keel_licence)index;
+}
+
+/* A YAML boolean, written plainly as true or false. */
+static void parse_bool(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    bool is_true = value->kind == NODE_SCALAR && !value->quoted && strcmp(value->text, "true") == 0;
+    bool is_false =
+        value->kind == NODE_SCALAR && !value->quoted && strcmp(value->text, "false") == 0;
+    if (!is_true && !is_false)
+        report_type(ld, value, "true or false");
+    else
+        *(bool *)field_of(target, rule->offset) = is_true;
+}
+
 static int compare_levels(const void *a, const void *b)
 {
     const keel_acuity_level *x = a, *y = b;
@@ -932,6 +1092,9 @@ static const key_rule nurse_keys[] = {
      .offset = offsetof(keel_nurse, duty_minutes),
      .min = 0,
      .max = MINUTES_PER_DAY},
+    {.name = "role", .parse = parse_role, .offset = offsetof(keel_nurse, role)},
+    {.name = "licence", .parse = parse_licence, .offset = offsetof(keel_nurse, licence)},
+    {.name = "preceptor", .parse = parse_string, .offset = offsetof(keel_nurse, preceptor)},
 };
 
 static const key_rule patient_keys[] = {
@@ -960,6 +1123,11 @@ static const key_rule patient_keys[] = {
      .offset = offsetof(keel_patient, needs),
      .count_offset = offsetof(keel_patient, nneeds)},
     {.name = "nurse", .parse = parse_string, .offset = offsetof(keel_patient, nurse)},
+    {.name = "lock", .parse = parse_bool, .offset = offsetof(keel_patient, lock)},
+    {.name = "avoid",
+     .parse = parse_names,
+     .offset = offsetof(keel_patient, avoid),
+     .count_offset = offsetof(keel_patient, navoid)},
 };
 
 /* True when value is a non-empty sequence (reported if not). */
@@ -1025,7 +1193,7 @@ static void parse_patients(loader *ld, const node *value, void *target, const ke
 
 static const key_rule unit_keys[] = {
     {.name = "name", .parse = parse_string, .offset = offsetof(keel_roster, unit.name)},
-    {.name = "type", .parse = parse_string, .offset = offsetof(keel_roster, unit.type)},
+    {.name = "type", .parse = parse_unit_type, .offset = offsetof(keel_roster, unit.type)},
 };
 
 static const key_rule shift_keys[] = {
@@ -1045,6 +1213,50 @@ static const key_rule shift_keys[] = {
      .max = MINUTES_PER_DAY - 1},
 };
 
+static const key_rule role_policy_keys[] = {
+    {.name = "max_patients",
+     .parse = parse_int,
+     .offset = offsetof(keel_role_policy, max_patients),
+     .min = 0,
+     .max = MAX_PATIENTS},
+    {.name = "duty_minutes",
+     .parse = parse_int,
+     .offset = offsetof(keel_role_policy, duty_minutes),
+     .min = 0,
+     .max = MINUTES_PER_DAY},
+};
+
+/* policy.roles: role name -> that role's limits. */
+static void parse_role_table(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    keel_roster *r = target;
+    (void)rule;
+    if (value->kind != NODE_MAPPING) {
+        report_type(ld, value,
+                    "a mapping from role to its limits, like {charge: {max_patients: 2}}");
+        return;
+    }
+    for (size_t i = 0; i + 1 < value->nitems; i += 2) {
+        const node *key = value->items[i], *first = NULL;
+        int role;
+        if (!check_key(ld, key))
+            continue;
+        size_t old = push_key(ld, key->text);
+        for (size_t j = 0; j < i && !first; j += 2) {
+            const node *earlier = value->items[j];
+            if (earlier->kind == NODE_SCALAR && strcmp(earlier->text, key->text) == 0)
+                first = earlier;
+        }
+        if (first)
+            report(ld, key->mark, "given twice (first on line %d); expected each role once",
+                   first->mark.line);
+        else if (read_word(ld, key, "role", role_names, KEEL_NROLES, true, &role))
+            walk_mapping(ld, value->items[i + 1], role_policy_keys, ARRAY_LEN(role_policy_keys),
+                         &r->policy.roles[role]);
+        pop_path(ld, old);
+    }
+}
+
 static const key_rule policy_keys[] = {
     {.name = "max_patients",
      .parse = parse_int,
@@ -1053,6 +1265,7 @@ static const key_rule policy_keys[] = {
      .max = MAX_PATIENTS},
     {.name = "acuity_minutes", .parse = parse_acuity_table},
     {.name = "extra_minutes", .parse = parse_extra_table},
+    {.name = "roles", .parse = parse_role_table},
 };
 
 static const key_rule roster_keys[] = {
@@ -1149,6 +1362,53 @@ static void check_unique_id(loader *ld, const node *list, size_t i, const char *
     }
 }
 
+/* True when the nurse's role is known: absent (staff) or read without a
+ * problem.  A role already reported is not reported again through its
+ * preceptor. */
+static bool role_is_known(const keel_nurse *n, const node *item)
+{
+    const node *role = find_value(item, "role");
+    return !role || (role->kind == NODE_SCALAR && strcmp(role->text, keel_role_name(n->role)) == 0);
+}
+
+/* An orientee works under a preceptor: another nurse on the roster who is
+ * not an orientee.  Nobody else has a preceptor. */
+static void check_preceptor(loader *ld, size_t i, const node *item)
+{
+    const keel_roster *r = ld->roster;
+    const keel_nurse *n = &r->nurses[i];
+    const node *given = find_value(item, "preceptor");
+    char shown[SHOWN_SIZE];
+    if (!role_is_known(n, item))
+        return;
+    set_path(ld, "nurses", i, "preceptor");
+    if (n->role == KEEL_ROLE_ORIENTEE && !given) {
+        report(ld, item->mark,
+               "missing; an orientee needs a preceptor, the id of a nurse on this roster who "
+               "is not an orientee");
+        return;
+    }
+    if (!n->preceptor)
+        return;
+    int k = keel_roster_find_nurse(r, n->preceptor);
+    if (n->role != KEEL_ROLE_ORIENTEE)
+        report(ld, given->mark,
+               "a preceptor is given but the role is %s; expected role: orientee, or no "
+               "preceptor",
+               keel_role_name(n->role));
+    else if (k < 0)
+        report(ld, given->mark, "no nurse '%s' on this roster", show(shown, n->preceptor));
+    else if ((size_t)k == i || (n->id && strcmp(n->id, n->preceptor) == 0))
+        report(ld, given->mark,
+               "'%s' is this nurse's own id; expected the id of another nurse who is not an "
+               "orientee",
+               show(shown, n->preceptor));
+    else if (r->nurses[k].role == KEEL_ROLE_ORIENTEE)
+        report(ld, given->mark,
+               "nurse '%s' is an orientee too; expected a preceptor who is not an orientee",
+               show(shown, n->preceptor));
+}
+
 static void check_nurses(loader *ld, const node *list)
 {
     for (size_t i = 0; i < ld->roster->nnurses; i++) {
@@ -1156,6 +1416,7 @@ static void check_nurses(loader *ld, const node *list)
             continue;
         check_unique_id(ld, list, i, "nurse");
         check_nurse_minutes(ld, i, list->items[i]);
+        check_preceptor(ld, i, list->items[i]);
     }
 }
 
@@ -1244,6 +1505,44 @@ static void check_patient_nurse(loader *ld, size_t i, const node *item)
            show(shown, p->nurse));
 }
 
+/* A locked patient keeps the nurse it names. */
+static void check_lock(loader *ld, size_t i, const node *item)
+{
+    if (!ld->roster->patients[i].lock || find_value(item, "nurse"))
+        return;
+    set_path(ld, "patients", i, "lock");
+    report(ld, find_value(item, "lock")->mark,
+           "lock: true without a nurse; a locked patient needs nurse: the id of the nurse who "
+           "keeps the patient");
+}
+
+/* Every nurse a patient avoids is on the roster, and a locked patient is
+ * not locked to one of them.  (An unlocked patient's nurse on its avoid
+ * list is a plan that breaks a rule: keel check reports it.) */
+static void check_avoid(loader *ld, size_t i, const node *item)
+{
+    const keel_roster *r = ld->roster;
+    const keel_patient *p = &r->patients[i];
+    const node *list = find_value(item, "avoid");
+    char shown[SHOWN_SIZE];
+    for (size_t a = 0; a < p->navoid; a++) {
+        if (!p->avoid[a])
+            continue;
+        if (keel_roster_find_nurse(r, p->avoid[a]) < 0) {
+            set_path(ld, "patients", i, "avoid");
+            push_index(ld, a);
+            report(ld, list->items[a]->mark, "no nurse '%s' on this roster",
+                   show(shown, p->avoid[a]));
+        } else if (p->lock && p->nurse && strcmp(p->nurse, p->avoid[a]) == 0) {
+            set_path(ld, "patients", i, "nurse");
+            report(ld, find_value(item, "nurse")->mark,
+                   "the patient is locked to '%s', who is on its avoid list (avoid[%zu] on line "
+                   "%d); expected a nurse the patient does not avoid",
+                   show(shown, p->nurse), a, list->items[a]->mark.line);
+        }
+    }
+}
+
 static void check_patients(loader *ld, const node *list)
 {
     for (size_t i = 0; i < ld->roster->npatients; i++) {
@@ -1258,6 +1557,9 @@ static void check_patients(loader *ld, const node *list)
         check_acuity(ld, i, item);
         check_extras(ld, i, item);
         check_patient_nurse(ld, i, item);
+        check_lock(ld, i, item);
+        if (ld->roster->nnurses)
+            check_avoid(ld, i, item);
     }
 }
 
@@ -1314,6 +1616,8 @@ static keel_roster *new_roster(const char *name)
     r->shift.minutes = KEEL_ABSENT;
     r->shift.break_minutes = KEEL_ABSENT;
     r->policy.max_patients = KEEL_ABSENT;
+    for (size_t i = 0; i < KEEL_NROLES; i++)
+        r->policy.roles[i] = (keel_role_policy){KEEL_ABSENT, KEEL_ABSENT};
     r->path = keel_strdup(name);
     if (!r->path) {
         free(r);
@@ -1338,6 +1642,7 @@ void keel_roster_free(keel_roster *roster)
         free(n->id);
         free(n->name);
         free_names(n->skills, n->nskills);
+        free(n->preceptor);
     }
     free(roster->nurses);
     for (size_t i = 0; i < roster->npatients; i++) {
@@ -1348,6 +1653,7 @@ void keel_roster_free(keel_roster *roster)
         free_names(p->extras, p->nextras);
         free_names(p->needs, p->nneeds);
         free(p->nurse);
+        free_names(p->avoid, p->navoid);
     }
     free(roster->patients);
     for (size_t i = 0; i < roster->policy.nextras; i++)
@@ -1476,6 +1782,11 @@ keel_status keel_roster_load(const char *path, keel_roster **out, keel_error *er
     rc = keel_roster_parse(path, text, len, out, err);
     free(text);
     return rc;
+}
+
+const char *keel_role_name(keel_role role)
+{
+    return (unsigned)role < KEEL_NROLES ? role_names[role] : "unknown";
 }
 
 int keel_roster_find_nurse(const keel_roster *roster, const char *id)

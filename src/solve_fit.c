@@ -150,8 +150,7 @@ keel_status keel_fit_search(const keel_workload *w, const long long *lo, const l
                             keel_ilp_answer *answer)
 {
     size_t np = w->npatients, nn = w->nnurses;
-    fit F = {.w = w, .lo = lo, .hi = hi, .budget = node_budget,
-             .deadline_ms = deadline_ms};
+    fit F = {.w = w, .lo = lo, .hi = hi, .budget = node_budget, .deadline_ms = deadline_ms};
     F.order = keel_calloc(np, sizeof *F.order);
     F.twin_of_prev = keel_calloc(np, sizeof *F.twin_of_prev);
     F.group = keel_calloc(nn, sizeof *F.group);

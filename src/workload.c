@@ -26,13 +26,17 @@ static int patient_care(const keel_roster *r, const keel_patient *p)
     return care;
 }
 
+/* The smallest of the unit's limit, the role's and the nurse's own.  An
+ * orientee shares the preceptor's assignment, so takes none of her own. */
 static int nurse_limit(const keel_roster *r, const keel_nurse *n)
 {
     int limit = (int)r->npatients;
-    if (r->policy.max_patients != KEEL_ABSENT && r->policy.max_patients < limit)
-        limit = r->policy.max_patients;
-    if (n->max_patients != KEEL_ABSENT && n->max_patients < limit)
-        limit = n->max_patients;
+    int given[] = {r->policy.max_patients, r->policy.roles[n->role].max_patients, n->max_patients};
+    if (n->role == KEEL_ROLE_ORIENTEE)
+        return 0;
+    for (size_t i = 0; i < sizeof given / sizeof given[0]; i++)
+        if (given[i] != KEEL_ABSENT && given[i] < limit)
+            limit = given[i];
     return limit;
 }
 
@@ -47,6 +51,24 @@ static bool has_every_need(const keel_nurse *n, const keel_patient *p)
         if (!keel_nurse_has_skill(n, p->needs[i]))
             return false;
     return true;
+}
+
+/* The patient's own restrictions: a locked patient stays with the nurse
+ * who has it; a patient never goes to a nurse on its avoid list. */
+static bool patient_allows(const keel_patient *p, const keel_nurse *n)
+{
+    if (p->lock && p->nurse && strcmp(p->nurse, n->id) != 0)
+        return false;
+    for (size_t i = 0; i < p->navoid; i++)
+        if (strcmp(p->avoid[i], n->id) == 0)
+            return false;
+    return true;
+}
+
+bool keel_workload_may_take(const keel_roster *r, const keel_workload *w, size_t p, size_t n)
+{
+    return w->max_patients[n] > 0 && has_every_need(&r->nurses[n], &r->patients[p]) &&
+           patient_allows(&r->patients[p], &r->nurses[n]);
 }
 
 void keel_workload_free(keel_workload *w)
@@ -87,7 +109,8 @@ keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, kee
         int minutes = or_default(nurse->minutes, r->shift.minutes);
         int breaks = or_default(nurse->break_minutes, or_default(r->shift.break_minutes, 0));
         w->capacity_minutes[n] = minutes - breaks;
-        w->duty_minutes[n] = or_default(nurse->duty_minutes, 0);
+        w->duty_minutes[n] = or_default(nurse->duty_minutes,
+                                        or_default(r->policy.roles[nurse->role].duty_minutes, 0));
         w->max_patients[n] = nurse_limit(r, nurse);
         if (w->max_patients[n] > 0 && w->capacity_minutes[n] <= 0)
             rc = keel_error_add(err, KEEL_ERR_INPUT, r->path, nurse->mark.line, nurse->mark.column,
@@ -102,8 +125,7 @@ keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, kee
     for (size_t p = 0; p < np; p++) {
         w->care_minutes[p] = patient_care(r, &r->patients[p]);
         for (size_t n = 0; n < nn; n++)
-            w->eligible[p * nn + n] =
-                w->max_patients[n] > 0 && has_every_need(&r->nurses[n], &r->patients[p]);
+            w->eligible[p * nn + n] = keel_workload_may_take(r, w, p, n);
     }
 out:
     if (rc)

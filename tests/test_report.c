@@ -101,6 +101,10 @@ static void test_yaml_report_reads_back_as_the_same_roster_with_nurses(void **st
         assert_int_equal(a->policy.max_patients, back->policy.max_patients);
         assert_int_equal(a->policy.nacuity, back->policy.nacuity);
         assert_int_equal(a->policy.nextras, back->policy.nextras);
+        for (size_t i = 0; i < KEEL_NROLES; i++) {
+            assert_int_equal(a->policy.roles[i].max_patients, back->policy.roles[i].max_patients);
+            assert_int_equal(a->policy.roles[i].duty_minutes, back->policy.roles[i].duty_minutes);
+        }
         assert_int_equal(a->nnurses, back->nnurses);
         for (size_t n = 0; n < a->nnurses; n++) {
             const keel_nurse *x = &a->nurses[n], *y = &back->nurses[n];
@@ -111,6 +115,9 @@ static void test_yaml_report_reads_back_as_the_same_roster_with_nurses(void **st
             assert_int_equal(x->minutes, y->minutes);
             assert_int_equal(x->break_minutes, y->break_minutes);
             assert_int_equal(x->duty_minutes, y->duty_minutes);
+            assert_int_equal(x->role, y->role);
+            assert_int_equal(x->licence, y->licence);
+            assert_same_optional(x->preceptor, y->preceptor);
         }
         assert_int_equal(a->npatients, back->npatients);
         for (size_t p = 0; p < a->npatients; p++) {
@@ -123,6 +130,8 @@ static void test_yaml_report_reads_back_as_the_same_roster_with_nurses(void **st
             assert_same_strings(x->extras, x->nextras, y->extras, y->nextras);
             assert_same_strings(x->needs, x->nneeds, y->needs, y->nneeds);
             assert_string_equal(y->nurse, a->nurses[r.s->nurse_of[p]].id);
+            assert_int_equal(x->lock, y->lock);
+            assert_same_strings(x->avoid, x->navoid, y->avoid, y->navoid);
         }
         keel_roster_free(back);
         free(text);

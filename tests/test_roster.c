@@ -40,6 +40,7 @@ static const char issue_example[] =
     "  max_patients: 5\n"
     "  acuity_minutes: {1: 90, 2: 150, 3: 210, 4: 300, 5: 420}\n"
     "  extra_minutes: {admission: 90, discharge: 45, isolation: 30}\n"
+    "  roles: {charge: {max_patients: 2, duty_minutes: 180}, orientee: {max_patients: 0}}\n"
     "nurses:\n"
     "  - id: N1\n"
     "    name: \"Test Nurse One\"\n"
@@ -48,6 +49,10 @@ static const char issue_example[] =
     "    minutes: 480\n"
     "    break_minutes: 30\n"
     "    duty_minutes: 120\n"
+    "    role: charge\n"
+    "    licence: lpn\n"
+    "  - {id: N2, role: orientee, preceptor: N1}\n"
+    "  - {id: N3}\n"
     "patients:\n"
     "  - id: \"P-1042\"\n"
     "    bed: \"512A\"\n"
@@ -56,7 +61,9 @@ static const char issue_example[] =
     "    care_minutes: 320\n"
     "    extras: [admission]\n"
     "    needs: [tele]\n"
-    "    nurse: N1\n";
+    "    nurse: N1\n"
+    "    lock: true\n"
+    "    avoid: [N3, N2]\n";
 
 static keel_status parse(const char *text, keel_roster **out, keel_error *err)
 {
@@ -147,8 +154,14 @@ static void test_roster_loads_the_issue_example(void **state)
     assert_string_equal(r->policy.extra_minutes[2].name, "isolation");
     assert_int_equal(keel_roster_extra_minutes(r, "discharge"), 45);
     assert_int_equal(keel_roster_extra_minutes(r, "transfer"), KEEL_ABSENT);
+    assert_int_equal(r->policy.roles[KEEL_ROLE_CHARGE].max_patients, 2);
+    assert_int_equal(r->policy.roles[KEEL_ROLE_CHARGE].duty_minutes, 180);
+    assert_int_equal(r->policy.roles[KEEL_ROLE_ORIENTEE].max_patients, 0);
+    assert_int_equal(r->policy.roles[KEEL_ROLE_ORIENTEE].duty_minutes, KEEL_ABSENT);
+    assert_int_equal(r->policy.roles[KEEL_ROLE_STAFF].max_patients, KEEL_ABSENT);
+    assert_int_equal(r->policy.roles[KEEL_ROLE_FLOAT].duty_minutes, KEEL_ABSENT);
 
-    assert_int_equal(r->nnurses, 1);
+    assert_int_equal(r->nnurses, 3);
     const keel_nurse *n = &r->nurses[0];
     assert_string_equal(n->id, "N1");
     assert_string_equal(n->name, "Test Nurse One");
@@ -159,8 +172,15 @@ static void test_roster_loads_the_issue_example(void **state)
     assert_int_equal(n->minutes, 480);
     assert_int_equal(n->break_minutes, 30);
     assert_int_equal(n->duty_minutes, 120);
-    assert_int_equal(n->mark.line, 9);
+    assert_int_equal(n->role, KEEL_ROLE_CHARGE);
+    assert_int_equal(n->licence, KEEL_LICENCE_LPN);
+    assert_null(n->preceptor);
+    assert_int_equal(n->mark.line, 10);
     assert_int_equal(n->mark.column, 5);
+    assert_int_equal(r->nurses[1].role, KEEL_ROLE_ORIENTEE);
+    assert_int_equal(r->nurses[1].licence, KEEL_LICENCE_RN);
+    assert_string_equal(r->nurses[1].preceptor, "N1");
+    assert_int_equal(r->nurses[2].role, KEEL_ROLE_STAFF);
 
     assert_int_equal(r->npatients, 1);
     const keel_patient *p = &r->patients[0];
@@ -174,10 +194,15 @@ static void test_roster_loads_the_issue_example(void **state)
     assert_int_equal(p->nneeds, 1);
     assert_string_equal(p->needs[0], "tele");
     assert_string_equal(p->nurse, "N1");
-    assert_int_equal(p->mark.line, 17);
+    assert_true(p->lock);
+    assert_int_equal(p->navoid, 2);
+    assert_string_equal(p->avoid[0], "N3");
+    assert_string_equal(p->avoid[1], "N2");
+    assert_int_equal(p->mark.line, 22);
 
     assert_int_equal(keel_roster_find_nurse(r, "N1"), 0);
-    assert_int_equal(keel_roster_find_nurse(r, "N2"), -1);
+    assert_int_equal(keel_roster_find_nurse(r, "N2"), 1);
+    assert_int_equal(keel_roster_find_nurse(r, "N4"), -1);
     keel_roster_free(r);
     keel_error_fini(&err);
 }
@@ -206,7 +231,109 @@ static void test_roster_leaves_unset_fields_absent(void **state)
     assert_null(r->patients[0].nurse);
     assert_int_equal(r->patients[0].acuity, KEEL_ABSENT);
     assert_int_equal(r->patients[0].care_minutes, 0);
+    assert_null(r->unit.type);
+    assert_int_equal(r->nurses[0].role, KEEL_ROLE_STAFF);
+    assert_int_equal(r->nurses[0].licence, KEEL_LICENCE_RN);
+    assert_null(r->nurses[0].preceptor);
+    assert_false(r->patients[0].lock);
+    assert_int_equal(r->patients[0].navoid, 0);
+    assert_null(r->patients[0].avoid);
+    for (int role = 0; role < KEEL_NROLES; role++) {
+        assert_int_equal(r->policy.roles[role].max_patients, KEEL_ABSENT);
+        assert_int_equal(r->policy.roles[role].duty_minutes, KEEL_ABSENT);
+    }
     keel_roster_free(r);
+}
+
+static void test_roster_names_every_role_as_written(void **state)
+{
+    static const char *const names[KEEL_NROLES] = {"staff", "charge", "resource", "float",
+                                                   "orientee"};
+    (void)state;
+    for (int role = 0; role < KEEL_NROLES; role++) {
+        char text[256];
+        keel_roster *r = NULL;
+        assert_string_equal(keel_role_name((keel_role)role), names[role]);
+        snprintf(text, sizeof text,
+                 "shift: {minutes: 600}\n"
+                 "policy: {roles: {%s: {duty_minutes: %d}}}\n"
+                 "nurses: [{id: A, role: %s%s}, {id: B}]\n"
+                 "patients: [{id: P, care_minutes: 60, lock: false}]\n",
+                 names[role], 10 + role, names[role],
+                 role == KEEL_ROLE_ORIENTEE ? ", preceptor: B" : "");
+        assert_int_equal(parse(text, &r, NULL), KEEL_OK);
+        assert_int_equal(r->nurses[0].role, role);
+        assert_int_equal(r->policy.roles[role].duty_minutes, 10 + role);
+        assert_int_equal(r->policy.roles[role].max_patients, KEEL_ABSENT);
+        assert_false(r->patients[0].lock);
+        keel_roster_free(r);
+    }
+    assert_string_equal(keel_role_name((keel_role)KEEL_NROLES), "unknown");
+}
+
+static void test_roster_accepts_only_the_documented_unit_types(void **state)
+{
+    static const char *const types[] = {
+        "icu",       "step-down", "telemetry",   "med-surg",       "pediatrics",
+        "emergency", "oncology",  "psychiatric", "labor-delivery", "postpartum",
+        "pacu",      "burn",      "nicu",        "other"};
+    static const char *const expected[] = {
+        "roster.yaml:1:14: unit.type: unknown unit type 'telemetri'; did you mean 'telemetry'? "
+        "expected one of icu, step-down, telemetry, med-surg, pediatrics, emergency, oncology, "
+        "psychiatric, labor-delivery, postpartum, pacu, burn, nicu, other",
+        "roster.yaml:2:17: nurses[0].role: found a sequence; expected one of staff, charge, "
+        "resource, float, orientee",
+        "roster.yaml:2:31: nurses[0].licence: unknown licence 'RN'; did you mean 'rn'? expected "
+        "one of rn, lpn",
+        "roster.yaml:2:53: nurses[1].licence: 'Tech' names unlicensed staff, who do not belong "
+        "under nurses; expected one of rn, lpn",
+        "roster.yaml:3:17: policy.roles: found 'none'; expected a mapping from role to its "
+        "limits, like {charge: {max_patients: 2}}",
+        NULL};
+    (void)state;
+    for (size_t i = 0; i < sizeof types / sizeof types[0]; i++) {
+        char text[256];
+        keel_roster *r = NULL;
+        snprintf(text, sizeof text,
+                 "unit: {type: %s}\nshift: {minutes: 600}\n"
+                 "nurses: [{id: A}]\npatients: [{id: P, care_minutes: 60}]\n",
+                 types[i]);
+        assert_int_equal(parse(text, &r, NULL), KEEL_OK);
+        assert_string_equal(r->unit.type, types[i]);
+        keel_roster_free(r);
+    }
+    assert_problems("unit: {type: telemetri}\n"
+                    "nurses: [{role: [a], licence: RN, id: A}, {licence: Tech, id: B}]\n"
+                    "policy: {roles: none}\n"
+                    "shift: {minutes: 600}\n"
+                    "patients: [{id: P, care_minutes: 60}]\n",
+                    expected);
+}
+
+static void test_roster_checks_preceptors_locks_and_avoid_lists(void **state)
+{
+    static const char *const expected[] = {
+        "roster.yaml:2:10: nurses[0].preceptor: missing; an orientee needs a preceptor, the id "
+        "of a nurse on this roster who is not an orientee",
+        "roster.yaml:3:45: nurses[1].preceptor: nurse 'A' is an orientee too; expected a "
+        "preceptor who is not an orientee",
+        "roster.yaml:4:29: nurses[2].preceptor: a preceptor is given but the role is resource; "
+        "expected role: orientee, or no preceptor",
+        "roster.yaml:6:37: patients[0].lock: lock: true without a nurse; a locked patient needs "
+        "nurse: the id of the nurse who keeps the patient",
+        "roster.yaml:7:38: patients[1].nurse: the patient is locked to 'C', who is on its avoid "
+        "list (avoid[1] on line 7); expected a nurse the patient does not avoid",
+        "roster.yaml:7:61: patients[1].avoid[0]: no nurse 'Z' on this roster",
+        NULL};
+    (void)state;
+    assert_problems("shift: {minutes: 600}\n"
+                    "nurses: [{id: A, role: orientee},\n"
+                    "         {id: B, role: orientee, preceptor: A},\n"
+                    "         {id: C, preceptor: A, role: resource}]\n"
+                    "patients:\n"
+                    "  - {id: P, care_minutes: 60, lock: true}\n"
+                    "  - {id: Q, care_minutes: 60, nurse: C, lock: true, avoid: [Z, C]}\n",
+                    expected);
 }
 
 static void test_roster_accepts_unquoted_times(void **state)
@@ -340,7 +467,7 @@ static void test_roster_suggests_the_nearest_key_only_when_close(void **state)
         "roster.yaml:2:19: nurses[0].nmae: unknown key; did you mean 'name'?",
         "roster.yaml:2:28: nurses[0].Skills: unknown key; did you mean 'skills'?",
         "roster.yaml:2:40: nurses[0].colour: unknown key; expected one of id, name, skills, "
-        "max_patients, minutes, break_minutes, duty_minutes",
+        "max_patients, minutes, break_minutes, duty_minutes, role, licence, preceptor",
         "roster.yaml:3:12: patients[0].acuity: missing; every patient needs acuity or "
         "care_minutes",
         "roster.yaml:3:21: patients[0].acuty: unknown key; did you mean 'acuity'?",
@@ -582,7 +709,7 @@ static void test_roster_loads_the_example_rosters(void **state)
         for (size_t k = 0; k < err.nproblems; k++)
             print_message("%s\n", problem_text(&err, k));
         assert_int_equal(rc, KEEL_OK);
-        assert_true(r->nnurses >= 6 && r->nnurses <= 7);
+        assert_true(r->nnurses >= 6 && r->nnurses <= 8);
         assert_int_equal(r->shift.minutes, 720);
         for (size_t p = 0; p < r->npatients; p++) {
             int care = r->patients[p].acuity == KEEL_ABSENT
@@ -670,6 +797,9 @@ int main(int argc, char **argv)
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_roster_loads_the_issue_example),
         cmocka_unit_test(test_roster_leaves_unset_fields_absent),
+        cmocka_unit_test(test_roster_names_every_role_as_written),
+        cmocka_unit_test(test_roster_accepts_only_the_documented_unit_types),
+        cmocka_unit_test(test_roster_checks_preceptors_locks_and_avoid_lists),
         cmocka_unit_test(test_roster_accepts_unquoted_times),
         cmocka_unit_test(test_roster_rejects_times_and_dates_that_do_not_exist),
         cmocka_unit_test(test_roster_keeps_numeric_ids_as_text),

@@ -215,7 +215,7 @@ static void test_ilp_matches_exhaustive_enumeration_on_small_rosters(void **stat
         tu_case_free(c);
     }
     /* The generator must exercise both outcomes, mostly feasible ones. */
-    print_message("%d of 1000 small rosters feasible\n", feasible);
+    print_message("# %d of 1000 small rosters feasible\n", feasible);
     assert_true(feasible >= 600);
     assert_true(feasible < 1000);
 }

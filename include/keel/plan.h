@@ -24,7 +24,8 @@ bool keel_plan_from_roster(const keel_roster *roster, int *nurse_of);
 
 /* Appends to *out one finding for each rule the assignment nurse_of breaks
  * (unassigned patients are skipped): `skill` for a missing competency,
- * `patient_limit` for a nurse over the limit.  Statuses: KEEL_OK,
+ * `patient_limit` for a nurse over the limit, `lock` for a locked patient
+ * moved, `avoid` for a patient given to a nurse on its avoid list.  Statuses: KEEL_OK,
  * KEEL_ERR_NOMEM.  The caller owns what is appended. */
 keel_status keel_plan_check(const keel_roster *roster, const keel_workload *w, const int *nurse_of,
                             keel_findings *out, keel_error *err);

@@ -32,16 +32,39 @@ typedef struct keel_mark {
     int column;
 } keel_mark;
 
+/* A nurse's role on the shift (nurses[].role; default staff). */
+typedef enum keel_role {
+    KEEL_ROLE_STAFF,    /* takes a full assignment */
+    KEEL_ROLE_CHARGE,   /* runs the shift; usually few or no patients, charge duty minutes */
+    KEEL_ROLE_RESOURCE, /* kept free for admissions and rapid responses */
+    KEEL_ROLE_FLOAT,    /* from another unit: staff rules, shown as such */
+    KEEL_ROLE_ORIENTEE, /* works under a preceptor; shares the preceptor's assignment */
+} keel_role;
+
+#define KEEL_NROLES 5
+
+/* Name of a role as written in the roster ("staff", "charge", ...). */
+const char *keel_role_name(keel_role role);
+
+/* The nurse's licence (nurses[].licence; default rn). */
+typedef enum keel_licence {
+    KEEL_LICENCE_RN,  /* registered nurse */
+    KEEL_LICENCE_LPN, /* licensed practical or vocational nurse */
+} keel_licence;
+
 typedef struct keel_nurse {
     char *id;   /* required, unique */
     char *name; /* NULL when absent */
     size_t nskills;
     char **skills;
-    int max_patients;  /* KEEL_ABSENT: policy.max_patients applies */
-    int minutes;       /* minutes on the unit; KEEL_ABSENT: shift.minutes */
-    int break_minutes; /* KEEL_ABSENT: shift.break_minutes */
-    int duty_minutes;  /* fixed non-patient work; KEEL_ABSENT: 0 */
-    keel_mark mark;    /* where the nurse's mapping starts */
+    int max_patients;     /* KEEL_ABSENT: policy.max_patients applies */
+    int minutes;          /* minutes on the unit; KEEL_ABSENT: shift.minutes */
+    int break_minutes;    /* KEEL_ABSENT: shift.break_minutes */
+    int duty_minutes;     /* fixed non-patient work; KEEL_ABSENT: the role's, else 0 */
+    keel_role role;       /* KEEL_ROLE_STAFF when absent */
+    keel_licence licence; /* KEEL_LICENCE_RN when absent */
+    char *preceptor;      /* orientees only: id of the preceptor (required for them) */
+    keel_mark mark;       /* where the nurse's mapping starts */
 } keel_nurse;
 
 typedef struct keel_patient {
@@ -53,8 +76,11 @@ typedef struct keel_patient {
     size_t nextras;
     char **extras; /* names of policy.extra_minutes entries */
     size_t nneeds;
-    char **needs;   /* competencies the nurse must have, every one */
-    char *nurse;    /* id of the nurse who has this patient, or NULL */
+    char **needs; /* competencies the nurse must have, every one */
+    char *nurse;  /* id of the nurse who has this patient, or NULL */
+    bool lock;    /* keep `nurse` (a locked patient always has one) */
+    size_t navoid;
+    char **avoid;   /* ids of nurses who must not have this patient */
     keel_mark mark; /* where the patient's mapping starts */
 } keel_patient;
 
@@ -62,6 +88,12 @@ typedef struct keel_acuity_level {
     int level;
     int minutes; /* care minutes per shift at this level */
 } keel_acuity_level;
+
+/* Defaults for every nurse of one role (policy.roles.<role>). */
+typedef struct keel_role_policy {
+    int max_patients; /* KEEL_ABSENT when not given */
+    int duty_minutes; /* KEEL_ABSENT when not given */
+} keel_role_policy;
 
 typedef struct keel_extra {
     char *name;
@@ -73,7 +105,7 @@ typedef struct keel_roster {
 
     struct {
         char *name; /* NULL when absent */
-        char *type; /* NULL when absent */
+        char *type; /* NULL when absent; one of the documented unit types */
     } unit;
 
     struct {
@@ -89,7 +121,8 @@ typedef struct keel_roster {
         size_t nacuity;
         keel_acuity_level *acuity_minutes; /* sorted by level, unique */
         size_t nextras;
-        keel_extra *extra_minutes; /* in file order, unique names */
+        keel_extra *extra_minutes;           /* in file order, unique names */
+        keel_role_policy roles[KEEL_NROLES]; /* indexed by keel_role; KEEL_ABSENT fields */
     } policy;
 
     size_t nnurses;

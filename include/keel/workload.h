@@ -11,8 +11,13 @@
  *   limit(n)    = the smallest of policy.max_patients and the nurse's own
  *                 max_patients (no limit given: the census)
  *
- * A pair (p, n) is eligible when n has every competency p needs and
- * limit(n) > 0.  "Counted" nurses are those with limit(n) > 0; every
+ *   duty(n)     = duty_minutes, or policy.roles[role].duty_minutes, or 0
+ *   limit(n)    also counts policy.roles[role].max_patients; an orientee's is 0
+ *               (the orientee shares the preceptor's assignment)
+ *
+ * A pair (p, n) is eligible when n has every competency p needs,
+ * limit(n) > 0, n is not on p's avoid list, and, when p is locked, n is the
+ * nurse p has.  "Counted" nurses are those with limit(n) > 0; every
  * balance figure is taken over them.  All figures are whole minutes.
  */
 #ifndef KEEL_WORKLOAD_H
@@ -42,6 +47,10 @@ typedef struct keel_workload {
  * keel_workload_free().  Statuses: KEEL_OK, KEEL_ERR_NOMEM, KEEL_ERR_INPUT
  * (a counted nurse without capacity: one problem per nurse). */
 keel_status keel_workload_compute(const keel_roster *roster, keel_workload **out, keel_error *err);
+
+/* The eligibility rule itself: true when nurse n may take patient p (limits
+ * and competencies of w, the patient's lock and avoid list of r). */
+bool keel_workload_may_take(const keel_roster *r, const keel_workload *w, size_t p, size_t n);
 
 /* Frees the workload.  NULL-safe. */
 void keel_workload_free(keel_workload *w);

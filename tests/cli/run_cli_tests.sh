@@ -65,6 +65,11 @@ expect 3 "infeasible roster as json" -- "$keel" assign "$data/infeasible-chemo.y
 has "$work/out" '"rule": "skill", "patients": ["X-1", "X-3"]' "json carries the diagnosis"
 has "$work/out" '"status": "infeasible"' "json says infeasible"
 
+# Locks and avoid lists that leave a patient without a nurse.
+expect 3 "a lock that cannot hold" -- "$keel" assign "$data/lock-cannot-hold.yaml"
+has "$work/err" "[lock] L-1 is locked to A2, who does not have tele" "the lock is named"
+has "$work/err" "[avoid] every nurse on shift who may take patients is on L-2's avoid list (A1 and A2)" "the avoid list is named"
+
 # The main job on both examples.
 for ex in medsurg-day icu-night; do
     expect 0 "assign $ex" -- "$keel" assign "$examples/$ex.yaml"
