@@ -31,32 +31,18 @@ exit status 1 if M > 0.
 """
 
 import argparse
-import importlib
 import math
 import os
 import sys
 import tempfile
 
 
-def _require_modules():
-    """Exit 77 (meson: skipped, not passed) without numpy, scipy's milp, PyYAML."""
-    try:
-        for name in ("numpy", "yaml"):
-            importlib.import_module(name)
-        if not hasattr(importlib.import_module("scipy.optimize"), "milp"):
-            raise ImportError("scipy.optimize has no milp (scipy >= 1.9 needed)")
-    except ImportError as e:
-        print("SKIP: this Python (%s) cannot run the reference checks: %s"
-              % (sys.executable, e))
-        sys.exit(77)
-
-
-_require_modules()
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+# check_highs exits 77 (meson: skipped) when this Python lacks numpy, scipy's
+# milp or PyYAML, before anything below needs them.
+import check_highs  # noqa: E402
 
 import numpy as np  # noqa: E402
-
-sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
-import check_highs  # noqa: E402
 import gen_rosters  # noqa: E402
 import highs_model  # noqa: E402
 
