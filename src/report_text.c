@@ -33,6 +33,8 @@ static void write_patient_line(FILE *out, const keel_report *rep, size_t p)
         fprintf(out, "  acuity %d", pat->acuity);
     for (size_t i = 0; i < pat->nneeds; i++)
         fprintf(out, "%s%s", i ? ", " : "  needs ", pat->needs[i]);
+    if (pat->lock)
+        fputs("  locked", out);
     fputc('\n', out);
 }
 
