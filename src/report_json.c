@@ -94,7 +94,9 @@ static void write_patients(FILE *out, const keel_report *rep)
             fputs(", \"bed\": ", out);
             keel_write_quoted(out, r->patients[p].bed);
         }
-        fprintf(out, ", \"care_minutes\": %d, \"nurse\": ", rep->workload->care_minutes[p]);
+        fprintf(out, ", \"care_minutes\": %d, \"locked\": %s, \"sitter\": %s, \"nurse\": ",
+                rep->workload->care_minutes[p], r->patients[p].lock ? "true" : "false",
+                r->patients[p].sitter ? "true" : "false");
         int n = rep->nurse_of ? rep->nurse_of[p] : -1;
         if (n >= 0)
             keel_write_quoted(out, r->nurses[n].id);

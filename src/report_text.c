@@ -35,6 +35,8 @@ static void write_patient_line(FILE *out, const keel_report *rep, size_t p)
         fprintf(out, "%s%s", i ? ", " : "  needs ", pat->needs[i]);
     if (pat->lock)
         fputs("  locked", out);
+    if (pat->sitter)
+        fputs("  sitter", out);
     fputc('\n', out);
 }
 

@@ -133,6 +133,8 @@ static void write_patients(FILE *out, const keel_report *rep)
         write_key_string(out, "    ", "nurse", n >= 0 ? r->nurses[n].id : pa->nurse);
         if (pa->lock)
             fputs("    lock: true\n", out);
+        if (pa->sitter)
+            fputs("    sitter: true\n", out);
         write_key_list(out, "    ", "avoid", pa->avoid, pa->navoid);
     }
 }

@@ -1124,6 +1124,7 @@ static const key_rule patient_keys[] = {
      .count_offset = offsetof(keel_patient, nneeds)},
     {.name = "nurse", .parse = parse_string, .offset = offsetof(keel_patient, nurse)},
     {.name = "lock", .parse = parse_bool, .offset = offsetof(keel_patient, lock)},
+    {.name = "sitter", .parse = parse_bool, .offset = offsetof(keel_patient, sitter)},
     {.name = "avoid",
      .parse = parse_names,
      .offset = offsetof(keel_patient, avoid),

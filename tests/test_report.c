@@ -131,6 +131,7 @@ static void test_yaml_report_reads_back_as_the_same_roster_with_nurses(void **st
             assert_same_strings(x->needs, x->nneeds, y->needs, y->nneeds);
             assert_string_equal(y->nurse, a->nurses[r.s->nurse_of[p]].id);
             assert_int_equal(x->lock, y->lock);
+            assert_int_equal(x->sitter, y->sitter);
             assert_same_strings(x->avoid, x->navoid, y->avoid, y->navoid);
         }
         keel_roster_free(back);

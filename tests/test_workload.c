@@ -113,7 +113,10 @@ static void test_locks_and_avoid_lists_remove_pairs(void **state)
                     "patients:\n"
                     "  - {id: P1, care_minutes: 100, nurse: B, lock: true}\n"
                     "  - {id: P2, care_minutes: 100, avoid: [A, C]}\n"
-                    "  - {id: P3, care_minutes: 100, nurse: A}\n");
+                    "  - {id: P3, care_minutes: 100, nurse: A, sitter: true}\n");
+    assert_true(l.r->patients[2].sitter);
+    assert_false(l.r->patients[0].sitter);
+    assert_int_equal(l.w->care_minutes[2], 100); /* a sitter adds no nurse time */
     assert_false(keel_workload_eligible(l.w, 0, 0));
     assert_true(keel_workload_eligible(l.w, 0, 1));
     assert_false(keel_workload_eligible(l.w, 0, 2));

@@ -79,6 +79,7 @@ typedef struct keel_patient {
     char **needs; /* competencies the nurse must have, every one */
     char *nurse;  /* id of the nurse who has this patient, or NULL */
     bool lock;    /* keep `nurse` (a locked patient always has one) */
+    bool sitter;  /* has a 1:1 sitter (shown on the sheet; no nurse time assumed) */
     size_t navoid;
     char **avoid;   /* ids of nurses who must not have this patient */
     keel_mark mark; /* where the patient's mapping starts */
