@@ -16,18 +16,12 @@
 
 #define DEFAULT_TIME_LIMIT_MS 10000L
 
-/* A method fills the stages of sol, whose nurse_of holds the greedy
- * incumbent on entry; it may replace the assignment with a better one. */
+/* A solver plugin: see keel_method_greedy() and keel_method_ilp(). */
 typedef struct keel_method {
     const char *name;
     keel_status (*solve)(const keel_workload *w, long long deadline_ms, keel_solution *sol,
                          keel_error *err);
 } keel_method;
-
-keel_status keel_method_greedy(const keel_workload *w, long long deadline_ms, keel_solution *sol,
-                               keel_error *err);
-keel_status keel_method_ilp(const keel_workload *w, long long deadline_ms, keel_solution *sol,
-                            keel_error *err);
 
 static const keel_method methods[] = {
     {"ilp", keel_method_ilp},

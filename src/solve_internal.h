@@ -99,6 +99,15 @@ keel_status keel_fit_search(const keel_workload *w, const long long *lo, const l
                             long node_budget, long long deadline_ms, int *nurse_of,
                             keel_ilp_answer *answer);
 
+/* The methods.  Each fills the stages of sol, whose nurse_of holds the
+ * greedy incumbent on entry, and may replace the assignment with a better
+ * one; deadline_ms is on keel_clock_ms().  Statuses: KEEL_OK,
+ * KEEL_ERR_NOMEM, KEEL_ERR_SOLVER. */
+keel_status keel_method_greedy(const keel_workload *w, long long deadline_ms, keel_solution *sol,
+                               keel_error *err); /* solve.c */
+keel_status keel_method_ilp(const keel_workload *w, long long deadline_ms, keel_solution *sol,
+                            keel_error *err); /* solve_exact.c */
+
 /* Monotonic wall clock in milliseconds. */
 long long keel_clock_ms(void);
 
