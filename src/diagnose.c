@@ -56,7 +56,7 @@ typedef struct shortage {
     bool *nurses;   /* [nnurses] */
     bool *patients; /* [npatients] */
     size_t left_out;
-    char *needs_key;  /* for "no eligible nurse": what groups such patients */
+    char *needs_key;  /* for "no eligible nurse": what groups such patients, else NULL */
     const char *rule; /* skill, lock, avoid or patient_limit */
 } shortage;
 
@@ -164,11 +164,12 @@ static const char *unreachable_rule(const keel_roster *r, const keel_workload *w
     return "skill";
 }
 
-static char *unreachable_key(const keel_roster *r, const keel_workload *w, size_t p, char **skills)
+static char *unreachable_key(const keel_roster *r, const keel_workload *w, size_t p, char **skills,
+                             const char **rule)
 {
-    const char *rule = unreachable_rule(r, w, p, skills);
-    if (strcmp(rule, "skill") != 0)
-        return keel_asprintf("%s %s", rule, r->patients[p].id);
+    *rule = unreachable_rule(r, w, p, skills);
+    if (strcmp(*rule, "skill") != 0)
+        return keel_asprintf("%s %s", *rule, r->patients[p].id);
     return join_names(skills, missing_needs(r, w, &r->patients[p], skills));
 }
 
@@ -318,41 +319,36 @@ keel_status keel_diagnose(const keel_roster *r, const keel_workload *w, int *nur
         if (augment(&m, p))
             continue;
         /* Group with an earlier shortage over the same nurses; a patient with
-         * no eligible nurse groups with others that lack the same skills. */
-        size_t i;
+         * no eligible nurse groups with others that have the same reason. */
         bool none = true;
         for (size_t n = 0; n < nn; n++)
             none = none && !m.seen_nurse[n];
-        for (i = 0; i < nshort; i++) {
-            if (!same_nurses(shorts[i].nurses, m.seen_nurse, nn))
-                continue;
-            if (!none)
-                break;
-            char *ja = unreachable_key(r, w, p, skills);
-            if (!ja) {
-                rc = KEEL_ERR_NOMEM;
-                goto out;
-            }
-            bool same = strcmp(ja, shorts[i].needs_key) == 0;
-            free(ja);
-            if (same)
-                break;
+        const char *rule = "patient_limit";
+        char *key = none ? unreachable_key(r, w, p, skills, &rule) : NULL;
+        if (none && !key) {
+            rc = KEEL_ERR_NOMEM;
+            goto out;
         }
-        if (i == nshort) {
+        size_t i;
+        for (i = 0; i < nshort; i++)
+            if (same_nurses(shorts[i].nurses, m.seen_nurse, nn) &&
+                (!none || strcmp(key, shorts[i].needs_key) == 0))
+                break;
+        if (i < nshort) {
+            free(key);
+        } else {
             shortage *grown = keel_reallocarray(shorts, nshort + 1, sizeof *grown);
             if (!grown) {
+                free(key);
                 rc = KEEL_ERR_NOMEM;
                 goto out;
             }
             shorts = grown;
-            shortage *s = &shorts[nshort];
-            *s = (shortage){0};
+            shortage *s = &shorts[nshort++];
+            *s = (shortage){.needs_key = key, .rule = rule};
             s->nurses = keel_calloc(nn, sizeof *s->nurses);
             s->patients = keel_calloc(np, sizeof *s->patients);
-            s->needs_key = unreachable_key(r, w, p, skills);
-            s->rule = none ? unreachable_rule(r, w, p, skills) : "patient_limit";
-            nshort++;
-            if (!s->nurses || !s->patients || !s->needs_key) {
+            if (!s->nurses || !s->patients) {
                 rc = KEEL_ERR_NOMEM;
                 goto out;
             }
@@ -367,18 +363,17 @@ keel_status keel_diagnose(const keel_roster *r, const keel_workload *w, int *nur
     for (size_t i = 0; i < nshort && !rc; i++) {
         shortage *s = &shorts[i];
         size_t kp = collect(s->patients, np, pidx), kn = collect(s->nurses, nn, nidx);
+        /* Patients all locked to the one nurse they compete for: the locks
+         * are what cannot hold. */
         bool all_locked = kn == 1;
-        for (size_t i2 = 0; i2 < kp && all_locked; i2++)
-            all_locked = r->patients[pidx[i2]].lock;
-        if (all_locked && kn == 1) {
+        for (size_t j = 0; j < kp && all_locked; j++)
+            all_locked = r->patients[pidx[j]].lock;
+        if (all_locked)
             s->rule = "lock";
-            rc = keel_findings_add(
-                out, "lock", pidx, kp, nidx, kn,
-                keel_asprintf("%zu patients are locked to %s, whose patient limit is %d", kp,
-                              r->nurses[nidx[0]].id, w->max_patients[nidx[0]]));
-            continue;
-        }
-        char *msg = kn > 0 ? describe_shortage(r, w, s, names, skills, ncounted)
+        char *msg = all_locked ? keel_asprintf("%zu patients are locked to %s, whose patient "
+                                               "limit is %d",
+                                               kp, r->nurses[nidx[0]].id, w->max_patients[nidx[0]])
+                    : kn > 0   ? describe_shortage(r, w, s, names, skills, ncounted)
                     : strcmp(s->rule, "skill") == 0
                         ? describe_unreachable(r, w, s, names, kp, skills)
                         : describe_restricted(r, w, s, skills);

@@ -172,6 +172,25 @@ static void test_diagnosis_explains_a_lock_that_cannot_hold(void **state)
     unload(&l);
 }
 
+static void test_diagnosis_names_locks_that_exceed_a_limit(void **state)
+{
+    (void)state;
+    loaded l = load("shift: {minutes: 720}\n"
+                    "nurses: [{id: A}, {id: B, max_patients: 1}]\n"
+                    "patients:\n"
+                    "  - {id: P1, care_minutes: 100, nurse: B, lock: true}\n"
+                    "  - {id: P2, care_minutes: 100, nurse: B, lock: true}\n");
+    keel_solution *s = NULL;
+    assert_int_equal(keel_solve(l.r, l.w, NULL, &s, NULL), KEEL_OK);
+    assert_int_equal(s->status, KEEL_SOLVE_INFEASIBLE);
+    assert_int_equal(s->diagnoses.n, 1);
+    assert_string_equal(s->diagnoses.items[0].rule, "lock");
+    assert_string_equal(s->diagnoses.items[0].message,
+                        "2 patients are locked to B, whose patient limit is 1");
+    keel_solution_free(s);
+    unload(&l);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -180,6 +199,7 @@ int main(void)
         cmocka_unit_test(test_locks_and_avoid_lists_remove_pairs),
         cmocka_unit_test(test_plan_check_names_every_broken_rule),
         cmocka_unit_test(test_diagnosis_explains_a_lock_that_cannot_hold),
+        cmocka_unit_test(test_diagnosis_names_locks_that_exceed_a_limit),
     };
     return cmocka_run_group_tests_name("workload", tests, NULL, NULL);
 }
