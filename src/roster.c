@@ -843,6 +843,8 @@ static const char *const unit_types[] = {
 static const char *const role_names[KEEL_NROLES] = {"staff", "charge", "resource", "float",
                                                     "orientee"};
 static const char *const licence_names[] = {"rn", "lpn"};
+static const char *const isolation_names[KEEL_NISOLATION] = {"none", "contact", "droplet",
+                                                             "airborne", "protective"};
 
 /* Titles of unlicensed assistive staff, who take no assignment of their own
  * (common practice, no source).  Compared ignoring case; a title that
@@ -956,6 +958,102 @@ static void parse_bool(loader *ld, const node *value, void *target, const key_ru
         report_type(ld, value, "true or false");
     else
         *(bool *)field_of(target, rule->offset) = is_true;
+}
+
+static void parse_isolation(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    int index;
+    if (read_word(ld, value, "precaution", isolation_names + 1, KEEL_NISOLATION - 1, false, &index))
+        *(keel_isolation *)field_of(target, rule->offset) = (keel_isolation)(index + 1);
+}
+
+/* patients[].ratio: "1:N", the most patients this patient's nurse may have. */
+static void parse_ratio(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    const char *s = value->kind == NODE_SCALAR ? value->text : "";
+    char *end;
+    long n = -1;
+    if (s[0] == '1' && s[1] == ':' && s[2] >= '0' && s[2] <= '9')
+        n = strtol(s + 2, &end, 10);
+    if (n < 1 || n > MAX_PATIENTS || *end != '\0')
+        report_type(ld, value, "a ratio such as \"1:2\" (1:1 to 1:99)");
+    else
+        *(int *)field_of(target, rule->offset) = (int)n;
+}
+
+/* policy.ratio_table: the name of a built-in table. */
+static void parse_ratio_table(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    const char *names[8];
+    size_t count = keel_law_ntables();
+    int index;
+    for (size_t i = 0; i < count && i < ARRAY_LEN(names); i++)
+        names[i] = keel_law_table_at(i)->name;
+    if (read_word(ld, value, "ratio table", names, count, false, &index))
+        *(const keel_law_table **)field_of(target, rule->offset) = keel_law_table_at((size_t)index);
+}
+
+/* A number from 0 to 1 with at most six decimals, kept exactly in
+ * millionths (policy.balance_tolerance). */
+static void parse_tolerance(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    const char *s = value->kind == NODE_SCALAR && !value->quoted ? value->text : "";
+    long whole = 0, frac = 0;
+    int digits = 0, i = 0;
+    bool ok = s[0] >= '0' && s[0] <= '9';
+    while (ok && s[i] >= '0' && s[i] <= '9' && whole <= KEEL_TOLERANCE_SCALE)
+        whole = whole * 10 + (s[i++] - '0');
+    if (ok && s[i] == '.') {
+        for (i++; s[i] >= '0' && s[i] <= '9'; i++) {
+            if (++digits > 6)
+                ok = false;
+            else
+                frac = frac * 10 + (s[i] - '0');
+        }
+    }
+    ok = ok && s[i] == '\0';
+    for (; digits < 6; digits++)
+        frac *= 10;
+    long ppm = whole * KEEL_TOLERANCE_SCALE + frac;
+    if (!ok || ppm > KEEL_TOLERANCE_SCALE)
+        report_type(ld, value, "a number from 0 to 1 with at most 6 decimals, such as 0.05");
+    else
+        *(int *)field_of(target, rule->offset) = (int)ppm;
+}
+
+/* policy.isolation_needs: precaution -> competencies every such patient needs. */
+static void parse_isolation_needs(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    keel_roster *r = target;
+    (void)rule;
+    if (value->kind != NODE_MAPPING) {
+        report_type(ld, value, "a mapping from precaution to competencies, like {airborne: [n95]}");
+        return;
+    }
+    for (size_t i = 0; i + 1 < value->nitems; i += 2) {
+        const node *key = value->items[i], *first = NULL;
+        int kind;
+        if (!check_key(ld, key))
+            continue;
+        size_t old = push_key(ld, key->text);
+        for (size_t j = 0; j < i && !first; j += 2) {
+            const node *earlier = value->items[j];
+            if (earlier->kind == NODE_SCALAR && strcmp(earlier->text, key->text) == 0)
+                first = earlier;
+        }
+        if (first) {
+            report(ld, key->mark, "given twice (first on line %d); expected each precaution once",
+                   first->mark.line);
+        } else if (read_word(ld, key, "precaution", isolation_names + 1, KEEL_NISOLATION - 1, false,
+                             &kind)) {
+            key_rule names = {.offset = offsetof(keel_roster, policy.isolation_needs) +
+                                        (size_t)(kind + 1) * sizeof(char **),
+                              .count_offset = offsetof(keel_roster, policy.nisolation_needs) +
+                                              (size_t)(kind + 1) * sizeof(size_t)};
+            parse_names(ld, value->items[i + 1], r, &names);
+        }
+        pop_path(ld, old);
+    }
 }
 
 static int compare_levels(const void *a, const void *b)
@@ -1129,6 +1227,13 @@ static const key_rule patient_keys[] = {
      .parse = parse_names,
      .offset = offsetof(keel_patient, avoid),
      .count_offset = offsetof(keel_patient, navoid)},
+    {.name = "ratio", .parse = parse_ratio, .offset = offsetof(keel_patient, ratio)},
+    {.name = "isolation", .parse = parse_isolation, .offset = offsetof(keel_patient, isolation)},
+    {.name = "room", .parse = parse_string, .offset = offsetof(keel_patient, room)},
+    {.name = "zone", .parse = parse_string, .offset = offsetof(keel_patient, zone)},
+    {.name = "previous_nurse",
+     .parse = parse_string,
+     .offset = offsetof(keel_patient, previous_nurse)},
 };
 
 /* True when value is a non-empty sequence (reported if not). */
@@ -1184,8 +1289,10 @@ static void parse_patients(loader *ld, const node *value, void *target, const ke
     }
     r->npatients = value->nitems;
     for (size_t i = 0; i < value->nitems; i++) {
-        r->patients[i] = (keel_patient){
-            .acuity = KEEL_ABSENT, .care_minutes = KEEL_ABSENT, .mark = value->items[i]->mark};
+        r->patients[i] = (keel_patient){.acuity = KEEL_ABSENT,
+                                        .care_minutes = KEEL_ABSENT,
+                                        .ratio = KEEL_ABSENT,
+                                        .mark = value->items[i]->mark};
         size_t old = push_index(ld, i);
         walk_mapping(ld, value->items[i], patient_keys, ARRAY_LEN(patient_keys), &r->patients[i]);
         pop_path(ld, old);
@@ -1258,6 +1365,21 @@ static void parse_role_table(loader *ld, const node *value, void *target, const 
     }
 }
 
+static const key_rule high_acuity_keys[] = {
+    {.name = "level",
+     .parse = parse_int,
+     .offset = offsetof(keel_roster, policy.high_acuity.level),
+     .min = 0,
+     .max = MAX_LEVEL,
+     .need = "the acuity level from which a patient counts as high-acuity"},
+    {.name = "max_per_nurse",
+     .parse = parse_int,
+     .offset = offsetof(keel_roster, policy.high_acuity.max_per_nurse),
+     .min = 0,
+     .max = MAX_PATIENTS,
+     .need = "the most high-acuity patients one nurse may have"},
+};
+
 static const key_rule policy_keys[] = {
     {.name = "max_patients",
      .parse = parse_int,
@@ -1267,6 +1389,25 @@ static const key_rule policy_keys[] = {
     {.name = "acuity_minutes", .parse = parse_acuity_table},
     {.name = "extra_minutes", .parse = parse_extra_table},
     {.name = "roles", .parse = parse_role_table},
+    {.name = "ratio_table",
+     .parse = parse_ratio_table,
+     .offset = offsetof(keel_roster, policy.ratio_table)},
+    {.name = "high_acuity",
+     .parse = parse_section,
+     .keys = high_acuity_keys,
+     .nkeys = ARRAY_LEN(high_acuity_keys)},
+    {.name = "isolation_separation",
+     .parse = parse_bool,
+     .offset = offsetof(keel_roster, policy.isolation_separation)},
+    {.name = "isolation_needs", .parse = parse_isolation_needs},
+    {.name = "max_zones",
+     .parse = parse_int,
+     .offset = offsetof(keel_roster, policy.max_zones),
+     .min = 1,
+     .max = MAX_PATIENTS},
+    {.name = "balance_tolerance",
+     .parse = parse_tolerance,
+     .offset = offsetof(keel_roster, policy.balance_tolerance)},
 };
 
 static const key_rule roster_keys[] = {
@@ -1586,6 +1727,99 @@ static void check_acuity_scale(loader *ld, const node *root, const node *patient
     }
 }
 
+/* A limit of value at node at (key path already set) must not be looser
+ * than the selected table's per-nurse maximum. */
+static void check_not_looser(loader *ld, const node *at, int value, const char *what)
+{
+    const keel_roster *r = ld->roster;
+    const keel_law_table *t = r->policy.ratio_table;
+    int law = keel_law_nurse_max(t, r->unit.type);
+    if (law < 0 || value == KEEL_ABSENT || value <= law)
+        return;
+    report(ld, at->mark,
+           "%s%d is looser than the %s table (%s, 1:%d for %s as encoded on %s); expected at "
+           "most %d",
+           what, value, t->name, t->citation, law, r->unit.type, t->encoded, law);
+}
+
+/* policy.ratio_table needs a unit type it covers (and, for a table that
+ * tells shifts apart, the shift's start); no limit in the roster may be
+ * looser than the table's. */
+static void check_ratio_table(loader *ld, const node *root)
+{
+    const keel_roster *r = ld->roster;
+    const keel_law_table *t = r->policy.ratio_table;
+    const node *policy = find_value(root, "policy");
+    char covered[256] = "";
+    if (!t)
+        return;
+    for (size_t i = 0, used = 0; i < t->nentries && used < sizeof covered; i++) {
+        if (strstr(covered, t->entries[i].unit_type))
+            continue;
+        snprintf(covered + used, sizeof covered - used, "%s%s", used ? ", " : "",
+                 t->entries[i].unit_type);
+        used = strlen(covered);
+    }
+    pop_path(ld, 0);
+    push_key(ld, "policy");
+    push_key(ld, "ratio_table");
+    const node *at = find_value(policy, "ratio_table");
+    if (!r->unit.type) {
+        report(ld, at->mark,
+               "the %s table needs unit.type to know which entry applies; expected unit.type, "
+               "one of %s",
+               t->name, covered);
+        return;
+    }
+    if (!keel_law_covers(t, r->unit.type)) {
+        report(ld, at->mark,
+               "the %s table as encoded on %s has no entry for unit type '%s'; expected a unit "
+               "of type %s, or no ratio_table",
+               t->name, t->encoded, r->unit.type, covered);
+        return;
+    }
+    if (t->classes && r->shift.start_minute == KEEL_ABSENT)
+        report(ld, at->mark,
+               "the %s table differs by shift (%s); expected shift.start to tell which applies",
+               t->name, t->classes);
+    if (r->policy.max_patients != KEEL_ABSENT) {
+        pop_path(ld, 0);
+        push_key(ld, "policy");
+        push_key(ld, "max_patients");
+        check_not_looser(ld, find_value(policy, "max_patients"), r->policy.max_patients,
+                         "max_patients ");
+    }
+    const node *roles = find_value(policy, "roles");
+    for (size_t i = 0; roles && roles->kind == NODE_MAPPING && i + 1 < roles->nitems; i += 2) {
+        const node *key = roles->items[i], *limit = find_value(roles->items[i + 1], "max_patients");
+        long value;
+        if (!limit || !scan_int(limit, &value) || key->kind != NODE_SCALAR)
+            continue;
+        pop_path(ld, 0);
+        push_key(ld, "policy");
+        push_key(ld, "roles");
+        push_key(ld, key->text);
+        push_key(ld, "max_patients");
+        check_not_looser(ld, limit, (int)value, "max_patients ");
+    }
+    const node *nurses = find_value(root, "nurses");
+    for (size_t i = 0; i < r->nnurses; i++) {
+        if (r->nurses[i].max_patients == KEEL_ABSENT)
+            continue;
+        set_path(ld, "nurses", i, "max_patients");
+        check_not_looser(ld, find_value(nurses->items[i], "max_patients"),
+                         r->nurses[i].max_patients, "max_patients ");
+    }
+    const node *patients = find_value(root, "patients");
+    for (size_t i = 0; i < r->npatients; i++) {
+        if (r->patients[i].ratio == KEEL_ABSENT)
+            continue;
+        set_path(ld, "patients", i, "ratio");
+        check_not_looser(ld, find_value(patients->items[i], "ratio"), r->patients[i].ratio,
+                         "ratio 1:");
+    }
+}
+
 static void check_roster(loader *ld, const node *root)
 {
     const node *nurses = find_value(root, "nurses"), *patients = find_value(root, "patients");
@@ -1601,6 +1835,7 @@ static void check_roster(loader *ld, const node *root)
         check_patients(ld, patients);
         check_acuity_scale(ld, root, patients);
     }
+    check_ratio_table(ld, root);
     pop_path(ld, 0);
 }
 
@@ -1619,6 +1854,11 @@ static keel_roster *new_roster(const char *name)
     r->policy.max_patients = KEEL_ABSENT;
     for (size_t i = 0; i < KEEL_NROLES; i++)
         r->policy.roles[i] = (keel_role_policy){KEEL_ABSENT, KEEL_ABSENT};
+    r->policy.high_acuity.level = KEEL_ABSENT;
+    r->policy.high_acuity.max_per_nurse = KEEL_ABSENT;
+    r->policy.isolation_separation = true;
+    r->policy.max_zones = KEEL_ABSENT;
+    r->policy.balance_tolerance = KEEL_ABSENT;
     r->path = keel_strdup(name);
     if (!r->path) {
         free(r);
@@ -1655,7 +1895,12 @@ void keel_roster_free(keel_roster *roster)
         free_names(p->needs, p->nneeds);
         free(p->nurse);
         free_names(p->avoid, p->navoid);
+        free(p->room);
+        free(p->zone);
+        free(p->previous_nurse);
     }
+    for (size_t i = 0; i < KEEL_NISOLATION; i++)
+        free_names(roster->policy.isolation_needs[i], roster->policy.nisolation_needs[i]);
     free(roster->patients);
     for (size_t i = 0; i < roster->policy.nextras; i++)
         free(roster->policy.extra_minutes[i].name);
@@ -1783,6 +2028,11 @@ keel_status keel_roster_load(const char *path, keel_roster **out, keel_error *er
     rc = keel_roster_parse(path, text, len, out, err);
     free(text);
     return rc;
+}
+
+const char *keel_isolation_name(keel_isolation isolation)
+{
+    return (size_t)isolation < KEEL_NISOLATION ? isolation_names[isolation] : "none";
 }
 
 const char *keel_role_name(keel_role role)

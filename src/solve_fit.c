@@ -9,7 +9,9 @@
  * are interchangeable (same care, same eligible nurses) take nurses in
  * non-decreasing index order, and of several nurses that are
  * interchangeable for the question and carry the same so far, only the
- * first is tried.  A node is cut when the room left that the remaining
+ * first is tried (when no rule joins patients: otherwise what a nurse
+ * holds matters beyond its sum).  The rules that join patients are checked
+ * by the tally (tally.h) at every step.  A node is cut when the room left that the remaining
  * patients could still use is less than their care, or the care they must
  * still bring to nurses below their window is more than they have.
  *
@@ -21,6 +23,7 @@
 
 #include "alloc.h"
 #include "solve_internal.h"
+#include "tally.h"
 
 typedef struct fit {
     const keel_workload *w;
@@ -32,7 +35,8 @@ typedef struct fit {
     long long *suffix;  /* [k]: care of order[k..] */
     int *min_after;     /* [k]: smallest care among order[k..] */
     long long *care;    /* [nnurses]: care so far */
-    int *count;         /* [nnurses]: patients so far */
+    int *count;         /* [nnurses]: patients so far (the tally's) */
+    keel_tally tally;
     int *assign;        /* [npatients] */
     size_t *tried;      /* scratch per depth: nurses in trial order */
     long nodes;
@@ -43,6 +47,18 @@ typedef struct fit {
 
 static const keel_workload *sort_w;
 
+/* Compares what the rules see of two patients other than care and
+ * eligibility: 0 when they are interchangeable. */
+static int joined_cmp(const keel_workload *w, size_t i, size_t j)
+{
+    int d[] = {w->ratio_limit[i] - w->ratio_limit[j], w->high_acuity[i] - w->high_acuity[j],
+               w->side[i] - w->side[j], w->zone[i] - w->zone[j]};
+    for (size_t k = 0; k < sizeof d / sizeof d[0]; k++)
+        if (d[k])
+            return (d[k] > 0) - (d[k] < 0);
+    return 0;
+}
+
 static int heavier_first(const void *a, const void *b)
 {
     size_t i = *(const size_t *)a, j = *(const size_t *)b;
@@ -51,6 +67,9 @@ static int heavier_first(const void *a, const void *b)
         return w->care_minutes[i] > w->care_minutes[j] ? -1 : 1;
     int c = memcmp(&w->eligible[i * w->nnurses], &w->eligible[j * w->nnurses],
                    w->nnurses * sizeof *w->eligible);
+    if (c)
+        return c;
+    c = joined_cmp(w, i, j);
     if (c)
         return c;
     return (i > j) - (i < j);
@@ -111,11 +130,10 @@ static bool search(fit *F, size_t k)
     size_t *tried = F->tried + k * nn, ntried = 0;
     /* Candidates with room, most room first. */
     for (size_t n = (size_t)first; n < nn; n++) {
-        if (!keel_workload_eligible(w, p, n) || F->count[n] >= w->max_patients[n] ||
-            F->care[n] + c > F->hi[n])
+        if (F->care[n] + c > F->hi[n] || !keel_tally_admits(&F->tally, p, n))
             continue;
         bool twin_seen = false;
-        for (size_t i = 0; i < ntried && !twin_seen; i++) {
+        for (size_t i = 0; i < ntried && !twin_seen && !w->joined_rules; i++) {
             size_t m = tried[i];
             twin_seen = F->group[m] == F->group[n] && F->care[m] == F->care[n] &&
                         F->count[m] == F->count[n];
@@ -133,10 +151,10 @@ static bool search(fit *F, size_t k)
         size_t n = tried[i];
         F->assign[p] = (int)n;
         F->care[n] += c;
-        F->count[n]++;
+        keel_tally_add(&F->tally, p, n);
         bool found = search(F, k + 1);
         F->care[n] -= c;
-        F->count[n]--;
+        keel_tally_remove(&F->tally, p, n);
         if (found)
             return true;
         if (F->gave_up)
@@ -157,12 +175,12 @@ keel_status keel_fit_search(const keel_workload *w, const long long *lo, const l
     F.suffix = keel_calloc(np + 1, sizeof *F.suffix);
     F.min_after = keel_calloc(np + 1, sizeof *F.min_after);
     F.care = keel_calloc(nn, sizeof *F.care);
-    F.count = keel_calloc(nn, sizeof *F.count);
+    keel_status rc = keel_tally_init(&F.tally, w);
+    F.count = F.tally.count;
     F.assign = keel_calloc(np, sizeof *F.assign);
     F.tried = keel_calloc((np ? np : 1) * (nn ? nn : 1), sizeof *F.tried);
-    keel_status rc = KEEL_OK;
-    if (!F.order || !F.twin_of_prev || !F.group || !F.suffix || !F.min_after || !F.care ||
-        !F.count || !F.assign || !F.tried) {
+    if (rc || !F.order || !F.twin_of_prev || !F.group || !F.suffix || !F.min_after || !F.care ||
+        !F.assign || !F.tried) {
         rc = KEEL_ERR_NOMEM;
         goto out;
     }
@@ -174,7 +192,8 @@ keel_status keel_fit_search(const keel_workload *w, const long long *lo, const l
         size_t a = F.order[k - 1], b = F.order[k];
         F.twin_of_prev[k] =
             w->care_minutes[a] == w->care_minutes[b] &&
-            memcmp(&w->eligible[a * nn], &w->eligible[b * nn], nn * sizeof *w->eligible) == 0;
+            memcmp(&w->eligible[a * nn], &w->eligible[b * nn], nn * sizeof *w->eligible) == 0 &&
+            joined_cmp(w, a, b) == 0;
     }
     F.min_after[np] = 0;
     for (size_t k = np; k-- > 0;) {
@@ -205,7 +224,7 @@ out:
     free(F.suffix);
     free(F.min_after);
     free(F.care);
-    free(F.count);
+    keel_tally_free(&F.tally);
     free(F.assign);
     free(F.tried);
     return rc;

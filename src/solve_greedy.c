@@ -5,8 +5,8 @@
  * (Graham's LPT rule, in utilisation), then improving moves and swaps.
  *
  * It gives the incumbent the ILP starts from, the answer of
- * `--method greedy`, and a check in tests.  Every move keeps eligibility and
- * patient limits.  Improvement accepts a move or swap between nurses a and b
+ * `--method greedy`, and a check in tests.  Every placement, move and swap
+ * keeps every hard rule (the tally, tally.h, checks them).  Improvement accepts a move or swap between nurses a and b
  * only when it lowers max(u_a, u_b) strictly, so the sorted vector of
  * utilisations falls lexicographically and the search ends.
  */
@@ -14,6 +14,7 @@
 
 #include "alloc.h"
 #include "solve_internal.h"
+#include "tally.h"
 
 /* Patients by care minutes, heaviest first; ties by index for determinism. */
 static const keel_workload *sort_w;
@@ -32,9 +33,13 @@ keel_status keel_greedy_place(const keel_workload *w, int *nurse_of, bool *place
     size_t np = w->npatients, nn = w->nnurses;
     size_t *order = keel_malloc((np ? np : 1) * sizeof *order);
     long long *load = keel_calloc(nn, sizeof *load);
-    int *count = keel_calloc(nn, sizeof *count);
-    keel_status rc = order && load && count ? KEEL_OK : KEEL_ERR_NOMEM;
+    keel_tally t;
+    keel_status rc = keel_tally_init(&t, w);
     *placed_all = false;
+    if (rc == KEEL_OK && (!order || !load)) {
+        keel_tally_free(&t);
+        rc = KEEL_ERR_NOMEM;
+    }
     if (rc)
         goto out;
     *placed_all = true;
@@ -51,7 +56,7 @@ keel_status keel_greedy_place(const keel_workload *w, int *nurse_of, bool *place
         int best = -1;
         keel_ratio best_u = {0, 1};
         for (size_t n = 0; n < nn; n++) {
-            if (!keel_workload_eligible(w, p, n) || count[n] >= w->max_patients[n])
+            if (!keel_tally_admits(&t, p, n))
                 continue;
             keel_ratio u = {load[n] + w->care_minutes[p], w->capacity_minutes[n]};
             if (best < 0 || keel_ratio_cmp(u, best_u) < 0) {
@@ -65,12 +70,12 @@ keel_status keel_greedy_place(const keel_workload *w, int *nurse_of, bool *place
         }
         nurse_of[p] = best;
         load[best] += w->care_minutes[p];
-        count[best]++;
+        keel_tally_add(&t, p, (size_t)best);
     }
+    keel_tally_free(&t);
 out:
     free(order);
     free(load);
-    free(count);
     return rc;
 }
 
@@ -81,15 +86,13 @@ static keel_ratio worse(keel_ratio a, keel_ratio b)
 
 /* Tries every move of one of a's patients to b; applies the first that
  * lowers the pair's peak.  Returns true when it applied one. */
-static bool try_move(const keel_workload *w, int *nurse_of, long long *load, int *count, size_t a,
+static bool try_move(const keel_workload *w, int *nurse_of, long long *load, keel_tally *t, size_t a,
                      size_t b)
 {
-    if (count[b] >= w->max_patients[b])
-        return false;
     keel_ratio before = worse((keel_ratio){load[a], w->capacity_minutes[a]},
                               (keel_ratio){load[b], w->capacity_minutes[b]});
     for (size_t p = 0; p < w->npatients; p++) {
-        if (nurse_of[p] != (int)a || !keel_workload_eligible(w, p, b))
+        if (nurse_of[p] != (int)a || !keel_tally_admits(t, p, b))
             continue;
         int c = w->care_minutes[p];
         keel_ratio after = worse((keel_ratio){load[a] - c, w->capacity_minutes[a]},
@@ -98,8 +101,8 @@ static bool try_move(const keel_workload *w, int *nurse_of, long long *load, int
             nurse_of[p] = (int)b;
             load[a] -= c;
             load[b] += c;
-            count[a]--;
-            count[b]++;
+            keel_tally_remove(t, p, a);
+            keel_tally_add(t, p, b);
             return true;
         }
     }
@@ -108,7 +111,8 @@ static bool try_move(const keel_workload *w, int *nurse_of, long long *load, int
 
 /* Tries every swap of a patient of a with a patient of b; applies the first
  * that lowers the pair's peak. */
-static bool try_swap(const keel_workload *w, int *nurse_of, long long *load, size_t a, size_t b)
+static bool try_swap(const keel_workload *w, int *nurse_of, long long *load, keel_tally *t, size_t a,
+                     size_t b)
 {
     keel_ratio before = worse((keel_ratio){load[a], w->capacity_minutes[a]},
                               (keel_ratio){load[b], w->capacity_minutes[b]});
@@ -121,6 +125,9 @@ static bool try_swap(const keel_workload *w, int *nurse_of, long long *load, siz
             long long d = (long long)w->care_minutes[p] - w->care_minutes[q];
             if (d == 0)
                 continue;
+            if (w->joined_rules &&
+                (!keel_tally_admits_instead(t, p, q, b) || !keel_tally_admits_instead(t, q, p, a)))
+                continue;
             keel_ratio after = worse((keel_ratio){load[a] - d, w->capacity_minutes[a]},
                                      (keel_ratio){load[b] + d, w->capacity_minutes[b]});
             if (keel_ratio_cmp(after, before) < 0) {
@@ -128,6 +135,10 @@ static bool try_swap(const keel_workload *w, int *nurse_of, long long *load, siz
                 nurse_of[q] = (int)a;
                 load[a] -= d;
                 load[b] += d;
+                keel_tally_remove(t, p, a);
+                keel_tally_remove(t, q, b);
+                keel_tally_add(t, p, b);
+                keel_tally_add(t, q, a);
                 return true;
             }
         }
@@ -139,16 +150,13 @@ keel_status keel_greedy_improve(const keel_workload *w, int *nurse_of)
 {
     size_t nn = w->nnurses;
     long long *load = keel_calloc(nn, sizeof *load);
-    int *count = keel_calloc(nn, sizeof *count);
-    if (!load || !count) {
+    keel_tally t;
+    if (!load || keel_tally_init(&t, w)) {
         free(load);
-        free(count);
         return KEEL_ERR_NOMEM;
     }
     keel_solve_loads(w, nurse_of, load);
-    for (size_t p = 0; p < w->npatients; p++)
-        if (nurse_of[p] >= 0)
-            count[nurse_of[p]]++;
+    keel_tally_fill(&t, nurse_of);
     bool improved = true;
     while (improved) {
         improved = false;
@@ -162,13 +170,13 @@ keel_status keel_greedy_improve(const keel_workload *w, int *nurse_of)
                 if (keel_ratio_cmp((keel_ratio){load[a], w->capacity_minutes[a]},
                                    (keel_ratio){load[b], w->capacity_minutes[b]}) <= 0)
                     continue;
-                while (try_move(w, nurse_of, load, count, a, b) ||
-                       try_swap(w, nurse_of, load, a, b))
+                while (try_move(w, nurse_of, load, &t, a, b) ||
+                       try_swap(w, nurse_of, load, &t, a, b))
                     improved = true;
             }
         }
     }
     free(load);
-    free(count);
+    keel_tally_free(&t);
     return KEEL_OK;
 }

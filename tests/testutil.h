@@ -81,6 +81,22 @@ static inline tu_case *tu_case_new(size_t nn, size_t np)
     c->w.duty_minutes = calloc(nn ? nn : 1, sizeof(int));
     c->w.max_patients = calloc(nn ? nn : 1, sizeof(int));
     c->w.eligible = calloc(np * nn > 0 ? np * nn : 1, sizeof(bool));
+    c->w.law_limit = KEEL_ABSENT;
+    c->w.ratio_limit = calloc(np ? np : 1, sizeof(int));
+    c->w.high_acuity = calloc(np ? np : 1, sizeof(bool));
+    c->w.max_high_acuity = KEEL_ABSENT;
+    c->w.side = calloc(np ? np : 1, sizeof(signed char));
+    c->w.zone = calloc(np ? np : 1, sizeof(int));
+    c->w.max_zones = KEEL_ABSENT;
+    c->w.room = calloc(np ? np : 1, sizeof(int));
+    c->w.previous = calloc(np ? np : 1, sizeof(int));
+    c->w.tolerance = KEEL_TOLERANCE_SCALE / 20;
+    for (size_t p = 0; p < np; p++) {
+        c->w.ratio_limit[p] = (int)np;
+        c->w.zone[p] = -1;
+        c->w.room[p] = -1;
+        c->w.previous[p] = -1;
+    }
     for (size_t n = 0; n < nn; n++) {
         c->w.capacity_minutes[n] = 660;
         c->w.max_patients[n] = (int)np;
@@ -147,6 +163,12 @@ static inline void tu_case_free(tu_case *c)
     free(c->w.duty_minutes);
     free(c->w.max_patients);
     free(c->w.eligible);
+    free(c->w.ratio_limit);
+    free(c->w.high_acuity);
+    free(c->w.side);
+    free(c->w.zone);
+    free(c->w.room);
+    free(c->w.previous);
     free(c);
 }
 

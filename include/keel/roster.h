@@ -18,6 +18,7 @@
 #include <stddef.h>
 
 #include "keel/error.h"
+#include "keel/law.h"
 
 #ifdef __cplusplus
 extern "C" {
@@ -52,6 +53,23 @@ typedef enum keel_licence {
     KEEL_LICENCE_LPN, /* licensed practical or vocational nurse */
 } keel_licence;
 
+/* A patient's isolation precautions (patients[].isolation; default none). */
+typedef enum keel_isolation {
+    KEEL_ISOLATION_NONE,
+    KEEL_ISOLATION_CONTACT,
+    KEEL_ISOLATION_DROPLET,
+    KEEL_ISOLATION_AIRBORNE,
+    KEEL_ISOLATION_PROTECTIVE, /* protects an immunocompromised patient */
+} keel_isolation;
+
+#define KEEL_NISOLATION 5
+
+/* Name of a precaution as written in the roster ("contact", ...; "none"). */
+const char *keel_isolation_name(keel_isolation isolation);
+
+/* Balance tolerance is kept exactly, in millionths of a utilisation point. */
+#define KEEL_TOLERANCE_SCALE 1000000
+
 typedef struct keel_nurse {
     char *id;   /* required, unique */
     char *name; /* NULL when absent */
@@ -81,8 +99,13 @@ typedef struct keel_patient {
     bool lock;    /* keep `nurse` (a locked patient always has one) */
     bool sitter;  /* has a 1:1 sitter (shown on the sheet; no nurse time assumed) */
     size_t navoid;
-    char **avoid;   /* ids of nurses who must not have this patient */
-    keel_mark mark; /* where the patient's mapping starts */
+    char **avoid;             /* ids of nurses who must not have this patient */
+    int ratio;                /* N of "1:N": most patients of this patient's nurse; KEEL_ABSENT */
+    keel_isolation isolation; /* KEEL_ISOLATION_NONE when absent */
+    char *room;               /* NULL when absent */
+    char *zone;               /* NULL when absent; a group of rooms */
+    char *previous_nurse;     /* the previous shift's nurse (may be off this roster), or NULL */
+    keel_mark mark;           /* where the patient's mapping starts */
 } keel_patient;
 
 typedef struct keel_acuity_level {
@@ -124,6 +147,16 @@ typedef struct keel_roster {
         size_t nextras;
         keel_extra *extra_minutes;           /* in file order, unique names */
         keel_role_policy roles[KEEL_NROLES]; /* indexed by keel_role; KEEL_ABSENT fields */
+        const keel_law_table *ratio_table;   /* built-in, not owned; NULL when absent */
+        struct {
+            int level;         /* acuity at or above which a patient is high-acuity */
+            int max_per_nurse; /* KEEL_ABSENT (both) when policy.high_acuity is absent */
+        } high_acuity;
+        bool isolation_separation; /* true unless the roster says false */
+        size_t nisolation_needs[KEEL_NISOLATION];
+        char **isolation_needs[KEEL_NISOLATION]; /* competencies each precaution needs */
+        int max_zones;                           /* KEEL_ABSENT: no limit */
+        int balance_tolerance;                   /* in 1/KEEL_TOLERANCE_SCALE; KEEL_ABSENT: 0.05 */
     } policy;
 
     size_t nnurses;

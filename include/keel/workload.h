@@ -15,9 +15,18 @@
  *   limit(n)    also counts policy.roles[role].max_patients; an orientee's is 0
  *               (the orientee shares the preceptor's assignment)
  *
- * A pair (p, n) is eligible when n has every competency p needs,
- * limit(n) > 0, n is not on p's avoid list, and, when p is locked, n is the
- * nurse p has.  "Counted" nurses are those with limit(n) > 0; every
+ *   limit(n)    also counts the per-nurse maximum of policy.ratio_table for
+ *               the unit's type (law_limit)
+ *
+ * A pair (p, n) is eligible when n has every competency p needs (its
+ * needs, and policy.isolation_needs of its precaution), limit(n) > 0, n is
+ * not on p's avoid list, and, when p is locked, n is the nurse p has.
+ *
+ * Rules that join patients (held by every method, checked by the tally of
+ * solve_tally.c): the nurse of p has at most ratio_limit(p) patients; at
+ * most max_high_acuity high-acuity patients per nurse; with isolation
+ * separation, no nurse has a protective patient and an infectious one
+ * (contact, droplet, airborne); at most max_zones zones per nurse.  "Counted" nurses are those with limit(n) > 0; every
  * balance figure is taken over them.  All figures are whole minutes.
  */
 #ifndef KEEL_WORKLOAD_H
@@ -41,7 +50,29 @@ typedef struct keel_workload {
     int *duty_minutes;     /* [nnurses] */
     int *max_patients;     /* [nnurses], the effective limit */
     bool *eligible;        /* [npatients * nnurses], pair (p, n) at p * nnurses + n */
+    int law_limit;         /* the table's per-nurse maximum, or KEEL_ABSENT */
+
+    int *ratio_limit;     /* [npatients]: most patients p's nurse may have (census: none) */
+    bool *high_acuity;    /* [npatients] */
+    int max_high_acuity;  /* KEEL_ABSENT: no limit */
+    signed char *side;    /* [npatients]: KEEL_SIDE_* under isolation separation, else NONE */
+    int *zone;            /* [npatients]: zone index, or -1 */
+    size_t nzones;
+    int max_zones;        /* KEEL_ABSENT: no limit */
+    int *room;            /* [npatients]: room index, or -1 */
+    size_t nrooms;
+    int *previous;        /* [npatients]: index of the previous nurse on this roster, or -1 */
+    size_t ncontinuity;   /* patients whose previous nurse is on this roster */
+    long long tolerance;  /* balance tolerance in 1/KEEL_TOLERANCE_SCALE */
+    bool joined_rules;    /* any rule that joins patients is on */
 } keel_workload;
+
+/* Which side of the isolation separation a patient is on. */
+enum {
+    KEEL_SIDE_NONE = 0,
+    KEEL_SIDE_INFECTIOUS = 1, /* contact, droplet or airborne precautions */
+    KEEL_SIDE_PROTECTIVE = 2,
+};
 
 /* Derives the workload of a valid roster.  The caller owns *out; free it with
  * keel_workload_free().  Statuses: KEEL_OK, KEEL_ERR_NOMEM, KEEL_ERR_INPUT

@@ -588,3 +588,770 @@ def main(argv=None):
 
 if __name__ == "__main__":
     sys.exit(main())
+
+
+# ======================================================================
+# The roster rules and the later stages (docs: keel's rules spec)
+# ======================================================================
+#
+# Everything below is written from the specification of keel's roster rules
+# (ratio table, patient ratios, high acuity, isolation, zones, previous
+# nurse) and its four lexicographic stages, not from keel's C code.
+#
+# Hard rules of an assignment (each patient to one nurse):
+#   eligible(p, n): limit(n) > 0; n holds p's needs plus the isolation_needs
+#                   of p's isolation; n not in p's avoid; a locked p only to
+#                   its nurse
+#   1 one eligible nurse per patient      2 count(n) <= limit(n)
+#   3 count(n) <= N for each "1:N" patient of n
+#   4 high-acuity patients of n <= K      5 no nurse with a protective and a
+#                                           contact/droplet/airborne patient
+#   6 distinct zones of n <= max_zones
+# Stages: 1 peak U* = min max u; 2 lift L* = max min u with u <= U*;
+#   3 continuity: max kept within the windows
+#       load(n) <= floor((U* + tol) cap(n)), load(n) >= ceil((L* - tol) cap(n));
+#   4 proximity: same windows, kept >= count*; min Z (sum over nurses of
+#       distinct zones), then min R (distinct rooms).
+#
+# The MILP (HiGHS through scipy.optimize.milp, presolve off, every column
+# bounded; see the notes at the top of this file) uses binaries x[p,n] for
+# eligible pairs and, where a rule needs them, binaries y[n] (n has a
+# protective patient), z[n,zone] >= x[p,n] and w[n,room] >= x[p,n].  Each
+# stage runs the textbook objective for part of its time and then a descent
+# on the stage's whole-number measure (whole-minute loads, kept, Z, R): HiGHS
+# must find a strictly better assignment or prove there is none.  Every
+# incumbent is rounded and checked against the hard rules and the stage's
+# holds by violations() and the stage's own test, exactly.
+#
+# brute_force_rules() enumerates every assignment of a tiny roster with
+# its own eligibility test (pair_violations) and the same violations().
+
+# Per-nurse maximum patients by unit type under ratio_table: california.
+# Source: California Code of Regulations, Title 22, §70217(a) (critical care
+# 1:2, step-down 1:3, telemetry 1:4, medical-surgical 1:5).
+CALIFORNIA_TABLE = {"icu": 2, "step-down": 3, "telemetry": 4, "med-surg": 5}
+INFECTIOUS = ("contact", "droplet", "airborne")
+ISOLATION_KINDS = INFECTIOUS + ("protective",)
+RULE_NAMES = ("skill", "patient_limit", "patient_ratio", "law_limit", "high_acuity",
+              "isolation", "zones", "lock", "avoid")
+
+
+def _ratio_n(text, pid):
+    """'1:N' -> N (1-99)."""
+    if not isinstance(text, str) or not text.startswith("1:") or not text[2:].isdigit():
+        raise RosterError("patient %s: ratio %r is not '1:N'" % (pid, text))
+    n = int(text[2:])
+    if not 1 <= n <= 99:
+        raise RosterError("patient %s: ratio %r out of range" % (pid, text))
+    return n
+
+
+def _decimal(value):
+    """The decimal the roster gives, as an exact Fraction (0.05 -> 1/20)."""
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        raise RosterError("balance_tolerance %r is not a number" % (value,))
+    return Fraction(str(value))
+
+
+def derive_rules(doc, relax=()):
+    """The numbers of a roster with the new rules.
+
+    relax: rule names (RULE_NAMES) to switch off, for the generator's test
+    that one rule alone makes a roster infeasible ("skill" drops needs and
+    isolation needs; "patient_limit" drops policy, role and own limits;
+    "law_limit" drops the table; "isolation" turns separation off).
+    Raises RosterError for what the spec calls an input error (a limit
+    looser than the table, ratio_table without a table unit type, ...).
+    """
+    relax = set(relax)
+    shift = doc.get("shift") or {}
+    policy = doc.get("policy") or {}
+    unit = doc.get("unit") or {}
+    acuity = policy.get("acuity_minutes") or {}
+    extra = policy.get("extra_minutes") or {}
+    roles = policy.get("roles") or {}
+    table = None
+    if policy.get("ratio_table") is not None:
+        if policy["ratio_table"] != "california":
+            raise RosterError("unknown ratio_table %r" % policy["ratio_table"])
+        if unit.get("type") not in CALIFORNIA_TABLE:
+            raise RosterError("ratio_table california needs unit.type in %s, not %r"
+                              % (sorted(CALIFORNIA_TABLE), unit.get("type")))
+        table = CALIFORNIA_TABLE[unit["type"]]
+
+    def looser(value, what):
+        if table is not None and value is not None and value > table:
+            raise RosterError("%s %d is looser than the table's %d" % (what, value, table))
+
+    looser(policy.get("max_patients"), "policy.max_patients")
+    for role, spec in roles.items():
+        looser((spec or {}).get("max_patients"), "policy.roles.%s.max_patients" % role)
+
+    nurses = []
+    index = {}
+    for n in doc.get("nurses") or []:
+        nid = str(n["id"])
+        role = n.get("role", "staff")
+        rspec = roles.get(role) or {}
+        minutes = n.get("minutes", shift.get("minutes"))
+        brk = n.get("break_minutes", shift.get("break_minutes", 0)) or 0
+        looser(n.get("max_patients"), "nurse %s max_patients" % nid)
+        limits = []
+        if table is not None and "law_limit" not in relax:
+            limits.append(table)
+        if "patient_limit" not in relax:
+            limits += [v for v in (policy.get("max_patients"), rspec.get("max_patients"),
+                                   n.get("max_patients")) if v is not None]
+        if role == "orientee":
+            limits.append(0)
+        limit = min(limits) if limits else None
+        duty = n.get("duty_minutes")
+        if duty is None:
+            duty = rspec.get("duty_minutes", 0) or 0
+        cap = int(minutes) - int(brk)
+        counted = limit is None or limit > 0
+        if counted and cap <= 0:
+            raise RosterError("nurse %s: capacity %d is not positive" % (nid, cap))
+        index[nid] = len(nurses)
+        nurses.append({"id": nid, "role": role, "capacity": cap, "duty": int(duty),
+                       "limit": limit, "counted": counted,
+                       "skills": set(n.get("skills") or [])})
+
+    iso_needs = policy.get("isolation_needs") or {}
+    ha = policy.get("high_acuity")
+    tol = _decimal(policy.get("balance_tolerance", 0.05))
+    if not 0 <= tol <= 1:
+        raise RosterError("balance_tolerance %s out of range" % tol)
+    max_zones = policy.get("max_zones")
+    patients = []
+    for p in doc.get("patients") or []:
+        pid = str(p["id"])
+        if p.get("care_minutes") is not None:
+            care = int(p["care_minutes"])
+        else:
+            care = int(_level_minutes(acuity, p.get("acuity")))
+        for x in p.get("extras") or []:
+            if x not in extra:
+                raise RosterError("patient %s: extra %r has no minutes" % (pid, x))
+            care += int(extra[x])
+        iso = p.get("isolation")
+        if iso is not None and iso not in ISOLATION_KINDS:
+            raise RosterError("patient %s: isolation %r" % (pid, iso))
+        needs = set(p.get("needs") or [])
+        if iso is not None:
+            needs |= set(iso_needs.get(iso) or [])
+        ratio = None
+        if p.get("ratio") is not None:
+            ratio = _ratio_n(p["ratio"], pid)
+            looser(ratio, "patient %s ratio" % pid)
+        lock = None
+        if p.get("lock"):
+            if p.get("nurse") not in index:
+                raise RosterError("patient %s: locked without a nurse on the roster" % pid)
+            lock = index[p["nurse"]]
+        avoid = set()
+        for a in p.get("avoid") or []:
+            if a not in index:
+                raise RosterError("patient %s: avoid names no nurse %r" % (pid, a))
+            avoid.add(index[a])
+        if lock is not None and lock in avoid:
+            raise RosterError("patient %s: locked to a nurse it avoids" % pid)
+        prev_id = p.get("previous_nurse")
+        patients.append({
+            "id": pid, "care": care, "needs": needs, "isolation": iso,
+            "ratio": ratio,
+            "high": ha is not None and p.get("acuity") is not None
+            and int(p["acuity"]) >= int(ha["level"]),
+            "zone": None if p.get("zone") is None else str(p["zone"]),
+            "room": None if p.get("room") is None else str(p["room"]),
+            "prev_id": None if prev_id is None else str(prev_id),
+            "prev": index.get(None if prev_id is None else str(prev_id)),
+            "lock": lock, "avoid": avoid,
+        })
+    r = {
+        "nurses": nurses, "patients": patients, "table": table,
+        "ratios": "patient_ratio" not in relax,
+        "high_max": None if ha is None or "high_acuity" in relax else int(ha["max_per_nurse"]),
+        "separation": bool(policy.get("isolation_separation", True))
+        and "isolation" not in relax,
+        "max_zones": None if max_zones is None or "zones" in relax else int(max_zones),
+        "use_needs": "skill" not in relax, "use_avoid": "avoid" not in relax,
+        "use_lock": "lock" not in relax,
+        "tol": tol,
+    }
+    r["stage3"] = any(p["prev"] is not None for p in patients)
+    r["stage4"] = any(p["zone"] is not None or p["room"] is not None for p in patients)
+    r["candidates"] = sum(1 for p in patients if p["prev"] is not None)
+    r["eligible"] = [[j for j in range(len(nurses)) if not pair_violations(r, i, j)]
+                     for i in range(len(patients))]
+    return r
+
+
+def load_rules(path, relax=()):
+    with open(path, encoding="utf-8") as f:
+        return derive_rules(yaml.safe_load(f), relax)
+
+
+def pair_violations(r, p, j):
+    """Rule names that forbid patient p with nurse j on their own (eligibility)."""
+    pat, n = r["patients"][p], r["nurses"][j]
+    out = []
+    if not n["counted"]:
+        out.append("law_limit" if n["limit"] == r["table"] and r["table"] == 0
+                   else "patient_limit")
+    if r["use_needs"] and not pat["needs"] <= n["skills"]:
+        out.append("skill")
+    if r["use_avoid"] and j in pat["avoid"]:
+        out.append("avoid")
+    if r["use_lock"] and pat["lock"] is not None and pat["lock"] != j:
+        out.append("lock")
+    return out
+
+
+def violations(r, assign):
+    """Every hard rule assign (nurse index per patient) breaks: [(rule, text)]."""
+    out = []
+    nn = len(r["nurses"])
+    mine = [[] for _ in range(nn)]
+    for p, j in enumerate(assign):
+        if j is None or not 0 <= j < nn:
+            out.append(("assignment", "patient %s has no nurse" % r["patients"][p]["id"]))
+            continue
+        mine[j].append(p)
+        for rule in pair_violations(r, p, j):
+            out.append((rule, "patient %s with nurse %s" % (r["patients"][p]["id"],
+                                                             r["nurses"][j]["id"])))
+    for j, n in enumerate(r["nurses"]):
+        ps = mine[j]
+        c = len(ps)
+        if not ps:
+            continue
+        if n["limit"] is not None and c > n["limit"]:
+            out.append(("patient_limit", "nurse %s has %d patients, limit %d"
+                        % (n["id"], c, n["limit"])))
+        if r["table"] is not None and c > r["table"] and "law" not in r.get("relaxed", ()):
+            if n["limit"] is not None and n["limit"] >= r["table"]:
+                out.append(("law_limit", "nurse %s has %d patients, table %d"
+                            % (n["id"], c, r["table"])))
+        if r["ratios"]:
+            for p in ps:
+                q = r["patients"][p]["ratio"]
+                if q is not None and c > q:
+                    out.append(("patient_ratio", "nurse %s has %d patients, %s is 1:%d"
+                                % (n["id"], c, r["patients"][p]["id"], q)))
+        if r["high_max"] is not None:
+            h = sum(1 for p in ps if r["patients"][p]["high"])
+            if h > r["high_max"]:
+                out.append(("high_acuity", "nurse %s has %d high-acuity patients, at most %d"
+                            % (n["id"], h, r["high_max"])))
+        if r["separation"]:
+            kinds = {r["patients"][p]["isolation"] for p in ps}
+            if "protective" in kinds and kinds & set(INFECTIOUS):
+                out.append(("isolation", "nurse %s has protective and infectious patients"
+                            % n["id"]))
+        if r["max_zones"] is not None:
+            zones = {r["patients"][p]["zone"] for p in ps} - {None}
+            if len(zones) > r["max_zones"]:
+                out.append(("zones", "nurse %s covers %d zones, at most %d"
+                            % (n["id"], len(zones), r["max_zones"])))
+    return out
+
+
+def windows(r, U, L, tol):
+    """Per counted nurse (lo, hi) load windows of stages 3 and 4, exact."""
+    out = {}
+    for j, n in enumerate(r["nurses"]):
+        if n["counted"]:
+            out[j] = (math.ceil((L - tol) * n["capacity"]), math.floor((U + tol) * n["capacity"]))
+    return out
+
+
+def outside_windows(r, assign, win):
+    loads = loads_of(r, assign)
+    return [j for j, (lo, hi) in win.items() if not lo <= loads[j] <= hi]
+
+
+def kept_of(r, assign):
+    return sum(1 for p, j in enumerate(assign)
+               if r["patients"][p]["prev"] is not None and r["patients"][p]["prev"] == j)
+
+
+def proximity_of(r, assign):
+    """(Z, R): sums over nurses of distinct zones and distinct rooms."""
+    zones, rooms = set(), set()
+    for p, j in enumerate(assign):
+        pat = r["patients"][p]
+        if pat["zone"] is not None:
+            zones.add((j, pat["zone"]))
+        if pat["room"] is not None:
+            rooms.add((j, pat["room"]))
+    return len(zones), len(rooms)
+
+
+class _Milp:
+    """Columns (bounded, binary or continuous) and rows for scipy's milp."""
+
+    def __init__(self):
+        self.clo, self.chi, self.cint = [], [], []
+        self.rows, self.rlo, self.rhi = [], [], []
+
+    def col(self, lo=0.0, hi=1.0, integer=True):
+        assert math.isfinite(lo) and math.isfinite(hi)   # every column bounded
+        self.clo.append(float(lo))
+        self.chi.append(float(hi))
+        self.cint.append(1 if integer else 0)
+        return len(self.clo) - 1
+
+    def row(self, terms, lo=-np.inf, hi=np.inf):
+        self.rows.append(list(terms))
+        self.rlo.append(float(lo))
+        self.rhi.append(float(hi))
+
+    def solve(self, cost, time_limit):
+        c = [0.0] * len(self.clo)
+        for k, v in cost.items():
+            c[k] += v
+        if time_limit is not None:
+            time_limit = max(time_limit, 0.01)
+        res, _ = _solve(c, self.cint, self.clo, self.chi, self.rows, self.rlo, self.rhi,
+                        time_limit, PRESOLVE)
+        return res, STATUS_NAMES.get(res.status, "error")
+
+
+class RulesModel(_Milp):
+    """The hard rules as a MILP; zone / room indicator columns on request."""
+
+    def __init__(self, r, zone_cols=False, room_cols=False):
+        super().__init__()
+        self.r = r
+        nn = len(r["nurses"])
+        self.pairs = [(p, j) for p, elig in enumerate(r["eligible"]) for j in elig]
+        self.xof = {}
+        self.by_nurse = [[] for _ in range(nn)]
+        by_patient = [[] for _ in r["patients"]]
+        for p, j in self.pairs:
+            k = self.col()
+            self.xof[(p, j)] = k
+            by_patient[p].append(k)
+            self.by_nurse[j].append(k)
+        self.counted = [j for j, n in enumerate(r["nurses"]) if n["counted"]]
+        for p in range(len(r["patients"])):
+            self.row([(k, 1.0) for k in by_patient[p]], 1.0, 1.0)          # rule 1
+        for j, n in enumerate(r["nurses"]):
+            ks = self.by_nurse[j]
+            cmax = len(ks) if n["limit"] is None else min(n["limit"], len(ks))
+            if cmax < len(ks):
+                self.row([(k, 1.0) for k in ks], hi=cmax)                      # rule 2
+            for p, jj in self.pairs:
+                if jj != j or not r["ratios"]:
+                    continue
+                q = r["patients"][p]["ratio"]
+                if q is not None and q < cmax:
+                    # count(j) + (cmax - q) x[p,j] <= cmax                     # rule 3
+                    kp = self.xof[(p, j)]
+                    self.row([(k, 1.0) for k in ks if k != kp] + [(kp, 1.0 + cmax - q)],
+                             hi=cmax)
+            if r["high_max"] is not None:
+                hk = [self.xof[(p, j)] for p, jj in self.pairs
+                      if jj == j and r["patients"][p]["high"]]
+                if len(hk) > r["high_max"]:
+                    self.row([(k, 1.0) for k in hk], hi=r["high_max"])        # rule 4
+            if r["separation"]:
+                prot = [self.xof[(p, j)] for p, jj in self.pairs
+                        if jj == j and r["patients"][p]["isolation"] == "protective"]
+                inf = [self.xof[(p, j)] for p, jj in self.pairs
+                       if jj == j and r["patients"][p]["isolation"] in INFECTIOUS]
+                if prot and inf:
+                    y = self.col()                                             # rule 5
+                    for k in prot:
+                        self.row([(k, 1.0), (y, -1.0)], hi=0.0)
+                    for k in inf:
+                        self.row([(k, 1.0), (y, 1.0)], hi=1.0)
+        self.zof = {}
+        if zone_cols or r["max_zones"] is not None:
+            self.zof = self._indicators("zone")
+            if r["max_zones"] is not None:
+                for j in range(nn):
+                    zs = [k for (jj, _), k in self.zof.items() if jj == j]
+                    if len(zs) > r["max_zones"]:
+                        self.row([(k, 1.0) for k in zs], hi=r["max_zones"])   # rule 6
+        self.wof = self._indicators("room") if room_cols else {}
+        self.keep = [self.xof[(p, pat["prev"])] for p, pat in enumerate(r["patients"])
+                     if pat["prev"] is not None and (p, pat["prev"]) in self.xof]
+
+    def _indicators(self, key):
+        """Binary v[j, place] >= x[p, j] for every patient p at that place."""
+        out = {}
+        for (p, j), k in self.xof.items():
+            place = self.r["patients"][p][key]
+            if place is None:
+                continue
+            if (j, place) not in out:
+                out[(j, place)] = self.col()
+            self.row([(k, 1.0), (out[(j, place)], -1.0)], hi=0.0)
+        return out
+
+    def care_terms(self, j):
+        return [(self.xof[(p, jj)], float(self.r["patients"][p]["care"]))
+                for p, jj in self.pairs if jj == j]
+
+    def load_rows(self, lo_load, hi_load):
+        """lo_load[j] <= duty + care of j <= hi_load[j] (None = open) for counted j."""
+        for j in self.counted:
+            duty = self.r["nurses"][j]["duty"]
+            lo = lo_load.get(j)
+            hi = hi_load.get(j)
+            self.row(self.care_terms(j), -np.inf if lo is None else float(lo - duty),
+                     np.inf if hi is None else float(hi - duty))
+
+    def window_rows(self, win):
+        self.load_rows({j: w[0] for j, w in win.items()}, {j: w[1] for j, w in win.items()})
+
+    def assignment(self, res):
+        """The rounded assignment of a HiGHS result, or None."""
+        if res.x is None:
+            return None
+        x = np.asarray(res.x)
+        assign = [None] * len(self.r["patients"])
+        for (p, j), k in self.xof.items():
+            if x[k] > 0.5:
+                if assign[p] is not None:
+                    raise AssertionError("reference incumbent gives a patient two nurses")
+                assign[p] = j
+        return assign
+
+
+def _upt(r, assign):
+    """Exact (U, L) over counted nurses."""
+    return peak_lift(r, assign)
+
+
+class _Stage:
+    """One lexicographic stage: what it holds, its measure, its objective.
+
+    build(): a RulesModel with the earlier stages' holds;  holds(a): exact
+    test of those holds;  value(a): the stage's exact measure;  sense +1
+    minimises, -1 maximises;  objective(m): cost dict (it may add a column
+    and rows);  dual(db): HiGHS's dual bound in the measure's terms;
+    better(m, v): add rows that ask for strictly better than v;
+    trivial(v): True when v is proven best by counting alone.
+    """
+
+    def __init__(self, name, build, holds, value, sense, objective, dual, better,
+                 trivial=lambda v: False):
+        self.name, self.build, self.holds, self.value = name, build, holds, value
+        self.sense, self.objective, self.dual, self.better = sense, objective, dual, better
+        self.trivial = trivial
+
+
+def _run_stage(r, sg, time_limit, model_share, start):
+    """Textbook objective for model_share of the time, then a descent.
+
+    Returns (status dict, best assignment or None).  status: optimal /
+    time_limit / infeasible / error; value: exact measure; bound: proven
+    bound (the value itself when optimal); proof: model / descent / count.
+    """
+    t0 = time.monotonic()
+    deadline = None if time_limit is None else t0 + time_limit
+    st = {"status": "time_limit", "value": None, "bound": None, "proof": None, "steps": 0}
+    best = start
+
+    def accept(a, need_better):
+        nonlocal best
+        bad = violations(r, a) if None not in a else [("assignment", "patient without nurse")]
+        if bad:
+            raise AssertionError("reference %s incumbent breaks %s" % (sg.name, bad[0]))
+        if not sg.holds(a):
+            raise AssertionError("reference %s incumbent breaks the stage's holds" % sg.name)
+        if best is not None:
+            gain = sg.sense * (sg.value(best) - sg.value(a))
+            if need_better and gain <= 0:
+                raise AssertionError("HiGHS returned a %s descent step that is not better"
+                                     % sg.name)
+            if gain < 0:
+                return
+        best = a
+
+    if model_share > 0:
+        m = sg.build()
+        cost = sg.objective(m)
+        tl = None if time_limit is None else time_limit * model_share
+        res, status = m.solve(cost, tl)
+        a = m.assignment(res)
+        if a is not None:
+            accept(a, False)
+        if status == "infeasible":
+            if start is not None:
+                raise AssertionError("HiGHS: %s infeasible with a known solution" % sg.name)
+            st["status"], st["proof"] = "infeasible", "model"
+        elif status == "optimal":
+            st["status"], st["proof"] = "optimal", "model"
+        elif status != "time_limit":
+            st["status"] = "error"
+        db = _dual_bound(res)
+        if db is not None:
+            st["bound"] = sg.dual(db)
+    if st["status"] == "time_limit" and best is None:
+        m = sg.build()
+        left = _remaining(deadline)
+        res, status = m.solve({}, left)
+        a = m.assignment(res)
+        if a is not None:
+            accept(a, False)
+        elif status == "infeasible":
+            st["status"], st["proof"] = "infeasible", "model"
+    while st["status"] == "time_limit" and best is not None:
+        v = sg.value(best)
+        if sg.trivial(v):
+            st["status"], st["proof"] = "optimal", "count"
+            break
+        left = _remaining(deadline)
+        if left is not None and left <= 0.05:
+            break
+        m = sg.build()
+        sg.better(m, v)
+        res, status = m.solve({}, left)
+        st["steps"] += 1
+        if status == "infeasible":
+            st["status"], st["proof"] = "optimal", "descent"
+        elif m.assignment(res) is not None:
+            accept(m.assignment(res), True)
+        else:
+            if status != "time_limit":
+                st["status"] = "error"
+            break
+    if best is not None:
+        v = sg.value(best)
+        st["value"] = v
+        if st["status"] == "optimal":
+            st["bound"] = v
+        elif st["bound"] is not None and sg.sense * (float(st["bound"]) - float(v)) > 1e-9:
+            st["bound"] = None        # a dummy bound on the wrong side (see _checked_bound)
+    st["seconds"] = time.monotonic() - t0
+    return st, best
+
+
+def _stage_specs(r):
+    """Factories for the stages of roster r (closures over r)."""
+    n = r["nurses"]
+
+    def peak():
+        def build():
+            return RulesModel(r)
+
+        def objective(m):
+            total = sum(p["care"] for p in r["patients"])
+            ceiling = max((n[j]["duty"] + total) / n[j]["capacity"] for j in m.counted) + 1.0
+            u = m.col(0.0, ceiling, integer=False)
+            for j in m.counted:
+                m.row(m.care_terms(j) + [(u, -float(n[j]["capacity"]))], hi=-float(n[j]["duty"]))
+            return {u: OBJ_SCALE}
+
+        def better(m, U):
+            m.load_rows({}, {j: math.ceil(U * n[j]["capacity"]) - 1 for j in m.counted})
+        return _Stage("peak", build, lambda a: True, lambda a: _upt(r, a)[0], +1, objective,
+                      lambda db: db / OBJ_SCALE, better)
+
+    def lift(U):
+        hi = {j: math.floor(U * n[j]["capacity"]) for j, x in enumerate(n) if x["counted"]}
+
+        def build():
+            m = RulesModel(r)
+            m.load_rows({}, hi)
+            return m
+
+        def holds(a):
+            loads = loads_of(r, a)
+            return all(loads[j] <= h for j, h in hi.items())
+
+        def objective(m):
+            lc = m.col(0.0, float(U) + 1.0, integer=False)
+            for j in m.counted:
+                m.row([(k, -v) for k, v in m.care_terms(j)] + [(lc, float(n[j]["capacity"]))],
+                      hi=float(n[j]["duty"]))
+            return {lc: -OBJ_SCALE}
+
+        def better(m, L):
+            m.load_rows({j: math.floor(L * n[j]["capacity"]) + 1 for j in m.counted}, {})
+        return _Stage("lift", build, holds, lambda a: _upt(r, a)[1], -1, objective,
+                      lambda db: -db / OBJ_SCALE, better)
+
+    def continuity(win):
+        def build():
+            m = RulesModel(r)
+            m.window_rows(win)
+            return m
+
+        def objective(m):
+            return {k: -1.0 for k in m.keep}
+
+        def better(m, k):
+            m.row([(c, 1.0) for c in m.keep], lo=k + 1)
+        limit = sum(1 for p, pat in enumerate(r["patients"])
+                    if pat["prev"] is not None and pat["prev"] in r["eligible"][p])
+        return _Stage("continuity", build, lambda a: not outside_windows(r, a, win),
+                      lambda a: kept_of(r, a), -1, objective,
+                      lambda db: math.floor(-db + 1e-6), better, lambda k: k >= limit)
+
+    def zones(win, kept):
+        def build():
+            m = RulesModel(r, zone_cols=True)
+            m.window_rows(win)
+            if kept:
+                m.row([(c, 1.0) for c in m.keep], lo=kept)
+            return m
+
+        def better(m, z):
+            m.row([(k, 1.0) for k in m.zof.values()], hi=z - 1)
+        floor_z = len({p["zone"] for p in r["patients"]} - {None})
+        return _Stage("proximity", build,
+                      lambda a: not outside_windows(r, a, win) and kept_of(r, a) >= kept,
+                      lambda a: proximity_of(r, a)[0], +1,
+                      lambda m: {k: 1.0 for k in m.zof.values()},
+                      lambda db: math.ceil(db - 1e-6), better, lambda z: z <= floor_z)
+
+    def rooms(win, kept, zmax):
+        def build():
+            m = RulesModel(r, zone_cols=True, room_cols=True)
+            m.window_rows(win)
+            if kept:
+                m.row([(c, 1.0) for c in m.keep], lo=kept)
+            if m.zof:
+                m.row([(k, 1.0) for k in m.zof.values()], hi=zmax)
+            return m
+
+        def better(m, w):
+            m.row([(k, 1.0) for k in m.wof.values()], hi=w - 1)
+        floor_r = len({p["room"] for p in r["patients"]} - {None})
+        return _Stage("rooms", build,
+                      lambda a: (not outside_windows(r, a, win) and kept_of(r, a) >= kept
+                                 and proximity_of(r, a)[0] <= zmax),
+                      lambda a: proximity_of(r, a)[1], +1,
+                      lambda m: {k: 1.0 for k in m.wof.values()},
+                      lambda db: math.ceil(db - 1e-6), better, lambda w: w <= floor_r)
+    return peak, lift, continuity, zones, rooms
+
+
+def solve_rules(r, time_limit=None, model_share=0.1, zero_tolerance=True):
+    """All stages of roster r with HiGHS, lexicographically.
+
+    time_limit: seconds for each stage (None = none); model_share as in
+    solve().  Returns {"feasible": True / False / None (unknown),
+    "stages": {"peak", "lift", "continuity", "proximity", "rooms",
+    "continuity0"}: status dicts (None when the stage does not apply),
+    "U", "L": the values the later stages hold (exact), "proven": True when
+    every earlier stage a later one depends on is proven, "assign"}.
+    continuity0 is stage 3 with tol = 0 (kept_at_zero_tolerance).
+    """
+    out = {"feasible": None, "stages": dict.fromkeys(
+        ("peak", "lift", "continuity", "proximity", "rooms", "continuity0")),
+        "U": None, "L": None, "assign": None, "proven": False}
+    if any(not e for e in r["eligible"]):
+        out["feasible"] = False
+        out["stages"]["peak"] = {"status": "infeasible", "value": None, "bound": None,
+                                 "proof": "no eligible nurse", "seconds": 0.0}
+        return out
+    peak, lift, continuity, zones, rooms = _stage_specs(r)
+    st, a = _run_stage(r, peak(), time_limit, model_share, None)
+    out["stages"]["peak"] = st
+    if st["status"] == "infeasible":
+        out["feasible"] = False
+        return out
+    if a is None:
+        return out
+    out["feasible"] = True
+    U = st["value"]
+    st2, a = _run_stage(r, lift(U), time_limit, model_share, a)
+    out["stages"]["lift"] = st2
+    L = st2["value"]
+    out["U"], out["L"], out["assign"] = U, L, a
+    proven = st["status"] == "optimal" and st2["status"] == "optimal"
+    win = windows(r, U, L, r["tol"])
+    kept = 0
+    if r["stage3"]:
+        st3, a = _run_stage(r, continuity(win), time_limit, model_share, a)
+        out["stages"]["continuity"] = st3
+        kept = st3["value"]
+        if zero_tolerance:
+            if r["tol"] == 0:
+                out["stages"]["continuity0"] = st3
+            else:
+                st0, _ = _run_stage(r, continuity(windows(r, U, L, Fraction(0))), time_limit,
+                                    model_share, out["assign"])
+                out["stages"]["continuity0"] = st0
+    proven3 = proven and (not r["stage3"] or out["stages"]["continuity"]["status"] == "optimal")
+    if r["stage4"]:
+        st4, a = _run_stage(r, zones(win, kept), time_limit, model_share, a)
+        out["stages"]["proximity"] = st4
+        st5, a = _run_stage(r, rooms(win, kept, st4["value"]), time_limit, model_share, a)
+        out["stages"]["rooms"] = st5
+    out["assign"] = a
+    out["proven"] = proven3
+    return out
+
+
+def feasible_rules(r, time_limit=30.0):
+    """True / False / None (HiGHS ran out of time): is there any assignment
+    that keeps the hard rules?"""
+    if any(not e for e in r["eligible"]):
+        return False
+    m = RulesModel(r)
+    res, status = m.solve({}, time_limit)
+    a = m.assignment(res)
+    if a is not None:
+        bad = violations(r, a) if None not in a else [("assignment", "")]
+        if bad:
+            raise AssertionError("reference feasibility incumbent breaks %s" % (bad[0],))
+        return True
+    if status == "infeasible":
+        return False
+    return None
+
+
+def brute_force_rules(r, max_combinations=300_000):
+    """Exhaustive lexicographic optimum of every stage, for tiny rosters.
+
+    Enumerates every nurse for every patient (eligibility is tested by
+    violations() itself, not taken from r["eligible"]).  Returns None when
+    no assignment keeps the hard rules, else a dict with U, L (Fractions),
+    kept, kept0 (tol = 0) (None when stage 3 does not apply), Z, R (None when
+    stage 4 does not apply) and one optimal assignment.
+    """
+    import itertools
+    nn, npat = len(r["nurses"]), len(r["patients"])
+    allowed = [[j for j in range(nn) if not pair_violations(r, p, j)] for p in range(npat)]
+    total = 1
+    for a in allowed:
+        total *= len(a)
+    if total > max_combinations:
+        raise ValueError("roster too large for brute force (%d combinations)" % total)
+    caps = [n["capacity"] for n in r["nurses"]]
+    counted = [j for j, n in enumerate(r["nurses"]) if n["counted"]]
+    feas = []
+    for combo in itertools.product(*allowed):
+        if not violations(r, combo):
+            loads = loads_of(r, combo)
+            us = [Fraction(loads[j], caps[j]) for j in counted]
+            feas.append((combo, loads, max(us), min(us)))
+    if not feas:
+        return None
+    U = min(f[2] for f in feas)
+    L = max(f[3] for f in feas if f[2] <= U)
+    out = {"U": U, "L": L, "kept": None, "kept0": None, "Z": None, "R": None}
+
+    def within(f, tol):
+        return all(math.ceil((L - tol) * caps[j]) <= f[1][j] <= math.floor((U + tol) * caps[j])
+                   for j in counted)
+    inside = [f for f in feas if within(f, r["tol"])]
+    kept = 0
+    if r["stage3"]:
+        kept = out["kept"] = max(kept_of(r, f[0]) for f in inside)
+        out["kept0"] = max(kept_of(r, f[0]) for f in feas if within(f, Fraction(0)))
+    best = [f for f in inside if kept_of(r, f[0]) >= kept]
+    if r["stage4"]:
+        zr = [proximity_of(r, f[0]) for f in best]
+        out["Z"] = min(z for z, _ in zr)
+        out["R"] = min(w for z, w in zr if z == out["Z"])
+        best = [f for f, (z, w) in zip(best, zr) if (z, w) == (out["Z"], out["R"])]
+    out["assign"] = list(best[0][0])
+    return out

@@ -1,0 +1,84 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * keel/law.h - built-in nurse-to-patient ratio tables (policy.ratio_table).
+ *
+ * A table encodes one published rule, entry by entry, each entry with its
+ * kind: a per-nurse maximum (no nurse has more than N patients) or a ward
+ * minimum (the ward has at least ceil(census / N) nurses; the patients are
+ * then shared out by acuity).  Only entries checked against the primary
+ * text are shipped.  Each table says which text, which version and when it
+ * was encoded; keel reports "exceeds the limit of <table> as encoded on
+ * <date>" and never that a roster is lawful or unlawful.
+ */
+#ifndef KEEL_LAW_H
+#define KEEL_LAW_H
+
+#include <stdbool.h>
+#include <stddef.h>
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+typedef enum keel_law_kind {
+    KEEL_LAW_NURSE_MAX, /* at most N patients per nurse, at all times */
+    KEEL_LAW_WARD_MIN,  /* at least ceil(census / N) nurses on the ward */
+} keel_law_kind;
+
+/* The shift classes a ward-minimum rule may distinguish. */
+typedef enum keel_shift_class {
+    KEEL_SHIFT_ANY,
+    KEEL_SHIFT_MORNING,
+    KEEL_SHIFT_AFTERNOON,
+    KEEL_SHIFT_NIGHT,
+} keel_shift_class;
+
+typedef struct keel_law_entry {
+    const char *unit_type; /* a unit.type word */
+    keel_law_kind kind;
+    keel_shift_class shift; /* KEEL_SHIFT_ANY unless the rule differs by shift */
+    int patients_per_nurse; /* the N of 1:N */
+} keel_law_entry;
+
+typedef struct keel_law_table {
+    const char *name;     /* the policy.ratio_table word */
+    const char *citation; /* the text encoded */
+    const char *version;  /* the version or effective date of that text */
+    const char *encoded;  /* when keel encoded it, YYYY-MM-DD */
+    const char *classes;  /* how the shift classes are defined, or NULL */
+    size_t nentries;
+    const keel_law_entry *entries;
+} keel_law_table;
+
+/* The built-in tables, in a fixed order. */
+size_t keel_law_ntables(void);
+const keel_law_table *keel_law_table_at(size_t i);
+
+/* The table named name, or NULL. */
+const keel_law_table *keel_law_find(const char *name);
+
+/* True when the table has an entry of any kind for the unit type. */
+bool keel_law_covers(const keel_law_table *t, const char *unit_type);
+
+/* The per-nurse maximum for the unit type, or -1 when the table sets none. */
+int keel_law_nurse_max(const keel_law_table *t, const char *unit_type);
+
+/* The shift class of a shift that starts start_minute after midnight and
+ * lasts minutes: the class whose hours it overlaps most; a shift that
+ * overlaps morning and afternoon equally is an afternoon shift, and any
+ * other tie goes to the class with the stricter rule (the earlier one of
+ * morning, afternoon, night).  start_minute < 0 gives KEEL_SHIFT_ANY. */
+keel_shift_class keel_law_shift_class(const keel_law_table *t, int start_minute, int minutes);
+
+/* Name of a shift class ("morning", ...; "any"). */
+const char *keel_shift_class_name(keel_shift_class c);
+
+/* The ward minimum of nurses for census patients on a unit of this type and
+ * shift class, or -1 when the table sets none. */
+int keel_law_ward_minimum(const keel_law_table *t, const char *unit_type, keel_shift_class c,
+                          size_t census);
+
+#ifdef __cplusplus
+}
+#endif
+#endif
