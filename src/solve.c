@@ -13,6 +13,7 @@
 
 #include "alloc.h"
 #include "solve_internal.h"
+#include "tally.h"
 
 #define DEFAULT_TIME_LIMIT_MS 10000L
 
@@ -97,6 +98,55 @@ keel_ratio keel_solve_peak(const keel_workload *w, const int *nurse_of)
 keel_ratio keel_solve_lift(const keel_workload *w, const int *nurse_of)
 {
     return extreme(w, nurse_of, -1);
+}
+
+keel_status keel_solve_validate(const keel_workload *w, const int *nurse_of, bool *valid)
+{
+    keel_tally t;
+    *valid = false;
+    if (keel_tally_init(&t, w))
+        return KEEL_ERR_NOMEM;
+    /* Every rule only tightens as patients are added, so an assignment
+     * keeps them all when each patient is admitted in turn. */
+    bool ok = true;
+    for (size_t p = 0; p < w->npatients && ok; p++) {
+        ok = nurse_of[p] >= 0 && keel_tally_admits(&t, p, (size_t)nurse_of[p]);
+        if (ok)
+            keel_tally_add(&t, p, (size_t)nurse_of[p]);
+    }
+    keel_tally_free(&t);
+    *valid = ok;
+    return KEEL_OK;
+}
+
+long long keel_solve_kept(const keel_workload *w, const int *nurse_of)
+{
+    long long kept = 0;
+    for (size_t p = 0; p < w->npatients; p++)
+        kept += w->previous[p] >= 0 && nurse_of[p] == w->previous[p];
+    return kept;
+}
+
+/* Distinct values of key[] among each nurse's patients, summed over nurses. */
+static long long distinct_per_nurse(const keel_workload *w, const int *nurse_of, const int *key)
+{
+    long long total = 0;
+    for (size_t p = 0; p < w->npatients; p++) {
+        if (key[p] < 0 || nurse_of[p] < 0)
+            continue;
+        bool seen = false;
+        for (size_t q = 0; q < p && !seen; q++)
+            seen = key[q] == key[p] && nurse_of[q] == nurse_of[p];
+        total += !seen;
+    }
+    return total;
+}
+
+void keel_solve_spread(const keel_workload *w, const int *nurse_of, long long *zones,
+                       long long *rooms)
+{
+    *zones = distinct_per_nurse(w, nurse_of, w->zone);
+    *rooms = distinct_per_nurse(w, nurse_of, w->room);
 }
 
 /* Total work over total capacity of the counted nurses. */

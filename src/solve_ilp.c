@@ -1,15 +1,16 @@
 /* SPDX-License-Identifier: GPL-3.0-or-later */
 /*
- * solve_ilp.c - the integer programme, the only file that includes glpk.h.
+ * solve_ilp.c - the integer programmes, the only file that includes glpk.h.
  *
- * It answers one question for the exact method (solve_exact.c): is there an
- * assignment (every patient one eligible nurse, patient limits kept) in
- * which every counted nurse n carries between lo[n] and hi[n] minutes of
- * care?  GLPK's fatal errors are turned into KEEL_ERR_SOLVER by the error
- * hook instead of an abort, and its terminal output is off.
+ * One model answers every question the stages ask (keel_ilp_ask): is there
+ * an assignment that keeps every hard rule with every counted nurse's care
+ * inside a window, and which is best for the goal (none, continuity, or
+ * proximity)?  GLPK's fatal errors are turned into KEEL_ERR_SOLVER by the
+ * error hook instead of an abort, and its terminal output is off.
  */
 #include <glpk.h>
 #include <limits.h>
+#include <math.h>
 #include <setjmp.h>
 #include <stdlib.h>
 #include <string.h>
@@ -23,36 +24,119 @@ static void on_glpk_error(void *info)
 }
 
 /*
- * The feasibility model.  Patients with the same care minutes and the same
- * eligible nurses are interchangeable, so they form one class with an
- * integer count per nurse instead of one binary per patient and nurse.
- * Counted nurses with the same capacity, duty, limit, eligibility and window
- * are interchangeable too; within such a group the model asks for loads in
- * non-increasing order, which removes their symmetric copies from the search.
+ * The model.  Patients that no rule tells apart (same care minutes, same
+ * eligible nurses, same ratio, acuity class, isolation side and zone; for
+ * continuity the same previous nurse, for proximity the same room) form one
+ * class with an integer count y[c, n] per nurse instead of one binary per
+ * patient and nurse.  Per counted nurse n:
+ *
+ *   sum_c y[c, n]                  <= limit(n)
+ *   lo(n) <= sum_c care(c) y[c, n] <= hi(n)
+ *   ratio r < limit(n):  sum_{c: ratio r} y[c, n] <= limit(n) a[r, n],
+ *                        sum_c y[c, n] + (limit(n) - r) a[r, n] <= limit(n)
+ *   high acuity:         sum_{c high} y[c, n] <= max_high_acuity
+ *   isolation:           sum_{c protective} y[c, n] <= limit(n) b[n],
+ *                        sum_{c infectious} y[c, n] + limit(n) b[n] <= limit(n)
+ *   zones:               sum_{c in zone k} y[c, n] <= limit(n) z[k, n],
+ *                        sum_k z[k, n] <= max_zones
+ *   rooms (proximity):   sum_{c in room m} y[c, n] <= limit(n) g[m, n]
+ *
+ * with a, b, z, g binary and sum_n y[c, n] = |c|.  Continuity maximises
+ * the patients with their previous nurse; proximity minimises
+ * (census + 1) sum z + sum g, which puts zones before rooms.  Counted nurses
+ * that are interchangeable (same capacity, duty, limit, eligibility and
+ * window) are asked, in the feasibility question, for loads in
+ * non-increasing order, which removes their symmetric copies.
  */
-typedef struct fit_model {
+typedef struct model {
+    const keel_workload *w;
+    const keel_ilp_question *q;
     size_t nclasses;
     size_t *class_of;    /* [npatients] */
     size_t *class_size;  /* [nclasses] */
-    int *class_care;     /* [nclasses] */
-    size_t *class_first; /* [nclasses]: a member, for eligibility */
-    int *next_twin;      /* [nnurses]: the next nurse of the same group, or -1 */
-    int *count_row;      /* [nnurses] */
-    int *order_row;      /* [nnurses]: row "load(n) >= load(next twin)", or 0 */
+    size_t *class_first; /* [nclasses]: a member */
     int *col;            /* [nclasses * nnurses]: column of y[c, n], or 0 */
+    int *next_twin;      /* [nnurses]: the next interchangeable nurse, or -1 */
     int *left;           /* [nclasses * nnurses]: members still to hand out */
-} fit_model;
+    int ny;              /* columns 1..ny are the y */
+    int *link;           /* [ncols + 1]: the row that ties a binary to its y, or 0 */
+    size_t nlink;
+    int *ia, *ja; /* the matrix as triplets, 1-based as GLPK wants */
+    double *ar;
+    size_t nnz, cap;
+    bool nomem;
+    double bound;       /* best bound GLPK reported, when have_bound */
+    bool have_bound;
+    bool start_given;
+} model;
 
-static bool same_patients(const keel_workload *w, size_t a, size_t b)
+static void put(model *m, int row, int col, double val)
 {
-    return w->care_minutes[a] == w->care_minutes[b] &&
+    if (m->nnz + 2 > m->cap) {
+        size_t cap = m->cap ? 2 * m->cap : 256;
+        int *ia = keel_reallocarray(m->ia, cap, sizeof *ia);
+        if (ia)
+            m->ia = ia;
+        int *ja = keel_reallocarray(m->ja, cap, sizeof *ja);
+        if (ja)
+            m->ja = ja;
+        double *ar = keel_reallocarray(m->ar, cap, sizeof *ar);
+        if (ar)
+            m->ar = ar;
+        if (!ia || !ja || !ar) {
+            m->nomem = true;
+            return;
+        }
+        m->cap = cap;
+    }
+    m->nnz++;
+    m->ia[m->nnz] = row;
+    m->ja[m->nnz] = col;
+    m->ar[m->nnz] = val;
+}
+
+static int new_row(glp_prob *lp, int type, double lb, double ub)
+{
+    int r = glp_add_rows(lp, 1);
+    glp_set_row_bnds(lp, r, type, lb, ub);
+    return r;
+}
+
+/* A binary column tied to its y by row link. */
+static int new_binary(model *m, glp_prob *lp, double cost, int link)
+{
+    int j = glp_add_cols(lp, 1);
+    glp_set_col_kind(lp, j, GLP_BV);
+    glp_set_obj_coef(lp, j, cost);
+    int *grown = keel_reallocarray(m->link, (size_t)j + 1, sizeof *m->link);
+    if (!grown) {
+        m->nomem = true;
+        return j;
+    }
+    m->link = grown;
+    for (size_t k = m->nlink; k <= (size_t)j; k++)
+        m->link[k] = 0;
+    m->nlink = (size_t)j + 1;
+    m->link[j] = link;
+    return j;
+}
+
+static bool same_patients(const model *m, size_t a, size_t b)
+{
+    const keel_workload *w = m->w;
+    keel_ilp_goal goal = m->q->goal;
+    return w->care_minutes[a] == w->care_minutes[b] && w->ratio_limit[a] == w->ratio_limit[b] &&
+           w->high_acuity[a] == w->high_acuity[b] && w->side[a] == w->side[b] &&
+           w->zone[a] == w->zone[b] && (goal == KEEL_GOAL_FIT || w->previous[a] == w->previous[b]) &&
+           (goal != KEEL_GOAL_NEAR || w->room[a] == w->room[b]) &&
            memcmp(&w->eligible[a * w->nnurses], &w->eligible[b * w->nnurses],
                   w->nnurses * sizeof *w->eligible) == 0;
 }
 
-static bool same_nurses(const keel_workload *w, const long long *lo, const long long *hi, size_t a,
-                        size_t b)
+static bool same_nurses(const model *m, size_t a, size_t b)
 {
+    const keel_workload *w = m->w;
+    const long long *lo = m->q->lo, *hi = m->q->hi;
     if (w->capacity_minutes[a] != w->capacity_minutes[b] ||
         w->duty_minutes[a] != w->duty_minutes[b] || w->max_patients[a] != w->max_patients[b] ||
         lo[a] != lo[b] || hi[a] != hi[b])
@@ -63,17 +147,17 @@ static bool same_nurses(const keel_workload *w, const long long *lo, const long 
     return true;
 }
 
-static void group(const keel_workload *w, const long long *lo, const long long *hi, fit_model *m)
+static void group(model *m)
 {
+    const keel_workload *w = m->w;
     m->nclasses = 0;
     for (size_t p = 0; p < w->npatients; p++) {
         size_t c;
         for (c = 0; c < m->nclasses; c++)
-            if (same_patients(w, m->class_first[c], p))
+            if (same_patients(m, m->class_first[c], p))
                 break;
         if (c == m->nclasses) {
             m->class_first[c] = p;
-            m->class_care[c] = w->care_minutes[p];
             m->class_size[c] = 0;
             m->nclasses++;
         }
@@ -82,10 +166,10 @@ static void group(const keel_workload *w, const long long *lo, const long long *
     }
     for (size_t n = 0; n < w->nnurses; n++) {
         m->next_twin[n] = -1;
-        if (!keel_workload_counted(w, n))
+        if (!keel_workload_counted(w, n) || m->q->goal != KEEL_GOAL_FIT)
             continue;
         for (size_t k = n + 1; k < w->nnurses; k++) {
-            if (keel_workload_counted(w, k) && same_nurses(w, lo, hi, n, k)) {
+            if (keel_workload_counted(w, k) && same_nurses(m, n, k)) {
                 m->next_twin[n] = (int)k;
                 break;
             }
@@ -93,75 +177,253 @@ static void group(const keel_workload *w, const long long *lo, const long long *
     }
 }
 
-/* Builds and solves the model; see keel_ilp_fit(). */
-static int build_and_solve(const keel_workload *w, const long long *lo, const long long *hi,
-                           long time_limit_ms, int *nurse_of, keel_ilp_answer *answer,
-                           glp_prob **lp_out, fit_model *m)
+/* Which property of class c a side rule groups by. */
+typedef enum trait { TRAIT_RATIO, TRAIT_SIDE, TRAIT_ZONE, TRAIT_ROOM } trait;
+
+static int trait_of(const model *m, size_t c, trait t)
 {
-    size_t nn = w->nnurses;
-    group(w, lo, hi, m);
-    glp_prob *lp = glp_create_prob();
-    *lp_out = lp;
-    glp_set_obj_dir(lp, GLP_MIN);
-    /* Rows: one per class (its size), then per counted nurse: patient count,
-     * care minutes and, for a nurse with a twin after it, the load order. */
-    int crow = m->nclasses > 0 ? glp_add_rows(lp, (int)m->nclasses) : 1;
-    for (size_t c = 0; c < m->nclasses; c++)
-        glp_set_row_bnds(lp, crow + (int)c, GLP_FX, (double)m->class_size[c],
-                         (double)m->class_size[c]);
-    for (size_t n = 0; n < nn; n++) {
-        m->count_row[n] = 0;
-        m->order_row[n] = 0;
-        if (!keel_workload_counted(w, n))
+    size_t p = m->class_first[c];
+    switch (t) {
+    case TRAIT_RATIO:
+        return m->w->ratio_limit[p];
+    case TRAIT_SIDE:
+        return m->w->side[p];
+    case TRAIT_ZONE:
+        return m->w->zone[p];
+    case TRAIT_ROOM:
+        return m->w->room[p];
+    }
+    return -1;
+}
+
+/* Row "sum of y[c, n] over classes with trait value v <= big * x" for a new
+ * binary x of the given cost; returns x's column, or 0 when no class of n
+ * has the value. */
+static int tie(model *m, glp_prob *lp, size_t n, trait t, int v, double big, double cost)
+{
+    size_t nn = m->w->nnurses;
+    int row = 0;
+    for (size_t c = 0; c < m->nclasses; c++) {
+        int j = m->col[c * nn + n];
+        if (!j || trait_of(m, c, t) != v)
             continue;
-        int r = glp_add_rows(lp, 2);
-        m->count_row[n] = r;
-        glp_set_row_bnds(lp, r, GLP_UP, 0.0, (double)w->max_patients[n]);
-        if (lo[n] == hi[n])
-            glp_set_row_bnds(lp, r + 1, GLP_FX, (double)lo[n], (double)hi[n]);
-        else
-            glp_set_row_bnds(lp, r + 1, GLP_DB, (double)lo[n], (double)hi[n]);
-        if (m->next_twin[n] >= 0) {
-            m->order_row[n] = glp_add_rows(lp, 1);
-            glp_set_row_bnds(lp, m->order_row[n], GLP_LO, 0.0, 0.0);
+        if (!row)
+            row = new_row(lp, GLP_UP, 0.0, 0.0);
+        put(m, row, j, 1.0);
+    }
+    if (!row)
+        return 0;
+    int x = new_binary(m, lp, cost, row);
+    put(m, row, x, -big);
+    return x;
+}
+
+static void add_rules(model *m, glp_prob *lp, size_t n)
+{
+    const keel_workload *w = m->w;
+    size_t nn = w->nnurses;
+    double limit = w->max_patients[n];
+    /* Patient ratios tighter than the nurse's own limit. */
+    for (size_t c = 0; c < m->nclasses; c++) {
+        int v = trait_of(m, c, TRAIT_RATIO);
+        bool first = m->col[c * nn + n] && v < w->max_patients[n];
+        for (size_t d = 0; d < c && first; d++)
+            first = !(m->col[d * nn + n] && trait_of(m, d, TRAIT_RATIO) == v);
+        if (!first)
+            continue;
+        int a = tie(m, lp, n, TRAIT_RATIO, v, limit, 0.0);
+        int row = new_row(lp, GLP_UP, 0.0, limit);
+        for (size_t d = 0; d < m->nclasses; d++)
+            if (m->col[d * nn + n])
+                put(m, row, m->col[d * nn + n], 1.0);
+        put(m, row, a, limit - v);
+    }
+    if (w->max_high_acuity != KEEL_ABSENT) {
+        int row = 0;
+        for (size_t c = 0; c < m->nclasses; c++) {
+            if (!m->col[c * nn + n] || !w->high_acuity[m->class_first[c]])
+                continue;
+            if (!row)
+                row = new_row(lp, GLP_UP, 0.0, (double)w->max_high_acuity);
+            put(m, row, m->col[c * nn + n], 1.0);
         }
     }
-    /* Columns: y[c, n], how many patients of class c nurse n takes. */
-    int j = 0;
+    bool sides[3] = {false, false, false};
+    for (size_t c = 0; c < m->nclasses; c++)
+        if (m->col[c * nn + n])
+            sides[trait_of(m, c, TRAIT_SIDE)] = true;
+    if (sides[KEEL_SIDE_PROTECTIVE] && sides[KEEL_SIDE_INFECTIOUS]) {
+        int b = tie(m, lp, n, TRAIT_SIDE, KEEL_SIDE_PROTECTIVE, limit, 0.0);
+        int row = new_row(lp, GLP_UP, 0.0, limit);
+        for (size_t c = 0; c < m->nclasses; c++)
+            if (m->col[c * nn + n] && trait_of(m, c, TRAIT_SIDE) == KEEL_SIDE_INFECTIOUS)
+                put(m, row, m->col[c * nn + n], 1.0);
+        put(m, row, b, limit);
+    }
+    bool near = m->q->goal == KEEL_GOAL_NEAR;
+    if (w->max_zones != KEEL_ABSENT || near) {
+        int row = w->max_zones != KEEL_ABSENT ? new_row(lp, GLP_UP, 0.0, (double)w->max_zones) : 0;
+        for (size_t k = 0; k < w->nzones; k++) {
+            int z = tie(m, lp, n, TRAIT_ZONE, (int)k, limit, near ? (double)w->npatients + 1 : 0.0);
+            if (z && row)
+                put(m, row, z, 1.0);
+        }
+    }
+    for (size_t k = 0; near && k < w->nrooms; k++)
+        tie(m, lp, n, TRAIT_ROOM, (int)k, limit, 1.0);
+}
+
+static void build(model *m, glp_prob *lp)
+{
+    const keel_workload *w = m->w;
+    const keel_ilp_question *q = m->q;
+    size_t nn = w->nnurses;
+    group(m);
+    glp_set_obj_dir(lp, q->goal == KEEL_GOAL_KEEP ? GLP_MAX : GLP_MIN);
+    /* The y columns first (1..ny), so a start can be given by column. */
     for (size_t c = 0; c < m->nclasses; c++) {
         for (size_t n = 0; n < nn; n++) {
+            size_t p = m->class_first[c];
             m->col[c * nn + n] = 0;
-            if (!keel_workload_eligible(w, m->class_first[c], n))
+            if (!keel_workload_eligible(w, p, n))
                 continue;
-            j = glp_add_cols(lp, 1);
+            int j = glp_add_cols(lp, 1);
             m->col[c * nn + n] = j;
             size_t most = m->class_size[c];
             if ((size_t)w->max_patients[n] < most)
                 most = (size_t)w->max_patients[n];
             glp_set_col_kind(lp, j, GLP_IV);
             glp_set_col_bnds(lp, j, most > 0 ? GLP_DB : GLP_FX, 0.0, (double)most);
-            int ind[6];
-            double val[6];
-            int k = 0;
-            ind[++k] = crow + (int)c;
-            val[k] = 1.0;
-            ind[++k] = m->count_row[n];
-            val[k] = 1.0;
-            ind[++k] = m->count_row[n] + 1;
-            val[k] = (double)m->class_care[c];
-            if (m->order_row[n]) {
-                ind[++k] = m->order_row[n];
-                val[k] = (double)m->class_care[c];
-            }
-            for (size_t a = 0; a < n; a++) {
-                if (m->next_twin[a] == (int)n) {
-                    ind[++k] = m->order_row[a];
-                    val[k] = -(double)m->class_care[c];
-                }
-            }
-            glp_set_mat_col(lp, j, k, ind, val);
+            if (q->goal == KEEL_GOAL_KEEP && w->previous[p] == (int)n)
+                glp_set_obj_coef(lp, j, 1.0);
+            m->ny = j;
         }
     }
+    for (size_t c = 0; c < m->nclasses; c++) {
+        double size = (double)m->class_size[c];
+        int row = new_row(lp, GLP_FX, size, size);
+        for (size_t n = 0; n < nn; n++)
+            if (m->col[c * nn + n])
+                put(m, row, m->col[c * nn + n], 1.0);
+    }
+    int *order_row = keel_calloc(nn ? nn : 1, sizeof *order_row);
+    if (!order_row) {
+        m->nomem = true;
+        return;
+    }
+    for (size_t n = 0; n < nn; n++) {
+        if (!keel_workload_counted(w, n))
+            continue;
+        int count = new_row(lp, GLP_UP, 0.0, (double)w->max_patients[n]);
+        int care = new_row(lp, q->lo[n] == q->hi[n] ? GLP_FX : GLP_DB, (double)q->lo[n],
+                           (double)q->hi[n]);
+        for (size_t c = 0; c < m->nclasses; c++) {
+            int j = m->col[c * nn + n];
+            if (!j)
+                continue;
+            put(m, count, j, 1.0);
+            put(m, care, j, (double)w->care_minutes[m->class_first[c]]);
+        }
+        add_rules(m, lp, n);
+    }
+    /* Load order of interchangeable nurses: load(n) - load(next twin) >= 0. */
+    for (size_t n = 0; n < nn; n++) {
+        if (m->next_twin[n] < 0)
+            continue;
+        order_row[n] = new_row(lp, GLP_LO, 0.0, 0.0);
+        size_t t = (size_t)m->next_twin[n];
+        for (size_t c = 0; c < m->nclasses; c++) {
+            double care = (double)w->care_minutes[m->class_first[c]];
+            if (m->col[c * nn + n])
+                put(m, order_row[n], m->col[c * nn + n], care);
+            if (m->col[c * nn + t])
+                put(m, order_row[n], m->col[c * nn + t], -care);
+        }
+    }
+    free(order_row);
+    if (q->goal != KEEL_GOAL_FIT && q->min_kept > 0) {
+        int row = new_row(lp, GLP_LO, (double)q->min_kept, 0.0);
+        for (size_t c = 0; c < m->nclasses; c++) {
+            int prev = w->previous[m->class_first[c]];
+            if (prev >= 0 && m->col[c * nn + (size_t)prev])
+                put(m, row, m->col[c * nn + (size_t)prev], 1.0);
+        }
+    }
+}
+
+/* Gives GLPK the start assignment once, and records the best bound. */
+static void on_event(glp_tree *tree, void *info)
+{
+    model *m = info;
+    const keel_workload *w = m->w;
+    size_t nn = w->nnurses;
+    int reason = glp_ios_reason(tree);
+    int best = glp_ios_best_node(tree);
+    if (best) {
+        m->bound = glp_ios_node_bound(tree, best);
+        m->have_bound = true;
+    }
+    if (reason != GLP_IHEUR || !m->q->start || m->start_given)
+        return;
+    glp_prob *lp = glp_ios_get_prob(tree);
+    int ncols = glp_get_num_cols(lp), nrows = glp_get_num_rows(lp);
+    double *x = keel_calloc((size_t)ncols + 1, sizeof *x);
+    double *act = keel_calloc((size_t)nrows + 1, sizeof *act);
+    m->start_given = true;
+    if (!x || !act) {
+        free(x);
+        free(act);
+        return;
+    }
+    for (size_t p = 0; p < w->npatients; p++) {
+        int n = m->q->start[p];
+        int j = n >= 0 ? m->col[m->class_of[p] * nn + (size_t)n] : 0;
+        if (j)
+            x[j] += 1.0;
+    }
+    for (size_t k = 1; k <= m->nnz; k++)
+        if (m->ja[k] <= m->ny)
+            act[m->ia[k]] += m->ar[k] * x[m->ja[k]];
+    for (int j = m->ny + 1; j <= ncols && (size_t)j < m->nlink; j++)
+        x[j] = m->link[j] && act[m->link[j]] > 0.5 ? 1.0 : 0.0;
+    glp_ios_heur_sol(tree, x);
+    free(x);
+    free(act);
+}
+
+/* Hands out each class's members by the counts of the solution. */
+static void hand_out(model *m, glp_prob *lp, int *nurse_of)
+{
+    const keel_workload *w = m->w;
+    size_t nn = w->nnurses;
+    for (size_t c = 0; c < m->nclasses; c++)
+        for (size_t n = 0; n < nn; n++) {
+            int j = m->col[c * nn + n];
+            m->left[c * nn + n] = j ? (int)(glp_mip_col_val(lp, j) + 0.5) : 0;
+        }
+    for (size_t p = 0; p < w->npatients; p++) {
+        size_t c = m->class_of[p];
+        nurse_of[p] = -1;
+        for (size_t n = 0; n < nn && nurse_of[p] < 0; n++) {
+            if (m->left[c * nn + n] > 0) {
+                m->left[c * nn + n]--;
+                nurse_of[p] = (int)n;
+            }
+        }
+    }
+}
+
+/* Builds and solves the model.  Returns 0 or GLPK's error code. */
+static int build_and_solve(model *m, long time_limit_ms, int *nurse_of, keel_ilp_result *res,
+                           glp_prob **lp_out)
+{
+    glp_prob *lp = glp_create_prob();
+    *lp_out = lp;
+    build(m, lp);
+    if (m->nomem)
+        return 0;
+    glp_load_matrix(lp, (int)m->nnz, m->ia, m->ja, m->ar);
+    bool keep = m->q->goal == KEEL_GOAL_KEEP;
 
     /* GLPK 5.0's MIP preprocessor (glp_iocp.presolve) returned a point
      * outside a double-bounded row in our tests (see test_solve.c), so the
@@ -173,99 +435,75 @@ static int build_and_solve(const keel_workload *w, const long long *lo, const lo
     lp_parm.msg_lev = GLP_MSG_OFF;
     lp_parm.tm_lim = time_limit_ms > INT_MAX ? INT_MAX : (int)time_limit_ms;
     int ret = glp_simplex(lp, &lp_parm);
-    if (ret == GLP_ETMLIM) {
-        *answer = KEEL_ILP_UNKNOWN;
-        return 0;
-    }
+    if (ret == GLP_ETMLIM)
+        return 0; /* answer stays unknown */
     if (ret)
         return ret;
     if (glp_get_status(lp) == GLP_NOFEAS) {
-        *answer = KEEL_ILP_INFEASIBLE;
+        res->answer = KEEL_ILP_INFEASIBLE;
         return 0;
     }
+    m->bound = glp_get_obj_val(lp);
+    m->have_bound = true;
     long left = time_limit_ms - (long)(keel_clock_ms() - started);
     glp_iocp parm;
     glp_init_iocp(&parm);
     parm.msg_lev = GLP_MSG_OFF;
     parm.tm_lim = left < 1 ? 1 : left > INT_MAX ? INT_MAX : (int)left;
+    parm.cb_func = on_event;
+    parm.cb_info = m;
     ret = glp_intopt(lp, &parm);
     int status = glp_mip_status(lp);
     if (ret == 0 && status == GLP_NOFEAS) {
-        *answer = KEEL_ILP_INFEASIBLE;
+        res->answer = KEEL_ILP_INFEASIBLE;
         return 0;
     }
     if ((ret == 0 || ret == GLP_ETMLIM) && (status == GLP_OPT || status == GLP_FEAS)) {
-        /* Hand out each class's members by the counts. */
-        for (size_t c = 0; c < m->nclasses; c++)
-            for (size_t n = 0; n < nn; n++) {
-                int cj = m->col[c * nn + n];
-                m->left[c * nn + n] = cj ? (int)(glp_mip_col_val(lp, cj) + 0.5) : 0;
-            }
-        for (size_t p = 0; p < w->npatients; p++) {
-            size_t c = m->class_of[p];
-            nurse_of[p] = -1;
-            for (size_t n = 0; n < nn && nurse_of[p] < 0; n++) {
-                if (m->left[c * nn + n] > 0) {
-                    m->left[c * nn + n]--;
-                    nurse_of[p] = (int)n;
-                }
-            }
-        }
-        *answer = KEEL_ILP_FEASIBLE;
+        hand_out(m, lp, nurse_of);
+        res->answer = KEEL_ILP_FEASIBLE;
+        double value = glp_mip_obj_val(lp);
+        double bound = ret == 0 && status == GLP_OPT ? value : m->bound;
+        /* Objectives are whole numbers: round the proven limit inwards. */
+        res->bound = keep ? (long long)floor(bound + 1e-6) : (long long)ceil(bound - 1e-6);
         return 0;
     }
-    if (ret == GLP_ETMLIM) {
-        *answer = KEEL_ILP_UNKNOWN;
+    if (ret == GLP_ETMLIM)
         return 0;
-    }
     return ret ? ret : -1;
 }
 
-/* Checks an answer before anyone relies on it: every patient one eligible
- * nurse, limits kept, each counted nurse's care inside its window. */
-static bool fits(const keel_workload *w, const long long *lo, const long long *hi,
-                 const int *nurse_of)
+/* True when nurse_of keeps the windows of the question (and its kept
+ * count); the rules are checked by keel_solve_validate(). */
+static bool fits(const keel_workload *w, const keel_ilp_question *q, const int *nurse_of)
 {
-    for (size_t p = 0; p < w->npatients; p++)
-        if (nurse_of[p] < 0 || !keel_workload_eligible(w, p, (size_t)nurse_of[p]))
-            return false;
     for (size_t n = 0; n < w->nnurses; n++) {
         long long care = 0;
-        int count = 0;
-        for (size_t p = 0; p < w->npatients; p++) {
-            if (nurse_of[p] == (int)n) {
+        for (size_t p = 0; p < w->npatients; p++)
+            if (nurse_of[p] == (int)n)
                 care += w->care_minutes[p];
-                count++;
-            }
-        }
-        if (count > w->max_patients[n] ||
-            (keel_workload_counted(w, n) && (care < lo[n] || care > hi[n])))
+        if (keel_workload_counted(w, n) && (care < q->lo[n] || care > q->hi[n]))
             return false;
     }
-    return true;
+    return q->goal == KEEL_GOAL_FIT || keel_solve_kept(w, nurse_of) >= q->min_kept;
 }
 
-keel_status keel_ilp_fit(const keel_workload *w, const long long *lo, const long long *hi,
-                         long time_limit_ms, int *nurse_of, keel_ilp_answer *answer,
-                         keel_error *err)
+keel_status keel_ilp_ask(const keel_workload *w, const keel_ilp_question *q, long time_limit_ms,
+                         int *nurse_of, keel_ilp_result *res, keel_error *err)
 {
     size_t np = w->npatients, nn = w->nnurses;
-    *answer = KEEL_ILP_UNKNOWN;
+    *res = (keel_ilp_result){.answer = KEEL_ILP_UNKNOWN};
     if (time_limit_ms <= 0)
         return KEEL_OK;
-    fit_model m = {0};
-    m.class_of = keel_calloc(np, sizeof *m.class_of);
-    m.class_size = keel_calloc(np, sizeof *m.class_size);
-    m.class_care = keel_calloc(np, sizeof *m.class_care);
-    m.class_first = keel_calloc(np, sizeof *m.class_first);
-    m.next_twin = keel_calloc(nn, sizeof *m.next_twin);
-    m.count_row = keel_calloc(nn, sizeof *m.count_row);
-    m.order_row = keel_calloc(nn, sizeof *m.order_row);
-    m.col = keel_calloc(np * nn, sizeof *m.col);
-    m.left = keel_calloc(np * nn, sizeof *m.left);
+    model m = {.w = w, .q = q};
+    m.class_of = keel_calloc(np ? np : 1, sizeof *m.class_of);
+    m.class_size = keel_calloc(np ? np : 1, sizeof *m.class_size);
+    m.class_first = keel_calloc(np ? np : 1, sizeof *m.class_first);
+    m.next_twin = keel_calloc(nn ? nn : 1, sizeof *m.next_twin);
+    m.col = keel_calloc(np * nn > 0 ? np * nn : 1, sizeof *m.col);
+    m.left = keel_calloc(np * nn > 0 ? np * nn : 1, sizeof *m.left);
     keel_status rc = KEEL_OK;
-    if (!m.class_of || !m.class_size || !m.class_care || !m.class_first || !m.next_twin ||
-        !m.count_row || !m.order_row || !m.col || !m.left) {
+    glp_prob *lp = NULL;
+    if (!m.class_of || !m.class_size || !m.class_first || !m.next_twin || !m.col || !m.left) {
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }
@@ -279,26 +517,50 @@ keel_status keel_ilp_fit(const keel_workload *w, const long long *lo, const long
     }
     glp_error_hook(on_glpk_error, &env);
     glp_term_out(GLP_OFF);
-    glp_prob *lp = NULL;
-    int ret = build_and_solve(w, lo, hi, time_limit_ms, nurse_of, answer, &lp, &m);
+    int ret = build_and_solve(&m, time_limit_ms, nurse_of, res, &lp);
     glp_delete_prob(lp);
     glp_error_hook(NULL, NULL);
-    if (ret)
+    if (m.nomem)
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    else if (ret)
         rc = keel_error_add(err, KEEL_ERR_SOLVER, NULL, 0, 0, NULL,
                             "the integer programming solver (GLPK) stopped with code %d", ret);
-    else if (*answer == KEEL_ILP_FEASIBLE && !fits(w, lo, hi, nurse_of))
+    bool valid = true;
+    if (!rc && res->answer == KEEL_ILP_FEASIBLE && keel_solve_validate(w, nurse_of, &valid))
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    else if (!rc && res->answer == KEEL_ILP_FEASIBLE && (!valid || !fits(w, q, nurse_of)))
         rc = keel_error_add(err, KEEL_ERR_SOLVER, NULL, 0, 0, NULL,
                             "the integer programming solver (GLPK) returned an assignment "
                             "that breaks its own constraints");
+    if (!rc && res->answer == KEEL_ILP_FEASIBLE) {
+        if (q->goal == KEEL_GOAL_KEEP)
+            res->value = keel_solve_kept(w, nurse_of);
+        if (q->goal == KEEL_GOAL_NEAR)
+            keel_solve_spread(w, nurse_of, &res->value, &res->rooms);
+        if (q->goal == KEEL_GOAL_NEAR) /* the bound was on (census + 1) zones + rooms */
+            res->bound = res->bound / ((long long)np + 1);
+    }
 out:
     free(m.class_of);
     free(m.class_size);
-    free(m.class_care);
     free(m.class_first);
     free(m.next_twin);
-    free(m.count_row);
-    free(m.order_row);
     free(m.col);
     free(m.left);
+    free(m.link);
+    free(m.ia);
+    free(m.ja);
+    free(m.ar);
+    return rc;
+}
+
+keel_status keel_ilp_fit(const keel_workload *w, const long long *lo, const long long *hi,
+                         long time_limit_ms, int *nurse_of, keel_ilp_answer *answer,
+                         keel_error *err)
+{
+    keel_ilp_question q = {.lo = lo, .hi = hi, .goal = KEEL_GOAL_FIT};
+    keel_ilp_result res;
+    keel_status rc = keel_ilp_ask(w, &q, time_limit_ms, nurse_of, &res, err);
+    *answer = res.answer;
     return rc;
 }

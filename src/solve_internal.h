@@ -83,13 +83,50 @@ typedef enum keel_ilp_answer {
     KEEL_ILP_UNKNOWN,    /* the time limit came first */
 } keel_ilp_answer;
 
-/* solve_ilp.c: looks for an assignment (every patient one eligible nurse,
- * limits kept) in which every counted nurse n carries between lo[n] and
- * hi[n] minutes of care (duty not included), within time_limit_ms.
- * Statuses: KEEL_OK (see *answer), KEEL_ERR_NOMEM, KEEL_ERR_SOLVER. */
+/* solve_ilp.c: what an integer programme is asked. */
+typedef enum keel_ilp_goal {
+    KEEL_GOAL_FIT,  /* any assignment inside the windows */
+    KEEL_GOAL_KEEP, /* the most patients kept with their previous nurse */
+    KEEL_GOAL_NEAR, /* the fewest zones per nurse in all, then the fewest rooms */
+} keel_ilp_goal;
+
+typedef struct keel_ilp_question {
+    const long long *lo; /* [nnurses]: care minutes each counted nurse carries at least */
+    const long long *hi; /* [nnurses]: and at most */
+    keel_ilp_goal goal;
+    long long min_kept; /* patients that must stay with their previous nurse (0: none) */
+    const int *start;   /* a valid assignment inside the windows to start from, or NULL */
+} keel_ilp_question;
+
+typedef struct keel_ilp_result {
+    keel_ilp_answer answer;
+    long long value; /* KEEP: patients kept; NEAR: zones in all (FEASIBLE only) */
+    long long rooms; /* NEAR: rooms in all */
+    long long bound; /* proven limit on value: upper for KEEP, lower for NEAR */
+} keel_ilp_result;
+
+/* solve_ilp.c: solves the question with GLPK within time_limit_ms: every
+ * patient one eligible nurse, every hard rule kept (limits, ratios, high
+ * acuity, isolation, zones), every counted nurse n carrying between lo[n]
+ * and hi[n] minutes of care (duty not included), best for the goal.
+ * Statuses: KEEL_OK (see res->answer), KEEL_ERR_NOMEM, KEEL_ERR_SOLVER. */
+keel_status keel_ilp_ask(const keel_workload *w, const keel_ilp_question *q, long time_limit_ms,
+                         int *nurse_of, keel_ilp_result *res, keel_error *err);
+
+/* The feasibility question of keel_ilp_ask() alone. */
 keel_status keel_ilp_fit(const keel_workload *w, const long long *lo, const long long *hi,
                          long time_limit_ms, int *nurse_of, keel_ilp_answer *answer,
                          keel_error *err);
+
+/* Sets *valid when nurse_of keeps every hard rule of w (every patient
+ * placed).  Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
+keel_status keel_solve_validate(const keel_workload *w, const int *nurse_of, bool *valid);
+
+/* Patients of nurse_of kept with their previous nurse; zones and rooms of
+ * every nurse in all. */
+long long keel_solve_kept(const keel_workload *w, const int *nurse_of);
+void keel_solve_spread(const keel_workload *w, const int *nurse_of, long long *zones,
+                       long long *rooms);
 
 /* solve_fit.c: the same question as keel_ilp_fit(), answered by a
  * dedicated branch and bound that gives up (KEEL_ILP_UNKNOWN) after

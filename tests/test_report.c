@@ -250,6 +250,8 @@ static void test_every_failed_allocation_ends_in_a_clean_error(void **state)
             assert_int_equal(rc, KEEL_OK); /* no failure was injected */
             break;
         }
+        if (rc != KEEL_ERR_NOMEM)
+            fprintf(stderr, "allocation %ld failed: status %d\n", n, (int)rc);
         assert_int_equal(rc, KEEL_ERR_NOMEM);
     }
 }

@@ -20,12 +20,26 @@ Most rosters are made feasible (every patient can be given an eligible nurse
 without breaking a patient limit); a small share (--infeasible-rate) is left
 deliberately infeasible so that keel's "no valid assignment" path is seen.
 
+With --rules (or --rules-tiny) the rosters switch on the roster rules at
+random: unit type with the California ratio table on some, patient ratios
+"1:N", high-acuity caps, isolation kinds with separation on (sometimes off)
+and isolation_needs, rooms and zones with max_zones, previous nurses (mostly
+on the roster, some gone home), balance_tolerance 0 / 0.05 / 0.1, locks,
+avoid lists, needs and skills, a charge nurse under policy.roles.charge and
+now and then an orientee with a preceptor.  Every limit stays within the
+table's number (a looser one is an input error, which these rosters are
+not).  Every K-th roster (--infeasible-every) is infeasible because of one
+rule, the rules taken in turn: HiGHS proves it infeasible, and feasible
+again with that rule switched off.
+
 Usage:
   gen_rosters.py --seed S --count K --patients A-B --nurses C-D --out DIR
   gen_rosters.py --small --seed S --count K --out DIR
+  gen_rosters.py --rules | --rules-tiny --seed S --count K --out DIR
 """
 
 import argparse
+import copy
 import json
 import os
 import random
@@ -226,6 +240,8 @@ def generate(rng, name, patients_range, nurses_range, infeasible_rate=0.0):
 
 def q(value):
     """A YAML scalar: strings double-quoted (JSON quoting is valid YAML)."""
+    if isinstance(value, bool):
+        return "true" if value else "false"
     if isinstance(value, str):
         return json.dumps(value)
     return str(value)
@@ -268,6 +284,496 @@ def to_yaml(doc):
     return "\n".join(out) + "\n"
 
 
+# ------------------------------------------------------------------ rules
+
+# Presets with every roster rule switched on at random (see generate_rules).
+RULES_PRESETS = {
+    "rules": {"patients": (16, 30), "nurses": (4, 7)},
+    "rules_tiny": {"patients": (5, 8), "nurses": (2, 3)},
+}
+# The kinds of infeasible roster: one rule alone makes each infeasible.
+INFEASIBLE_KINDS = highs_model.RULE_NAMES
+UNIT_TYPES = ["icu", "step-down", "telemetry", "med-surg", "pediatrics", "oncology", "other"]
+TABLE = highs_model.CALIFORNIA_TABLE
+ZONE_NAMES = ["east", "west", "north", "south"]
+# Seconds HiGHS may take to decide whether a generated roster is feasible.
+FEASIBILITY_SECONDS = 20.0
+
+
+def _counted(doc):
+    return [n for n in highs_model.derive_rules(doc)["nurses"] if n["counted"]]
+
+
+def _table_of(doc):
+    if doc["policy"].get("ratio_table") == "california":
+        return TABLE[doc["unit"]["type"]]
+    return None
+
+
+def _cap(doc, value):
+    """value held to the table's number (a looser limit is an input error)."""
+    t = _table_of(doc)
+    return value if t is None else min(value, t)
+
+
+def _rules_nurses(rng, count, shift, roles):
+    holding = {s: rng.uniform(0.55, 0.9) for s in SKILLS}
+    n95 = rng.uniform(0.5, 0.9)
+    nurses = []
+    for i in range(count):
+        nurse = {"id": "N%d" % (i + 1)}
+        skills = [s for s in SKILLS if rng.random() < holding[s]]
+        if rng.random() < n95:
+            skills.append("n95")
+        if skills:
+            nurse["skills"] = skills
+        if rng.random() < 0.3:
+            nurse["max_patients"] = rng.randint(3, 6)
+        if shift["minutes"] > 480 and rng.random() < 0.15:
+            nurse["minutes"] = 480
+            nurse["break_minutes"] = 30
+        nurses.append(nurse)
+    # A charge nurse with the role's limits (now and then none on a tiny roster).
+    if count >= 3 or rng.random() < 0.4:
+        nurses[0]["role"] = "charge"
+        roles["charge"] = {"max_patients": rng.choice([0, 1, 2, 2, 3]),
+                           "duty_minutes": rng.choice([60, 90, 120, 180])}
+        nurses[0].pop("max_patients", None)
+        if rng.random() < 0.3:
+            nurses[0]["duty_minutes"] = rng.choice([120, 240])
+        if count == 2 and roles["charge"]["max_patients"] == 0:
+            roles["charge"]["max_patients"] = 2
+    # An orientee sharing a staff nurse's assignment.
+    if count >= 3 and rng.random() < 0.35:
+        ori = nurses[-1]
+        ori["role"] = "orientee"
+        ori["preceptor"] = rng.choice([n["id"] for n in nurses[:-1] if "role" not in n])
+        ori.pop("max_patients", None)
+    if count >= 4 and rng.random() < 0.25:
+        rng.choice([n for n in nurses if "role" not in n])["role"] = "float"
+    return nurses
+
+
+def _rules_patients(rng, count, scale, nurse_ids, nnurses):
+    patients = make_patients(rng, count, scale)
+    with_places = rng.random() < 0.88
+    zones = rng.sample(ZONE_NAMES, rng.randint(2, 4))
+    rooms = {z: ["%s%d" % (z[0].upper(), 10 + k)
+                 for k in range(max(1, round(count / len(zones) * 0.75)))] for z in zones}
+    with_prev = rng.random() < 0.85
+    iso_rate = rng.uniform(0.1, 0.35)
+    for p in patients:
+        if rng.random() < 0.08:
+            # Care minutes only, no acuity level: never high-acuity.
+            p["care_minutes"] = p.get("care_minutes", 5 * rng.randint(12, 60))
+            del p["acuity"]
+        if rng.random() < 0.07:
+            p["ratio"] = "1:%d" % rng.choice([1, 2, 2, 3, 3, 4])
+        if rng.random() < iso_rate:
+            p["isolation"] = rng.choices(highs_model.ISOLATION_KINDS, [45, 25, 15, 15])[0]
+        if with_places:
+            z = rng.choice(zones)
+            u = rng.random()
+            if u < 0.8:
+                p["zone"], p["room"] = z, rng.choice(rooms[z])
+            elif u < 0.85:
+                p["room"] = rng.choice(rooms[z])
+            elif u < 0.9:
+                p["zone"] = z
+        if with_prev and rng.random() < 0.7:
+            if rng.random() < 0.85:
+                p["previous_nurse"] = rng.choice(nurse_ids)
+            else:
+                # Off duty now: not on this roster.
+                p["previous_nurse"] = "N%d" % (nnurses + rng.randint(1, 6))
+    return patients
+
+
+def _rules_base(rng, name, patients_range, nurses_range):
+    """A roster with the rules switched on at random (not yet made feasible)."""
+    shift = dict(rng.choice(SHIFTS))
+    fraction = shift["minutes"] / 720.0
+    scale = {k: 5 * round(v * fraction / 5) for k, v in rng.choice(ACUITY_SCALES).items()}
+    extras_scale = {k: 5 * round(v * fraction / 5) for k, v in rng.choice(EXTRA_SCALES).items()}
+    npatients = rng.randint(*patients_range)
+    nnurses = round(npatients / rng.uniform(3.5, 5.0))
+    nnurses = max(nurses_range[0], min(nurses_range[1], nnurses))
+    roles = {}
+    policy = {"acuity_minutes": dict(scale), "extra_minutes": dict(extras_scale)}
+    nurses = _rules_nurses(rng, nnurses, shift, roles)
+    if roles:
+        policy["roles"] = roles
+    doc = {"version": 1, "name": name, "unit": {"name": "Invented test unit"},
+           "shift": shift, "policy": policy, "nurses": nurses,
+           "patients": _rules_patients(rng, npatients, scale,
+                                       [n["id"] for n in nurses], nnurses)}
+    counted = len(_counted(doc))
+    fits = [t for t, v in TABLE.items() if v * counted >= npatients + 1]
+    if fits and rng.random() < 0.5:
+        doc["unit"]["type"] = rng.choice(fits)
+        policy["ratio_table"] = "california"
+    elif rng.random() < 0.8:
+        doc["unit"]["type"] = rng.choice(UNIT_TYPES)
+    if rng.random() < 0.6:
+        policy["max_patients"] = _cap(doc, max(3, -(-npatients // max(1, counted))
+                                               + rng.randint(0, 1)))
+    for n in nurses:
+        if "max_patients" in n:
+            n["max_patients"] = _cap(doc, n["max_patients"])
+    for spec in roles.values():
+        spec["max_patients"] = _cap(doc, spec["max_patients"])
+    for p in doc["patients"]:
+        if "ratio" in p:
+            p["ratio"] = "1:%d" % _cap(doc, int(p["ratio"][2:]))
+    if rng.random() < 0.7:
+        policy["high_acuity"] = {"level": rng.choice([3, 4, 4, 5]),
+                                 "max_per_nurse": rng.randint(1, 3)}
+    sep = rng.random()
+    if sep < 0.3:
+        policy["isolation_separation"] = True
+    elif sep < 0.5:
+        policy["isolation_separation"] = False
+    if rng.random() < 0.85:
+        policy["isolation_needs"] = {"airborne": ["n95"]}
+    if rng.random() < 0.6:
+        policy["max_zones"] = rng.randint(1, 3)
+    tol = rng.choice([None, 0, 0.0, 0.05, 0.1, 0.1])
+    if tol is not None:
+        policy["balance_tolerance"] = tol
+    # Locks to a nurse who may take the patient, and avoid lists.
+    r = highs_model.derive_rules(doc)
+    for _ in range(rng.choice([0, 0, 1, 1, 2])):
+        p = rng.randrange(len(doc["patients"]))
+        if r["eligible"][p]:
+            doc["patients"][p]["nurse"] = r["nurses"][rng.choice(r["eligible"][p])]["id"]
+            doc["patients"][p]["lock"] = True
+    for _ in range(rng.choice([0, 1, 2, 3])):
+        p = doc["patients"][rng.randrange(len(doc["patients"]))]
+        others = [n["id"] for n in nurses if n["id"] != p.get("nurse")]
+        p["avoid"] = sorted(rng.sample(others, min(len(others), rng.randint(1, 2))))
+    return doc
+
+
+def _feasible(doc, relax=()):
+    return highs_model.feasible_rules(highs_model.derive_rules(doc, relax), FEASIBILITY_SECONDS)
+
+
+def _repair_rule(rng, doc, rule):
+    """One small, realistic change that loosens `rule`."""
+    policy, nurses, patients = doc["policy"], doc["nurses"], doc["patients"]
+    table = _table_of(doc)
+    if rule == "skill":
+        r = highs_model.derive_rules(doc)
+        tight = min(len(e) for e in r["eligible"])
+        p = rng.choice([i for i, e in enumerate(r["eligible"]) if len(e) == tight])
+        counted = [j for j, n in enumerate(r["nurses"]) if n["counted"]]
+        pick = nurses[rng.choice(counted)]
+        pick["skills"] = sorted(set(pick.get("skills", [])) | r["patients"][p]["needs"])
+    elif rule == "patient_limit":
+        options = []
+        if "max_patients" in policy and (table is None or policy["max_patients"] < table):
+            options.append(("policy", None))
+        for n in nurses:
+            if n.get("max_patients") is not None and n.get("role") != "orientee" \
+                    and (table is None or n["max_patients"] < table):
+                options.append(("nurse", n))
+        charge = policy.get("roles", {}).get("charge")
+        if charge and charge["max_patients"] < (3 if table is None else min(3, table)):
+            options.append(("charge", charge))
+        if not options:
+            for n in nurses:
+                n.pop("max_patients", None)
+            policy.pop("max_patients", None)
+            return
+        what, obj = rng.choice(options)
+        if what == "policy":
+            policy["max_patients"] += 1
+        else:
+            obj["max_patients"] += 1
+    elif rule == "law_limit":
+        order = ["icu", "step-down", "telemetry", "med-surg"]
+        k = order.index(doc["unit"]["type"])
+        if k + 1 < len(order):
+            doc["unit"]["type"] = order[k + 1]
+        else:
+            del policy["ratio_table"]
+    elif rule == "patient_ratio":
+        p = rng.choice([p for p in patients if "ratio" in p])
+        n = int(p["ratio"][2:]) + 1
+        if rng.random() < 0.5 or (table is not None and n > table):
+            del p["ratio"]
+        else:
+            p["ratio"] = "1:%d" % n
+    elif rule == "high_acuity":
+        ha = policy["high_acuity"]
+        if ha["max_per_nurse"] < 4 and rng.random() < 0.6:
+            ha["max_per_nurse"] += 1
+        elif ha["level"] < 5:
+            ha["level"] += 1
+        else:
+            del policy["high_acuity"]
+    elif rule == "isolation":
+        prot = [p for p in patients if p.get("isolation") == "protective"]
+        del rng.choice(prot)["isolation"]
+    elif rule == "zones":
+        if policy["max_zones"] < 3:
+            policy["max_zones"] += 1
+        else:
+            del policy["max_zones"]
+    elif rule == "lock":
+        p = rng.choice([p for p in patients if p.get("lock")])
+        del p["lock"], p["nurse"]
+    elif rule == "avoid":
+        del rng.choice([p for p in patients if "avoid" in p])["avoid"]
+
+
+def _active_rules(doc):
+    """The rules this roster switches on (the ones a repair may loosen)."""
+    policy, patients = doc["policy"], doc["patients"]
+    out = ["skill", "patient_limit"]
+    if policy.get("ratio_table"):
+        out.append("law_limit")
+    if any("ratio" in p for p in patients):
+        out.append("patient_ratio")
+    if "high_acuity" in policy:
+        out.append("high_acuity")
+    if any(p.get("isolation") == "protective" for p in patients):
+        out.append("isolation")
+    if "max_zones" in policy:
+        out.append("zones")
+    if any(p.get("lock") for p in patients):
+        out.append("lock")
+    if any("avoid" in p for p in patients):
+        out.append("avoid")
+    return out
+
+
+def _make_feasible(rng, doc):
+    """Loosen the rules that block every assignment; False if it fails."""
+    for _ in range(60):
+        f = _feasible(doc)
+        if f:
+            return True
+        if f is None:
+            return False
+        active = _active_rules(doc)
+        culprits = [rule for rule in active if _feasible(doc, [rule])]
+        _repair_rule(rng, doc, rng.choice(culprits or active))
+    return False
+
+
+def _unblock(p, nurse_id):
+    """Let patient p go to nurse_id: no lock elsewhere, not avoided."""
+    if p.get("lock") and p.get("nurse") != nurse_id:
+        del p["lock"], p["nurse"]
+    if nurse_id in p.get("avoid", []):
+        p["avoid"].remove(nurse_id)
+        if not p["avoid"]:
+            del p["avoid"]
+
+
+def _break(rng, doc, kind):
+    """Change doc so that rule `kind` alone rules out every assignment."""
+    policy, nurses, patients = doc["policy"], doc["nurses"], doc["patients"]
+    r = highs_model.derive_rules(doc)
+    counted = [j for j, n in enumerate(r["nurses"]) if n["counted"]]
+    P = len(patients)
+    if kind == "skill":
+        rng.choice(patients).setdefault("needs", []).append("ecmo")
+    elif kind == "avoid":
+        p = rng.choice([p for p in patients if not p.get("lock")] or patients)
+        p.pop("lock", None)
+        p.pop("nurse", None)
+        i = patients.index(p)
+        r0 = highs_model.derive_rules(doc, ["avoid"])
+        p["avoid"] = sorted(r["nurses"][j]["id"] for j in r0["eligible"][i])
+    elif kind == "lock":
+        idle = [n for j, n in enumerate(r["nurses"]) if not n["counted"]]
+        p = rng.choice(patients)
+        lacking = [n for j, n in enumerate(r["nurses"])
+                   if n["counted"] and not r["patients"][patients.index(p)]["needs"] <= n["skills"]]
+        if idle and rng.random() < 0.5:
+            target = rng.choice(idle)["id"]
+            _unblock(p, target)
+            p["nurse"], p["lock"] = target, True
+        elif lacking:
+            target = rng.choice(lacking)["id"]
+            _unblock(p, target)
+            p["nurse"], p["lock"] = target, True
+        else:
+            j = rng.choice(counted)
+            target = r["nurses"][j]["id"]
+            limit = r["nurses"][j]["limit"]
+            if limit is None or limit + 1 > P:
+                return False
+            for q in rng.sample(patients, limit + 1):
+                _unblock(q, target)
+                q["nurse"], q["lock"] = target, True
+    elif kind == "patient_limit":
+        m = (P - 1) // len(counted)
+        if m < 1:
+            return False
+        policy["max_patients"] = m
+    elif kind == "law_limit":
+        fits = [t for t, v in sorted(TABLE.items(), key=lambda tv: tv[1])
+                if v * len(counted) < P]
+        if not fits:
+            return False
+        doc["unit"]["type"] = rng.choice(fits)
+        policy["ratio_table"] = "california"
+        t = TABLE[doc["unit"]["type"]]
+        # Drop (not lower) every looser limit, so that only the law binds.
+        if policy.get("max_patients", 0) > t:
+            del policy["max_patients"]
+        for spec in policy.get("roles", {}).values():
+            if spec.get("max_patients", 0) > t:
+                del spec["max_patients"]
+        for n in nurses:
+            if n.get("max_patients", 0) > t:
+                del n["max_patients"]
+        for p in patients:
+            if "ratio" in p and int(p["ratio"][2:]) > t:
+                del p["ratio"]
+    elif kind == "patient_ratio":
+        for p in rng.sample(patients, len(counted)):
+            p["ratio"] = "1:1"
+    elif kind == "high_acuity":
+        k = 1
+        levels = [p["acuity"] for p in patients if "acuity" in p]
+        fit = [lv for lv in range(1, 6) if sum(1 for a in levels if a >= lv) > k * len(counted)]
+        if not fit:
+            return False
+        policy["high_acuity"] = {"level": max(fit), "max_per_nurse": k}
+    elif kind in ("isolation", "zones"):
+        # Two patients only one nurse X may take (a skill only X holds); the
+        # rule keeps them apart.
+        j = rng.choice(counted)
+        x = nurses[j]
+        skill = "chemo" if kind == "isolation" else "wound"
+        for n in nurses:
+            if skill in n.get("skills", []):
+                n["skills"].remove(skill)
+                if not n["skills"]:
+                    del n["skills"]
+        x["skills"] = sorted(set(x.get("skills", [])) | {skill})
+        for p in patients:
+            if skill in p.get("needs", []):
+                p["needs"].remove(skill)
+                if not p["needs"]:
+                    del p["needs"]
+        a, b = rng.sample(patients, 2)
+        for p in (a, b):
+            _unblock(p, x["id"])
+            p.pop("ratio", None)
+        a.setdefault("needs", []).append(skill)
+        if kind == "isolation":
+            if rng.random() < 0.5:
+                policy.pop("isolation_separation", None)     # on by default
+            else:
+                policy["isolation_separation"] = True
+            a["isolation"] = "protective"
+            b["isolation"] = rng.choice(highs_model.INFECTIOUS)
+            b.setdefault("needs", []).append(skill)
+            extra = policy.get("isolation_needs", {}).get(b["isolation"], [])
+            x["skills"] = sorted(set(x["skills"]) | set(extra))
+        else:
+            zones = sorted({p["zone"] for p in patients if "zone" in p} | {"east", "west"})
+            za, zb = rng.sample(zones, 2)
+            a["zone"], b["zone"] = za, zb
+            a.pop("room", None)
+            b.pop("room", None)
+            b.setdefault("needs", []).append(skill)
+            policy["max_zones"] = 1
+    return True
+
+
+def generate_rules(rng, name, patients_range, nurses_range, kind=None):
+    """One roster with every rule switched on at random.
+
+    kind None: feasible (some assignment keeps every hard rule, proven by
+    HiGHS).  kind in INFEASIBLE_KINDS: no assignment keeps the rules, and
+    switching that one rule off makes the roster feasible again.
+    """
+    for _ in range(40):
+        doc = _rules_base(rng, name, patients_range, nurses_range)
+        if not _make_feasible(rng, doc):
+            continue
+        if kind is None:
+            return doc
+        for _ in range(5):
+            trial = copy.deepcopy(doc)
+            if not _break(rng, trial, kind):
+                break
+            try:
+                highs_model.derive_rules(trial)
+            except highs_model.RosterError:
+                continue
+            if _feasible(trial) is False and _feasible(trial, [kind]):
+                return trial
+    raise RuntimeError("no %s roster made for %s" % (kind or "feasible", name))
+
+
+def to_yaml_rules(doc):
+    """Render a rules roster (flow maps, keys in a fixed order)."""
+    out = ["# Invented test roster (gen_rosters.py --rules); not real patients or staff.",
+           "version: 1"]
+    out.append("unit:    " + flow_map(doc["unit"], ["name", "type"]))
+    out.append("shift:   " + flow_map(doc["shift"], ["label", "start", "minutes",
+                                                      "break_minutes"]))
+    out.append("policy:")
+    pol = doc["policy"]
+    for key in ("ratio_table", "max_patients"):
+        if key in pol:
+            out.append("  %s: %s" % (key, q(pol[key])))
+    out.append("  acuity_minutes: {%s}" % ", ".join(
+        "%d: %d" % (k, v) for k, v in sorted(pol["acuity_minutes"].items())))
+    out.append("  extra_minutes: {%s}" % ", ".join(
+        "%s: %d" % (k, v) for k, v in pol["extra_minutes"].items()))
+    if pol.get("roles"):
+        out.append("  roles:")
+        for role, spec in pol["roles"].items():
+            out.append("    %s: %s" % (role, flow_map(spec, ["max_patients", "duty_minutes"])))
+    if "high_acuity" in pol:
+        out.append("  high_acuity: " + flow_map(pol["high_acuity"], ["level", "max_per_nurse"]))
+    for key in ("isolation_separation", "max_zones", "balance_tolerance"):
+        if key in pol:
+            out.append("  %s: %s" % (key, q(pol[key])))
+    if "isolation_needs" in pol:
+        out.append("  isolation_needs: " + flow_map(pol["isolation_needs"]))
+    out.append("nurses:")
+    for n in doc["nurses"]:
+        out.append("  - " + flow_map(n, ["id", "role", "preceptor", "skills", "max_patients",
+                                          "minutes", "break_minutes", "duty_minutes"]))
+    out.append("patients:")
+    for p in doc["patients"]:
+        out.append("  - " + flow_map(p, ["id", "room", "zone", "acuity", "care_minutes",
+                                          "extras", "needs", "ratio", "isolation",
+                                          "previous_nurse", "nurse", "lock", "avoid"]))
+    return "\n".join(out) + "\n"
+
+
+def write_rules_rosters(out_dir, seed, count, patients_range, nurses_range,
+                        infeasible_every=4, prefix="rules"):
+    """Write `count` rules rosters; every infeasible_every-th one is
+    infeasible, the kinds taken in turn.  Returns [(path, kind or None)].
+    Each roster has its own random stream (seed, index), so one roster's
+    retries do not change the others."""
+    os.makedirs(out_dir, exist_ok=True)
+    out = []
+    for k in range(count):
+        rng = random.Random("%s-%d-%d" % (prefix, seed, k))
+        kind = None
+        if infeasible_every and k % infeasible_every == infeasible_every - 1:
+            kind = INFEASIBLE_KINDS[(k // infeasible_every) % len(INFEASIBLE_KINDS)]
+        name = "%s-%d-%03d" % (prefix, seed, k)
+        doc = generate_rules(rng, name, patients_range, nurses_range, kind)
+        path = os.path.join(out_dir, name + ".yaml")
+        with open(path, "w", encoding="utf-8") as f:
+            f.write(to_yaml_rules(doc))
+        out.append((path, kind))
+    return out
+
+
 def write_rosters(out_dir, seed, count, patients_range, nurses_range,
                   infeasible_rate=0.0, prefix="roster"):
     """Write `count` rosters into out_dir; return their paths in order."""
@@ -293,10 +799,27 @@ def main(argv=None):
     ap.add_argument("--nurses", type=parse_range)
     ap.add_argument("--small", action="store_true",
                     help="tiny rosters (3-9 patients, 2-4 nurses) any MILP solver proves")
+    ap.add_argument("--rules", action="store_true",
+                    help="unit-size rosters (16-30 patients, 4-7 nurses) with every rule of "
+                         "the ratio table, isolation, zones, previous nurse, ... at random")
+    ap.add_argument("--rules-tiny", action="store_true",
+                    help="the same rules on tiny rosters (5-8 patients, 2-3 nurses) for "
+                         "brute force")
+    ap.add_argument("--infeasible-every", type=int, default=4,
+                    help="with --rules / --rules-tiny: every K-th roster is infeasible, "
+                         "one rule at a time (default 4; 0 = none)")
     ap.add_argument("--infeasible-rate", type=float, default=0.03,
                     help="share of rosters left infeasible on purpose (default 0.03)")
     ap.add_argument("--out", required=True)
     args = ap.parse_args(argv)
+    if args.rules or args.rules_tiny:
+        preset = RULES_PRESETS["rules_tiny" if args.rules_tiny else "rules"]
+        for path, kind in write_rules_rosters(
+                args.out, args.seed, args.count, args.patients or preset["patients"],
+                args.nurses or preset["nurses"], args.infeasible_every,
+                prefix="rtiny" if args.rules_tiny else "rules"):
+            print(path if kind is None else "%s  (infeasible: %s)" % (path, kind))
+        return 0
     preset = PRESETS["small" if args.small else "unit"]
     pr = args.patients or preset["patients"]
     nr = args.nurses or preset["nurses"]

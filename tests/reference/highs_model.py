@@ -697,18 +697,19 @@ def derive_rules(doc, relax=()):
         brk = n.get("break_minutes", shift.get("break_minutes", 0)) or 0
         looser(n.get("max_patients"), "nurse %s max_patients" % nid)
         limits = []
-        if table is not None and "law_limit" not in relax:
-            limits.append(table)
         if "patient_limit" not in relax:
             limits += [v for v in (policy.get("max_patients"), rspec.get("max_patients"),
                                    n.get("max_patients")) if v is not None]
         if role == "orientee":
             limits.append(0)
+        # The rule a count above the limit breaks (for messages): the law
+        # when the table's number is below every other limit.
+        limit_rule = "patient_limit"
+        if table is not None and "law_limit" not in relax:
+            if all(v > table for v in limits):
+                limit_rule = "law_limit"
+            limits.append(table)
         limit = min(limits) if limits else None
-        # The rule a count above the limit breaks: the law when the table's
-        # number alone is the smallest limit.
-        limit_rule = "law_limit" if (table is not None and limit == table
-                                     and limits.count(table) == len(limits)) else "patient_limit"
         duty = n.get("duty_minutes")
         if duty is None:
             duty = rspec.get("duty_minutes", 0) or 0
