@@ -39,7 +39,8 @@ static const keel_law_table tables[] = {
      .entries = california_entries},
     {.name = "queensland",
      .citation = "Hospital and Health Boards Regulation 2012 (Qld), Part 6A",
-     .version = "as in force from 2016-07-01",
+     .version = "Part 6A as in force from 2016-07-01; the 2012 regulation was later replaced "
+                "(Hospital and Health Boards Regulation 2023), whose text keel has not checked",
      .encoded = "2026-12-02",
      .classes = "morning 07:00-15:00, afternoon 15:00-23:00, night 23:00-07:00 (section 30A)",
      .nentries = ARRAY_LEN(queensland_entries),
@@ -104,11 +105,13 @@ keel_shift_class keel_law_shift_class(const keel_law_table *t, int start_minute,
     int afternoon = overlap(start_minute, minutes, 15 * 60, 23 * 60);
     int night = overlap(start_minute, minutes, 0, 7 * 60) +
                 overlap(start_minute, minutes, 23 * 60, MINUTES_PER_DAY);
-    if (afternoon >= morning && afternoon >= night)
+    /* s 30A(2): equal morning and afternoon is afternoon, equal afternoon
+     * and night is night, equal morning and night is morning. */
+    if (night >= afternoon && night > morning)
+        return KEEL_SHIFT_NIGHT;
+    if (afternoon >= morning)
         return KEEL_SHIFT_AFTERNOON;
-    if (morning >= night)
-        return KEEL_SHIFT_MORNING;
-    return KEEL_SHIFT_NIGHT;
+    return KEEL_SHIFT_MORNING;
 }
 
 const char *keel_shift_class_name(keel_shift_class c)

@@ -94,9 +94,18 @@ static void write_patients(FILE *out, const keel_report *rep)
             fputs(", \"bed\": ", out);
             keel_write_quoted(out, r->patients[p].bed);
         }
-        fprintf(out, ", \"care_minutes\": %d, \"locked\": %s, \"sitter\": %s, \"nurse\": ",
+        fprintf(out, ", \"care_minutes\": %d, \"locked\": %s, \"sitter\": %s",
                 rep->workload->care_minutes[p], r->patients[p].lock ? "true" : "false",
                 r->patients[p].sitter ? "true" : "false");
+        if (r->patients[p].isolation != KEEL_ISOLATION_NONE)
+            fprintf(out, ", \"isolation\": \"%s\"", keel_isolation_name(r->patients[p].isolation));
+        if (rep->workload->high_acuity[p])
+            fputs(", \"high_acuity\": true", out);
+        if (r->patients[p].previous_nurse) {
+            fputs(", \"previous_nurse\": ", out);
+            keel_write_quoted(out, r->patients[p].previous_nurse);
+        }
+        fputs(", \"nurse\": ", out);
         int n = rep->nurse_of ? rep->nurse_of[p] : -1;
         if (n >= 0)
             keel_write_quoted(out, r->nurses[n].id);
@@ -132,6 +141,21 @@ static void write_stages(FILE *out, const keel_solution *s)
                 st->bound, st->gap, st->solver_calls, st->seconds);
     }
     fputs(s->nstages ? "\n  ],\n" : "],\n", out);
+    if (s->continuity.applies) {
+        fprintf(
+            out,
+            "  \"continuity\": {\"kept\": %ld, \"candidates\": %ld, \"kept_at_zero_tolerance\": ",
+            s->continuity.kept, s->continuity.candidates);
+        if (s->continuity.kept_at_zero >= 0)
+            fprintf(out, "%ld", s->continuity.kept_at_zero);
+        else
+            fputs("null", out);
+        fprintf(out, ", \"kept_at_zero_tolerance_proven\": %s, \"tolerance\": %.12g},\n",
+                s->continuity.zero_proven ? "true" : "false", s->continuity.tolerance);
+    }
+    if (s->proximity.applies)
+        fprintf(out, "  \"proximity\": {\"zones\": %ld, \"rooms\": %ld},\n", s->proximity.zones,
+                s->proximity.rooms);
 }
 
 static void write_staffing(FILE *out, const keel_report *rep)

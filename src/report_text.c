@@ -33,10 +33,19 @@ static void write_patient_line(FILE *out, const keel_report *rep, size_t p)
         fprintf(out, "  acuity %d", pat->acuity);
     for (size_t i = 0; i < pat->nneeds; i++)
         fprintf(out, "%s%s", i ? ", " : "  needs ", pat->needs[i]);
+    if (pat->isolation != KEEL_ISOLATION_NONE)
+        fprintf(out, "  %s isolation", keel_isolation_name(pat->isolation));
+    if (pat->ratio != KEEL_ABSENT)
+        fprintf(out, "  1:%d", pat->ratio);
+    if (pat->zone)
+        fprintf(out, "  zone %s", pat->zone);
     if (pat->lock)
         fputs("  locked", out);
     if (pat->sitter)
         fputs("  sitter", out);
+    const keel_workload *w = rep->workload;
+    if (rep->nurse_of && w->previous[p] >= 0)
+        fputs(rep->nurse_of[p] == w->previous[p] ? "  kept" : "  new nurse", out);
     fputc('\n', out);
 }
 
@@ -94,14 +103,52 @@ static void write_stage(FILE *out, const keel_stage *st, const char *what, const
     fputc('\n', out);
 }
 
+/* Stages 3 and 4 count patients and zones, not utilisations. */
+static void write_count_stage(FILE *out, const keel_stage *st, const char *what, const char *unit,
+                              const char *limit)
+{
+    fprintf(out, "  %-11s %3.0f %-8s ", what, st->value, unit);
+    if (st->status == KEEL_SOLVE_OPTIMAL)
+        fputs("proven best possible", out);
+    else
+        fprintf(out, "not proven: %s %.0f", limit, st->bound);
+    if (st->solver_calls > 0)
+        fprintf(out, "  [%d integer programme%s, %.2f s]", st->solver_calls,
+                st->solver_calls == 1 ? "" : "s", st->seconds);
+    fputc('\n', out);
+}
+
 static void write_proof(FILE *out, const keel_solution *s)
 {
     fprintf(out, "Status: %s (method %s, %.2f s)\n", keel_solve_status_name(s->status), s->method,
             s->seconds);
-    if (s->nstages >= 2) {
-        write_stage(out, &s->stages[0], "heaviest", "the best possible is at least");
-        write_stage(out, &s->stages[1], "lightest", "the best possible is at most");
+    for (size_t i = 0; i < s->nstages; i++) {
+        const keel_stage *st = &s->stages[i];
+        if (i == 0)
+            write_stage(out, st, "heaviest", "the best possible is at least");
+        else if (i == 1)
+            write_stage(out, st, "lightest", "the best possible is at most");
+        else if (st->name[0] == 'c')
+            write_count_stage(out, st, "continuity", "kept", "the best possible is at most");
+        else
+            write_count_stage(out, st, "proximity", "zones", "the best possible is at least");
     }
+    if (s->continuity.applies) {
+        fprintf(out, "  Continuity: %ld of %ld patients keep their nurse from the last shift",
+                s->continuity.kept, s->continuity.candidates);
+        if (s->continuity.tolerance > 0 && s->continuity.kept_at_zero >= 0)
+            fprintf(out,
+                    "; at zero balance tolerance %s%ld, so the tolerance of %.1f points "
+                    "bought %s%ld",
+                    s->continuity.zero_proven ? "" : "at least ", s->continuity.kept_at_zero,
+                    100.0 * s->continuity.tolerance, s->continuity.zero_proven ? "" : "at most ",
+                    s->continuity.kept - s->continuity.kept_at_zero);
+        fputs(".\n", out);
+    }
+    if (s->proximity.applies)
+        fprintf(out, "  Proximity: %ld zone%s and %ld room%s across the nurses' assignments.\n",
+                s->proximity.zones, s->proximity.zones == 1 ? "" : "s", s->proximity.rooms,
+                s->proximity.rooms == 1 ? "" : "s");
     if (s->status == KEEL_SOLVE_TIME_LIMIT)
         fputs("  The time limit ended the search: this plan is valid but not proven the most "
               "even.\n",

@@ -59,8 +59,13 @@ static void write_head(FILE *out, const keel_roster *r)
     for (size_t i = 0; i < KEEL_NROLES; i++)
         roles = roles || r->policy.roles[i].max_patients != KEEL_ABSENT ||
                 r->policy.roles[i].duty_minutes != KEEL_ABSENT;
+    bool needs = false;
+    for (size_t i = 0; i < KEEL_NISOLATION; i++)
+        needs = needs || r->policy.nisolation_needs[i] > 0;
     if (r->policy.max_patients == KEEL_ABSENT && r->policy.nacuity == 0 && r->policy.nextras == 0 &&
-        !roles)
+        !roles && !needs && !r->policy.ratio_table && r->policy.high_acuity.level == KEEL_ABSENT &&
+        r->policy.isolation_separation && r->policy.max_zones == KEEL_ABSENT &&
+        r->policy.balance_tolerance == KEEL_ABSENT)
         return;
     fputs("policy:\n", out);
     write_key_int(out, "  ", "max_patients", r->policy.max_patients);
@@ -90,6 +95,23 @@ static void write_head(FILE *out, const keel_roster *r)
         write_key_int(out, "      ", "max_patients", rp->max_patients);
         write_key_int(out, "      ", "duty_minutes", rp->duty_minutes);
     }
+    if (r->policy.ratio_table)
+        fprintf(out, "  ratio_table: %s\n", r->policy.ratio_table->name);
+    if (r->policy.high_acuity.level != KEEL_ABSENT)
+        fprintf(out, "  high_acuity: {level: %d, max_per_nurse: %d}\n", r->policy.high_acuity.level,
+                r->policy.high_acuity.max_per_nurse);
+    if (!r->policy.isolation_separation)
+        fputs("  isolation_separation: false\n", out);
+    if (needs)
+        fputs("  isolation_needs:\n", out);
+    for (size_t i = 0; i < KEEL_NISOLATION; i++)
+        write_key_list(out, "    ", keel_isolation_name((keel_isolation)i),
+                       r->policy.isolation_needs[i], r->policy.nisolation_needs[i]);
+    write_key_int(out, "  ", "max_zones", r->policy.max_zones);
+    if (r->policy.balance_tolerance != KEEL_ABSENT)
+        fprintf(out, "  balance_tolerance: %d.%06d\n",
+                r->policy.balance_tolerance / KEEL_TOLERANCE_SCALE,
+                r->policy.balance_tolerance % KEEL_TOLERANCE_SCALE);
 }
 
 static void write_nurses(FILE *out, const keel_roster *r)
@@ -136,6 +158,13 @@ static void write_patients(FILE *out, const keel_report *rep)
         if (pa->sitter)
             fputs("    sitter: true\n", out);
         write_key_list(out, "    ", "avoid", pa->avoid, pa->navoid);
+        if (pa->ratio != KEEL_ABSENT)
+            fprintf(out, "    ratio: \"1:%d\"\n", pa->ratio);
+        if (pa->isolation != KEEL_ISOLATION_NONE)
+            fprintf(out, "    isolation: %s\n", keel_isolation_name(pa->isolation));
+        write_key_string(out, "    ", "room", pa->room);
+        write_key_string(out, "    ", "zone", pa->zone);
+        write_key_string(out, "    ", "previous_nurse", pa->previous_nurse);
     }
 }
 

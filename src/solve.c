@@ -16,6 +16,8 @@
 #include "tally.h"
 
 #define DEFAULT_TIME_LIMIT_MS 10000L
+/* Share of the time limit (in tenths) after which stages 3 and 4 start. */
+#define FOLLOW_START_TENTHS 6
 
 /* A solver plugin: see keel_method_greedy() and keel_method_ilp(). */
 typedef struct keel_method {
@@ -263,24 +265,60 @@ keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
     }
 
     /* The greedy placement may get stuck on patient limits even though an
-     * assignment exists; then start from the one diagnose found. */
-    int *greedy = keel_calloc(w->npatients, sizeof *greedy);
-    if (!greedy) {
-        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
-        goto out;
+     * assignment exists; then start from the one diagnose found.  With
+     * rules that join patients, that one may break them: then search. */
+    long long deadline = started + limit;
+    keel_ilp_answer answer = KEEL_ILP_FEASIBLE;
+    if (w->joined_rules) {
+        rc = keel_find_valid(w, deadline, s->nurse_of, &answer, err);
+        if (rc)
+            goto out;
+        if (answer == KEEL_ILP_INFEASIBLE) {
+            bool decided = false;
+            rc = keel_diagnose_rules(roster, w, deadline, &s->diagnoses, &decided, err);
+            if (rc)
+                goto out;
+            if (decided) {
+                s->status = KEEL_SOLVE_INFEASIBLE;
+                for (size_t p = 0; p < w->npatients; p++)
+                    s->nurse_of[p] = -1;
+                goto out;
+            }
+        }
+        if (answer != KEEL_ILP_FEASIBLE) {
+            rc = keel_error_add(err, KEEL_ERR_SOLVER, NULL, 0, 0, NULL,
+                                "within the time limit, keel found no assignment that keeps "
+                                "every rule and could not show why none exists; try a longer "
+                                "--time-limit");
+            goto out;
+        }
+    } else {
+        int *greedy = keel_calloc(w->npatients ? w->npatients : 1, sizeof *greedy);
+        if (!greedy) {
+            rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+            goto out;
+        }
+        bool placed_all = false;
+        rc = keel_greedy_place(w, greedy, &placed_all);
+        if (!rc && placed_all)
+            memcpy(s->nurse_of, greedy, w->npatients * sizeof *greedy);
+        free(greedy);
+        if (rc) {
+            keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
+            goto out;
+        }
     }
-    bool placed_all = false;
-    rc = keel_greedy_place(w, greedy, &placed_all);
-    if (!rc && placed_all)
-        memcpy(s->nurse_of, greedy, w->npatients * sizeof *greedy);
-    free(greedy);
-    if (!rc)
-        rc = keel_greedy_improve(w, s->nurse_of);
+    rc = keel_greedy_improve(w, s->nurse_of);
     if (rc) {
         keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }
-    rc = method->solve(w, started + limit, s, err);
+    /* Stages 3 and 4, when they apply, get the last part of the time. */
+    bool follows = w->ncontinuity > 0 || w->nzones > 0 || w->nrooms > 0;
+    long long balance_deadline = follows ? started + limit * FOLLOW_START_TENTHS / 10 : deadline;
+    rc = method->solve(w, balance_deadline, s, err);
+    if (!rc)
+        rc = keel_solve_follow(w, method->solve == keel_method_ilp, deadline, s, err);
     if (rc)
         goto out;
     s->status = overall_status(s);

@@ -37,8 +37,8 @@ typedef struct fit {
     long long *care;    /* [nnurses]: care so far */
     int *count;         /* [nnurses]: patients so far (the tally's) */
     keel_tally tally;
-    int *assign;        /* [npatients] */
-    size_t *tried;      /* scratch per depth: nurses in trial order */
+    int *assign;   /* [npatients] */
+    size_t *tried; /* scratch per depth: nurses in trial order */
     long nodes;
     long budget;
     long long deadline_ms; /* give up at this time too (0: no deadline) */
@@ -52,7 +52,8 @@ static const keel_workload *sort_w;
 static int joined_cmp(const keel_workload *w, size_t i, size_t j)
 {
     int d[] = {w->ratio_limit[i] - w->ratio_limit[j], w->high_acuity[i] - w->high_acuity[j],
-               w->side[i] - w->side[j], w->zone[i] - w->zone[j]};
+               w->isolation_rule ? w->side[i] - w->side[j] : 0,
+               w->zones_rule ? w->zone[i] - w->zone[j] : 0};
     for (size_t k = 0; k < sizeof d / sizeof d[0]; k++)
         if (d[k])
             return (d[k] > 0) - (d[k] < 0);

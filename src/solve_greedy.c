@@ -6,8 +6,8 @@
  *
  * It gives the incumbent the ILP starts from, the answer of
  * `--method greedy`, and a check in tests.  Every placement, move and swap
- * keeps every hard rule (the tally, tally.h, checks them).  Improvement accepts a move or swap between nurses a and b
- * only when it lowers max(u_a, u_b) strictly, so the sorted vector of
+ * keeps every hard rule (the tally, tally.h, checks them).  Improvement accepts a move or swap
+ * between nurses a and b only when it lowers max(u_a, u_b) strictly, so the sorted vector of
  * utilisations falls lexicographically and the search ends.
  */
 #include <stdlib.h>
@@ -86,8 +86,8 @@ static keel_ratio worse(keel_ratio a, keel_ratio b)
 
 /* Tries every move of one of a's patients to b; applies the first that
  * lowers the pair's peak.  Returns true when it applied one. */
-static bool try_move(const keel_workload *w, int *nurse_of, long long *load, keel_tally *t, size_t a,
-                     size_t b)
+static bool try_move(const keel_workload *w, int *nurse_of, long long *load, keel_tally *t,
+                     size_t a, size_t b)
 {
     keel_ratio before = worse((keel_ratio){load[a], w->capacity_minutes[a]},
                               (keel_ratio){load[b], w->capacity_minutes[b]});
@@ -111,8 +111,8 @@ static bool try_move(const keel_workload *w, int *nurse_of, long long *load, kee
 
 /* Tries every swap of a patient of a with a patient of b; applies the first
  * that lowers the pair's peak. */
-static bool try_swap(const keel_workload *w, int *nurse_of, long long *load, keel_tally *t, size_t a,
-                     size_t b)
+static bool try_swap(const keel_workload *w, int *nurse_of, long long *load, keel_tally *t,
+                     size_t a, size_t b)
 {
     keel_ratio before = worse((keel_ratio){load[a], w->capacity_minutes[a]},
                               (keel_ratio){load[b], w->capacity_minutes[b]});

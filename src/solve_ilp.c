@@ -65,7 +65,7 @@ typedef struct model {
     double *ar;
     size_t nnz, cap;
     bool nomem;
-    double bound;       /* best bound GLPK reported, when have_bound */
+    double bound; /* best bound GLPK reported, when have_bound */
     bool have_bound;
     bool start_given;
 } model;
@@ -125,9 +125,12 @@ static bool same_patients(const model *m, size_t a, size_t b)
 {
     const keel_workload *w = m->w;
     keel_ilp_goal goal = m->q->goal;
+    bool zones = w->zones_rule || goal == KEEL_GOAL_NEAR;
     return w->care_minutes[a] == w->care_minutes[b] && w->ratio_limit[a] == w->ratio_limit[b] &&
-           w->high_acuity[a] == w->high_acuity[b] && w->side[a] == w->side[b] &&
-           w->zone[a] == w->zone[b] && (goal == KEEL_GOAL_FIT || w->previous[a] == w->previous[b]) &&
+           w->high_acuity[a] == w->high_acuity[b] &&
+           (!w->isolation_rule || w->side[a] == w->side[b]) &&
+           (!zones || w->zone[a] == w->zone[b]) &&
+           (goal == KEEL_GOAL_FIT || w->previous[a] == w->previous[b]) &&
            (goal != KEEL_GOAL_NEAR || w->room[a] == w->room[b]) &&
            memcmp(&w->eligible[a * w->nnurses], &w->eligible[b * w->nnurses],
                   w->nnurses * sizeof *w->eligible) == 0;
@@ -261,7 +264,7 @@ static void add_rules(model *m, glp_prob *lp, size_t n)
         put(m, row, b, limit);
     }
     bool near = m->q->goal == KEEL_GOAL_NEAR;
-    if (w->max_zones != KEEL_ABSENT || near) {
+    if (w->zones_rule || near) {
         int row = w->max_zones != KEEL_ABSENT ? new_row(lp, GLP_UP, 0.0, (double)w->max_zones) : 0;
         for (size_t k = 0; k < w->nzones; k++) {
             int z = tie(m, lp, n, TRAIT_ZONE, (int)k, limit, near ? (double)w->npatients + 1 : 0.0);
@@ -315,8 +318,8 @@ static void build(model *m, glp_prob *lp)
         if (!keel_workload_counted(w, n))
             continue;
         int count = new_row(lp, GLP_UP, 0.0, (double)w->max_patients[n]);
-        int care = new_row(lp, q->lo[n] == q->hi[n] ? GLP_FX : GLP_DB, (double)q->lo[n],
-                           (double)q->hi[n]);
+        int care =
+            new_row(lp, q->lo[n] == q->hi[n] ? GLP_FX : GLP_DB, (double)q->lo[n], (double)q->hi[n]);
         for (size_t c = 0; c < m->nclasses; c++) {
             int j = m->col[c * nn + n];
             if (!j)
@@ -373,6 +376,8 @@ static void on_event(glp_tree *tree, void *info)
     if (!x || !act) {
         free(x);
         free(act);
+        m->nomem = true;
+        glp_ios_terminate(tree);
         return;
     }
     for (size_t p = 0; p < w->npatients; p++) {
@@ -453,6 +458,8 @@ static int build_and_solve(model *m, long time_limit_ms, int *nurse_of, keel_ilp
     parm.cb_func = on_event;
     parm.cb_info = m;
     ret = glp_intopt(lp, &parm);
+    if (m->nomem)
+        return 0;
     int status = glp_mip_status(lp);
     if (ret == 0 && status == GLP_NOFEAS) {
         res->answer = KEEL_ILP_INFEASIBLE;
@@ -465,6 +472,7 @@ static int build_and_solve(model *m, long time_limit_ms, int *nurse_of, keel_ilp
         double bound = ret == 0 && status == GLP_OPT ? value : m->bound;
         /* Objectives are whole numbers: round the proven limit inwards. */
         res->bound = keep ? (long long)floor(bound + 1e-6) : (long long)ceil(bound - 1e-6);
+        res->proven = ret == 0 && status == GLP_OPT;
         return 0;
     }
     if (ret == GLP_ETMLIM)

@@ -103,6 +103,7 @@ typedef struct keel_ilp_result {
     long long value; /* KEEP: patients kept; NEAR: zones in all (FEASIBLE only) */
     long long rooms; /* NEAR: rooms in all */
     long long bound; /* proven limit on value: upper for KEEP, lower for NEAR */
+    bool proven;     /* GLPK proved the answer optimal for the goal */
 } keel_ilp_result;
 
 /* solve_ilp.c: solves the question with GLPK within time_limit_ms: every
@@ -144,6 +145,28 @@ keel_status keel_method_greedy(const keel_workload *w, long long deadline_ms, ke
                                keel_error *err); /* solve.c */
 keel_status keel_method_ilp(const keel_workload *w, long long deadline_ms, keel_solution *sol,
                             keel_error *err); /* solve_exact.c */
+
+/* diagnose_rules.c: an assignment that keeps every rule, balance aside:
+ * greedy, then the dedicated search, then GLPK, until deadline_ms.
+ * Statuses: KEEL_OK (see *answer), KEEL_ERR_NOMEM, KEEL_ERR_SOLVER. */
+keel_status keel_find_valid(const keel_workload *w, long long deadline_ms, int *nurse_of,
+                            keel_ilp_answer *answer, keel_error *err);
+
+/* diagnose_rules.c: when eligibility and limits allow an assignment but the
+ * rules that join patients do not, finds a smallest set of those rule
+ * groups that conflict (relaxing any one makes an assignment possible) and
+ * appends one finding per group to out.  *decided is false when the time
+ * ran out first.  Statuses: KEEL_OK, KEEL_ERR_NOMEM, KEEL_ERR_SOLVER. */
+keel_status keel_diagnose_rules(const keel_roster *r, const keel_workload *w, long long deadline_ms,
+                                keel_findings *out, bool *decided, keel_error *err);
+
+/* solve_follow.c: stages 3 (continuity) and 4 (proximity) after the
+ * balance stages, within the balance tolerance, on sol->nurse_of (which
+ * must keep every rule); appends their stages and fills sol->continuity
+ * and sol->proximity.  exact: also ask GLPK.  Statuses: KEEL_OK,
+ * KEEL_ERR_NOMEM, KEEL_ERR_SOLVER. */
+keel_status keel_solve_follow(const keel_workload *w, bool exact, long long deadline_ms,
+                              keel_solution *sol, keel_error *err);
 
 /* Monotonic wall clock in milliseconds. */
 long long keel_clock_ms(void);

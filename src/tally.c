@@ -105,7 +105,8 @@ const char *keel_tally_breaks(const keel_tally *t, size_t p, size_t n)
                                                                                  : "patient_limit";
     if (after > w->ratio_limit[p] || after > keel_tally_tightest(t, n))
         return "patient_ratio";
-    if (w->high_acuity[p] && t->high[n] + 1 > w->max_high_acuity)
+    if (w->high_acuity[p] && w->max_high_acuity != KEEL_ABSENT &&
+        t->high[n] + 1 > w->max_high_acuity)
         return "high_acuity";
     if ((w->side[p] == KEEL_SIDE_PROTECTIVE && t->sides[n * 3 + KEEL_SIDE_INFECTIOUS] > 0) ||
         (w->side[p] == KEEL_SIDE_INFECTIOUS && t->sides[n * 3 + KEEL_SIDE_PROTECTIVE] > 0))

@@ -106,9 +106,10 @@ static keel_status join_rules(const keel_roster *r, keel_workload *w)
     }
     for (size_t p = 0; p < np; p++)
         w->room[p] = intern(names, &w->nrooms, r->patients[p].room);
-    w->joined_rules = w->joined_rules || w->max_high_acuity != KEEL_ABSENT ||
-                      (sides[KEEL_SIDE_INFECTIOUS] && sides[KEEL_SIDE_PROTECTIVE]) ||
-                      (w->max_zones != KEEL_ABSENT && w->nzones > (size_t)w->max_zones);
+    w->isolation_rule = sides[KEEL_SIDE_INFECTIOUS] && sides[KEEL_SIDE_PROTECTIVE];
+    w->zones_rule = w->max_zones != KEEL_ABSENT && w->nzones > (size_t)w->max_zones;
+    w->joined_rules =
+        w->joined_rules || w->max_high_acuity != KEEL_ABSENT || w->isolation_rule || w->zones_rule;
     free(names);
     return KEEL_OK;
 }

@@ -64,10 +64,11 @@ bool keel_law_covers(const keel_law_table *t, const char *unit_type);
 int keel_law_nurse_max(const keel_law_table *t, const char *unit_type);
 
 /* The shift class of a shift that starts start_minute after midnight and
- * lasts minutes: the class whose hours it overlaps most; a shift that
- * overlaps morning and afternoon equally is an afternoon shift, and any
- * other tie goes to the class with the stricter rule (the earlier one of
- * morning, afternoon, night).  start_minute < 0 gives KEEL_SHIFT_ANY. */
+ * lasts minutes: the class whose hours it overlaps most, ties settled as the
+ * table's text says (Queensland s 30A(2): morning and afternoon equal is
+ * afternoon, afternoon and night equal is night, morning and night equal is
+ * morning).  A table without shift classes, or start_minute < 0, gives
+ * KEEL_SHIFT_ANY. */
 keel_shift_class keel_law_shift_class(const keel_law_table *t, int start_minute, int minutes);
 
 /* Name of a shift class ("morning", ...; "any"). */

@@ -5,6 +5,13 @@
  *
  *   stage 1 "peak": minimise U, the heaviest utilisation of the counted nurses
  *   stage 2 "lift": with U held at its optimum, raise L, the lightest one
+ *   stage 3 "continuity": keep the most patients with their previous nurse
+ *   stage 4 "proximity": fewest zones per nurse in all, then fewest rooms
+ *
+ * Stages 3 and 4 run only when the roster has previous nurses, or zones and
+ * rooms; they may trade balance within policy.balance_tolerance: every
+ * counted nurse stays at or under U + tolerance and at or over L - tolerance
+ * of stages 1 and 2, and stage 4 keeps stage 3's count.
  *
  * Methods are plugins behind one table ({name, solve}): "greedy" (heaviest
  * patient first to the least-utilised eligible nurse, then improving moves
@@ -17,6 +24,7 @@
 #ifndef KEEL_SOLVE_H
 #define KEEL_SOLVE_H
 
+#include <stdbool.h>
 #include <stddef.h>
 
 #include "keel/error.h"
@@ -44,12 +52,15 @@ typedef struct keel_solve_options {
     long time_limit_ms; /* whole solve; <= 0 means the default, 10 000 ms */
 } keel_solve_options;
 
-/* What one stage achieved.  value and bound are utilisations: for "peak" the
- * bound is a proven lower limit on U, for "lift" a proven upper limit on L.
+/* What one stage achieved.  For "peak" and "lift" value and bound are
+ * utilisations: for "peak" the bound is a proven lower limit on U, for
+ * "lift" a proven upper limit on L.  For "continuity" they count patients
+ * (bound: a proven upper limit on those kept), for "proximity" zones (bound:
+ * a proven lower limit on the zones of all nurses together).
  * gap = |value - bound| / max(|value|, |bound|): 0 when proven, the usual
  * relative MIP gap. */
 typedef struct keel_stage {
-    const char *name;         /* "peak" or "lift" */
+    const char *name;         /* "peak", "lift", "continuity" or "proximity" */
     keel_solve_status status; /* OPTIMAL, TIME_LIMIT or HEURISTIC */
     double value;
     double bound;
@@ -64,7 +75,20 @@ typedef struct keel_solution {
     size_t npatients;
     int *nurse_of; /* [npatients]: nurse index, -1 when infeasible */
     size_t nstages;
-    keel_stage stages[2];
+    keel_stage stages[4];
+    struct {
+        bool applies;      /* some patient's previous nurse is on the roster */
+        long kept;         /* patients kept with their previous nurse */
+        long candidates;   /* patients whose previous nurse is on the roster */
+        long kept_at_zero; /* the best found at zero tolerance; -1 when not sought */
+        bool zero_proven;  /* kept_at_zero is proven the most at zero tolerance */
+        double tolerance;  /* policy.balance_tolerance, in utilisation points */
+    } continuity;
+    struct {
+        bool applies; /* some patient has a zone or a room */
+        long zones;   /* zones per nurse, summed over nurses */
+        long rooms;   /* rooms per nurse, summed over nurses */
+    } proximity;
     double seconds;          /* wall time of the whole solve */
     keel_findings diagnoses; /* why no assignment exists (INFEASIBLE only) */
 } keel_solution;

@@ -115,8 +115,8 @@ typedef struct keel_staffing {
  * keel_workload_compute(r, ...)).  Nothing in *out is owned: out->table
  * points into the built-in tables.  Statuses: KEEL_OK; KEEL_ERR_NOMEM (*out
  * is then zeroed). */
-keel_status keel_staffing_compute(const keel_roster *r, const keel_workload *w,
-                                  keel_staffing *out, keel_error *err);
+keel_status keel_staffing_compute(const keel_roster *r, const keel_workload *w, keel_staffing *out,
+                                  keel_error *err);
 
 /* Writes the staffing view in plain words into buf, e.g. "28 patients need
  * at least 7 nurses under queensland as encoded on 2026-12-02 (afternoon

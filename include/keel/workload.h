@@ -26,8 +26,8 @@
  * solve_tally.c): the nurse of p has at most ratio_limit(p) patients; at
  * most max_high_acuity high-acuity patients per nurse; with isolation
  * separation, no nurse has a protective patient and an infectious one
- * (contact, droplet, airborne); at most max_zones zones per nurse.  "Counted" nurses are those with limit(n) > 0; every
- * balance figure is taken over them.  All figures are whole minutes.
+ * (contact, droplet, airborne); at most max_zones zones per nurse.  "Counted" nurses are those with
+ * limit(n) > 0; every balance figure is taken over them.  All figures are whole minutes.
  */
 #ifndef KEEL_WORKLOAD_H
 #define KEEL_WORKLOAD_H
@@ -52,19 +52,21 @@ typedef struct keel_workload {
     bool *eligible;        /* [npatients * nnurses], pair (p, n) at p * nnurses + n */
     int law_limit;         /* the table's per-nurse maximum, or KEEL_ABSENT */
 
-    int *ratio_limit;     /* [npatients]: most patients p's nurse may have (census: none) */
-    bool *high_acuity;    /* [npatients] */
-    int max_high_acuity;  /* KEEL_ABSENT: no limit */
-    signed char *side;    /* [npatients]: KEEL_SIDE_* under isolation separation, else NONE */
-    int *zone;            /* [npatients]: zone index, or -1 */
+    int *ratio_limit;    /* [npatients]: most patients p's nurse may have (census: none) */
+    bool *high_acuity;   /* [npatients] */
+    int max_high_acuity; /* KEEL_ABSENT: no limit */
+    signed char *side;   /* [npatients]: KEEL_SIDE_* under isolation separation, else NONE */
+    int *zone;           /* [npatients]: zone index, or -1 */
     size_t nzones;
-    int max_zones;        /* KEEL_ABSENT: no limit */
-    int *room;            /* [npatients]: room index, or -1 */
+    int max_zones; /* KEEL_ABSENT: no limit */
+    int *room;     /* [npatients]: room index, or -1 */
     size_t nrooms;
-    int *previous;        /* [npatients]: index of the previous nurse on this roster, or -1 */
-    size_t ncontinuity;   /* patients whose previous nurse is on this roster */
-    long long tolerance;  /* balance tolerance in 1/KEEL_TOLERANCE_SCALE */
-    bool joined_rules;    /* any rule that joins patients is on */
+    int *previous;       /* [npatients]: index of the previous nurse on this roster, or -1 */
+    size_t ncontinuity;  /* patients whose previous nurse is on this roster */
+    long long tolerance; /* balance tolerance in 1/KEEL_TOLERANCE_SCALE */
+    bool joined_rules;   /* any rule that joins patients is on */
+    bool isolation_rule; /* separation is on and both sides have patients */
+    bool zones_rule;     /* max_zones is below the number of zones */
 } keel_workload;
 
 /* Which side of the isolation separation a patient is on. */

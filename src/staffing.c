@@ -1,0 +1,376 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * staffing.c - the staffing view: nurses needed by care minutes, by limits
+ * and by the ratio table's ward minimum, against the nurses who take
+ * patients.  Reads a roster and its workload, assigns nothing; the minutes
+ * figure comes from metrics so that it is computed in one place.  The
+ * definitions are in keel/staffing.h.
+ */
+#include "keel/staffing.h"
+
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "alloc.h"
+#include "keel/metrics.h"
+
+#define MINUTES_PER_HOUR 60.0
+
+static long ceil_div(long long a, long long b)
+{
+    return (long)((a + b - 1) / b);
+}
+
+static int or_default(int value, int fallback)
+{
+    return value != KEEL_ABSENT ? value : fallback;
+}
+
+static int by_int(const void *a, const void *b)
+{
+    int x = *(const int *)a, y = *(const int *)b;
+    return (x > y) - (x < y);
+}
+
+/* The fewest groups the patients can form when a group may hold no more
+ * patients than the smallest limit[] among its members (each limit >= 1).
+ * Sorts limit[] in place.
+ *
+ * Sort the limits ascending, l1 <= l2 <= ... <= lm, and cut greedily: the
+ * first group is the first l1 patients (all of them if fewer), and so on
+ * from the first patient not yet placed.  This is optimal.  Proof, by
+ * induction on m: take any valid grouping with k groups and let G be the
+ * group of patient 1, so |G| <= l1, and let s = min(l1, m).  While G lacks
+ * some patient j <= s: if |G| < s, move j into G (G's smallest limit stays
+ * l1 because l1 is the smallest of all; j's old group only shrinks, so it
+ * stays valid); otherwise G holds some q > s, and we swap q and j (G keeps
+ * its size and l1; j's old group gets q in j's place, and l_q >= l_j, so its
+ * smallest limit does not fall).  Groups left empty are dropped.  The end
+ * is a valid grouping with at most k groups whose first group is the
+ * greedy's first group; the other groups hold patients s+1..m, and by
+ * induction the greedy needs no more groups for them than they use.  So the
+ * greedy count is at most k for every valid grouping. */
+static int fewest_groups(int *limit, size_t n)
+{
+    int groups = 0;
+    qsort(limit, n, sizeof *limit, by_int);
+    for (size_t i = 0; i < n; i += (size_t)limit[i])
+        groups++;
+    return groups;
+}
+
+/* N: the smallest of the table's per-nurse maximum, policy.max_patients and
+ * policy.roles.staff.max_patients; KEEL_ABSENT when none is given. */
+static int staff_limit(const keel_roster *r, const keel_workload *w)
+{
+    int given[] = {w->law_limit, r->policy.max_patients,
+                   r->policy.roles[KEEL_ROLE_STAFF].max_patients};
+    int limit = KEEL_ABSENT;
+    for (size_t i = 0; i < sizeof given / sizeof given[0]; i++)
+        if (given[i] != KEEL_ABSENT && (limit == KEEL_ABSENT || given[i] < limit))
+            limit = given[i];
+    return limit;
+}
+
+/* The need by limits: N, the patients' ratios and the high-acuity rule. */
+static keel_status need_by_limits(const keel_roster *r, const keel_workload *w, keel_staffing *s,
+                                  keel_error *err)
+{
+    size_t census = w->npatients;
+    s->staff_limit = staff_limit(r, w);
+    s->max_high_acuity = w->max_high_acuity;
+    for (size_t p = 0; s->max_high_acuity != KEEL_ABSENT && p < census; p++)
+        if (w->high_acuity[p])
+            s->nhigh_acuity++;
+    if (census == 0)
+        return KEEL_OK;
+    if (s->staff_limit == 0) {
+        s->blocked = KEEL_STAFFING_NO_STAFF_LIMIT;
+    } else {
+        int cap = s->staff_limit == KEEL_ABSENT || (size_t)s->staff_limit > census ? (int)census
+                                                                                   : s->staff_limit;
+        int *limit = keel_calloc(census, sizeof *limit);
+        if (!limit)
+            return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+        for (size_t p = 0; p < census; p++)
+            limit[p] = w->ratio_limit[p] < cap ? w->ratio_limit[p] : cap;
+        s->by_census = (int)ceil_div((long long)census, cap);
+        s->by_ratios = fewest_groups(limit, census);
+        free(limit);
+    }
+    if (s->nhigh_acuity > 0) {
+        if (s->max_high_acuity == 0 && s->blocked == KEEL_STAFFING_POSSIBLE)
+            s->blocked = KEEL_STAFFING_NO_HIGH_ACUITY;
+        else if (s->max_high_acuity > 0)
+            s->by_high_acuity = (int)ceil_div(s->nhigh_acuity, s->max_high_acuity);
+    }
+    if (s->blocked != KEEL_STAFFING_POSSIBLE)
+        s->by_limits = -1;
+    else
+        s->by_limits = s->by_ratios > s->by_high_acuity ? s->by_ratios : s->by_high_acuity;
+    return KEEL_OK;
+}
+
+/* The need by care minutes, from the metrics of an empty assignment. */
+static void need_by_minutes(const keel_roster *r, const keel_metrics *m, keel_staffing *s)
+{
+    long long work = m->care_minutes + m->duty_minutes;
+    s->care_minutes = m->care_minutes;
+    s->duty_minutes = m->duty_minutes;
+    s->capacity_minutes = m->capacity_minutes;
+    if (m->ncounted > 0 && m->capacity_minutes > 0) {
+        s->mean_capacity_minutes = (double)m->capacity_minutes / (double)m->ncounted;
+        s->minutes_nurses = m->nurses_needed;
+        /* work / (capacity / k) = work * k / capacity, rounded up exactly */
+        s->by_minutes = (int)ceil_div(work * (long long)m->ncounted, m->capacity_minutes);
+        return;
+    }
+    /* Nobody takes patients: a nurse of the shift's length and break. */
+    int capacity = r->shift.minutes - or_default(r->shift.break_minutes, 0);
+    if (capacity <= 0)
+        return;
+    s->mean_capacity_minutes = capacity;
+    s->minutes_nurses = (double)work / (double)capacity;
+    s->by_minutes = (int)ceil_div(work, capacity);
+}
+
+/* The ratio table's own figures for this unit, shift and census. */
+static void need_by_table(const keel_roster *r, keel_staffing *s)
+{
+    const keel_law_table *t = r->policy.ratio_table;
+    s->table = t;
+    s->shift_class = keel_law_shift_class(t, r->shift.start_minute, r->shift.minutes);
+    s->table_nurse_max = keel_law_nurse_max(t, r->unit.type);
+    s->ward_minimum = keel_law_ward_minimum(t, r->unit.type, s->shift_class, s->census);
+    s->table_minimum = s->ward_minimum;
+    if (s->table_minimum < 0 && s->table_nurse_max > 0)
+        s->table_minimum = (int)ceil_div((long long)s->census, s->table_nurse_max);
+}
+
+/* The largest need, ties to the earlier of ward minimum, limits, minutes. */
+static void verdict(keel_staffing *s)
+{
+    if (s->census == 0) {
+        s->needed = 0;
+        s->binding = KEEL_STAFFING_NEED_NONE;
+    } else if (s->blocked != KEEL_STAFFING_POSSIBLE) {
+        s->needed = -1;
+        s->binding = KEEL_STAFFING_NEED_LIMITS;
+        return;
+    } else {
+        s->needed = s->ward_minimum;
+        s->binding = KEEL_STAFFING_NEED_WARD_MINIMUM;
+        if (s->by_limits > s->needed) {
+            s->needed = s->by_limits;
+            s->binding = KEEL_STAFFING_NEED_LIMITS;
+        }
+        if (s->by_minutes > s->needed) {
+            s->needed = s->by_minutes;
+            s->binding = KEEL_STAFFING_NEED_MINUTES;
+        }
+    }
+    s->slack = (int)s->ncounted - s->needed;
+}
+
+keel_status keel_staffing_compute(const keel_roster *r, const keel_workload *w, keel_staffing *out,
+                                  keel_error *err)
+{
+    keel_staffing s;
+    keel_metrics *m = NULL;
+    memset(out, 0, sizeof *out);
+    memset(&s, 0, sizeof s);
+    keel_status rc = keel_metrics_compute(w, NULL, &m, err);
+    if (rc)
+        return rc;
+    s.census = w->npatients;
+    s.nnurses = w->nnurses;
+    s.ncounted = m->ncounted;
+    need_by_minutes(r, m, &s);
+    keel_metrics_free(m);
+    rc = need_by_limits(r, w, &s, err);
+    if (rc)
+        return rc;
+    need_by_table(r, &s);
+    for (size_t n = 0; n < w->nnurses; n++)
+        if (keel_workload_counted(w, n))
+            s.unit_minutes += or_default(r->nurses[n].minutes, r->shift.minutes);
+    if (s.census > 0)
+        s.hours_per_patient = (double)s.unit_minutes / MINUTES_PER_HOUR / (double)s.census;
+    verdict(&s);
+    *out = s;
+    return KEEL_OK;
+}
+
+const char *keel_staffing_need_name(keel_staffing_need need)
+{
+    switch (need) {
+    case KEEL_STAFFING_NEED_WARD_MINIMUM:
+        return "ward minimum";
+    case KEEL_STAFFING_NEED_LIMITS:
+        return "limits";
+    case KEEL_STAFFING_NEED_MINUTES:
+        return "care minutes";
+    case KEEL_STAFFING_NEED_NONE:
+        break;
+    }
+    return "none";
+}
+
+/* ---------------------------------------------------------------------------
+ * Plain words
+ */
+
+/* Text written so far into a caller's buffer; len counts what the whole
+ * text needs even when the buffer is full. */
+typedef struct sink {
+    char *buf;
+    size_t size;
+    size_t len;
+} sink;
+
+#if defined(__GNUC__)
+__attribute__((format(printf, 2, 3)))
+#endif
+static void
+put(sink *k, const char *fmt, ...)
+{
+    va_list ap;
+    size_t room = k->len < k->size ? k->size - k->len : 0;
+    va_start(ap, fmt);
+    int n = vsnprintf(room ? k->buf + k->len : NULL, room, fmt, ap);
+    va_end(ap);
+    if (n > 0)
+        k->len += (size_t)n;
+}
+
+static const char *plural(long n)
+{
+    return n == 1 ? "" : "s";
+}
+
+/* The verb's -s for a subject of n ("1 nurse takes", "6 nurses take"). */
+static const char *verb_s(long n)
+{
+    return n == 1 ? "s" : "";
+}
+
+/* "under <table> as encoded on <date>", with the shift class if it has one. */
+static void put_table(sink *k, const keel_staffing *s)
+{
+    put(k, "under %s as encoded on %s", s->table->name, s->table->encoded);
+    if (s->shift_class != KEEL_SHIFT_ANY)
+        put(k, " (%s shift)", keel_shift_class_name(s->shift_class));
+}
+
+/* What the binding need is, after "need at least K nurses ". */
+static void put_reason(sink *k, const keel_staffing *s)
+{
+    switch (s->binding) {
+    case KEEL_STAFFING_NEED_WARD_MINIMUM:
+        put_table(k, s);
+        return;
+    case KEEL_STAFFING_NEED_MINUTES:
+        put(k, "by care minutes (%.1f nurses' worth of care and duty)", s->minutes_nurses);
+        return;
+    case KEEL_STAFFING_NEED_LIMITS:
+        if (s->by_high_acuity > s->by_ratios)
+            put(k, "with at most %d high-acuity patient%s per nurse", s->max_high_acuity,
+                plural(s->max_high_acuity));
+        else if (s->by_ratios > s->by_census)
+            put(k, "under the patients' own ratios");
+        else if (s->staff_limit == KEEL_ABSENT)
+            put(k, "with no limit on patients per nurse");
+        else if (s->table && s->table_nurse_max == s->staff_limit)
+            put(k, "under %s as encoded on %s (at most %d patient%s per nurse)", s->table->name,
+                s->table->encoded, s->staff_limit, plural(s->staff_limit));
+        else
+            put(k, "under a limit of %d patient%s per nurse", s->staff_limit,
+                plural(s->staff_limit));
+        return;
+    case KEEL_STAFFING_NEED_NONE:
+        break;
+    }
+}
+
+static void put_block(sink *k, const keel_staffing *s)
+{
+    const char *these = s->census == 1 ? "this" : "these";
+    if (s->blocked == KEEL_STAFFING_NO_STAFF_LIMIT) {
+        put(k, "No number of staff nurses can hold %s %zu patient%s: ", these, s->census,
+            plural((long)s->census));
+        put(k, "a staff nurse may take no patients (limit 0)");
+        return;
+    }
+    put(k, "No number of nurses can hold %s %zu patient%s: ", these, s->census,
+        plural((long)s->census));
+    put(k,
+        "%d patient%s %s high-acuity and a nurse may have none "
+        "(policy.high_acuity.max_per_nurse 0)",
+        s->nhigh_acuity, plural(s->nhigh_acuity), s->nhigh_acuity == 1 ? "is" : "are");
+}
+
+/* The three needs and the hours per patient. */
+static void put_needs(sink *k, const keel_staffing *s)
+{
+    put(k, " By care minutes %.1f nurses (%d), ", s->minutes_nurses, s->by_minutes);
+    if (s->by_limits < 0)
+        put(k, "by limits none possible");
+    else
+        put(k, "by limits %d", s->by_limits);
+    if (s->ward_minimum >= 0)
+        put(k, ", by the ward minimum %d", s->ward_minimum);
+    put(k, "; %.1f nurse hours per patient this shift.", s->hours_per_patient);
+}
+
+/* Whether the census exceeds what the counted nurses may hold under the
+ * table; never whether the roster is lawful. */
+static void put_table_verdict(sink *k, const keel_staffing *s)
+{
+    long counted = (long)s->ncounted;
+    if (!s->table || s->table_minimum < 0)
+        return;
+    if (s->ncounted >= (size_t)s->table_minimum) {
+        put(k,
+            " %ld nurse%s %s enough to keep the limits of %s as encoded on %s for %zu patient%s.",
+            counted, plural(counted), counted == 1 ? "is" : "are", s->table->name,
+            s->table->encoded, s->census, plural((long)s->census));
+    } else {
+        put(k, " %zu patient%s exceed%s what %ld nurse%s may hold ", s->census,
+            plural((long)s->census), verb_s((long)s->census), counted, plural(counted));
+        put_table(k, s);
+        put(k, ".");
+    }
+}
+
+int keel_staffing_format(const keel_staffing *s, char *buf, size_t size)
+{
+    sink k = {buf, size, 0};
+    long counted = (long)s->ncounted;
+    if (buf && size > 0)
+        buf[0] = '\0';
+    if (s->census == 0) {
+        put(&k, "No patients; %ld nurse%s take%s patients.", counted, plural(counted),
+            verb_s(counted));
+        return (int)k.len;
+    }
+    if (s->blocked != KEEL_STAFFING_POSSIBLE) {
+        put_block(&k, s);
+        put(&k, "; %ld nurse%s take%s patients.", counted, plural(counted), verb_s(counted));
+    } else {
+        put(&k, "%zu patient%s need%s at least %d nurse%s ", s->census, plural((long)s->census),
+            verb_s((long)s->census), s->needed, plural(s->needed));
+        put_reason(&k, s);
+        put(&k, "; %ld nurse%s take%s patients: ", counted, plural(counted), verb_s(counted));
+        if (s->slack < 0)
+            put(&k, "%d short.", -s->slack);
+        else if (s->slack > 0)
+            put(&k, "%d to spare.", s->slack);
+        else
+            put(&k, "none to spare.");
+    }
+    put_needs(&k, s);
+    put_table_verdict(&k, s);
+    return (int)k.len;
+}

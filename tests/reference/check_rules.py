@@ -1,0 +1,774 @@
+#!/usr/bin/python3
+# SPDX-License-Identifier: GPL-3.0-or-later
+"""Check keel's roster rules and its four stages against independent references.
+
+Source: HiGHS MILP solver through Debian's python3-scipy
+(scipy.optimize.milp, scipy 1.10) as the independent reference solver, on a
+model written from the specification of keel's roster rules and stages
+(highs_model.RulesModel, solve_rules); on tiny rosters also exhaustive
+enumeration (highs_model.brute_force_rules).  The ratio table's numbers are
+from California Code of Regulations, Title 22, §70217(a)
+(highs_model.CALIFORNIA_TABLE).
+
+Rosters come from gen_rosters.py's rules presets (every rule switched on at
+random; every fourth roster infeasible because of one rule, the rules in
+turn).  For each roster keel runs as `keel assign ROSTER -f json
+--time-limit S` and:
+  * exit code 3 exactly when the reference finds no assignment that keeps
+    the hard rules; then "diagnosis" is non-empty and every entry names a
+    rule of the spec (skill, patient_limit, patient_ratio, law_limit,
+    high_acuity, isolation, zones, lock, avoid);
+  * otherwise exit code 0, and keel's assignment keeps every hard rule,
+    recomputed from the roster (eligibility with needs + isolation needs,
+    avoid, lock; patient limits with the table; "1:N" ratios; high acuity;
+    isolation separation; zones per nurse); loads, capacities and
+    utilisations recomputed; the stages listed in the spec's order, only
+    those that apply; status "optimal" only with every stage proven;
+  * the final assignment lies in the tolerance windows keel's own stage
+    values give (floor((U + tol) cap), ceil((L - tol) cap), exact);
+    "continuity" kept / candidates and "proximity" zones / rooms recomputed
+    from the assignment and the roster;
+  * against the reference optimum (U*, L* within 1e-6; kept, Z exact):
+    equal when both prove the stage and the stage's problem is the same
+    (the same U, L, tolerance and kept before it); keel never beats a
+    proven reference bound; keel's own bounds never cut off the reference's
+    solution.
+The references check themselves: HiGHS must agree with brute force on the
+tiny rosters, and a roster the generator made infeasible on purpose must
+stay infeasible for HiGHS.
+
+Usage: check_rules.py KEEL_EXE [--count 14] [--tiny-count 120] [--seed S]
+                      [--keel-seconds 10] [--highs-seconds 8] [--jobs 2]
+                      [--keep DIR]
+       check_rules.py --reference-only [--tiny-count 300] [--count 10]
+                      (HiGHS against brute force, three ways, no keel)
+The last line of output is "N passed, M failed"; exit status 1 if M > 0,
+77 when this Python lacks numpy, scipy's milp or PyYAML.
+"""
+
+import argparse
+import concurrent.futures
+import importlib
+import json
+import math
+import os
+import subprocess
+import sys
+import tempfile
+import time
+from fractions import Fraction
+
+
+def _require_modules():
+    """Exit 77 (meson: skipped, not passed) without numpy, scipy's milp, PyYAML."""
+    try:
+        for name in ("numpy", "yaml"):
+            importlib.import_module(name)
+        if not hasattr(importlib.import_module("scipy.optimize"), "milp"):
+            raise ImportError("scipy.optimize has no milp (scipy >= 1.9 needed)")
+    except ImportError as e:
+        print("SKIP: this Python (%s) cannot run the reference checks: %s"
+              % (sys.executable, e))
+        sys.exit(77)
+
+
+_require_modules()
+
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+import gen_rosters  # noqa: E402
+import highs_model  # noqa: E402
+from highs_model import RULE_NAMES  # noqa: E402
+
+TOL = 1e-6          # agreement between solvers on U and L (the contract's 1e-6)
+PRINT_TOL = 1e-9    # a printed utilisation against load / capacity
+EXIT_NAMES = {0: "success", 1: "usage error", 2: "bad input", 3: "no valid assignment",
+              4: "internal or solver failure"}
+
+
+# ---------------------------------------------------------------- keel runs
+
+def run_keel(keel, path, seconds):
+    """Run `keel assign PATH -f json --time-limit S`.
+
+    Returns (exit code or None, parsed JSON or None, stderr, wall seconds).
+    """
+    cmd = [keel, "assign", path, "-f", "json", "--time-limit", "%g" % seconds]
+    t0 = time.monotonic()
+    try:
+        proc = subprocess.run(cmd, capture_output=True, text=True, timeout=seconds * 2 + 10)
+    except subprocess.TimeoutExpired as e:
+        return None, None, "keel did not stop: killed after %ss" % e.timeout, \
+            time.monotonic() - t0
+    except OSError as e:
+        return None, None, "cannot run %s: %s" % (keel, e), time.monotonic() - t0
+    doc = None
+    try:
+        doc = json.loads(proc.stdout)
+    except ValueError:
+        pass
+    return proc.returncode, doc, proc.stderr, time.monotonic() - t0
+
+
+def _stderr_head(stderr, lines=3):
+    got = [x.strip() for x in (stderr or "").splitlines() if x.strip()]
+    text = " | ".join(got[:lines])
+    if len(got) > lines:
+        text += " | ... (%d lines)" % len(got)
+    return text or "(nothing on stderr)"
+
+
+def _exit_text(rc):
+    return "%r (%s)" % (rc, EXIT_NAMES.get(rc, "killed or unknown"))
+
+
+def _num(v):
+    return isinstance(v, (int, float)) and not isinstance(v, bool)
+
+
+def _int(v):
+    return isinstance(v, int) and not isinstance(v, bool)
+
+
+def _exact(value, r):
+    """keel's printed utilisation as the exact load / capacity fraction.
+
+    Every stage value of U and L is (whole minutes) / capacity(n) with
+    capacity <= 1440; two such fractions differ by more than 4e-7, and keel
+    prints 12 significant digits, so the nearest fraction with a
+    denominator up to the largest capacity is the value.  None if it is
+    not such a fraction.
+    """
+    if not _num(value):
+        return None
+    big = max(n["capacity"] for n in r["nurses"] if n["counted"])
+    f = Fraction(value).limit_denominator(big)
+    return f if abs(float(f) - value) <= PRINT_TOL * max(1.0, abs(value)) else None
+
+
+# -------------------------------------------------------- keel's report
+
+def read_assignment(r, doc, problems):
+    """keel's assignment (nurse index per patient) from its nurses[] lists,
+    cross-checked with patients[].nurse; None when unreadable."""
+    nurses = doc.get("nurses")
+    if not isinstance(nurses, list):
+        problems.append("report has no nurses list")
+        return None
+    by_id = {n["id"]: j for j, n in enumerate(r["nurses"])}
+    pat_index = {p["id"]: i for i, p in enumerate(r["patients"])}
+    seen = set()
+    assign = [None] * len(r["patients"])
+    for entry in nurses:
+        nid = entry.get("id") if isinstance(entry, dict) else None
+        if nid not in by_id or nid in seen:
+            problems.append("report lists nurse %r unknown or twice" % (nid,))
+            continue
+        seen.add(nid)
+        pats = entry.get("patients")
+        if not isinstance(pats, list):
+            problems.append("nurse %s: no patients list" % nid)
+            continue
+        for pid in pats:
+            if pid not in pat_index:
+                problems.append("nurse %s: unknown patient %r" % (nid, pid))
+            elif assign[pat_index[pid]] is not None:
+                problems.append("patient %s assigned twice" % pid)
+            else:
+                assign[pat_index[pid]] = by_id[nid]
+    for n in r["nurses"]:
+        if n["id"] not in seen:
+            problems.append("nurse %s missing from the report" % n["id"])
+    for p, j in enumerate(assign):
+        if j is None:
+            problems.append("patient %s has no nurse" % r["patients"][p]["id"])
+    pats = doc.get("patients")
+    if isinstance(pats, list):
+        for entry in pats:
+            if isinstance(entry, dict) and entry.get("id") in pat_index:
+                j = assign[pat_index[entry["id"]]]
+                if j is not None and entry.get("nurse") != r["nurses"][j]["id"]:
+                    problems.append("patients[] gives %s nurse %r, nurses[] gives %s"
+                                    % (entry["id"], entry.get("nurse"), r["nurses"][j]["id"]))
+    else:
+        problems.append("report has no patients list")
+    return None if None in assign else assign
+
+
+def check_report(r, doc):
+    """Check keel's JSON for a feasible roster against the roster itself.
+
+    Returns (problems, facts): facts holds keel's assignment, its stage
+    values (U, L exact), statuses and bounds, and what it recomputes to.
+    """
+    problems = []
+    assign = read_assignment(r, doc, problems)
+    if assign is None:
+        return problems, None
+    # The hard rules, recomputed from the roster (spec rules 1-6).
+    for rule, text in highs_model.violations(r, assign):
+        problems.append("keel's assignment breaks rule %s: %s" % (rule, text))
+    loads = highs_model.loads_of(r, assign)
+    counts = [0] * len(r["nurses"])
+    for j in assign:
+        counts[j] += 1
+    utils = []
+    by_id = {n["id"]: j for j, n in enumerate(r["nurses"])}
+    for entry in doc["nurses"]:
+        if not isinstance(entry, dict) or entry.get("id") not in by_id:
+            continue
+        j = by_id[entry["id"]]
+        n = r["nurses"][j]
+        for key, want in (("load_minutes", loads[j]), ("capacity_minutes", n["capacity"]),
+                          ("counted", n["counted"])):
+            if entry.get(key) != want or type(entry.get(key)) is not type(want):
+                problems.append("nurse %s: %s %r, the roster gives %r"
+                                % (n["id"], key, entry.get(key), want))
+        if n["limit"] is not None and entry.get("max_patients") != n["limit"]:
+            problems.append("nurse %s: max_patients %r, the roster's limit is %d"
+                            % (n["id"], entry.get("max_patients"), n["limit"]))
+        u = Fraction(loads[j], n["capacity"])
+        if n["counted"]:
+            utils.append(u)
+            got = entry.get("utilisation")
+            if not _num(got) or abs(got - float(u)) > PRINT_TOL:
+                problems.append("nurse %s: utilisation %r, load / capacity = %.12f"
+                                % (n["id"], got, float(u)))
+    fU, fL = max(utils), min(utils)
+    imb = doc.get("imbalance")
+    if isinstance(imb, dict):
+        for key, want in (("max_utilisation", fU), ("min_utilisation", fL)):
+            if not _num(imb.get(key)) or abs(imb[key] - float(want)) > PRINT_TOL:
+                problems.append("imbalance.%s %r, the assignment gives %.12f"
+                                % (key, imb.get(key), float(want)))
+    else:
+        problems.append("report has no imbalance object")
+
+    # The stages: names in the spec's order, only those that apply.
+    want_names = ["peak", "lift"] + (["continuity"] if r["stage3"] else []) \
+        + (["proximity"] if r["stage4"] else [])
+    stages = doc.get("stages")
+    if not isinstance(stages, list) or not all(isinstance(s, dict) for s in stages):
+        problems.append("report has no stages list")
+        return problems, None
+    names = [s.get("name") for s in stages]
+    if names != want_names:
+        problems.append("stages %s, the roster calls for %s" % (names, want_names))
+    st = {s.get("name"): s for s in stages}
+    proven = {k: st.get(k, {}).get("status") == "optimal" for k in want_names}
+    status = doc.get("status")
+    if status == "optimal" and not all(proven.values()):
+        problems.append("status optimal but stages %s are not all proven"
+                        % {k: st.get(k, {}).get("status") for k in want_names})
+    if status not in ("optimal", "time_limit", "heuristic"):
+        problems.append("status %r for a feasible roster" % (status,))
+    if "peak" not in st or "lift" not in st:
+        return problems, None
+    kU = _exact(st["peak"].get("value"), r)
+    kL = _exact(st["lift"].get("value"), r)
+    if kU is None or kL is None:
+        problems.append("stage values peak %r, lift %r are not load / capacity fractions"
+                        % (st["peak"].get("value"), st["lift"].get("value")))
+        return problems, None
+    tol = r["tol"]
+    kept, (Z, R) = highs_model.kept_of(r, assign), highs_model.proximity_of(r, assign)
+    if r["stage3"] or r["stage4"]:
+        # Stages 3 and 4 hold the windows from keel's own U and L (spec).
+        for j, (lo, hi) in highs_model.windows(r, kU, kL, tol).items():
+            if not lo <= loads[j] <= hi:
+                problems.append("nurse %s: load %d outside the window [%d, %d] that keel's "
+                                "own peak %s and lift %s give with tolerance %s"
+                                % (r["nurses"][j]["id"], loads[j], lo, hi, kU, kL, tol))
+    else:
+        # Stage 2's assignment is the answer: its lightest is L, heaviest <= U.
+        if fL != kL or fU > kU or (proven["peak"] and fU != kU):
+            problems.append("assignment's utilisation %s..%s, stages give peak %s, lift %s"
+                            % (fL, fU, kU, kL))
+    cont = doc.get("continuity")
+    if r["stage3"]:
+        cst = st.get("continuity", {})
+        if not isinstance(cont, dict):
+            problems.append("no continuity object, but %d patients have their previous "
+                            "nurse on the roster" % r["candidates"])
+        else:
+            if cont.get("kept") != kept:
+                problems.append("continuity.kept %r, the assignment keeps %d"
+                                % (cont.get("kept"), kept))
+            if cont.get("candidates") != r["candidates"]:
+                problems.append("continuity.candidates %r, the roster has %d"
+                                % (cont.get("candidates"), r["candidates"]))
+            if not _num(cont.get("tolerance")) or abs(cont["tolerance"] - float(tol)) > 1e-12:
+                problems.append("continuity.tolerance %r, the roster's is %s"
+                                % (cont.get("tolerance"), tol))
+            k0 = cont.get("kept_at_zero_tolerance", "absent")
+            if k0 is not None and not (_int(k0) and 0 <= k0 <= r["candidates"]):
+                problems.append("continuity.kept_at_zero_tolerance %r" % (k0,))
+        v = cst.get("value")
+        if not _int(v) or v > kept:
+            problems.append("continuity stage value %r, but the assignment keeps %d "
+                            "(stage 4 holds kept >= the stage-3 value)" % (v, kept))
+        elif proven["continuity"] and v != kept:
+            problems.append("continuity proven at %d, yet the final assignment keeps %d "
+                            "in the same windows" % (v, kept))
+        b = cst.get("bound")
+        if b is not None and (not _num(b) or b < kept):
+            problems.append("continuity bound %r below the kept %d keel found" % (b, kept))
+    elif cont is not None:
+        problems.append("continuity object %r, but no previous_nurse is on the roster"
+                        % (cont,))
+    prox = doc.get("proximity")
+    if r["stage4"]:
+        pst = st.get("proximity", {})
+        if not isinstance(prox, dict):
+            problems.append("no proximity object, but patients have zones or rooms")
+        elif prox.get("zones") != Z or prox.get("rooms") != R:
+            problems.append("proximity zones %r rooms %r, the assignment gives %d and %d"
+                            % (prox.get("zones"), prox.get("rooms"), Z, R))
+        if pst.get("value") != Z:
+            problems.append("proximity stage value %r, the assignment gives Z = %d"
+                            % (pst.get("value"), Z))
+        b = pst.get("bound")
+        if b is not None and (not _num(b) or b > Z):
+            problems.append("proximity bound %r above the Z %d keel found" % (b, Z))
+    elif prox is not None:
+        problems.append("proximity object %r, but no patient has a zone or a room" % (prox,))
+    facts = {
+        "assign": assign, "status": status, "proven": proven, "U": kU, "L": kL,
+        "fU": fU, "fL": fL, "kept": kept, "Z": Z, "R": R,
+        "peak_bound": st["peak"].get("bound"), "lift_bound": st["lift"].get("bound"),
+        "cont_value": st.get("continuity", {}).get("value"),
+        "cont_bound": st.get("continuity", {}).get("bound"),
+        "prox_bound": st.get("proximity", {}).get("bound"),
+        "k0": cont.get("kept_at_zero_tolerance") if isinstance(cont, dict) else None,
+    }
+    return problems, facts
+
+
+# -------------------------------------------------------- the reference
+
+def reference(r, tiny, highs_seconds):
+    """The reference result: HiGHS always, brute force on tiny rosters.
+
+    Returns (ref, problems): ref maps each measure (U, L, kept, kept0, Z, R)
+    to {"value", "proven", "bound"} (bound: a proven lower limit for U, Z, R,
+    an upper one for L, kept, kept0), plus "feasible" (True / False / None).
+    problems are disagreements inside the reference (HiGHS vs brute force).
+    """
+    h = highs_model.solve_rules(r, highs_seconds)
+    s = h["stages"]
+    problems = []
+    ref = {"feasible": h["feasible"], "highs": h}
+    for key, name in (("U", "peak"), ("L", "lift"), ("kept", "continuity"),
+                      ("kept0", "continuity0"), ("Z", "proximity"), ("R", "rooms")):
+        x = s[name]
+        ref[key] = None if x is None or x.get("value") is None else {
+            "value": x["value"], "proven": x["status"] == "optimal", "bound": x["bound"]}
+    if tiny:
+        bf = highs_model.brute_force_rules(r)
+        if (bf is None) != (h["feasible"] is False):
+            problems.append("REFERENCE: brute force says %s, HiGHS says %s"
+                            % ("infeasible" if bf is None else "feasible", h["feasible"]))
+        elif bf is not None:
+            for key in ("U", "L", "kept", "kept0", "Z", "R"):
+                hv = ref[key]
+                if bf[key] is None and hv is None:
+                    continue
+                if hv is None or bf[key] is None or not hv["proven"] or hv["value"] != bf[key]:
+                    problems.append("REFERENCE: %s: HiGHS %s, brute force %s"
+                                    % (key, None if hv is None else
+                                       "%s (%s)" % (hv["value"], "proven" if hv["proven"]
+                                                    else "unproven"), bf[key]))
+            for key in ("U", "L", "kept", "kept0", "Z", "R"):
+                ref[key] = None if bf[key] is None else {"value": bf[key], "proven": True,
+                                                        "bound": bf[key]}
+    return ref, problems
+
+
+def compare(r, k, ref):
+    """keel's facts against the reference; each check says which stage.
+
+    A later stage's problem is the same for keel and the reference only
+    when the values it holds are the same: stage 2 holds U, stages 3 and 4
+    the windows from U and L, stage 4 also kept.  Comparisons of a stage
+    run only then; "never beats" needs the reference's proven bound,
+    "equal" needs both proofs.
+    """
+    out = []
+    U, L = ref["U"], ref["L"]
+    # Stage 1 (peak).  Source: HiGHS / brute force as above.
+    if U["bound"] is not None and float(k["U"]) < float(U["bound"]) - TOL:
+        out.append("peak: keel's U %.9f below the reference's proven bound %.9f"
+                   % (k["U"], U["bound"]))
+    if k["proven"]["peak"] and float(k["U"]) > float(U["value"]) + TOL:
+        out.append("peak: keel claims U optimal at %.9f, the reference found %.9f"
+                   % (k["U"], U["value"]))
+    if U["proven"] and k["proven"]["peak"] and abs(float(k["U"]) - float(U["value"])) > TOL:
+        out.append("peak: keel U* %.9f, reference U* %.9f" % (k["U"], U["value"]))
+    if _num(k["peak_bound"]) and k["peak_bound"] > float(U["value"]) + TOL:
+        out.append("peak: keel's bound %.9f above the reference's feasible U %.9f"
+                   % (k["peak_bound"], U["value"]))
+    if k["U"] != U["value"]:
+        return out
+    # Stage 2 (lift), the same U held.
+    if L["bound"] is not None and float(k["L"]) > float(L["bound"]) + TOL:
+        out.append("lift: keel's L %.9f above the reference's proven bound %.9f"
+                   % (k["L"], L["bound"]))
+    if k["proven"]["lift"] and float(k["L"]) < float(L["value"]) - TOL:
+        out.append("lift: keel claims L optimal at %.9f, the reference found %.9f"
+                   % (k["L"], L["value"]))
+    if L["proven"] and k["proven"]["lift"] and abs(float(k["L"]) - float(L["value"])) > TOL:
+        out.append("lift: keel L* %.9f, reference L* %.9f" % (k["L"], L["value"]))
+    if _num(k["lift_bound"]) and k["lift_bound"] < float(L["value"]) - TOL:
+        out.append("lift: keel's bound %.9f below the reference's feasible L %.9f"
+                   % (k["lift_bound"], L["value"]))
+    if k["L"] != L["value"]:
+        return out
+    # Stage 3 (continuity), the same windows.  Integers: exact.
+    C, C0 = ref["kept"], ref["kept0"]
+    if C is not None:
+        if C["bound"] is not None and k["kept"] > C["bound"]:
+            out.append("continuity: keel keeps %d, the reference proves at most %d"
+                       % (k["kept"], C["bound"]))
+        if k["proven"]["continuity"] and k["kept"] < C["value"]:
+            out.append("continuity: keel claims %d optimal, the reference keeps %d"
+                       % (k["kept"], C["value"]))
+        if C["proven"] and k["proven"]["continuity"] and k["cont_value"] != C["value"]:
+            out.append("continuity: keel %r, reference %d (both proven)"
+                       % (k["cont_value"], C["value"]))
+        if _num(k["cont_bound"]) and k["cont_bound"] < C["value"]:
+            out.append("continuity: keel's bound %r below the reference's feasible %d"
+                       % (k["cont_bound"], C["value"]))
+        k0 = k["k0"]
+        if k0 is not None and C0 is not None and _int(k0):
+            if C0["bound"] is not None and k0 > C0["bound"]:
+                out.append("kept_at_zero_tolerance %d, the reference proves at most %d"
+                           % (k0, C0["bound"]))
+            if k["proven"]["continuity"] and k0 > k["kept"]:
+                out.append("kept_at_zero_tolerance %d above the proven kept %d (a wider "
+                           "window cannot keep fewer)" % (k0, k["kept"]))
+            if C0["proven"] and k["status"] == "optimal" and k0 != C0["value"]:
+                out.append("kept_at_zero_tolerance %d with status optimal, the reference's "
+                           "optimum with tol 0 is %d" % (k0, C0["value"]))
+        if k["cont_value"] != C["value"]:
+            return out          # stage 4 holds kept >= a different stage-3 value
+    # Stage 4 (proximity): Z then R, the same windows and kept.
+    Zr, Rr = ref["Z"], ref["R"]
+    if Zr is not None:
+        if Zr["bound"] is not None and k["Z"] < Zr["bound"]:
+            out.append("proximity: keel's Z %d below the reference's proven bound %d"
+                       % (k["Z"], Zr["bound"]))
+        if k["proven"]["proximity"] and k["Z"] > Zr["value"]:
+            out.append("proximity: keel claims Z %d optimal, the reference found %d"
+                       % (k["Z"], Zr["value"]))
+        if Zr["proven"] and k["proven"]["proximity"] and k["Z"] != Zr["value"]:
+            out.append("proximity: keel Z* %d, reference Z* %d" % (k["Z"], Zr["value"]))
+        if _num(k["prox_bound"]) and k["prox_bound"] > Zr["value"]:
+            out.append("proximity: keel's bound %r above the reference's feasible Z %d"
+                       % (k["prox_bound"], Zr["value"]))
+        if Rr is not None and k["Z"] == Zr["value"]:
+            # Rooms second (lexicographic): read "optimal" as proven for (Z, R).
+            if Rr["bound"] is not None and k["R"] < Rr["bound"]:
+                out.append("proximity: keel's R %d below the reference's proven bound %d "
+                           "at Z = %d" % (k["R"], Rr["bound"], k["Z"]))
+            if Rr["proven"] and k["proven"]["proximity"] and k["R"] != Rr["value"]:
+                out.append("proximity: keel R %d, reference R* %d at Z* = %d (proximity "
+                           "proven minimises Z, then R)" % (k["R"], Rr["value"], k["Z"]))
+    return out
+
+
+# -------------------------------------------------------- one roster
+
+def check_infeasible(doc, rc, stderr, kind):
+    """keel on a roster no assignment can satisfy: exit 3 and a diagnosis."""
+    problems, named = [], []
+    if rc != 3:
+        text = "no assignment keeps the rules, but keel's exit code is %s" % _exit_text(rc)
+        if rc == 2:
+            text += "; keel rejected the roster as bad input: " + _stderr_head(stderr)
+        problems.append(text)
+    if rc == 3:
+        diag = doc.get("diagnosis") if isinstance(doc, dict) else None
+        if not isinstance(diag, list) or not diag:
+            problems.append("exit 3 but the JSON has no non-empty diagnosis list")
+        else:
+            for d in diag:
+                rule = d.get("rule") if isinstance(d, dict) else None
+                named.append(rule)
+                if rule not in RULE_NAMES:
+                    problems.append("diagnosis names rule %r, not one of %s"
+                                    % (rule, ", ".join(RULE_NAMES)))
+        if isinstance(doc, dict) and doc.get("status") not in (None, "infeasible"):
+            problems.append("exit 3 with status %r" % doc.get("status"))
+    note = None
+    if kind is not None and named and kind not in named:
+        note = "made infeasible by %s; keel's diagnosis names %s" % (kind, ", ".join(
+            str(x) for x in named))
+    return problems, named, note
+
+
+def check_one(job):
+    path, kind, tiny, keel, keel_seconds, highs_seconds = job
+    name = os.path.splitext(os.path.basename(path))[0]
+    out = {"name": name, "kind": kind, "tiny": tiny, "problems": [], "keel": None,
+           "ref": None, "notes": []}
+    try:
+        r = highs_model.load_rules(path)
+        if keel is not None:
+            rc, doc, stderr, ksecs = run_keel(keel, path, keel_seconds)
+            out["keel"] = {"rc": rc, "seconds": ksecs, "status": None}
+        t0 = time.monotonic()
+        ref, ref_problems = reference(r, tiny, highs_seconds)
+        out["ref"] = {"seconds": time.monotonic() - t0, "feasible": ref["feasible"],
+                      **{k: ref[k] for k in ("U", "L", "kept", "Z", "R")}}
+        out["problems"] += ref_problems
+        if kind is not None and ref["feasible"] is not False:
+            out["problems"].append("REFERENCE: made infeasible by %s, HiGHS says %s"
+                                   % (kind, ref["feasible"]))
+        if keel is None:
+            return out
+        kk = out["keel"]
+        if ref["feasible"] is None:
+            out["notes"].append("HiGHS could not decide feasibility; exit code not checked")
+            return out
+        if ref["feasible"] is False:
+            problems, named, note = check_infeasible(doc, rc, stderr, kind)
+            out["problems"] += problems
+            kk["status"] = "diag:" + ",".join(str(x) for x in named) if named else None
+            if note:
+                out["notes"].append(note)
+            if rc == 0 and isinstance(doc, dict):
+                # Whatever keel assigned must break a rule; say which.
+                sub = []
+                a = read_assignment(r, doc, sub)
+                if a is not None:
+                    bad = highs_model.violations(r, a)
+                    out["problems"].append("keel's assignment breaks %s"
+                                           % (bad[0] if bad else "no rule (reference wrong?)"))
+            return out
+        if rc != 0:
+            text = "keel exit code %s on a roster the reference solves" % _exit_text(rc)
+            if rc == 2:
+                text += "; keel rejected the roster as bad input: " + _stderr_head(stderr)
+            else:
+                text += ": " + _stderr_head(stderr)
+            out["problems"].append(text)
+            return out
+        if not isinstance(doc, dict):
+            out["problems"].append("keel printed no JSON object")
+            return out
+        problems, facts = check_report(r, doc)
+        out["problems"] += problems
+        if facts is None:
+            return out
+        kk.update(status=facts["status"], U=facts["U"], L=facts["L"],
+                  kept=facts["kept"] if r["stage3"] else None,
+                  Z=facts["Z"] if r["stage4"] else None, R=facts["R"] if r["stage4"] else None)
+        if ref["U"] is not None:
+            out["problems"] += compare(r, facts, ref)
+    except Exception as e:  # a broken roster or reference is a failure, not a crash
+        out["problems"].append("check crashed: %s: %s" % (type(e).__name__, e))
+    return out
+
+
+# -------------------------------------------------------- reference only
+
+def reference_one(job):
+    """HiGHS three ways (textbook model only, half and half, descent only)
+    against brute force (tiny) or against each other (unit size)."""
+    path, kind, tiny, _keel, _ks, highs_seconds = job
+    name = os.path.splitext(os.path.basename(path))[0]
+    out = {"name": name, "kind": kind, "tiny": tiny, "problems": [], "keel": None,
+           "ref": None, "notes": []}
+    try:
+        r = highs_model.load_rules(path)
+        t0 = time.monotonic()
+        bf = highs_model.brute_force_rules(r) if tiny else None
+        ways = {}
+        for share in (1.0, 0.5, 0.0):
+            h = highs_model.solve_rules(r, None if tiny else highs_seconds, share)
+            ways[share] = h
+        out["ref"] = {"seconds": time.monotonic() - t0, "feasible": ways[0.5]["feasible"]}
+        for key in ("U", "L", "kept", "Z", "R"):
+            s = ways[0.5]["stages"][{"U": "peak", "L": "lift", "kept": "continuity",
+                                     "Z": "proximity", "R": "rooms"}[key]]
+            out["ref"][key] = None if s is None or s["value"] is None else \
+                {"value": s["value"], "proven": s["status"] == "optimal"}
+        if kind is not None and ways[0.5]["feasible"] is not False:
+            out["problems"].append("made infeasible by %s, HiGHS says %s"
+                                   % (kind, ways[0.5]["feasible"]))
+        names = ("peak", "lift", "continuity", "continuity0", "proximity", "rooms")
+        bkeys = ("U", "L", "kept", "kept0", "Z", "R")
+        # How often the textbook model's "optimal" was a claim the descent
+        # refuted (see highs_model._run_stage).
+        out["claims"] = sum(1 for h in ways.values() for s in h["stages"].values()
+                            if s is not None and s.get("claim") == "model")
+        out["refuted"] = ["%s (share %g)" % (nm, share) for share, h in ways.items()
+                          for nm in names if h["stages"][nm] is not None
+                          and h["stages"][nm].get("refuted")]
+        out["notes"] += ["HiGHS's textbook model claimed a wrong optimum: " + x
+                         for x in out["refuted"]]
+        for share, h in ways.items():
+            if tiny:
+                if (bf is None) != (h["feasible"] is False):
+                    out["problems"].append("share %g: HiGHS feasible %s, brute force %s"
+                                           % (share, h["feasible"], bf is not None))
+                    continue
+                if bf is None:
+                    continue
+                for nm, bk in zip(names, bkeys):
+                    s = h["stages"][nm]
+                    got = None if s is None else (s["status"], s["value"])
+                    want = None if bf[bk] is None else ("optimal", bf[bk])
+                    if got != want:
+                        out["problems"].append("share %g: %s HiGHS %s, brute force %s"
+                                               % (share, nm, got, want))
+            else:
+                base = ways[0.5]
+                if (h["feasible"] is False) != (base["feasible"] is False):
+                    out["problems"].append("share %g: feasible %s, share 0.5: %s"
+                                           % (share, h["feasible"], base["feasible"]))
+                    continue
+                # Later stages compare only while the earlier ones agree.
+                for nm in names:
+                    a, b = h["stages"][nm], base["stages"][nm]
+                    if a is None or b is None:
+                        continue
+                    if a["status"] == b["status"] == "optimal":
+                        if a["value"] != b["value"]:
+                            out["problems"].append("share %g: %s %s, share 0.5: %s"
+                                                   % (share, nm, a["value"], b["value"]))
+                    if a["status"] != "optimal" or b["status"] != "optimal" \
+                            or a["value"] != b["value"]:
+                        break
+    except Exception as e:
+        out["problems"].append("check crashed: %s: %s" % (type(e).__name__, e))
+    return out
+
+
+# -------------------------------------------------------- output
+
+def _fmt(v):
+    if v is None:
+        return "-"
+    if isinstance(v, dict):
+        v, mark = v["value"], "" if v.get("proven", True) else "?"
+        return _fmt(v) + mark
+    if isinstance(v, Fraction):
+        return "%.6f" % v
+    return str(v)
+
+
+def line(res):
+    parts = ["%-16s" % res["name"]]
+    if res["kind"]:
+        parts.append("[infeasible: %s]" % res["kind"])
+    k, h = res["keel"], res["ref"]
+    if k is not None:
+        if k.get("U") is not None:
+            parts.append("keel %s U=%s L=%s kept=%s Z=%s R=%s (%.1fs)"
+                         % (k["status"], _fmt(k["U"]), _fmt(k["L"]), _fmt(k["kept"]),
+                            _fmt(k["Z"]), _fmt(k["R"]), k["seconds"]))
+        else:
+            parts.append("keel exit %s %s (%.1fs)" % (k["rc"], k["status"] or "", k["seconds"]))
+    if h is not None:
+        if h["feasible"]:
+            parts.append("ref U=%s L=%s kept=%s Z=%s R=%s (%.1fs)"
+                         % (_fmt(h["U"]), _fmt(h["L"]), _fmt(h["kept"]), _fmt(h["Z"]),
+                            _fmt(h["R"]), h["seconds"]))
+        else:
+            parts.append("ref %s (%.1fs)" % ("infeasible" if h["feasible"] is False
+                                            else "undecided", h["seconds"]))
+    parts.append("FAIL" if res["problems"] else "ok")
+    text = "  ".join(parts)
+    for n in res["notes"]:
+        text += "\n    note: " + n
+    for p in res["problems"]:
+        text += "\n    " + p
+    return text
+
+
+def main(argv=None):
+    ap = argparse.ArgumentParser(description="Check keel's roster rules and stages "
+                                 "against HiGHS and brute force")
+    ap.add_argument("keel", nargs="?", help="the keel executable")
+    ap.add_argument("--count", type=int, default=None,
+                    help="unit-size rosters (default 14; 10 with --reference-only)")
+    ap.add_argument("--tiny-count", type=int, default=None,
+                    help="tiny rosters checked by brute force too (default 120; 300 with "
+                         "--reference-only)")
+    ap.add_argument("--seed", type=int, default=2718)
+    ap.add_argument("--keel-seconds", type=float, default=10.0,
+                    help="keel --time-limit per roster (default 10)")
+    ap.add_argument("--highs-seconds", type=float, default=8.0,
+                    help="HiGHS seconds per stage on unit-size rosters (default 8)")
+    ap.add_argument("--jobs", type=int, default=min(2, os.cpu_count() or 1),
+                    help="rosters checked at once (default: 2, or 1 on one core)")
+    ap.add_argument("--keep", metavar="DIR", help="write the rosters here and keep them")
+    ap.add_argument("--reference-only", action="store_true",
+                    help="no keel: HiGHS three ways against brute force (tiny) and "
+                         "against itself (unit size)")
+    args = ap.parse_args(argv)
+    if args.keel is None and not args.reference_only:
+        ap.error("KEEL_EXE is required (or --reference-only)")
+    keel = None if args.reference_only else os.path.abspath(args.keel)
+    if args.count is None:
+        args.count = 10 if args.reference_only else 14
+    if args.tiny_count is None:
+        args.tiny_count = 300 if args.reference_only else 120
+
+    t0 = time.monotonic()
+    tmp = None
+    if args.keep:
+        out_dir = args.keep
+    else:
+        tmp = tempfile.TemporaryDirectory(prefix="keel-rules-")
+        out_dir = tmp.name
+    pre = gen_rosters.RULES_PRESETS
+    unit = gen_rosters.write_rules_rosters(out_dir, args.seed, args.count,
+                                           pre["rules"]["patients"], pre["rules"]["nurses"],
+                                           prefix="rules")
+    tiny = gen_rosters.write_rules_rosters(out_dir, args.seed, args.tiny_count,
+                                           pre["rules_tiny"]["patients"],
+                                           pre["rules_tiny"]["nurses"], prefix="rtiny")
+    gen_secs = time.monotonic() - t0
+    jobs = [(p, kind, False, keel, args.keel_seconds, args.highs_seconds) for p, kind in unit]
+    jobs += [(p, kind, True, keel, args.keel_seconds, args.highs_seconds) for p, kind in tiny]
+    print("# %d unit-size and %d tiny rosters (seed %d, made in %.0f s) in %s; HiGHS %g s "
+          "per stage, keel --time-limit %g, %d at once"
+          % (len(unit), len(tiny), args.seed, gen_secs, out_dir, args.highs_seconds,
+             args.keel_seconds, args.jobs), flush=True)
+    work = reference_one if args.reference_only else check_one
+    results = []
+    with concurrent.futures.ProcessPoolExecutor(max_workers=max(1, args.jobs)) as ex:
+        for res in ex.map(work, jobs):
+            results.append(res)
+            print(line(res), flush=True)
+
+    unit_res = [x for x in results if not x["tiny"] and x["ref"] and x["ref"]["feasible"]]
+    for key, label in (("U", "peak"), ("L", "lift"), ("kept", "continuity"),
+                       ("Z", "proximity"), ("R", "rooms")):
+        have = [x for x in unit_res if x["ref"].get(key) is not None]
+        print("# reference proved %s on %d of %d feasible unit-size rosters"
+              % (label, sum(1 for x in have if x["ref"][key]["proven"]), len(have)))
+    if args.reference_only:
+        print("# HiGHS's textbook model claimed %d stage optima; the descent refuted %d"
+              % (sum(x.get("claims", 0) for x in results),
+                 sum(len(x.get("refuted", [])) for x in results)))
+    if keel is not None:
+        kproved = sum(1 for x in results if not x["tiny"] and x["keel"]
+                      and x["keel"]["status"] == "optimal")
+        print("# keel reported optimal on %d of %d feasible unit-size rosters"
+              % (kproved, len(unit_res)))
+        rejected = sum(1 for x in results if x["keel"] and x["keel"]["rc"] == 2)
+        if rejected:
+            print("# keel rejected %d of %d rosters as bad input (exit 2): does this keel "
+                  "know the roster rules?" % (rejected, len(results)))
+    print("# %.0f seconds" % (time.monotonic() - t0))
+    if tmp is not None:
+        tmp.cleanup()
+    failed = sum(1 for x in results if x["problems"])
+    print("%d passed, %d failed" % (len(results) - failed, failed))
+    return 1 if failed else 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())

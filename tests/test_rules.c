@@ -1,0 +1,301 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * test_rules.c - the rules that join patients (patient ratios, high acuity,
+ * isolation separation, zones) and the stages after the balance
+ * (continuity, proximity), against exhaustive enumeration on small random
+ * rosters.  The enumeration checks the rules by their definitions in
+ * docs/model.md ("Hard rules"), written here again without keel's tally.
+ */
+#include <setjmp.h>
+#include <stdarg.h>
+#include <stddef.h>
+
+#include <cmocka.h>
+
+#include "solve_internal.h"
+#include "testutil.h"
+
+/* ---- The rules by their definitions ----------------------------------------- */
+
+static bool keeps_rules(const keel_workload *w, const int *a)
+{
+    for (size_t n = 0; n < w->nnurses; n++) {
+        int k = 0, high = 0, sides[3] = {0, 0, 0}, tightest = (int)w->npatients;
+        int zones = 0;
+        for (size_t p = 0; p < w->npatients; p++) {
+            if (a[p] != (int)n)
+                continue;
+            if (!keel_workload_eligible(w, p, n))
+                return false;
+            k++;
+            high += w->high_acuity[p];
+            sides[w->side[p]]++;
+            if (w->ratio_limit[p] < tightest)
+                tightest = w->ratio_limit[p];
+            bool seen = w->zone[p] < 0;
+            for (size_t q = 0; q < p && !seen; q++)
+                seen = a[q] == (int)n && w->zone[q] == w->zone[p];
+            zones += !seen;
+        }
+        if (k > w->max_patients[n] || k > tightest)
+            return false;
+        if (w->max_high_acuity != KEEL_ABSENT && high > w->max_high_acuity)
+            return false;
+        if (sides[KEEL_SIDE_PROTECTIVE] && sides[KEEL_SIDE_INFECTIOUS])
+            return false;
+        if (w->max_zones != KEEL_ABSENT && zones > w->max_zones)
+            return false;
+    }
+    return true;
+}
+
+/* ---- Exhaustive enumeration of the four stages ------------------------------- */
+
+enum pass { PASS_BALANCE, PASS_KEEP, PASS_NEAR };
+
+typedef struct best {
+    const keel_workload *w;
+    int *a;
+    enum pass pass;
+    bool found;
+    keel_ratio peak, lift;
+    long long *lo, *hi; /* tolerance windows of care, passes KEEP and NEAR */
+    long long kept;     /* best kept (KEEP); required kept (NEAR) */
+    long long zones, rooms;
+    bool near_found;
+} best;
+
+static bool inside(const best *b)
+{
+    const keel_workload *w = b->w;
+    for (size_t n = 0; n < w->nnurses; n++) {
+        if (!keel_workload_counted(w, n))
+            continue;
+        long long care = 0;
+        for (size_t p = 0; p < w->npatients; p++)
+            if (b->a[p] == (int)n)
+                care += w->care_minutes[p];
+        if (care < b->lo[n] || care > b->hi[n])
+            return false;
+    }
+    return true;
+}
+
+static void leaf(best *b)
+{
+    const keel_workload *w = b->w;
+    if (!keeps_rules(w, b->a))
+        return;
+    if (b->pass == PASS_BALANCE) {
+        keel_ratio peak = keel_solve_peak(w, b->a), lift = keel_solve_lift(w, b->a);
+        int by_peak = b->found ? keel_ratio_cmp(peak, b->peak) : -1;
+        if (by_peak < 0 || (by_peak == 0 && keel_ratio_cmp(lift, b->lift) > 0)) {
+            b->peak = peak;
+            b->lift = lift;
+        }
+        b->found = true;
+        return;
+    }
+    if (!inside(b))
+        return;
+    long long kept = keel_solve_kept(w, b->a);
+    if (b->pass == PASS_KEEP) {
+        if (kept > b->kept)
+            b->kept = kept;
+        return;
+    }
+    long long zones, rooms;
+    keel_solve_spread(w, b->a, &zones, &rooms);
+    if (kept >= b->kept &&
+        (!b->near_found || zones < b->zones || (zones == b->zones && rooms < b->rooms))) {
+        b->zones = zones;
+        b->rooms = rooms;
+        b->near_found = true;
+    }
+}
+
+static void visit(best *b, size_t p)
+{
+    if (p == b->w->npatients) {
+        leaf(b);
+        return;
+    }
+    for (size_t n = 0; n < b->w->nnurses; n++) {
+        b->a[p] = (int)n;
+        visit(b, p + 1);
+    }
+}
+
+/* floor and ceil of x / d, d > 0 */
+static long long fdiv(long long x, long long d)
+{
+    return x >= 0 ? x / d : -((-x + d - 1) / d);
+}
+
+static void windows(best *b, long long t)
+{
+    const keel_workload *w = b->w;
+    const long long S = KEEL_TOLERANCE_SCALE;
+    for (size_t n = 0; n < w->nnurses; n++) {
+        long long cap = w->capacity_minutes[n], duty = w->duty_minutes[n];
+        b->hi[n] = fdiv((b->peak.num * S + t * b->peak.den) * cap, b->peak.den * S) - duty;
+        b->lo[n] = -fdiv(-((b->lift.num * S - t * b->lift.den) * cap), b->lift.den * S) - duty;
+    }
+}
+
+/* ---- Random small rosters with every rule --------------------------------- */
+
+static tu_case *random_rules_case(uint64_t *seed)
+{
+    size_t nn = (size_t)tu_range(seed, 1, 4), np = (size_t)tu_range(seed, 0, 8);
+    tu_case *c = tu_case_new(nn, np);
+    keel_workload *w = &c->w;
+    for (size_t n = 0; n < nn; n++) {
+        w->capacity_minutes[n] = tu_range(seed, 0, 2) == 0 ? 420 : 660;
+        w->duty_minutes[n] = tu_range(seed, 0, 3) == 0 ? tu_range(seed, 1, 12) * 10 : 0;
+        int kind = tu_range(seed, 0, 9);
+        w->max_patients[n] = kind < 4 ? (int)np : kind == 9 ? 0 : tu_range(seed, 1, 4);
+        if (tu_range(seed, 0, 4) == 0)
+            tu_add_skill(c, n, "chemo");
+    }
+    w->max_high_acuity = tu_range(seed, 0, 2) ? tu_range(seed, 0, 2) : KEEL_ABSENT;
+    w->max_zones = tu_range(seed, 0, 1) ? 1 : KEEL_ABSENT;
+    w->nzones = 2;
+    w->nrooms = 3;
+    w->tolerance = (long long[]){0, 50000, 200000}[tu_range(seed, 0, 2)];
+    bool sides[3] = {false, false, false};
+    for (size_t p = 0; p < np; p++) {
+        w->care_minutes[p] = tu_range(seed, 1, 14) * 30;
+        /* As the workload does: a ratio never above the census. */
+        w->ratio_limit[p] = tu_range(seed, 0, 4) == 0 ? tu_range(seed, 1, 3) : (int)np;
+        if (w->ratio_limit[p] > (int)np)
+            w->ratio_limit[p] = (int)np;
+        w->high_acuity[p] = w->max_high_acuity != KEEL_ABSENT && tu_range(seed, 0, 2) == 0;
+        w->side[p] =
+            (signed char)(tu_range(seed, 0, 3) < 2 ? KEEL_SIDE_NONE : tu_range(seed, 1, 2));
+        sides[w->side[p]] = true;
+        w->zone[p] = tu_range(seed, -1, 1);
+        w->room[p] = tu_range(seed, -1, 2);
+        w->previous[p] = tu_range(seed, 0, 2) ? tu_range(seed, -1, (int)nn - 1) : -1;
+        w->ncontinuity += w->previous[p] >= 0;
+        if (tu_range(seed, 0, 5) == 0)
+            tu_add_need(c, p, "chemo");
+    }
+    bool ratios = false;
+    for (size_t p = 0; p < np; p++)
+        ratios = ratios || w->ratio_limit[p] < (int)np;
+    w->isolation_rule = sides[KEEL_SIDE_PROTECTIVE] && sides[KEEL_SIDE_INFECTIOUS];
+    w->zones_rule = w->max_zones != KEEL_ABSENT;
+    w->joined_rules =
+        ratios || w->max_high_acuity != KEEL_ABSENT || w->isolation_rule || w->zones_rule;
+    tu_refresh(c);
+    return c;
+}
+
+static keel_solution *solve(tu_case *c)
+{
+    keel_solution *s = NULL;
+    keel_error err;
+    keel_error_init(&err);
+    keel_solve_options opt = {.method = "ilp", .time_limit_ms = 60000};
+    assert_int_equal(keel_solve(&c->roster, &c->w, &opt, &s, &err), KEEL_OK);
+    keel_error_fini(&err);
+    return s;
+}
+
+static const keel_stage *stage(const keel_solution *s, const char *name)
+{
+    for (size_t i = 0; i < s->nstages; i++)
+        if (strcmp(s->stages[i].name, name) == 0)
+            return &s->stages[i];
+    return NULL;
+}
+
+static void test_every_stage_matches_exhaustive_enumeration(void **state)
+{
+    (void)state;
+    /* Source: exhaustive enumeration of every assignment (all nurses for each
+     * patient), each checked against the rules' definitions above. */
+    uint64_t seed = 1969;
+    int feasible = 0, infeasible = 0;
+    for (int round = 0; round < 1000; round++) {
+        tu_case *c = random_rules_case(&seed);
+        keel_workload *w = &c->w;
+        size_t nn = w->nnurses;
+        best b = {.w = w, .pass = PASS_BALANCE};
+        b.a = calloc(w->npatients + 1, sizeof *b.a);
+        b.lo = calloc(nn, sizeof *b.lo);
+        b.hi = calloc(nn, sizeof *b.hi);
+        visit(&b, 0);
+        keel_solution *s = solve(c);
+        if (!b.found) {
+            infeasible++;
+            assert_int_equal(s->status, KEEL_SOLVE_INFEASIBLE);
+            assert_true(s->diagnoses.n > 0);
+            for (size_t i = 0; i < s->diagnoses.n; i++)
+                assert_non_null(strstr("skill patient_limit law_limit patient_ratio high_acuity "
+                                       "isolation zones lock avoid",
+                                       s->diagnoses.items[i].rule));
+        } else {
+            feasible++;
+            assert_int_equal(s->status, KEEL_SOLVE_OPTIMAL);
+            assert_int_equal(s->diagnoses.n, 0);
+            assert_true(keeps_rules(w, s->nurse_of));
+            assert_true(stage(s, "peak")->value == keel_ratio_value(b.peak));
+            assert_true(stage(s, "lift")->value == keel_ratio_value(b.lift));
+            windows(&b, w->tolerance);
+            b.a[0] = 0;
+            b.pass = PASS_KEEP;
+            b.kept = 0;
+            visit(&b, 0);
+            if (w->ncontinuity > 0) {
+                assert_non_null(stage(s, "continuity"));
+                assert_true(stage(s, "continuity")->value == (double)b.kept);
+                assert_int_equal(s->continuity.kept, b.kept);
+                assert_int_equal(keel_solve_kept(w, s->nurse_of), b.kept);
+            } else {
+                assert_null(stage(s, "continuity"));
+            }
+            b.pass = PASS_NEAR;
+            visit(&b, 0);
+            assert_true(b.near_found);
+            long long zones, rooms;
+            keel_solve_spread(w, s->nurse_of, &zones, &rooms);
+            bool near = false;
+            for (size_t p = 0; p < w->npatients; p++)
+                near = near || w->zone[p] >= 0 || w->room[p] >= 0;
+            if (near) {
+                assert_int_equal(s->proximity.zones, b.zones);
+                assert_int_equal(s->proximity.rooms, b.rooms);
+                assert_int_equal(zones, b.zones);
+                assert_int_equal(rooms, b.rooms);
+            }
+            /* The final plan stays within the tolerance of stages 1 and 2. */
+            for (size_t n = 0; n < nn; n++) {
+                if (!keel_workload_counted(w, n))
+                    continue;
+                long long care = 0;
+                for (size_t p = 0; p < w->npatients; p++)
+                    if (s->nurse_of[p] == (int)n)
+                        care += w->care_minutes[p];
+                assert_true(care >= b.lo[n] && care <= b.hi[n]);
+            }
+        }
+        keel_solution_free(s);
+        free(b.a);
+        free(b.lo);
+        free(b.hi);
+        tu_case_free(c);
+    }
+    /* The generator must exercise both outcomes. */
+    assert_true(feasible > 300);
+    assert_true(infeasible > 30);
+}
+
+int main(void)
+{
+    const struct CMUnitTest tests[] = {
+        cmocka_unit_test(test_every_stage_matches_exhaustive_enumeration),
+    };
+    return cmocka_run_group_tests_name("rules", tests, NULL, NULL);
+}
