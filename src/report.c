@@ -73,3 +73,25 @@ void keel_write_quoted(FILE *out, const char *s)
     }
     fputc('"', out);
 }
+
+void keel_write_wrapped(FILE *out, const char *indent, const char *text, size_t width)
+{
+    size_t room = width > strlen(indent) ? width - strlen(indent) : 1;
+    while (*text) {
+        while (*text == ' ')
+            text++;
+        if (!*text)
+            break;
+        size_t len = strlen(text), cut = len;
+        if (len > room) {
+            cut = room;
+            while (cut > 0 && text[cut] != ' ')
+                cut--;
+            if (cut == 0) /* one long word */
+                for (cut = room; text[cut] && text[cut] != ' '; cut++)
+                    ;
+        }
+        fprintf(out, "%s%.*s\n", indent, (int)cut, text);
+        text += cut;
+    }
+}

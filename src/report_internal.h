@@ -22,4 +22,8 @@ keel_status keel_report_yaml(const keel_report *report, FILE *out);
 /* Writes s as a double-quoted string with JSON escapes (valid YAML too). */
 void keel_write_quoted(FILE *out, const char *s);
 
+/* Writes text as lines of at most width columns (words longer than a line
+ * stand alone), each starting with indent. */
+void keel_write_wrapped(FILE *out, const char *indent, const char *text, size_t width);
+
 #endif

@@ -167,6 +167,22 @@ static void write_staffing(FILE *out, const keel_report *rep)
             "\"capacity_minutes\": %ld, \"utilisation\": %.12g, \"nurses_needed\": %.12g},\n",
             rep->workload->npatients, m->nnurses, m->ncounted, m->care_minutes, m->duty_minutes,
             m->capacity_minutes, m->unit_utilisation, m->nurses_needed);
+    const keel_staffing *st = rep->staffing;
+    if (!st)
+        return;
+    fprintf(out,
+            "  \"staffing_needs\": {\"by_care_minutes\": %d, \"by_limits\": %d, "
+            "\"ward_minimum\": %d, \"needed\": %d, \"binding\": \"%s\", \"slack\": %d, "
+            "\"nurse_hours_per_patient\": %.12g, \"ratio_table\": ",
+            st->by_minutes, st->by_limits, st->ward_minimum, st->needed,
+            keel_staffing_need_name(st->binding), st->slack, st->hours_per_patient);
+    if (st->table) {
+        fprintf(out, "{\"name\": \"%s\", \"encoded\": \"%s\", \"shift_class\": \"%s\"}",
+                st->table->name, st->table->encoded, keel_shift_class_name(st->shift_class));
+    } else {
+        fputs("null", out);
+    }
+    fputs("},\n", out);
 }
 
 keel_status keel_report_json(const keel_report *rep, FILE *out)

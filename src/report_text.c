@@ -156,18 +156,24 @@ static void write_proof(FILE *out, const keel_solution *s)
     fputc('\n', out);
 }
 
-static void write_staffing(FILE *out, const keel_metrics *m)
+static void write_staffing(FILE *out, const keel_metrics *m, const keel_staffing *st)
 {
     fprintf(out, "Staffing\n  care %ld min + duty %ld min against %ld min of nurse time: %.1f %%\n",
             m->care_minutes, m->duty_minutes, m->capacity_minutes, 100.0 * m->unit_utilisation);
-    fprintf(out, "  %.1f nurses needed at full utilisation; %zu on shift take patients\n",
-            m->nurses_needed, m->ncounted);
+    if (!st)
+        fprintf(out, "  %.1f nurses needed at full utilisation; %zu on shift take patients\n",
+                m->nurses_needed, m->ncounted);
     long work = m->care_minutes + m->duty_minutes;
     if (work > m->capacity_minutes)
         fprintf(out,
                 "  The work exceeds the nurses' time by %ld min: every assignment leaves "
                 "someone over 100 %%.\n",
                 work - m->capacity_minutes);
+    if (st) {
+        char buf[1024];
+        keel_staffing_format(st, buf, sizeof buf);
+        keel_write_wrapped(out, "  ", buf, 78);
+    }
     fputc('\n', out);
 }
 
@@ -229,7 +235,7 @@ keel_status keel_report_text(const keel_report *rep, FILE *out)
             fputs("\n\n", out);
         }
     }
-    write_staffing(out, rep->metrics);
+    write_staffing(out, rep->metrics, rep->staffing);
     fprintf(out, "%s\n", KEEL_CAUTION);
     return KEEL_OK;
 }

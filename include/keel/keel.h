@@ -5,11 +5,13 @@
 
 #include "keel/error.h"
 #include "keel/finding.h"
+#include "keel/law.h"
 #include "keel/metrics.h"
 #include "keel/plan.h"
 #include "keel/report.h"
 #include "keel/roster.h"
 #include "keel/solve.h"
+#include "keel/staffing.h"
 #include "keel/workload.h"
 
 /* The library's version, "MAJOR.MINOR.PATCH". */

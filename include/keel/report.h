@@ -17,6 +17,7 @@
 #include "keel/error.h"
 #include "keel/finding.h"
 #include "keel/metrics.h"
+#include "keel/staffing.h"
 #include "keel/roster.h"
 #include "keel/solve.h"
 #include "keel/workload.h"
@@ -44,6 +45,7 @@ typedef struct keel_report {
     const keel_metrics *metrics;     /* of nurse_of (of no assignment when nurse_of is NULL) */
     const keel_solution *solution;   /* assign: the solve; check: the best-possible solve or NULL */
     const keel_findings *violations; /* check: rules the given plan breaks, or NULL */
+    const keel_staffing *staffing;   /* the staffing view, or NULL */
 } keel_report;
 
 /* Writes the report in the named format to out.  Statuses: KEEL_OK,

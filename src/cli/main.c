@@ -216,6 +216,7 @@ typedef struct state {
     keel_workload *workload;
     keel_solution *solution;
     keel_metrics *metrics;
+    keel_staffing staffing;
     int *plan;
     keel_findings violations;
 } state;
@@ -236,6 +237,8 @@ static keel_status load(state *s, const options *opt)
     keel_status rc = keel_roster_load(opt->roster, &s->roster, &s->err);
     if (!rc)
         rc = keel_workload_compute(s->roster, &s->workload, &s->err);
+    if (!rc)
+        rc = keel_staffing_compute(s->roster, s->workload, &s->staffing, &s->err);
     return rc;
 }
 
@@ -293,7 +296,8 @@ static int run_assign(const options *opt)
                        .workload = s.workload,
                        .nurse_of = s.solution->nurse_of,
                        .metrics = s.metrics,
-                       .solution = s.solution};
+                       .solution = s.solution,
+                       .staffing = &s.staffing};
     bool infeasible = s.solution->status == KEEL_SOLVE_INFEASIBLE;
     if (infeasible) {
         fprintf(stderr, "keel assign: %s: no valid assignment exists\n", opt->roster);
@@ -347,7 +351,8 @@ static int run_check(const options *opt)
                        .nurse_of = complete ? s.plan : NULL,
                        .metrics = s.metrics,
                        .solution = s.solution,
-                       .violations = &s.violations};
+                       .violations = &s.violations,
+                       .staffing = &s.staffing};
     bool infeasible = s.solution->status == KEEL_SOLVE_INFEASIBLE;
     int code = write_report(opt, &rep);
     state_fini(&s);

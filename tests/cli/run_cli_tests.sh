@@ -100,7 +100,31 @@ expect 0 "check as json" -- "$keel" check "$data/plan-breaks-rules.yaml" --forma
 has "$work/out" '"violations": [' "json lists the violations"
 expect 0 "check without a plan" -- "$keel" check "$examples/medsurg-day.yaml"
 has "$work/out" "Care minutes per patient" "check shows care minutes"
-has "$work/out" "nurses needed at full utilisation" "check shows nurses needed"
+has "$work/out" "nurses take patients" "check shows the nurses needed against those on shift"
+
+# The rules that join patients: a diagnosis names the rule; a plan check
+# names every rule a plan breaks; a ward minimum is a staffing check.
+expect 3 "too many high-acuity patients" -- "$keel" assign "$data/high-acuity-short.yaml" --format json
+has "$work/out" '"rule": "high_acuity"' "the diagnosis names high_acuity"
+has "$work/out" "1 more nurse who may take them is needed" "the diagnosis says what is short"
+expect 0 "check a plan that breaks the joining rules" -- "$keel" check "$data/plan-breaks-joined-rules.yaml"
+has "$work/out" "[law_limit] A has 6 patients: exceeds the limit of california (1:5 for med-surg) as encoded on 2026-12-02" "check names the table's limit as encoded"
+has "$work/out" "[patient_ratio] p4 is a 1:2 patient" "check names a patient's own ratio"
+has "$work/out" "[high_acuity] A has 2 high-acuity patients" "check names high acuity"
+has "$work/out" "[isolation] A has 1 protective-isolation patient" "check names isolation"
+has "$work/out" "[zones] A has patients in 2 zones" "check names zones"
+has "$work/out" "which need n95 (policy.isolation_needs)" "check names a precaution's competency"
+# Source: Queensland Hospital and Health Boards Regulation 2012, Part 6A: the
+# state's worked example, 28 patients need 7 nurses on morning and afternoon
+# shifts; 11:00-19:00 is an afternoon shift (s 30A).
+expect 0 "a ward short of its minimum still gets an assignment" -- "$keel" assign "$data/ward-minimum.yaml" --format json
+has "$work/out" '"ward_minimum": 7, "needed": 7, "binding": "ward minimum", "slack": -1' "the staffing view names the ward minimum and the shortfall"
+has "$work/out" '"shift_class": "afternoon"' "11:00-19:00 is an afternoon shift"
+expect 0 "every stage as json" -- "$keel" assign "$data/../data/every-rule.yaml" --format json
+has "$work/out" '"name": "continuity"' "json has the continuity stage"
+has "$work/out" '"proximity": {"zones": ' "json has the proximity totals"
+has "$work/out" '"continuity": {"kept": ' "json has the continuity totals"
+has "$work/out" '"staffing_needs": {' "json has the staffing needs"
 
 # The greedy method is never called optimal unless its bound proves it.
 expect 0 "greedy method" -- "$keel" assign "$examples/medsurg-day.yaml" --method greedy --format json
