@@ -85,7 +85,8 @@ void keel_write_wrapped(FILE *out, const char *indent, const char *text, size_t 
         size_t len = strlen(text), cut = len;
         if (len > room) {
             cut = room;
-            while (cut > 0 && text[cut] != ' ')
+            /* Break at a space, but not before a lone "%". */
+            while (cut > 0 && (text[cut] != ' ' || text[cut + 1] == '%'))
                 cut--;
             if (cut == 0) /* one long word */
                 for (cut = room; text[cut] && text[cut] != ' '; cut++)

@@ -128,9 +128,16 @@ static void write_imbalance(FILE *out, const keel_metrics *m)
 
 static void write_stages(FILE *out, const keel_solution *s)
 {
-    if (s->nstages > 0)
-        fprintf(out, "  \"bound\": {\"max_utilisation\": %.12g, \"gap\": %.12g},\n",
-                s->stages[0].bound, s->stages[0].gap);
+    if (s->nstages > 0) {
+        fprintf(out, "  \"bound\": {\"max_utilisation\": %.12g, \"gap\": %.12g", s->stages[0].bound,
+                s->stages[0].gap);
+        if (s->bound_reason.text) {
+            fprintf(out, ", \"reason\": \"%s\", \"simple_floor\": %.12g, \"explanation\": ",
+                    s->bound_reason.kind, s->bound_reason.floor);
+            keel_write_quoted(out, s->bound_reason.text);
+        }
+        fputs("},\n", out);
+    }
     fputs("  \"stages\": [", out);
     for (size_t i = 0; i < s->nstages; i++) {
         const keel_stage *st = &s->stages[i];

@@ -5,8 +5,10 @@
  * id and bed only (names stay out of anything that may be posted).
  */
 #include <stdio.h>
+#include <stdlib.h>
 
 #include "keel/keel.h"
+#include "alloc.h"
 #include "report_internal.h"
 
 static void write_heading(FILE *out, const keel_report *rep)
@@ -133,17 +135,27 @@ static void write_proof(FILE *out, const keel_solution *s)
         else
             write_count_stage(out, st, "proximity", "zones", "the best possible is at least");
     }
+    if (s->bound_reason.text) {
+        char *line = keel_asprintf("What sets the bound: %s.", s->bound_reason.text);
+        if (line)
+            keel_write_wrapped(out, "  ", line, 78);
+        free(line);
+    }
     if (s->continuity.applies) {
-        fprintf(out, "  Continuity: %ld of %ld patients keep their nurse from the last shift",
-                s->continuity.kept, s->continuity.candidates);
+        char zero[160] = "";
         if (s->continuity.tolerance > 0 && s->continuity.kept_at_zero >= 0)
-            fprintf(out,
-                    "; at zero balance tolerance %s%ld, so the tolerance of %.1f points "
-                    "bought %s%ld",
-                    s->continuity.zero_proven ? "" : "at least ", s->continuity.kept_at_zero,
-                    100.0 * s->continuity.tolerance, s->continuity.zero_proven ? "" : "at most ",
-                    s->continuity.kept - s->continuity.kept_at_zero);
-        fputs(".\n", out);
+            snprintf(zero, sizeof zero,
+                     "; at zero balance tolerance %s%ld, so the tolerance of %.1f points bought "
+                     "%s%ld",
+                     s->continuity.zero_proven ? "" : "at least ", s->continuity.kept_at_zero,
+                     100.0 * s->continuity.tolerance, s->continuity.zero_proven ? "" : "at most ",
+                     s->continuity.kept - s->continuity.kept_at_zero);
+        char *line = keel_asprintf("Continuity: %ld of %ld patients keep their nurse from the "
+                                   "last shift%s.",
+                                   s->continuity.kept, s->continuity.candidates, zero);
+        if (line)
+            keel_write_wrapped(out, "  ", line, 78);
+        free(line);
     }
     if (s->proximity.applies)
         fprintf(out, "  Proximity: %ld zone%s and %ld room%s across the nurses' assignments.\n",

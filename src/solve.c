@@ -204,6 +204,7 @@ void keel_solution_free(keel_solution *s)
     if (!s)
         return;
     free(s->nurse_of);
+    free(s->bound_reason.text);
     keel_findings_fini(&s->diagnoses);
     free(s);
 }
@@ -317,6 +318,8 @@ keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
     bool follows = w->ncontinuity > 0 || w->nzones > 0 || w->nrooms > 0;
     long long balance_deadline = follows ? started + limit * FOLLOW_START_TENTHS / 10 : deadline;
     rc = method->solve(w, balance_deadline, s, err);
+    if (!rc && keel_solve_explain_bound(roster, w, s->stages[0].bound, s))
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
     if (!rc)
         rc = keel_solve_follow(w, method->solve == keel_method_ilp, deadline, s, err);
     if (rc)

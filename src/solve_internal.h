@@ -168,6 +168,13 @@ keel_status keel_diagnose_rules(const keel_roster *r, const keel_workload *w, lo
 keel_status keel_solve_follow(const keel_workload *w, bool exact, long long deadline_ms,
                               keel_solution *sol, keel_error *err);
 
+/* solve_bound.c: fills sol->bound_reason: which simple floor (a nurse's
+ * duty, one patient, the unit's average, a group of patients with few
+ * nurses) reaches bound, stage 1's proven limit, or, when none does, that
+ * whole patients set it.  Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
+keel_status keel_solve_explain_bound(const keel_roster *r, const keel_workload *w, double bound,
+                                     keel_solution *sol);
+
 /* Monotonic wall clock in milliseconds. */
 long long keel_clock_ms(void);
 

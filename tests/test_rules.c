@@ -292,10 +292,68 @@ static void test_every_stage_matches_exhaustive_enumeration(void **state)
     assert_true(infeasible > 30);
 }
 
+/* The bound explanations, on cases worked by hand (the floors of
+ * docs/model.md "What sets the bound"). */
+static void test_the_bound_is_explained_by_its_reason(void **state)
+{
+    (void)state;
+    /* Four equal patients on two equal nurses: U* = 200/660 = the unit's
+     * average 400/1320. */
+    tu_case *c = tu_case_new(2, 4);
+    for (size_t p = 0; p < 4; p++)
+        c->w.care_minutes[p] = 100;
+    keel_solution *s = solve(c);
+    assert_string_equal(s->bound_reason.kind, "average");
+    assert_non_null(strstr(s->bound_reason.text, "over the nurses' 1320 min"));
+    keel_solution_free(s);
+    tu_case_free(c);
+
+    /* Three chemo patients of 200 min; only N1 of three nurses has chemo:
+     * U* = 600/660, the group's floor; the average is only 660/1980. */
+    c = tu_case_new(3, 4);
+    tu_add_skill(c, 0, "chemo");
+    for (size_t p = 0; p < 3; p++) {
+        c->w.care_minutes[p] = 200;
+        tu_add_need(c, p, "chemo");
+    }
+    c->w.care_minutes[3] = 60;
+    tu_refresh(c);
+    s = solve(c);
+    assert_string_equal(s->bound_reason.kind, "group");
+    assert_non_null(strstr(s->bound_reason.text, "the 3 patients who need chemo"));
+    assert_non_null(strstr(s->bound_reason.text, "can only go to N1"));
+    keel_solution_free(s);
+    tu_case_free(c);
+
+    /* One 600-minute patient and two of 30 on two nurses: U* = 600/660,
+     * the patient alone. */
+    c = tu_case_new(2, 3);
+    c->w.care_minutes[0] = 600;
+    c->w.care_minutes[1] = 30;
+    c->w.care_minutes[2] = 30;
+    s = solve(c);
+    assert_string_equal(s->bound_reason.kind, "patient");
+    assert_non_null(strstr(s->bound_reason.text, "P1 alone needs 600 min"));
+    keel_solution_free(s);
+    tu_case_free(c);
+
+    /* Three patients of 300 on two nurses: the average is 900/1320, but
+     * whole patients put two on one nurse, 600/660. */
+    c = tu_case_new(2, 3);
+    for (size_t p = 0; p < 3; p++)
+        c->w.care_minutes[p] = 300;
+    s = solve(c);
+    assert_string_equal(s->bound_reason.kind, "indivisible");
+    assert_true(s->stages[0].value == 600.0 / 660.0);
+    keel_solution_free(s);
+    tu_case_free(c);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_every_stage_matches_exhaustive_enumeration),
+        cmocka_unit_test(test_the_bound_is_explained_by_its_reason),
     };
     return cmocka_run_group_tests_name("rules", tests, NULL, NULL);
 }

@@ -89,7 +89,12 @@ typedef struct keel_solution {
         long zones;   /* zones per nurse, summed over nurses */
         long rooms;   /* rooms per nurse, summed over nurses */
     } proximity;
-    double seconds;          /* wall time of the whole solve */
+    struct {
+        const char *kind; /* "duty", "patient", "average", "group", "indivisible"; NULL: none */
+        double floor;     /* the largest simple floor on the heaviest utilisation */
+        char *text;       /* what sets the bound on the heaviest load, in plain words */
+    } bound_reason;       /* what sets stage 1's bound (not for INFEASIBLE) */
+    double seconds;       /* wall time of the whole solve */
     keel_findings diagnoses; /* why no assignment exists (INFEASIBLE only) */
 } keel_solution;
 

@@ -316,7 +316,7 @@ def _cap(doc, value):
     return value if t is None else min(value, t)
 
 
-def _rules_nurses(rng, count, shift, roles):
+def _rules_nurses(rng, count, shift, roles, orientee_ok=True):
     holding = {s: rng.uniform(0.55, 0.9) for s in SKILLS}
     n95 = rng.uniform(0.5, 0.9)
     nurses = []
@@ -344,7 +344,7 @@ def _rules_nurses(rng, count, shift, roles):
         if count == 2 and roles["charge"]["max_patients"] == 0:
             roles["charge"]["max_patients"] = 2
     # An orientee sharing a staff nurse's assignment.
-    if count >= 3 and rng.random() < 0.35:
+    if count >= 3 and orientee_ok and rng.random() < 0.35:
         ori = nurses[-1]
         ori["role"] = "orientee"
         ori["preceptor"] = rng.choice([n["id"] for n in nurses[:-1] if "role" not in n])
@@ -396,11 +396,14 @@ def _rules_base(rng, name, patients_range, nurses_range):
     scale = {k: 5 * round(v * fraction / 5) for k, v in rng.choice(ACUITY_SCALES).items()}
     extras_scale = {k: 5 * round(v * fraction / 5) for k, v in rng.choice(EXTRA_SCALES).items()}
     npatients = rng.randint(*patients_range)
-    nnurses = round(npatients / rng.uniform(3.5, 5.0))
+    # About 3-4.5 patients per nurse on shift (the charge nurse and an
+    # orientee take few or none), within the requested range.
+    nnurses = round(npatients / rng.uniform(3.0, 4.5))
     nnurses = max(nurses_range[0], min(nurses_range[1], nnurses))
     roles = {}
     policy = {"acuity_minutes": dict(scale), "extra_minutes": dict(extras_scale)}
-    nurses = _rules_nurses(rng, nnurses, shift, roles)
+    nurses = _rules_nurses(rng, nnurses, shift, roles,
+                           orientee_ok=npatients / max(1, nnurses - 2) <= 5.5)
     if roles:
         policy["roles"] = roles
     doc = {"version": 1, "name": name, "unit": {"name": "Invented test unit"},
@@ -414,7 +417,7 @@ def _rules_base(rng, name, patients_range, nurses_range):
         policy["ratio_table"] = "california"
     elif rng.random() < 0.8:
         doc["unit"]["type"] = rng.choice(UNIT_TYPES)
-    if rng.random() < 0.6:
+    if rng.random() < 0.8:
         policy["max_patients"] = _cap(doc, max(3, -(-npatients // max(1, counted))
                                                + rng.randint(0, 1)))
     for n in nurses:
