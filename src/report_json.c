@@ -111,6 +111,12 @@ static void write_patients(FILE *out, const keel_report *rep)
             keel_write_quoted(out, r->nurses[n].id);
         else
             fputs("null", out);
+        if (rep->explanation && n >= 0) {
+            fprintf(out, ", \"why\": {\"reason\": \"%s\", \"text\": ",
+                    keel_reason_name(rep->explanation->reason[p]));
+            keel_write_quoted(out, rep->explanation->text[p]);
+            fputc('}', out);
+        }
         fputc('}', out);
     }
     fputs(r->npatients ? "\n  ],\n" : "],\n", out);

@@ -49,6 +49,8 @@ static void write_patient_line(FILE *out, const keel_report *rep, size_t p)
     if (rep->nurse_of && w->previous[p] >= 0)
         fputs(rep->nurse_of[p] == w->previous[p] ? "  kept" : "  new nurse", out);
     fputc('\n', out);
+    if (rep->explanation && rep->nurse_of)
+        fprintf(out, "        why: %s\n", rep->explanation->text[p]);
 }
 
 static void write_nurse_blocks(FILE *out, const keel_report *rep)

@@ -4,6 +4,7 @@
 #define KEEL_KEEL_H
 
 #include "keel/error.h"
+#include "keel/explain.h"
 #include "keel/finding.h"
 #include "keel/law.h"
 #include "keel/metrics.h"

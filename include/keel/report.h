@@ -16,6 +16,7 @@
 
 #include "keel/error.h"
 #include "keel/finding.h"
+#include "keel/explain.h"
 #include "keel/metrics.h"
 #include "keel/staffing.h"
 #include "keel/roster.h"
@@ -46,6 +47,7 @@ typedef struct keel_report {
     const keel_solution *solution;   /* assign: the solve; check: the best-possible solve or NULL */
     const keel_findings *violations; /* check: rules the given plan breaks, or NULL */
     const keel_staffing *staffing;   /* the staffing view, or NULL */
+    const keel_explanation *explanation; /* why each patient went where, or NULL */
 } keel_report;
 
 /* Writes the report in the named format to out.  Statuses: KEEL_OK,

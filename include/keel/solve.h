@@ -90,11 +90,11 @@ typedef struct keel_solution {
         long rooms;   /* rooms per nurse, summed over nurses */
     } proximity;
     struct {
-        const char *kind; /* "duty", "patient", "average", "group", "indivisible"; NULL: none */
-        double floor;     /* the largest simple floor on the heaviest utilisation */
-        char *text;       /* what sets the bound on the heaviest load, in plain words */
-    } bound_reason;       /* what sets stage 1's bound (not for INFEASIBLE) */
-    double seconds;       /* wall time of the whole solve */
+        const char *kind;    /* "duty", "patient", "average", "group", "indivisible"; NULL: none */
+        double floor;        /* the largest simple floor on the heaviest utilisation */
+        char *text;          /* what sets the bound on the heaviest load, in plain words */
+    } bound_reason;          /* what sets stage 1's bound (not for INFEASIBLE) */
+    double seconds;          /* wall time of the whole solve */
     keel_findings diagnoses; /* why no assignment exists (INFEASIBLE only) */
 } keel_solution;
 

@@ -28,6 +28,8 @@ typedef struct options {
     const char *output;
     const char *method;
     long time_limit_ms;
+    bool explain;     /* --explain: a reason per patient */
+    bool best_effort; /* --best-effort: a labelled plan even when no valid one exists */
 } options;
 
 typedef struct command {
@@ -43,7 +45,7 @@ static int run_check(const options *opt);
 static const command commands[] = {
     {"assign", "balance the roster's patients across its nurses",
      "usage: keel assign ROSTER [--format text|yaml|json] [--method ilp|greedy]\n"
-     "                   [--time-limit SECONDS] [-o FILE]\n"
+     "                   [--time-limit SECONDS] [--explain] [--best-effort] [-o FILE]\n"
      "\n"
      "Divides the roster's patients among its nurses so that the heaviest utilisation\n"
      "(load / capacity) is as low as possible, then lifts the lightest one, and reports\n"
@@ -54,6 +56,10 @@ static const command commands[] = {
      "  -m, --method NAME      ilp (default: exact search with GLPK) or greedy\n"
      "  -t, --time-limit SECS  limit for the whole solve (default 10); on time-out the\n"
      "                         best plan found is kept and reported as not proven\n"
+     "  -e, --explain          say why each patient went to its nurse\n"
+     "      --best-effort      when no valid assignment exists, also show the plan that\n"
+     "                         breaks the fewest rules (by severity), labelled as such;\n"
+     "                         the exit code stays 3\n"
      "  -o, --output FILE      write to FILE (replaced atomically; never the roster)\n",
      run_assign},
     {"check", "validate a roster, show its workload, score its own plan",
@@ -198,6 +204,14 @@ static int parse_args(const command *cmd, int argc, char **argv, options *opt, b
                 return EXIT_USAGE;
             continue;
         }
+        if (cmd->run == run_assign && (strcmp(arg, "-e") == 0 || strcmp(arg, "--explain") == 0)) {
+            opt->explain = true;
+            continue;
+        }
+        if (cmd->run == run_assign && strcmp(arg, "--best-effort") == 0) {
+            opt->best_effort = true;
+            continue;
+        }
         if (arg[0] == '-' && arg[1] != '\0')
             return usage_error(cmd, "unknown option '%s'", arg);
         if (opt->roster)
@@ -217,6 +231,7 @@ typedef struct state {
     keel_solution *solution;
     keel_metrics *metrics;
     keel_staffing staffing;
+    keel_explanation *explanation;
     int *plan;
     keel_findings violations;
 } state;
@@ -224,6 +239,7 @@ typedef struct state {
 static void state_fini(state *s)
 {
     keel_findings_fini(&s->violations);
+    keel_explanation_free(s->explanation);
     free(s->plan);
     keel_metrics_free(s->metrics);
     keel_solution_free(s->solution);
@@ -286,6 +302,8 @@ static int run_assign(const options *opt)
         rc = keel_solve(s.roster, s.workload, &so, &s.solution, &s.err);
     if (!rc)
         rc = keel_metrics_compute(s.workload, s.solution->nurse_of, &s.metrics, &s.err);
+    if (!rc && opt->explain && s.solution->status != KEEL_SOLVE_INFEASIBLE)
+        rc = keel_explain(s.roster, s.workload, s.solution->nurse_of, &s.explanation, &s.err);
     if (rc) {
         print_problems(&s.err);
         state_fini(&s);
@@ -297,7 +315,8 @@ static int run_assign(const options *opt)
                        .nurse_of = s.solution->nurse_of,
                        .metrics = s.metrics,
                        .solution = s.solution,
-                       .staffing = &s.staffing};
+                       .staffing = &s.staffing,
+                       .explanation = s.explanation};
     bool infeasible = s.solution->status == KEEL_SOLVE_INFEASIBLE;
     if (infeasible) {
         fprintf(stderr, "keel assign: %s: no valid assignment exists\n", opt->roster);

@@ -126,6 +126,14 @@ has "$work/out" '"proximity": {"zones": ' "json has the proximity totals"
 has "$work/out" '"continuity": {"kept": ' "json has the continuity totals"
 has "$work/out" '"staffing_needs": {' "json has the staffing needs"
 
+# --explain gives each patient a reason.
+expect 0 "explain" -- "$keel" assign "$data/../data/every-rule.yaml" --explain
+has "$work/out" "why: locked to C" "a locked patient says so"
+has "$work/out" "why: kept with B from the last shift" "a kept patient says so"
+expect 0 "explain as json" -- "$keel" assign "$data/../data/every-rule.yaml" --explain --format json
+has "$work/out" '"why": {"reason": "locked", "text": "locked to C"}' "json carries the reason"
+expect 1 "explain is for assign" -- "$keel" check "$data/../data/every-rule.yaml" --explain
+
 # The greedy method is never called optimal unless its bound proves it.
 expect 0 "greedy method" -- "$keel" assign "$examples/medsurg-day.yaml" --method greedy --format json
 has "$work/out" '"method": "greedy"' "the greedy method says so"
