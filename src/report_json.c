@@ -211,6 +211,13 @@ keel_status keel_report_json(const keel_report *rep, FILE *out)
     if (rep->kind == KEEL_REPORT_ASSIGN && s) {
         fprintf(out, "  \"status\": \"%s\",\n  \"method\": \"%s\",\n  \"seconds\": %.3f,\n",
                 keel_solve_status_name(s->status), s->method, s->seconds);
+        fprintf(out, "  \"best_effort\": %s,\n", s->best_effort ? "true" : "false");
+        if (s->best_effort)
+            fprintf(out,
+                    "  \"severity\": %ld,\n  \"escalation\": \"BEST-EFFORT PLAN: no valid "
+                    "assignment exists and this plan breaks rules; tell the house supervisor "
+                    "before using any of it.\",\n",
+                    s->severity);
     }
     if (rep->kind == KEEL_REPORT_CHECK)
         fprintf(out, "  \"plan\": %s,\n", rep->nurse_of ? "true" : "false");
@@ -219,6 +226,8 @@ keel_status keel_report_json(const keel_report *rep, FILE *out)
     write_staffing(out, rep);
     if (rep->nurse_of && rep->metrics->nunassigned == 0)
         write_imbalance(out, rep->metrics);
+    if (rep->kind == KEEL_REPORT_ASSIGN && s && s->best_effort)
+        write_findings(out, r, "violations", rep->violations);
     if (rep->kind == KEEL_REPORT_CHECK) {
         write_findings(out, r, "violations", rep->violations);
         if (s && s->status != KEEL_SOLVE_INFEASIBLE && s->nstages > 0)

@@ -225,6 +225,15 @@ keel_status keel_report_text(const keel_report *rep, FILE *out)
     if (s && s->status == KEEL_SOLVE_INFEASIBLE && rep->kind == KEEL_REPORT_ASSIGN) {
         fputs("No valid assignment exists for this roster.\n\n", out);
         write_findings(out, "Why", &s->diagnoses);
+        if (s->best_effort && rep->nurse_of) {
+            fprintf(out,
+                    "BEST-EFFORT PLAN - it breaks the rules listed below (severity %ld).\n"
+                    "Escalate: tell the house supervisor before using any of it.\n\n",
+                    s->severity);
+            write_nurse_blocks(out, rep);
+            write_balance(out, rep->metrics);
+            write_findings(out, "Rules this best-effort plan breaks", rep->violations);
+        }
     } else if (rep->nurse_of) {
         if (rep->kind == KEEL_REPORT_CHECK)
             fputs("The roster's own plan\n", out);

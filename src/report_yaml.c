@@ -175,6 +175,10 @@ keel_status keel_report_yaml(const keel_report *rep, FILE *out)
     if (s)
         fprintf(out, " (%s, status %s)", s->method, keel_solve_status_name(s->status));
     fprintf(out, "\n# %s\n", KEEL_CAUTION);
+    if (s && s->best_effort)
+        fputs("# BEST-EFFORT PLAN: no valid assignment exists; the nurses below break rules\n"
+              "# (see keel assign's report). Tell the house supervisor before using any of it.\n",
+              out);
     write_head(out, rep->roster);
     write_nurses(out, rep->roster);
     write_patients(out, rep);

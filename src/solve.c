@@ -258,17 +258,13 @@ keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
         keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }
-    if (!feasible) {
-        s->status = KEEL_SOLVE_INFEASIBLE;
-        for (size_t p = 0; p < w->npatients; p++)
-            s->nurse_of[p] = -1;
-        goto out;
-    }
+    long long deadline = started + limit;
+    if (!feasible)
+        goto infeasible;
 
     /* The greedy placement may get stuck on patient limits even though an
      * assignment exists; then start from the one diagnose found.  With
      * rules that join patients, that one may break them: then search. */
-    long long deadline = started + limit;
     keel_ilp_answer answer = KEEL_ILP_FEASIBLE;
     if (w->joined_rules) {
         rc = keel_find_valid(w, deadline, s->nurse_of, &answer, err);
@@ -279,12 +275,8 @@ keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
             rc = keel_diagnose_rules(roster, w, deadline, &s->diagnoses, &decided, err);
             if (rc)
                 goto out;
-            if (decided) {
-                s->status = KEEL_SOLVE_INFEASIBLE;
-                for (size_t p = 0; p < w->npatients; p++)
-                    s->nurse_of[p] = -1;
-                goto out;
-            }
+            if (decided)
+                goto infeasible;
         }
         if (answer != KEEL_ILP_FEASIBLE) {
             rc = keel_error_add(err, KEEL_ERR_SOLVER, NULL, 0, 0, NULL,
@@ -325,6 +317,19 @@ keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
     if (rc)
         goto out;
     s->status = overall_status(s);
+    goto out;
+infeasible:
+    s->status = KEEL_SOLVE_INFEASIBLE;
+    for (size_t p = 0; p < w->npatients; p++)
+        s->nurse_of[p] = -1;
+    if (options && options->best_effort) {
+        bool found = false;
+        rc = keel_best_effort(roster, w, deadline, s->nurse_of, &found, &s->severity, err);
+        s->best_effort = !rc && found;
+        if (!s->best_effort)
+            for (size_t p = 0; p < w->npatients; p++)
+                s->nurse_of[p] = -1;
+    }
 out:
     s->seconds = (double)(keel_clock_ms() - started) / 1000.0;
     if (rc)

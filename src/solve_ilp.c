@@ -562,6 +562,22 @@ out:
     return rc;
 }
 
+keel_status keel_glpk_call(int (*fn)(void *ctx), void *ctx, int *ret, keel_error *err)
+{
+    jmp_buf env;
+    if (setjmp(env)) {
+        /* GLPK hit a fatal error: its environment is unusable; free it whole. */
+        glp_free_env();
+        return keel_error_add(err, KEEL_ERR_SOLVER, NULL, 0, 0, NULL,
+                              "the integer programming solver (GLPK) failed");
+    }
+    glp_error_hook(on_glpk_error, &env);
+    glp_term_out(GLP_OFF);
+    *ret = fn(ctx);
+    glp_error_hook(NULL, NULL);
+    return KEEL_OK;
+}
+
 keel_status keel_ilp_fit(const keel_workload *w, const long long *lo, const long long *hi,
                          long time_limit_ms, int *nurse_of, keel_ilp_answer *answer,
                          keel_error *err)

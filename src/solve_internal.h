@@ -114,6 +114,12 @@ typedef struct keel_ilp_result {
 keel_status keel_ilp_ask(const keel_workload *w, const keel_ilp_question *q, long time_limit_ms,
                          int *nurse_of, keel_ilp_result *res, keel_error *err);
 
+/* solve_ilp.c: runs fn(ctx), which may call GLPK, with GLPK's terminal
+ * output off and its fatal errors turned into KEEL_ERR_SOLVER (GLPK's
+ * memory is then freed whole; fn must keep its own allocations outside).
+ * *ret is fn's return value.  Statuses: KEEL_OK, KEEL_ERR_SOLVER. */
+keel_status keel_glpk_call(int (*fn)(void *ctx), void *ctx, int *ret, keel_error *err);
+
 /* The feasibility question of keel_ilp_ask() alone. */
 keel_status keel_ilp_fit(const keel_workload *w, const long long *lo, const long long *hi,
                          long time_limit_ms, int *nurse_of, keel_ilp_answer *answer,
@@ -159,6 +165,14 @@ keel_status keel_find_valid(const keel_workload *w, long long deadline_ms, int *
  * ran out first.  Statuses: KEEL_OK, KEEL_ERR_NOMEM, KEEL_ERR_SOLVER. */
 keel_status keel_diagnose_rules(const keel_roster *r, const keel_workload *w, long long deadline_ms,
                                 keel_findings *out, bool *decided, keel_error *err);
+
+/* solve_best.c: for a roster with no valid assignment, the plan that breaks
+ * the fewest rules by severity (docs/model.md), every patient with a nurse
+ * who takes patients; *found is false when there is no such nurse or the
+ * time ran out first; *severity is the plan's total.  Statuses: KEEL_OK,
+ * KEEL_ERR_NOMEM, KEEL_ERR_SOLVER. */
+keel_status keel_best_effort(const keel_roster *r, const keel_workload *w, long long deadline_ms,
+                             int *nurse_of, bool *found, long *severity, keel_error *err);
 
 /* solve_follow.c: stages 3 (continuity) and 4 (proximity) after the
  * balance stages, within the balance tolerance, on sol->nurse_of (which

@@ -50,6 +50,8 @@ const char *keel_solve_status_name(keel_solve_status status);
 typedef struct keel_solve_options {
     const char *method; /* "ilp" (default when NULL) or "greedy" */
     long time_limit_ms; /* whole solve; <= 0 means the default, 10 000 ms */
+    bool best_effort;   /* when no valid assignment exists, find the plan that breaks the
+                           fewest rules by severity (status stays INFEASIBLE) */
 } keel_solve_options;
 
 /* What one stage achieved.  For "peak" and "lift" value and bound are
@@ -96,6 +98,8 @@ typedef struct keel_solution {
     } bound_reason;          /* what sets stage 1's bound (not for INFEASIBLE) */
     double seconds;          /* wall time of the whole solve */
     keel_findings diagnoses; /* why no assignment exists (INFEASIBLE only) */
+    bool best_effort;        /* INFEASIBLE with a best-effort plan in nurse_of */
+    long severity;           /* the best-effort plan's total severity */
 } keel_solution;
 
 /* Solves the workload of roster.  On KEEL_OK, *out is a new solution whose

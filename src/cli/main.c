@@ -296,7 +296,9 @@ static int run_assign(const options *opt)
 {
     state s = {0};
     keel_error_init(&s.err);
-    keel_solve_options so = {.method = opt->method, .time_limit_ms = opt->time_limit_ms};
+    keel_solve_options so = {.method = opt->method,
+                             .time_limit_ms = opt->time_limit_ms,
+                             .best_effort = opt->best_effort};
     keel_status rc = load(&s, opt);
     if (!rc)
         rc = keel_solve(s.roster, s.workload, &so, &s.solution, &s.err);
@@ -304,6 +306,8 @@ static int run_assign(const options *opt)
         rc = keel_metrics_compute(s.workload, s.solution->nurse_of, &s.metrics, &s.err);
     if (!rc && opt->explain && s.solution->status != KEEL_SOLVE_INFEASIBLE)
         rc = keel_explain(s.roster, s.workload, s.solution->nurse_of, &s.explanation, &s.err);
+    if (!rc && s.solution->best_effort)
+        rc = keel_plan_check(s.roster, s.workload, s.solution->nurse_of, &s.violations, &s.err);
     if (rc) {
         print_problems(&s.err);
         state_fini(&s);
@@ -316,14 +320,21 @@ static int run_assign(const options *opt)
                        .metrics = s.metrics,
                        .solution = s.solution,
                        .staffing = &s.staffing,
-                       .explanation = s.explanation};
+                       .explanation = s.explanation,
+                       .violations = s.solution->best_effort ? &s.violations : NULL};
     bool infeasible = s.solution->status == KEEL_SOLVE_INFEASIBLE;
     if (infeasible) {
         fprintf(stderr, "keel assign: %s: no valid assignment exists\n", opt->roster);
         for (size_t i = 0; i < s.solution->diagnoses.n; i++)
             fprintf(stderr, "  [%s] %s\n", s.solution->diagnoses.items[i].rule,
                     s.solution->diagnoses.items[i].message);
-        rep.nurse_of = NULL;
+        if (s.solution->best_effort)
+            fprintf(stderr,
+                    "keel assign: the report holds a BEST-EFFORT plan that breaks %zu "
+                    "rule%s; tell the house supervisor before using any of it\n",
+                    s.violations.n, s.violations.n == 1 ? "" : "s");
+        else
+            rep.nurse_of = NULL;
     }
     int code = write_report(opt, &rep);
     state_fini(&s);

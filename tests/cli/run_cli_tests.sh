@@ -134,6 +134,20 @@ expect 0 "explain as json" -- "$keel" assign "$data/../data/every-rule.yaml" --e
 has "$work/out" '"why": {"reason": "locked", "text": "locked to C"}' "json carries the reason"
 expect 1 "explain is for assign" -- "$keel" check "$data/../data/every-rule.yaml" --explain
 
+# --best-effort: a labelled plan, still exit 3, with an escalation caution.
+expect 3 "best effort" -- "$keel" assign "$data/high-acuity-short.yaml" --best-effort
+has "$work/out" "BEST-EFFORT PLAN" "the plan is labelled"
+has "$work/out" "tell the house supervisor" "the plan carries the escalation caution"
+has "$work/out" "[high_acuity] A has 2 high-acuity patients" "the plan lists the rule it breaks"
+last_line_is_caution "$work/out" "a best-effort report ends with the caution"
+expect 3 "best effort as json" -- "$keel" assign "$data/infeasible-chemo.yaml" --best-effort --format json
+has "$work/out" '"best_effort": true' "json labels the best-effort plan"
+has "$work/out" '"severity": 200' "json gives its severity (two patients without their competency)"
+expect 3 "best effort as yaml" -- "$keel" assign "$data/infeasible-chemo.yaml" --best-effort --format yaml
+has "$work/out" "# BEST-EFFORT PLAN" "yaml labels the best-effort plan"
+expect 3 "no best effort unless asked" -- "$keel" assign "$data/infeasible-chemo.yaml" --format json
+has "$work/out" '"best_effort": false' "json says when there is no best-effort plan"
+
 # The greedy method is never called optimal unless its bound proves it.
 expect 0 "greedy method" -- "$keel" assign "$examples/medsurg-day.yaml" --method greedy --format json
 has "$work/out" '"method": "greedy"' "the greedy method says so"

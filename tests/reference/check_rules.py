@@ -37,7 +37,7 @@ The references check themselves: HiGHS must agree with brute force on the
 tiny rosters, and a roster the generator made infeasible on purpose must
 stay infeasible for HiGHS.
 
-Usage: check_rules.py KEEL_EXE [--count 14] [--tiny-count 120] [--seed S]
+Usage: check_rules.py KEEL_EXE [--count 30] [--tiny-count 200] [--seed S]
                       [--keel-seconds 10] [--highs-seconds 8] [--jobs 2]
                       [--keep DIR]
        check_rules.py --reference-only [--tiny-count 300] [--count 10]
@@ -698,9 +698,9 @@ def main(argv=None):
                                  "against HiGHS and brute force")
     ap.add_argument("keel", nargs="?", help="the keel executable")
     ap.add_argument("--count", type=int, default=None,
-                    help="unit-size rosters (default 14; 10 with --reference-only)")
+                    help="unit-size rosters (default 30; 10 with --reference-only)")
     ap.add_argument("--tiny-count", type=int, default=None,
-                    help="tiny rosters checked by brute force too (default 120; 300 with "
+                    help="tiny rosters checked by brute force too (default 200; 300 with "
                          "--reference-only)")
     ap.add_argument("--seed", type=int, default=2718)
     ap.add_argument("--keel-seconds", type=float, default=10.0,
@@ -718,9 +718,9 @@ def main(argv=None):
         ap.error("KEEL_EXE is required (or --reference-only)")
     keel = None if args.reference_only else os.path.abspath(args.keel)
     if args.count is None:
-        args.count = 10 if args.reference_only else 14
+        args.count = 10 if args.reference_only else 30
     if args.tiny_count is None:
-        args.tiny_count = 300 if args.reference_only else 120
+        args.tiny_count = 300 if args.reference_only else 200
 
     t0 = time.monotonic()
     tmp = None
@@ -730,12 +730,15 @@ def main(argv=None):
         tmp = tempfile.TemporaryDirectory(prefix="keel-rules-")
         out_dir = tmp.name
     pre = gen_rosters.RULES_PRESETS
+    # Every third unit-size roster is infeasible (30 cover the nine rules
+    # once and a third of them again); every fourth tiny one.
     unit = gen_rosters.write_rules_rosters(out_dir, args.seed, args.count,
                                            pre["rules"]["patients"], pre["rules"]["nurses"],
-                                           prefix="rules")
+                                           infeasible_every=3, prefix="rules")
     tiny = gen_rosters.write_rules_rosters(out_dir, args.seed, args.tiny_count,
                                            pre["rules_tiny"]["patients"],
-                                           pre["rules_tiny"]["nurses"], prefix="rtiny")
+                                           pre["rules_tiny"]["nurses"], infeasible_every=4,
+                                           prefix="rtiny")
     gen_secs = time.monotonic() - t0
     jobs = [(p, kind, False, keel, args.keel_seconds, args.highs_seconds) for p, kind in unit]
     jobs += [(p, kind, True, keel, args.keel_seconds, args.highs_seconds) for p, kind in tiny]
