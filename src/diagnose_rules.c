@@ -143,21 +143,20 @@ static long high_places(const keel_workload *w, size_t *nnurses)
 static long nurses_for_ratios(const keel_workload *w, int limit)
 {
     size_t np = w->npatients;
-    long nurses = 0;
-    int *limits = keel_malloc((np ? np : 1) * sizeof *limits);
-    if (!limits)
-        return -1;
-    size_t k = 0;
-    for (int r = 1; r <= (int)np; r++)
-        for (size_t p = 0; p < np; p++)
-            if (w->ratio_limit[p] == r)
-                limits[k++] = r < limit ? r : limit;
-    for (size_t i = 0; i < k;) {
-        size_t size = (size_t)(limits[i] > 0 ? limits[i] : 1);
-        nurses++;
-        i += size;
+    long nurses = 0, open = 0; /* places left with the last nurse opened */
+    for (int r = 1; r <= (int)np; r++) {
+        for (size_t p = 0; p < np; p++) {
+            int own = w->ratio_limit[p] < limit ? w->ratio_limit[p] : limit;
+            if ((own > 0 ? own : 1) != r)
+                continue;
+            if (open > 0) {
+                open--;
+            } else {
+                nurses++;
+                open = r - 1;
+            }
+        }
     }
-    free(limits);
     return nurses;
 }
 
