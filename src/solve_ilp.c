@@ -1,6 +1,7 @@
 /* SPDX-License-Identifier: GPL-3.0-or-later */
 /*
- * solve_ilp.c - the integer programmes, the only file that includes glpk.h.
+ * solve_ilp.c - the integer programmes of the stages (with solve_best.c, the
+ * only files that include glpk.h).
  *
  * One model answers every question the stages ask (keel_ilp_ask): is there
  * an assignment that keeps every hard rule with every counted nurse's care

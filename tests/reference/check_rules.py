@@ -11,8 +11,9 @@ from California Code of Regulations, Title 22, §70217(a)
 (highs_model.CALIFORNIA_TABLE).
 
 Rosters come from gen_rosters.py's rules presets (every rule switched on at
-random; every fourth roster infeasible because of one rule, the rules in
-turn).  For each roster keel runs as `keel assign ROSTER -f json
+random; every third unit-size and every fourth tiny roster infeasible because
+of one rule, the rules in turn, so that 30 unit-size rosters meet each rule's
+infeasibility at least once).  For each roster keel runs as `keel assign ROSTER -f json
 --time-limit S` and:
   * exit code 3 exactly when the reference finds no assignment that keeps
     the hard rules; then "diagnosis" is non-empty and every entry names a
@@ -50,7 +51,6 @@ import argparse
 import concurrent.futures
 import importlib
 import json
-import math
 import os
 import subprocess
 import sys

@@ -53,9 +53,15 @@ and with itself across those three ways on 50 unit-size rosters.
 Also here: an exhaustive (brute-force) solver for tiny rosters, to check the
 MILP model itself, and a bipartite feasibility test used by the generator.
 
+The second half of the file (from "The roster rules and the later stages")
+models the roster rules (ratio table, patient ratios, high acuity,
+isolation, zones, previous nurse) and stages 1-4, with its own brute force;
+check_rules.py uses it.
+
 Usage: highs_model.py ROSTER.yaml [--time-limit SECONDS] [--model-share F]
-                      [--brute-force]
-prints a JSON object (stage statuses, values, bounds, the assignment).
+                      [--brute-force] [--rules]
+prints a JSON object (stage statuses, values, bounds, the assignment);
+--rules solves with the roster rules and all four stages.
 """
 
 import argparse
@@ -561,35 +567,6 @@ def brute_force(r, max_combinations=2_000_000):
     return U, L
 
 
-def main(argv=None):
-    ap = argparse.ArgumentParser(description="Solve keel's stages 1-2 with HiGHS")
-    ap.add_argument("roster")
-    ap.add_argument("--time-limit", type=float, default=None,
-                    help="seconds per stage (default: none)")
-    ap.add_argument("--model-share", type=float, default=0.1,
-                    help="part of each stage's time for the textbook model (default 0.1)")
-    ap.add_argument("--brute-force", action="store_true",
-                    help="also solve by enumeration (tiny rosters only)")
-    args = ap.parse_args(argv)
-    r = load(args.roster)
-    res = solve(r, args.time_limit, model_share=args.model_share)
-    if res["assign"] is not None:
-        res["assign"] = {r["patients"][p]["id"]: r["nurses"][j]["id"]
-                         for p, j in enumerate(res["assign"])}
-    if args.brute_force:
-        bf = brute_force(r)
-        res["brute_force"] = None if bf is None else {"U": str(bf[0]), "L": str(bf[1]),
-                                                      "U_float": float(bf[0]),
-                                                      "L_float": float(bf[1])}
-    json.dump(res, sys.stdout, indent=1, default=str)
-    print()
-    return 0
-
-
-if __name__ == "__main__":
-    sys.exit(main())
-
-
 # ======================================================================
 # The roster rules and the later stages (docs: keel's rules spec)
 # ======================================================================
@@ -619,12 +596,16 @@ if __name__ == "__main__":
 # protective patient), z[n,zone] >= x[p,n] and w[n,room] >= x[p,n].  Each
 # stage runs the textbook objective for part of its time and then a descent
 # on the stage's whole-number measure (whole-minute loads, kept, Z, R): HiGHS
-# must find a strictly better assignment or prove there is none.  Every
-# incumbent is rounded and checked against the hard rules and the stage's
-# holds by violations() and the stage's own test, exactly.
+# must find a strictly better assignment or prove there is none.  Only
+# HiGHS's "infeasible" verdicts on such feasibility problems count as proofs
+# (the textbook model's "optimal" is a claim the descent confirms; see
+# _run_stage).  Every incumbent is rounded and checked against the hard
+# rules and the stage's holds by violations() and the stage's own test,
+# exactly.
 #
-# brute_force_rules() enumerates every assignment of a tiny roster with
-# its own eligibility test (pair_violations) and the same violations().
+# brute_force_rules() enumerates every assignment of a tiny roster and keeps
+# those violations() passes: no MILP rows at all, only the eligibility test
+# (pair_violations) is shared with the MILP's columns.
 
 # Per-nurse maximum patients by unit type under ratio_table: california.
 # Source: California Code of Regulations, Title 22, §70217(a) (critical care
@@ -1103,7 +1084,8 @@ def _run_stage(r, sg, time_limit, model_share, start):
                 st["refuted"] = True      # a known answer beats the claimed optimum
         elif status != "time_limit":
             st["status"] = "error"
-        st["dual_bound"] = _dual_bound(res)
+        db = _dual_bound(res)
+        st["dual_bound"] = None if db is None else sg.dual(db)
     if st["status"] == "infeasible" or (st["status"] == "time_limit" and best is None):
         # Any assignment at all?  A feasibility problem, no objective.
         m = sg.build()
@@ -1373,3 +1355,49 @@ def brute_force_rules(r, max_combinations=300_000):
         best = [f for f, (z, w) in zip(best, zr) if (z, w) == (out["Z"], out["R"])]
     out["assign"] = list(best[0][0])
     return out
+
+
+def main(argv=None):
+    ap = argparse.ArgumentParser(description="Solve keel's stages 1-2 with HiGHS")
+    ap.add_argument("roster")
+    ap.add_argument("--time-limit", type=float, default=None,
+                    help="seconds per stage (default: none)")
+    ap.add_argument("--model-share", type=float, default=0.1,
+                    help="part of each stage's time for the textbook model (default 0.1)")
+    ap.add_argument("--brute-force", action="store_true",
+                    help="also solve by enumeration (tiny rosters only)")
+    ap.add_argument("--rules", action="store_true",
+                    help="the roster rules and stages 1-4 (solve_rules)")
+    args = ap.parse_args(argv)
+    if args.rules:
+        r = load_rules(args.roster)
+        res = solve_rules(r, args.time_limit, args.model_share)
+        if res["assign"] is not None:
+            res["assign"] = {r["patients"][p]["id"]: r["nurses"][j]["id"]
+                             for p, j in enumerate(res["assign"])}
+        if args.brute_force:
+            bf = brute_force_rules(r)
+            if bf is not None:
+                bf["assign"] = {r["patients"][p]["id"]: r["nurses"][j]["id"]
+                                for p, j in enumerate(bf["assign"])}
+            res["brute_force"] = bf
+        json.dump(res, sys.stdout, indent=1, default=str)
+        print()
+        return 0
+    r = load(args.roster)
+    res = solve(r, args.time_limit, model_share=args.model_share)
+    if res["assign"] is not None:
+        res["assign"] = {r["patients"][p]["id"]: r["nurses"][j]["id"]
+                         for p, j in enumerate(res["assign"])}
+    if args.brute_force:
+        bf = brute_force(r)
+        res["brute_force"] = None if bf is None else {"U": str(bf[0]), "L": str(bf[1]),
+                                                      "U_float": float(bf[0]),
+                                                      "L_float": float(bf[1])}
+    json.dump(res, sys.stdout, indent=1, default=str)
+    print()
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
