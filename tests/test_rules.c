@@ -143,6 +143,21 @@ static void windows(best *b, long long t)
     }
 }
 
+/* Sets the derived flags of a hand-made case as the workload does. */
+static void derive(tu_case *c)
+{
+    keel_workload *w = &c->w;
+    bool sides[3] = {false, false, false}, ratios = false;
+    for (size_t p = 0; p < w->npatients; p++) {
+        sides[w->side[p]] = true;
+        ratios = ratios || w->ratio_limit[p] < (int)w->npatients;
+    }
+    w->isolation_rule = sides[KEEL_SIDE_PROTECTIVE] && sides[KEEL_SIDE_INFECTIOUS];
+    w->zones_rule = w->max_zones != KEEL_ABSENT && w->nzones > (size_t)w->max_zones;
+    w->joined_rules =
+        ratios || w->max_high_acuity != KEEL_ABSENT || w->isolation_rule || w->zones_rule;
+}
+
 /* ---- Random small rosters with every rule --------------------------------- */
 
 static tu_case *random_rules_case(uint64_t *seed)
@@ -163,7 +178,6 @@ static tu_case *random_rules_case(uint64_t *seed)
     w->nzones = 2;
     w->nrooms = 3;
     w->tolerance = (long long[]){0, 50000, 200000}[tu_range(seed, 0, 2)];
-    bool sides[3] = {false, false, false};
     for (size_t p = 0; p < np; p++) {
         w->care_minutes[p] = tu_range(seed, 1, 14) * 30;
         /* As the workload does: a ratio never above the census. */
@@ -173,7 +187,6 @@ static tu_case *random_rules_case(uint64_t *seed)
         w->high_acuity[p] = w->max_high_acuity != KEEL_ABSENT && tu_range(seed, 0, 2) == 0;
         w->side[p] =
             (signed char)(tu_range(seed, 0, 3) < 2 ? KEEL_SIDE_NONE : tu_range(seed, 1, 2));
-        sides[w->side[p]] = true;
         w->zone[p] = tu_range(seed, -1, 1);
         w->room[p] = tu_range(seed, -1, 2);
         w->previous[p] = tu_range(seed, 0, 2) ? tu_range(seed, -1, (int)nn - 1) : -1;
@@ -349,11 +362,82 @@ static void test_the_bound_is_explained_by_its_reason(void **state)
     tu_case_free(c);
 }
 
+/* The one rule a diagnosis names, and that relaxing it helps. */
+static void assert_diagnosis(tu_case *c, const char *rule)
+{
+    derive(c);
+    keel_solution *s = solve(c);
+    assert_int_equal(s->status, KEEL_SOLVE_INFEASIBLE);
+    assert_int_equal(s->diagnoses.n, 1);
+    assert_string_equal(s->diagnoses.items[0].rule, rule);
+    keel_solution_free(s);
+}
+
+static void test_each_joining_rule_is_named_when_it_conflicts(void **state)
+{
+    (void)state;
+    /* Isolation: one protective and one infectious patient, one nurse. */
+    tu_case *c = tu_case_new(1, 2);
+    c->w.care_minutes[0] = c->w.care_minutes[1] = 60;
+    c->w.side[0] = KEEL_SIDE_PROTECTIVE;
+    c->w.side[1] = KEEL_SIDE_INFECTIOUS;
+    assert_diagnosis(c, "isolation");
+    tu_case_free(c);
+
+    /* Zones: three zones, two nurses, one zone each. */
+    c = tu_case_new(2, 3);
+    c->w.nzones = 3;
+    c->w.max_zones = 1;
+    for (size_t p = 0; p < 3; p++) {
+        c->w.care_minutes[p] = 60;
+        c->w.zone[p] = (int)p;
+    }
+    assert_diagnosis(c, "zones");
+    tu_case_free(c);
+
+    /* High acuity: three high-acuity patients, one each, two nurses. */
+    c = tu_case_new(2, 3);
+    c->w.max_high_acuity = 1;
+    for (size_t p = 0; p < 3; p++) {
+        c->w.care_minutes[p] = 60;
+        c->w.high_acuity[p] = true;
+    }
+    assert_diagnosis(c, "high_acuity");
+    tu_case_free(c);
+
+    /* Patient ratio: three 1:1 patients and two nurses. */
+    c = tu_case_new(2, 3);
+    for (size_t p = 0; p < 3; p++) {
+        c->w.care_minutes[p] = 60;
+        c->w.ratio_limit[p] = 1;
+    }
+    assert_diagnosis(c, "patient_ratio");
+    tu_case_free(c);
+
+    /* Two rules together: a protective and an infectious patient, each
+     * high-acuity at most one per nurse, fit two nurses; a third nurse's
+     * zone is closed to them.  Feasible rosters get no diagnosis. */
+    c = tu_case_new(2, 2);
+    c->w.care_minutes[0] = c->w.care_minutes[1] = 60;
+    c->w.side[0] = KEEL_SIDE_PROTECTIVE;
+    c->w.side[1] = KEEL_SIDE_INFECTIOUS;
+    c->w.max_high_acuity = 1;
+    c->w.high_acuity[0] = c->w.high_acuity[1] = true;
+    derive(c);
+    keel_solution *s = solve(c);
+    assert_int_equal(s->status, KEEL_SOLVE_OPTIMAL);
+    assert_int_equal(s->diagnoses.n, 0);
+    assert_int_not_equal(s->nurse_of[0], s->nurse_of[1]);
+    keel_solution_free(s);
+    tu_case_free(c);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_every_stage_matches_exhaustive_enumeration),
         cmocka_unit_test(test_the_bound_is_explained_by_its_reason),
+        cmocka_unit_test(test_each_joining_rule_is_named_when_it_conflicts),
     };
     return cmocka_run_group_tests_name("rules", tests, NULL, NULL);
 }
