@@ -194,13 +194,7 @@ static tu_case *random_rules_case(uint64_t *seed)
         if (tu_range(seed, 0, 5) == 0)
             tu_add_need(c, p, "chemo");
     }
-    bool ratios = false;
-    for (size_t p = 0; p < np; p++)
-        ratios = ratios || w->ratio_limit[p] < (int)np;
-    w->isolation_rule = sides[KEEL_SIDE_PROTECTIVE] && sides[KEEL_SIDE_INFECTIOUS];
-    w->zones_rule = w->max_zones != KEEL_ABSENT;
-    w->joined_rules =
-        ratios || w->max_high_acuity != KEEL_ABSENT || w->isolation_rule || w->zones_rule;
+    derive(c);
     tu_refresh(c);
     return c;
 }
