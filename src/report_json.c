@@ -59,6 +59,12 @@ static void write_nurses(FILE *out, const keel_report *rep)
         fputs("{\"id\": ", out);
         keel_write_quoted(out, r->nurses[n].id);
         fprintf(out, ", \"role\": \"%s\"", keel_role_name(r->nurses[n].role));
+        if (r->nurses[n].preceptor) {
+            fputs(", \"preceptor\": ", out);
+            keel_write_quoted(out, r->nurses[n].preceptor);
+            if (r->nurses[n].max_patients != KEEL_ABSENT)
+                fprintf(out, ", \"share_max_patients\": %d", r->nurses[n].max_patients);
+        }
         fputs(", \"patients\": [", out);
         size_t k = 0;
         for (size_t p = 0; rep->nurse_of && p < r->npatients; p++) {

@@ -60,8 +60,12 @@ static void write_nurse_blocks(FILE *out, const keel_report *rep)
     for (size_t n = 0; n < r->nnurses; n++) {
         const keel_nurse_metrics *m = &rep->metrics->nurses[n];
         if (r->nurses[n].role == KEEL_ROLE_ORIENTEE) {
-            fprintf(out, "%-6s %-22s orientee: shares %s's assignment\n", r->nurses[n].id,
+            fprintf(out, "%-6s %-22s orientee: shares %s's assignment", r->nurses[n].id,
                     r->nurses[n].name ? r->nurses[n].name : "", r->nurses[n].preceptor);
+            if (r->nurses[n].max_patients != KEEL_ABSENT)
+                fprintf(out, " (the orientee's share: up to %d of those patients)",
+                        r->nurses[n].max_patients);
+            fputc('\n', out);
             continue;
         }
         fprintf(out, "%-6s %-22s %2d patient%s  load %4d of %4d min  %5.1f %%", r->nurses[n].id,
