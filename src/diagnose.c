@@ -264,22 +264,30 @@ static char *describe_shortage(const keel_roster *r, const keel_workload *w, con
         }
     char *nurses = join_names(names, nnur);
     char *msg = NULL;
+    char limits[192] = "their patient limits";
+    const keel_law_table *t = r->policy.ratio_table;
+    if (strcmp(s->rule, "law_limit") == 0)
+        snprintf(limits, sizeof limits, "the limit of %s (1:%d for %s) as encoded on %s", t->name,
+                 w->law_limit, r->unit.type, t->encoded);
     if (who && nurses && nnur == ncounted) {
-        msg = keel_asprintf("%zu patients, but the %zu nurses on shift who may take patients "
-                            "may take %ld in all under their patient limits: %zu more place%s "
-                            "needed (another nurse, or a higher limit where policy allows)",
-                            r->npatients, nnur, places, s->left_out,
-                            s->left_out == 1 ? " is" : "s are");
+        msg = keel_asprintf(
+            "%zu patients, but the %zu nurses on shift who may take patients "
+            "may take %ld in all under %s: %zu more place%s needed (another "
+            "nurse%s)",
+            r->npatients, nnur, places, limits, s->left_out, s->left_out == 1 ? " is" : "s are",
+            strcmp(s->rule, "law_limit") == 0 ? "" : ", or a higher limit where policy allows");
     } else if (who && nurses) {
         size_t ncommon = common_needs(r, s->patients, skills);
         char *what = ncommon ? join_names(skills, ncommon) : keel_strdup("competencies");
         if (what)
             msg = keel_asprintf(
-                "patients %s need %s%s; only %s %s %s, with %ld place%s under the "
-                "patient limits: %zu more place%s needed",
+                "patients %s need %s%s; only %s %s %s, with %ld place%s under %s: %zu more "
+                "place%s needed",
                 who, what, ncommon ? "" : " that few nurses have", nurses,
                 nnur == 1 ? "has" : "have", ncommon ? (ncommon == 1 ? "it" : "them") : "them",
-                places, places == 1 ? "" : "s", s->left_out, s->left_out == 1 ? " is" : "s are");
+                places, places == 1 ? "" : "s",
+                strcmp(s->rule, "law_limit") == 0 ? limits : "the patient limits", s->left_out,
+                s->left_out == 1 ? " is" : "s are");
         free(what);
     }
     free(who);
@@ -370,6 +378,12 @@ keel_status keel_diagnose(const keel_roster *r, const keel_workload *w, int *nur
             all_locked = r->patients[pidx[j]].lock;
         if (all_locked)
             s->rule = "lock";
+        /* Every nurse short of places is held by the ratio table's number. */
+        bool by_law = kn > 0 && !all_locked && w->law_limit != KEEL_ABSENT;
+        for (size_t j = 0; j < kn && by_law; j++)
+            by_law = w->max_patients[nidx[j]] == w->law_limit;
+        if (by_law)
+            s->rule = "law_limit";
         char *msg = all_locked ? keel_asprintf("%zu patients are locked to %s, whose patient "
                                                "limit is %d",
                                                kp, r->nurses[nidx[0]].id, w->max_patients[nidx[0]])

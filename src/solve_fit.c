@@ -9,8 +9,8 @@
  * are interchangeable (same care, same eligible nurses) take nurses in
  * non-decreasing index order, and of several nurses that are
  * interchangeable for the question and carry the same so far, only the
- * first is tried (when no rule joins patients: otherwise what a nurse
- * holds matters beyond its sum).  The rules that join patients are checked
+ * first is tried (with rules that join patients, only when those rules see
+ * the two nurses alike too).  The rules that join patients are checked
  * by the tally (tally.h) at every step.  A node is cut when the room left that the remaining
  * patients could still use is less than their care, or the care they must
  * still bring to nurses below their window is more than they have.
@@ -87,6 +87,28 @@ static bool same_for_question(const fit *F, size_t a, size_t b)
     return true;
 }
 
+/* True when the rules that join patients see nurses a and b alike: the
+ * patients still to come can go to one exactly when they can go to the
+ * other. */
+static bool same_state(const fit *F, size_t a, size_t b)
+{
+    const keel_workload *w = F->w;
+    const keel_tally *t = &F->tally;
+    if (!w->joined_rules)
+        return true;
+    if (t->high[a] != t->high[b] || keel_tally_tightest(t, a) != keel_tally_tightest(t, b))
+        return false;
+    for (size_t s = 1; s < 3; s++)
+        if ((t->sides[a * 3 + s] > 0) != (t->sides[b * 3 + s] > 0))
+            return false;
+    if (w->max_zones == KEEL_ABSENT)
+        return true;
+    for (size_t k = 0; k < w->nzones; k++)
+        if ((t->in_zone[a * w->nzones + k] > 0) != (t->in_zone[b * w->nzones + k] > 0))
+            return false;
+    return true;
+}
+
 /* Cheap bounds on the remaining patients order[k..]. */
 static bool still_possible(const fit *F, size_t k)
 {
@@ -134,10 +156,10 @@ static bool search(fit *F, size_t k)
         if (F->care[n] + c > F->hi[n] || !keel_tally_admits(&F->tally, p, n))
             continue;
         bool twin_seen = false;
-        for (size_t i = 0; i < ntried && !twin_seen && !w->joined_rules; i++) {
+        for (size_t i = 0; i < ntried && !twin_seen; i++) {
             size_t m = tried[i];
             twin_seen = F->group[m] == F->group[n] && F->care[m] == F->care[n] &&
-                        F->count[m] == F->count[n];
+                        F->count[m] == F->count[n] && same_state(F, m, n);
         }
         if (twin_seen)
             continue;

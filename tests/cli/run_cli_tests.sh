@@ -126,6 +126,11 @@ has "$work/out" '"proximity": {"zones": ' "json has the proximity totals"
 has "$work/out" '"continuity": {"kept": ' "json has the continuity totals"
 has "$work/out" '"staffing_needs": {' "json has the staffing needs"
 
+# Source: California Code of Regulations, Title 22, section 70217(a):
+# telemetry 1:4, so two nurses may hold 8 telemetry patients (as encoded).
+expect 3 "a census over the table's limit" -- "$keel" assign "$data/law-limit-short.yaml"
+has "$work/err" "[law_limit] 11 patients, but the 2 nurses on shift who may take patients may take 8 in all under the limit of california (1:4 for telemetry) as encoded on 2026-12-02" "the diagnosis names the table as encoded"
+
 # --explain gives each patient a reason.
 expect 0 "explain" -- "$keel" assign "$data/../data/every-rule.yaml" --explain
 has "$work/out" "why: locked to C" "a locked patient says so"
