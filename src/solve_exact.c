@@ -362,6 +362,8 @@ static keel_status stage_lift(search *S, long long deadline_ms, int *best, keel_
     static const direction up = {lift_windows, lift_position, false};
     const keel_workload *w = S->w;
     long long started = keel_clock_ms();
+    if (keel_greedy_lift(w, S->peak_hi, best))
+        return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
     keel_ratio incumbent = keel_solve_lift(w, best), ceiling = keel_solve_lift_ceiling(w);
     if (collect_candidates(S, S->peak_hi, incumbent, ceiling))
         return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");

@@ -180,3 +180,77 @@ keel_status keel_greedy_improve(const keel_workload *w, int *nurse_of)
     keel_tally_free(&t);
     return KEEL_OK;
 }
+
+/* Tries to raise the lightest counted nurse b: a move of one patient to b,
+ * or a swap that gives b more care, keeping every nurse within hi[] and
+ * every rule, and leaving both nurses above b's old utilisation.  Returns
+ * true when it applied one. */
+static bool lift_once(const keel_workload *w, const long long *hi, int *nurse_of, long long *load,
+                      keel_tally *t)
+{
+    size_t nn = w->nnurses, b = nn;
+    for (size_t n = 0; n < nn; n++)
+        if (keel_workload_counted(w, n) &&
+            (b == nn || keel_ratio_cmp((keel_ratio){load[n], w->capacity_minutes[n]},
+                                       (keel_ratio){load[b], w->capacity_minutes[b]}) < 0))
+            b = n;
+    if (b == nn)
+        return false;
+    keel_ratio low = {load[b], w->capacity_minutes[b]};
+    for (size_t p = 0; p < w->npatients; p++) {
+        int a = nurse_of[p];
+        if (a < 0 || (size_t)a == b || !keel_workload_eligible(w, p, b))
+            continue;
+        long long c = w->care_minutes[p];
+        keel_ratio after_a = {load[a] - c, w->capacity_minutes[a]};
+        if (t->care[b] + c <= hi[b] && keel_ratio_cmp(after_a, low) > 0 &&
+            keel_tally_admits(t, p, b)) {
+            nurse_of[p] = (int)b;
+            load[a] -= c;
+            load[b] += c;
+            keel_tally_remove(t, p, (size_t)a);
+            keel_tally_add(t, p, b);
+            return true;
+        }
+        for (size_t q = 0; q < w->npatients; q++) {
+            long long d = c - w->care_minutes[q];
+            if (nurse_of[q] != (int)b || d <= 0 || !keel_workload_eligible(w, q, (size_t)a))
+                continue;
+            keel_ratio swapped_a = {load[a] - d, w->capacity_minutes[a]};
+            if (t->care[b] + d > hi[b] || keel_ratio_cmp(swapped_a, low) <= 0)
+                continue;
+            if (!keel_tally_admits_instead(t, p, q, b) ||
+                !keel_tally_admits_instead(t, q, p, (size_t)a))
+                continue;
+            nurse_of[p] = (int)b;
+            nurse_of[q] = a;
+            load[a] -= d;
+            load[b] += d;
+            keel_tally_remove(t, p, (size_t)a);
+            keel_tally_remove(t, q, b);
+            keel_tally_add(t, p, b);
+            keel_tally_add(t, q, (size_t)a);
+            return true;
+        }
+    }
+    return false;
+}
+
+keel_status keel_greedy_lift(const keel_workload *w, const long long *hi, int *nurse_of)
+{
+    long long *load = keel_calloc(w->nnurses ? w->nnurses : 1, sizeof *load);
+    keel_tally t;
+    if (!load || keel_tally_init(&t, w)) {
+        free(load);
+        return KEEL_ERR_NOMEM;
+    }
+    keel_solve_loads(w, nurse_of, load);
+    keel_tally_fill(&t, nurse_of);
+    /* Each step raises the lowest utilisation or the number of nurses at
+     * it falls, so the sorted vector rises and the loop ends. */
+    while (lift_once(w, hi, nurse_of, load, &t))
+        ;
+    free(load);
+    keel_tally_free(&t);
+    return KEEL_OK;
+}

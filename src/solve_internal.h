@@ -76,6 +76,11 @@ keel_status keel_greedy_place(const keel_workload *w, int *nurse_of, bool *place
  * Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
 keel_status keel_greedy_improve(const keel_workload *w, int *nurse_of);
 
+/* solve_greedy.c: raises the lightest counted nurse by moves and swaps that
+ * keep every nurse's care within hi[] and every rule.  Statuses: KEEL_OK,
+ * KEEL_ERR_NOMEM. */
+keel_status keel_greedy_lift(const keel_workload *w, const long long *hi, int *nurse_of);
+
 /* solve_ilp.c: answer of one feasibility search. */
 typedef enum keel_ilp_answer {
     KEEL_ILP_FEASIBLE,   /* nurse_of holds an assignment inside the windows */

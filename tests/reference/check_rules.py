@@ -205,6 +205,8 @@ def check_report(r, doc):
     if assign is None:
         return problems, None
     # The hard rules, recomputed from the roster (spec rules 1-6).
+    # Source: keel's roster-rules spec; the ratio table's numbers from
+    # California Code of Regulations, Title 22, §70217(a) (CALIFORNIA_TABLE).
     for rule, text in highs_model.violations(r, assign):
         problems.append("keel's assignment breaks rule %s: %s" % (rule, text))
     loads = highs_model.loads_of(r, assign)
@@ -360,6 +362,8 @@ def reference(r, tiny, highs_seconds):
     an upper one for L, kept, kept0), plus "feasible" (True / False / None).
     problems are disagreements inside the reference (HiGHS vs brute force).
     """
+    # Source: HiGHS through Debian's python3-scipy 1.10 (scipy.optimize.milp);
+    # on tiny rosters brute-force enumeration, which HiGHS must match.
     h = highs_model.solve_rules(r, highs_seconds)
     s = h["stages"]
     problems = []
@@ -401,7 +405,10 @@ def compare(r, k, ref):
     """
     out = []
     U, L = ref["U"], ref["L"]
-    # Stage 1 (peak).  Source: HiGHS / brute force as above.
+    # Source (every check below): the optimum of HiGHS through Debian's
+    # python3-scipy 1.10 (scipy.optimize.milp) on unit-size rosters, of
+    # brute-force enumeration (highs_model.brute_force_rules) on tiny ones.
+    # Stage 1 (peak).
     if U["bound"] is not None and float(k["U"]) < float(U["bound"]) - TOL:
         out.append("peak: keel's U %.9f below the reference's proven bound %.9f"
                    % (k["U"], U["bound"]))
@@ -485,7 +492,12 @@ def compare(r, k, ref):
 # -------------------------------------------------------- one roster
 
 def check_infeasible(doc, rc, stderr, kind):
-    """keel on a roster no assignment can satisfy: exit 3 and a diagnosis."""
+    """keel on a roster no assignment can satisfy: exit 3 and a diagnosis.
+
+    Source: the infeasibility verdict of HiGHS through Debian's
+    python3-scipy 1.10 (scipy.optimize.milp), and of brute-force
+    enumeration on tiny rosters; the rule names from keel's rules spec.
+    """
     problems, named = [], []
     if rc != 3:
         text = "no assignment keeps the rules, but keel's exit code is %s" % _exit_text(rc)
@@ -580,7 +592,11 @@ def check_one(job):
 
 def reference_one(job):
     """HiGHS three ways (textbook model only, half and half, descent only)
-    against brute force (tiny) or against each other (unit size)."""
+    against brute force (tiny) or against each other (unit size).
+
+    Source: HiGHS through Debian's python3-scipy 1.10 (scipy.optimize.milp)
+    against brute-force enumeration (highs_model.brute_force_rules).
+    """
     path, kind, tiny, _keel, _ks, highs_seconds = job
     name = os.path.splitext(os.path.basename(path))[0]
     out = {"name": name, "kind": kind, "tiny": tiny, "problems": [], "keel": None,
