@@ -126,7 +126,7 @@ static void write_count_stage(FILE *out, const keel_stage *st, const char *what,
     fputc('\n', out);
 }
 
-static void write_proof(FILE *out, const keel_solution *s)
+static void write_proof(FILE *out, const keel_solution *s, const keel_metrics *m)
 {
     fprintf(out, "Status: %s (method %s, %.2f s)\n", keel_solve_status_name(s->status), s->method,
             s->seconds);
@@ -140,6 +140,20 @@ static void write_proof(FILE *out, const keel_solution *s)
             write_count_stage(out, st, "continuity", "kept", "the best possible is at most");
         else
             write_count_stage(out, st, "proximity", "zones", "the best possible is at least");
+    }
+    /* Stages 3 and 4 may have spent some of the balance tolerance. */
+    if (s->nstages > 2 && s->stages[0].value > 0 &&
+        (m->max_utilisation > s->stages[0].value + 5e-10 ||
+         m->min_utilisation < s->stages[1].value - 5e-10)) {
+        char *line = keel_asprintf(
+            "This plan spends some of the balance tolerance (%.1f points) on continuity and "
+            "proximity: heaviest %.1f %% and lightest %.1f %%, against %.1f %% and %.1f %% at "
+            "best.",
+            100.0 * s->continuity.tolerance, 100.0 * m->max_utilisation, 100.0 * m->min_utilisation,
+            100.0 * s->stages[0].value, 100.0 * s->stages[1].value);
+        if (line)
+            keel_write_wrapped(out, "  ", line, 78);
+        free(line);
     }
     if (s->bound_reason.text) {
         char *line = keel_asprintf("What sets the bound: %s.", s->bound_reason.text);
@@ -163,10 +177,13 @@ static void write_proof(FILE *out, const keel_solution *s)
             keel_write_wrapped(out, "  ", line, 78);
         free(line);
     }
-    if (s->proximity.applies)
+    if (s->proximity.applies && s->proximity.rooms > 0)
         fprintf(out, "  Proximity: %ld zone%s and %ld room%s across the nurses' assignments.\n",
                 s->proximity.zones, s->proximity.zones == 1 ? "" : "s", s->proximity.rooms,
                 s->proximity.rooms == 1 ? "" : "s");
+    else if (s->proximity.applies)
+        fprintf(out, "  Proximity: %ld zone%s across the nurses' assignments.\n",
+                s->proximity.zones, s->proximity.zones == 1 ? "" : "s");
     if (s->status == KEEL_SOLVE_TIME_LIMIT)
         fputs("  The time limit ended the search: this plan is valid but not proven the most "
               "even.\n",
@@ -245,7 +262,7 @@ keel_status keel_report_text(const keel_report *rep, FILE *out)
         write_balance(out, rep->metrics);
     }
     if (rep->kind == KEEL_REPORT_ASSIGN && s && s->status != KEEL_SOLVE_INFEASIBLE)
-        write_proof(out, s);
+        write_proof(out, s, rep->metrics);
     if (rep->kind == KEEL_REPORT_CHECK) {
         if (rep->nurse_of)
             write_findings(out, "Rules the plan breaks", rep->violations);

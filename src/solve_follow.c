@@ -191,6 +191,7 @@ keel_status keel_solve_follow(const keel_workload *w, bool exact, long long dead
     bool keep = w->ncontinuity > 0, near = w->nzones > 0 || w->nrooms > 0;
     if (!keep && !near)
         return KEEL_OK;
+    sol->continuity.tolerance = (double)w->tolerance / KEEL_TOLERANCE_SCALE;
     follow F = {.w = w, .exact = exact};
     F.lo = keel_calloc(nn ? nn : 1, sizeof *F.lo);
     F.hi = keel_calloc(nn ? nn : 1, sizeof *F.hi);
@@ -211,7 +212,6 @@ keel_status keel_solve_follow(const keel_workload *w, bool exact, long long dead
         int calls = 0;
         sol->continuity.applies = true;
         sol->continuity.candidates = (long)w->ncontinuity;
-        sol->continuity.tolerance = (double)w->tolerance / KEEL_TOLERANCE_SCALE;
         sol->continuity.kept_at_zero = -1;
         /* At zero tolerance first, from the balanced assignment. */
         tolerance_windows(w, peak, lift, 0, F.lo, F.hi);

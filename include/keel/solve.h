@@ -84,7 +84,7 @@ typedef struct keel_solution {
         long candidates;   /* patients whose previous nurse is on the roster */
         long kept_at_zero; /* the best found at zero tolerance; -1 when not sought */
         bool zero_proven;  /* kept_at_zero is proven the most at zero tolerance */
-        double tolerance;  /* policy.balance_tolerance, in utilisation points */
+        double tolerance;  /* policy.balance_tolerance, in points (stage 3 or 4) */
     } continuity;
     struct {
         bool applies; /* some patient has a zone or a room */
