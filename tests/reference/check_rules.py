@@ -11,10 +11,10 @@ from California Code of Regulations, Title 22, §70217(a)
 (highs_model.CALIFORNIA_TABLE).
 
 Rosters come from gen_rosters.py's rules presets (every rule switched on at
-random; every third unit-size and every fourth tiny roster infeasible because
-of one rule, the rules in turn, so that 30 unit-size rosters meet each rule's
-infeasibility at least once).  For each roster keel runs as `keel assign ROSTER -f json
---time-limit S` and:
+random; every third unit-size and every fourth tiny roster infeasible
+because of one rule, the rules in turn, so that 30 unit-size rosters meet
+each rule's infeasibility at least once).  For each roster keel runs as
+`keel assign ROSTER -f json --time-limit S` and:
   * exit code 3 exactly when the reference finds no assignment that keeps
     the hard rules; then "diagnosis" is non-empty and every entry names a
     rule of the spec (skill, patient_limit, patient_ratio, law_limit,
@@ -32,8 +32,11 @@ infeasibility at least once).  For each roster keel runs as `keel assign ROSTER 
   * against the reference optimum (U*, L* within 1e-6; kept, Z exact):
     equal when both prove the stage and the stage's problem is the same
     (the same U, L, tolerance and kept before it); keel never beats a
-    proven reference bound; keel's own bounds never cut off the reference's
-    solution.
+    proven reference optimum; keel's own bounds never cut off the
+    reference's solution.  Proximity proven means (Z, R) proven: R is
+    compared too when Z is the same.  kept_at_zero_tolerance never beats
+    the reference's optimum with tol = 0, and equals it when keel calls it
+    proven (its kept_at_zero_tolerance_proven, else status "optimal").
 The references check themselves: HiGHS must agree with brute force on the
 tiny rosters, and a roster the generator made infeasible on purpose must
 stay infeasible for HiGHS.
