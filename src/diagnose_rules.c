@@ -53,9 +53,21 @@ keel_status keel_find_valid(const keel_workload *w, long long deadline_ms, int *
     rc = keel_fit_search(w, lo, hi, VALID_NODE_BUDGET, deadline_ms, nurse_of, answer);
     if (rc)
         keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
-    long long left = deadline_ms - keel_clock_ms();
-    if (!rc && *answer == KEEL_ILP_UNKNOWN && left > 0)
-        rc = keel_ilp_fit(w, lo, hi, (long)left, nurse_of, answer, err);
+    /* The least severity of breaking the joining rules: 0 is an assignment,
+     * a proven least above 0 shows there is none.  Its objective leads
+     * GLPK to assignments faster than the bare feasibility question. */
+    if (!rc && *answer == KEEL_ILP_UNKNOWN) {
+        bool found = false, proven = false;
+        long severity = 0;
+        rc = keel_best_effort(NULL, w, deadline_ms, nurse_of, &found, &severity, &proven, err);
+        bool valid = false;
+        if (!rc && found && severity == 0 && keel_solve_validate(w, nurse_of, &valid))
+            rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+        if (!rc && found && severity == 0 && valid)
+            *answer = KEEL_ILP_FEASIBLE;
+        else if (!rc && proven && severity > 0)
+            *answer = KEEL_ILP_INFEASIBLE;
+    }
     free(lo);
     free(hi);
     return rc;
@@ -160,6 +172,28 @@ static long nurses_for_ratios(const keel_workload *w, int limit)
     return nurses;
 }
 
+/* A group whose part in the conflict the time limit left open. */
+static char *describe_unsure(const keel_roster *r, const keel_workload *w, int g)
+{
+    char *rule =
+        g == GROUP_RATIO ? keel_strdup("every patient's own ratio (\"1:N\")")
+        : g == GROUP_HIGH
+            ? keel_asprintf("at most %d high-acuity patients (acuity %d or more) per nurse",
+                            w->max_high_acuity, r->policy.high_acuity.level)
+        : g == GROUP_ISOLATION
+            ? keel_strdup("protective-isolation patients apart from patients on contact, "
+                          "droplet or airborne precautions")
+            : keel_asprintf("each nurse's patients within %d zone%s", w->max_zones,
+                            w->max_zones == 1 ? "" : "s");
+    char *text = rule ? keel_asprintf("no assignment keeps %s together with the unit's other "
+                                      "rules; within the time limit keel could not tell whether "
+                                      "relaxing this rule alone would make one possible",
+                                      rule)
+                      : NULL;
+    free(rule);
+    return text;
+}
+
 static char *describe(const keel_roster *r, const keel_workload *w, int g, const bool *keep,
                       size_t nothers)
 {
@@ -232,7 +266,7 @@ static char *describe(const keel_roster *r, const keel_workload *w, int g, const
 }
 
 keel_status keel_diagnose_rules(const keel_roster *r, const keel_workload *w, long long deadline_ms,
-                                keel_findings *out, bool *decided, keel_error *err)
+                                keel_findings *out, keel_error *err)
 {
     size_t np = w->npatients, nn = w->nnurses;
     int *census = keel_malloc((np ? np : 1) * sizeof *census);
@@ -241,14 +275,13 @@ keel_status keel_diagnose_rules(const keel_roster *r, const keel_workload *w, lo
     size_t *pidx = keel_malloc((np ? np : 1) * sizeof *pidx);
     size_t *nidx = keel_malloc((nn ? nn : 1) * sizeof *nidx);
     keel_status rc = KEEL_OK;
-    *decided = false;
     if (!census || !none || !trial || !pidx || !nidx) {
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }
     for (size_t p = 0; p < np; p++)
         census[p] = (int)np;
-    bool keep[NGROUPS];
+    bool keep[NGROUPS], unsure[NGROUPS] = {false};
     int ngroups = 0;
     for (int g = 0; g < NGROUPS; g++) {
         keep[g] = group_on(w, g);
@@ -267,10 +300,9 @@ keel_status keel_diagnose_rules(const keel_roster *r, const keel_workload *w, lo
         if (rc)
             goto out;
         ngroups--;
-        if (answer == KEEL_ILP_UNKNOWN)
-            goto out; /* undecided: report nothing rather than guess */
-        if (answer == KEEL_ILP_FEASIBLE)
-            keep[g] = true; /* needed for the conflict */
+        /* Needed for the conflict, or, undecided, kept and said so. */
+        keep[g] = answer != KEEL_ILP_INFEASIBLE;
+        unsure[g] = answer == KEEL_ILP_UNKNOWN;
     }
     size_t nkept = 0;
     for (int g = 0; g < NGROUPS; g++)
@@ -282,7 +314,7 @@ keel_status keel_diagnose_rules(const keel_roster *r, const keel_workload *w, lo
     for (int g = 0; g < NGROUPS; g++) {
         if (!keep[g])
             continue;
-        char *message = describe(r, w, g, keep, nkept - 1);
+        char *message = unsure[g] ? describe_unsure(r, w, g) : describe(r, w, g, keep, nkept - 1);
         if (!message) {
             rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
             goto out;
@@ -293,7 +325,6 @@ keel_status keel_diagnose_rules(const keel_roster *r, const keel_workload *w, lo
             goto out;
         }
     }
-    *decided = nkept > 0;
 out:
     free(census);
     free(none);

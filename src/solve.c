@@ -271,12 +271,10 @@ keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
         if (rc)
             goto out;
         if (answer == KEEL_ILP_INFEASIBLE) {
-            bool decided = false;
-            rc = keel_diagnose_rules(roster, w, deadline, &s->diagnoses, &decided, err);
+            rc = keel_diagnose_rules(roster, w, deadline, &s->diagnoses, err);
             if (rc)
                 goto out;
-            if (decided)
-                goto infeasible;
+            goto infeasible;
         }
         if (answer != KEEL_ILP_FEASIBLE) {
             rc = keel_error_add(err, KEEL_ERR_SOLVER, NULL, 0, 0, NULL,
@@ -324,7 +322,8 @@ infeasible:
         s->nurse_of[p] = -1;
     if (options && options->best_effort) {
         bool found = false;
-        rc = keel_best_effort(roster, w, deadline, s->nurse_of, &found, &s->severity, err);
+        bool proven = false;
+        rc = keel_best_effort(roster, w, deadline, s->nurse_of, &found, &s->severity, &proven, err);
         s->best_effort = !rc && found;
         if (!s->best_effort)
             for (size_t p = 0; p < w->npatients; p++)

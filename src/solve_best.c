@@ -59,6 +59,7 @@ typedef struct best_model {
     bool nomem;
     bool found;
     long severity;
+    bool proven; /* GLPK proved the severity the least possible */
     glp_prob *lp;
 } best_model;
 
@@ -108,6 +109,8 @@ static int pair_severity(const keel_roster *r, const keel_workload *w, size_t p,
 {
     if (keel_workload_eligible(w, p, n))
         return 0;
+    if (!r)
+        return SEVERITY_PAIR;
     const keel_patient *pt = &r->patients[p];
     const keel_nurse *nu = &r->nurses[n];
     int severity = 0;
@@ -236,17 +239,20 @@ static int build_and_solve(void *ctx)
         m->found = true;
         double rest = glp_mip_obj_val(lp) - EVENNESS_WEIGHT * glp_mip_col_val(lp, peak);
         m->severity = (long)(rest + 0.5);
+        m->proven = ret == 0 && status == GLP_OPT;
         return 0;
     }
     return ret == GLP_ETMLIM ? 0 : ret;
 }
 
 keel_status keel_best_effort(const keel_roster *r, const keel_workload *w, long long deadline_ms,
-                             int *nurse_of, bool *found, long *severity, keel_error *err)
+                             int *nurse_of, bool *found, long *severity, bool *proven,
+                             keel_error *err)
 {
     size_t np = w->npatients, nn = w->nnurses;
     best_model m = {.r = r, .w = w, .nurse_of = nurse_of};
     *found = false;
+    *proven = false;
     bool any = false;
     for (size_t n = 0; n < nn; n++)
         any = any || keel_workload_counted(w, n);
@@ -254,6 +260,8 @@ keel_status keel_best_effort(const keel_roster *r, const keel_workload *w, long 
     if (!any || np == 0)
         return KEEL_OK;
     m.time_limit_ms = left < 1000 ? 1000 : (long)left; /* a plan is wanted even at the limit */
+    if (left < 1 && !r)
+        return KEEL_OK; /* a feasibility question out of time stays open */
     m.col = keel_calloc(np * nn, sizeof *m.col);
     if (!m.col)
         return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
@@ -269,6 +277,7 @@ keel_status keel_best_effort(const keel_roster *r, const keel_workload *w, long 
         else
             *found = m.found;
         *severity = m.severity;
+        *proven = m.found && m.proven;
     }
     free(m.col);
     free(m.ia);

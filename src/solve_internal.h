@@ -164,20 +164,26 @@ keel_status keel_find_valid(const keel_workload *w, long long deadline_ms, int *
                             keel_ilp_answer *answer, keel_error *err);
 
 /* diagnose_rules.c: when eligibility and limits allow an assignment but the
- * rules that join patients do not, finds a smallest set of those rule
- * groups that conflict (relaxing any one makes an assignment possible) and
- * appends one finding per group to out.  *decided is false when the time
- * ran out first.  Statuses: KEEL_OK, KEEL_ERR_NOMEM, KEEL_ERR_SOLVER. */
-keel_status keel_diagnose_rules(const keel_roster *r, const keel_workload *w, long long deadline_ms,
-                                keel_findings *out, bool *decided, keel_error *err);
-
-/* solve_best.c: for a roster with no valid assignment, the plan that breaks
- * the fewest rules by severity (docs/model.md), every patient with a nurse
- * who takes patients; *found is false when there is no such nurse or the
- * time ran out first; *severity is the plan's total.  Statuses: KEEL_OK,
+ * rules that join patients do not (proven), finds a smallest set of those
+ * rule groups that conflict (relaxing any one makes an assignment possible)
+ * and appends one finding per group to out; a group the time limit left
+ * undecided stays in the set and its finding says so.  Statuses: KEEL_OK,
  * KEEL_ERR_NOMEM, KEEL_ERR_SOLVER. */
+keel_status keel_diagnose_rules(const keel_roster *r, const keel_workload *w, long long deadline_ms,
+                                keel_findings *out, keel_error *err);
+
+/* solve_best.c: the plan that breaks the fewest rules by severity
+ * (docs/model.md), every patient with a nurse who takes patients; *found
+ * is false when there is no such nurse or the time ran out first;
+ * *severity is the plan's total, *proven true when GLPK proved it the
+ * least.  Severity 0 is a valid assignment; a proven severity above 0 shows
+ * that none exists.  r may be NULL: every ineligible pair then weighs as
+ * one broken rule (for the feasibility question alone, which then also
+ * gets no time beyond deadline_ms).  Statuses: KEEL_OK, KEEL_ERR_NOMEM,
+ * KEEL_ERR_SOLVER. */
 keel_status keel_best_effort(const keel_roster *r, const keel_workload *w, long long deadline_ms,
-                             int *nurse_of, bool *found, long *severity, keel_error *err);
+                             int *nurse_of, bool *found, long *severity, bool *proven,
+                             keel_error *err);
 
 /* solve_follow.c: stages 3 (continuity) and 4 (proximity) after the
  * balance stages, within the balance tolerance, on sol->nurse_of (which
