@@ -22,6 +22,10 @@ keel_status keel_report_yaml(const keel_report *report, FILE *out);
 /* Writes s as a double-quoted string with JSON escapes (valid YAML too). */
 void keel_write_quoted(FILE *out, const char *s);
 
+/* Writes one patient as an entry of a roster's patients list, with nurse as
+ * its `nurse:` (NULL: none). */
+void keel_yaml_write_patient(FILE *out, const keel_patient *patient, const char *nurse);
+
 /* Writes text as lines of at most width columns (words longer than a line
  * stand alone), each starting with indent. */
 void keel_write_wrapped(FILE *out, const char *indent, const char *text, size_t width);

@@ -107,6 +107,10 @@ static void write_patients(FILE *out, const keel_report *rep)
             fprintf(out, ", \"isolation\": \"%s\"", keel_isolation_name(r->patients[p].isolation));
         if (rep->workload->high_acuity[p])
             fputs(", \"high_acuity\": true", out);
+        if (r->patients[p].nnas > 0 && r->patients[p].care_minutes == KEEL_ABSENT) {
+            int score = keel_nas_score(r->patients[p].nas, r->patients[p].nnas);
+            fprintf(out, ", \"nas_score\": %d.%d", score / 10, score % 10);
+        }
         if (r->patients[p].previous_nurse) {
             fputs(", \"previous_nurse\": ", out);
             keel_write_quoted(out, r->patients[p].previous_nurse);
@@ -247,6 +251,14 @@ keel_status keel_report_json(const keel_report *rep, FILE *out)
         write_stages(out, s);
     if (s)
         write_findings(out, r, "diagnosis", &s->diagnoses);
+    for (size_t p = 0; p < r->npatients; p++) {
+        if (r->patients[p].nnas > 0 && r->patients[p].care_minutes == KEEL_ABSENT) {
+            fputs("  \"nas_note\": ", out);
+            keel_write_quoted(out, keel_nas_note());
+            fputs(",\n", out);
+            break;
+        }
+    }
     fputs("  \"caution\": ", out);
     keel_write_quoted(out, KEEL_CAUTION);
     fputs("\n}\n", out);

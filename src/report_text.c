@@ -33,6 +33,10 @@ static void write_patient_line(FILE *out, const keel_report *rep, size_t p)
             rep->workload->care_minutes[p]);
     if (pat->acuity != KEEL_ABSENT)
         fprintf(out, "  acuity %d", pat->acuity);
+    if (pat->nnas > 0 && pat->care_minutes == KEEL_ABSENT) {
+        int score = keel_nas_score(pat->nas, pat->nnas);
+        fprintf(out, "  NAS %d.%d*", score / 10, score % 10);
+    }
     for (size_t i = 0; i < pat->nneeds; i++)
         fprintf(out, "%s%s", i ? ", " : "  needs ", pat->needs[i]);
     if (pat->isolation != KEEL_ISOLATION_NONE)
@@ -146,11 +150,14 @@ static void write_proof(FILE *out, const keel_solution *s, const keel_metrics *m
         (m->max_utilisation > s->stages[0].value + 5e-10 ||
          m->min_utilisation < s->stages[1].value - 5e-10)) {
         char *line = keel_asprintf(
-            "This plan spends some of the balance tolerance (%.1f points) on continuity and "
-            "proximity: heaviest %.1f %% and lightest %.1f %%, against %.1f %% and %.1f %% at "
-            "best.",
-            100.0 * s->continuity.tolerance, 100.0 * m->max_utilisation, 100.0 * m->min_utilisation,
-            100.0 * s->stages[0].value, 100.0 * s->stages[1].value);
+            "This plan spends some of the balance tolerance (%.1f points) on %s: heaviest "
+            "%.1f %% and lightest %.1f %%, against %.1f %% and %.1f %% at best.",
+            100.0 * s->continuity.tolerance,
+            s->continuity.applies && s->proximity.applies ? "continuity and proximity"
+            : s->continuity.applies                       ? "continuity"
+                                                          : "proximity",
+            100.0 * m->max_utilisation, 100.0 * m->min_utilisation, 100.0 * s->stages[0].value,
+            100.0 * s->stages[1].value);
         if (line)
             keel_write_wrapped(out, "  ", line, 78);
         free(line);
@@ -277,6 +284,13 @@ keel_status keel_report_text(const keel_report *rep, FILE *out)
             if (rep->nurse_of)
                 fprintf(out, "; this plan's: %.1f %%", 100.0 * rep->metrics->max_utilisation);
             fputs("\n\n", out);
+        }
+    }
+    for (size_t p = 0; p < rep->roster->npatients; p++) {
+        if (rep->roster->patients[p].nnas > 0 &&
+            rep->roster->patients[p].care_minutes == KEEL_ABSENT) {
+            fprintf(out, "* %s\n\n", keel_nas_note());
+            break;
         }
     }
     write_staffing(out, rep->metrics, rep->staffing);

@@ -136,35 +136,41 @@ static void write_nurses(FILE *out, const keel_roster *r)
     }
 }
 
+void keel_yaml_write_patient(FILE *out, const keel_patient *pa, const char *nurse)
+{
+    fputs("  - id: ", out);
+    keel_write_quoted(out, pa->id);
+    fputc('\n', out);
+    write_key_string(out, "    ", "bed", pa->bed);
+    write_key_string(out, "    ", "name", pa->name);
+    write_key_int(out, "    ", "acuity", pa->acuity);
+    write_key_int(out, "    ", "care_minutes", pa->care_minutes);
+    write_key_list(out, "    ", "extras", pa->extras, pa->nextras);
+    write_key_list(out, "    ", "needs", pa->needs, pa->nneeds);
+    write_key_string(out, "    ", "nurse", nurse);
+    if (pa->lock)
+        fputs("    lock: true\n", out);
+    if (pa->sitter)
+        fputs("    sitter: true\n", out);
+    write_key_list(out, "    ", "avoid", pa->avoid, pa->navoid);
+    if (pa->ratio != KEEL_ABSENT)
+        fprintf(out, "    ratio: \"1:%d\"\n", pa->ratio);
+    if (pa->isolation != KEEL_ISOLATION_NONE)
+        fprintf(out, "    isolation: %s\n", keel_isolation_name(pa->isolation));
+    write_key_string(out, "    ", "room", pa->room);
+    write_key_string(out, "    ", "zone", pa->zone);
+    write_key_string(out, "    ", "previous_nurse", pa->previous_nurse);
+    write_key_list(out, "    ", "nas", pa->nas, pa->nnas);
+}
+
 static void write_patients(FILE *out, const keel_report *rep)
 {
     const keel_roster *r = rep->roster;
     fputs("patients:\n", out);
     for (size_t p = 0; p < r->npatients; p++) {
-        const keel_patient *pa = &r->patients[p];
-        fputs("  - id: ", out);
-        keel_write_quoted(out, pa->id);
-        fputc('\n', out);
-        write_key_string(out, "    ", "bed", pa->bed);
-        write_key_string(out, "    ", "name", pa->name);
-        write_key_int(out, "    ", "acuity", pa->acuity);
-        write_key_int(out, "    ", "care_minutes", pa->care_minutes);
-        write_key_list(out, "    ", "extras", pa->extras, pa->nextras);
-        write_key_list(out, "    ", "needs", pa->needs, pa->nneeds);
         int n = rep->nurse_of ? rep->nurse_of[p] : -1;
-        write_key_string(out, "    ", "nurse", n >= 0 ? r->nurses[n].id : pa->nurse);
-        if (pa->lock)
-            fputs("    lock: true\n", out);
-        if (pa->sitter)
-            fputs("    sitter: true\n", out);
-        write_key_list(out, "    ", "avoid", pa->avoid, pa->navoid);
-        if (pa->ratio != KEEL_ABSENT)
-            fprintf(out, "    ratio: \"1:%d\"\n", pa->ratio);
-        if (pa->isolation != KEEL_ISOLATION_NONE)
-            fprintf(out, "    isolation: %s\n", keel_isolation_name(pa->isolation));
-        write_key_string(out, "    ", "room", pa->room);
-        write_key_string(out, "    ", "zone", pa->zone);
-        write_key_string(out, "    ", "previous_nurse", pa->previous_nurse);
+        keel_yaml_write_patient(out, &r->patients[p],
+                                n >= 0 ? r->nurses[n].id : r->patients[p].nurse);
     }
 }
 

@@ -31,6 +31,8 @@
 #include <yaml.h>
 
 #include "alloc.h"
+#include "keel/nas.h"
+#include "roster_internal.h"
 
 #define ARRAY_LEN(a) (sizeof(a) / sizeof((a)[0]))
 
@@ -39,7 +41,7 @@ enum {
     MAX_PATH = 256, /* bytes of a key path in a message; longer ones are cut */
     MAX_SHOWN = 40, /* bytes of a file's text quoted back in a message */
     SHOWN_SIZE = MAX_SHOWN + 4,
-    MAX_KEYS = 16,          /* rows in one key table */
+    MAX_KEYS = 24,          /* rows in one key table */
     MAX_SUGGEST = 64,       /* longest unknown key that gets a "did you mean" */
     MINUTES_PER_DAY = 1440, /* the upper bound of every minutes figure */
     MAX_PATIENTS = 99,
@@ -244,10 +246,12 @@ static const char *describe(const node *n, char *buf, size_t size)
 
 /* Reports that n is not what was expected.  Aliases are reported once, by
  * check_plain_yaml(), and not again here. */
+static bool is_placeholder(const node *n);
+
 static void report_type(loader *ld, const node *n, const char *expected)
 {
     char what[SHOWN_SIZE + 16];
-    if (n->kind != NODE_ALIAS)
+    if (n->kind != NODE_ALIAS && !is_placeholder(n))
         report(ld, n->mark, "found %s; expected %s", describe(n, what, sizeof what), expected);
 }
 
@@ -457,9 +461,19 @@ fail:
 
 /* Reports every anchor, alias and tag in the tree: keel reads plain YAML
  * only, so that each value is written where it applies. */
+/* The placeholder `keel new` writes where only the unit knows the value;
+ * reported once, by check_plain_yaml(), and by no typed reader. */
+static bool is_placeholder(const node *n)
+{
+    return n->kind == NODE_SCALAR && !n->quoted && strcmp(n->text, KEEL_PLACEHOLDER) == 0;
+}
+
 static void check_plain_yaml(loader *ld, const node *n)
 {
     char shown[SHOWN_SIZE];
+    if (is_placeholder(n))
+        report(ld, n->mark, "%s is a placeholder from keel new; put the unit's own value here",
+               KEEL_PLACEHOLDER);
     if (n->kind == NODE_ALIAS)
         report(ld, n->mark, "alias '*%s' is not supported; write the value out in full",
                show(shown, n->anchor));
@@ -532,7 +546,7 @@ static bool read_int(loader *ld, const node *n, int min, int max, int *out)
 static bool read_string(loader *ld, const node *n, char **out)
 {
     *out = NULL;
-    if (n->kind != NODE_SCALAR || is_null(n)) {
+    if (n->kind != NODE_SCALAR || is_null(n) || is_placeholder(n)) {
         report_type(ld, n, "a string");
         return false;
     }
@@ -896,6 +910,8 @@ static bool read_word(loader *ld, const node *n, const char *what, const char *c
                       size_t nwords, bool of_nurse, int *index)
 {
     char shown[SHOWN_SIZE], names[256];
+    if (is_placeholder(n))
+        return false;
     join_words(names, sizeof names, words, nwords);
     if (n->kind != NODE_SCALAR || is_null(n) || n->text[0] == '\0') {
         char expected[sizeof names + 16];
@@ -1234,6 +1250,10 @@ static const key_rule patient_keys[] = {
     {.name = "previous_nurse",
      .parse = parse_string,
      .offset = offsetof(keel_patient, previous_nurse)},
+    {.name = "nas",
+     .parse = parse_names,
+     .offset = offsetof(keel_patient, nas),
+     .count_offset = offsetof(keel_patient, nnas)},
 };
 
 /* True when value is a non-empty sequence (reported if not). */
@@ -1489,7 +1509,7 @@ static void check_unique_id(loader *ld, const node *list, size_t i, const char *
 {
     const node *id = find_value(list->items[i], "id");
     char shown[SHOWN_SIZE], key[16];
-    if (!id || id->kind != NODE_SCALAR || is_null(id))
+    if (!id || id->kind != NODE_SCALAR || is_null(id) || is_placeholder(id))
         return;
     for (size_t j = 0; j < i; j++) {
         const node *other = find_value(list->items[j], "id");
@@ -1599,6 +1619,30 @@ static void check_acuity(loader *ld, size_t i, const node *item)
            p->acuity, levels);
 }
 
+/* Each entry of patients[i].nas is an item code of the instrument, each
+ * item scored once and one level per item. */
+static void check_nas(loader *ld, size_t i, const node *item)
+{
+    const keel_patient *p = &ld->roster->patients[i];
+    const node *list = find_value(item, "nas");
+    keel_nas_sheet sheet;
+    char message[256];
+    if (!list || list->kind != NODE_SEQUENCE || p->nnas == 0)
+        return;
+    keel_nas_sheet_init(&sheet);
+    for (size_t k = 0; k < p->nnas; k++) {
+        size_t earlier = k;
+        keel_nas_problem problem = keel_nas_sheet_add(&sheet, p->nas[k], &earlier);
+        /* A repeated code is reported by the list reader already. */
+        if (problem == KEEL_NAS_OK || problem == KEEL_NAS_DUPLICATE || !p->nas[k])
+            continue;
+        keel_nas_problem_format(problem, p->nas[k], p->nas[earlier], message, sizeof message);
+        set_path(ld, "patients", i, "nas");
+        push_index(ld, k);
+        report(ld, list->items[k]->mark, "%s", message);
+    }
+}
+
 static bool has_extra(const keel_roster *r, const char *name)
 {
     for (size_t k = 0; k < r->policy.nextras; k++)
@@ -1692,11 +1736,13 @@ static void check_patients(loader *ld, const node *list)
         if (item->kind != NODE_MAPPING)
             continue;
         check_unique_id(ld, list, i, "patient");
-        if (!find_value(item, "acuity") && !find_value(item, "care_minutes")) {
+        if (!find_value(item, "acuity") && !find_value(item, "care_minutes") &&
+            !find_value(item, "nas")) {
             set_path(ld, "patients", i, "acuity");
-            report(ld, item->mark, "missing; every patient needs acuity or care_minutes");
+            report(ld, item->mark, "missing; every patient needs acuity, care_minutes or nas");
         }
         check_acuity(ld, i, item);
+        check_nas(ld, i, item);
         check_extras(ld, i, item);
         check_patient_nurse(ld, i, item);
         check_lock(ld, i, item);
@@ -1874,6 +1920,21 @@ static void free_names(char **names, size_t count)
     free(names);
 }
 
+void keel_patient_fini(keel_patient *p)
+{
+    free(p->id);
+    free(p->bed);
+    free(p->name);
+    free_names(p->extras, p->nextras);
+    free_names(p->needs, p->nneeds);
+    free(p->nurse);
+    free_names(p->avoid, p->navoid);
+    free(p->room);
+    free(p->zone);
+    free(p->previous_nurse);
+    free_names(p->nas, p->nnas);
+}
+
 void keel_roster_free(keel_roster *roster)
 {
     if (!roster)
@@ -1886,22 +1947,11 @@ void keel_roster_free(keel_roster *roster)
         free(n->preceptor);
     }
     free(roster->nurses);
-    for (size_t i = 0; i < roster->npatients; i++) {
-        keel_patient *p = &roster->patients[i];
-        free(p->id);
-        free(p->bed);
-        free(p->name);
-        free_names(p->extras, p->nextras);
-        free_names(p->needs, p->nneeds);
-        free(p->nurse);
-        free_names(p->avoid, p->navoid);
-        free(p->room);
-        free(p->zone);
-        free(p->previous_nurse);
-    }
+    for (size_t i = 0; i < roster->npatients; i++)
+        keel_patient_fini(&roster->patients[i]);
+    free(roster->patients);
     for (size_t i = 0; i < KEEL_NISOLATION; i++)
         free_names(roster->policy.isolation_needs[i], roster->policy.nisolation_needs[i]);
-    free(roster->patients);
     for (size_t i = 0; i < roster->policy.nextras; i++)
         free(roster->policy.extra_minutes[i].name);
     free(roster->policy.extra_minutes);
@@ -1983,7 +2033,7 @@ keel_status keel_roster_parse(const char *name, const char *text, size_t len, ke
 }
 
 /* Reads the whole file at path into a new buffer. */
-static keel_status read_file(const char *path, char **text, size_t *len, keel_error *err)
+keel_status keel_read_file(const char *path, char **text, size_t *len, keel_error *err)
 {
     size_t capacity = 0, used = 0;
     char *buf = NULL;
@@ -2022,12 +2072,22 @@ keel_status keel_roster_load(const char *path, keel_roster **out, keel_error *er
         return keel_error_add(err, KEEL_ERR_USAGE, NULL, 0, 0, NULL,
                               "keel_roster_load: out and path are required");
     *out = NULL;
-    keel_status rc = read_file(path, &text, &len, err);
+    keel_status rc = keel_read_file(path, &text, &len, err);
     if (rc)
         return rc;
     rc = keel_roster_parse(path, text, len, out, err);
     free(text);
     return rc;
+}
+
+size_t keel_unit_ntypes(void)
+{
+    return ARRAY_LEN(unit_types);
+}
+
+const char *keel_unit_type(size_t i)
+{
+    return i < ARRAY_LEN(unit_types) ? unit_types[i] : NULL;
 }
 
 const char *keel_isolation_name(keel_isolation isolation)

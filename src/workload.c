@@ -11,11 +11,14 @@
 #include <string.h>
 
 #include "alloc.h"
+#include "keel/nas.h"
 
 static int patient_care(const keel_roster *r, const keel_patient *p)
 {
-    int care =
-        p->care_minutes != KEEL_ABSENT ? p->care_minutes : keel_roster_acuity_minutes(r, p->acuity);
+    int care = p->care_minutes != KEEL_ABSENT ? p->care_minutes
+               : p->nnas > 0
+                   ? keel_nas_shift_minutes(keel_nas_score(p->nas, p->nnas), r->shift.minutes)
+                   : keel_roster_acuity_minutes(r, p->acuity);
     if (care == KEEL_ABSENT)
         care = 0; /* unreachable for a validated roster */
     for (size_t i = 0; i < p->nextras; i++) {

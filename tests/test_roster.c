@@ -442,8 +442,8 @@ static void test_roster_reports_every_problem_in_a_file(void **state)
         "unique id",
         "roster.yaml:7:5: patients[0].id: missing; every patient needs a unique id",
         "roster.yaml:7:13: patients[0].acuity: level 7 is not in policy.acuity_minutes (1-3)",
-        "roster.yaml:8:5: patients[1].acuity: missing; every patient needs acuity or "
-        "care_minutes",
+        "roster.yaml:8:5: patients[1].acuity: missing; every patient needs acuity, "
+        "care_minutes or nas",
         "roster.yaml:8:21: patients[1].nurse: no nurse 'N9' on this roster",
         NULL};
     (void)state;
@@ -468,8 +468,8 @@ static void test_roster_suggests_the_nearest_key_only_when_close(void **state)
         "roster.yaml:2:28: nurses[0].Skills: unknown key; did you mean 'skills'?",
         "roster.yaml:2:40: nurses[0].colour: unknown key; expected one of id, name, skills, "
         "max_patients, minutes, break_minutes, duty_minutes, role, licence, preceptor",
-        "roster.yaml:3:12: patients[0].acuity: missing; every patient needs acuity or "
-        "care_minutes",
+        "roster.yaml:3:12: patients[0].acuity: missing; every patient needs acuity, "
+        "care_minutes or nas",
         "roster.yaml:3:21: patients[0].acuty: unknown key; did you mean 'acuity'?",
         NULL};
     (void)state;

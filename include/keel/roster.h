@@ -24,6 +24,14 @@
 extern "C" {
 #endif
 
+/* What `keel new` writes where only the unit knows the value; the loader
+ * refuses a roster that still has one (a problem at each). */
+#define KEEL_PLACEHOLDER "FILL_IN"
+
+/* The unit.type words, in their documented order. */
+size_t keel_unit_ntypes(void);
+const char *keel_unit_type(size_t i);
+
 /* Value of an optional integer field that the roster does not give. */
 #define KEEL_ABSENT (-1)
 
@@ -105,7 +113,9 @@ typedef struct keel_patient {
     char *room;               /* NULL when absent */
     char *zone;               /* NULL when absent; a group of rooms */
     char *previous_nurse;     /* the previous shift's nurse (may be off this roster), or NULL */
-    keel_mark mark;           /* where the patient's mapping starts */
+    size_t nnas;
+    char **nas;     /* Nursing Activities Score item codes ("1b", "4a", ...), valid (keel/nas.h) */
+    keel_mark mark; /* where the patient's mapping starts */
 } keel_patient;
 
 typedef struct keel_acuity_level {

@@ -4,7 +4,8 @@
  * roster: care minutes per patient, capacity, duty minutes and patient
  * limit per nurse, and which patient-nurse pairs are eligible.
  *
- *   care(p)     = care_minutes, or policy.acuity_minutes[acuity]; plus
+ *   care(p)     = care_minutes, or the shift's share of its NAS score, or
+ *                 policy.acuity_minutes[acuity]; plus
  *                 policy.extra_minutes[x] for each x in extras
  *   capacity(n) = minutes - break_minutes      (both default to the shift's)
  *   load(n)     = duty_minutes + sum of care(p) over n's patients

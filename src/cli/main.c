@@ -28,8 +28,14 @@ typedef struct options {
     const char *output;
     const char *method;
     long time_limit_ms;
-    bool explain;     /* --explain: a reason per patient */
-    bool best_effort; /* --best-effort: a labelled plan even when no valid one exists */
+    bool explain;      /* --explain: a reason per patient */
+    bool best_effort;  /* --best-effort: a labelled plan even when no valid one exists */
+    const char *type;  /* new, import: --type */
+    const char *table; /* new, import: --table */
+    const char *unit;  /* new, import: --unit */
+    const char *shift; /* new, import: --shift */
+    const char *base;  /* import: --roster, the roster the census joins */
+    const char *map;   /* import: --map field=Header,... */
 } options;
 
 typedef struct command {
@@ -41,6 +47,8 @@ typedef struct command {
 
 static int run_assign(const options *opt);
 static int run_check(const options *opt);
+static int run_new(const options *opt);
+static int run_import(const options *opt);
 
 static const command commands[] = {
     {"assign", "balance the roster's patients across its nurses",
@@ -74,6 +82,36 @@ static const command commands[] = {
      "  -t, --time-limit SECS  limit for finding the best possible (default 10)\n"
      "  -o, --output FILE      write to FILE (replaced atomically; never the roster)\n",
      run_check},
+    {"new", "write a commented roster for a unit to fill in",
+     "usage: keel new [--type UNIT-TYPE] [--table NAME] [--unit NAME] [--shift day|evening|night]\n"
+     "                [-o FILE]\n"
+     "\n"
+     "Writes a roster template with comments.  Where only the unit knows the value (its\n"
+     "acuity scale, limits, nurses) it writes " KEEL_PLACEHOLDER ", which keel refuses until it\n"
+     "is replaced.  No staffing law applies unless you name a ratio table.\n"
+     "\n"
+     "  --type TYPE            unit type: icu, step-down, telemetry, med-surg, pediatrics,\n"
+     "                         emergency, oncology, psychiatric, labor-delivery, postpartum,\n"
+     "                         pacu, burn, nicu, other (default other)\n"
+     "  --table NAME           a built-in ratio table: california or queensland\n"
+     "  --unit NAME            the unit's name\n"
+     "  --shift LABEL          day (07:00, default), evening (15:00) or night (19:00)\n"
+     "  -o, --output FILE      write to FILE (replaced atomically)\n",
+     run_new},
+    {"import", "turn a census CSV into a roster",
+     "usage: keel import CENSUS.csv [--roster BASE.yaml] [--map FIELD=HEADER,...]\n"
+     "                   [--type TYPE] [--table NAME] [--unit NAME] [--shift LABEL] [-o FILE]\n"
+     "\n"
+     "Reads the census (columns bed, patient, acuity, needs, isolation, and more; see\n"
+     "docs/census-format.md) and writes a roster: the unit, policy and nurses of BASE\n"
+     "with the census's patients, or, without --roster, a template as keel new writes\n"
+     "it with the census's patients in it.\n"
+     "\n"
+     "  --roster FILE          the roster whose unit, shift, policy and nurses to keep\n"
+     "  --map SPEC             read fields from other columns: patient=MRN,acuity=Level\n"
+     "  --type, --table, --unit, --shift   as for keel new (without --roster)\n"
+     "  -o, --output FILE      write to FILE (replaced atomically; never an input)\n",
+     run_import},
 };
 
 static const size_t ncommands = sizeof commands / sizeof commands[0];
@@ -188,8 +226,12 @@ static int parse_args(const command *cmd, int argc, char **argv, options *opt, b
             *help = true;
             return 0;
         }
-        if (matches(arg, "-f", "--format", &len) || matches(arg, "-o", "--output", &len) ||
-            matches(arg, "-m", "--method", &len) || matches(arg, "-t", "--time-limit", &len)) {
+        bool solving = cmd->run == run_assign || cmd->run == run_check;
+        bool writing = cmd->run == run_new || cmd->run == run_import;
+        if (matches(arg, "-o", "--output", &len) ||
+            (solving &&
+             (matches(arg, "-f", "--format", &len) || matches(arg, "-m", "--method", &len) ||
+              matches(arg, "-t", "--time-limit", &len)))) {
             value = option_value(argc, argv, &i, arg, len);
             if (!value)
                 return usage_error(cmd, "%s needs a value", arg);
@@ -204,6 +246,25 @@ static int parse_args(const command *cmd, int argc, char **argv, options *opt, b
                 return EXIT_USAGE;
             continue;
         }
+        const char **slot = NULL;
+        if (writing && matches(arg, "--type", "--type", &len))
+            slot = &opt->type;
+        else if (writing && matches(arg, "--table", "--table", &len))
+            slot = &opt->table;
+        else if (writing && matches(arg, "--unit", "--unit", &len))
+            slot = &opt->unit;
+        else if (writing && matches(arg, "--shift", "--shift", &len))
+            slot = &opt->shift;
+        else if (cmd->run == run_import && matches(arg, "--roster", "--roster", &len))
+            slot = &opt->base;
+        else if (cmd->run == run_import && matches(arg, "--map", "--map", &len))
+            slot = &opt->map;
+        if (slot) {
+            *slot = option_value(argc, argv, &i, arg, len);
+            if (!*slot)
+                return usage_error(cmd, "%s needs a value", arg);
+            continue;
+        }
         if (cmd->run == run_assign && (strcmp(arg, "-e") == 0 || strcmp(arg, "--explain") == 0)) {
             opt->explain = true;
             continue;
@@ -214,12 +275,20 @@ static int parse_args(const command *cmd, int argc, char **argv, options *opt, b
         }
         if (arg[0] == '-' && arg[1] != '\0')
             return usage_error(cmd, "unknown option '%s'", arg);
+        if (cmd->run == run_new)
+            return usage_error(cmd, "takes no file; '%s' is one too many", arg);
         if (opt->roster)
-            return usage_error(cmd, "one roster at a time; '%s' is one too many", arg);
+            return usage_error(cmd, "one file at a time; '%s' is one too many", arg);
         opt->roster = arg;
     }
-    if (!opt->roster)
+    if (!opt->roster && cmd->run == run_import)
+        return usage_error(cmd, "%s", "which census? Give the census CSV file");
+    if (!opt->roster && cmd->run != run_new)
         return usage_error(cmd, "%s", "which roster? Give the roster file");
+    if (cmd->run == run_import && opt->base && (opt->type || opt->table || opt->unit || opt->shift))
+        return usage_error(cmd, "%s",
+                           "--type, --table, --unit and --shift are for a new roster; with "
+                           "--roster, the base roster gives them");
     return 0;
 }
 
@@ -389,6 +458,74 @@ static int run_check(const options *opt)
     if (code)
         return code;
     return infeasible ? EXIT_INFEASIBLE : 0;
+}
+
+/* Writes through fn to -o or stdout, atomically; never over input. */
+static int write_out(const options *opt, const char *input,
+                     keel_status (*fn)(const options *opt, void *ctx, FILE *out, keel_error *err),
+                     void *ctx)
+{
+    cli_output out;
+    keel_error err;
+    keel_error_init(&err);
+    int code = cli_output_open(&out, opt->output, input);
+    if (code)
+        return code;
+    keel_status rc = fn(opt, ctx, out.stream, &err);
+    if (rc)
+        print_problems(&err);
+    keel_error_fini(&err);
+    bool written = cli_output_close(&out, rc == KEEL_OK);
+    if (rc)
+        return exit_code(rc);
+    return written ? 0 : EXIT_INTERNAL;
+}
+
+static keel_status write_template(const options *opt, void *ctx, FILE *out, keel_error *err)
+{
+    keel_template_options t = {
+        .unit_type = opt->type, .table = opt->table, .unit_name = opt->unit, .shift = opt->shift};
+    return keel_template_write(&t, ctx, out, err);
+}
+
+static int run_new(const options *opt)
+{
+    return write_out(opt, opt->base, write_template, NULL);
+}
+
+static keel_status write_joined(const options *opt, void *ctx, FILE *out, keel_error *err)
+{
+    (void)opt;
+    keel_report rep = {.kind = KEEL_REPORT_CHECK, .roster = ctx};
+    return keel_report_write("yaml", &rep, out, err);
+}
+
+static int run_import(const options *opt)
+{
+    keel_error err;
+    keel_error_init(&err);
+    keel_census *census = NULL;
+    keel_roster *base = NULL;
+    keel_status rc = keel_census_load(opt->roster, opt->map, &census, &err);
+    if (!rc && opt->base)
+        rc = keel_roster_load(opt->base, &base, &err);
+    if (!rc && base)
+        rc = keel_census_into_roster(census, base, &err);
+    int code = 0;
+    if (rc) {
+        print_problems(&err);
+        code = exit_code(rc);
+    } else if (cli_output_clobbers(opt->output, opt->roster)) {
+        code = EXIT_USAGE;
+    } else if (base) {
+        code = write_out(opt, opt->base, write_joined, base);
+    } else {
+        code = write_out(opt, opt->roster, write_template, census);
+    }
+    keel_error_fini(&err);
+    keel_roster_free(base);
+    keel_census_free(census);
+    return code;
 }
 
 int main(int argc, char **argv)

@@ -20,6 +20,17 @@ static bool same_file(const char *a, const char *b)
     return sa.st_dev == sb.st_dev && sa.st_ino == sb.st_ino;
 }
 
+bool cli_output_clobbers(const char *path, const char *input)
+{
+    if (!path || !input || strcmp(path, "-") == 0)
+        return false;
+    if (strcmp(path, input) != 0 && !same_file(path, input))
+        return false;
+    fprintf(stderr, "keel: %s: refusing to write over an input file; choose another output file\n",
+            path);
+    return true;
+}
+
 int cli_output_open(cli_output *o, const char *path, const char *input)
 {
     *o = (cli_output){.stream = stdout};

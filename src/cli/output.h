@@ -18,6 +18,9 @@ typedef struct cli_output {
  * cannot be created. */
 int cli_output_open(cli_output *o, const char *path, const char *input);
 
+/* True (and says so on stderr) when writing path would replace input. */
+bool cli_output_clobbers(const char *path, const char *input);
+
 /* Flushes and checks the stream; for a file, renames the temporary file over
  * path (commit true) or removes it (commit false).  Returns false, after
  * saying why on stderr, when anything failed. */

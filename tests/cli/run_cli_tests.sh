@@ -153,6 +153,45 @@ has "$work/out" "# BEST-EFFORT PLAN" "yaml labels the best-effort plan"
 expect 3 "no best effort unless asked" -- "$keel" assign "$data/infeasible-chemo.yaml" --format json
 has "$work/out" '"best_effort": false' "json says when there is no best-effort plan"
 
+# keel new writes a template that keel refuses until every placeholder is
+# filled in; a law applies only when the user names a table.
+expect 0 "new" -- "$keel" new --type med-surg -o "$work/new.yaml"
+expect 2 "a template with placeholders is refused" -- "$keel" check "$work/new.yaml"
+has "$work/err" "new.yaml:16:18: shift.break_minutes: FILL_IN is a placeholder from keel new; put the unit's own value here" "each placeholder is named with its place"
+expect 0 "new without a table names none" -- "$keel" new --type icu
+if grep -q "ratio_table" "$work/out"; then not_ok "no table unless asked"; else ok "no table unless asked"; fi
+expect 0 "new with a table" -- "$keel" new --type telemetry --table california
+has "$work/out" "ratio_table: california" "the named table is in the template"
+has "$work/out" "at most 4 patients per nurse" "the template says the table's number"
+expect 1 "a table without the unit type" -- "$keel" new --type oncology --table california
+expect 1 "new takes no file" -- "$keel" new roster.yaml
+
+# keel import: a census into a base roster, or into a template.
+expect 0 "import into a base roster" -- "$keel" import "$data/census-plain.csv" --roster "$examples/medsurg-day.yaml" -o "$work/tonight.yaml"
+expect 0 "the imported roster assigns" -- "$keel" assign "$work/tonight.yaml" --format json
+has "$work/out" '"id": "P-30103"' "the census's patients are in the roster"
+has "$work/out" '"isolation": "protective"' "isolation comes through"
+expect 0 "import into a template" -- "$keel" import "$data/census-plain.csv" --type med-surg
+has "$work/out" "# Patients from the census" "the template holds the census"
+has "$work/out" 'id: "P-30105"' "every patient is written"
+expect 2 "a bad census" -- "$keel" import "$data/census-bad.csv" --map patient=MRN,acuity=Level,needs=Skills,isolation=Iso
+has "$work/err" "census-bad.csv:3:7: acuity: 'seven' is not a whole number from 0 to 99" "a bad figure is named with line and column"
+has "$work/err" "census-bad.csv:3:14: isolation: unknown precaution 'airbone'" "a bad precaution is named"
+expect 1 "a bad mapping" -- "$keel" import "$data/census-plain.csv" --map acuity
+expect 1 "import refuses to write over the census" -- "$keel" import "$data/census-plain.csv" -o "$data/census-plain.csv"
+expect 1 "a base roster gives the unit" -- "$keel" import "$data/census-plain.csv" --roster "$examples/medsurg-day.yaml" --type icu
+
+# Source: Miranda et al., Crit Care Med 2003 (NAS weights as in sources.md):
+# 1b 12.1 + 4b 16.5 + 6b 12.4 + 7a 4.0 + 8a 4.2 + 9 1.4 + 12 1.2 + 14 1.7 +
+# 17 7.0 = 60.5 points; 1 point = 14.4 min per 24 h, so a 720-min shift's
+# share is 60.5 x 7.2 = 435.6 min, rounded up to 436.
+expect 0 "NAS-scored patients" -- "$keel" assign "$data/nas-icu.yaml" --format json
+has "$work/out" '"care_minutes": 436, "locked": false, "sitter": false, "nas_score": 60.5' "NAS points become the shift's share of care minutes"
+has "$work/out" '"nas_note": "NAS-based minutes are an approximation' "json carries the approximation note"
+expect 0 "NAS in text" -- "$keel" assign "$data/nas-icu.yaml"
+has "$work/out" "NAS 60.5*" "the sheet shows the score"
+has "$work/out" "* NAS-based minutes are an approximation" "the sheet labels the minutes an approximation"
+
 # The greedy method is never called optimal unless its bound proves it.
 expect 0 "greedy method" -- "$keel" assign "$examples/medsurg-day.yaml" --method greedy --format json
 has "$work/out" '"method": "greedy"' "the greedy method says so"

@@ -1,0 +1,20 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/* roster_internal.h - pieces of the roster module other readers share
+ * (internal). */
+#ifndef KEEL_ROSTER_INTERNAL_H
+#define KEEL_ROSTER_INTERNAL_H
+
+#include <stddef.h>
+
+#include "keel/error.h"
+#include "keel/roster.h"
+
+/* Reads the whole file at path into a new buffer *text of *len bytes.
+ * Statuses: KEEL_OK, KEEL_ERR_IO (one problem naming the file),
+ * KEEL_ERR_NOMEM. */
+keel_status keel_read_file(const char *path, char **text, size_t *len, keel_error *err);
+
+/* Frees everything a patient owns (not the patient itself). */
+void keel_patient_fini(keel_patient *p);
+
+#endif
