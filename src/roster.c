@@ -1037,6 +1037,19 @@ static void parse_tolerance(loader *ld, const node *value, void *target, const k
         *(int *)field_of(target, rule->offset) = (int)ppm;
 }
 
+/* The key before items[i] of a mapping that reads the same as items[i], or
+ * NULL: a key given twice. */
+static const node *earlier_key(const node *map, size_t i)
+{
+    const node *key = map->items[i];
+    for (size_t j = 0; j < i; j += 2) {
+        const node *earlier = map->items[j];
+        if (earlier->kind == NODE_SCALAR && strcmp(earlier->text, key->text) == 0)
+            return earlier;
+    }
+    return NULL;
+}
+
 /* policy.isolation_needs: precaution -> competencies every such patient needs. */
 static void parse_isolation_needs(loader *ld, const node *value, void *target, const key_rule *rule)
 {
@@ -1052,11 +1065,7 @@ static void parse_isolation_needs(loader *ld, const node *value, void *target, c
         if (!check_key(ld, key))
             continue;
         size_t old = push_key(ld, key->text);
-        for (size_t j = 0; j < i && !first; j += 2) {
-            const node *earlier = value->items[j];
-            if (earlier->kind == NODE_SCALAR && strcmp(earlier->text, key->text) == 0)
-                first = earlier;
-        }
+        first = earlier_key(value, i);
         if (first) {
             report(ld, key->mark, "given twice (first on line %d); expected each precaution once",
                    first->mark.line);
@@ -1156,11 +1165,7 @@ static void parse_extra_table(loader *ld, const node *value, void *target, const
         if (!check_key(ld, key))
             continue;
         size_t old = push_key(ld, key->text);
-        for (size_t j = 0; j < i && !first; j += 2) {
-            const node *earlier = value->items[j];
-            if (earlier->kind == NODE_SCALAR && strcmp(earlier->text, key->text) == 0)
-                first = earlier;
-        }
+        first = earlier_key(value, i);
         if (first) {
             report(ld, key->mark, "given twice (first on line %d); expected each extra once",
                    first->mark.line);
@@ -1370,11 +1375,7 @@ static void parse_role_table(loader *ld, const node *value, void *target, const 
         if (!check_key(ld, key))
             continue;
         size_t old = push_key(ld, key->text);
-        for (size_t j = 0; j < i && !first; j += 2) {
-            const node *earlier = value->items[j];
-            if (earlier->kind == NODE_SCALAR && strcmp(earlier->text, key->text) == 0)
-                first = earlier;
-        }
+        first = earlier_key(value, i);
         if (first)
             report(ld, key->mark, "given twice (first on line %d); expected each role once",
                    first->mark.line);

@@ -3,7 +3,7 @@
  * solve_best.c - the best-effort plan (`--best-effort`) for a roster with
  * no valid assignment: every patient still gets a nurse who takes
  * patients, and the rules broken weigh as little as possible.  With
- * solve_ilp.c, the only file that includes glpk.h.
+ * solve_ilp.c, one of the only two files that include glpk.h.
  *
  * Each patient goes to one counted nurse, x[p, n] binary, every pair
  * allowed.  Severities (documented in docs/model.md):
@@ -35,6 +35,7 @@
 
 #include "alloc.h"
 #include "solve_internal.h"
+#include "triplets.h"
 
 enum {
     SEVERITY_PAIR = 100,
@@ -52,41 +53,14 @@ typedef struct best_model {
     const keel_workload *w;
     long time_limit_ms;
     int *nurse_of;
-    int *col; /* [npatients * nnurses]: column of x[p, n], or 0 */
-    int *ia, *ja;
-    double *ar;
-    size_t nnz, cap;
+    int *col;          /* [npatients * nnurses]: column of x[p, n], or 0 */
+    keel_triplets mat; /* the matrix */
     bool nomem;
     bool found;
     long severity;
     bool proven; /* GLPK proved the severity the least possible */
     glp_prob *lp;
 } best_model;
-
-static void put(best_model *m, int row, int col, double val)
-{
-    if (m->nnz + 2 > m->cap) {
-        size_t cap = m->cap ? 2 * m->cap : 1024;
-        int *ia = keel_reallocarray(m->ia, cap, sizeof *ia);
-        if (ia)
-            m->ia = ia;
-        int *ja = keel_reallocarray(m->ja, cap, sizeof *ja);
-        if (ja)
-            m->ja = ja;
-        double *ar = keel_reallocarray(m->ar, cap, sizeof *ar);
-        if (ar)
-            m->ar = ar;
-        if (!ia || !ja || !ar) {
-            m->nomem = true;
-            return;
-        }
-        m->cap = cap;
-    }
-    m->nnz++;
-    m->ia[m->nnz] = row;
-    m->ja[m->nnz] = col;
-    m->ar[m->nnz] = val;
-}
 
 static int row(glp_prob *lp, int type, double lb, double ub)
 {
@@ -136,48 +110,50 @@ static void add_nurse_rows(best_model *m, glp_prob *lp, size_t n)
     double census = (double)np, limit = w->max_patients[n];
     bool law = w->law_limit != KEEL_ABSENT && w->max_patients[n] == w->law_limit;
     int count = row(lp, GLP_UP, 0.0, limit);
-    put(m, count, column(lp, GLP_IV, census, law ? SEVERITY_LAW : SEVERITY_LIMIT), -1.0);
+    keel_triplets_put(&m->mat, count,
+                      column(lp, GLP_IV, census, law ? SEVERITY_LAW : SEVERITY_LIMIT), -1.0);
     for (size_t p = 0; p < np; p++)
-        put(m, count, m->col[p * nn + n], 1.0);
+        keel_triplets_put(&m->mat, count, m->col[p * nn + n], 1.0);
     for (size_t p = 0; p < np; p++) {
         int r = w->ratio_limit[p];
         if (r >= w->max_patients[n])
             continue;
         int ratio = row(lp, GLP_UP, 0.0, census);
         for (size_t q = 0; q < np; q++)
-            put(m, ratio, m->col[q * nn + n], q == p ? 1.0 + census - r : 1.0);
-        put(m, ratio, column(lp, GLP_IV, census, SEVERITY_RATIO), -1.0);
+            keel_triplets_put(&m->mat, ratio, m->col[q * nn + n], q == p ? 1.0 + census - r : 1.0);
+        keel_triplets_put(&m->mat, ratio, column(lp, GLP_IV, census, SEVERITY_RATIO), -1.0);
     }
     if (w->max_high_acuity != KEEL_ABSENT) {
         int high = row(lp, GLP_UP, 0.0, (double)w->max_high_acuity);
         for (size_t p = 0; p < np; p++)
             if (w->high_acuity[p])
-                put(m, high, m->col[p * nn + n], 1.0);
-        put(m, high, column(lp, GLP_IV, census, SEVERITY_HIGH), -1.0);
+                keel_triplets_put(&m->mat, high, m->col[p * nn + n], 1.0);
+        keel_triplets_put(&m->mat, high, column(lp, GLP_IV, census, SEVERITY_HIGH), -1.0);
     }
     if (w->isolation_rule) {
         int b = column(lp, GLP_BV, 1.0, 0.0), both = column(lp, GLP_BV, 1.0, SEVERITY_ISOLATION);
         int prot = row(lp, GLP_UP, 0.0, 0.0), inf = row(lp, GLP_UP, 0.0, census);
         for (size_t p = 0; p < np; p++) {
             if (w->side[p] == KEEL_SIDE_PROTECTIVE)
-                put(m, prot, m->col[p * nn + n], 1.0);
+                keel_triplets_put(&m->mat, prot, m->col[p * nn + n], 1.0);
             if (w->side[p] == KEEL_SIDE_INFECTIOUS)
-                put(m, inf, m->col[p * nn + n], 1.0);
+                keel_triplets_put(&m->mat, inf, m->col[p * nn + n], 1.0);
         }
-        put(m, prot, b, -census);
-        put(m, inf, b, census);
-        put(m, inf, both, -census);
+        keel_triplets_put(&m->mat, prot, b, -census);
+        keel_triplets_put(&m->mat, inf, b, census);
+        keel_triplets_put(&m->mat, inf, both, -census);
     }
     if (w->zones_rule) {
         int zones = row(lp, GLP_UP, 0.0, (double)w->max_zones);
-        put(m, zones, column(lp, GLP_IV, (double)w->nzones, SEVERITY_ZONES), -1.0);
+        keel_triplets_put(&m->mat, zones, column(lp, GLP_IV, (double)w->nzones, SEVERITY_ZONES),
+                          -1.0);
         for (size_t k = 0; k < w->nzones; k++) {
             int z = column(lp, GLP_BV, 1.0, 0.0), tie = row(lp, GLP_UP, 0.0, 0.0);
             for (size_t p = 0; p < np; p++)
                 if (w->zone[p] == (int)k)
-                    put(m, tie, m->col[p * nn + n], 1.0);
-            put(m, tie, z, -census);
-            put(m, zones, z, 1.0);
+                    keel_triplets_put(&m->mat, tie, m->col[p * nn + n], 1.0);
+            keel_triplets_put(&m->mat, tie, z, -census);
+            keel_triplets_put(&m->mat, zones, z, 1.0);
         }
     }
 }
@@ -200,7 +176,7 @@ static int build_and_solve(void *ctx)
         int once = row(lp, GLP_FX, 1.0, 1.0);
         for (size_t n = 0; n < nn; n++)
             if (m->col[p * nn + n])
-                put(m, once, m->col[p * nn + n], 1.0);
+                keel_triplets_put(&m->mat, once, m->col[p * nn + n], 1.0);
     }
     for (size_t n = 0; n < nn; n++) {
         if (!keel_workload_counted(w, n))
@@ -208,12 +184,13 @@ static int build_and_solve(void *ctx)
         add_nurse_rows(m, lp, n);
         int load = row(lp, GLP_UP, 0.0, -(double)w->duty_minutes[n]);
         for (size_t p = 0; p < np; p++)
-            put(m, load, m->col[p * nn + n], (double)w->care_minutes[p]);
-        put(m, load, peak, -(double)w->capacity_minutes[n]);
+            keel_triplets_put(&m->mat, load, m->col[p * nn + n], (double)w->care_minutes[p]);
+        keel_triplets_put(&m->mat, load, peak, -(double)w->capacity_minutes[n]);
     }
+    m->nomem = m->nomem || m->mat.nomem;
     if (m->nomem)
         return 0;
-    glp_load_matrix(lp, (int)m->nnz, m->ia, m->ja, m->ar);
+    glp_load_matrix(lp, (int)m->mat.n, m->mat.ia, m->mat.ja, m->mat.ar);
     long long started = keel_clock_ms();
     glp_smcp lp_parm;
     glp_init_smcp(&lp_parm);
@@ -280,8 +257,6 @@ keel_status keel_best_effort(const keel_roster *r, const keel_workload *w, long 
         *proven = m.found && m.proven;
     }
     free(m.col);
-    free(m.ia);
-    free(m.ja);
-    free(m.ar);
+    keel_triplets_fini(&m.mat);
     return rc;
 }

@@ -18,6 +18,7 @@
 
 #include "alloc.h"
 #include "solve_internal.h"
+#include "triplets.h"
 
 static void on_glpk_error(void *info)
 {
@@ -62,39 +63,12 @@ typedef struct model {
     int ny;              /* columns 1..ny are the y */
     int *link;           /* [ncols + 1]: the row that ties a binary to its y, or 0 */
     size_t nlink;
-    int *ia, *ja; /* the matrix as triplets, 1-based as GLPK wants */
-    double *ar;
-    size_t nnz, cap;
+    keel_triplets mat; /* the matrix */
     bool nomem;
     double bound; /* best bound GLPK reported, when have_bound */
     bool have_bound;
     bool start_given;
 } model;
-
-static void put(model *m, int row, int col, double val)
-{
-    if (m->nnz + 2 > m->cap) {
-        size_t cap = m->cap ? 2 * m->cap : 256;
-        int *ia = keel_reallocarray(m->ia, cap, sizeof *ia);
-        if (ia)
-            m->ia = ia;
-        int *ja = keel_reallocarray(m->ja, cap, sizeof *ja);
-        if (ja)
-            m->ja = ja;
-        double *ar = keel_reallocarray(m->ar, cap, sizeof *ar);
-        if (ar)
-            m->ar = ar;
-        if (!ia || !ja || !ar) {
-            m->nomem = true;
-            return;
-        }
-        m->cap = cap;
-    }
-    m->nnz++;
-    m->ia[m->nnz] = row;
-    m->ja[m->nnz] = col;
-    m->ar[m->nnz] = val;
-}
 
 static int new_row(glp_prob *lp, int type, double lb, double ub)
 {
@@ -213,12 +187,12 @@ static int tie(model *m, glp_prob *lp, size_t n, trait t, int v, double big, dou
             continue;
         if (!row)
             row = new_row(lp, GLP_UP, 0.0, 0.0);
-        put(m, row, j, 1.0);
+        keel_triplets_put(&m->mat, row, j, 1.0);
     }
     if (!row)
         return 0;
     int x = new_binary(m, lp, cost, row);
-    put(m, row, x, -big);
+    keel_triplets_put(&m->mat, row, x, -big);
     return x;
 }
 
@@ -239,8 +213,8 @@ static void add_rules(model *m, glp_prob *lp, size_t n)
         int row = new_row(lp, GLP_UP, 0.0, limit);
         for (size_t d = 0; d < m->nclasses; d++)
             if (m->col[d * nn + n])
-                put(m, row, m->col[d * nn + n], 1.0);
-        put(m, row, a, limit - v);
+                keel_triplets_put(&m->mat, row, m->col[d * nn + n], 1.0);
+        keel_triplets_put(&m->mat, row, a, limit - v);
     }
     if (w->max_high_acuity != KEEL_ABSENT) {
         int row = 0;
@@ -249,7 +223,7 @@ static void add_rules(model *m, glp_prob *lp, size_t n)
                 continue;
             if (!row)
                 row = new_row(lp, GLP_UP, 0.0, (double)w->max_high_acuity);
-            put(m, row, m->col[c * nn + n], 1.0);
+            keel_triplets_put(&m->mat, row, m->col[c * nn + n], 1.0);
         }
     }
     bool sides[3] = {false, false, false};
@@ -261,8 +235,8 @@ static void add_rules(model *m, glp_prob *lp, size_t n)
         int row = new_row(lp, GLP_UP, 0.0, limit);
         for (size_t c = 0; c < m->nclasses; c++)
             if (m->col[c * nn + n] && trait_of(m, c, TRAIT_SIDE) == KEEL_SIDE_INFECTIOUS)
-                put(m, row, m->col[c * nn + n], 1.0);
-        put(m, row, b, limit);
+                keel_triplets_put(&m->mat, row, m->col[c * nn + n], 1.0);
+        keel_triplets_put(&m->mat, row, b, limit);
     }
     bool near = m->q->goal == KEEL_GOAL_NEAR;
     if (w->zones_rule || near) {
@@ -270,7 +244,7 @@ static void add_rules(model *m, glp_prob *lp, size_t n)
         for (size_t k = 0; k < w->nzones; k++) {
             int z = tie(m, lp, n, TRAIT_ZONE, (int)k, limit, near ? (double)w->npatients + 1 : 0.0);
             if (z && row)
-                put(m, row, z, 1.0);
+                keel_triplets_put(&m->mat, row, z, 1.0);
         }
     }
     for (size_t k = 0; near && k < w->nrooms; k++)
@@ -308,7 +282,7 @@ static void build(model *m, glp_prob *lp)
         int row = new_row(lp, GLP_FX, size, size);
         for (size_t n = 0; n < nn; n++)
             if (m->col[c * nn + n])
-                put(m, row, m->col[c * nn + n], 1.0);
+                keel_triplets_put(&m->mat, row, m->col[c * nn + n], 1.0);
     }
     int *order_row = keel_calloc(nn ? nn : 1, sizeof *order_row);
     if (!order_row) {
@@ -325,8 +299,8 @@ static void build(model *m, glp_prob *lp)
             int j = m->col[c * nn + n];
             if (!j)
                 continue;
-            put(m, count, j, 1.0);
-            put(m, care, j, (double)w->care_minutes[m->class_first[c]]);
+            keel_triplets_put(&m->mat, count, j, 1.0);
+            keel_triplets_put(&m->mat, care, j, (double)w->care_minutes[m->class_first[c]]);
         }
         add_rules(m, lp, n);
     }
@@ -339,9 +313,9 @@ static void build(model *m, glp_prob *lp)
         for (size_t c = 0; c < m->nclasses; c++) {
             double care = (double)w->care_minutes[m->class_first[c]];
             if (m->col[c * nn + n])
-                put(m, order_row[n], m->col[c * nn + n], care);
+                keel_triplets_put(&m->mat, order_row[n], m->col[c * nn + n], care);
             if (m->col[c * nn + t])
-                put(m, order_row[n], m->col[c * nn + t], -care);
+                keel_triplets_put(&m->mat, order_row[n], m->col[c * nn + t], -care);
         }
     }
     free(order_row);
@@ -350,7 +324,7 @@ static void build(model *m, glp_prob *lp)
         for (size_t c = 0; c < m->nclasses; c++) {
             int prev = w->previous[m->class_first[c]];
             if (prev >= 0 && m->col[c * nn + (size_t)prev])
-                put(m, row, m->col[c * nn + (size_t)prev], 1.0);
+                keel_triplets_put(&m->mat, row, m->col[c * nn + (size_t)prev], 1.0);
         }
     }
 }
@@ -387,9 +361,9 @@ static void on_event(glp_tree *tree, void *info)
         if (j)
             x[j] += 1.0;
     }
-    for (size_t k = 1; k <= m->nnz; k++)
-        if (m->ja[k] <= m->ny)
-            act[m->ia[k]] += m->ar[k] * x[m->ja[k]];
+    for (size_t k = 1; k <= m->mat.n; k++)
+        if (m->mat.ja[k] <= m->ny)
+            act[m->mat.ia[k]] += m->mat.ar[k] * x[m->mat.ja[k]];
     for (int j = m->ny + 1; j <= ncols && (size_t)j < m->nlink; j++)
         x[j] = m->link[j] && act[m->link[j]] > 0.5 ? 1.0 : 0.0;
     glp_ios_heur_sol(tree, x);
@@ -426,9 +400,10 @@ static int build_and_solve(model *m, long time_limit_ms, int *nurse_of, keel_ilp
     glp_prob *lp = glp_create_prob();
     *lp_out = lp;
     build(m, lp);
+    m->nomem = m->nomem || m->mat.nomem;
     if (m->nomem)
         return 0;
-    glp_load_matrix(lp, (int)m->nnz, m->ia, m->ja, m->ar);
+    glp_load_matrix(lp, (int)m->mat.n, m->mat.ia, m->mat.ja, m->mat.ar);
     bool keep = m->q->goal == KEEL_GOAL_KEEP;
 
     /* GLPK 5.0's MIP preprocessor (glp_iocp.presolve) returned a point
@@ -557,9 +532,7 @@ out:
     free(m.col);
     free(m.left);
     free(m.link);
-    free(m.ia);
-    free(m.ja);
-    free(m.ar);
+    keel_triplets_fini(&m.mat);
     return rc;
 }
 
