@@ -33,6 +33,7 @@ typedef struct fit {
     bool *twin_of_prev; /* [k]: order[k] is interchangeable with order[k - 1] */
     int *group;         /* [nnurses]: nurses with the same group are interchangeable */
     long long *suffix;  /* [k]: care of order[k..] */
+    int *high_after;    /* [k]: high-acuity patients among order[k..] */
     int *min_after;     /* [k]: smallest care among order[k..] */
     long long *care;    /* [nnurses]: care so far */
     int *count;         /* [nnurses]: patients so far (the tally's) */
@@ -113,7 +114,7 @@ static bool same_state(const fit *F, size_t a, size_t b)
 static bool still_possible(const fit *F, size_t k)
 {
     const keel_workload *w = F->w;
-    long long left = F->suffix[k], room = 0, owed = 0;
+    long long left = F->suffix[k], room = 0, owed = 0, high_room = 0;
     long long smallest = F->min_after[k];
     for (size_t n = 0; n < w->nnurses; n++) {
         if (!keel_workload_counted(w, n))
@@ -121,12 +122,20 @@ static bool still_possible(const fit *F, size_t k)
         long long r = F->hi[n] - F->care[n];
         if (r >= smallest && F->count[n] < w->max_patients[n])
             room += r;
+        if (w->max_high_acuity != KEEL_ABSENT) {
+            int places = w->max_high_acuity - F->tally.high[n];
+            int free_places = w->max_patients[n] - F->count[n];
+            high_room += places < free_places ? places : free_places;
+        }
         if (F->lo[n] > F->care[n]) {
             if (F->count[n] >= w->max_patients[n])
                 return false;
             owed += F->lo[n] - F->care[n];
         }
     }
+    /* The high-acuity patients still to come need places under the rule. */
+    if (w->max_high_acuity != KEEL_ABSENT && F->high_after[k] > high_room)
+        return false;
     return room >= left && owed <= left;
 }
 
@@ -196,14 +205,15 @@ keel_status keel_fit_search(const keel_workload *w, const long long *lo, const l
     F.twin_of_prev = keel_calloc(np, sizeof *F.twin_of_prev);
     F.group = keel_calloc(nn, sizeof *F.group);
     F.suffix = keel_calloc(np + 1, sizeof *F.suffix);
+    F.high_after = keel_calloc(np + 1, sizeof *F.high_after);
     F.min_after = keel_calloc(np + 1, sizeof *F.min_after);
     F.care = keel_calloc(nn, sizeof *F.care);
     keel_status rc = keel_tally_init(&F.tally, w);
     F.count = F.tally.count;
     F.assign = keel_calloc(np, sizeof *F.assign);
     F.tried = keel_calloc((np ? np : 1) * (nn ? nn : 1), sizeof *F.tried);
-    if (rc || !F.order || !F.twin_of_prev || !F.group || !F.suffix || !F.min_after || !F.care ||
-        !F.assign || !F.tried) {
+    if (rc || !F.order || !F.twin_of_prev || !F.group || !F.suffix || !F.high_after ||
+        !F.min_after || !F.care || !F.assign || !F.tried) {
         rc = KEEL_ERR_NOMEM;
         goto out;
     }
@@ -221,6 +231,7 @@ keel_status keel_fit_search(const keel_workload *w, const long long *lo, const l
     F.min_after[np] = 0;
     for (size_t k = np; k-- > 0;) {
         F.suffix[k] = F.suffix[k + 1] + w->care_minutes[F.order[k]];
+        F.high_after[k] = F.high_after[k + 1] + w->high_acuity[F.order[k]];
         F.min_after[k] = w->care_minutes[F.order[k]]; /* heaviest first: the last is smallest */
     }
     for (size_t k = 0; k + 1 < np; k++)
@@ -245,6 +256,7 @@ out:
     free(F.twin_of_prev);
     free(F.group);
     free(F.suffix);
+    free(F.high_after);
     free(F.min_after);
     free(F.care);
     keel_tally_free(&F.tally);
