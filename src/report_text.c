@@ -283,7 +283,15 @@ keel_status keel_report_text(const keel_report *rep, FILE *out)
                 s->stages[0].status == KEEL_SOLVE_OPTIMAL ? "proven" : "best found, not proven");
             if (rep->nurse_of)
                 fprintf(out, "; this plan's: %.1f %%", 100.0 * rep->metrics->max_utilisation);
-            fputs("\n\n", out);
+            fputc('\n', out);
+            double over = rep->nurse_of ? rep->metrics->max_utilisation - s->stages[0].value : 0;
+            if ((s->continuity.applies || s->proximity.applies) && over > 5e-10 &&
+                over <= s->continuity.tolerance + 5e-10)
+                fprintf(out,
+                        "The plan is within the balance tolerance (%.1f points) that keel "
+                        "spends on continuity\nand proximity.\n",
+                        100.0 * s->continuity.tolerance);
+            fputc('\n', out);
         }
     }
     for (size_t p = 0; p < rep->roster->npatients; p++) {
