@@ -230,8 +230,8 @@ static int parse_args(const command *cmd, int argc, char **argv, options *opt, b
         bool writing = cmd->run == run_new || cmd->run == run_import;
         if (matches(arg, "-o", "--output", &len) ||
             (solving &&
-             (matches(arg, "-f", "--format", &len) || matches(arg, "-m", "--method", &len) ||
-              matches(arg, "-t", "--time-limit", &len)))) {
+             (matches(arg, "-f", "--format", &len) || matches(arg, "-t", "--time-limit", &len))) ||
+            (cmd->run == run_assign && matches(arg, "-m", "--method", &len))) {
             value = option_value(argc, argv, &i, arg, len);
             if (!value)
                 return usage_error(cmd, "%s needs a value", arg);

@@ -34,7 +34,7 @@ and the unit's acuity scale (minutes per level, the unit's own invented
 figures) is scaled so that the total work meets the target.
 
 Usage:
-  gen_bench.py --seed S --per-kind N --out DIR [--kinds icu,ed,...]
+  gen_bench.py --seed S --per-kind N --out DIR [--kinds icu,ed,...] [--keel KEEL]
 writes DIR/<kind>-<k>.yaml and DIR/manifest.json (kind, seed, target and
 actual utilisation, counts, the planted assignment).
 """
@@ -42,9 +42,9 @@ actual utilisation, counts, the planted assignment).
 import argparse
 import datetime
 import json
-import math
 import os
 import random
+import subprocess
 import sys
 
 HERE = os.path.dirname(os.path.abspath(__file__))
@@ -67,9 +67,12 @@ SHIFTS_8 = [{"label": "morning", "start": "07:00", "minutes": 480, "break_minute
             {"label": "evening", "start": "15:00", "minutes": 480, "break_minutes": 30},
             {"label": "night", "start": "23:00", "minutes": 480, "break_minutes": 30}]
 
-# Target unit utilisations, taken in turn: tight, busy, normal, comfortable.
+# Target unit utilisations.  Roster k of a kind takes LEVELS[LEVEL_ORDER[(k +
+# offset) % 4]], the offset set per kind, so that any two consecutive rosters
+# of a kind are far apart and a few rosters per kind cover every level.
 LEVELS = [("tight", 1.03, 1.15), ("busy", 0.92, 1.0), ("normal", 0.8, 0.9),
           ("comfortable", 0.66, 0.74)]
+LEVEL_ORDER = [0, 2, 1, 3]
 
 # The kinds of roster.  Minutes per acuity level are for a twelve-hour shift
 # before scaling (invented unit scales); `limit` is the unit's per-nurse
@@ -77,6 +80,7 @@ LEVELS = [("tight", 1.03, 1.15), ("busy", 0.92, 1.0), ("normal", 0.8, 0.9),
 # (share of nurses holding it, share of the holders' patients needing it).
 KINDS = {
     "icu": {
+        "level_offset": 0,
         "unit": "3 North Intensive Care", "type": "icu", "census": (8, 16),
         "table": True, "shifts": SHIFTS_12, "prefix": "3N",
         "scale": {1: 240, 2: 300, 3: 360, 4: 450, 5: 600},
@@ -86,6 +90,7 @@ KINDS = {
         "charge": ([0, 0, 1], (240, 480)), "high": (5, [1]), "one_to_one": 0.5,
     },
     "stepdown": {
+        "level_offset": 1,
         "unit": "4 East Step-Down", "type": "step-down", "census": (24, 32),
         "table": True, "shifts": SHIFTS_12, "prefix": "4E",
         "scale": {1: 120, 2: 160, 3: 200, 4: 260, 5: 330},
@@ -95,6 +100,7 @@ KINDS = {
         "beds_per_room": 1, "charge": ([0, 1, 2], (180, 300)), "high": (5, [1]),
     },
     "telemetry": {
+        "level_offset": 2,
         "unit": "5 West Telemetry", "type": "telemetry", "census": (24, 32),
         "table": True, "shifts": SHIFTS_12, "prefix": "5W",
         "scale": {1: 90, 2: 130, 3: 170, 4: 220, 5: 290},
@@ -104,6 +110,7 @@ KINDS = {
         "beds_per_room": 2, "charge": ([1, 2, 3], (180, 300)), "high": (5, [1, 2]),
     },
     "medsurg": {
+        "level_offset": 3,
         "unit": "6 South Medical-Surgical", "type": "med-surg", "census": (30, 48),
         "table": True, "shifts": SHIFTS_12, "prefix": "6S",
         "scale": {1: 60, 2: 95, 3: 135, 4: 190, 5: 270},
@@ -114,6 +121,7 @@ KINDS = {
         "lpn": 0.12,
     },
     "ed": {
+        "level_offset": 1,
         "unit": "Emergency Department", "type": "emergency", "census": (40, 60),
         "table": False, "limit": (4, 5), "shifts": SHIFTS_12 + SHIFTS_8, "prefix": "ED",
         "scale": {1: 60, 2: 90, 3: 130, 4: 180, 5: 260},
@@ -124,6 +132,7 @@ KINDS = {
         "high": (5, [1]),
     },
     "floor": {
+        "level_offset": 1,
         "unit": "Tower 4-6 pooled floor", "type": "other", "census": (200, 200),
         "table": False, "limit": (4, 5), "shifts": SHIFTS_12, "prefix": "T",
         "scale": {1: 60, 2: 95, 3: 135, 4: 190, 5: 270},
@@ -248,7 +257,7 @@ def plant(rng, nurses, census):
 def generate(rng, kind, index, seed):
     """One roster (a dict shaped like the YAML file) and its manifest entry."""
     spec = KINDS[kind]
-    level, lo_u, hi_u = LEVELS[index % len(LEVELS)]
+    level, lo_u, hi_u = LEVELS[LEVEL_ORDER[(index + spec["level_offset"]) % len(LEVELS)]]
     target = round(rng.uniform(lo_u, hi_u), 3)
     shift = dict(rng.choice(spec["shifts"]))
     shift["date"] = (datetime.date(2027, 1, 4) + datetime.timedelta(days=index)).isoformat()
@@ -513,6 +522,9 @@ def main(argv=None):
     ap.add_argument("--kinds", default=",".join(KINDS),
                     help="comma-separated kinds (default: %s)" % ",".join(KINDS))
     ap.add_argument("--out", required=True, help="directory for the roster files")
+    ap.add_argument("--keel", help="run `KEEL check` on every roster written (exit 2, bad "
+                    "input, or 3, no valid assignment, fails: every roster loads and has "
+                    "its planted plan)")
     args = ap.parse_args(argv)
     kinds = [k for k in args.kinds.split(",") if k]
     for k in kinds:
@@ -523,6 +535,18 @@ def main(argv=None):
         print("%-28s %-9s %3d patients %3d nurses  utilisation %.3f (target %.3f, %s)"
               % (os.path.basename(e["file"]), e["kind"], e["patients"], e["nurses"],
                  e["utilisation"], e["target"], e["level"]))
+    if args.keel:
+        failed = 0
+        for e in manifest:
+            proc = subprocess.run([args.keel, "check", e["file"], "--time-limit", "1"],
+                                  capture_output=True, text=True)
+            # 0: loads; 4: loads, the search for any plan ran out of time.
+            if proc.returncode not in (0, 4):
+                failed += 1
+                print("keel check %s: exit %d: %s" % (e["file"], proc.returncode,
+                                                      proc.stderr.strip()[:300]))
+        print("keel check: %d of %d rosters load" % (len(manifest) - failed, len(manifest)))
+        return 1 if failed else 0
     return 0
 
 

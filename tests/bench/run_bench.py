@@ -49,8 +49,10 @@ docs/model.md); HiGHS's is the milp call; CBC's is its own wall-clock
 "Time (Wallclock seconds)" of the solve.  At most --jobs (default 2, the
 machine's cores) solver processes run at once.
 
---quick: two rosters per kind (one of the 200-patient floor), keel at its
-default 10 s, the references at 10 s: about 3-5 minutes on 2 cores.
+--quick: two rosters per kind, keel at its default 10 s, the references at
+10 s: about 3-5 minutes on 2 cores.
+With --descent-all the descent runs on every roster (optima for the greedy
+gap where no solver proved one; slower).
 """
 
 import argparse
@@ -80,8 +82,7 @@ CBC = "cbc"
 OBJ_SCALE = 1000.0              # objective = OBJ_SCALE * U (as in highs_model)
 EPS = 1e-9                      # distinct utilisations differ by > 1/1440^2
 
-QUICK = {"per_kind": 2, "per_kind_of": {"floor": 1}, "keel_seconds": 10.0,
-         "ref_seconds": 10.0}
+QUICK = {"per_kind": 2, "per_kind_of": {}, "keel_seconds": 10.0, "ref_seconds": 10.0}
 
 
 # ------------------------------------------------------------ exact values
@@ -369,6 +370,16 @@ def task_worker(what, roster, seconds, workdir, tag, extra=()):
     return res
 
 
+def cbc_version():
+    try:
+        out = subprocess.run([CBC, "-quit"], capture_output=True, text=True,
+                             timeout=10).stdout
+    except (OSError, subprocess.TimeoutExpired):
+        return "(version unknown)"
+    mt = re.search(r"Version:\s*(\S+)", out)
+    return mt.group(1) if mt else "(version unknown)"
+
+
 CBC_RESULT = [("Result - Optimal solution found", "optimal"),
               ("Result - Stopped on time limit", "time_limit"),
               ("Result - Problem proven infeasible", "infeasible"),
@@ -484,6 +495,13 @@ def judge(entry):
             optimum = vals.pop()
             entry["optimum"] = fstr(optimum)
             entry["optimum_source"] = "claimed by " + "+".join(sorted(claims))
+    pk = k.get("peak") or {}
+    kb = frac_of_value(entry["_r"], pk["bound"]) if pk.get("bound") is not None else None
+    if optimum is None and kb is not None and best_checked(entry) == kb:
+        # keel's proven bound meets a plan that keeps every rule.
+        optimum = kb
+        entry["optimum"] = fstr(optimum)
+        entry["optimum_source"] = "keel's bound meets a checked plan"
     if ref.get("status") == "start_unreachable":
         low = fparse(ref.get("start"))
         who = [name for name, v in claims.items() if v == low]
@@ -504,6 +522,10 @@ def judge(entry):
             notes.append("%s claims optimal at %.6f, the confirmed optimum is %.6f"
                          % (name, v, optimum))
     for name in ("keel", "greedy", "highs", "cbc"):
+        if rows[name].get("status") == "infeasible" or rows[name].get("rc") == 3:
+            wrong.add(name)
+            notes.append("%s says no valid assignment exists, but the generator's planted "
+                         "plan keeps every rule" % name)
         if rows[name].get("violations"):
             wrong.add(name)
             notes.append("%s plan breaks %s" % (name, rows[name]["violations"][0]))
@@ -610,22 +632,54 @@ def ratio_median(entries, a, b):
     return "%.2g (n=%d)" % (statistics.median(rs), len(rs))
 
 
-def report(entries, args, command, started, elapsed):
+def keel_identity(keel):
+    """What was measured: keel's version, the binary's time, the source commit."""
+    try:
+        version = subprocess.run([keel, "--version"], capture_output=True, text=True,
+                                 timeout=10).stdout.strip()
+    except (OSError, subprocess.TimeoutExpired):
+        version = "unknown version"
+    built = datetime.datetime.fromtimestamp(os.path.getmtime(keel)).strftime("%Y-%m-%d %H:%M")
+    text = "%s (binary built %s" % (version, built)
+    top = os.path.join(HERE, "..", "..")
+    try:
+        head = subprocess.run(["git", "-C", top, "rev-parse", "--short", "HEAD"],
+                              capture_output=True, text=True, timeout=10).stdout.strip()
+        dirty = subprocess.run(["git", "-C", top, "status", "--porcelain", "--", "src",
+                                "include"], capture_output=True, text=True,
+                               timeout=10).stdout.strip()
+        if head:
+            text += "; source tree at commit %s%s" % (
+                head, ", with uncommitted changes under src/ or include/" if dirty else "")
+    except (OSError, subprocess.TimeoutExpired):
+        pass
+    return text + ")"
+
+
+def report(entries, args, command, started, elapsed, identity):
     kinds = [k for k in gen_bench.KINDS if any(e["kind"] == k for e in entries)]
     out = []
+    out.append("## keel against HiGHS and CBC (seed %d)" % args.seed)
+    out.append("")
     out.append("Measured %s on this machine (%d cores), %d rosters, %.0f s in all." % (
         started, os.cpu_count() or 0, len(entries), elapsed))
+    out.append("")
     out.append("")
     out.append("```")
     out.append(command)
     out.append("```")
     out.append("")
-    out.append("keel --time-limit %g s (the whole solve; stage 1 gets part of it), HiGHS and "
-               "CBC %g s each on the stage-1 textbook model, at most %d solver processes at "
-               "once. Times to a proven stage-1 optimum (the heaviest utilisation); \"> Ns\" "
-               "means not proven within the limit. Ratios are medians of per-roster ratios "
-               "over the rosters both proved (times below 1 ms count as 1 ms)."
-               % (args.keel_seconds, args.ref_seconds, args.jobs))
+    out.append("keel: %s. HiGHS: scipy.optimize.milp of Debian 12's python3-scipy 1.10; "
+               "CBC: Debian 12's coinor-cbc %s." % (identity, cbc_version()))
+    out.append("")
+    out.append("keel --time-limit %g s for the whole solve (stage 1 gets at most 70 %% of "
+               "the stages-1-2 share, which is 60 %% of the limit when stages 3-4 apply: "
+               "%.1f s here), HiGHS and CBC %g s each on the stage-1 textbook model, at most "
+               "%d solver processes at once. Times to a proven stage-1 optimum (the heaviest "
+               "utilisation); \"> Ns\" means not proven within the limit. Ratios are "
+               "medians of per-roster ratios over the rosters both proved (times below 1 ms "
+               "count as 1 ms). Greedy gap: keel's formula against the known optimum."
+               % (args.keel_seconds, 0.42 * args.keel_seconds, args.ref_seconds, args.jobs))
     out.append("")
     out.append("| kind | rosters | patients | nurses | unit util. | keel proven | keel median | "
                "keel worst | HiGHS proven | HiGHS median | HiGHS worst | CBC proven | "
@@ -652,12 +706,15 @@ def report(entries, args, command, started, elapsed):
                      if gg else "– (no optimum known)")
         out.append("| " + " | ".join(cells) + " |")
     out.append("")
-    out.append("Gap left at the limit (keel's formula |value − bound| / max, worst over the "
-               "unproven rosters), keel's whole run and memory:")
+    out.append("Gap left at the limit (keel's formula |value − bound| / max(value, bound), "
+               "worst over the unproven rosters; HiGHS's bound is its dual bound as reported, "
+               "CBC's its \"Lower bound\"), keel's whole run and memory. An optimum is known "
+               "when the HiGHS descent proves it, when keel's proven bound meets a plan that "
+               "keeps every rule, or when every claim agrees with the best checked plan:")
     out.append("")
     out.append("| kind | keel stage-1 gap left | HiGHS gap left | CBC gap left | "
                "keel all stages optimal | keel wall median | keel wall worst | "
-               "keel peak memory (worst) | keel no plan | optimum confirmed by descent |")
+               "keel peak memory (worst) | keel no plan | optimum known (by descent) |")
     out.append("|" + "---|" * 10)
     for kind in kinds:
         es = [e for e in entries if e["kind"] == kind]
@@ -681,8 +738,8 @@ def report(entries, args, command, started, elapsed):
         mem = [x["maxrss_kb"] for x in k if x.get("maxrss_kb")]
         cells.append("%.1f MB" % (max(mem) / 1024) if mem else "–")
         cells.append("%d" % sum(1 for x in k if x["status"] in ("no_plan", "error")))
-        cells.append("%d/%d" % (sum(1 for e in es if e["optimum_source"] == "descent"),
-                                len(es)))
+        cells.append("%d/%d (%d)" % (sum(1 for e in es if e["optimum"] is not None), len(es),
+                                     sum(1 for e in es if e["optimum_source"] == "descent")))
         out.append("| " + " | ".join(cells) + " |")
     out.append("")
     bad = [e for e in entries if e["disagreements"]]
@@ -704,13 +761,14 @@ def report(entries, args, command, started, elapsed):
         def triple(status, secs, value, bound):
             v = "–" if value is None else "%.4f" % float(value)
             b = "–" if bound is None else "%.4f" % float(bound)
-            return "%s %s, %s, %s" % (status, fmt_s(secs), v, b)
+            return "%s%s, %s, %s" % (status + " " if status else "", fmt_s(secs), v, b)
         stages = " ".join("%s:%s" % (st["name"], {"optimal": "opt", "time_limit": "limit"}
                                      .get(st["status"], st["status"])) for st in k["stages"])
-        out.append("| %s | %d | %d | %.2f | %s | %s | %s | %s | %s | %s | %s | %s | %s |" % (
-            os.path.basename(e["file"]), e["patients"], e["nurses"], e["utilisation"],
+        out.append("| %s | %d | %d | %.2f %s | %s | %s | %s | %s | %s | %s | %s | %s | %s |" % (
+            os.path.basename(e["file"]), e["patients"], e["nurses"], e["utilisation"], e["level"],
             k["status"] if k["status"] else "rc %s" % k["rc"], stages or "–",
-            triple("", pk.get("seconds"), pk.get("value"), pk.get("bound")) if pk else "–",
+            triple(pk.get("status"), pk.get("seconds"), pk.get("value"), pk.get("bound"))
+            if pk else "–",
             fmt_s(k["wall"]),
             "%.1f MB" % (k["maxrss_kb"] / 1024) if k.get("maxrss_kb") else "–",
             "–" if rows["greedy"].get("plan_value") is None
@@ -753,6 +811,9 @@ def main(argv=None):
     ap.add_argument("--out", help="write the markdown report here too")
     ap.add_argument("--json", help="write the raw results here")
     ap.add_argument("--workdir", help="keep rosters and solver files here")
+    ap.add_argument("--descent-all", action="store_true",
+                    help="run the HiGHS descent on every roster, not only where a solver "
+                    "claims an optimum (more optima known for the greedy gap; slower)")
     ap.add_argument("--quick", action="store_true",
                     help="few rosters per kind, 10 s limits: 3-5 minutes on 2 cores")
     # Internal: one reference solve in its own process.
@@ -849,7 +910,7 @@ def main(argv=None):
         rows = e["results"]
         claims = (rows["keel"].get("peak") or {}).get("status") == "optimal" or \
             rows["highs"].get("status") == "optimal" or rows["cbc"].get("status") == "optimal"
-        if not claims:
+        if not claims and not args.descent_all:
             continue
         low, verified = lowest_claimed(e, models[e["file"]][0])
         if low is None:
@@ -864,14 +925,16 @@ def main(argv=None):
     for e in entries:
         base = os.path.basename(e["file"])[:-5]
         e["results"]["confirm"] = raw.get((base, "confirm"))
+        e["_r"] = models[e["file"]][0]
         judge(e)
+        del e["_r"]
 
     elapsed = time.monotonic() - t_start
-    text = report(entries, args, command, started, elapsed)
+    text = report(entries, args, command, started, elapsed, keel_identity(keel))
     print(text)
     if args.out:
         with open(args.out, "w", encoding="utf-8") as f:
-            f.write(text)
+            f.write("<!-- SPDX-License-Identifier: GPL-3.0-or-later -->\n" + text)
     if args.json:
         with open(args.json, "w", encoding="utf-8") as f:
             json.dump({"command": command, "date": started, "entries": entries}, f,
