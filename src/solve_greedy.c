@@ -254,3 +254,68 @@ keel_status keel_greedy_lift(const keel_workload *w, const long long *hi, int *n
     keel_tally_free(&t);
     return KEEL_OK;
 }
+
+/* True when nurse n would take p without opening a zone. */
+static bool same_zone(const keel_workload *w, const keel_tally *t, size_t p, size_t n)
+{
+    return w->zone[p] < 0 || t->in_zone[n * w->nzones + (size_t)w->zone[p]] > 0;
+}
+
+keel_status keel_greedy_place_tightest(const keel_workload *w, int *nurse_of, bool *placed_all)
+{
+    size_t np = w->npatients, nn = w->nnurses;
+    long long *load = keel_calloc(nn ? nn : 1, sizeof *load);
+    keel_tally t;
+    if (!load || keel_tally_init(&t, w)) {
+        free(load);
+        return KEEL_ERR_NOMEM;
+    }
+    for (size_t n = 0; n < nn; n++)
+        load[n] = w->duty_minutes[n];
+    for (size_t p = 0; p < np; p++)
+        nurse_of[p] = -1;
+    *placed_all = true;
+    for (size_t step = 0; step < np; step++) {
+        /* The unplaced patient with the fewest nurses who may take it now. */
+        size_t pick = np, fewest = nn + 1;
+        for (size_t p = 0; p < np; p++) {
+            if (nurse_of[p] >= 0)
+                continue;
+            size_t options = 0;
+            for (size_t n = 0; n < nn; n++)
+                options += keel_tally_admits(&t, p, n);
+            if (options < fewest ||
+                (options == fewest && w->care_minutes[p] > w->care_minutes[pick])) {
+                pick = p;
+                fewest = options;
+            }
+        }
+        if (fewest == 0) {
+            *placed_all = false;
+            break;
+        }
+        /* To a nurse already in its zone when there is one, then the lowest
+         * utilisation after taking it. */
+        int best = -1;
+        bool best_same = false;
+        keel_ratio best_u = {0, 1};
+        for (size_t n = 0; n < nn; n++) {
+            if (!keel_tally_admits(&t, pick, n))
+                continue;
+            bool same = !w->zones_rule || same_zone(w, &t, pick, n);
+            keel_ratio u = {load[n] + w->care_minutes[pick], w->capacity_minutes[n]};
+            if (best < 0 || (same && !best_same) ||
+                (same == best_same && keel_ratio_cmp(u, best_u) < 0)) {
+                best = (int)n;
+                best_same = same;
+                best_u = u;
+            }
+        }
+        nurse_of[pick] = best;
+        load[best] += w->care_minutes[pick];
+        keel_tally_add(&t, pick, (size_t)best);
+    }
+    free(load);
+    keel_tally_free(&t);
+    return KEEL_OK;
+}
