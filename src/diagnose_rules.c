@@ -32,8 +32,6 @@ keel_status keel_find_valid(const keel_workload *w, long long deadline_ms, int *
     bool placed_all = false;
     *answer = KEEL_ILP_UNKNOWN;
     keel_status rc = keel_greedy_place(w, nurse_of, &placed_all);
-    if (!rc && !placed_all)
-        rc = keel_greedy_place_tightest(w, nurse_of, &placed_all);
     if (rc)
         return keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
     if (placed_all) {

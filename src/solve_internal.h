@@ -71,13 +71,6 @@ keel_status keel_diagnose(const keel_roster *r, const keel_workload *w, int *nur
  * room (nurse_of is then partial).  Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
 keel_status keel_greedy_place(const keel_workload *w, int *nurse_of, bool *placed_all);
 
-/* solve_greedy.c: the most constrained patient first (fewest nurses who may
- * take it as things stand) to a nurse already in its zone, then the least
- * utilised: finds an assignment under the rules that join patients where
- * the heaviest-first rule gets stuck.  *placed_all as above.  Statuses:
- * KEEL_OK, KEEL_ERR_NOMEM. */
-keel_status keel_greedy_place_tightest(const keel_workload *w, int *nurse_of, bool *placed_all);
-
 /* solve_greedy.c: improving moves and swaps between pairs of nurses until
  * none lowers the heavier utilisation of the pair.  Keeps every rule.
  * Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
