@@ -6,7 +6,8 @@ Run on demand only (never in CI, not a meson test):
 
   run_bench.py KEEL [--seed S] [--per-kind N] [--kinds icu,ed,...]
                [--keel-seconds 10] [--ref-seconds 20] [--jobs 2]
-               [--out FILE.md] [--json FILE.json] [--workdir DIR] [--quick]
+               [--out FILE.md] [--json FILE.json] [--workdir DIR] [--descent-all]
+               [--quick]
 
 Generates rosters with gen_bench.py (same seed, same rosters) and measures,
 on each:
@@ -40,8 +41,12 @@ the three claims an optimum, a descent step with HiGHS (feasibility
 problems with whole-minute load rows, presolve off) asks for a plan strictly
 below the lowest value any solver reached; "infeasible" confirms that value
 as the optimum, a plan refutes every claim above it.  A claim that disagrees
-with the confirmed optimum is listed under "Disagreements" and the work
-directory (rosters, LP files, raw results) is kept.
+with the confirmed optimum, a proven bound above a checked plan, a plan
+that breaks a rule, or "no valid assignment" on a roster that has one by
+construction is listed under "Disagreements" and the work directory
+(rosters, LP files, raw results, the keel binary measured) is kept.  keel
+runs from a copy of the binary, so a rebuild during the run cannot mix
+versions.
 
 Times: keel's is the stage-1 "seconds" of its json (the peak stage; stage 1
 gets at most 70 % of the stages-1-2 share of --time-limit, see
@@ -521,6 +526,14 @@ def judge(entry):
             wrong.add(name)
             notes.append("%s claims optimal at %.6f, the confirmed optimum is %.6f"
                          % (name, v, optimum))
+    # A proven lower bound may never lie above a plan that keeps every rule.
+    bounds = {"keel": kb if kb is not None else pk.get("bound"),
+              "highs": rows["highs"].get("bound"), "cbc": rows["cbc"].get("bound")}
+    for name, b in bounds.items():
+        if b is not None and best is not None and float(b) > float(best) + EPS:
+            wrong.add(name)
+            notes.append("%s's bound %.6f lies above a checked plan at %.6f"
+                         % (name, float(b), float(best)))
     for name in ("keel", "greedy", "highs", "cbc"):
         if rows[name].get("status") == "infeasible" or rows[name].get("rc") == 3:
             wrong.add(name)
@@ -663,7 +676,6 @@ def report(entries, args, command, started, elapsed, identity):
     out.append("")
     out.append("Measured %s on this machine (%d cores), %d rosters, %.0f s in all." % (
         started, os.cpu_count() or 0, len(entries), elapsed))
-    out.append("")
     out.append("")
     out.append("```")
     out.append(command)
@@ -858,6 +870,11 @@ def main(argv=None):
     workdir = args.workdir or tempfile.mkdtemp(prefix="keel-bench-")
     os.makedirs(workdir, exist_ok=True)
     print("rosters and solver files in %s" % workdir, file=sys.stderr)
+    identity = keel_identity(keel)
+    # Run a copy: a rebuild of the tree during the run must not mix versions.
+    keel_copy = os.path.join(workdir, "keel-under-test")
+    shutil.copy2(keel, keel_copy)
+    keel = keel_copy
     manifest = gen_bench.write_set(args.seed, args.per_kind, workdir, kinds, per_kind_of)
 
     # The models for CBC are written before any solver starts (no timing
@@ -930,7 +947,7 @@ def main(argv=None):
         del e["_r"]
 
     elapsed = time.monotonic() - t_start
-    text = report(entries, args, command, started, elapsed, keel_identity(keel))
+    text = report(entries, args, command, started, elapsed, identity)
     print(text)
     if args.out:
         with open(args.out, "w", encoding="utf-8") as f:
