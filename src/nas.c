@@ -9,9 +9,9 @@
 
 #include <limits.h>
 #include <stdbool.h>
-#include <stdarg.h>
-#include <stdio.h>
 #include <string.h>
+
+#include "textbuf.h"
 
 #define ARRAY_LEN(a) (sizeof(a) / sizeof((a)[0]))
 
@@ -159,44 +159,19 @@ int keel_nas_score(char *const *codes, size_t ncodes)
     return sheet.score_tenths;
 }
 
-/* Text written so far into a caller's buffer, snprintf-style: len counts
- * every character the full text needs, even those that did not fit. */
-typedef struct text {
-    char *buf;
-    size_t size;
-    size_t len;
-} text;
-
-static void put(text *t, const char *fmt, ...)
-#if defined(__GNUC__)
-    __attribute__((format(printf, 2, 3)))
-#endif
-    ;
-
-static void put(text *t, const char *fmt, ...)
-{
-    va_list ap;
-    size_t room = t->len < t->size ? t->size - t->len : 0;
-    va_start(ap, fmt);
-    int n = vsnprintf(room ? t->buf + t->len : NULL, room, fmt, ap);
-    va_end(ap);
-    if (n > 0)
-        t->len += (size_t)n;
-}
-
 static const char *shown(const char *s)
 {
     return s ? s : "(null)";
 }
 
 /* "4a, 4b or 4c": the levels of the item numbered code. */
-static void put_levels(text *t, const char *code)
+static void put_levels(keel_textbuf *t, const char *code)
 {
     size_t len = strlen(code), total = count_levels(code), n = 0;
     for (size_t i = 0; i < ARRAY_LEN(table); i++) {
         if (!is_level_of(&table[i], code, len))
             continue;
-        put(t, "%s%s", n == 0 ? "" : n + 1 == total ? " or " : ", ", table[i].code);
+        keel_textbuf_put(t, "%s%s", n == 0 ? "" : n + 1 == total ? " or " : ", ", table[i].code);
         n++;
     }
 }
@@ -204,37 +179,41 @@ static void put_levels(text *t, const char *code)
 int keel_nas_problem_format(keel_nas_problem problem, const char *code, const char *earlier_code,
                             char *buf, size_t size)
 {
-    text t = {buf, size, 0};
+    keel_textbuf t = {buf, size, 0};
     const keel_nas_item *line = keel_nas_find(code);
     if (buf && size)
         buf[0] = '\0';
     switch (problem) {
     case KEEL_NAS_OK:
-        put(&t, "NAS item \"%s\" is valid", shown(code));
+        keel_textbuf_put(&t, "NAS item \"%s\" is valid", shown(code));
         break;
     case KEEL_NAS_UNKNOWN:
-        put(&t,
+        keel_textbuf_put(
+            &t,
             "\"%s\" is not a NAS item; expected an item 2, 3, 5 or 9 to 23, or a level "
             "1a-1c, 4a-4c, 6a-6c, 7a-7b or 8a-8c",
             shown(code));
         break;
     case KEEL_NAS_NEEDS_LEVEL:
-        put(&t, "NAS item %s is scored by level; expected ", shown(code));
+        keel_textbuf_put(&t, "NAS item %s is scored by level; expected ", shown(code));
         if (code)
             put_levels(&t, code);
         break;
     case KEEL_NAS_DUPLICATE:
-        put(&t, "NAS item \"%s\" is listed twice; expected each item once", shown(code));
+        keel_textbuf_put(&t, "NAS item \"%s\" is listed twice; expected each item once",
+                         shown(code));
         break;
     case KEEL_NAS_ALTERNATIVE:
         if (line)
-            put(&t,
+            keel_textbuf_put(
+                &t,
                 "\"%s\" and \"%s\" are two levels of NAS item %d; expected one level per "
                 "item",
                 shown(earlier_code), code, line->item);
         else
-            put(&t, "\"%s\" and \"%s\" are two levels of one NAS item; expected one level",
-                shown(earlier_code), shown(code));
+            keel_textbuf_put(&t,
+                             "\"%s\" and \"%s\" are two levels of one NAS item; expected one level",
+                             shown(earlier_code), shown(code));
         break;
     }
     if (t.len > INT_MAX)

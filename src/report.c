@@ -96,3 +96,11 @@ void keel_write_wrapped(FILE *out, const char *indent, const char *text, size_t 
         text += cut;
     }
 }
+
+bool keel_report_uses_nas(const keel_roster *r)
+{
+    for (size_t p = 0; p < r->npatients; p++)
+        if (r->patients[p].nnas > 0 && r->patients[p].care_minutes == KEEL_ABSENT)
+            return true;
+    return false;
+}

@@ -22,6 +22,10 @@ keel_status keel_report_yaml(const keel_report *report, FILE *out);
 /* Writes s as a double-quoted string with JSON escapes (valid YAML too). */
 void keel_write_quoted(FILE *out, const char *s);
 
+/* True when some patient's care minutes come from NAS items (the reports
+ * then carry keel_nas_note()). */
+bool keel_report_uses_nas(const keel_roster *r);
+
 /* Writes one patient as an entry of a roster's patients list, with nurse as
  * its `nurse:` (NULL: none). */
 void keel_yaml_write_patient(FILE *out, const keel_patient *patient, const char *nurse);

@@ -251,13 +251,10 @@ keel_status keel_report_json(const keel_report *rep, FILE *out)
         write_stages(out, s);
     if (s)
         write_findings(out, r, "diagnosis", &s->diagnoses);
-    for (size_t p = 0; p < r->npatients; p++) {
-        if (r->patients[p].nnas > 0 && r->patients[p].care_minutes == KEEL_ABSENT) {
-            fputs("  \"nas_note\": ", out);
-            keel_write_quoted(out, keel_nas_note());
-            fputs(",\n", out);
-            break;
-        }
+    if (keel_report_uses_nas(r)) {
+        fputs("  \"nas_note\": ", out);
+        keel_write_quoted(out, keel_nas_note());
+        fputs(",\n", out);
     }
     fputs("  \"caution\": ", out);
     keel_write_quoted(out, KEEL_CAUTION);

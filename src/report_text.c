@@ -294,13 +294,8 @@ keel_status keel_report_text(const keel_report *rep, FILE *out)
             fputc('\n', out);
         }
     }
-    for (size_t p = 0; p < rep->roster->npatients; p++) {
-        if (rep->roster->patients[p].nnas > 0 &&
-            rep->roster->patients[p].care_minutes == KEEL_ABSENT) {
-            fprintf(out, "* %s\n\n", keel_nas_note());
-            break;
-        }
-    }
+    if (keel_report_uses_nas(rep->roster))
+        fprintf(out, "* %s\n\n", keel_nas_note());
     write_staffing(out, rep->metrics, rep->staffing);
     fprintf(out, "%s\n", KEEL_CAUTION);
     return KEEL_OK;

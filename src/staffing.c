@@ -8,13 +8,13 @@
  */
 #include "keel/staffing.h"
 
-#include <stdarg.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
 #include "alloc.h"
 #include "keel/metrics.h"
+#include "textbuf.h"
 
 #define MINUTES_PER_HOUR 60.0
 
@@ -222,29 +222,6 @@ const char *keel_staffing_need_name(keel_staffing_need need)
  * Plain words
  */
 
-/* Text written so far into a caller's buffer; len counts what the whole
- * text needs even when the buffer is full. */
-typedef struct sink {
-    char *buf;
-    size_t size;
-    size_t len;
-} sink;
-
-#if defined(__GNUC__)
-__attribute__((format(printf, 2, 3)))
-#endif
-static void
-put(sink *k, const char *fmt, ...)
-{
-    va_list ap;
-    size_t room = k->len < k->size ? k->size - k->len : 0;
-    va_start(ap, fmt);
-    int n = vsnprintf(room ? k->buf + k->len : NULL, room, fmt, ap);
-    va_end(ap);
-    if (n > 0)
-        k->len += (size_t)n;
-}
-
 static const char *plural(long n)
 {
     return n == 1 ? "" : "s";
@@ -257,118 +234,125 @@ static const char *verb_s(long n)
 }
 
 /* "under <table> as encoded on <date>", with the shift class if it has one. */
-static void put_table(sink *k, const keel_staffing *s)
+static void put_table(keel_textbuf *k, const keel_staffing *s)
 {
-    put(k, "under %s as encoded on %s", s->table->name, s->table->encoded);
+    keel_textbuf_put(k, "under %s as encoded on %s", s->table->name, s->table->encoded);
     if (s->shift_class != KEEL_SHIFT_ANY)
-        put(k, " (%s shift)", keel_shift_class_name(s->shift_class));
+        keel_textbuf_put(k, " (%s shift)", keel_shift_class_name(s->shift_class));
 }
 
 /* What the binding need is, after "need at least K nurses ". */
-static void put_reason(sink *k, const keel_staffing *s)
+static void put_reason(keel_textbuf *k, const keel_staffing *s)
 {
     switch (s->binding) {
     case KEEL_STAFFING_NEED_WARD_MINIMUM:
         put_table(k, s);
         return;
     case KEEL_STAFFING_NEED_MINUTES:
-        put(k, "by care minutes (%.1f nurses' worth of care and duty)", s->minutes_nurses);
+        keel_textbuf_put(k, "by care minutes (%.1f nurses' worth of care and duty)",
+                         s->minutes_nurses);
         return;
     case KEEL_STAFFING_NEED_LIMITS:
         if (s->by_high_acuity > s->by_ratios)
-            put(k, "with at most %d high-acuity patient%s per nurse", s->max_high_acuity,
-                plural(s->max_high_acuity));
+            keel_textbuf_put(k, "with at most %d high-acuity patient%s per nurse",
+                             s->max_high_acuity, plural(s->max_high_acuity));
         else if (s->by_ratios > s->by_census)
-            put(k, "under the patients' own ratios");
+            keel_textbuf_put(k, "under the patients' own ratios");
         else if (s->staff_limit == KEEL_ABSENT)
-            put(k, "with no limit on patients per nurse");
+            keel_textbuf_put(k, "with no limit on patients per nurse");
         else if (s->table && s->table_nurse_max == s->staff_limit)
-            put(k, "under %s as encoded on %s (at most %d patient%s per nurse)", s->table->name,
-                s->table->encoded, s->staff_limit, plural(s->staff_limit));
+            keel_textbuf_put(k, "under %s as encoded on %s (at most %d patient%s per nurse)",
+                             s->table->name, s->table->encoded, s->staff_limit,
+                             plural(s->staff_limit));
         else
-            put(k, "under a limit of %d patient%s per nurse", s->staff_limit,
-                plural(s->staff_limit));
+            keel_textbuf_put(k, "under a limit of %d patient%s per nurse", s->staff_limit,
+                             plural(s->staff_limit));
         return;
     case KEEL_STAFFING_NEED_NONE:
         break;
     }
 }
 
-static void put_block(sink *k, const keel_staffing *s)
+static void put_block(keel_textbuf *k, const keel_staffing *s)
 {
     const char *these = s->census == 1 ? "this" : "these";
     if (s->blocked == KEEL_STAFFING_NO_STAFF_LIMIT) {
-        put(k, "No number of staff nurses can hold %s %zu patient%s: ", these, s->census,
-            plural((long)s->census));
-        put(k, "a staff nurse may take no patients (limit 0)");
+        keel_textbuf_put(k, "No number of staff nurses can hold %s %zu patient%s: ", these,
+                         s->census, plural((long)s->census));
+        keel_textbuf_put(k, "a staff nurse may take no patients (limit 0)");
         return;
     }
-    put(k, "No number of nurses can hold %s %zu patient%s: ", these, s->census,
-        plural((long)s->census));
-    put(k,
-        "%d patient%s %s high-acuity and a nurse may have none "
-        "(policy.high_acuity.max_per_nurse 0)",
-        s->nhigh_acuity, plural(s->nhigh_acuity), s->nhigh_acuity == 1 ? "is" : "are");
+    keel_textbuf_put(k, "No number of nurses can hold %s %zu patient%s: ", these, s->census,
+                     plural((long)s->census));
+    keel_textbuf_put(k,
+                     "%d patient%s %s high-acuity and a nurse may have none "
+                     "(policy.high_acuity.max_per_nurse 0)",
+                     s->nhigh_acuity, plural(s->nhigh_acuity), s->nhigh_acuity == 1 ? "is" : "are");
 }
 
 /* The three needs and the hours per patient. */
-static void put_needs(sink *k, const keel_staffing *s)
+static void put_needs(keel_textbuf *k, const keel_staffing *s)
 {
-    put(k, " By care minutes %.1f nurses (%d), ", s->minutes_nurses, s->by_minutes);
+    keel_textbuf_put(k, " By care minutes %.1f nurses (%d), ", s->minutes_nurses, s->by_minutes);
     if (s->by_limits < 0)
-        put(k, "by limits none possible");
+        keel_textbuf_put(k, "by limits none possible");
     else
-        put(k, "by limits %d", s->by_limits);
+        keel_textbuf_put(k, "by limits %d", s->by_limits);
     if (s->ward_minimum >= 0)
-        put(k, ", by the ward minimum %d", s->ward_minimum);
-    put(k, "; %.1f nurse hours per patient this shift.", s->hours_per_patient);
+        keel_textbuf_put(k, ", by the ward minimum %d", s->ward_minimum);
+    keel_textbuf_put(k, "; %.1f nurse hours per patient this shift.", s->hours_per_patient);
 }
 
 /* Whether the census exceeds what the counted nurses may hold under the
  * table; never whether the roster is lawful. */
-static void put_table_verdict(sink *k, const keel_staffing *s)
+static void put_table_verdict(keel_textbuf *k, const keel_staffing *s)
 {
     long counted = (long)s->ncounted;
     if (!s->table || s->table_minimum < 0)
         return;
     if (s->ncounted >= (size_t)s->table_minimum) {
-        put(k,
+        keel_textbuf_put(
+            k,
             " %ld nurse%s %s enough to keep the limits of %s as encoded on %s for %zu patient%s.",
             counted, plural(counted), counted == 1 ? "is" : "are", s->table->name,
             s->table->encoded, s->census, plural((long)s->census));
     } else {
-        put(k, " %zu patient%s exceed%s what %ld nurse%s may hold ", s->census,
-            plural((long)s->census), verb_s((long)s->census), counted, plural(counted));
+        keel_textbuf_put(k, " %zu patient%s exceed%s what %ld nurse%s may hold ", s->census,
+                         plural((long)s->census), verb_s((long)s->census), counted,
+                         plural(counted));
         put_table(k, s);
-        put(k, ".");
+        keel_textbuf_put(k, ".");
     }
 }
 
 int keel_staffing_format(const keel_staffing *s, char *buf, size_t size)
 {
-    sink k = {buf, size, 0};
+    keel_textbuf k = {buf, size, 0};
     long counted = (long)s->ncounted;
     if (buf && size > 0)
         buf[0] = '\0';
     if (s->census == 0) {
-        put(&k, "No patients; %ld nurse%s take%s patients.", counted, plural(counted),
-            verb_s(counted));
+        keel_textbuf_put(&k, "No patients; %ld nurse%s take%s patients.", counted, plural(counted),
+                         verb_s(counted));
         return (int)k.len;
     }
     if (s->blocked != KEEL_STAFFING_POSSIBLE) {
         put_block(&k, s);
-        put(&k, "; %ld nurse%s take%s patients.", counted, plural(counted), verb_s(counted));
+        keel_textbuf_put(&k, "; %ld nurse%s take%s patients.", counted, plural(counted),
+                         verb_s(counted));
     } else {
-        put(&k, "%zu patient%s need%s at least %d nurse%s ", s->census, plural((long)s->census),
-            verb_s((long)s->census), s->needed, plural(s->needed));
+        keel_textbuf_put(&k, "%zu patient%s need%s at least %d nurse%s ", s->census,
+                         plural((long)s->census), verb_s((long)s->census), s->needed,
+                         plural(s->needed));
         put_reason(&k, s);
-        put(&k, "; %ld nurse%s take%s patients: ", counted, plural(counted), verb_s(counted));
+        keel_textbuf_put(&k, "; %ld nurse%s take%s patients: ", counted, plural(counted),
+                         verb_s(counted));
         if (s->slack < 0)
-            put(&k, "%d short.", -s->slack);
+            keel_textbuf_put(&k, "%d short.", -s->slack);
         else if (s->slack > 0)
-            put(&k, "%d to spare.", s->slack);
+            keel_textbuf_put(&k, "%d to spare.", s->slack);
         else
-            put(&k, "none to spare.");
+            keel_textbuf_put(&k, "none to spare.");
     }
     put_needs(&k, s);
     put_table_verdict(&k, s);

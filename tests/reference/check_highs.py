@@ -36,7 +36,6 @@ The last line of output is "N passed, M failed"; exit status 1 if M > 0.
 
 import argparse
 import concurrent.futures
-import importlib
 import json
 import os
 import subprocess
@@ -46,22 +45,11 @@ import time
 from fractions import Fraction
 
 
-def _require_modules():
-    """Exit 77 (meson: skipped, not passed) without numpy, scipy's milp, PyYAML."""
-    try:
-        for name in ("numpy", "yaml"):
-            importlib.import_module(name)
-        if not hasattr(importlib.import_module("scipy.optimize"), "milp"):
-            raise ImportError("scipy.optimize has no milp (scipy >= 1.9 needed)")
-    except ImportError as e:
-        print("SKIP: this Python (%s) cannot run the reference checks: %s"
-              % (sys.executable, e))
-        sys.exit(77)
-
-
-_require_modules()
-
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+import requirements  # noqa: E402
+
+requirements.require_modules()
+
 import gen_rosters  # noqa: E402
 import highs_model  # noqa: E402
 
