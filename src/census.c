@@ -330,6 +330,8 @@ static void read_patient(reader *rd, const row *r, const int *col, keel_patient 
     *p = (keel_patient){.acuity = KEEL_ABSENT,
                         .care_minutes = KEEL_ABSENT,
                         .ratio = KEEL_ABSENT,
+                        .arrives_at = KEEL_ABSENT,
+                        .leaves_at = KEEL_ABSENT,
                         .mark = {r->line, 1}};
     const cell *at[NFIELDS];
     for (size_t f = 0; f < NFIELDS; f++)

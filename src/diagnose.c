@@ -295,9 +295,42 @@ static char *describe_shortage(const keel_roster *r, const keel_workload *w, con
     return msg;
 }
 
+/* With the clock: every part needs a nurse who may take it and is on
+ * throughout it; the rest (limits at every moment, nurses kept until they
+ * leave) is settled by search (diagnose_rules.c). */
+static keel_status diagnose_clock(const keel_roster *r, const keel_workload *w, int *nurse_of,
+                                  bool *feasible, keel_findings *out)
+{
+    *feasible = true;
+    for (size_t q = 0; q < w->npatients; q++) {
+        nurse_of[q] = -1;
+        bool any = false, anyone = false;
+        size_t p = (size_t)w->patient[q];
+        for (size_t n = 0; n < w->nnurses; n++) {
+            any = any || keel_workload_eligible(w, q, n);
+            anyone = anyone || keel_workload_may_take_at_all(r, w, p, n);
+        }
+        if (any)
+            continue;
+        *feasible = false;
+        char from[KEEL_TIME_SIZE], to[KEEL_TIME_SIZE];
+        keel_time_text(r, w->part_start[q], from);
+        keel_time_text(r, w->part_end[q], to);
+        char *msg = anyone ? keel_asprintf("no nurse who may take %s is on from %s to %s",
+                                           r->patients[p].id, from, to)
+                           : keel_asprintf("no nurse on the roster may take %s",
+                                           r->patients[p].id);
+        if (!msg || keel_findings_add(out, anyone ? "moment_limit" : "skill", &p, 1, NULL, 0, msg))
+            return KEEL_ERR_NOMEM;
+    }
+    return KEEL_OK;
+}
+
 keel_status keel_diagnose(const keel_roster *r, const keel_workload *w, int *nurse_of,
                           bool *feasible, keel_findings *out)
 {
+    if (w->clocked)
+        return diagnose_clock(r, w, nurse_of, feasible, out);
     keel_status rc = KEEL_OK;
     size_t np = w->npatients, nn = w->nnurses, nshort = 0, ncounted = 0;
     shortage *shorts = NULL;

@@ -128,10 +128,47 @@ static size_t group_patients(const keel_workload *w, int g, size_t *idx)
                   : g == GROUP_HIGH      ? w->high_acuity[p]
                   : g == GROUP_ISOLATION ? w->side[p] != KEEL_SIDE_NONE
                                          : w->zone[p] >= 0;
-        if (in)
-            idx[k++] = p;
+        /* Roster patients, each once (a patient's parts follow each other). */
+        size_t pt = (size_t)w->patient[p];
+        if (in && (k == 0 || idx[k - 1] != pt))
+            idx[k++] = pt;
     }
     return k;
+}
+
+/* With the clock, when no joining rule is to blame: the limits at every
+ * moment and the nurses kept until they leave.  Names the moment with the
+ * most patients for the places of the nurses on. */
+static keel_status add_moment_finding(const keel_roster *r, const keel_workload *w,
+                                      keel_findings *out)
+{
+    size_t busiest = 0;
+    long best_present = 0, best_places = 1;
+    for (size_t m = 0; m < w->nmoments; m++) {
+        long present = 0, places = 0;
+        for (size_t q = 0; q < w->npatients; q++)
+            present += w->first_moment[q] <= (int)m && (int)m < w->last_moment[q];
+        for (size_t n = 0; n < w->nnurses; n++)
+            if (w->nurse_start[n] <= w->moment_start[m] &&
+                w->nurse_end[n] >= w->moment_start[m + 1])
+                places += w->max_patients[n];
+        if (present * best_places > best_present * (places > 0 ? places : 1) || m == 0) {
+            busiest = m;
+            best_present = present;
+            best_places = places > 0 ? places : 1;
+        }
+    }
+    char from[KEEL_TIME_SIZE], to[KEEL_TIME_SIZE];
+    keel_time_text(r, w->moment_start[busiest], from);
+    keel_time_text(r, w->moment_start[busiest + 1], to);
+    char *msg = keel_asprintf("no plan keeps every patient limit at every moment of the shift "
+                              "while each patient keeps a nurse until she leaves; the busiest "
+                              "time is %s to %s, with %ld patient%s for %ld place%s",
+                              from, to, best_present, best_present == 1 ? "" : "s", best_places,
+                              best_places == 1 ? "" : "s");
+    if (!msg || keel_findings_add(out, "moment_limit", NULL, 0, NULL, 0, msg))
+        return KEEL_ERR_NOMEM;
+    return KEEL_OK;
 }
 
 /* Places for high-acuity patients: each nurse who may take one holds at most
@@ -330,6 +367,8 @@ keel_status keel_diagnose_rules(const keel_roster *r, const keel_workload *w, lo
             goto out;
         }
     }
+    if (nkept == 0 && w->clocked && add_moment_finding(r, w, out))
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
 out:
     free(census);
     free(none);

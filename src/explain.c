@@ -45,7 +45,7 @@ static char *needs_of(const keel_patient *p)
 static char *explain_one(const keel_roster *r, const keel_workload *w, const int *nurse_of,
                          size_t p, keel_reason *reason)
 {
-    const keel_patient *pt = &r->patients[p];
+    const keel_patient *pt = &r->patients[w->patient[p]];
     size_t n = (size_t)nurse_of[p];
     const char *id = r->nurses[n].id;
     size_t eligible = 0;
@@ -97,7 +97,7 @@ static char *explain_one(const keel_roster *r, const keel_workload *w, const int
 keel_status keel_explain(const keel_roster *r, const keel_workload *w, const int *nurse_of,
                          keel_explanation **out, keel_error *err)
 {
-    size_t np = w->npatients;
+    size_t np = w->npeople;
     keel_explanation *e = keel_calloc(1, sizeof *e);
     *out = NULL;
     if (!e)
@@ -107,7 +107,8 @@ keel_status keel_explain(const keel_roster *r, const keel_workload *w, const int
     e->text = keel_calloc(np ? np : 1, sizeof *e->text);
     bool ok = e->reason && e->text;
     for (size_t p = 0; ok && p < np; p++) {
-        e->text[p] = nurse_of[p] >= 0 ? explain_one(r, w, nurse_of, p, &e->reason[p])
+        size_t q = (size_t)w->first_part[p]; /* the nurse the patient starts with */
+        e->text[p] = nurse_of[q] >= 0 ? explain_one(r, w, nurse_of, q, &e->reason[p])
                                       : keel_strdup("no nurse");
         ok = e->text[p] != NULL;
     }

@@ -84,7 +84,9 @@ keel_status keel_metrics_compute(const keel_workload *w, const int *nurse_of, ke
             m->nunassigned++;
             continue;
         }
-        m->nurses[n].npatients++;
+        /* Patients, not parts: a patient kept across a cut counts once. */
+        int first = w->first_part[w->patient[p]];
+        m->nurses[n].npatients += (int)p == first || nurse_of[p - 1] != n;
         m->nurses[n].care_minutes += w->care_minutes[p];
         m->nurses[n].load_minutes += w->care_minutes[p];
     }

@@ -104,3 +104,36 @@ bool keel_report_uses_nas(const keel_roster *r)
             return true;
     return false;
 }
+
+int keel_report_first_nurse(const keel_report *rep, size_t p)
+{
+    return rep->nurse_of ? rep->nurse_of[rep->workload->first_part[p]] : -1;
+}
+
+long keel_report_care_held(const keel_report *rep, size_t p, size_t n)
+{
+    const keel_workload *w = rep->workload;
+    long care = 0;
+    for (int q = w->first_part[p]; rep->nurse_of && q < w->first_part[p + 1]; q++)
+        if (rep->nurse_of[q] == (int)n)
+            care += w->care_minutes[q];
+    return care;
+}
+
+bool keel_report_next_handoff(const keel_report *rep, size_t p, int *q, int *at, int *from,
+                              int *to)
+{
+    const keel_workload *w = rep->workload;
+    if (!rep->nurse_of)
+        return false;
+    for ((*q)++; *q < w->first_part[p + 1]; (*q)++) {
+        int before = rep->nurse_of[*q - 1], now = rep->nurse_of[*q];
+        if (before != now) {
+            *at = w->part_start[*q];
+            *from = before;
+            *to = now;
+            return true;
+        }
+    }
+    return false;
+}

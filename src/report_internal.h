@@ -27,8 +27,23 @@ void keel_write_quoted(FILE *out, const char *s);
 bool keel_report_uses_nas(const keel_roster *r);
 
 /* Writes one patient as an entry of a roster's patients list, with nurse as
- * its `nurse:` (NULL: none). */
-void keel_yaml_write_patient(FILE *out, const keel_patient *patient, const char *nurse);
+ * its `nurse:` (NULL: none).  r gives the shift's start for the patient's
+ * times; NULL when the patient has none. */
+void keel_yaml_write_patient(FILE *out, const keel_roster *r, const keel_patient *patient,
+                             const char *nurse);
+
+/* The nurse roster patient p starts with under the report's assignment, or
+ * -1 (no assignment, or none for the patient). */
+int keel_report_first_nurse(const keel_report *rep, size_t p);
+
+/* Minutes of patient p's care that nurse n carries (the parts she holds). */
+long keel_report_care_held(const keel_report *rep, size_t p, size_t n);
+
+/* Next planned hand-off of patient p after part *q (start with *q at the
+ * patient's first part): true and fills *at (minutes after the shift's
+ * start), *from and *to, moving *q on; false when there are no more. */
+bool keel_report_next_handoff(const keel_report *rep, size_t p, int *q, int *at, int *from,
+                              int *to);
 
 /* Writes text as lines of at most width columns (words longer than a line
  * stand alone), each starting with indent. */

@@ -49,6 +49,84 @@ static void write_findings(FILE *out, const keel_roster *r, const char *key,
     fputs(list && list->n ? "\n  ],\n" : "],\n", out);
 }
 
+/* `, "key": "HH:MM"` for a time given on the roster. */
+static void write_time(FILE *out, const keel_roster *r, const char *key, int offset)
+{
+    char buf[KEEL_TIME_SIZE];
+    if (offset == KEEL_ABSENT)
+        return;
+    keel_time_text(r, offset, buf);
+    fprintf(out, ", \"%s\": \"%s\"", key, buf);
+}
+
+/* `, "timeline": [{"at": "07:00", "patients": 4}, ..., {"at": "15:00", "off": true}]`. */
+static void write_timeline(FILE *out, const keel_report *rep, size_t n)
+{
+    const keel_course_timeline *t = &rep->course->timelines[n];
+    char at[KEEL_TIME_SIZE];
+    fputs(", \"timeline\": [", out);
+    for (size_t i = 0; i < t->nchanges; i++) {
+        keel_time_text(rep->roster, t->changes[i].at, at);
+        if (t->changes[i].patients == KEEL_COURSE_OFF)
+            fprintf(out, "%s{\"at\": \"%s\", \"off\": true}", i ? ", " : "", at);
+        else
+            fprintf(out, "%s{\"at\": \"%s\", \"patients\": %d}", i ? ", " : "", at,
+                    t->changes[i].patients);
+    }
+    fputc(']', out);
+}
+
+/* Break cover, the relief nurses it needs and the admission order. */
+static void write_course(FILE *out, const keel_report *rep)
+{
+    const keel_roster *r = rep->roster;
+    const keel_course *c = rep->course;
+    char from[KEEL_TIME_SIZE], to[KEEL_TIME_SIZE];
+    fputs("  \"break_cover\": [", out);
+    for (size_t i = 0; i < c->nbreaks; i++) {
+        const keel_break_cover *b = &c->breaks[i];
+        keel_time_text(r, b->at, from);
+        keel_time_text(r, b->at + b->minutes, to);
+        fputs(i ? ",\n    {\"nurse\": " : "\n    {\"nurse\": ", out);
+        keel_write_quoted(out, r->nurses[b->nurse].id);
+        fprintf(out, ", \"from\": \"%s\", \"to\": \"%s\", \"cover\": ", from, to);
+        if (b->cover >= 0)
+            keel_write_quoted(out, r->nurses[b->cover].id);
+        else
+            fputs("null", out);
+        fprintf(out, ", \"relief\": %s, \"patients\": ", b->relief ? "true" : "false");
+        write_ids_of_patients(out, r, b->patients, b->npatients);
+        fprintf(out, ", \"most_patients\": %d, \"limit\": %d, \"needs_relief\": %s, \"flag\": ",
+                b->most, b->limit, b->needs_relief ? "true" : "false");
+        if (b->rule)
+            fprintf(out, "\"%s\"}", b->rule);
+        else
+            fputs("null}", out);
+    }
+    fputs(c->nbreaks ? "\n  ],\n" : "],\n", out);
+    fprintf(out, "  \"relief\": {\"needed\": %d, \"on_roster\": %d},\n", c->relief_needed,
+            c->relief_on_roster);
+    fprintf(out, "  \"admission_order\": {\"admission_minutes\": %d, \"nurses\": [",
+            c->admission_minutes);
+    for (size_t i = 0; i < c->npicks; i++) {
+        fputs(i ? ", {\"nurse\": " : "{\"nurse\": ", out);
+        keel_write_quoted(out, r->nurses[c->picks[i].nurse].id);
+        fprintf(out, ", \"load_minutes\": %d, \"utilisation\": %.12g}", c->picks[i].load_minutes,
+                c->picks[i].utilisation);
+    }
+    fputs("]},\n", out);
+}
+
+/* True when nurse n holds roster patient p at some time. */
+static bool holds(const keel_report *rep, size_t p, size_t n)
+{
+    const keel_workload *w = rep->workload;
+    for (int q = w->first_part[p]; rep->nurse_of && q < w->first_part[p + 1]; q++)
+        if (rep->nurse_of[q] == (int)n)
+            return true;
+    return false;
+}
+
 static void write_nurses(FILE *out, const keel_report *rep)
 {
     const keel_roster *r = rep->roster;
@@ -65,10 +143,14 @@ static void write_nurses(FILE *out, const keel_report *rep)
             if (r->nurses[n].max_patients != KEEL_ABSENT)
                 fprintf(out, ", \"share_max_patients\": %d", r->nurses[n].max_patients);
         }
+        if (r->clock) {
+            write_time(out, r, "start", w->nurse_start[n]);
+            write_time(out, r, "end", w->nurse_end[n]);
+        }
         fputs(", \"patients\": [", out);
         size_t k = 0;
         for (size_t p = 0; rep->nurse_of && p < r->npatients; p++) {
-            if (rep->nurse_of[p] != (int)n)
+            if (!holds(rep, p, n))
                 continue;
             fputs(k++ ? ", " : "", out);
             keel_write_quoted(out, r->patients[p].id);
@@ -82,8 +164,11 @@ static void write_nurses(FILE *out, const keel_report *rep)
                 w->capacity_minutes[n]);
         if (rep->nurse_of)
             fprintf(out, ", \"utilisation\": %.12g", m->utilisation);
-        fprintf(out, ", \"max_patients\": %d, \"counted\": %s}", w->max_patients[n],
+        fprintf(out, ", \"max_patients\": %d, \"counted\": %s", w->max_patients[n],
                 keel_workload_counted(w, n) ? "true" : "false");
+        if (rep->course)
+            write_timeline(out, rep, n);
+        fputc('}', out);
     }
     fputs("\n  ],\n", out);
 }
@@ -100,12 +185,16 @@ static void write_patients(FILE *out, const keel_report *rep)
             fputs(", \"bed\": ", out);
             keel_write_quoted(out, r->patients[p].bed);
         }
-        fprintf(out, ", \"care_minutes\": %d, \"locked\": %s, \"sitter\": %s",
-                rep->workload->care_minutes[p], r->patients[p].lock ? "true" : "false",
+        fprintf(out, ", \"care_minutes\": %lld, \"locked\": %s, \"sitter\": %s",
+                keel_workload_patient_care(rep->workload, p), r->patients[p].lock ? "true" : "false",
                 r->patients[p].sitter ? "true" : "false");
+        if (r->patients[p].expected)
+            fputs(", \"expected\": true", out);
+        write_time(out, r, "arrives_at", r->patients[p].arrives_at);
+        write_time(out, r, "leaves_at", r->patients[p].leaves_at);
         if (r->patients[p].isolation != KEEL_ISOLATION_NONE)
             fprintf(out, ", \"isolation\": \"%s\"", keel_isolation_name(r->patients[p].isolation));
-        if (rep->workload->high_acuity[p])
+        if (rep->workload->high_acuity[rep->workload->first_part[p]])
             fputs(", \"high_acuity\": true", out);
         if (r->patients[p].nnas > 0 && r->patients[p].care_minutes == KEEL_ABSENT) {
             int score = keel_nas_score(r->patients[p].nas, r->patients[p].nnas);
@@ -116,11 +205,28 @@ static void write_patients(FILE *out, const keel_report *rep)
             keel_write_quoted(out, r->patients[p].previous_nurse);
         }
         fputs(", \"nurse\": ", out);
-        int n = rep->nurse_of ? rep->nurse_of[p] : -1;
+        int n = keel_report_first_nurse(rep, p);
         if (n >= 0)
             keel_write_quoted(out, r->nurses[n].id);
         else
             fputs("null", out);
+        if (r->clock && rep->nurse_of) {
+            fputs(", \"handoffs\": [", out);
+            int q = rep->workload->first_part[p], at, from, to;
+            for (size_t k = 0; keel_report_next_handoff(rep, p, &q, &at, &from, &to); k++) {
+                char buf[KEEL_TIME_SIZE];
+                keel_time_text(r, at, buf);
+                fprintf(out, "%s{\"at\": \"%s\", \"from\": ", k ? ", " : "", buf);
+                keel_write_quoted(out, r->nurses[from].id);
+                fputs(", \"to\": ", out);
+                if (to >= 0)
+                    keel_write_quoted(out, r->nurses[to].id);
+                else
+                    fputs("null", out);
+                fputc('}', out);
+            }
+            fputc(']', out);
+        }
         if (rep->explanation && n >= 0) {
             fprintf(out, ", \"why\": {\"reason\": \"%s\", \"text\": ",
                     keel_reason_name(rep->explanation->reason[p]));
@@ -188,7 +294,7 @@ static void write_staffing(FILE *out, const keel_report *rep)
             "  \"staffing\": {\"patients\": %zu, \"nurses_on_shift\": %zu, "
             "\"nurses_taking_patients\": %zu, \"care_minutes\": %ld, \"duty_minutes\": %ld, "
             "\"capacity_minutes\": %ld, \"utilisation\": %.12g, \"nurses_needed\": %.12g},\n",
-            rep->workload->npatients, m->nnurses, m->ncounted, m->care_minutes, m->duty_minutes,
+            rep->workload->npeople, m->nnurses, m->ncounted, m->care_minutes, m->duty_minutes,
             m->capacity_minutes, m->unit_utilisation, m->nurses_needed);
     const keel_staffing *st = rep->staffing;
     if (!st)
@@ -234,6 +340,8 @@ keel_status keel_report_json(const keel_report *rep, FILE *out)
     write_nurses(out, rep);
     write_patients(out, rep);
     write_staffing(out, rep);
+    if (rep->course)
+        write_course(out, rep);
     if (rep->nurse_of && rep->metrics->nunassigned == 0)
         write_imbalance(out, rep->metrics);
     if (rep->kind == KEEL_REPORT_ASSIGN && s && s->best_effort)

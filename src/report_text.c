@@ -6,6 +6,7 @@
  */
 #include <stdio.h>
 #include <stdlib.h>
+#include <string.h>
 
 #include "keel/keel.h"
 #include "alloc.h"
@@ -26,11 +27,42 @@ static void write_heading(FILE *out, const keel_report *rep)
     fprintf(out, "%zu patients, %zu nurses\n\n", r->npatients, r->nnurses);
 }
 
-static void write_patient_line(FILE *out, const keel_report *rep, size_t p)
+/* With the clock: when the patient is here, and whom nurse n (-1: none)
+ * hands the patient to or takes the patient from. */
+static void write_stay(FILE *out, const keel_report *rep, size_t p, int n)
+{
+    const keel_roster *r = rep->roster;
+    const keel_patient *pat = &r->patients[p];
+    char buf[KEEL_TIME_SIZE];
+    if (pat->expected) {
+        keel_time_text(r, pat->arrives_at, buf);
+        fprintf(out, "  expected admission at %s", buf);
+    } else if (pat->arrives_at != KEEL_ABSENT) {
+        keel_time_text(r, pat->arrives_at, buf);
+        fprintf(out, "  arrives %s", buf);
+    }
+    if (pat->leaves_at != KEEL_ABSENT) {
+        keel_time_text(r, pat->leaves_at, buf);
+        fprintf(out, "  leaves %s", buf);
+    }
+    int q = rep->workload->first_part[p], at, from, to;
+    while (keel_report_next_handoff(rep, p, &q, &at, &from, &to)) {
+        keel_time_text(r, at, buf);
+        if (from == n)
+            fprintf(out, "  hands over to %s at %s", to >= 0 ? r->nurses[to].id : "nobody", buf);
+        else if (to == n)
+            fprintf(out, "  takes over from %s at %s", r->nurses[from].id, buf);
+    }
+}
+
+/* One patient in nurse n's block (the minutes she carries), or, n < 0,
+ * with all its care. */
+static void write_patient_line(FILE *out, const keel_report *rep, size_t p, int n)
 {
     const keel_patient *pat = &rep->roster->patients[p];
-    fprintf(out, "      %-10s bed %-8s %4d min", pat->id, pat->bed ? pat->bed : "-",
-            rep->workload->care_minutes[p]);
+    long long care = n >= 0 ? keel_report_care_held(rep, p, (size_t)n)
+                            : keel_workload_patient_care(rep->workload, p);
+    fprintf(out, "      %-10s bed %-8s %4lld min", pat->id, pat->bed ? pat->bed : "-", care);
     if (pat->acuity != KEEL_ABSENT)
         fprintf(out, "  acuity %d", pat->acuity);
     if (pat->nnas > 0 && pat->care_minutes == KEEL_ABSENT) {
@@ -50,11 +82,171 @@ static void write_patient_line(FILE *out, const keel_report *rep, size_t p)
     if (pat->sitter)
         fputs("  sitter", out);
     const keel_workload *w = rep->workload;
-    if (rep->nurse_of && w->previous[p] >= 0)
-        fputs(rep->nurse_of[p] == w->previous[p] ? "  kept" : "  new nurse", out);
+    int first = w->first_part[p];
+    if (rep->roster->clock)
+        write_stay(out, rep, p, n);
+    if (rep->nurse_of && w->previous[first] >= 0 && rep->nurse_of[first] == n)
+        fputs(rep->nurse_of[first] == w->previous[first] ? "  kept" : "  new nurse", out);
     fputc('\n', out);
-    if (rep->explanation && rep->nurse_of)
+    if (rep->explanation && rep->nurse_of && rep->nurse_of[first] == n)
         fprintf(out, "        why: %s\n", rep->explanation->text[p]);
+}
+
+/* True when n holds p at some time. */
+static bool holds(const keel_report *rep, size_t p, size_t n)
+{
+    const keel_workload *w = rep->workload;
+    for (int q = w->first_part[p]; q < w->first_part[p + 1]; q++)
+        if (rep->nurse_of[q] == (int)n)
+            return true;
+    return false;
+}
+
+/* Nurse n's patient count over the shift, as "07:00 4, 11:00 3, 15:00 off". */
+static void write_timeline(FILE *out, const keel_report *rep, size_t n)
+{
+    const keel_course_timeline *t = &rep->course->timelines[n];
+    char at[KEEL_TIME_SIZE];
+    fputs("       patients over the shift:", out);
+    for (size_t i = 0; i < t->nchanges; i++) {
+        keel_time_text(rep->roster, t->changes[i].at, at);
+        if (t->changes[i].patients == KEEL_COURSE_OFF)
+            fprintf(out, "%s %s off", i ? "," : "", at);
+        else
+            fprintf(out, "%s %s %d", i ? "," : "", at, t->changes[i].patients);
+    }
+    fputc('\n', out);
+}
+
+/* The planned hand-offs, by the nurse who leaves. */
+static void write_handoffs(FILE *out, const keel_report *rep)
+{
+    const keel_roster *r = rep->roster;
+    bool any = false;
+    char at[KEEL_TIME_SIZE];
+    for (size_t n = 0; n < r->nnurses; n++) {
+        size_t k = 0;
+        for (size_t p = 0; p < r->npatients; p++) {
+            int q = rep->workload->first_part[p], when, from, to;
+            while (keel_report_next_handoff(rep, p, &q, &when, &from, &to)) {
+                if (from != (int)n)
+                    continue;
+                if (!any)
+                    fputs("Planned hand-offs (a nurse leaves; not balance moves)\n", out);
+                any = true;
+                if (k++ == 0) {
+                    keel_time_text(r, when, at);
+                    fprintf(out, "  %s  %s leaves:", at, r->nurses[n].id);
+                }
+                fprintf(out, "%s %s to %s", k > 1 ? "," : "", r->patients[p].id,
+                        to >= 0 ? r->nurses[to].id : "nobody");
+            }
+        }
+        if (k)
+            fputc('\n', out);
+    }
+    if (any)
+        fputc('\n', out);
+}
+
+static void write_expected(FILE *out, const keel_report *rep)
+{
+    const keel_roster *r = rep->roster;
+    bool any = false;
+    char at[KEEL_TIME_SIZE];
+    for (size_t p = 0; p < r->npatients; p++) {
+        if (!r->patients[p].expected)
+            continue;
+        if (!any)
+            fputs("Expected admissions, assigned in advance\n", out);
+        any = true;
+        int n = keel_report_first_nurse(rep, p);
+        keel_time_text(r, r->patients[p].arrives_at, at);
+        fprintf(out, "  %s  %-10s %4lld min  to %s\n", at, r->patients[p].id,
+                keel_workload_patient_care(rep->workload, p), n >= 0 ? r->nurses[n].id : "nobody");
+    }
+    if (any)
+        fputc('\n', out);
+}
+
+static void write_one_cover(FILE *out, const keel_report *rep, const keel_break_cover *b)
+{
+    const keel_roster *r = rep->roster;
+    char from[KEEL_TIME_SIZE], to[KEEL_TIME_SIZE];
+    keel_time_text(r, b->at, from);
+    keel_time_text(r, b->at + b->minutes, to);
+    fprintf(out, "  %s-%s  %s on break: ", from, to, r->nurses[b->nurse].id);
+    if (b->npatients == 0) {
+        fputs("holds no patients then\n", out);
+        return;
+    }
+    if (b->cover >= 0)
+        fprintf(out, "%s (%s) holds", r->nurses[b->cover].id, b->relief ? "relief" : "buddy");
+    else
+        fputs("nobody holds", out);
+    for (size_t i = 0; i < b->npatients; i++)
+        fprintf(out, "%s %s", i ? "," : "", r->patients[b->patients[i]].id);
+    if (b->cover >= 0)
+        fprintf(out, "; %d patient%s at most (limit %d)", b->most, b->most == 1 ? "" : "s",
+                b->limit);
+    fputc('\n', out);
+    if (!b->rule)
+        return;
+    const keel_law_table *t = r->policy.ratio_table;
+    if (strcmp(b->rule, "law_limit") == 0)
+        fprintf(out, "      FLAG law_limit: exceeds the limit of %s (1:%d for %s) as encoded on %s, "
+                     "which holds during breaks\n",
+                t->name, b->limit, r->unit.type, t->encoded);
+    else if (strcmp(b->rule, "patient_limit") == 0)
+        fprintf(out, "      FLAG patient_limit: over the patient limit of %d\n", b->limit);
+    else
+        fputs("      FLAG no_cover: no buddy or relief nurse is on and free to cover\n", out);
+}
+
+/* Break cover, the relief nurses it needs, and the admission order. */
+static void write_course(FILE *out, const keel_report *rep)
+{
+    const keel_course *c = rep->course;
+    const keel_roster *r = rep->roster;
+    if (c->nbreaks > 0) {
+        fputs("Break cover, in time order\n", out);
+        /* Breaks by start time, then as the course lists them (few: a
+         * selection each time). */
+        size_t flagged = 0;
+        long last_at = -1;
+        size_t last_i = 0;
+        for (size_t k = 0; k < c->nbreaks; k++) {
+            size_t best = c->nbreaks;
+            for (size_t i = 0; i < c->nbreaks; i++) {
+                long at = c->breaks[i].at;
+                bool after = at > last_at || (at == last_at && i > last_i);
+                if (after && (best == c->nbreaks || at < c->breaks[best].at))
+                    best = i;
+            }
+            write_one_cover(out, rep, &c->breaks[best]);
+            flagged += c->breaks[best].rule != NULL;
+            last_at = c->breaks[best].at;
+            last_i = best;
+        }
+        fprintf(out,
+                "  Relief nurses the break plan needs at one time: %d (on the roster: %d); "
+                "breaks flagged: %zu\n\n",
+                c->relief_needed, c->relief_on_roster, flagged);
+    }
+    if (c->npicks == 0)
+        return;
+    fprintf(out, "Next unplanned admissions (a typical admission: %d min)\n", c->admission_minutes);
+    static const char *const place[] = {"1st", "2nd", "3rd"};
+    for (size_t i = 0; i < c->npicks; i++) {
+        char nth[32];
+        if (i < 3)
+            snprintf(nth, sizeof nth, "%s", place[i]);
+        else
+            snprintf(nth, sizeof nth, "%zuth", i + 1);
+        fprintf(out, "  %s  %s, who would reach %.1f %%\n", nth, r->nurses[c->picks[i].nurse].id,
+                100.0 * c->picks[i].utilisation);
+    }
+    fputc('\n', out);
 }
 
 static void write_nurse_blocks(FILE *out, const keel_report *rep)
@@ -83,9 +275,11 @@ static void write_nurse_blocks(FILE *out, const keel_report *rep)
         if (!m->counted)
             fputs("  takes no patients", out);
         fputc('\n', out);
+        if (rep->course && r->clock && m->counted)
+            write_timeline(out, rep, n);
         for (size_t p = 0; p < r->npatients; p++)
-            if (rep->nurse_of[p] == (int)n)
-                write_patient_line(out, rep, p);
+            if (holds(rep, p, n))
+                write_patient_line(out, rep, p, (int)n);
     }
     fputc('\n', out);
 }
@@ -235,7 +429,7 @@ static void write_workload(FILE *out, const keel_report *rep)
     const keel_workload *w = rep->workload;
     fputs("Care minutes per patient\n", out);
     for (size_t p = 0; p < r->npatients; p++)
-        write_patient_line(out, rep, p);
+        write_patient_line(out, rep, p, -1);
     fputs("\nNurses\n", out);
     for (size_t n = 0; n < r->nnurses; n++)
         fprintf(out, "  %-6s %-22s capacity %4d min  duty %3d min  limit %d patients\n",
@@ -259,6 +453,7 @@ keel_status keel_report_text(const keel_report *rep, FILE *out)
                     "Escalate: tell the house supervisor before using any of it.\n\n",
                     s->severity);
             write_nurse_blocks(out, rep);
+            write_handoffs(out, rep);
             write_balance(out, rep->metrics);
             write_findings(out, "Rules this best-effort plan breaks", rep->violations);
         }
@@ -266,7 +461,11 @@ keel_status keel_report_text(const keel_report *rep, FILE *out)
         if (rep->kind == KEEL_REPORT_CHECK)
             fputs("The roster's own plan\n", out);
         write_nurse_blocks(out, rep);
+        write_handoffs(out, rep);
+        write_expected(out, rep);
         write_balance(out, rep->metrics);
+        if (rep->course)
+            write_course(out, rep);
     }
     if (rep->kind == KEEL_REPORT_ASSIGN && s && s->status != KEEL_SOLVE_INFEASIBLE)
         write_proof(out, s, rep->metrics);

@@ -114,6 +114,17 @@ static void write_head(FILE *out, const keel_roster *r)
                 r->policy.balance_tolerance % KEEL_TOLERANCE_SCALE);
 }
 
+/* `indent key: "HH:MM"` for a time given on the roster. */
+static void write_key_time(FILE *out, const keel_roster *r, const char *indent, const char *key,
+                           int offset)
+{
+    char buf[KEEL_TIME_SIZE];
+    if (!r || offset == KEEL_ABSENT)
+        return;
+    keel_time_text(r, offset, buf);
+    fprintf(out, "%s%s: \"%s\"\n", indent, key, buf);
+}
+
 static void write_nurses(FILE *out, const keel_roster *r)
 {
     fputs("nurses:\n", out);
@@ -133,10 +144,20 @@ static void write_nurses(FILE *out, const keel_roster *r)
         if (nu->licence == KEEL_LICENCE_LPN)
             fputs("    licence: lpn\n", out);
         write_key_string(out, "    ", "preceptor", nu->preceptor);
+        write_key_time(out, r, "    ", "start", nu->start);
+        write_key_time(out, r, "    ", "end", nu->end);
+        if (nu->nbreaks)
+            fputs("    breaks:\n", out);
+        for (size_t i = 0; i < nu->nbreaks; i++) {
+            write_key_time(out, r, "      - ", "at", nu->breaks[i].at);
+            fprintf(out, "        minutes: %d\n", nu->breaks[i].minutes);
+        }
+        write_key_string(out, "    ", "covers", nu->covers);
     }
 }
 
-void keel_yaml_write_patient(FILE *out, const keel_patient *pa, const char *nurse)
+void keel_yaml_write_patient(FILE *out, const keel_roster *r, const keel_patient *pa,
+                             const char *nurse)
 {
     fputs("  - id: ", out);
     keel_write_quoted(out, pa->id);
@@ -161,16 +182,46 @@ void keel_yaml_write_patient(FILE *out, const keel_patient *pa, const char *nurs
     write_key_string(out, "    ", "zone", pa->zone);
     write_key_string(out, "    ", "previous_nurse", pa->previous_nurse);
     write_key_list(out, "    ", "nas", pa->nas, pa->nnas);
+    write_key_time(out, r, "    ", pa->expected ? "at" : "arrives_at", pa->arrives_at);
+    write_key_time(out, r, "    ", "leaves_at", pa->leaves_at);
 }
 
-static void write_patients(FILE *out, const keel_report *rep)
+/* The planned hand-offs of patient p under the report's assignment, or as
+ * the roster gives them when there is none. */
+static void write_handoffs(FILE *out, const keel_report *rep, size_t p)
 {
     const keel_roster *r = rep->roster;
-    fputs("patients:\n", out);
+    if (!rep->nurse_of) {
+        write_key_list(out, "    ", "handoffs", r->patients[p].handoffs, r->patients[p].nhandoffs);
+        return;
+    }
+    int q = rep->workload->first_part[p], at, from, to;
+    size_t k = 0;
+    for (; keel_report_next_handoff(rep, p, &q, &at, &from, &to); k++) {
+        fputs(k ? ", " : "    handoffs: [", out);
+        keel_write_quoted(out, to >= 0 ? r->nurses[to].id : "");
+    }
+    if (k)
+        fputs("]\n", out);
+}
+
+/* The patients, or the expected admissions, with their nurses. */
+static void write_patients(FILE *out, const keel_report *rep, bool expected)
+{
+    const keel_roster *r = rep->roster;
+    bool any = !expected; /* the patients' key is always written */
+    if (!expected)
+        fputs("patients:\n", out);
     for (size_t p = 0; p < r->npatients; p++) {
-        int n = rep->nurse_of ? rep->nurse_of[p] : -1;
-        keel_yaml_write_patient(out, &r->patients[p],
+        if (r->patients[p].expected != expected)
+            continue;
+        if (!any)
+            fputs("expected_admissions:\n", out);
+        any = true;
+        int n = keel_report_first_nurse(rep, p);
+        keel_yaml_write_patient(out, r, &r->patients[p],
                                 n >= 0 ? r->nurses[n].id : r->patients[p].nurse);
+        write_handoffs(out, rep, p);
     }
 }
 
@@ -187,6 +238,7 @@ keel_status keel_report_yaml(const keel_report *rep, FILE *out)
               out);
     write_head(out, rep->roster);
     write_nurses(out, rep->roster);
-    write_patients(out, rep);
+    write_patients(out, rep, false);
+    write_patients(out, rep, true);
     return KEEL_OK;
 }

@@ -11,6 +11,10 @@
  * against a table of keys, one row per key naming its parser, so a new key
  * is one new row.  Checks that need the whole file (unique ids, references,
  * limits that depend on the shift) run after the walk, on the filled roster.
+ * So do two steps of the shift's clock: expected admissions, read apart,
+ * are appended to the patients (merge_expected()), and the nurses' and
+ * patients' own times, read as clock times, become minutes after the
+ * shift's start (convert_times()), which is what the roster keeps.
  *
  * Invariants: every problem in the file is reported, not only the first;
  * on any failure *out is NULL and nothing leaks; a value that fails its
@@ -85,6 +89,10 @@ typedef struct loader {
     keel_roster *roster;
     table_state acuity_table;
     table_state extra_table;
+    size_t nexpected;       /* expected_admissions, read apart until the walk ends */
+    keel_patient *expected; /* then appended to roster->patients (merge_expected()) */
+    size_t nlisted;         /* roster->patients[0..nlisted) come from `patients` */
+    const node *patient_list, *expected_list; /* for the checks after the walk */
 } loader;
 
 static void free_node(node *n)
@@ -608,7 +616,8 @@ struct key_rule {
     int min, max;         /* integers: the documented range */
     const key_rule *keys; /* nested mappings: their key table */
     size_t nkeys;
-    const char *need; /* required keys: why, for the "missing" message */
+    const char *need;    /* required keys: why, for the "missing" message */
+    const char *refused; /* a key of a sibling table that is not allowed here: why */
 };
 
 static void *field_of(void *target, size_t offset)
@@ -661,7 +670,7 @@ static const char *suggest_key(const char *word, const key_rule *keys, size_t nk
     if (strlen(word) > MAX_SUGGEST)
         return NULL;
     for (size_t i = 0; i < nkeys; i++)
-        if (is_closer(word, keys[i].name, &best_distance))
+        if (!keys[i].refused && is_closer(word, keys[i].name, &best_distance))
             best = keys[i].name;
     return best;
 }
@@ -704,7 +713,9 @@ static void report_unknown_key(loader *ld, const node *key, const key_rule *keys
         return;
     }
     for (size_t i = 0; i < nkeys; i++) {
-        strcat(names, i ? ", " : "");
+        if (keys[i].refused)
+            continue;
+        strcat(names, names[0] ? ", " : "");
         strcat(names, keys[i].name);
     }
     report(ld, key->mark, "unknown key; expected one of %s", names);
@@ -744,6 +755,8 @@ static void walk_mapping(loader *ld, const node *map, const key_rule *keys, size
         size_t old = push_key(ld, key->text);
         if (!rule) {
             report_unknown_key(ld, key, keys, nkeys);
+        } else if (rule->refused) {
+            report(ld, key->mark, "%s", rule->refused);
         } else if (seen[rule - keys]) {
             report(ld, key->mark, "given twice (first on line %d); expected each key once",
                    seen[rule - keys]->mark.line);
@@ -778,14 +791,14 @@ static void parse_int(loader *ld, const node *value, void *target, const key_rul
         *(int *)field_of(target, rule->offset) = number;
 }
 
-/* A list of names (skills, needs, extras): strings, each once. */
-static void parse_names(loader *ld, const node *value, void *target, const key_rule *rule)
+/* Reads a list of strings into *names and *count; with once, each name
+ * may appear once.  expected says what the list should be. */
+static void read_names(loader *ld, const node *value, char ***names, size_t *count, bool once,
+                       const char *expected)
 {
-    char ***names = field_of(target, rule->offset);
-    size_t *count = field_of(target, rule->count_offset);
     char shown[SHOWN_SIZE];
     if (value->kind != NODE_SEQUENCE) {
-        report_type(ld, value, "a list of names such as [a, b] ([] for none)");
+        report_type(ld, value, expected);
         return;
     }
     *names = keel_calloc(value->nitems, sizeof **names);
@@ -796,7 +809,7 @@ static void parse_names(loader *ld, const node *value, void *target, const key_r
     *count = value->nitems;
     for (size_t i = 0; i < value->nitems; i++) {
         size_t old = push_index(ld, i);
-        if (read_string(ld, value->items[i], &(*names)[i])) {
+        if (read_string(ld, value->items[i], &(*names)[i]) && once) {
             for (size_t j = 0; j < i; j++) {
                 if ((*names)[j] && strcmp((*names)[j], (*names)[i]) == 0) {
                     report(ld, value->items[i]->mark,
@@ -808,6 +821,22 @@ static void parse_names(loader *ld, const node *value, void *target, const key_r
         }
         pop_path(ld, old);
     }
+}
+
+/* A list of names (skills, needs, extras): strings, each once. */
+static void parse_names(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    read_names(ld, value, field_of(target, rule->offset), field_of(target, rule->count_offset),
+               true, "a list of names such as [a, b] ([] for none)");
+}
+
+/* patients[].handoffs: nurse ids in order.  The format asks only that
+ * neighbours differ (check_handoffs()); whether each hand-off can happen is
+ * a question about the plan, not the file. */
+static void parse_handoffs(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    read_names(ld, value, field_of(target, rule->offset), field_of(target, rule->count_offset),
+               false, "a list of nurse ids such as [N4] ([] for none)");
 }
 
 static void parse_section(loader *ld, const node *value, void *target, const key_rule *rule)
@@ -836,6 +865,14 @@ static void parse_clock(loader *ld, const node *value, void *target, const key_r
         *(int *)field_of(target, rule->offset) = minute;
 }
 
+/* A nurse's or patient's own time of day.  Kept as minutes after midnight
+ * until convert_times() reads it against the shift. */
+static void parse_time(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    ld->roster->clock = true;
+    parse_clock(ld, value, target, rule);
+}
+
 static void parse_date(loader *ld, const node *value, void *target, const key_rule *rule)
 {
     char **date = field_of(target, rule->offset);
@@ -854,8 +891,8 @@ static const char *const unit_types[] = {
     "icu",       "step-down", "telemetry",   "med-surg",       "pediatrics",
     "emergency", "oncology",  "psychiatric", "labor-delivery", "postpartum",
     "pacu",      "burn",      "nicu",        "other"};
-static const char *const role_names[KEEL_NROLES] = {"staff", "charge", "resource", "float",
-                                                    "orientee"};
+static const char *const role_names[KEEL_NROLES] = {"staff", "charge",   "resource",
+                                                    "float", "orientee", "relief"};
 static const char *const licence_names[] = {"rn", "lpn"};
 static const char *const isolation_names[KEEL_NISOLATION] = {"none", "contact", "droplet",
                                                              "airborne", "protective"};
@@ -1181,6 +1218,59 @@ static void parse_extra_table(loader *ld, const node *value, void *target, const
     }
 }
 
+/* True when value is a non-empty sequence (reported if not). */
+static bool check_list(loader *ld, const node *value, const char *what)
+{
+    char expected[64];
+    snprintf(expected, sizeof expected, "a list of %ss", what);
+    if (value->kind != NODE_SEQUENCE) {
+        report_type(ld, value, expected);
+        return false;
+    }
+    if (value->nitems == 0) {
+        report(ld, value->mark, "found an empty list; expected at least one %s", what);
+        return false;
+    }
+    return true;
+}
+
+static const key_rule break_keys[] = {
+    {.name = "at",
+     .parse = parse_time,
+     .offset = offsetof(keel_break, at),
+     .need = "every break needs at: the time it starts"},
+    {.name = "minutes",
+     .parse = parse_int,
+     .offset = offsetof(keel_break, minutes),
+     .min = 1,
+     .max = MINUTES_PER_DAY,
+     .need = "every break needs its length in minutes"},
+};
+
+/* nurses[].breaks: timed breaks, each {at, minutes}; checked against the
+ * nurse's time on the unit by check_breaks(). */
+static void parse_breaks(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    keel_nurse *n = target;
+    (void)rule;
+    ld->roster->clock = true;
+    if (!check_list(ld, value, "break"))
+        return;
+    n->breaks = keel_calloc(value->nitems, sizeof *n->breaks);
+    if (!n->breaks) {
+        ld->nomem = true;
+        return;
+    }
+    n->nbreaks = value->nitems;
+    for (size_t i = 0; i < value->nitems; i++) {
+        n->breaks[i] =
+            (keel_break){.at = KEEL_ABSENT, .minutes = KEEL_ABSENT, .mark = value->items[i]->mark};
+        size_t old = push_index(ld, i);
+        walk_mapping(ld, value->items[i], break_keys, ARRAY_LEN(break_keys), &n->breaks[i]);
+        pop_path(ld, old);
+    }
+}
+
 static const key_rule nurse_keys[] = {
     {.name = "id",
      .parse = parse_string,
@@ -1214,68 +1304,89 @@ static const key_rule nurse_keys[] = {
     {.name = "role", .parse = parse_role, .offset = offsetof(keel_nurse, role)},
     {.name = "licence", .parse = parse_licence, .offset = offsetof(keel_nurse, licence)},
     {.name = "preceptor", .parse = parse_string, .offset = offsetof(keel_nurse, preceptor)},
+    {.name = "start", .parse = parse_time, .offset = offsetof(keel_nurse, start)},
+    {.name = "end", .parse = parse_time, .offset = offsetof(keel_nurse, end)},
+    {.name = "breaks", .parse = parse_breaks},
+    {.name = "covers", .parse = parse_string, .offset = offsetof(keel_nurse, covers)},
 };
+
+/* The keys a patient and an expected admission share, up to the times: all
+ * but id and the arrival (arrives_at for a patient, at for an expected
+ * admission). */
+/* clang-format off */
+#define PATIENT_COMMON_KEYS                                                                        \
+    {.name = "bed", .parse = parse_string, .offset = offsetof(keel_patient, bed)},                 \
+    {.name = "name", .parse = parse_string, .offset = offsetof(keel_patient, name)},               \
+    {.name = "acuity",                                                                             \
+     .parse = parse_int,                                                                           \
+     .offset = offsetof(keel_patient, acuity),                                                     \
+     .min = 0,                                                                                     \
+     .max = MAX_LEVEL},                                                                            \
+    {.name = "care_minutes",                                                                       \
+     .parse = parse_int,                                                                           \
+     .offset = offsetof(keel_patient, care_minutes),                                               \
+     .min = 0,                                                                                     \
+     .max = MINUTES_PER_DAY},                                                                      \
+    {.name = "extras",                                                                             \
+     .parse = parse_names,                                                                         \
+     .offset = offsetof(keel_patient, extras),                                                     \
+     .count_offset = offsetof(keel_patient, nextras)},                                             \
+    {.name = "needs",                                                                              \
+     .parse = parse_names,                                                                         \
+     .offset = offsetof(keel_patient, needs),                                                      \
+     .count_offset = offsetof(keel_patient, nneeds)},                                              \
+    {.name = "nurse", .parse = parse_string, .offset = offsetof(keel_patient, nurse)},             \
+    {.name = "lock", .parse = parse_bool, .offset = offsetof(keel_patient, lock)},                 \
+    {.name = "sitter", .parse = parse_bool, .offset = offsetof(keel_patient, sitter)},             \
+    {.name = "avoid",                                                                              \
+     .parse = parse_names,                                                                         \
+     .offset = offsetof(keel_patient, avoid),                                                      \
+     .count_offset = offsetof(keel_patient, navoid)},                                              \
+    {.name = "ratio", .parse = parse_ratio, .offset = offsetof(keel_patient, ratio)},              \
+    {.name = "isolation", .parse = parse_isolation, .offset = offsetof(keel_patient, isolation)},  \
+    {.name = "room", .parse = parse_string, .offset = offsetof(keel_patient, room)},               \
+    {.name = "zone", .parse = parse_string, .offset = offsetof(keel_patient, zone)},               \
+    {.name = "previous_nurse",                                                                     \
+     .parse = parse_string,                                                                        \
+     .offset = offsetof(keel_patient, previous_nurse)},                                            \
+    {.name = "nas",                                                                                \
+     .parse = parse_names,                                                                         \
+     .offset = offsetof(keel_patient, nas),                                                        \
+     .count_offset = offsetof(keel_patient, nnas)}
+/* clang-format on */
 
 static const key_rule patient_keys[] = {
     {.name = "id",
      .parse = parse_string,
      .offset = offsetof(keel_patient, id),
      .need = "every patient needs a unique id"},
-    {.name = "bed", .parse = parse_string, .offset = offsetof(keel_patient, bed)},
-    {.name = "name", .parse = parse_string, .offset = offsetof(keel_patient, name)},
-    {.name = "acuity",
-     .parse = parse_int,
-     .offset = offsetof(keel_patient, acuity),
-     .min = 0,
-     .max = MAX_LEVEL},
-    {.name = "care_minutes",
-     .parse = parse_int,
-     .offset = offsetof(keel_patient, care_minutes),
-     .min = 0,
-     .max = MINUTES_PER_DAY},
-    {.name = "extras",
-     .parse = parse_names,
-     .offset = offsetof(keel_patient, extras),
-     .count_offset = offsetof(keel_patient, nextras)},
-    {.name = "needs",
-     .parse = parse_names,
-     .offset = offsetof(keel_patient, needs),
-     .count_offset = offsetof(keel_patient, nneeds)},
-    {.name = "nurse", .parse = parse_string, .offset = offsetof(keel_patient, nurse)},
-    {.name = "lock", .parse = parse_bool, .offset = offsetof(keel_patient, lock)},
-    {.name = "sitter", .parse = parse_bool, .offset = offsetof(keel_patient, sitter)},
-    {.name = "avoid",
-     .parse = parse_names,
-     .offset = offsetof(keel_patient, avoid),
-     .count_offset = offsetof(keel_patient, navoid)},
-    {.name = "ratio", .parse = parse_ratio, .offset = offsetof(keel_patient, ratio)},
-    {.name = "isolation", .parse = parse_isolation, .offset = offsetof(keel_patient, isolation)},
-    {.name = "room", .parse = parse_string, .offset = offsetof(keel_patient, room)},
-    {.name = "zone", .parse = parse_string, .offset = offsetof(keel_patient, zone)},
-    {.name = "previous_nurse",
-     .parse = parse_string,
-     .offset = offsetof(keel_patient, previous_nurse)},
-    {.name = "nas",
-     .parse = parse_names,
-     .offset = offsetof(keel_patient, nas),
-     .count_offset = offsetof(keel_patient, nnas)},
+    PATIENT_COMMON_KEYS,
+    {.name = "arrives_at", .parse = parse_time, .offset = offsetof(keel_patient, arrives_at)},
+    {.name = "leaves_at", .parse = parse_time, .offset = offsetof(keel_patient, leaves_at)},
+    {.name = "handoffs",
+     .parse = parse_handoffs,
+     .offset = offsetof(keel_patient, handoffs),
+     .count_offset = offsetof(keel_patient, nhandoffs)},
 };
 
-/* True when value is a non-empty sequence (reported if not). */
-static bool check_list(loader *ld, const node *value, const char *what)
-{
-    char expected[64];
-    snprintf(expected, sizeof expected, "a list of %ss", what);
-    if (value->kind != NODE_SEQUENCE) {
-        report_type(ld, value, expected);
-        return false;
-    }
-    if (value->nitems == 0) {
-        report(ld, value->mark, "found an empty list; expected at least one %s", what);
-        return false;
-    }
-    return true;
-}
+static const key_rule expected_keys[] = {
+    {.name = "id",
+     .parse = parse_string,
+     .offset = offsetof(keel_patient, id),
+     .need = "every expected admission needs a unique id"},
+    {.name = "at",
+     .parse = parse_time,
+     .offset = offsetof(keel_patient, arrives_at),
+     .need = "every expected admission needs at: the time it is expected"},
+    PATIENT_COMMON_KEYS,
+    {.name = "leaves_at", .parse = parse_time, .offset = offsetof(keel_patient, leaves_at)},
+    {.name = "handoffs",
+     .parse = parse_handoffs,
+     .offset = offsetof(keel_patient, handoffs),
+     .count_offset = offsetof(keel_patient, nhandoffs)},
+    {.name = "arrives_at",
+     .refused = "not used for an expected admission; expected at: the time it is expected"},
+};
 
 static void parse_nurses(loader *ld, const node *value, void *target, const key_rule *rule)
 {
@@ -1294,9 +1405,36 @@ static void parse_nurses(loader *ld, const node *value, void *target, const key_
                                     .minutes = KEEL_ABSENT,
                                     .break_minutes = KEEL_ABSENT,
                                     .duty_minutes = KEEL_ABSENT,
+                                    .start = KEEL_ABSENT,
+                                    .end = KEEL_ABSENT,
                                     .mark = value->items[i]->mark};
         size_t old = push_index(ld, i);
         walk_mapping(ld, value->items[i], nurse_keys, ARRAY_LEN(nurse_keys), &r->nurses[i]);
+        pop_path(ld, old);
+    }
+}
+
+/* Reads the entries of a patient list into a new array *out of *count
+ * patients, each checked against keys. */
+static void read_patients(loader *ld, const node *value, const key_rule *keys, size_t nkeys,
+                          bool expected, keel_patient **out, size_t *count)
+{
+    *out = keel_calloc(value->nitems, sizeof **out);
+    if (!*out) {
+        ld->nomem = true;
+        return;
+    }
+    *count = value->nitems;
+    for (size_t i = 0; i < value->nitems; i++) {
+        (*out)[i] = (keel_patient){.acuity = KEEL_ABSENT,
+                                   .care_minutes = KEEL_ABSENT,
+                                   .ratio = KEEL_ABSENT,
+                                   .arrives_at = KEEL_ABSENT,
+                                   .leaves_at = KEEL_ABSENT,
+                                   .expected = expected,
+                                   .mark = value->items[i]->mark};
+        size_t old = push_index(ld, i);
+        walk_mapping(ld, value->items[i], keys, nkeys, &(*out)[i]);
         pop_path(ld, old);
     }
 }
@@ -1305,23 +1443,22 @@ static void parse_patients(loader *ld, const node *value, void *target, const ke
 {
     keel_roster *r = target;
     (void)rule;
-    if (!check_list(ld, value, "patient"))
-        return;
-    r->patients = keel_calloc(value->nitems, sizeof *r->patients);
-    if (!r->patients) {
-        ld->nomem = true;
-        return;
-    }
-    r->npatients = value->nitems;
-    for (size_t i = 0; i < value->nitems; i++) {
-        r->patients[i] = (keel_patient){.acuity = KEEL_ABSENT,
-                                        .care_minutes = KEEL_ABSENT,
-                                        .ratio = KEEL_ABSENT,
-                                        .mark = value->items[i]->mark};
-        size_t old = push_index(ld, i);
-        walk_mapping(ld, value->items[i], patient_keys, ARRAY_LEN(patient_keys), &r->patients[i]);
-        pop_path(ld, old);
-    }
+    if (check_list(ld, value, "patient"))
+        read_patients(ld, value, patient_keys, ARRAY_LEN(patient_keys), false, &r->patients,
+                      &r->npatients);
+}
+
+/* expected_admissions: patients with a time of arrival, kept apart until
+ * merge_expected() appends them to the patients.  [] is none. */
+static void parse_expected(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    (void)target;
+    (void)rule;
+    if (value->kind != NODE_SEQUENCE)
+        report_type(ld, value, "a list of expected admissions ([] for none)");
+    else if (value->nitems > 0)
+        read_patients(ld, value, expected_keys, ARRAY_LEN(expected_keys), true, &ld->expected,
+                      &ld->nexpected);
 }
 
 static const key_rule unit_keys[] = {
@@ -1445,6 +1582,7 @@ static const key_rule roster_keys[] = {
      .nkeys = ARRAY_LEN(policy_keys)},
     {.name = "nurses", .parse = parse_nurses, .need = "every roster needs a list of nurses"},
     {.name = "patients", .parse = parse_patients, .need = "every roster needs a list of patients"},
+    {.name = "expected_admissions", .parse = parse_expected},
 };
 
 /* ---------------------------------------------------------------------------
@@ -1466,36 +1604,414 @@ static void check_shift_break(loader *ld, const node *root)
            r->shift.break_minutes, r->shift.minutes, r->shift.minutes);
 }
 
-/* A nurse's time on the unit must fit the shift, and the nurse's break and
- * duty minutes must fit that time. */
-static void check_nurse_minutes(loader *ld, size_t i, const node *item)
+/* ---------------------------------------------------------------------------
+ * The shift's clock: the nurses' and patients' own times
+ */
+
+enum { CLOCK_SIZE = 16 };
+
+/* Writes the time of day `offset` minutes after the shift's start, "HH:MM". */
+static const char *clock_text(const keel_roster *r, int offset, char *buf)
+{
+    int minute = (r->shift.start_minute + offset) % MINUTES_PER_DAY;
+    snprintf(buf, CLOCK_SIZE, "%02d:%02d", minute / 60, minute % 60);
+    return buf;
+}
+
+/* The node of roster->patients[i]: an entry of patients or, after those,
+ * of expected_admissions. */
+static const node *patient_item(const loader *ld, size_t i)
+{
+    return i < ld->nlisted ? ld->patient_list->items[i] : ld->expected_list->items[i - ld->nlisted];
+}
+
+/* Sets the path to patients[i].key or expected_admissions[j].key. */
+static void set_patient_path(loader *ld, size_t i, const char *key)
+{
+    if (i < ld->nlisted)
+        set_path(ld, "patients", i, key);
+    else
+        set_path(ld, "expected_admissions", i - ld->nlisted, key);
+}
+
+/* Appends the expected admissions to the patients (after the walk, so that
+ * the order of the two lists in the file does not matter). */
+static void merge_expected(loader *ld)
+{
+    keel_roster *r = ld->roster;
+    ld->nlisted = r->npatients;
+    if (ld->nexpected == 0)
+        return;
+    keel_patient *all = keel_reallocarray(r->patients, r->npatients + ld->nexpected, sizeof *all);
+    if (!all) {
+        ld->nomem = true;
+        for (size_t i = 0; i < ld->nexpected; i++)
+            keel_patient_fini(&ld->expected[i]);
+    } else {
+        memcpy(all + r->npatients, ld->expected, ld->nexpected * sizeof *all);
+        r->patients = all;
+        r->npatients += ld->nexpected;
+        r->clock = true;
+    }
+    free(ld->expected);
+    ld->expected = NULL;
+    ld->nexpected = 0;
+}
+
+/* Reads the time at *minute (minutes after midnight, as the file gives it)
+ * against the shift: offset = (time - shift.start) mod 1440, which must lie
+ * in [0, shift.minutes].  An end-like time at the shift's start ends a
+ * 24-hour shift (offset 1440).  A time that cannot be read becomes
+ * KEEL_ABSENT, reported unless a problem of the shift itself says why.
+ * value is the time's node; the path names its key. */
+static void convert_time(loader *ld, const node *shift, const node *value, bool end_like,
+                         int *minute)
+{
+    const keel_roster *r = ld->roster;
+    char shown[SHOWN_SIZE], from[CLOCK_SIZE], to[CLOCK_SIZE];
+    int time = *minute;
+    if (time == KEEL_ABSENT)
+        return;
+    *minute = KEEL_ABSENT;
+    if (r->shift.start_minute == KEEL_ABSENT) {
+        if (shift && shift->kind == NODE_MAPPING && !find_value(shift, "start"))
+            report(ld, value->mark,
+                   "%s needs shift.start to be read against the shift; expected shift.start, "
+                   "the time the shift starts",
+                   show(shown, value->text));
+        return;
+    }
+    if (r->shift.minutes == KEEL_ABSENT)
+        return;
+    int offset = (time - r->shift.start_minute + MINUTES_PER_DAY) % MINUTES_PER_DAY;
+    if (end_like && offset == 0 && r->shift.minutes == MINUTES_PER_DAY)
+        offset = MINUTES_PER_DAY;
+    if (offset > r->shift.minutes) {
+        clock_text(r, 0, from);
+        clock_text(r, r->shift.minutes, to);
+        report(ld, value->mark, "%s is outside the shift (%s to %s); expected a time from %s to %s",
+               show(shown, value->text), from, to, from, to);
+        return;
+    }
+    *minute = offset;
+}
+
+/* Turns every nurse's and patient's time into minutes after the shift's
+ * start (the checks below and the roster keep those). */
+static void convert_times(loader *ld, const node *root)
+{
+    keel_roster *r = ld->roster;
+    const node *shift = find_value(root, "shift"), *nurses = find_value(root, "nurses");
+    for (size_t i = 0; i < r->nnurses; i++) {
+        keel_nurse *n = &r->nurses[i];
+        const node *item = nurses->items[i], *breaks = find_value(item, "breaks");
+        set_path(ld, "nurses", i, "start");
+        convert_time(ld, shift, find_value(item, "start"), false, &n->start);
+        set_path(ld, "nurses", i, "end");
+        convert_time(ld, shift, find_value(item, "end"), true, &n->end);
+        for (size_t b = 0; b < n->nbreaks; b++) {
+            set_path(ld, "nurses", i, "breaks");
+            push_index(ld, b);
+            push_key(ld, "at");
+            convert_time(ld, shift, find_value(breaks->items[b], "at"), false, &n->breaks[b].at);
+        }
+    }
+    for (size_t i = 0; i < r->npatients; i++) {
+        keel_patient *p = &r->patients[i];
+        const node *item = patient_item(ld, i);
+        const char *arrival = p->expected ? "at" : "arrives_at";
+        set_patient_path(ld, i, arrival);
+        convert_time(ld, shift, find_value(item, arrival), false, &p->arrives_at);
+        set_patient_path(ld, i, "leaves_at");
+        convert_time(ld, shift, find_value(item, "leaves_at"), true, &p->leaves_at);
+    }
+}
+
+/* The nurse's time on the unit, [*start, *end) after the shift's start. */
+static void nurse_span(const keel_roster *r, const keel_nurse *n, int *start, int *end)
+{
+    *start = n->start == KEEL_ABSENT ? 0 : n->start;
+    *end = n->end == KEEL_ABSENT ? r->shift.minutes : n->end;
+}
+
+/* True when the key is absent or its time was read. */
+static bool time_read(const node *item, const char *key, int value)
+{
+    return !find_value(item, key) || value != KEEL_ABSENT;
+}
+
+/* A nurse's own start comes before her end; `minutes`, when given with
+ * them, is the time between.  True when the nurse's time on the unit is
+ * known and sound, so that the checks that depend on it can run. */
+static bool check_nurse_span(loader *ld, size_t i, const node *item)
 {
     const keel_roster *r = ld->roster;
     const keel_nurse *n = &r->nurses[i];
-    int minutes = n->minutes == KEEL_ABSENT ? r->shift.minutes : n->minutes;
+    char from[CLOCK_SIZE], to[CLOCK_SIZE];
+    int start, end;
+    if (!time_read(item, "start", n->start) || !time_read(item, "end", n->end))
+        return false;
+    if (n->start == KEEL_ABSENT && n->end == KEEL_ABSENT)
+        return true;
+    if (r->shift.minutes == KEEL_ABSENT)
+        return false;
+    nurse_span(r, n, &start, &end);
+    clock_text(r, start, from);
+    clock_text(r, end, to);
+    if (start >= end && n->start != KEEL_ABSENT && n->end != KEEL_ABSENT) {
+        set_path(ld, "nurses", i, "end");
+        report(ld, find_value(item, "end")->mark,
+               "%s is not after the nurse's start at %s; expected an end later than the start", to,
+               from);
+        return false;
+    }
+    if (start >= end && n->start != KEEL_ABSENT) {
+        set_path(ld, "nurses", i, "start");
+        report(ld, find_value(item, "start")->mark,
+               "%s is when the shift ends; expected a start before %s", from, to);
+        return false;
+    }
+    if (start >= end) {
+        set_path(ld, "nurses", i, "end");
+        report(ld, find_value(item, "end")->mark,
+               "%s is when the shift starts; expected an end after %s", to, from);
+        return false;
+    }
+    if (n->minutes != KEEL_ABSENT && n->minutes != end - start) {
+        set_path(ld, "nurses", i, "minutes");
+        report(ld, find_value(item, "minutes")->mark,
+               "%d minutes on the unit, but %s to %s is %d minutes; expected %d, or no minutes",
+               n->minutes, from, to, end - start, end - start);
+    }
+    return true;
+}
+
+/* A nurse's timed breaks lie inside her time on the unit [start, end), in
+ * time order, without overlapping; break_minutes, when also given, is their
+ * total.  Returns that total, or KEEL_ABSENT when a break has a problem. */
+static int check_breaks(loader *ld, size_t i, const node *item)
+{
+    const keel_roster *r = ld->roster;
+    const keel_nurse *n = &r->nurses[i];
+    const node *list = find_value(item, "breaks");
+    const keel_break *before = NULL;
+    size_t before_index = 0;
+    char at[CLOCK_SIZE], from[CLOCK_SIZE], to[CLOCK_SIZE], other[CLOCK_SIZE];
+    int start, end, total = 0;
+    bool complete = true;
+    if (r->shift.start_minute == KEEL_ABSENT || r->shift.minutes == KEEL_ABSENT)
+        return KEEL_ABSENT;
+    nurse_span(r, n, &start, &end);
+    clock_text(r, start, from);
+    clock_text(r, end, to);
+    for (size_t k = 0; k < n->nbreaks; k++) {
+        const keel_break *b = &n->breaks[k];
+        const node *entry = list->items[k];
+        if (b->at == KEEL_ABSENT || b->minutes == KEEL_ABSENT) {
+            complete = false;
+            continue;
+        }
+        set_path(ld, "nurses", i, "breaks");
+        push_index(ld, k);
+        clock_text(r, b->at, at);
+        if (before)
+            clock_text(r, before->at, other);
+        if (b->at < start || b->at >= end) {
+            push_key(ld, "at");
+            report(ld, find_value(entry, "at")->mark,
+                   "the break at %s is outside the nurse's time on the unit (%s to %s); expected "
+                   "a break that starts from %s and before %s",
+                   at, from, to, from, to);
+        } else if (b->at + b->minutes > end) {
+            push_key(ld, "minutes");
+            report(ld, find_value(entry, "minutes")->mark,
+                   "a %d-minute break at %s runs past the nurse's end at %s; expected at most %d",
+                   b->minutes, at, to, end - b->at);
+        } else if (before && b->at < before->at) {
+            push_key(ld, "at");
+            report(ld, find_value(entry, "at")->mark,
+                   "the break at %s comes before the break at %s (breaks[%zu]); expected the "
+                   "breaks in time order",
+                   at, other, before_index);
+        } else if (before && b->at < before->at + before->minutes) {
+            char ends[CLOCK_SIZE];
+            push_key(ld, "at");
+            report(ld, find_value(entry, "at")->mark,
+                   "the break at %s starts before the %d-minute break at %s (breaks[%zu]) ends "
+                   "at %s; expected breaks that do not overlap",
+                   at, before->minutes, other, before_index,
+                   clock_text(r, before->at + before->minutes, ends));
+        } else {
+            total += b->minutes;
+            before = b;
+            before_index = k;
+            continue;
+        }
+        complete = false;
+    }
+    if (!complete)
+        return KEEL_ABSENT;
+    if (n->break_minutes != KEEL_ABSENT && n->break_minutes != total) {
+        set_path(ld, "nurses", i, "break_minutes");
+        report(ld, find_value(item, "break_minutes")->mark,
+               "%d break minutes, but the breaks add up to %d; expected %d, or no break_minutes",
+               n->break_minutes, total, total);
+    }
+    return total;
+}
+
+/* A break buddy is another nurse of the roster. */
+static void check_covers(loader *ld, size_t i, const node *item)
+{
+    const keel_roster *r = ld->roster;
+    const keel_nurse *n = &r->nurses[i];
+    const node *given = find_value(item, "covers");
+    char shown[SHOWN_SIZE];
+    if (!n->covers)
+        return;
+    int k = keel_roster_find_nurse(r, n->covers);
+    set_path(ld, "nurses", i, "covers");
+    if (k < 0)
+        report(ld, given->mark, "no nurse '%s' on this roster", show(shown, n->covers));
+    else if ((size_t)k == i || (n->id && strcmp(n->id, n->covers) == 0))
+        report(ld, given->mark,
+               "'%s' is this nurse's own id; expected the id of another nurse, whose patients "
+               "this nurse holds during that nurse's breaks",
+               show(shown, n->covers));
+}
+
+/* A patient's own arrival comes before the departure (a patient who
+ * arrives as the shift ends, or leaves as it starts, is not on it). */
+static void check_patient_times(loader *ld, size_t i, const node *item)
+{
+    const keel_roster *r = ld->roster;
+    const keel_patient *p = &r->patients[i];
+    const char *arrival = p->expected ? "at" : "arrives_at";
+    char from[CLOCK_SIZE], to[CLOCK_SIZE];
+    if (!time_read(item, arrival, p->arrives_at) || !time_read(item, "leaves_at", p->leaves_at) ||
+        (p->arrives_at == KEEL_ABSENT && p->leaves_at == KEEL_ABSENT) ||
+        r->shift.minutes == KEEL_ABSENT)
+        return;
+    int arrives = p->arrives_at == KEEL_ABSENT ? 0 : p->arrives_at;
+    int leaves = p->leaves_at == KEEL_ABSENT ? r->shift.minutes : p->leaves_at;
+    if (arrives < leaves)
+        return;
+    clock_text(r, arrives, from);
+    clock_text(r, leaves, to);
+    if (p->arrives_at != KEEL_ABSENT && p->leaves_at != KEEL_ABSENT) {
+        set_patient_path(ld, i, "leaves_at");
+        report(ld, find_value(item, "leaves_at")->mark,
+               "%s is not after the patient's arrival at %s; expected a departure later than "
+               "the arrival",
+               to, from);
+    } else if (p->arrives_at != KEEL_ABSENT) {
+        set_patient_path(ld, i, arrival);
+        report(ld, find_value(item, arrival)->mark,
+               "%s is when the shift ends; expected an arrival before %s", from, to);
+    } else {
+        set_patient_path(ld, i, "leaves_at");
+        report(ld, find_value(item, "leaves_at")->mark,
+               "%s is when the shift starts; expected a departure after %s", to, from);
+    }
+}
+
+/* Planned hand-offs follow the patient's nurse: each names a nurse of the
+ * roster other than the one just before it. */
+static void check_handoffs(loader *ld, size_t i, const node *item)
+{
+    const keel_roster *r = ld->roster;
+    const keel_patient *p = &r->patients[i];
+    const node *list = find_value(item, "handoffs");
+    char shown[SHOWN_SIZE];
+    if (p->nhandoffs == 0)
+        return;
+    if (!find_value(item, "nurse")) {
+        set_patient_path(ld, i, "handoffs");
+        report(ld, list->mark,
+               "hand-offs without a nurse; expected nurse: the id of the nurse who has the "
+               "patient first");
+        return;
+    }
+    for (size_t k = 0; k < p->nhandoffs; k++) {
+        const char *id = p->handoffs[k], *before = k ? p->handoffs[k - 1] : p->nurse;
+        if (!id)
+            continue;
+        set_patient_path(ld, i, "handoffs");
+        push_index(ld, k);
+        if (r->nnurses && keel_roster_find_nurse(r, id) < 0)
+            report(ld, list->items[k]->mark, "no nurse '%s' on this roster", show(shown, id));
+        else if (before && strcmp(before, id) == 0 && k == 0)
+            report(ld, list->items[k]->mark,
+                   "'%s' is the patient's nurse already; expected a hand-off to another nurse",
+                   show(shown, id));
+        else if (before && strcmp(before, id) == 0)
+            report(ld, list->items[k]->mark,
+                   "'%s' already has the patient from handoffs[%zu]; expected a hand-off to "
+                   "another nurse",
+                   show(shown, id), k - 1);
+    }
+}
+
+/* Reports that a nurse's break (her break_minutes, her timed breaks or the
+ * shift's break) leaves no time in her `minutes` on the unit: at the key
+ * that gives the break, else at minutes_key, the key that gives her time
+ * (NULL: the shift's length, reported with the shift). */
+static void report_break_fills(loader *ld, size_t i, const node *item, int minutes,
+                               int break_minutes, const char *minutes_key)
+{
+    const keel_nurse *n = &ld->roster->nurses[i];
+    if (n->break_minutes != KEEL_ABSENT) {
+        set_path(ld, "nurses", i, "break_minutes");
+        report(ld, find_value(item, "break_minutes")->mark,
+               "a %d-minute break leaves no time in %d minutes on the unit; expected less than %d",
+               break_minutes, minutes, minutes);
+    } else if (n->nbreaks) {
+        set_path(ld, "nurses", i, "breaks");
+        report(ld, find_value(item, "breaks")->mark,
+               "breaks of %d minutes in all leave no time in %d minutes on the unit; expected "
+               "less than %d",
+               break_minutes, minutes, minutes);
+    } else if (minutes_key) {
+        set_path(ld, "nurses", i, minutes_key);
+        report(ld, find_value(item, minutes_key)->mark,
+               "%d minutes on the unit leave no time after the shift's %d-minute break; "
+               "expected more than %d, or break_minutes for this nurse",
+               minutes, break_minutes, break_minutes);
+    }
+}
+
+/* A nurse's time on the unit must fit the shift, and the nurse's break and
+ * duty minutes must fit that time.  A nurse with her own start or end is on
+ * the unit from start to end; breaks is her timed breaks' total (or
+ * KEEL_ABSENT).  Only the checks use these figures: the roster keeps the
+ * fields as given, and the workload module applies the defaults. */
+static void check_nurse_minutes(loader *ld, size_t i, const node *item, int breaks)
+{
+    const keel_roster *r = ld->roster;
+    const keel_nurse *n = &r->nurses[i];
+    bool timed = n->start != KEEL_ABSENT || n->end != KEEL_ABSENT;
+    int start, end;
+    nurse_span(r, n, &start, &end);
+    int minutes = timed ? end - start : n->minutes == KEEL_ABSENT ? r->shift.minutes : n->minutes;
+    const char *minutes_key = n->minutes != KEEL_ABSENT ? "minutes"
+                              : n->end != KEEL_ABSENT   ? "end"
+                                                        : "start";
     int shift_break = r->shift.break_minutes == KEEL_ABSENT ? 0 : r->shift.break_minutes;
-    int break_minutes = n->break_minutes == KEEL_ABSENT ? shift_break : n->break_minutes;
+    int break_minutes = n->break_minutes != KEEL_ABSENT ? n->break_minutes
+                        : n->nbreaks                    ? breaks
+                                                        : shift_break;
     if (minutes == KEEL_ABSENT)
         return;
-    if (r->shift.minutes != KEEL_ABSENT && minutes > r->shift.minutes) {
+    if (!timed && r->shift.minutes != KEEL_ABSENT && minutes > r->shift.minutes) {
         set_path(ld, "nurses", i, "minutes");
         report(ld, find_value(item, "minutes")->mark,
                "%d minutes on the unit exceed the %d-minute shift; expected at most %d", minutes,
                r->shift.minutes, r->shift.minutes);
         return;
     }
-    if (break_minutes >= minutes && n->break_minutes != KEEL_ABSENT) {
-        set_path(ld, "nurses", i, "break_minutes");
-        report(ld, find_value(item, "break_minutes")->mark,
-               "a %d-minute break leaves no time in %d minutes on the unit; expected less than %d",
-               break_minutes, minutes, minutes);
-    } else if (break_minutes >= minutes && n->minutes != KEEL_ABSENT) {
-        set_path(ld, "nurses", i, "minutes");
-        report(ld, find_value(item, "minutes")->mark,
-               "%d minutes on the unit leave no time after the shift's %d-minute break; "
-               "expected more than %d, or break_minutes for this nurse",
-               minutes, break_minutes, break_minutes);
-    }
+    if (break_minutes != KEEL_ABSENT && break_minutes >= minutes)
+        report_break_fills(ld, i, item, minutes, break_minutes,
+                           n->minutes != KEEL_ABSENT || timed ? minutes_key : NULL);
     if (n->duty_minutes != KEEL_ABSENT && n->duty_minutes > minutes) {
         set_path(ld, "nurses", i, "duty_minutes");
         report(ld, find_value(item, "duty_minutes")->mark,
@@ -1578,8 +2094,12 @@ static void check_nurses(loader *ld, const node *list)
         if (list->items[i]->kind != NODE_MAPPING)
             continue;
         check_unique_id(ld, list, i, "nurse");
-        check_nurse_minutes(ld, i, list->items[i]);
+        if (check_nurse_span(ld, i, list->items[i])) {
+            int breaks = ld->roster->nurses[i].nbreaks ? check_breaks(ld, i, list->items[i]) : 0;
+            check_nurse_minutes(ld, i, list->items[i], breaks);
+        }
         check_preceptor(ld, i, list->items[i]);
+        check_covers(ld, i, list->items[i]);
     }
 }
 
@@ -1615,7 +2135,7 @@ static void check_acuity(loader *ld, size_t i, const node *item)
         if (r->policy.acuity_minutes[k].level == p->acuity)
             return;
     format_levels(r, levels, sizeof levels);
-    set_path(ld, "patients", i, "acuity");
+    set_patient_path(ld, i, "acuity");
     report(ld, find_value(item, "acuity")->mark, "level %d is not in policy.acuity_minutes (%s)",
            p->acuity, levels);
 }
@@ -1638,7 +2158,7 @@ static void check_nas(loader *ld, size_t i, const node *item)
         if (problem == KEEL_NAS_OK || problem == KEEL_NAS_DUPLICATE || !p->nas[k])
             continue;
         keel_nas_problem_format(problem, p->nas[k], p->nas[earlier], message, sizeof message);
-        set_path(ld, "patients", i, "nas");
+        set_patient_path(ld, i, "nas");
         push_index(ld, k);
         report(ld, list->items[k]->mark, "%s", message);
     }
@@ -1668,7 +2188,7 @@ static void check_extras(loader *ld, size_t i, const node *item)
     for (size_t e = 0; e < p->nextras; e++) {
         if (!p->extras[e] || has_extra(r, p->extras[e]))
             continue;
-        set_path(ld, "patients", i, "extras");
+        set_patient_path(ld, i, "extras");
         push_index(ld, e);
         if (r->policy.nextras == 0)
             report(ld, list->items[e]->mark,
@@ -1687,7 +2207,7 @@ static void check_patient_nurse(loader *ld, size_t i, const node *item)
     char shown[SHOWN_SIZE];
     if (!p->nurse || r->nnurses == 0 || keel_roster_find_nurse(r, p->nurse) >= 0)
         return;
-    set_path(ld, "patients", i, "nurse");
+    set_patient_path(ld, i, "nurse");
     report(ld, find_value(item, "nurse")->mark, "no nurse '%s' on this roster",
            show(shown, p->nurse));
 }
@@ -1697,7 +2217,7 @@ static void check_lock(loader *ld, size_t i, const node *item)
 {
     if (!ld->roster->patients[i].lock || find_value(item, "nurse"))
         return;
-    set_path(ld, "patients", i, "lock");
+    set_patient_path(ld, i, "lock");
     report(ld, find_value(item, "lock")->mark,
            "lock: true without a nurse; a locked patient needs nurse: the id of the nurse who "
            "keeps the patient");
@@ -1716,12 +2236,12 @@ static void check_avoid(loader *ld, size_t i, const node *item)
         if (!p->avoid[a])
             continue;
         if (keel_roster_find_nurse(r, p->avoid[a]) < 0) {
-            set_path(ld, "patients", i, "avoid");
+            set_patient_path(ld, i, "avoid");
             push_index(ld, a);
             report(ld, list->items[a]->mark, "no nurse '%s' on this roster",
                    show(shown, p->avoid[a]));
         } else if (p->lock && p->nurse && strcmp(p->nurse, p->avoid[a]) == 0) {
-            set_path(ld, "patients", i, "nurse");
+            set_patient_path(ld, i, "nurse");
             report(ld, find_value(item, "nurse")->mark,
                    "the patient is locked to '%s', who is on its avoid list (avoid[%zu] on line "
                    "%d); expected a nurse the patient does not avoid",
@@ -1730,16 +2250,36 @@ static void check_avoid(loader *ld, size_t i, const node *item)
     }
 }
 
-static void check_patients(loader *ld, const node *list)
+/* The id of roster->patients[i] differs from those before it, across the
+ * patients and the expected admissions. */
+static void check_unique_patient_id(loader *ld, size_t i)
+{
+    const node *id = find_value(patient_item(ld, i), "id");
+    char shown[SHOWN_SIZE];
+    if (!id || id->kind != NODE_SCALAR || is_null(id) || is_placeholder(id))
+        return;
+    for (size_t j = 0; j < i; j++) {
+        const node *other = find_value(patient_item(ld, j), "id");
+        if (other && other->kind == NODE_SCALAR && !is_null(other) &&
+            strcmp(other->text, id->text) == 0) {
+            set_patient_path(ld, i, "id");
+            report(ld, id->mark, "patient id '%s' is already used on line %d; expected a unique id",
+                   show(shown, id->text), other->mark.line);
+            return;
+        }
+    }
+}
+
+static void check_patients(loader *ld)
 {
     for (size_t i = 0; i < ld->roster->npatients; i++) {
-        const node *item = list->items[i];
+        const node *item = patient_item(ld, i);
         if (item->kind != NODE_MAPPING)
             continue;
-        check_unique_id(ld, list, i, "patient");
+        check_unique_patient_id(ld, i);
         if (!find_value(item, "acuity") && !find_value(item, "care_minutes") &&
             !find_value(item, "nas")) {
-            set_path(ld, "patients", i, "acuity");
+            set_patient_path(ld, i, "acuity");
             report(ld, item->mark, "missing; every patient needs acuity, care_minutes or nas");
         }
         check_acuity(ld, i, item);
@@ -1749,12 +2289,14 @@ static void check_patients(loader *ld, const node *list)
         check_lock(ld, i, item);
         if (ld->roster->nnurses)
             check_avoid(ld, i, item);
+        check_patient_times(ld, i, item);
+        check_handoffs(ld, i, item);
     }
 }
 
 /* Patients that give an acuity level need the policy's scale: keel has none
  * of its own.  Reported once, where policy.acuity_minutes would go. */
-static void check_acuity_scale(loader *ld, const node *root, const node *patients)
+static void check_acuity_scale(loader *ld, const node *root)
 {
     const keel_roster *r = ld->roster;
     const node *policy = find_value(root, "policy");
@@ -1763,13 +2305,16 @@ static void check_acuity_scale(loader *ld, const node *root, const node *patient
     for (size_t i = 0; i < r->npatients; i++) {
         if (r->patients[i].acuity == KEEL_ABSENT)
             continue;
+        set_patient_path(ld, i, NULL);
+        char entry[MAX_PATH];
+        snprintf(entry, sizeof entry, "%s", ld->path);
         pop_path(ld, 0);
         push_key(ld, "policy");
         push_key(ld, "acuity_minutes");
         report(ld, policy ? policy->mark : root->mark,
-               "missing, but patients[%zu] on line %d gives an acuity level; expected care "
-               "minutes per level, as keel has no acuity scale of its own",
-               i, find_value(patients->items[i], "acuity")->mark.line);
+               "missing, but %s on line %d gives an acuity level; expected care minutes per "
+               "level, as keel has no acuity scale of its own",
+               entry, find_value(patient_item(ld, i), "acuity")->mark.line);
         return;
     }
 }
@@ -1857,30 +2402,33 @@ static void check_ratio_table(loader *ld, const node *root)
         check_not_looser(ld, find_value(nurses->items[i], "max_patients"),
                          r->nurses[i].max_patients, "max_patients ");
     }
-    const node *patients = find_value(root, "patients");
     for (size_t i = 0; i < r->npatients; i++) {
         if (r->patients[i].ratio == KEEL_ABSENT)
             continue;
-        set_path(ld, "patients", i, "ratio");
-        check_not_looser(ld, find_value(patients->items[i], "ratio"), r->patients[i].ratio,
+        set_patient_path(ld, i, "ratio");
+        check_not_looser(ld, find_value(patient_item(ld, i), "ratio"), r->patients[i].ratio,
                          "ratio 1:");
     }
 }
 
 static void check_roster(loader *ld, const node *root)
 {
-    const node *nurses = find_value(root, "nurses"), *patients = find_value(root, "patients");
+    const node *nurses = find_value(root, "nurses");
     const node *policy = find_value(root, "policy");
     if (policy && policy->kind != NODE_MAPPING) {
         ld->acuity_table = TABLE_BROKEN;
         ld->extra_table = TABLE_BROKEN;
     }
+    ld->patient_list = find_value(root, "patients");
+    ld->expected_list = find_value(root, "expected_admissions");
+    merge_expected(ld);
+    convert_times(ld, root);
     check_shift_break(ld, root);
     if (ld->roster->nnurses)
         check_nurses(ld, nurses);
     if (ld->roster->npatients) {
-        check_patients(ld, patients);
-        check_acuity_scale(ld, root, patients);
+        check_patients(ld);
+        check_acuity_scale(ld, root);
     }
     check_ratio_table(ld, root);
     pop_path(ld, 0);
@@ -1934,6 +2482,7 @@ void keel_patient_fini(keel_patient *p)
     free(p->zone);
     free(p->previous_nurse);
     free_names(p->nas, p->nnas);
+    free_names(p->handoffs, p->nhandoffs);
 }
 
 void keel_roster_free(keel_roster *roster)
@@ -1946,6 +2495,8 @@ void keel_roster_free(keel_roster *roster)
         free(n->name);
         free_names(n->skills, n->nskills);
         free(n->preceptor);
+        free(n->breaks);
+        free(n->covers);
     }
     free(roster->nurses);
     for (size_t i = 0; i < roster->npatients; i++)

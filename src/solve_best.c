@@ -27,6 +27,11 @@
  *   sum_{p infectious} x[p, n] + census b[n] - census i[n] <= census
  *   sum_{p in zone k} x[p, n] <= census z[k, n],  sum_k z[k, n] - g[n] <= max_zones
  *   duty(n) + sum_p care(p) x[p, n] <= U capacity(n)
+ *
+ * With the clock p ranges over parts, a part goes only to a nurse on
+ * throughout it, every counting row is stated per moment over the parts
+ * that cover it, and a part keeps the nurse of the part before it while
+ * she is on (x[q - 1, n] <= x[q, n]); all three are kept, not weighed.
  */
 #include <glpk.h>
 #include <limits.h>
@@ -85,8 +90,9 @@ static int pair_severity(const keel_roster *r, const keel_workload *w, size_t p,
         return 0;
     if (!r)
         return SEVERITY_PAIR;
-    const keel_patient *pt = &r->patients[p];
+    const keel_patient *pt = &r->patients[w->patient[p]];
     const keel_nurse *nu = &r->nurses[n];
+    bool first = w->first_part[w->patient[p]] == (int)p;
     int severity = 0;
     size_t nextra = r->policy.nisolation_needs[pt->isolation];
     bool lacks = false;
@@ -95,7 +101,7 @@ static int pair_severity(const keel_roster *r, const keel_workload *w, size_t p,
     for (size_t i = 0; i < nextra && !lacks; i++)
         lacks = !keel_nurse_has_skill(nu, r->policy.isolation_needs[pt->isolation][i]);
     severity += lacks ? SEVERITY_PAIR : 0;
-    if (pt->lock && pt->nurse && strcmp(pt->nurse, nu->id) != 0)
+    if (first && pt->lock && pt->nurse && strcmp(pt->nurse, nu->id) != 0)
         severity += SEVERITY_PAIR;
     for (size_t i = 0; i < pt->navoid; i++)
         if (strcmp(pt->avoid[i], nu->id) == 0)
@@ -103,31 +109,40 @@ static int pair_severity(const keel_roster *r, const keel_workload *w, size_t p,
     return severity;
 }
 
-static void add_nurse_rows(best_model *m, glp_prob *lp, size_t n)
+/* x[p, n] when part p covers moment mo (any moment: -1), else 0. */
+static int col_at(const best_model *m, size_t p, size_t n, int mo)
 {
     const keel_workload *w = m->w;
-    size_t np = w->npatients, nn = w->nnurses;
+    bool covers = mo < 0 || (w->first_moment[p] <= mo && mo < w->last_moment[p]);
+    return covers ? m->col[p * w->nnurses + n] : 0;
+}
+
+/* The counting rows of nurse n at moment mo (-1: without the clock). */
+static void add_nurse_rows(best_model *m, glp_prob *lp, size_t n, int mo)
+{
+    const keel_workload *w = m->w;
+    size_t np = w->npatients;
     double census = (double)np, limit = w->max_patients[n];
     bool law = w->law_limit != KEEL_ABSENT && w->max_patients[n] == w->law_limit;
     int count = row(lp, GLP_UP, 0.0, limit);
     keel_triplets_put(&m->mat, count,
                       column(lp, GLP_IV, census, law ? SEVERITY_LAW : SEVERITY_LIMIT), -1.0);
     for (size_t p = 0; p < np; p++)
-        keel_triplets_put(&m->mat, count, m->col[p * nn + n], 1.0);
+        keel_triplets_put(&m->mat, count, col_at(m, p, n, mo), 1.0);
     for (size_t p = 0; p < np; p++) {
         int r = w->ratio_limit[p];
-        if (r >= w->max_patients[n])
+        if (r >= w->max_patients[n] || !col_at(m, p, n, mo))
             continue;
         int ratio = row(lp, GLP_UP, 0.0, census);
         for (size_t q = 0; q < np; q++)
-            keel_triplets_put(&m->mat, ratio, m->col[q * nn + n], q == p ? 1.0 + census - r : 1.0);
+            keel_triplets_put(&m->mat, ratio, col_at(m, q, n, mo), q == p ? 1.0 + census - r : 1.0);
         keel_triplets_put(&m->mat, ratio, column(lp, GLP_IV, census, SEVERITY_RATIO), -1.0);
     }
     if (w->max_high_acuity != KEEL_ABSENT) {
         int high = row(lp, GLP_UP, 0.0, (double)w->max_high_acuity);
         for (size_t p = 0; p < np; p++)
             if (w->high_acuity[p])
-                keel_triplets_put(&m->mat, high, m->col[p * nn + n], 1.0);
+                keel_triplets_put(&m->mat, high, col_at(m, p, n, mo), 1.0);
         keel_triplets_put(&m->mat, high, column(lp, GLP_IV, census, SEVERITY_HIGH), -1.0);
     }
     if (w->isolation_rule) {
@@ -135,9 +150,9 @@ static void add_nurse_rows(best_model *m, glp_prob *lp, size_t n)
         int prot = row(lp, GLP_UP, 0.0, 0.0), inf = row(lp, GLP_UP, 0.0, census);
         for (size_t p = 0; p < np; p++) {
             if (w->side[p] == KEEL_SIDE_PROTECTIVE)
-                keel_triplets_put(&m->mat, prot, m->col[p * nn + n], 1.0);
+                keel_triplets_put(&m->mat, prot, col_at(m, p, n, mo), 1.0);
             if (w->side[p] == KEEL_SIDE_INFECTIOUS)
-                keel_triplets_put(&m->mat, inf, m->col[p * nn + n], 1.0);
+                keel_triplets_put(&m->mat, inf, col_at(m, p, n, mo), 1.0);
         }
         keel_triplets_put(&m->mat, prot, b, -census);
         keel_triplets_put(&m->mat, inf, b, census);
@@ -151,11 +166,34 @@ static void add_nurse_rows(best_model *m, glp_prob *lp, size_t n)
             int z = column(lp, GLP_BV, 1.0, 0.0), tie = row(lp, GLP_UP, 0.0, 0.0);
             for (size_t p = 0; p < np; p++)
                 if (w->zone[p] == (int)k)
-                    keel_triplets_put(&m->mat, tie, m->col[p * nn + n], 1.0);
+                    keel_triplets_put(&m->mat, tie, col_at(m, p, n, mo), 1.0);
             keel_triplets_put(&m->mat, tie, z, -census);
             keel_triplets_put(&m->mat, zones, z, 1.0);
         }
     }
+}
+
+/* A part keeps the nurse of the part before it while she is on. */
+static void add_keeping(best_model *m, glp_prob *lp)
+{
+    const keel_workload *w = m->w;
+    size_t nn = w->nnurses;
+    for (size_t q = 0; q < w->npatients; q++) {
+        for (size_t n = 0; n < nn; n++) {
+            int before = q > 0 ? m->col[(q - 1) * nn + n] : 0, now = m->col[q * nn + n];
+            if (!before || !now || !keel_workload_keeps(w, q, (int)n))
+                continue;
+            int keep = row(lp, GLP_UP, 0.0, 0.0);
+            keel_triplets_put(&m->mat, keep, before, 1.0);
+            keel_triplets_put(&m->mat, keep, now, -1.0);
+        }
+    }
+}
+
+/* True when nurse n is on throughout part p. */
+static bool on_throughout(const keel_workload *w, size_t p, size_t n)
+{
+    return w->nurse_start[n] <= w->part_start[p] && w->nurse_end[n] >= w->part_end[p];
 }
 
 static int build_and_solve(void *ctx)
@@ -168,9 +206,11 @@ static int build_and_solve(void *ctx)
     glp_set_obj_dir(lp, GLP_MIN);
     for (size_t p = 0; p < np; p++)
         for (size_t n = 0; n < nn; n++)
-            m->col[p * nn + n] = keel_workload_counted(w, n)
+            m->col[p * nn + n] = keel_workload_counted(w, n) && on_throughout(w, p, n)
                                      ? column(lp, GLP_BV, 1.0, pair_severity(m->r, w, p, n))
                                      : 0;
+    if (w->clocked)
+        add_keeping(m, lp);
     int peak = column(lp, GLP_CV, 1e6, EVENNESS_WEIGHT);
     for (size_t p = 0; p < np; p++) {
         int once = row(lp, GLP_FX, 1.0, 1.0);
@@ -181,7 +221,8 @@ static int build_and_solve(void *ctx)
     for (size_t n = 0; n < nn; n++) {
         if (!keel_workload_counted(w, n))
             continue;
-        add_nurse_rows(m, lp, n);
+        for (size_t mo = 0; mo < w->nmoments; mo++)
+            add_nurse_rows(m, lp, n, w->clocked ? (int)mo : -1);
         int load = row(lp, GLP_UP, 0.0, -(double)w->duty_minutes[n]);
         for (size_t p = 0; p < np; p++)
             keel_triplets_put(&m->mat, load, m->col[p * nn + n], (double)w->care_minutes[p]);

@@ -70,7 +70,7 @@ static char *group_nurses(const keel_roster *r, const keel_workload *w, size_t q
 static char *shared_needs(const keel_roster *r, const keel_workload *w, size_t q,
                           const bool *inside)
 {
-    const keel_patient *pq = &r->patients[q];
+    const keel_patient *pq = &r->patients[w->patient[q]];
     char *text = NULL;
     for (size_t i = 0; i < pq->nneeds; i++) {
         bool all = true;
@@ -78,8 +78,9 @@ static char *shared_needs(const keel_roster *r, const keel_workload *w, size_t q
             if (!inside[p])
                 continue;
             bool has = false;
-            for (size_t j = 0; j < r->patients[p].nneeds && !has; j++)
-                has = strcmp(r->patients[p].needs[j], pq->needs[i]) == 0;
+            const keel_patient *pp = &r->patients[w->patient[p]];
+            for (size_t j = 0; j < pp->nneeds && !has; j++)
+                has = strcmp(pp->needs[j], pq->needs[i]) == 0;
             all = has;
         }
         if (!all)
@@ -115,7 +116,7 @@ static char *describe(const keel_roster *r, const keel_workload *w, const floor_
     if (f->kind[0] == 'p')
         return keel_asprintf("%s alone needs %lld min of care: even with the nurse it suits "
                              "best that nurse is at %.1f %%",
-                             r->patients[f->who].id, f->work, pct);
+                             r->patients[w->patient[f->who]].id, f->work, pct);
     if (f->kind[0] == 'a')
         return keel_asprintf("the unit's work (%lld min of care and duty) over the nurses' %lld "
                              "min is %.1f %%: no plan keeps every nurse below the average",

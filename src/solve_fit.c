@@ -65,6 +65,17 @@ static int heavier_first(const void *a, const void *b)
 {
     size_t i = *(const size_t *)a, j = *(const size_t *)b;
     const keel_workload *w = sort_w;
+    /* With the clock a patient's parts go together, in time order, so that
+     * each part meets the nurse of the part before it. */
+    if (w->clocked && w->patient[i] != w->patient[j]) {
+        long long ci = keel_workload_patient_care(w, (size_t)w->patient[i]);
+        long long cj = keel_workload_patient_care(w, (size_t)w->patient[j]);
+        if (ci != cj)
+            return ci > cj ? -1 : 1;
+        return w->patient[i] < w->patient[j] ? -1 : 1;
+    }
+    if (w->clocked)
+        return (i > j) - (i < j);
     if (w->care_minutes[i] != w->care_minutes[j])
         return w->care_minutes[i] > w->care_minutes[j] ? -1 : 1;
     int c = memcmp(&w->eligible[i * w->nnurses], &w->eligible[j * w->nnurses],
@@ -97,7 +108,9 @@ static bool same_state(const fit *F, size_t a, size_t b)
     const keel_tally *t = &F->tally;
     if (!w->joined_rules)
         return true;
-    if (t->high[a] != t->high[b] || keel_tally_tightest(t, a) != keel_tally_tightest(t, b))
+    if (w->clocked)
+        return false; /* counts per moment: not worth comparing */
+    if (t->high[a] != t->high[b] || keel_tally_tightest(t, a, 0) != keel_tally_tightest(t, b, 0))
         return false;
     for (size_t s = 1; s < 3; s++)
         if ((t->sides[a * 3 + s] > 0) != (t->sides[b * 3 + s] > 0))
@@ -110,7 +123,8 @@ static bool same_state(const fit *F, size_t a, size_t b)
     return true;
 }
 
-/* Cheap bounds on the remaining patients order[k..]. */
+/* Cheap bounds on the remaining patients order[k..].  With the clock the
+ * counts are per moment, so only care is bounded. */
 static bool still_possible(const fit *F, size_t k)
 {
     const keel_workload *w = F->w;
@@ -120,6 +134,11 @@ static bool still_possible(const fit *F, size_t k)
         if (!keel_workload_counted(w, n))
             continue;
         long long r = F->hi[n] - F->care[n];
+        if (w->clocked) {
+            room += r >= smallest ? r : 0;
+            owed += F->lo[n] > F->care[n] ? F->lo[n] - F->care[n] : 0;
+            continue;
+        }
         if (r >= smallest && F->count[n] < w->max_patients[n])
             room += r;
         if (w->max_high_acuity != KEEL_ABSENT) {
@@ -221,7 +240,7 @@ keel_status keel_fit_search(const keel_workload *w, const long long *lo, const l
         F.order[p] = p;
     sort_w = w;
     qsort(F.order, np, sizeof *F.order, heavier_first);
-    for (size_t k = 1; k < np; k++) {
+    for (size_t k = 1; k < np && !w->clocked; k++) {
         size_t a = F.order[k - 1], b = F.order[k];
         F.twin_of_prev[k] =
             w->care_minutes[a] == w->care_minutes[b] &&
@@ -230,12 +249,11 @@ keel_status keel_fit_search(const keel_workload *w, const long long *lo, const l
     }
     F.min_after[np] = 0;
     for (size_t k = np; k-- > 0;) {
-        F.suffix[k] = F.suffix[k + 1] + w->care_minutes[F.order[k]];
+        int c = w->care_minutes[F.order[k]];
+        F.suffix[k] = F.suffix[k + 1] + c;
         F.high_after[k] = F.high_after[k + 1] + w->high_acuity[F.order[k]];
-        F.min_after[k] = w->care_minutes[F.order[k]]; /* heaviest first: the last is smallest */
+        F.min_after[k] = k + 1 < np && F.min_after[k + 1] < c ? F.min_after[k + 1] : c;
     }
-    for (size_t k = 0; k + 1 < np; k++)
-        F.min_after[k] = F.min_after[np - 1];
     for (size_t n = 0; n < nn; n++) {
         F.group[n] = (int)n;
         for (size_t m = 0; m < n; m++) {

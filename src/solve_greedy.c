@@ -16,18 +16,6 @@
 #include "solve_internal.h"
 #include "tally.h"
 
-/* Patients by care minutes, heaviest first; ties by index for determinism. */
-static const keel_workload *sort_w;
-
-static int heavier_first(const void *a, const void *b)
-{
-    size_t i = *(const size_t *)a, j = *(const size_t *)b;
-    int ci = sort_w->care_minutes[i], cj = sort_w->care_minutes[j];
-    if (ci != cj)
-        return ci > cj ? -1 : 1;
-    return (i > j) - (i < j);
-}
-
 keel_status keel_greedy_place(const keel_workload *w, int *nurse_of, bool *placed_all)
 {
     size_t np = w->npatients, nn = w->nnurses;
@@ -43,12 +31,14 @@ keel_status keel_greedy_place(const keel_workload *w, int *nurse_of, bool *place
     if (rc)
         goto out;
     *placed_all = true;
-    for (size_t p = 0; p < np; p++) {
-        order[p] = p;
+    for (size_t p = 0; p < np; p++)
         nurse_of[p] = -1;
+    if (keel_workload_order(w, order)) {
+        keel_tally_free(&t);
+        *placed_all = false;
+        rc = KEEL_ERR_NOMEM;
+        goto out;
     }
-    sort_w = w;
-    qsort(order, np, sizeof *order, heavier_first);
     for (size_t n = 0; n < nn; n++)
         load[n] = w->duty_minutes[n];
     for (size_t k = 0; k < np; k++) {

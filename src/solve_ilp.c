@@ -43,7 +43,12 @@ static void on_glpk_error(void *info)
  *                        sum_k z[k, n] <= max_zones
  *   rooms (proximity):   sum_{c in room m} y[c, n] <= limit(n) g[m, n]
  *
- * with a, b, z, g binary and sum_n y[c, n] = |c|.  Continuity maximises
+ * with a, b, z, g binary and sum_n y[c, n] = |c|.  With the clock every
+ * rule above is stated once per moment over the classes that cover it (a
+ * class's parts cover the same moments), a part of a patient cut into
+ * several is a class of its own, and a part keeps the nurse of the part
+ * before it while she is on: y[q - 1, n] <= y[q, n].  Proximity counts
+ * a nurse's zones and rooms over the whole shift.  Continuity maximises
  * the patients with their previous nurse; proximity minimises
  * (census + 1) sum z + sum g, which puts zones before rooms.  Counted nurses
  * that are interchangeable (same capacity, duty, limit, eligibility and
@@ -96,6 +101,13 @@ static int new_binary(model *m, glp_prob *lp, double cost, int link)
     return j;
 }
 
+/* True when part p is its patient's only part. */
+static bool alone(const keel_workload *w, size_t p)
+{
+    int pt = w->patient[p];
+    return w->first_part[pt + 1] - w->first_part[pt] == 1;
+}
+
 static bool same_patients(const model *m, size_t a, size_t b)
 {
     const keel_workload *w = m->w;
@@ -107,6 +119,9 @@ static bool same_patients(const model *m, size_t a, size_t b)
            (!zones || w->zone[a] == w->zone[b]) &&
            (goal == KEEL_GOAL_FIT || w->previous[a] == w->previous[b]) &&
            (goal != KEEL_GOAL_NEAR || w->room[a] == w->room[b]) &&
+           (!w->clocked || (alone(w, a) && alone(w, b) &&
+                            w->first_moment[a] == w->first_moment[b] &&
+                            w->last_moment[a] == w->last_moment[b])) &&
            memcmp(&w->eligible[a * w->nnurses], &w->eligible[b * w->nnurses],
                   w->nnurses * sizeof *w->eligible) == 0;
 }
@@ -174,15 +189,27 @@ static int trait_of(const model *m, size_t c, trait t)
     return -1;
 }
 
-/* Row "sum of y[c, n] over classes with trait value v <= big * x" for a new
- * binary x of the given cost; returns x's column, or 0 when no class of n
- * has the value. */
-static int tie(model *m, glp_prob *lp, size_t n, trait t, int v, double big, double cost)
+/* True when class c covers moment mo (any moment when mo < 0). */
+static bool covers(const model *m, size_t c, int mo)
 {
-    size_t nn = m->w->nnurses;
+    size_t p = m->class_first[c];
+    return mo < 0 || (m->w->first_moment[p] <= mo && mo < m->w->last_moment[p]);
+}
+
+/* y[c, n] when class c covers moment mo, else 0. */
+static int col_at(const model *m, size_t c, size_t n, int mo)
+{
+    return covers(m, c, mo) ? m->col[c * m->w->nnurses + n] : 0;
+}
+
+/* Row "sum of y[c, n] over classes covering moment mo (any: -1) with trait
+ * value v <= big * x" for a new binary x of the given cost; returns x's
+ * column, or 0 when no such class of n has the value. */
+static int tie(model *m, glp_prob *lp, size_t n, int mo, trait t, int v, double big, double cost)
+{
     int row = 0;
     for (size_t c = 0; c < m->nclasses; c++) {
-        int j = m->col[c * nn + n];
+        int j = col_at(m, c, n, mo);
         if (!j || trait_of(m, c, t) != v)
             continue;
         if (!row)
@@ -196,59 +223,93 @@ static int tie(model *m, glp_prob *lp, size_t n, trait t, int v, double big, dou
     return x;
 }
 
-static void add_rules(model *m, glp_prob *lp, size_t n)
+/* The rules that count n's patients at moment mo. */
+static void add_rules(model *m, glp_prob *lp, size_t n, int mo)
 {
     const keel_workload *w = m->w;
-    size_t nn = w->nnurses;
     double limit = w->max_patients[n];
+    int count = new_row(lp, GLP_UP, 0.0, limit);
+    for (size_t c = 0; c < m->nclasses; c++)
+        if (col_at(m, c, n, mo))
+            keel_triplets_put(&m->mat, count, col_at(m, c, n, mo), 1.0);
     /* Patient ratios tighter than the nurse's own limit. */
     for (size_t c = 0; c < m->nclasses; c++) {
         int v = trait_of(m, c, TRAIT_RATIO);
-        bool first = m->col[c * nn + n] && v < w->max_patients[n];
+        bool first = col_at(m, c, n, mo) && v < w->max_patients[n];
         for (size_t d = 0; d < c && first; d++)
-            first = !(m->col[d * nn + n] && trait_of(m, d, TRAIT_RATIO) == v);
+            first = !(col_at(m, d, n, mo) && trait_of(m, d, TRAIT_RATIO) == v);
         if (!first)
             continue;
-        int a = tie(m, lp, n, TRAIT_RATIO, v, limit, 0.0);
+        int a = tie(m, lp, n, mo, TRAIT_RATIO, v, limit, 0.0);
         int row = new_row(lp, GLP_UP, 0.0, limit);
         for (size_t d = 0; d < m->nclasses; d++)
-            if (m->col[d * nn + n])
-                keel_triplets_put(&m->mat, row, m->col[d * nn + n], 1.0);
+            if (col_at(m, d, n, mo))
+                keel_triplets_put(&m->mat, row, col_at(m, d, n, mo), 1.0);
         keel_triplets_put(&m->mat, row, a, limit - v);
     }
     if (w->max_high_acuity != KEEL_ABSENT) {
         int row = 0;
         for (size_t c = 0; c < m->nclasses; c++) {
-            if (!m->col[c * nn + n] || !w->high_acuity[m->class_first[c]])
+            if (!col_at(m, c, n, mo) || !w->high_acuity[m->class_first[c]])
                 continue;
             if (!row)
                 row = new_row(lp, GLP_UP, 0.0, (double)w->max_high_acuity);
-            keel_triplets_put(&m->mat, row, m->col[c * nn + n], 1.0);
+            keel_triplets_put(&m->mat, row, col_at(m, c, n, mo), 1.0);
         }
     }
     bool sides[3] = {false, false, false};
     for (size_t c = 0; c < m->nclasses; c++)
-        if (m->col[c * nn + n])
+        if (col_at(m, c, n, mo))
             sides[trait_of(m, c, TRAIT_SIDE)] = true;
     if (sides[KEEL_SIDE_PROTECTIVE] && sides[KEEL_SIDE_INFECTIOUS]) {
-        int b = tie(m, lp, n, TRAIT_SIDE, KEEL_SIDE_PROTECTIVE, limit, 0.0);
+        int b = tie(m, lp, n, mo, TRAIT_SIDE, KEEL_SIDE_PROTECTIVE, limit, 0.0);
         int row = new_row(lp, GLP_UP, 0.0, limit);
         for (size_t c = 0; c < m->nclasses; c++)
-            if (m->col[c * nn + n] && trait_of(m, c, TRAIT_SIDE) == KEEL_SIDE_INFECTIOUS)
-                keel_triplets_put(&m->mat, row, m->col[c * nn + n], 1.0);
+            if (col_at(m, c, n, mo) && trait_of(m, c, TRAIT_SIDE) == KEEL_SIDE_INFECTIOUS)
+                keel_triplets_put(&m->mat, row, col_at(m, c, n, mo), 1.0);
         keel_triplets_put(&m->mat, row, b, limit);
     }
-    bool near = m->q->goal == KEEL_GOAL_NEAR;
+    /* Without the clock the zone binaries of the rule also carry the cost
+     * of proximity; with it proximity has its own (add_proximity). */
+    bool near = m->q->goal == KEEL_GOAL_NEAR && !w->clocked;
     if (w->zones_rule || near) {
         int row = w->max_zones != KEEL_ABSENT ? new_row(lp, GLP_UP, 0.0, (double)w->max_zones) : 0;
         for (size_t k = 0; k < w->nzones; k++) {
-            int z = tie(m, lp, n, TRAIT_ZONE, (int)k, limit, near ? (double)w->npatients + 1 : 0.0);
+            int z = tie(m, lp, n, mo, TRAIT_ZONE, (int)k, limit,
+                        near ? (double)w->npatients + 1 : 0.0);
             if (z && row)
                 keel_triplets_put(&m->mat, row, z, 1.0);
         }
     }
     for (size_t k = 0; near && k < w->nrooms; k++)
-        tie(m, lp, n, TRAIT_ROOM, (int)k, limit, 1.0);
+        tie(m, lp, n, mo, TRAIT_ROOM, (int)k, limit, 1.0);
+}
+
+/* Proximity with the clock: n's zones and rooms over the whole shift. */
+static void add_proximity(model *m, glp_prob *lp, size_t n)
+{
+    const keel_workload *w = m->w;
+    double big = (double)w->npatients;
+    for (size_t k = 0; k < w->nzones; k++)
+        tie(m, lp, n, -1, TRAIT_ZONE, (int)k, big, (double)w->npatients + 1);
+    for (size_t k = 0; k < w->nrooms; k++)
+        tie(m, lp, n, -1, TRAIT_ROOM, (int)k, big, 1.0);
+}
+
+/* A part keeps the nurse of the part before it while she is on. */
+static void add_keeping(model *m, glp_prob *lp)
+{
+    const keel_workload *w = m->w;
+    size_t nn = w->nnurses;
+    for (size_t q = 0; q < w->npatients; q++) {
+        for (size_t n = 0; n < nn; n++) {
+            if (!keel_workload_keeps(w, q, (int)n) || !keel_workload_eligible(w, q - 1, n))
+                continue;
+            int row = new_row(lp, GLP_UP, 0.0, 0.0);
+            keel_triplets_put(&m->mat, row, m->col[m->class_of[q - 1] * nn + n], 1.0);
+            keel_triplets_put(&m->mat, row, m->col[m->class_of[q] * nn + n], -1.0);
+        }
+    }
 }
 
 static void build(model *m, glp_prob *lp)
@@ -292,18 +353,20 @@ static void build(model *m, glp_prob *lp)
     for (size_t n = 0; n < nn; n++) {
         if (!keel_workload_counted(w, n))
             continue;
-        int count = new_row(lp, GLP_UP, 0.0, (double)w->max_patients[n]);
         int care =
             new_row(lp, q->lo[n] == q->hi[n] ? GLP_FX : GLP_DB, (double)q->lo[n], (double)q->hi[n]);
         for (size_t c = 0; c < m->nclasses; c++) {
             int j = m->col[c * nn + n];
-            if (!j)
-                continue;
-            keel_triplets_put(&m->mat, count, j, 1.0);
-            keel_triplets_put(&m->mat, care, j, (double)w->care_minutes[m->class_first[c]]);
+            if (j)
+                keel_triplets_put(&m->mat, care, j, (double)w->care_minutes[m->class_first[c]]);
         }
-        add_rules(m, lp, n);
+        for (size_t mo = 0; mo < w->nmoments; mo++)
+            add_rules(m, lp, n, w->clocked ? (int)mo : -1);
+        if (w->clocked && q->goal == KEEL_GOAL_NEAR)
+            add_proximity(m, lp, n);
     }
+    if (w->clocked)
+        add_keeping(m, lp);
     /* Load order of interchangeable nurses: load(n) - load(next twin) >= 0. */
     for (size_t n = 0; n < nn; n++) {
         if (m->next_twin[n] < 0)

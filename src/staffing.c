@@ -74,32 +74,50 @@ static int staff_limit(const keel_roster *r, const keel_workload *w)
     return limit;
 }
 
-/* The need by limits: N, the patients' ratios and the high-acuity rule. */
+/* The need by limits at moment m: N, the patients' ratios and the
+ * high-acuity rule over the patients present; the largest over the
+ * moments is kept (limits hold at every moment). */
+static void need_at(const keel_workload *w, size_t m, int *limit, keel_staffing *s)
+{
+    size_t census = 0;
+    int high = 0;
+    for (size_t q = 0; q < w->npatients; q++) {
+        if (w->first_moment[q] > (int)m || (int)m >= w->last_moment[q])
+            continue;
+        limit[census++] = w->ratio_limit[q];
+        high += s->max_high_acuity != KEEL_ABSENT && w->high_acuity[q];
+    }
+    if (census > s->census)
+        s->census = census;
+    if (high > s->nhigh_acuity)
+        s->nhigh_acuity = high;
+    if (census == 0 || s->staff_limit == 0)
+        return;
+    int cap = s->staff_limit == KEEL_ABSENT || (size_t)s->staff_limit > census ? (int)census
+                                                                               : s->staff_limit;
+    for (size_t i = 0; i < census; i++)
+        limit[i] = limit[i] < cap ? limit[i] : cap;
+    int by_census = (int)ceil_div((long long)census, cap), by_ratios = fewest_groups(limit, census);
+    s->by_census = by_census > s->by_census ? by_census : s->by_census;
+    s->by_ratios = by_ratios > s->by_ratios ? by_ratios : s->by_ratios;
+}
+
 static keel_status need_by_limits(const keel_roster *r, const keel_workload *w, keel_staffing *s,
                                   keel_error *err)
 {
-    size_t census = w->npatients;
     s->staff_limit = staff_limit(r, w);
     s->max_high_acuity = w->max_high_acuity;
-    for (size_t p = 0; s->max_high_acuity != KEEL_ABSENT && p < census; p++)
-        if (w->high_acuity[p])
-            s->nhigh_acuity++;
-    if (census == 0)
+    s->census = 0;
+    int *limit = keel_calloc(w->npatients ? w->npatients : 1, sizeof *limit);
+    if (!limit)
+        return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    for (size_t m = 0; m < w->nmoments; m++)
+        need_at(w, m, limit, s);
+    free(limit);
+    if (s->census == 0)
         return KEEL_OK;
-    if (s->staff_limit == 0) {
+    if (s->staff_limit == 0)
         s->blocked = KEEL_STAFFING_NO_STAFF_LIMIT;
-    } else {
-        int cap = s->staff_limit == KEEL_ABSENT || (size_t)s->staff_limit > census ? (int)census
-                                                                                   : s->staff_limit;
-        int *limit = keel_calloc(census, sizeof *limit);
-        if (!limit)
-            return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
-        for (size_t p = 0; p < census; p++)
-            limit[p] = w->ratio_limit[p] < cap ? w->ratio_limit[p] : cap;
-        s->by_census = (int)ceil_div((long long)census, cap);
-        s->by_ratios = fewest_groups(limit, census);
-        free(limit);
-    }
     if (s->nhigh_acuity > 0) {
         if (s->max_high_acuity == 0 && s->blocked == KEEL_STAFFING_POSSIBLE)
             s->blocked = KEEL_STAFFING_NO_HIGH_ACUITY;
@@ -184,7 +202,6 @@ keel_status keel_staffing_compute(const keel_roster *r, const keel_workload *w, 
     keel_status rc = keel_metrics_compute(w, NULL, &m, err);
     if (rc)
         return rc;
-    s.census = w->npatients;
     s.nnurses = w->nnurses;
     s.ncounted = m->ncounted;
     need_by_minutes(r, m, &s);

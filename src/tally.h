@@ -12,6 +12,9 @@
  *   high-acuity patients <= max_high_acuity     high_acuity
  *   not both sides of isolation separation      isolation
  *   zones <= max_zones                          zones
+ * With the clock each count is per moment, over the parts that cover it
+ * (a count limit broken is then `moment_limit`), and a part keeps the
+ * nurse of the part before it while she is on (keel_workload_keeps).
  */
 #ifndef KEEL_TALLY_H
 #define KEEL_TALLY_H
@@ -21,15 +24,17 @@
 
 #include "keel/workload.h"
 
+/* Counts are per nurse and moment: index n * nmoments + m ("slot"). */
 typedef struct keel_tally {
     const keel_workload *w;
-    int *count;      /* [nnurses] */
+    int *count;      /* [slots] */
     long long *care; /* [nnurses]: care minutes held (duty not included) */
-    int *high;       /* [nnurses] */
-    int *sides;      /* [nnurses * 3]: patients per KEEL_SIDE_* */
-    int *zones;      /* [nnurses]: distinct zones held */
-    int *in_zone;    /* [nnurses * nzones] */
-    int *at_ratio;   /* [nnurses * (census + 1)]: patients per ratio_limit */
+    int *high;       /* [slots] */
+    int *sides;      /* [slots * 3]: patients per KEEL_SIDE_* */
+    int *zones;      /* [slots]: distinct zones held */
+    int *in_zone;    /* [slots * nzones] */
+    int *at_ratio;   /* [slots * (npatients + 1)]: patients per ratio_limit */
+    int *nurse_of;   /* [npatients]: the nurse of each part held, or -1 */
 } keel_tally;
 
 /* Allocates an empty tally.  Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
@@ -42,8 +47,12 @@ void keel_tally_fill(keel_tally *t, const int *nurse_of);
 void keel_tally_add(keel_tally *t, size_t p, size_t n);
 void keel_tally_remove(keel_tally *t, size_t p, size_t n);
 
-/* The smallest ratio_limit among n's patients (the census when none). */
-int keel_tally_tightest(const keel_tally *t, size_t n);
+/* The smallest ratio_limit among n's patients at moment m (npatients when
+ * none). */
+int keel_tally_tightest(const keel_tally *t, size_t n, size_t m);
+
+/* The most patients n holds at any one moment. */
+int keel_tally_most(const keel_tally *t, size_t n);
 
 /* The rule n would break by taking p (as a rule name, see finding.h), or
  * NULL when n may take p. */

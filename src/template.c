@@ -132,7 +132,7 @@ keel_status keel_template_write(const keel_template_options *o, const keel_censu
         fprintf(out, "# Patients from the census %s.\n", census->path);
         fputs("patients:\n", out);
         for (size_t p = 0; p < census->npatients; p++)
-            keel_yaml_write_patient(out, &census->patients[p], NULL);
+            keel_yaml_write_patient(out, NULL, &census->patients[p], NULL);
     } else {
         fprintf(out,
                 "patients:                   # or: keel import census.csv --roster this-file\n"

@@ -9,6 +9,8 @@
 
 void keel_triplets_put(keel_triplets *t, int row, int col, double val)
 {
+    if (col == 0)
+        return; /* no such variable: the pair is not allowed */
     if (t->n + 2 > t->cap) {
         size_t cap = t->cap ? 2 * t->cap : 256;
         int *ia = keel_reallocarray(t->ia, cap, sizeof *ia);

@@ -17,6 +17,7 @@ typedef struct keel_triplets {
 } keel_triplets;
 
 /* Appends one entry; on failure sets t->nomem and keeps the rest. */
+/* Column 0 (no variable) is skipped. */
 void keel_triplets_put(keel_triplets *t, int row, int col, double val);
 
 /* Frees the arrays and empties t. */

@@ -7,26 +7,43 @@
  */
 #include "keel/workload.h"
 
+#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
 #include "alloc.h"
 #include "keel/nas.h"
 
-static int patient_care(const keel_roster *r, const keel_patient *p)
+static int or_default(int value, int fallback)
+{
+    return value != KEEL_ABSENT ? value : fallback;
+}
+
+/* The patient's care for the whole shift, extras aside. */
+static int base_care(const keel_roster *r, const keel_patient *p)
 {
     int care = p->care_minutes != KEEL_ABSENT ? p->care_minutes
                : p->nnas > 0
                    ? keel_nas_shift_minutes(keel_nas_score(p->nas, p->nnas), r->shift.minutes)
                    : keel_roster_acuity_minutes(r, p->acuity);
-    if (care == KEEL_ABSENT)
-        care = 0; /* unreachable for a validated roster */
+    return care == KEEL_ABSENT ? 0 : care; /* absent: unreachable for a validated roster */
+}
+
+static int extra_care(const keel_roster *r, const keel_patient *p)
+{
+    int care = 0;
     for (size_t i = 0; i < p->nextras; i++) {
         int extra = keel_roster_extra_minutes(r, p->extras[i]);
         if (extra != KEEL_ABSENT)
             care += extra;
     }
     return care;
+}
+
+/* ceil(a * b / c) for a, b >= 0 and c > 0. */
+static long long ceil_share(long long a, long long b, long long c)
+{
+    return (a * b + c - 1) / c;
 }
 
 /* The smallest of the unit's limit, the role's and the nurse's own.  An
@@ -38,16 +55,16 @@ static int nurse_limit(const keel_roster *r, const keel_nurse *n, int law)
                    n->max_patients};
     if (n->role == KEEL_ROLE_ORIENTEE)
         return 0;
+    /* A relief nurse covers breaks; patients of her own only when told. */
+    if (n->role == KEEL_ROLE_RELIEF && n->max_patients == KEEL_ABSENT &&
+        r->policy.roles[n->role].max_patients == KEEL_ABSENT)
+        return 0;
     for (size_t i = 0; i < sizeof given / sizeof given[0]; i++)
         if (given[i] != KEEL_ABSENT && given[i] < limit)
             limit = given[i];
     return limit;
 }
 
-static int or_default(int value, int fallback)
-{
-    return value != KEEL_ABSENT ? value : fallback;
-}
 
 static bool has_every_need(const keel_roster *r, const keel_nurse *n, const keel_patient *p)
 {
@@ -85,7 +102,7 @@ static signed char side_of(const keel_roster *r, const keel_patient *p)
  * rooms and continuity. */
 static keel_status join_rules(const keel_roster *r, keel_workload *w)
 {
-    size_t np = r->npatients;
+    size_t np = w->npatients;
     const char **names = keel_calloc(np ? np : 1, sizeof *names);
     if (!names)
         return KEEL_ERR_NOMEM;
@@ -94,34 +111,36 @@ static keel_status join_rules(const keel_roster *r, keel_workload *w)
     w->tolerance = or_default(r->policy.balance_tolerance, KEEL_TOLERANCE_SCALE / 20);
     bool sides[3] = {false, false, false};
     for (size_t p = 0; p < np; p++) {
-        const keel_patient *pt = &r->patients[p];
+        const keel_patient *pt = &r->patients[w->patient[p]];
+        bool first = w->first_part[w->patient[p]] == (int)p;
         w->ratio_limit[p] = pt->ratio != KEEL_ABSENT && pt->ratio < (int)np ? pt->ratio : (int)np;
         w->high_acuity[p] = w->max_high_acuity != KEEL_ABSENT && pt->acuity != KEEL_ABSENT &&
                             pt->acuity >= r->policy.high_acuity.level;
         w->side[p] = side_of(r, pt);
         sides[w->side[p]] = true;
         w->zone[p] = intern(names, &w->nzones, pt->zone);
-        w->previous[p] = pt->previous_nurse ? keel_roster_find_nurse(r, pt->previous_nurse) : -1;
+        w->previous[p] =
+            first && pt->previous_nurse ? keel_roster_find_nurse(r, pt->previous_nurse) : -1;
         if (w->previous[p] >= 0)
             w->ncontinuity++;
         if (w->ratio_limit[p] < (int)np)
             w->joined_rules = true;
     }
     for (size_t p = 0; p < np; p++)
-        w->room[p] = intern(names, &w->nrooms, r->patients[p].room);
+        w->room[p] = intern(names, &w->nrooms, r->patients[w->patient[p]].room);
     w->isolation_rule = sides[KEEL_SIDE_INFECTIOUS] && sides[KEEL_SIDE_PROTECTIVE];
     w->zones_rule = w->max_zones != KEEL_ABSENT && w->nzones > (size_t)w->max_zones;
-    w->joined_rules =
-        w->joined_rules || w->max_high_acuity != KEEL_ABSENT || w->isolation_rule || w->zones_rule;
+    w->joined_rules = w->joined_rules || w->max_high_acuity != KEEL_ABSENT || w->isolation_rule ||
+                      w->zones_rule || w->clocked;
     free(names);
     return KEEL_OK;
 }
 
 /* The patient's own restrictions: a locked patient stays with the nurse
  * who has it; a patient never goes to a nurse on its avoid list. */
-static bool patient_allows(const keel_patient *p, const keel_nurse *n)
+static bool patient_allows(const keel_patient *p, const keel_nurse *n, bool first)
 {
-    if (p->lock && p->nurse && strcmp(p->nurse, n->id) != 0)
+    if (first && p->lock && p->nurse && strcmp(p->nurse, n->id) != 0)
         return false;
     for (size_t i = 0; i < p->navoid; i++)
         if (strcmp(p->avoid[i], n->id) == 0)
@@ -129,10 +148,20 @@ static bool patient_allows(const keel_patient *p, const keel_nurse *n)
     return true;
 }
 
-bool keel_workload_may_take(const keel_roster *r, const keel_workload *w, size_t p, size_t n)
+bool keel_workload_may_take_at_all(const keel_roster *r, const keel_workload *w, size_t p,
+                                   size_t n)
 {
-    return w->max_patients[n] > 0 && has_every_need(r, &r->nurses[n], &r->patients[p]) &&
-           patient_allows(&r->patients[p], &r->nurses[n]);
+    const keel_patient *pt = &r->patients[p];
+    return w->max_patients[n] > 0 && has_every_need(r, &r->nurses[n], pt) &&
+           patient_allows(pt, &r->nurses[n], true);
+}
+
+bool keel_workload_may_take(const keel_roster *r, const keel_workload *w, size_t q, size_t n)
+{
+    const keel_patient *p = &r->patients[w->patient[q]];
+    return w->max_patients[n] > 0 && has_every_need(r, &r->nurses[n], p) &&
+           patient_allows(p, &r->nurses[n], w->first_part[w->patient[q]] == (int)q) &&
+           w->nurse_start[n] <= w->part_start[q] && w->nurse_end[n] >= w->part_end[q];
 }
 
 void keel_workload_free(keel_workload *w)
@@ -150,19 +179,170 @@ void keel_workload_free(keel_workload *w)
     free(w->zone);
     free(w->room);
     free(w->previous);
+    free(w->patient);
+    free(w->first_part);
+    free(w->part_start);
+    free(w->part_end);
+    free(w->nurse_start);
+    free(w->nurse_end);
+    free(w->moment_start);
+    free(w->first_moment);
+    free(w->last_moment);
     free(w);
+}
+
+static int cmp_int(const void *a, const void *b)
+{
+    int x = *(const int *)a, y = *(const int *)b;
+    return (x > y) - (x < y);
+}
+
+/* Sorts v[0..n) and drops repeats; returns the count left. */
+static size_t sort_unique(int *v, size_t n)
+{
+    size_t k = 0;
+    qsort(v, n, sizeof *v, cmp_int);
+    for (size_t i = 0; i < n; i++)
+        if (k == 0 || v[k - 1] != v[i])
+            v[k++] = v[i];
+    return k;
+}
+
+/* Index of t in the sorted v[0..n) (t is in it). */
+static int find_time(const int *v, size_t n, int t)
+{
+    const int *at = bsearch(&t, v, n, sizeof *v, cmp_int);
+    return at ? (int)(at - v) : 0;
+}
+
+static int arrives(const keel_patient *p)
+{
+    return or_default(p->arrives_at, 0);
+}
+
+static int leaves(const keel_roster *r, const keel_patient *p)
+{
+    return or_default(p->leaves_at, r->shift.minutes);
+}
+
+/* Nurses' times, the moments of the shift and how many parts there are:
+ * the first stage of the clock (see keel/workload.h). */
+static keel_status plan_clock(const keel_roster *r, keel_workload *w, int **ends_out,
+                              size_t *nends_out)
+{
+    size_t nn = r->nnurses, np = r->npatients, nparts = 0;
+    int *ends = keel_calloc(nn + 1, sizeof *ends);
+    int *bounds = keel_calloc(2 * nn + 2 * np + 2, sizeof *bounds);
+    w->nurse_start = keel_calloc(nn + 1, sizeof *w->nurse_start);
+    w->nurse_end = keel_calloc(nn + 1, sizeof *w->nurse_end);
+    if (!ends || !bounds || !w->nurse_start || !w->nurse_end) {
+        free(ends);
+        free(bounds);
+        return KEEL_ERR_NOMEM;
+    }
+    size_t nb = 0;
+    bounds[nb++] = 0;
+    bounds[nb++] = r->shift.minutes;
+    for (size_t n = 0; n < nn; n++) {
+        w->nurse_start[n] = or_default(r->nurses[n].start, 0);
+        w->nurse_end[n] = or_default(r->nurses[n].end, r->shift.minutes);
+        ends[n] = w->nurse_end[n];
+        bounds[nb++] = w->nurse_start[n];
+        bounds[nb++] = w->nurse_end[n];
+    }
+    size_t nends = sort_unique(ends, nn);
+    for (size_t p = 0; p < np; p++) {
+        int a = arrives(&r->patients[p]), b = leaves(r, &r->patients[p]);
+        bounds[nb++] = a;
+        bounds[nb++] = b;
+        nparts++;
+        for (size_t i = 0; i < nends; i++)
+            nparts += ends[i] > a && ends[i] < b;
+    }
+    nb = sort_unique(bounds, nb);
+    w->moment_start = bounds;
+    w->nmoments = nb - 1;
+    w->npatients = nparts;
+    w->clocked = w->nmoments > 1 || nparts > np;
+    *ends_out = ends;
+    *nends_out = nends;
+    return KEEL_OK;
+}
+
+/* Cuts each patient's stay into parts at the nurses' end times and shares
+ * its care among them (see keel/workload.h). */
+static void cut_parts(const keel_roster *r, keel_workload *w, const int *ends, size_t nends)
+{
+    size_t q = 0;
+    long long shift = r->shift.minutes;
+    for (size_t p = 0; p < r->npatients; p++) {
+        const keel_patient *pt = &r->patients[p];
+        long long a = arrives(pt), b = leaves(r, pt);
+        long long present = ceil_share(base_care(r, pt), b - a, shift);
+        w->first_part[p] = (int)q;
+        long long s = a;
+        for (size_t i = 0; i <= nends; i++) {
+            long long e = i < nends ? ends[i] : b;
+            if (e <= s || (i < nends && e >= b))
+                continue;
+            w->patient[q] = (int)p;
+            w->part_start[q] = (int)s;
+            w->part_end[q] = (int)e;
+            w->care_minutes[q] =
+                (int)(ceil_share(present, e - a, b - a) - ceil_share(present, s - a, b - a));
+            if (s == a)
+                w->care_minutes[q] += extra_care(r, pt);
+            w->first_moment[q] = find_time(w->moment_start, w->nmoments + 1, (int)s);
+            w->last_moment[q] = find_time(w->moment_start, w->nmoments + 1, (int)e);
+            q++;
+            s = e;
+        }
+    }
+    w->first_part[r->npatients] = (int)q;
+}
+
+/* A nurse's minutes on the unit: her times, else minutes, else the shift's. */
+static int on_unit(const keel_roster *r, const keel_nurse *n)
+{
+    if (n->start != KEEL_ABSENT || n->end != KEEL_ABSENT)
+        return or_default(n->end, r->shift.minutes) - or_default(n->start, 0);
+    return or_default(n->minutes, r->shift.minutes);
+}
+
+static int break_total(const keel_roster *r, const keel_nurse *n)
+{
+    if (n->nbreaks > 0) {
+        int total = 0;
+        for (size_t i = 0; i < n->nbreaks; i++)
+            total += n->breaks[i].minutes;
+        return total;
+    }
+    return or_default(n->break_minutes, or_default(r->shift.break_minutes, 0));
 }
 
 keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, keel_error *err)
 {
     keel_status rc = KEEL_OK;
-    size_t np = r->npatients, nn = r->nnurses;
+    size_t nn = r->nnurses, npeople = r->npatients, nends = 0;
+    int *ends = NULL;
     keel_workload *w = keel_calloc(1, sizeof *w);
     *out = NULL;
     if (!w)
         return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
-    w->npatients = np;
     w->nnurses = nn;
+    w->npeople = npeople;
+    w->shift_minutes = r->shift.minutes;
+    if (plan_clock(r, w, &ends, &nends)) {
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+        goto out;
+    }
+    size_t np = w->npatients;
+    w->patient = keel_calloc(np, sizeof *w->patient);
+    w->first_part = keel_calloc(npeople + 1, sizeof *w->first_part);
+    w->part_start = keel_calloc(np, sizeof *w->part_start);
+    w->part_end = keel_calloc(np, sizeof *w->part_end);
+    w->first_moment = keel_calloc(np, sizeof *w->first_moment);
+    w->last_moment = keel_calloc(np, sizeof *w->last_moment);
     w->care_minutes = keel_calloc(np, sizeof *w->care_minutes);
     w->capacity_minutes = keel_calloc(nn, sizeof *w->capacity_minutes);
     w->duty_minutes = keel_calloc(nn, sizeof *w->duty_minutes);
@@ -174,9 +354,15 @@ keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, kee
     w->zone = keel_calloc(np, sizeof *w->zone);
     w->room = keel_calloc(np, sizeof *w->room);
     w->previous = keel_calloc(np, sizeof *w->previous);
-    if (!w->care_minutes || !w->capacity_minutes || !w->duty_minutes || !w->max_patients ||
-        !w->eligible || !w->ratio_limit || !w->high_acuity || !w->side || !w->zone || !w->room ||
-        !w->previous || join_rules(r, w)) {
+    if (!w->patient || !w->first_part || !w->part_start || !w->part_end || !w->first_moment ||
+        !w->last_moment || !w->care_minutes || !w->capacity_minutes || !w->duty_minutes ||
+        !w->max_patients || !w->eligible || !w->ratio_limit || !w->high_acuity || !w->side ||
+        !w->zone || !w->room || !w->previous) {
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+        goto out;
+    }
+    cut_parts(r, w, ends, nends);
+    if (join_rules(r, w)) {
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }
@@ -186,8 +372,8 @@ keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, kee
         w->law_limit = KEEL_ABSENT;
     for (size_t n = 0; n < nn; n++) {
         const keel_nurse *nurse = &r->nurses[n];
-        int minutes = or_default(nurse->minutes, r->shift.minutes);
-        int breaks = or_default(nurse->break_minutes, or_default(r->shift.break_minutes, 0));
+        int minutes = on_unit(r, nurse);
+        int breaks = break_total(r, nurse);
         w->capacity_minutes[n] = minutes - breaks;
         w->duty_minutes[n] = or_default(nurse->duty_minutes,
                                         or_default(r->policy.roles[nurse->role].duty_minutes, 0));
@@ -202,15 +388,64 @@ keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, kee
     }
     if (rc)
         goto out;
-    for (size_t p = 0; p < np; p++) {
-        w->care_minutes[p] = patient_care(r, &r->patients[p]);
+    for (size_t q = 0; q < np; q++)
         for (size_t n = 0; n < nn; n++)
-            w->eligible[p * nn + n] = keel_workload_may_take(r, w, p, n);
-    }
+            w->eligible[q * nn + n] = keel_workload_may_take(r, w, q, n);
 out:
+    free(ends);
     if (rc)
         keel_workload_free(w);
     else
         *out = w;
     return rc;
+}
+
+long long keel_workload_patient_care(const keel_workload *w, size_t p)
+{
+    long long care = 0;
+    for (int q = w->first_part[p]; q < w->first_part[p + 1]; q++)
+        care += w->care_minutes[q];
+    return care;
+}
+
+static const keel_workload *order_w;
+static long long *order_care; /* [npatients]: care of each part's patient */
+
+static int placed_before(const void *a, const void *b)
+{
+    size_t i = *(const size_t *)a, j = *(const size_t *)b;
+    const keel_workload *w = order_w;
+    if (w->patient[i] != w->patient[j]) {
+        if (order_care[i] != order_care[j])
+            return order_care[i] > order_care[j] ? -1 : 1;
+        return w->patient[i] < w->patient[j] ? -1 : 1;
+    }
+    return (i > j) - (i < j);
+}
+
+keel_status keel_workload_order(const keel_workload *w, size_t *order)
+{
+    long long *care = keel_malloc((w->npatients ? w->npatients : 1) * sizeof *care);
+    if (!care)
+        return KEEL_ERR_NOMEM;
+    for (size_t q = 0; q < w->npatients; q++)
+        order[q] = q;
+    for (size_t q = 0; q < w->npatients; q++)
+        care[q] = w->clocked ? keel_workload_patient_care(w, (size_t)w->patient[q])
+                             : w->care_minutes[q];
+    order_w = w;
+    order_care = care;
+    qsort(order, w->npatients, sizeof *order, placed_before);
+    free(care);
+    return KEEL_OK;
+}
+
+void keel_time_text(const keel_roster *r, int offset, char buf[KEEL_TIME_SIZE])
+{
+    if (r->shift.start_minute == KEEL_ABSENT) {
+        snprintf(buf, KEEL_TIME_SIZE, "+%d min", offset);
+        return;
+    }
+    int minute = (r->shift.start_minute + offset) % 1440;
+    snprintf(buf, KEEL_TIME_SIZE, "%02d:%02d", minute / 60, minute % 60);
 }

@@ -242,13 +242,24 @@ static void test_roster_leaves_unset_fields_absent(void **state)
         assert_int_equal(r->policy.roles[role].max_patients, KEEL_ABSENT);
         assert_int_equal(r->policy.roles[role].duty_minutes, KEEL_ABSENT);
     }
+    assert_false(r->clock);
+    assert_int_equal(r->nurses[0].start, KEEL_ABSENT);
+    assert_int_equal(r->nurses[0].end, KEEL_ABSENT);
+    assert_int_equal(r->nurses[0].nbreaks, 0);
+    assert_null(r->nurses[0].breaks);
+    assert_null(r->nurses[0].covers);
+    assert_int_equal(r->patients[0].arrives_at, KEEL_ABSENT);
+    assert_int_equal(r->patients[0].leaves_at, KEEL_ABSENT);
+    assert_false(r->patients[0].expected);
+    assert_int_equal(r->patients[0].nhandoffs, 0);
+    assert_null(r->patients[0].handoffs);
     keel_roster_free(r);
 }
 
 static void test_roster_names_every_role_as_written(void **state)
 {
-    static const char *const names[KEEL_NROLES] = {"staff", "charge", "resource", "float",
-                                                   "orientee"};
+    static const char *const names[KEEL_NROLES] = {"staff", "charge",   "resource",
+                                                   "float", "orientee", "relief"};
     (void)state;
     for (int role = 0; role < KEEL_NROLES; role++) {
         char text[256];
@@ -282,7 +293,7 @@ static void test_roster_accepts_only_the_documented_unit_types(void **state)
         "expected one of icu, step-down, telemetry, med-surg, pediatrics, emergency, oncology, "
         "psychiatric, labor-delivery, postpartum, pacu, burn, nicu, other",
         "roster.yaml:2:17: nurses[0].role: found a sequence; expected one of staff, charge, "
-        "resource, float, orientee",
+        "resource, float, orientee, relief",
         "roster.yaml:2:31: nurses[0].licence: unknown licence 'RN'; did you mean 'rn'? expected "
         "one of rn, lpn",
         "roster.yaml:2:53: nurses[1].licence: 'Tech' names unlicensed staff, who do not belong "
@@ -467,7 +478,8 @@ static void test_roster_suggests_the_nearest_key_only_when_close(void **state)
         "roster.yaml:2:19: nurses[0].nmae: unknown key; did you mean 'name'?",
         "roster.yaml:2:28: nurses[0].Skills: unknown key; did you mean 'skills'?",
         "roster.yaml:2:40: nurses[0].colour: unknown key; expected one of id, name, skills, "
-        "max_patients, minutes, break_minutes, duty_minutes, role, licence, preceptor",
+        "max_patients, minutes, break_minutes, duty_minutes, role, licence, preceptor, start, "
+        "end, breaks, covers",
         "roster.yaml:3:12: patients[0].acuity: missing; every patient needs acuity, "
         "care_minutes or nas",
         "roster.yaml:3:21: patients[0].acuty: unknown key; did you mean 'acuity'?",
@@ -584,6 +596,347 @@ static void test_roster_enforces_the_documented_ranges(void **state)
     (void)state;
     for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++)
         check_range_case(&cases[i]);
+}
+
+/* A night shift that crosses midnight, with every clock key. */
+static const char night_example[] =
+    "shift: {label: night, start: \"19:00\", minutes: 720, break_minutes: 30}\n"
+    "policy: {roles: {relief: {max_patients: 1}}}\n"
+    "nurses:\n"
+    "  - {id: N1, covers: N2}\n"
+    "  - id: N2\n"
+    "    start: \"23:00\"\n"
+    "    end: 07:00\n"
+    "    minutes: 480\n"
+    "    covers: N1\n"
+    "    breaks: [{at: \"02:00\", minutes: 30}, {at: \"04:30\", minutes: 15}]\n"
+    "    break_minutes: 45\n"
+    "  - {id: N3, end: \"03:00\", role: relief}\n"
+    "patients:\n"
+    "  - {id: P1, care_minutes: 120, nurse: N3, handoffs: [N2, N1], leaves_at: \"05:00\"}\n"
+    "  - {id: P2, care_minutes: 90, arrives_at: \"02:00\"}\n"
+    "expected_admissions:\n"
+    "  - {id: A1, at: \"22:15\", care_minutes: 150, needs: [tele]}\n"
+    "  - {id: A2, at: \"19:00\", care_minutes: 60, leaves_at: \"07:00\"}\n";
+
+static void test_roster_reads_times_against_a_shift_that_crosses_midnight(void **state)
+{
+    keel_roster *r = NULL;
+    keel_error err;
+    (void)state;
+    keel_error_init(&err);
+    assert_int_equal(parse(night_example, &r, &err), KEEL_OK);
+    assert_true(r->clock);
+    assert_int_equal(r->policy.roles[KEEL_ROLE_RELIEF].max_patients, 1);
+
+    /* 19:00 + 720 minutes: 23:00 is 240 minutes in, 02:00 is 420, 07:00 the end (720). */
+    const keel_nurse *n1 = &r->nurses[0], *n2 = &r->nurses[1], *n3 = &r->nurses[2];
+    assert_int_equal(n1->start, KEEL_ABSENT);
+    assert_int_equal(n1->end, KEEL_ABSENT);
+    assert_string_equal(n1->covers, "N2");
+    assert_int_equal(n2->start, 240);
+    assert_int_equal(n2->end, 720);
+    assert_int_equal(n2->minutes, 480);
+    assert_string_equal(n2->covers, "N1");
+    assert_int_equal(n2->nbreaks, 2);
+    assert_int_equal(n2->breaks[0].at, 420);
+    assert_int_equal(n2->breaks[0].minutes, 30);
+    assert_int_equal(n2->breaks[0].mark.line, 10);
+    assert_int_equal(n2->breaks[1].at, 570);
+    assert_int_equal(n2->breaks[1].minutes, 15);
+    assert_int_equal(n2->break_minutes, 45);
+    assert_int_equal(n3->start, KEEL_ABSENT);
+    assert_int_equal(n3->end, 480);
+    assert_int_equal(n3->role, KEEL_ROLE_RELIEF);
+    assert_string_equal(keel_role_name(KEEL_ROLE_RELIEF), "relief");
+    /* Defaults stay absent: the workload module applies them. */
+    assert_int_equal(n3->minutes, KEEL_ABSENT);
+    assert_int_equal(n3->break_minutes, KEEL_ABSENT);
+
+    /* Expected admissions come after the patients, in file order. */
+    assert_int_equal(r->npatients, 4);
+    const keel_patient *p1 = &r->patients[0], *p2 = &r->patients[1];
+    const keel_patient *a1 = &r->patients[2], *a2 = &r->patients[3];
+    assert_false(p1->expected);
+    assert_int_equal(p1->arrives_at, KEEL_ABSENT);
+    assert_int_equal(p1->leaves_at, 600);
+    assert_int_equal(p1->nhandoffs, 2);
+    assert_string_equal(p1->handoffs[0], "N2");
+    assert_string_equal(p1->handoffs[1], "N1");
+    assert_int_equal(p2->arrives_at, 420);
+    assert_int_equal(p2->leaves_at, KEEL_ABSENT);
+    assert_string_equal(a1->id, "A1");
+    assert_true(a1->expected);
+    assert_int_equal(a1->arrives_at, 195);
+    assert_int_equal(a1->care_minutes, 150);
+    assert_string_equal(a1->needs[0], "tele");
+    assert_int_equal(a1->mark.line, 17);
+    assert_string_equal(a2->id, "A2");
+    assert_true(a2->expected);
+    assert_int_equal(a2->arrives_at, 0);
+    assert_int_equal(a2->leaves_at, 720);
+    keel_roster_free(r);
+    keel_error_fini(&err);
+}
+
+/* The offset of one time key: the shift and the nurse or patient fragment
+ * that gives it, and the field to read back. */
+typedef struct offset_case {
+    const char *shift, *nurse, *patient;
+    int start, end, arrives_at, leaves_at; /* expected; KEEL_ABSENT when not given */
+} offset_case;
+
+static void test_roster_turns_times_into_minutes_after_the_shift_start(void **state)
+{
+    static const offset_case cases[] = {
+        /* Night shift across midnight. */
+        {"start: \"19:00\", minutes: 720", "start: \"02:00\"", NULL, 420, KEEL_ABSENT, KEEL_ABSENT,
+         KEEL_ABSENT},
+        {"start: \"19:00\", minutes: 720", "end: \"07:00\"", NULL, KEEL_ABSENT, 720, KEEL_ABSENT,
+         KEEL_ABSENT},
+        {"start: \"19:00\", minutes: 720", "start: \"19:00\", end: \"00:00\"", NULL, 0, 300,
+         KEEL_ABSENT, KEEL_ABSENT},
+        {"start: \"19:00\", minutes: 720", NULL, "arrives_at: \"23:59\", leaves_at: \"00:01\"",
+         KEEL_ABSENT, KEEL_ABSENT, 299, 301},
+        /* Day shift, unquoted times. */
+        {"start: 07:00, minutes: 720", "start: 11:00, end: 15:30", NULL, 240, 510, KEEL_ABSENT,
+         KEEL_ABSENT},
+        {"start: 07:00, minutes: 720", NULL, "leaves_at: 19:00", KEEL_ABSENT, KEEL_ABSENT,
+         KEEL_ABSENT, 720},
+        /* A 24-hour shift: an end-like time at the start time is its end
+         * (offset 1440); a start-like one is its start. */
+        {"start: \"07:00\", minutes: 1440", "start: \"07:00\", end: \"07:00\"", NULL, 0, 1440,
+         KEEL_ABSENT, KEEL_ABSENT},
+        {"start: \"07:00\", minutes: 1440", "end: \"06:59\"", NULL, KEEL_ABSENT, 1439, KEEL_ABSENT,
+         KEEL_ABSENT},
+        {"start: \"07:00\", minutes: 1440", NULL, "arrives_at: \"07:00\", leaves_at: \"07:00\"",
+         KEEL_ABSENT, KEEL_ABSENT, 0, 1440},
+        /* A shift starting at midnight. */
+        {"start: \"00:00\", minutes: 480", "end: \"08:00\"", NULL, KEEL_ABSENT, 480, KEEL_ABSENT,
+         KEEL_ABSENT},
+    };
+    (void)state;
+    for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
+        const offset_case *c = &cases[i];
+        char text[512];
+        keel_error err;
+        keel_roster *r = NULL;
+        keel_error_init(&err);
+        snprintf(text, sizeof text,
+                 "shift: {%s}\nnurses: [{id: N1, %s}]\n"
+                 "patients: [{id: P1, care_minutes: 60, %s}]\n",
+                 c->shift, c->nurse ? c->nurse : "skills: []", c->patient ? c->patient : "bed: B");
+        keel_status rc = parse(text, &r, &err);
+        for (size_t k = 0; k < err.nproblems; k++)
+            print_message("%s-> %s\n", text, problem_text(&err, k));
+        assert_int_equal(rc, KEEL_OK);
+        assert_true(r->clock);
+        assert_int_equal(r->nurses[0].start, c->start);
+        assert_int_equal(r->nurses[0].end, c->end);
+        assert_int_equal(r->patients[0].arrives_at, c->arrives_at);
+        assert_int_equal(r->patients[0].leaves_at, c->leaves_at);
+        keel_roster_free(r);
+        keel_error_fini(&err);
+    }
+}
+
+/* The night shift of the clock checks: 19:00 to 07:00. */
+#define NIGHT "start: \"19:00\", minutes: 720"
+
+static void test_roster_checks_the_clock_keys(void **state)
+{
+    static const range_case cases[] = {
+        /* Times need shift.start and must lie in the shift. */
+        {.nurse = "start: \"08:00\"", .bad_key = "nurses[0].start"},
+        {.patient = "acuity: 1, arrives_at: \"08:00\"", .bad_key = "patients[0].arrives_at"},
+        {.shift = NIGHT, .nurse = "start: \"07:01\"", .bad_key = "nurses[0].start"},
+        {.shift = NIGHT, .nurse = "end: \"18:59\"", .bad_key = "nurses[0].end"},
+        {.shift = NIGHT, .nurse = "start: \"24:00\"", .bad_key = "nurses[0].start"},
+        {.shift = NIGHT, .nurse = "end: [07, 00]", .bad_key = "nurses[0].end"},
+        /* start < end, with the shift's start and end as defaults.  A nurse
+         * who starts as the shift ends, or ends as it starts, is not on it
+         * (common practice, no source). */
+        {.shift = NIGHT, .nurse = "start: \"07:00\"", .bad_key = "nurses[0].start"},
+        {.shift = NIGHT, .nurse = "end: \"19:00\"", .bad_key = "nurses[0].end"},
+        {.shift = NIGHT, .nurse = "start: \"01:00\", end: \"01:00\"", .bad_key = "nurses[0].end"},
+        {.shift = NIGHT, .nurse = "start: \"06:59\""},
+        {.shift = NIGHT, .nurse = "end: \"19:01\""},
+        /* minutes, when given with start or end, is the time between. */
+        {.shift = NIGHT, .nurse = "start: \"23:00\", minutes: 480"},
+        {.shift = NIGHT, .nurse = "start: \"23:00\", minutes: 479", .bad_key = "nurses[0].minutes"},
+        {.shift = NIGHT, .nurse = "end: \"23:00\", minutes: 240"},
+        {.shift = NIGHT, .nurse = "end: \"23:00\", minutes: 720", .bad_key = "nurses[0].minutes"},
+        /* The shift's break must still leave her some time. */
+        {.shift = NIGHT ", break_minutes: 60",
+         .nurse = "start: \"06:00\"",
+         .bad_key = "nurses[0].start"},
+        {.shift = NIGHT ", break_minutes: 60", .nurse = "start: \"06:00\", break_minutes: 30"},
+        {.shift = NIGHT,
+         .nurse = "end: \"20:00\", duty_minutes: 61",
+         .bad_key = "nurses[0].duty_minutes"},
+        /* Breaks: inside [start, end), half-open (common practice, no
+         * source); in time order; not overlapping; minutes > 0. */
+        {.shift = NIGHT, .nurse = "breaks: [{at: \"19:00\", minutes: 30}]"},
+        {.shift = NIGHT, .nurse = "breaks: [{at: \"06:30\", minutes: 30}]"},
+        {.shift = NIGHT,
+         .nurse = "breaks: [{at: \"06:31\", minutes: 30}]",
+         .bad_key = "nurses[0].breaks[0].minutes"},
+        {.shift = NIGHT,
+         .nurse = "end: \"01:00\", breaks: [{at: \"01:00\", minutes: 1}]",
+         .bad_key = "nurses[0].breaks[0].at"},
+        {.shift = NIGHT,
+         .nurse = "start: \"20:00\", breaks: [{at: \"19:59\", minutes: 1}]",
+         .bad_key = "nurses[0].breaks[0].at"},
+        {.shift = NIGHT,
+         .nurse = "breaks: [{at: \"23:00\", minutes: 30}, {at: \"23:30\", minutes: 30}]"},
+        {.shift = NIGHT,
+         .nurse = "breaks: [{at: \"23:00\", minutes: 30}, {at: \"23:29\", minutes: 30}]",
+         .bad_key = "nurses[0].breaks[1].at"},
+        {.shift = NIGHT,
+         .nurse = "breaks: [{at: \"01:00\", minutes: 30}, {at: \"23:00\", minutes: 30}]",
+         .bad_key = "nurses[0].breaks[1].at"},
+        {.shift = NIGHT,
+         .nurse = "breaks: [{at: \"01:00\", minutes: 0}]",
+         .bad_key = "nurses[0].breaks[0].minutes"},
+        {.shift = NIGHT, .nurse = "breaks: [{minutes: 30}]", .bad_key = "nurses[0].breaks[0].at"},
+        {.shift = NIGHT,
+         .nurse = "breaks: [{at: \"01:00\"}]",
+         .bad_key = "nurses[0].breaks[0].minutes"},
+        {.shift = NIGHT, .nurse = "breaks: []", .bad_key = "nurses[0].breaks"},
+        {.shift = NIGHT,
+         .nurse = "breaks: [{at: \"01:00\", minutes: 30, for: lunch}]",
+         .bad_key = "nurses[0].breaks[0].for"},
+        {.nurse = "breaks: [{at: \"01:00\", minutes: 30}]", .bad_key = "nurses[0].breaks[0].at"},
+        /* break_minutes, when given with breaks, is their total. */
+        {.shift = NIGHT,
+         .nurse = "break_minutes: 45, breaks: [{at: \"23:00\", minutes: 30}, "
+                  "{at: \"03:00\", minutes: 15}]"},
+        {.shift = NIGHT,
+         .nurse = "break_minutes: 30, breaks: [{at: \"23:00\", minutes: 30}, "
+                  "{at: \"03:00\", minutes: 15}]",
+         .bad_key = "nurses[0].break_minutes"},
+        {.shift = NIGHT,
+         .nurse = "end: \"19:30\", breaks: [{at: \"19:00\", minutes: 30}]",
+         .bad_key = "nurses[0].breaks"},
+        /* A buddy is another nurse of the roster. */
+        {.nurse = "covers: N1", .bad_key = "nurses[0].covers"},
+        {.nurse = "covers: N2", .bad_key = "nurses[0].covers"},
+        {.nurse = "covers: \"\"", .bad_key = "nurses[0].covers"},
+        /* A patient arrives before leaving; one who arrives as the shift
+         * ends or leaves as it starts is not on it (common practice, no
+         * source). */
+        {.shift = NIGHT, .patient = "acuity: 1, arrives_at: \"23:00\", leaves_at: \"23:01\""},
+        {.shift = NIGHT,
+         .patient = "acuity: 1, arrives_at: \"23:00\", leaves_at: \"23:00\"",
+         .bad_key = "patients[0].leaves_at"},
+        {.shift = NIGHT,
+         .patient = "acuity: 1, arrives_at: \"07:00\"",
+         .bad_key = "patients[0].arrives_at"},
+        {.shift = NIGHT,
+         .patient = "acuity: 1, leaves_at: \"19:00\"",
+         .bad_key = "patients[0].leaves_at"},
+        {.shift = NIGHT,
+         .patient = "acuity: 1, leaves_at: \"07:01\"",
+         .bad_key = "patients[0].leaves_at"},
+        /* Hand-offs: nurses of the roster, after the patient's nurse, each
+         * to another nurse than the one before. */
+        {.patient = "acuity: 1, nurse: N1, handoffs: []"},
+        {.patient = "acuity: 1, handoffs: []"},
+        {.patient = "acuity: 1, handoffs: [N1]", .bad_key = "patients[0].handoffs"},
+        {.patient = "acuity: 1, nurse: N1, handoffs: [N1]", .bad_key = "patients[0].handoffs[0]"},
+        {.patient = "acuity: 1, nurse: N1, handoffs: [N2]", .bad_key = "patients[0].handoffs[0]"},
+        {.patient = "acuity: 1, nurse: N1, handoffs: N1", .bad_key = "patients[0].handoffs"},
+        {.patient = "acuity: 1, nurse: N1, handoffs: [~]", .bad_key = "patients[0].handoffs[0]"},
+    };
+    (void)state;
+    for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++)
+        check_range_case(&cases[i]);
+}
+
+static void test_roster_reports_clock_problems_with_their_place(void **state)
+{
+    static const char *const expected[] = {
+        "roster.yaml:3:18: nurses[0].end: 20:00 is not after the nurse's start at 23:00; "
+        "expected an end later than the start",
+        "roster.yaml:4:27: nurses[1].breaks[0].at: 18:00 is outside the shift (19:00 to 07:00); "
+        "expected a time from 19:00 to 07:00",
+        "roster.yaml:5:35: nurses[2].covers: no nurse 'N9' on this roster",
+        "roster.yaml:7:53: patients[0].handoffs[0]: 'B' is the patient's nurse already; "
+        "expected a hand-off to another nurse",
+        "roster.yaml:9:27: expected_admissions[0].arrives_at: not used for an expected "
+        "admission; expected at: the time it is expected",
+        "roster.yaml:10:10: expected_admissions[1].id: patient id 'P1' is already used on line "
+        "7; expected a unique id",
+        "roster.yaml:10:18: expected_admissions[1].at: 07:30 is outside the shift (19:00 to "
+        "07:00); expected a time from 19:00 to 07:00",
+        NULL};
+    (void)state;
+    assert_problems("shift: {start: \"19:00\", minutes: 720}\n"
+                    "nurses:\n"
+                    "  - {id: A, end: \"20:00\", start: \"23:00\"}\n"
+                    "  - {id: B, breaks: [{at: \"18:00\", minutes: 30}]}\n"
+                    "  - {id: C, role: relief, covers: N9}\n"
+                    "patients:\n"
+                    "  - {id: P1, care_minutes: 60, nurse: B, handoffs: [B]}\n"
+                    "expected_admissions:\n"
+                    "  - {id: A1, at: \"20:00\", arrives_at: \"20:00\", care_minutes: 60}\n"
+                    "  - {id: P1, at: \"07:30\", care_minutes: 60}\n",
+                    expected);
+}
+
+static void test_roster_appends_expected_admissions_wherever_they_are_listed(void **state)
+{
+    keel_roster *r = NULL;
+    (void)state;
+    assert_int_equal(parse("expected_admissions: [{id: A1, at: \"10:00\", acuity: 2, nurse: N1}]\n"
+                           "policy: {acuity_minutes: {2: 150}}\n"
+                           "nurses: [{id: N1}]\n"
+                           "patients: [{id: P1, acuity: 2}, {id: P2, care_minutes: 30}]\n"
+                           "shift: {start: 07:00, minutes: 720}\n",
+                           &r, NULL),
+                     KEEL_OK);
+    assert_true(r->clock);
+    assert_int_equal(r->npatients, 3);
+    assert_string_equal(r->patients[0].id, "P1");
+    assert_string_equal(r->patients[1].id, "P2");
+    assert_string_equal(r->patients[2].id, "A1");
+    assert_true(r->patients[2].expected);
+    assert_int_equal(r->patients[2].arrives_at, 180);
+    assert_int_equal(r->patients[2].acuity, 2);
+    assert_string_equal(r->patients[2].nurse, "N1");
+    keel_roster_free(r);
+
+    /* An empty list is no admissions, and no clock. */
+    assert_int_equal(parse("shift: {minutes: 720}\n"
+                           "nurses: [{id: N1}]\n"
+                           "patients: [{id: P1, care_minutes: 30}]\n"
+                           "expected_admissions: []\n",
+                           &r, NULL),
+                     KEEL_OK);
+    assert_false(r->clock);
+    assert_int_equal(r->npatients, 1);
+    keel_roster_free(r);
+
+    /* The admissions' own problems carry their own key paths. */
+    static const char *const expected[] = {
+        "roster.yaml:5:5: expected_admissions[0].at: missing; every expected admission needs "
+        "at: the time it is expected",
+        "roster.yaml:5:5: expected_admissions[0].acuity: missing; every patient needs acuity, "
+        "care_minutes or nas",
+        "roster.yaml:5:31: expected_admissions[0].nurse: no nurse 'N7' on this roster",
+        "roster.yaml:6:5: expected_admissions[1].id: missing; every expected admission needs a "
+        "unique id",
+        "roster.yaml:6:34: expected_admissions[1].arival: unknown key; expected one of id, at, "
+        "bed, name, acuity, care_minutes, extras, needs, nurse, lock, sitter, avoid, ratio, "
+        "isolation, room, zone, previous_nurse, nas, leaves_at, handoffs",
+        NULL};
+    assert_problems("shift: {start: 07:00, minutes: 720}\n"
+                    "nurses: [{id: N1}]\n"
+                    "patients: [{id: P1, care_minutes: 30}]\n"
+                    "expected_admissions:\n"
+                    "  - {id: A1, bed: \"4\", nurse: N7}\n"
+                    "  - {care_minutes: 30, at: 9:00, arival: 9:00}\n",
+                    expected);
 }
 
 static void test_roster_reports_a_file_that_cannot_be_opened(void **state)
@@ -761,6 +1114,11 @@ static keel_status load_issue_example(keel_roster **out, keel_error *err)
     return keel_roster_parse("roster.yaml", issue_example, strlen(issue_example), out, err);
 }
 
+static keel_status load_night_example(keel_roster **out, keel_error *err)
+{
+    return keel_roster_parse("roster.yaml", night_example, strlen(night_example), out, err);
+}
+
 static keel_status load_medsurg_example(keel_roster **out, keel_error *err)
 {
     char path[1024];
@@ -779,6 +1137,7 @@ static void test_roster_fails_cleanly_when_any_allocation_fails(void **state)
 {
     (void)state;
     run_with_failing_allocations(load_issue_example, KEEL_OK);
+    run_with_failing_allocations(load_night_example, KEEL_OK);
     run_with_failing_allocations(load_medsurg_example, KEEL_OK);
     run_with_failing_allocations(load_many_problems, KEEL_ERR_INPUT);
 }
@@ -808,6 +1167,11 @@ int main(int argc, char **argv)
         cmocka_unit_test(test_roster_suggests_the_nearest_key_only_when_close),
         cmocka_unit_test(test_roster_expects_integers_without_quotes),
         cmocka_unit_test(test_roster_enforces_the_documented_ranges),
+        cmocka_unit_test(test_roster_reads_times_against_a_shift_that_crosses_midnight),
+        cmocka_unit_test(test_roster_turns_times_into_minutes_after_the_shift_start),
+        cmocka_unit_test(test_roster_checks_the_clock_keys),
+        cmocka_unit_test(test_roster_reports_clock_problems_with_their_place),
+        cmocka_unit_test(test_roster_appends_expected_admissions_wherever_they_are_listed),
         cmocka_unit_test(test_roster_reports_a_file_that_cannot_be_opened),
         cmocka_unit_test(test_roster_free_and_lookups_accept_null),
         cmocka_unit_test(test_roster_matches_the_golden_bad_inputs),

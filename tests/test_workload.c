@@ -138,7 +138,7 @@ static void test_plan_check_names_every_broken_rule(void **state)
                     "  - {id: P1, care_minutes: 100, needs: [tele], nurse: B}\n"
                     "  - {id: P2, care_minutes: 100, avoid: [B], nurse: B}\n");
     int plan[2];
-    assert_true(keel_plan_from_roster(l.r, plan));
+    assert_true(keel_plan_from_roster(l.r, l.w, plan));
     keel_findings found = {0};
     assert_int_equal(keel_plan_check(l.r, l.w, plan, &found, NULL), KEEL_OK);
     assert_int_equal(found.n, 3);
@@ -191,6 +191,119 @@ static void test_diagnosis_names_locks_that_exceed_a_limit(void **state)
     unload(&l);
 }
 
+/* The clock's arithmetic (docs/model.md, "The clock"), hand-computed. */
+static const char *clock_example =
+    "unit: {name: \"Test unit\", type: med-surg}\n"
+    "shift: {start: \"19:00\", minutes: 720, break_minutes: 60}\n"
+    "policy: {max_patients: 2, extra_minutes: {admission: 60}}\n"
+    "nurses:\n"
+    "  - {id: N1, end: \"03:00\", breaks: [{at: \"23:00\", minutes: 30}]}\n"
+    "  - {id: N2}\n"
+    "  - {id: N3, start: \"23:00\"}\n"
+    "patients:\n"
+    "  - {id: P1, care_minutes: 135, arrives_at: \"23:00\", extras: [admission]}\n"
+    "  - {id: P2, care_minutes: 100, leaves_at: \"03:00\"}\n"
+    "  - {id: P3, care_minutes: 72, leaves_at: \"23:00\"}\n";
+
+static void test_the_clock_cuts_stays_into_parts_and_moments(void **state)
+{
+    (void)state;
+    loaded l = load(clock_example);
+    const keel_workload *w = l.w;
+    /* Night shift across midnight: 03:00 is minute 480, 23:00 minute 240
+     * (common practice, no source: times are read against the shift). */
+    assert_int_equal(w->nurse_end[0], 480);
+    assert_int_equal(w->nurse_start[2], 240);
+    /* Capacity: time on the unit minus her breaks (or the shift's). */
+    assert_int_equal(w->capacity_minutes[0], 480 - 30);
+    assert_int_equal(w->capacity_minutes[1], 720 - 60);
+    assert_int_equal(w->capacity_minutes[2], 480 - 60);
+    /* P1 is present 480 of 720 minutes: ceil(135 * 480 / 720) = 90, cut at
+     * N1's end (minute 480): 45 and 45; the admission's 60 on the first part. */
+    assert_int_equal(w->first_part[1] - w->first_part[0], 2);
+    assert_int_equal(w->care_minutes[0], 45 + 60);
+    assert_int_equal(w->care_minutes[1], 45);
+    assert_int_equal(w->part_start[1], 480);
+    /* P2 leaves exactly when N1 does: one part, no hand-off; care
+     * ceil(100 * 480 / 720) = 67. */
+    assert_int_equal(w->first_part[2] - w->first_part[1], 1);
+    assert_int_equal(w->care_minutes[2], 67);
+    /* P3 is present 240 minutes: ceil(72 * 240 / 720) = 24. */
+    assert_int_equal(w->care_minutes[3], 24);
+    /* Moments: 0, 240, 480, 720. */
+    assert_int_equal(w->nmoments, 3);
+    assert_int_equal(w->moment_start[1], 240);
+    assert_true(w->clocked);
+    /* N3 is not on for P3 (who leaves when she comes) nor N1 for P1's
+     * second part; P1's second part keeps N2 or N3 when they had the first. */
+    assert_false(keel_workload_eligible(w, 3, 2));
+    assert_false(keel_workload_eligible(w, 1, 0));
+    assert_true(keel_workload_keeps(w, 1, 1));
+    assert_false(keel_workload_keeps(w, 1, 0));
+    assert_false(keel_workload_keeps(w, 0, 1));
+    unload(&l);
+}
+
+static void test_limits_hold_at_every_moment_not_on_the_total(void **state)
+{
+    (void)state;
+    /* N2 may hold 2 patients: P3 until 23:00, then P1 from 23:00, with P2
+     * throughout; three patients over the shift, never more than two at once. */
+    loaded l = load(clock_example);
+    int plan[5];
+    const int nurse_of[] = {1, 1, 1, 1}; /* P1 (two parts), P2, P3 all with N2 */
+    memcpy(plan, nurse_of, sizeof nurse_of);
+    keel_findings found = {0};
+    assert_int_equal(keel_plan_check(l.r, l.w, plan, &found, NULL), KEEL_OK);
+    assert_int_equal(found.n, 0);
+    /* P3 with N3, who is not on while P3 is here: named as a hand-off problem. */
+    plan[3] = 2;
+    assert_int_equal(keel_plan_check(l.r, l.w, plan, &found, NULL), KEEL_OK);
+    assert_int_equal(found.n, 1);
+    assert_string_equal(found.items[0].rule, "hand_off");
+    keel_findings_fini(&found);
+    unload(&l);
+}
+
+static void test_planned_handoffs_follow_the_nurse_who_leaves(void **state)
+{
+    (void)state;
+    static const char *text =
+        "unit: {name: \"Test unit\", type: med-surg}\n"
+        "shift: {start: \"07:00\", minutes: 720}\n"
+        "policy: {max_patients: 2}\n"
+        "nurses:\n"
+        "  - {id: N1, end: \"15:00\"}\n"
+        "  - {id: N2}\n"
+        "  - {id: N3, start: \"11:00\"}\n"
+        "patients:\n"
+        "  - {id: P1, care_minutes: 120, nurse: N1, handoffs: [N3]}\n"
+        "  - {id: P2, care_minutes: 120, nurse: N2}\n"
+        "  - {id: P3, care_minutes: 120, nurse: N2, leaves_at: \"11:00\"}\n"
+        "  - {id: P4, care_minutes: 120, nurse: N2, arrives_at: \"11:00\"}\n";
+    loaded l = load(text);
+    int plan[8];
+    assert_true(keel_plan_from_roster(l.r, l.w, plan));
+    /* P1 is with N1 until 15:00, then N3; P2 stays with N2. */
+    assert_int_equal(plan[0], 0);
+    assert_int_equal(plan[1], 2);
+    assert_int_equal(plan[l.w->first_part[1]], 1);
+    keel_findings found = {0};
+    assert_int_equal(keel_plan_check(l.r, l.w, plan, &found, NULL), KEEL_OK);
+    /* N2: P3 leaves at 11:00 and P4 arrives at 11:00, so two at a time under 1:2. */
+    assert_int_equal(found.n, 0);
+    /* P1 with N2 all shift: three at a time until 11:00, and the planned
+     * hand-off to N3 no longer happens. */
+    plan[0] = plan[1] = 1;
+    assert_int_equal(keel_plan_check(l.r, l.w, plan, &found, NULL), KEEL_OK);
+    assert_int_equal(found.n, 2);
+    assert_string_equal(found.items[0].rule, "moment_limit");
+    assert_non_null(strstr(found.items[0].message, "from 07:00 to 11:00"));
+    assert_string_equal(found.items[1].rule, "hand_off");
+    keel_findings_fini(&found);
+    unload(&l);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -200,6 +313,9 @@ int main(void)
         cmocka_unit_test(test_plan_check_names_every_broken_rule),
         cmocka_unit_test(test_diagnosis_explains_a_lock_that_cannot_hold),
         cmocka_unit_test(test_diagnosis_names_locks_that_exceed_a_limit),
+        cmocka_unit_test(test_the_clock_cuts_stays_into_parts_and_moments),
+        cmocka_unit_test(test_limits_hold_at_every_moment_not_on_the_total),
+        cmocka_unit_test(test_planned_handoffs_follow_the_nurse_who_leaves),
     };
     return cmocka_run_group_tests_name("workload", tests, NULL, NULL);
 }

@@ -66,6 +66,8 @@ static inline tu_case *tu_case_new(size_t nn, size_t np)
         c->roster.nurses[n].minutes = KEEL_ABSENT;
         c->roster.nurses[n].break_minutes = KEEL_ABSENT;
         c->roster.nurses[n].duty_minutes = KEEL_ABSENT;
+        c->roster.nurses[n].start = KEEL_ABSENT;
+        c->roster.nurses[n].end = KEEL_ABSENT;
     }
     for (size_t p = 0; p < np; p++) {
         snprintf(id, sizeof id, "P%zu", p + 1);
@@ -73,6 +75,8 @@ static inline tu_case *tu_case_new(size_t nn, size_t np)
         c->roster.patients[p].needs = calloc(8, sizeof(char *));
         c->roster.patients[p].acuity = KEEL_ABSENT;
         c->roster.patients[p].care_minutes = KEEL_ABSENT;
+        c->roster.patients[p].arrives_at = KEEL_ABSENT;
+        c->roster.patients[p].leaves_at = KEEL_ABSENT;
     }
     c->w.npatients = np;
     c->w.nnurses = nn;
@@ -91,6 +95,29 @@ static inline tu_case *tu_case_new(size_t nn, size_t np)
     c->w.room = calloc(np ? np : 1, sizeof(int));
     c->w.previous = calloc(np ? np : 1, sizeof(int));
     c->w.tolerance = KEEL_TOLERANCE_SCALE / 20;
+    /* No clock: one part per patient, one moment. */
+    c->w.npeople = np;
+    c->w.shift_minutes = 720;
+    c->w.patient = calloc(np ? np : 1, sizeof(int));
+    c->w.first_part = calloc(np + 1, sizeof(int));
+    c->w.part_start = calloc(np ? np : 1, sizeof(int));
+    c->w.part_end = calloc(np ? np : 1, sizeof(int));
+    c->w.first_moment = calloc(np ? np : 1, sizeof(int));
+    c->w.last_moment = calloc(np ? np : 1, sizeof(int));
+    c->w.nurse_start = calloc(nn ? nn : 1, sizeof(int));
+    c->w.nurse_end = calloc(nn ? nn : 1, sizeof(int));
+    c->w.nmoments = 1;
+    c->w.moment_start = calloc(2, sizeof(int));
+    c->w.moment_start[1] = 720;
+    for (size_t p = 0; p <= np; p++)
+        c->w.first_part[p] = (int)p;
+    for (size_t n = 0; n < nn; n++)
+        c->w.nurse_end[n] = 720;
+    for (size_t p = 0; p < np; p++) {
+        c->w.patient[p] = (int)p;
+        c->w.part_end[p] = 720;
+        c->w.last_moment[p] = 1;
+    }
     for (size_t p = 0; p < np; p++) {
         c->w.ratio_limit[p] = (int)np;
         c->w.zone[p] = -1;
@@ -169,6 +196,15 @@ static inline void tu_case_free(tu_case *c)
     free(c->w.zone);
     free(c->w.room);
     free(c->w.previous);
+    free(c->w.patient);
+    free(c->w.first_part);
+    free(c->w.part_start);
+    free(c->w.part_end);
+    free(c->w.first_moment);
+    free(c->w.last_moment);
+    free(c->w.nurse_start);
+    free(c->w.nurse_end);
+    free(c->w.moment_start);
     free(c);
 }
 

@@ -4,6 +4,7 @@
 #define KEEL_KEEL_H
 
 #include "keel/census.h"
+#include "keel/course.h"
 #include "keel/error.h"
 #include "keel/explain.h"
 #include "keel/finding.h"

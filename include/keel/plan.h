@@ -18,14 +18,22 @@
 extern "C" {
 #endif
 
-/* Fills nurse_of[npatients] from the roster's `nurse:` keys (-1 where a
- * patient has none).  Returns true when every patient has a nurse. */
-bool keel_plan_from_roster(const keel_roster *roster, int *nurse_of);
+/* Fills nurse_of[w->npatients] (one entry per part, see keel/workload.h)
+ * from the roster's `nurse:` and `handoffs:` keys: a patient starts with
+ * `nurse` and, each time that nurse leaves before the patient does, goes to
+ * the next of `handoffs` (-1 where the plan names nobody).  Returns true
+ * when every part has a nurse. */
+bool keel_plan_from_roster(const keel_roster *roster, const keel_workload *w, int *nurse_of);
 
-/* Appends to *out one finding for each rule the assignment nurse_of breaks
- * (unassigned patients are skipped): `skill` for a missing competency,
- * `patient_limit` for a nurse over the limit, `lock` for a locked patient
- * moved, `avoid` for a patient given to a nurse on its avoid list.  Statuses: KEEL_OK,
+/* Appends to *out one finding for each rule the assignment nurse_of (per
+ * part) breaks (unassigned parts are skipped): `skill` for a missing
+ * competency, `patient_limit` for a nurse over the limit, `lock` for a
+ * locked patient moved, `avoid` for a patient given to a nurse on its avoid
+ * list, and the rules that join patients.  With the clock the rules are
+ * checked at every moment (a count limit broken is `moment_limit`, once per
+ * nurse and rule, at the first moment it breaks, the message starting
+ * "from HH:MM to HH:MM"), and `hand_off` names a patient held by a nurse
+ * who is not on, or planned hand-offs that do not happen.  Statuses: KEEL_OK,
  * KEEL_ERR_NOMEM.  The caller owns what is appended. */
 keel_status keel_plan_check(const keel_roster *roster, const keel_workload *w, const int *nurse_of,
                             keel_findings *out, keel_error *err);

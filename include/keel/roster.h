@@ -48,9 +48,10 @@ typedef enum keel_role {
     KEEL_ROLE_RESOURCE, /* kept free for admissions and rapid responses */
     KEEL_ROLE_FLOAT,    /* from another unit: staff rules, shown as such */
     KEEL_ROLE_ORIENTEE, /* works under a preceptor; shares the preceptor's assignment */
+    KEEL_ROLE_RELIEF,   /* covers other nurses' breaks; no patients of her own by default */
 } keel_role;
 
-#define KEEL_NROLES 5
+#define KEEL_NROLES 6
 
 /* Name of a role as written in the roster ("staff", "charge", ...). */
 const char *keel_role_name(keel_role role);
@@ -75,6 +76,15 @@ typedef enum keel_isolation {
 /* Name of a precaution as written in the roster ("contact", ...; "none"). */
 const char *keel_isolation_name(keel_isolation isolation);
 
+/* A timed break (nurses[].breaks[]).  Times on a roster are kept as
+ * minutes after the shift's start (0 .. shift.minutes), read against the
+ * shift so that a night shift crosses midnight. */
+typedef struct keel_break {
+    int at;         /* minutes after the shift's start */
+    int minutes;    /* > 0 */
+    keel_mark mark; /* where the break's mapping starts */
+} keel_break;
+
 /* Balance tolerance is kept exactly, in millionths of a utilisation point. */
 #define KEEL_TOLERANCE_SCALE 1000000
 
@@ -90,7 +100,14 @@ typedef struct keel_nurse {
     keel_role role;       /* KEEL_ROLE_STAFF when absent */
     keel_licence licence; /* KEEL_LICENCE_RN when absent */
     char *preceptor;      /* orientees only: id of the preceptor (required for them) */
-    keel_mark mark;       /* where the nurse's mapping starts */
+    int start;            /* minutes after the shift's start when she comes on; KEEL_ABSENT: 0 */
+    int end;              /* minutes after the shift's start when she leaves; KEEL_ABSENT: the
+                             shift's end */
+    size_t nbreaks;
+    keel_break *breaks; /* timed breaks, in time order, inside [start, end), not overlapping */
+    char *covers;       /* id of the nurse whose patients she holds during that nurse's
+                           breaks (a break buddy), or NULL */
+    keel_mark mark;     /* where the nurse's mapping starts */
 } keel_nurse;
 
 typedef struct keel_patient {
@@ -115,7 +132,13 @@ typedef struct keel_patient {
     char *previous_nurse;     /* the previous shift's nurse (may be off this roster), or NULL */
     size_t nnas;
     char **nas;     /* Nursing Activities Score item codes ("1b", "4a", ...), valid (keel/nas.h) */
-    keel_mark mark; /* where the patient's mapping starts */
+    int arrives_at; /* minutes after the shift's start; KEEL_ABSENT: here at the start */
+    int leaves_at;  /* minutes after the shift's start; KEEL_ABSENT: stays past the end */
+    bool expected;  /* listed under expected_admissions (then arrives_at is its `at`) */
+    size_t nhandoffs;
+    char **handoffs; /* ids of the nurses who take the patient over, in order, each when
+                        the nurse before leaves (a planned hand-off) */
+    keel_mark mark;  /* where the patient's mapping starts */
 } keel_patient;
 
 typedef struct keel_acuity_level {
@@ -172,7 +195,8 @@ typedef struct keel_roster {
     size_t nnurses;
     keel_nurse *nurses;
     size_t npatients;
-    keel_patient *patients;
+    keel_patient *patients; /* patients, then the expected admissions (expected = true) */
+    bool clock;             /* some nurse or patient has a time of its own */
 } keel_roster;
 
 /* Reads and validates the roster file at path.  On success *out is a new

@@ -69,7 +69,7 @@ typedef enum keel_staffing_block {
 } keel_staffing_block;
 
 typedef struct keel_staffing {
-    size_t census;   /* patients */
+    size_t census;   /* patients (with the clock: the most present at one moment) */
     size_t nnurses;  /* nurses on shift */
     size_t ncounted; /* nurses taking patients (workload limit above zero) */
 

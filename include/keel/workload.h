@@ -23,6 +23,22 @@
  * needs, and policy.isolation_needs of its precaution), limit(n) > 0, n is
  * not on p's avoid list, and, when p is locked, n is the nurse p has.
  *
+ * The clock (docs/model.md, "The clock").  A patient is present over
+ * [arrives_at, leaves_at), a nurse on over [start, end), in minutes after
+ * the shift's start.  The solver assigns *parts*: a patient's presence cut
+ * at every nurse's end time inside it, each part to one nurse who is on
+ * throughout it; a part keeps the nurse of the part before it while she is
+ * on (a patient changes nurse only when the nurse leaves).  The shift is cut
+ * at every arrival, departure, start and end into *moments*; every rule
+ * that counts a nurse's patients holds at each moment, over the parts that
+ * cover it.  Without times there is one part per patient and one moment.
+ *
+ *   present(p)  = care(p) without extras, times (leaves - arrives) / shift,
+ *                 rounded up; plus the extras, on the first part
+ *   part [s, e) of [a, b) carries ceil(present*(e-a)/(b-a))
+ *                 - ceil(present*(s-a)/(b-a)) of it
+ *   capacity(n) = (end - start) - break minutes
+ *
  * Rules that join patients (held by every method, checked by the tally of
  * solve_tally.c): the nurse of p has at most ratio_limit(p) patients; at
  * most max_high_acuity high-acuity patients per nurse; with isolation
@@ -44,7 +60,7 @@ extern "C" {
 #endif
 
 typedef struct keel_workload {
-    size_t npatients;
+    size_t npatients; /* parts: what the solver assigns (without times, the patients) */
     size_t nnurses;
     int *care_minutes;     /* [npatients] */
     int *capacity_minutes; /* [nnurses], > 0 for counted nurses */
@@ -68,6 +84,22 @@ typedef struct keel_workload {
     bool joined_rules;   /* any rule that joins patients is on */
     bool isolation_rule; /* separation is on and both sides have patients */
     bool zones_rule;     /* max_zones is below the number of zones */
+
+    /* The clock.  Arrays over parts are the ones above ([npatients]). */
+    size_t npeople;     /* patients of the roster (expected admissions included) */
+    int *patient;       /* [npatients]: the roster patient a part belongs to */
+    int *first_part;    /* [npeople + 1]: patient p's parts are first_part[p] .. [p+1]-1, in
+                           time order */
+    int *part_start;    /* [npatients]: minutes after the shift's start */
+    int *part_end;      /* [npatients] */
+    int *nurse_start;   /* [nnurses]: when she comes on */
+    int *nurse_end;     /* [nnurses]: when she leaves */
+    size_t nmoments;    /* elementary intervals of the shift (1 without times) */
+    int *moment_start;  /* [nmoments + 1]: moment m is [moment_start[m], moment_start[m+1]) */
+    int *first_moment;  /* [npatients]: part q covers moments first_moment[q] .. last_moment[q]-1 */
+    int *last_moment;   /* [npatients] */
+    int shift_minutes;  /* the shift's length */
+    bool clocked;       /* several moments or parts: counts are per moment, parts keep nurses */
 } keel_workload;
 
 /* Which side of the isolation separation a patient is on. */
@@ -86,6 +118,25 @@ keel_status keel_workload_compute(const keel_roster *roster, keel_workload **out
  * and competencies of w, the patient's lock and avoid list of r). */
 bool keel_workload_may_take(const keel_roster *r, const keel_workload *w, size_t p, size_t n);
 
+/* Care minutes of roster patient p, all its parts together. */
+long long keel_workload_patient_care(const keel_workload *w, size_t p);
+
+/* Orders parts for placement: patients heaviest first (ties by index),
+ * each patient's parts together in time order.  Without the clock: parts
+ * by care, heaviest first, ties by index.  order has npatients entries.
+ * Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
+keel_status keel_workload_order(const keel_workload *w, size_t *order);
+
+/* Writes the clock time `offset` minutes after the shift's start as
+ * "HH:MM" (or "+N min" when the shift has no start) into buf. */
+#define KEEL_TIME_SIZE 16
+void keel_time_text(const keel_roster *r, int offset, char buf[KEEL_TIME_SIZE]);
+
+/* True when nurse n may take roster patient p at some time: competencies,
+ * limit above zero, avoid list and lock, her times aside. */
+bool keel_workload_may_take_at_all(const keel_roster *r, const keel_workload *w, size_t p,
+                                   size_t n);
+
 /* Frees the workload.  NULL-safe. */
 void keel_workload_free(keel_workload *w);
 
@@ -93,6 +144,14 @@ void keel_workload_free(keel_workload *w);
 static inline bool keel_workload_eligible(const keel_workload *w, size_t p, size_t n)
 {
     return w->eligible[p * w->nnurses + n];
+}
+
+/* True when part q must keep the nurse n of the part before it: q is not a
+ * patient's first part and n is eligible for q (so on throughout it). */
+static inline bool keel_workload_keeps(const keel_workload *w, size_t q, int n)
+{
+    return n >= 0 && w->first_part[w->patient[q]] != (int)q &&
+           keel_workload_eligible(w, q, (size_t)n);
 }
 
 /* True when nurse n may take patients (limit above zero). */

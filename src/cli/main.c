@@ -293,6 +293,9 @@ static int parse_args(const command *cmd, int argc, char **argv, options *opt, b
 }
 
 /* Everything one run holds; released by state_fini(). */
+/* How many of the next unplanned admissions the reports place in order. */
+#define NEXT_ADMISSIONS 3
+
 typedef struct state {
     keel_error err;
     keel_roster *roster;
@@ -301,6 +304,7 @@ typedef struct state {
     keel_metrics *metrics;
     keel_staffing staffing;
     keel_explanation *explanation;
+    keel_course *course;
     int *plan;
     keel_findings violations;
 } state;
@@ -309,6 +313,7 @@ static void state_fini(state *s)
 {
     keel_findings_fini(&s->violations);
     keel_explanation_free(s->explanation);
+    keel_course_free(s->course);
     free(s->plan);
     keel_metrics_free(s->metrics);
     keel_solution_free(s->solution);
@@ -377,6 +382,9 @@ static int run_assign(const options *opt)
         rc = keel_explain(s.roster, s.workload, s.solution->nurse_of, &s.explanation, &s.err);
     if (!rc && s.solution->best_effort)
         rc = keel_plan_check(s.roster, s.workload, s.solution->nurse_of, &s.violations, &s.err);
+    if (!rc && (s.solution->status != KEEL_SOLVE_INFEASIBLE || s.solution->best_effort))
+        rc = keel_course_compute(s.roster, s.workload, s.solution->nurse_of, NEXT_ADMISSIONS,
+                                 &s.course, &s.err);
     if (rc) {
         print_problems(&s.err);
         state_fini(&s);
@@ -390,6 +398,7 @@ static int run_assign(const options *opt)
                        .solution = s.solution,
                        .staffing = &s.staffing,
                        .explanation = s.explanation,
+                       .course = s.course,
                        .violations = s.solution->best_effort ? &s.violations : NULL};
     bool infeasible = s.solution->status == KEEL_SOLVE_INFEASIBLE;
     if (infeasible) {
@@ -420,18 +429,20 @@ static int run_check(const options *opt)
     keel_status rc = load(&s, opt);
     bool complete = false, partial = false;
     if (!rc) {
-        s.plan = calloc(s.roster->npatients ? s.roster->npatients : 1, sizeof *s.plan);
+        s.plan = calloc(s.workload->npatients ? s.workload->npatients : 1, sizeof *s.plan);
         if (!s.plan)
             rc = keel_error_add(&s.err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
     }
     if (!rc) {
-        complete = keel_plan_from_roster(s.roster, s.plan);
-        for (size_t p = 0; p < s.roster->npatients; p++)
-            partial = partial || s.plan[p] >= 0;
+        complete = keel_plan_from_roster(s.roster, s.workload, s.plan);
+        for (size_t q = 0; q < s.workload->npatients; q++)
+            partial = partial || s.plan[q] >= 0;
         rc = keel_metrics_compute(s.workload, complete ? s.plan : NULL, &s.metrics, &s.err);
     }
     if (!rc && complete)
         rc = keel_plan_check(s.roster, s.workload, s.plan, &s.violations, &s.err);
+    if (!rc && complete)
+        rc = keel_course_compute(s.roster, s.workload, s.plan, NEXT_ADMISSIONS, &s.course, &s.err);
     if (!rc)
         rc = keel_solve(s.roster, s.workload, &so, &s.solution, &s.err);
     if (rc) {
@@ -451,6 +462,7 @@ static int run_check(const options *opt)
                        .metrics = s.metrics,
                        .solution = s.solution,
                        .violations = &s.violations,
+                       .course = s.course,
                        .staffing = &s.staffing};
     bool infeasible = s.solution->status == KEEL_SOLVE_INFEASIBLE;
     int code = write_report(opt, &rep);

@@ -196,5 +196,31 @@ has "$work/out" "* NAS-based minutes are an approximation" "the sheet labels the
 expect 0 "greedy method" -- "$keel" assign "$examples/medsurg-day.yaml" --method greedy --format json
 has "$work/out" '"method": "greedy"' "the greedy method says so"
 
+# The shift's clock (docs/model.md, "The clock").
+clock="$examples/medsurg-day-clock.yaml"
+expect 0 "a roster with a clock" -- "$keel" assign "$clock"
+has "$work/out" "patients over the shift: 07:00 5, 15:00 off" "a nurse's count over the shift, and when she leaves"
+has "$work/out" "Planned hand-offs (a nurse leaves; not balance moves)" "planned hand-offs are listed apart"
+has "$work/out" "15:00  E05 leaves: P-6103 to" "who takes whom when a nurse leaves"
+has "$work/out" "Expected admissions, assigned in advance" "expected admissions have a nurse"
+has "$work/out" "Break cover, in time order" "break cover is shown"
+has "$work/out" "Next unplanned admissions" "the admission order is shown"
+last_line_is_caution "$work/out" "the clock's report ends with the caution"
+expect 0 "a clocked plan as yaml" -- "$keel" assign "$clock" --format yaml -o "$work/clock-plan.yaml"
+has "$work/clock-plan.yaml" 'handoffs: ["' "the yaml plan names the planned hand-offs"
+has "$work/clock-plan.yaml" "expected_admissions:" "expected admissions are written back apart"
+expect 0 "the clocked plan checks clean" -- "$keel" check "$work/clock-plan.yaml"
+has "$work/out" "The plan keeps every rule keel checks." "keel's own clocked plan keeps every rule at every moment"
+# A patient moved onto a nurse who then holds six at once.
+awk '/id: "P-6101"/ {moving = 1} moving && /nurse:/ {sub(/"E0[0-9]"/, "\"E02\""); moving = 0} 1' "$work/clock-plan.yaml" > "$work/clock-edited.yaml"
+awk '/id: "P-6102"/ {moving = 1} moving && /nurse:/ {sub(/"E0[0-9]"/, "\"E02\""); moving = 0} 1' "$work/clock-edited.yaml" > "$work/clock-edited2.yaml"
+expect 0 "a hand edit of the clocked plan" -- "$keel" check "$work/clock-edited2.yaml" --format json
+has "$work/out" '"rule": "moment_limit"' "a limit broken at a moment is named moment_limit"
+expect 3 "too few places after a nurse leaves" -- "$keel" assign "$data/clock-too-few-later.yaml"
+has "$work/err" "[moment_limit]" "the diagnosis names the moment limit"
+has "$work/err" "the busiest time is 11:00 to 19:00, with 2 patients for 1 place" "and the busiest time"
+expect 3 "nobody on for a patient at night" -- "$keel" assign "$data/clock-night-gap.yaml"
+has "$work/err" "no nurse who may take P1 is on from 03:00 to 07:00" "a stretch with no nurse on is named across midnight"
+
 echo "1..$n"
 [ "$failed" -eq 0 ]
