@@ -5,7 +5,7 @@
  *
  * Loads are whole minutes, so a nurse's utilisation can only take the values
  * (duty + s) / capacity where s is a sum of care minutes of at most limit(n)
- * patients the nurse may take; a small dynamic programme per nurse lists those
+ * patients the nurse may take (with the clock, of any parts she may take); a small dynamic programme per nurse lists those
  * sums.  Stage 1 ("peak") sorts the candidate values between the proven
  * floor and the incumbent and asks, at a candidate t, "is there an
  * assignment in which every nurse's care stays within the largest reachable
@@ -77,8 +77,11 @@ static keel_status reachable_sums(const keel_workload *w, size_t n, long long sm
             if (fewest[s - c] != INT_MAX && fewest[s - c] + 1 < fewest[s])
                 fewest[s] = fewest[s - c] + 1;
     }
+    /* With the clock the limit holds per moment, not on the parts over the
+     * shift: any number of parts may add up. */
+    int most = w->clocked ? INT_MAX - 1 : w->max_patients[n];
     for (long long s = 0; s <= smax; s++)
-        out->reach[s] = fewest[s] <= w->max_patients[n];
+        out->reach[s] = fewest[s] <= most;
     free(fewest);
     return KEEL_OK;
 }

@@ -153,7 +153,7 @@ static bool still_possible(const fit *F, size_t k)
         }
     }
     /* The high-acuity patients still to come need places under the rule. */
-    if (w->max_high_acuity != KEEL_ABSENT && F->high_after[k] > high_room)
+    if (!w->clocked && w->max_high_acuity != KEEL_ABSENT && F->high_after[k] > high_room)
         return false;
     return room >= left && owed <= left;
 }
