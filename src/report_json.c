@@ -311,6 +311,15 @@ static void write_staffing(FILE *out, const keel_report *rep)
     } else {
         fputs("null", out);
     }
+    if (st->clocked && st->moment_need > 0) {
+        char from[KEEL_TIME_SIZE], to[KEEL_TIME_SIZE];
+        keel_time_text(rep->roster, st->moment_from, from);
+        keel_time_text(rep->roster, st->moment_to, to);
+        fprintf(out,
+                ", \"tightest_moment\": {\"from\": \"%s\", \"to\": \"%s\", \"nurses_on\": %d, "
+                "\"limits_need\": %d}",
+                from, to, st->moment_on, st->moment_need);
+    }
     fputs("},\n", out);
 }
 

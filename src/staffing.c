@@ -91,6 +91,10 @@ static void need_at(const keel_workload *w, size_t m, int *limit, keel_staffing 
         s->census = census;
     if (high > s->nhigh_acuity)
         s->nhigh_acuity = high;
+    int on = 0;
+    for (size_t n = 0; n < w->nnurses; n++)
+        on += keel_workload_counted(w, n) && w->nurse_start[n] <= w->moment_start[m] &&
+              w->nurse_end[n] >= w->moment_start[m + 1];
     if (census == 0 || s->staff_limit == 0)
         return;
     int cap = s->staff_limit == KEEL_ABSENT || (size_t)s->staff_limit > census ? (int)census
@@ -100,6 +104,16 @@ static void need_at(const keel_workload *w, size_t m, int *limit, keel_staffing 
     int by_census = (int)ceil_div((long long)census, cap), by_ratios = fewest_groups(limit, census);
     s->by_census = by_census > s->by_census ? by_census : s->by_census;
     s->by_ratios = by_ratios > s->by_ratios ? by_ratios : s->by_ratios;
+    int need = by_ratios;
+    if (s->max_high_acuity > 0 && (int)ceil_div(high, s->max_high_acuity) > need)
+        need = (int)ceil_div(high, s->max_high_acuity);
+    if (w->clocked && (s->moment_need == 0 || on - need < s->moment_slack)) {
+        s->moment_from = w->moment_start[m];
+        s->moment_to = w->moment_start[m + 1];
+        s->moment_on = on;
+        s->moment_need = need;
+        s->moment_slack = on - need;
+    }
 }
 
 static keel_status need_by_limits(const keel_roster *r, const keel_workload *w, keel_staffing *s,
@@ -108,6 +122,8 @@ static keel_status need_by_limits(const keel_roster *r, const keel_workload *w, 
     s->staff_limit = staff_limit(r, w);
     s->max_high_acuity = w->max_high_acuity;
     s->census = 0;
+    s->clocked = w->clocked;
+    s->shift_start = r->shift.start_minute;
     int *limit = keel_calloc(w->npatients ? w->npatients : 1, sizeof *limit);
     if (!limit)
         return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
@@ -190,6 +206,8 @@ static void verdict(keel_staffing *s)
         }
     }
     s->slack = (int)s->ncounted - s->needed;
+    if (s->clocked && s->moment_need > 0 && s->moment_slack < s->slack)
+        s->slack = s->moment_slack;
 }
 
 keel_status keel_staffing_compute(const keel_roster *r, const keel_workload *w, keel_staffing *out,
@@ -212,7 +230,7 @@ keel_status keel_staffing_compute(const keel_roster *r, const keel_workload *w, 
     need_by_table(r, &s);
     for (size_t n = 0; n < w->nnurses; n++)
         if (keel_workload_counted(w, n))
-            s.unit_minutes += or_default(r->nurses[n].minutes, r->shift.minutes);
+            s.unit_minutes += keel_workload_on_unit(r, n);
     if (s.census > 0)
         s.hours_per_patient = (double)s.unit_minutes / MINUTES_PER_HOUR / (double)s.census;
     verdict(&s);
@@ -318,6 +336,16 @@ static void put_needs(keel_textbuf *k, const keel_staffing *s)
     if (s->ward_minimum >= 0)
         keel_textbuf_put(k, ", by the ward minimum %d", s->ward_minimum);
     keel_textbuf_put(k, "; %.1f nurse hours per patient this shift.", s->hours_per_patient);
+    if (!s->clocked || s->moment_need == 0 || s->moment_slack >= 0)
+        return;
+    int from = s->shift_start == KEEL_ABSENT ? s->moment_from : s->shift_start + s->moment_from;
+    int to = s->shift_start == KEEL_ABSENT ? s->moment_to : s->shift_start + s->moment_to;
+    keel_textbuf_put(k,
+                     " From %02d:%02d to %02d:%02d only %d nurse%s who take%s patients %s on; "
+                     "the limits need %d then.",
+                     from / 60 % 24, from % 60, to / 60 % 24, to % 60, s->moment_on,
+                     plural(s->moment_on), verb_s(s->moment_on), s->moment_on == 1 ? "is" : "are",
+                     s->moment_need);
 }
 
 /* Whether the census exceeds what the counted nurses may hold under the

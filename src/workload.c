@@ -301,9 +301,9 @@ static void cut_parts(const keel_roster *r, keel_workload *w, const int *ends, s
     w->first_part[r->npatients] = (int)q;
 }
 
-/* A nurse's minutes on the unit: her times, else minutes, else the shift's. */
-static int on_unit(const keel_roster *r, const keel_nurse *n)
+int keel_workload_on_unit(const keel_roster *r, size_t i)
 {
+    const keel_nurse *n = &r->nurses[i];
     if (n->start != KEEL_ABSENT || n->end != KEEL_ABSENT)
         return or_default(n->end, r->shift.minutes) - or_default(n->start, 0);
     return or_default(n->minutes, r->shift.minutes);
@@ -372,7 +372,7 @@ keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, kee
         w->law_limit = KEEL_ABSENT;
     for (size_t n = 0; n < nn; n++) {
         const keel_nurse *nurse = &r->nurses[n];
-        int minutes = on_unit(r, nurse);
+        int minutes = keel_workload_on_unit(r, n);
         int breaks = break_total(r, nurse);
         w->capacity_minutes[n] = minutes - breaks;
         w->duty_minutes[n] = or_default(nurse->duty_minutes,

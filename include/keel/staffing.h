@@ -108,7 +108,16 @@ typedef struct keel_staffing {
     int needed;                 /* the largest need; -1 when blocked */
     keel_staffing_need binding; /* which need that is (LIMITS when blocked) */
     int slack;                  /* ncounted - needed: below 0 short, above 0 to spare;
-                                   0 when blocked */
+                                   0 when blocked; with the clock at most moment_slack */
+
+    /* With the clock: the moment where the nurses on (who take patients)
+     * are fewest against what the limits need then. */
+    bool clocked;
+    int moment_from, moment_to; /* minutes after the shift's start */
+    int moment_on;              /* counted nurses on throughout that moment */
+    int moment_need;            /* nurses the limits need then */
+    int moment_slack;           /* moment_on - moment_need */
+    int shift_start;            /* minutes after midnight, for the words; KEEL_ABSENT */
 } keel_staffing;
 
 /* Fills *out with the staffing view of roster r and its workload w (w from

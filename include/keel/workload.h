@@ -118,6 +118,10 @@ keel_status keel_workload_compute(const keel_roster *roster, keel_workload **out
  * and competencies of w, the patient's lock and avoid list of r). */
 bool keel_workload_may_take(const keel_roster *r, const keel_workload *w, size_t p, size_t n);
 
+/* Minutes nurse n of roster r is on the unit: end - start when she has
+ * times, else `minutes`, else the shift's (breaks included). */
+int keel_workload_on_unit(const keel_roster *r, size_t n);
+
 /* Care minutes of roster patient p, all its parts together. */
 long long keel_workload_patient_care(const keel_workload *w, size_t p);
 

@@ -221,6 +221,8 @@ has "$work/out" '"rule": "moment_limit"' "a limit broken at a moment is named mo
 expect 3 "too few places after a nurse leaves" -- "$keel" assign "$data/clock-too-few-later.yaml"
 has "$work/err" "[moment_limit]" "the diagnosis names the moment limit"
 has "$work/err" "the busiest time is 11:00 to 19:00, with 2 patients for 1 place" "and the busiest time"
+expect 3 "too few places after a nurse leaves, as json" -- "$keel" assign "$data/clock-too-few-later.yaml" --format json
+has "$work/out" '"tightest_moment": {"from": "11:00", "to": "19:00", "nurses_on": 1, "limits_need": 2}' "staffing counts the nurses on at each moment"
 expect 3 "nobody on for a patient at night" -- "$keel" assign "$data/clock-night-gap.yaml"
 has "$work/err" "no nurse who may take P1 is on from 03:00 to 07:00" "a stretch with no nurse on is named across midnight"
 
