@@ -318,8 +318,7 @@ static keel_status diagnose_clock(const keel_roster *r, const keel_workload *w, 
         keel_time_text(r, w->part_end[q], to);
         char *msg = anyone ? keel_asprintf("no nurse who may take %s is on from %s to %s",
                                            r->patients[p].id, from, to)
-                           : keel_asprintf("no nurse on the roster may take %s",
-                                           r->patients[p].id);
+                           : keel_asprintf("no nurse on the roster may take %s", r->patients[p].id);
         if (!msg || keel_findings_add(out, anyone ? "moment_limit" : "skill", &p, 1, NULL, 0, msg))
             return KEEL_ERR_NOMEM;
     }

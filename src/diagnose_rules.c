@@ -14,6 +14,7 @@
  * an assignment possible.  Each is reported in plain words with what is
  * short.
  */
+#include <limits.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -34,7 +35,10 @@ keel_status keel_find_valid(const keel_workload *w, long long deadline_ms, int *
     keel_status rc = keel_greedy_place(w, nurse_of, &placed_all);
     if (rc)
         return keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
-    if (placed_all) {
+    bool valid = placed_all;
+    if (placed_all && w->bounds_rule && keel_solve_validate(w, nurse_of, &valid))
+        return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    if (valid) {
         *answer = KEEL_ILP_FEASIBLE;
         return KEEL_OK;
     }
@@ -79,10 +83,26 @@ keel_status keel_find_valid(const keel_workload *w, long long deadline_ms, int *
 }
 
 /* The rule groups that join patients, in the order they are relaxed. */
-enum { GROUP_RATIO, GROUP_HIGH, GROUP_ISOLATION, GROUP_ZONES, NGROUPS };
+enum {
+    GROUP_RATIO,
+    GROUP_HIGH,
+    GROUP_ISOLATION,
+    GROUP_ZONES,
+    GROUP_CAPACITY, /* policy.max_utilisation */
+    GROUP_MIN,      /* min_patients */
+    NGROUPS
+};
 
 static const char *const group_rule[NGROUPS] = {"patient_ratio", "high_acuity", "isolation",
-                                                "zones"};
+                                                "zones",         "capacity",    "min_patients"};
+
+/* What the relaxed copies of a workload borrow in place of its arrays. */
+typedef struct spare {
+    int *census;       /* [npatients]: no ratio below the census */
+    signed char *none; /* [npatients]: no isolation side */
+    long long *no_cap; /* [nnurses]: no care cap */
+    int *no_min;       /* [nnurses]: no fewest patients */
+} spare;
 
 /* True when the group is switched on in w and touches some patient. */
 static bool group_on(const keel_workload *w, int g)
@@ -97,25 +117,33 @@ static bool group_on(const keel_workload *w, int g)
     }
     if (g == GROUP_ISOLATION)
         return sides[KEEL_SIDE_INFECTIOUS] && sides[KEEL_SIDE_PROTECTIVE];
+    for (size_t n = 0; n < w->nnurses; n++)
+        if ((g == GROUP_CAPACITY && w->max_care[n] != LLONG_MAX) ||
+            (g == GROUP_MIN && w->min_patients[n] > 0))
+            return true;
     return g == GROUP_ZONES && w->max_zones != KEEL_ABSENT;
 }
 
 /* A shallow copy of w with the groups not in keep[] switched off; the
  * arrays it replaces are in spare (census limits, no sides). */
-static keel_workload relaxed(const keel_workload *w, const bool *keep, int *census,
-                             signed char *none)
+static keel_workload relaxed(const keel_workload *w, const bool *keep, const spare *sp)
 {
     keel_workload r = *w;
     if (!keep[GROUP_RATIO])
-        r.ratio_limit = census;
+        r.ratio_limit = sp->census;
     if (!keep[GROUP_HIGH])
         r.max_high_acuity = KEEL_ABSENT;
     if (!keep[GROUP_ISOLATION])
-        r.side = none;
+        r.side = sp->none;
     if (!keep[GROUP_ZONES])
         r.max_zones = KEEL_ABSENT;
-    r.joined_rules =
-        keep[GROUP_RATIO] || keep[GROUP_HIGH] || keep[GROUP_ISOLATION] || keep[GROUP_ZONES];
+    if (!keep[GROUP_CAPACITY])
+        r.max_care = sp->no_cap;
+    if (!keep[GROUP_MIN])
+        r.min_patients = sp->no_min;
+    r.bounds_rule = keep[GROUP_CAPACITY] || keep[GROUP_MIN];
+    r.joined_rules = keep[GROUP_RATIO] || keep[GROUP_HIGH] || keep[GROUP_ISOLATION] ||
+                     keep[GROUP_ZONES] || r.bounds_rule || w->clocked;
     return r;
 }
 
@@ -127,7 +155,8 @@ static size_t group_patients(const keel_workload *w, int g, size_t *idx)
         bool in = g == GROUP_RATIO       ? w->ratio_limit[p] < (int)w->npatients
                   : g == GROUP_HIGH      ? w->high_acuity[p]
                   : g == GROUP_ISOLATION ? w->side[p] != KEEL_SIDE_NONE
-                                         : w->zone[p] >= 0;
+                  : g == GROUP_ZONES     ? w->zone[p] >= 0
+                                         : false; /* capacity, min_patients: every patient */
         /* Roster patients, each once (a patient's parts follow each other). */
         size_t pt = (size_t)w->patient[p];
         if (in && (k == 0 || idx[k - 1] != pt))
@@ -225,8 +254,10 @@ static char *describe_unsure(const keel_roster *r, const keel_workload *w, int g
         : g == GROUP_ISOLATION
             ? keel_strdup("protective-isolation patients apart from patients on contact, "
                           "droplet or airborne precautions")
-            : keel_asprintf("each nurse's patients within %d zone%s", w->max_zones,
-                            w->max_zones == 1 ? "" : "s");
+        : g == GROUP_CAPACITY ? keel_strdup("every nurse at or under policy.max_utilisation")
+        : g == GROUP_MIN      ? keel_strdup("every nurse's fewest patients (min_patients)")
+                         : keel_asprintf("each nurse's patients within %d zone%s", w->max_zones,
+                                         w->max_zones == 1 ? "" : "s");
     char *text = rule ? keel_asprintf("no assignment keeps %s together with the unit's other "
                                       "rules; within the time limit keel could not tell whether "
                                       "relaxing this rule alone would make one possible",
@@ -295,6 +326,15 @@ static char *describe(const keel_roster *r, const keel_workload *w, int g, const
                              "relaxing it makes one possible",
                              tail);
     }
+    if (g == GROUP_CAPACITY)
+        return keel_asprintf("no assignment keeps every nurse at or under policy.max_utilisation "
+                             "(%d.%02d of her capacity)%s; relaxing it makes one possible",
+                             r->policy.max_utilisation / KEEL_TOLERANCE_SCALE,
+                             r->policy.max_utilisation % KEEL_TOLERANCE_SCALE / 10000, tail);
+    if (g == GROUP_MIN)
+        return keel_asprintf("no assignment gives every nurse who takes patients her fewest "
+                             "patients (min_patients)%s; relaxing it makes one possible",
+                             tail);
     if (g == GROUP_ISOLATION)
         return keel_asprintf("no assignment keeps protective-isolation patients apart from "
                              "patients on contact, droplet or airborne precautions%s (local "
@@ -317,12 +357,16 @@ keel_status keel_diagnose_rules(const keel_roster *r, const keel_workload *w, lo
     size_t *pidx = keel_malloc((np ? np : 1) * sizeof *pidx);
     size_t *nidx = keel_malloc((nn ? nn : 1) * sizeof *nidx);
     keel_status rc = KEEL_OK;
-    if (!census || !none || !trial || !pidx || !nidx) {
+    spare sp = {census, none, keel_malloc((nn ? nn : 1) * sizeof *sp.no_cap),
+                keel_calloc(nn ? nn : 1, sizeof *sp.no_min)};
+    if (!census || !none || !trial || !pidx || !nidx || !sp.no_cap || !sp.no_min) {
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }
     for (size_t p = 0; p < np; p++)
         census[p] = (int)np;
+    for (size_t n = 0; n < nn; n++)
+        sp.no_cap[n] = LLONG_MAX;
     bool keep[NGROUPS], unsure[NGROUPS] = {false};
     int ngroups = 0;
     for (int g = 0; g < NGROUPS; g++) {
@@ -334,7 +378,7 @@ keel_status keel_diagnose_rules(const keel_roster *r, const keel_workload *w, lo
         if (!keep[g])
             continue;
         keep[g] = false;
-        keel_workload test = relaxed(w, keep, census, none);
+        keel_workload test = relaxed(w, keep, &sp);
         long long now = keel_clock_ms();
         long long until = now + (deadline_ms - now) / (ngroups > 0 ? ngroups : 1);
         keel_ilp_answer answer;
@@ -372,6 +416,8 @@ keel_status keel_diagnose_rules(const keel_roster *r, const keel_workload *w, lo
 out:
     free(census);
     free(none);
+    free(sp.no_cap);
+    free(sp.no_min);
     free(trial);
     free(pidx);
     free(nidx);

@@ -84,8 +84,7 @@ static keel_status check_skills(const keel_roster *r, const keel_workload *w, co
  * nurse), patients' own ratios, high acuity, isolation separation, zones.
  * mine[0..k) are parts; who[0..k) their roster patients. */
 static keel_status check_nurse(const keel_roster *r, const keel_workload *w, size_t n,
-                               const size_t *mine, const size_t *who, size_t k,
-                               keel_findings *out)
+                               const size_t *mine, const size_t *who, size_t k, keel_findings *out)
 {
     const char *id = r->nurses[n].id;
     keel_status rc = KEEL_OK;
@@ -208,6 +207,36 @@ static keel_status check_limits(const keel_roster *r, const keel_workload *w, co
     return rc;
 }
 
+/* policy.max_utilisation and the fewest patients, on the whole plan. */
+static keel_status check_bounds(const keel_roster *r, const keel_workload *w, const int *nurse_of,
+                                keel_findings *out)
+{
+    keel_status rc = KEEL_OK;
+    for (size_t n = 0; n < w->nnurses && !rc; n++) {
+        long long care = 0;
+        int count = 0;
+        for (size_t q = 0; q < w->npatients; q++) {
+            if (nurse_of[q] != (int)n)
+                continue;
+            care += w->care_minutes[q];
+            count += starts_stretch(w, nurse_of, q);
+        }
+        const char *id = r->nurses[n].id;
+        if (care > w->max_care[n]) {
+            char *msg = keel_asprintf("%s carries %lld min of care; policy.max_utilisation "
+                                      "allows %lld",
+                                      id, care, w->max_care[n]);
+            rc = keel_findings_add(out, "capacity", NULL, 0, &n, 1, msg);
+        }
+        if (!rc && count < w->min_patients[n]) {
+            char *msg = keel_asprintf("%s has %d patient%s; she takes at least %d (min_patients)",
+                                      id, count, count == 1 ? "" : "s", w->min_patients[n]);
+            rc = keel_findings_add(out, "min_patients", NULL, 0, &n, 1, msg);
+        }
+    }
+    return rc;
+}
+
 /* With the clock: each patient has a nurse on duty while present, and the
  * planned hand-offs happen when a nurse leaves. */
 static keel_status check_cover(const keel_roster *r, const keel_workload *w, const int *nurse_of,
@@ -233,8 +262,8 @@ static keel_status check_cover(const keel_roster *r, const keel_workload *w, con
         if (!rc && pat->nhandoffs > used) {
             char *msg = keel_asprintf("%s lists %zu planned hand-off%s, but only %zu happen%s: "
                                       "a patient changes nurse only when the nurse leaves",
-                                      pat->id, pat->nhandoffs, pat->nhandoffs == 1 ? "" : "s",
-                                      used, used == 1 ? "s" : "");
+                                      pat->id, pat->nhandoffs, pat->nhandoffs == 1 ? "" : "s", used,
+                                      used == 1 ? "s" : "");
             rc = keel_findings_add(out, "hand_off", &p, 1, NULL, 0, msg);
         }
     }
@@ -277,6 +306,8 @@ keel_status keel_plan_check(const keel_roster *r, const keel_workload *w, const 
         rc = check_limits(r, w, nurse_of, out);
     if (!rc)
         rc = check_restrictions(r, w, nurse_of, out);
+    if (!rc && w->bounds_rule)
+        rc = check_bounds(r, w, nurse_of, out);
     if (!rc && w->clocked)
         rc = check_cover(r, w, nurse_of, out);
     if (rc)

@@ -120,8 +120,7 @@ long keel_report_care_held(const keel_report *rep, size_t p, size_t n)
     return care;
 }
 
-bool keel_report_next_handoff(const keel_report *rep, size_t p, int *q, int *at, int *from,
-                              int *to)
+bool keel_report_next_handoff(const keel_report *rep, size_t p, int *q, int *at, int *from, int *to)
 {
     const keel_workload *w = rep->workload;
     if (!rep->nurse_of)

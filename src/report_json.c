@@ -96,8 +96,9 @@ static void write_course(FILE *out, const keel_report *rep)
             fputs("null", out);
         fprintf(out, ", \"relief\": %s, \"patients\": ", b->relief ? "true" : "false");
         write_ids_of_patients(out, r, b->patients, b->npatients);
-        fprintf(out, ", \"most_patients\": %d, \"limit\": %d, \"needs_relief\": %s, \"flag\": ",
-                b->most, b->limit, b->needs_relief ? "true" : "false");
+        fprintf(out,
+                ", \"most_patients\": %d, \"limit\": %d, \"needs_relief\": %s, \"flag\": ", b->most,
+                b->limit, b->needs_relief ? "true" : "false");
         if (b->rule)
             fprintf(out, "\"%s\"}", b->rule);
         else
@@ -186,8 +187,8 @@ static void write_patients(FILE *out, const keel_report *rep)
             keel_write_quoted(out, r->patients[p].bed);
         }
         fprintf(out, ", \"care_minutes\": %lld, \"locked\": %s, \"sitter\": %s",
-                keel_workload_patient_care(rep->workload, p), r->patients[p].lock ? "true" : "false",
-                r->patients[p].sitter ? "true" : "false");
+                keel_workload_patient_care(rep->workload, p),
+                r->patients[p].lock ? "true" : "false", r->patients[p].sitter ? "true" : "false");
         if (r->patients[p].expected)
             fputs(", \"expected\": true", out);
         write_time(out, r, "arrives_at", r->patients[p].arrives_at);

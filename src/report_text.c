@@ -194,8 +194,9 @@ static void write_one_cover(FILE *out, const keel_report *rep, const keel_break_
         return;
     const keel_law_table *t = r->policy.ratio_table;
     if (strcmp(b->rule, "law_limit") == 0)
-        fprintf(out, "      FLAG law_limit: exceeds the limit of %s (1:%d for %s) as encoded on %s, "
-                     "which holds during breaks\n",
+        fprintf(out,
+                "      FLAG law_limit: exceeds the limit of %s (1:%d for %s) as encoded on %s, "
+                "which holds during breaks\n",
                 t->name, b->limit, r->unit.type, t->encoded);
     else if (strcmp(b->rule, "patient_limit") == 0)
         fprintf(out, "      FLAG patient_limit: over the patient limit of %d\n", b->limit);

@@ -50,6 +50,7 @@ enum {
     MINUTES_PER_DAY = 1440, /* the upper bound of every minutes figure */
     MAX_PATIENTS = 99,
     MAX_LEVEL = 99,
+    MAX_UTILISATION = 10 * KEEL_TOLERANCE_SCALE, /* policy.max_utilisation, in millionths */
 };
 
 /* ---------------------------------------------------------------------------
@@ -1046,15 +1047,17 @@ static void parse_ratio_table(loader *ld, const node *value, void *target, const
         *(const keel_law_table **)field_of(target, rule->offset) = keel_law_table_at((size_t)index);
 }
 
-/* A number from 0 to 1 with at most six decimals, kept exactly in
- * millionths (policy.balance_tolerance). */
+/* A number from 0 to 1 (policy.balance_tolerance), or from rule->min to
+ * rule->max millionths (policy.max_utilisation), with at most six
+ * decimals, kept exactly in millionths. */
 static void parse_tolerance(loader *ld, const node *value, void *target, const key_rule *rule)
 {
+    long most = rule->max > 0 ? rule->max : KEEL_TOLERANCE_SCALE;
     const char *s = value->kind == NODE_SCALAR && !value->quoted ? value->text : "";
     long whole = 0, frac = 0;
     int digits = 0, i = 0;
     bool ok = s[0] >= '0' && s[0] <= '9';
-    while (ok && s[i] >= '0' && s[i] <= '9' && whole <= KEEL_TOLERANCE_SCALE)
+    while (ok && s[i] >= '0' && s[i] <= '9' && whole <= most)
         whole = whole * 10 + (s[i++] - '0');
     if (ok && s[i] == '.') {
         for (i++; s[i] >= '0' && s[i] <= '9'; i++) {
@@ -1068,10 +1071,28 @@ static void parse_tolerance(loader *ld, const node *value, void *target, const k
     for (; digits < 6; digits++)
         frac *= 10;
     long ppm = whole * KEEL_TOLERANCE_SCALE + frac;
-    if (!ok || ppm > KEEL_TOLERANCE_SCALE)
+    if (rule->max > 0 && (!ok || ppm > most || ppm < rule->min))
+        report_type(ld, value,
+                    "a number above 0 and at most 10 with at most 6 decimals, such as 1.0");
+    else if (!ok || ppm > most)
         report_type(ld, value, "a number from 0 to 1 with at most 6 decimals, such as 0.05");
     else
         *(int *)field_of(target, rule->offset) = (int)ppm;
+}
+
+static const char *const balance_names[] = {"peak", "squares"};
+
+const char *keel_balance_name(keel_balance balance)
+{
+    return (size_t)balance < ARRAY_LEN(balance_names) ? balance_names[balance] : "unknown";
+}
+
+/* policy.balance: peak or squares. */
+static void parse_balance(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    int index;
+    if (read_word(ld, value, "balance", balance_names, ARRAY_LEN(balance_names), false, &index))
+        *(keel_balance *)field_of(target, rule->offset) = (keel_balance)index;
 }
 
 /* The key before items[i] of a mapping that reads the same as items[i], or
@@ -1286,6 +1307,11 @@ static const key_rule nurse_keys[] = {
      .offset = offsetof(keel_nurse, max_patients),
      .min = 0,
      .max = MAX_PATIENTS},
+    {.name = "min_patients",
+     .parse = parse_int,
+     .offset = offsetof(keel_nurse, min_patients),
+     .min = 0,
+     .max = MAX_PATIENTS},
     {.name = "minutes",
      .parse = parse_int,
      .offset = offsetof(keel_nurse, minutes),
@@ -1402,6 +1428,7 @@ static void parse_nurses(loader *ld, const node *value, void *target, const key_
     r->nnurses = value->nitems;
     for (size_t i = 0; i < value->nitems; i++) {
         r->nurses[i] = (keel_nurse){.max_patients = KEEL_ABSENT,
+                                    .min_patients = KEEL_ABSENT,
                                     .minutes = KEEL_ABSENT,
                                     .break_minutes = KEEL_ABSENT,
                                     .duty_minutes = KEEL_ABSENT,
@@ -1566,6 +1593,17 @@ static const key_rule policy_keys[] = {
     {.name = "balance_tolerance",
      .parse = parse_tolerance,
      .offset = offsetof(keel_roster, policy.balance_tolerance)},
+    {.name = "min_patients",
+     .parse = parse_int,
+     .offset = offsetof(keel_roster, policy.min_patients),
+     .min = 0,
+     .max = MAX_PATIENTS},
+    {.name = "max_utilisation",
+     .parse = parse_tolerance,
+     .offset = offsetof(keel_roster, policy.max_utilisation),
+     .min = 1,
+     .max = MAX_UTILISATION},
+    {.name = "balance", .parse = parse_balance, .offset = offsetof(keel_roster, policy.balance)},
 };
 
 static const key_rule roster_keys[] = {
@@ -2454,6 +2492,8 @@ static keel_roster *new_roster(const char *name)
     r->policy.isolation_separation = true;
     r->policy.max_zones = KEEL_ABSENT;
     r->policy.balance_tolerance = KEEL_ABSENT;
+    r->policy.min_patients = KEEL_ABSENT;
+    r->policy.max_utilisation = KEEL_ABSENT;
     r->path = keel_strdup(name);
     if (!r->path) {
         free(r);

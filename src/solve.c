@@ -116,6 +116,7 @@ keel_status keel_solve_validate(const keel_workload *w, const int *nurse_of, boo
         if (ok)
             keel_tally_add(&t, p, (size_t)nurse_of[p]);
     }
+    ok = ok && !keel_tally_short(&t); /* the fewest patients, on the whole assignment */
     keel_tally_free(&t);
     *valid = ok;
     return KEEL_OK;

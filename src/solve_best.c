@@ -14,6 +14,7 @@
  *   patient_limit               50 per patient over any other limit
  *   high_acuity, isolation      40 per patient over / per nurse with both sides
  *   zones                       10 per zone over policy.max_zones
+ *   capacity, min_patients      50 per nurse over her care cap / per patient short
  *
  * and, far below any rule, 0.1 times the heaviest utilisation U so that
  * among plans of equal severity the most even is taken:
@@ -27,6 +28,8 @@
  *   sum_{p infectious} x[p, n] + census b[n] - census i[n] <= census
  *   sum_{p in zone k} x[p, n] <= census z[k, n],  sum_k z[k, n] - g[n] <= max_zones
  *   duty(n) + sum_p care(p) x[p, n] <= U capacity(n)
+ *   sum_p care(p) x[p, n] - big o[n] <= max_care(n)     (o binary)
+ *   sum_p x[p, n] + s[n] >= min(n)
  *
  * With the clock p ranges over parts, a part goes only to a nurse on
  * throughout it, every counting row is stated per moment over the parts
@@ -173,6 +176,29 @@ static void add_nurse_rows(best_model *m, glp_prob *lp, size_t n, int mo)
     }
 }
 
+/* policy.max_utilisation and min_patients, broken at a cost. */
+static void add_bounds_rows(best_model *m, glp_prob *lp, size_t n)
+{
+    const keel_workload *w = m->w;
+    size_t np = w->npatients, nn = w->nnurses;
+    if (w->max_care[n] != LLONG_MAX) {
+        double big = 0;
+        for (size_t p = 0; p < np; p++)
+            big += w->care_minutes[p];
+        int cap = row(lp, GLP_UP, 0.0, (double)w->max_care[n]);
+        for (size_t p = 0; p < np; p++)
+            keel_triplets_put(&m->mat, cap, m->col[p * nn + n], (double)w->care_minutes[p]);
+        keel_triplets_put(&m->mat, cap, column(lp, GLP_BV, 1.0, SEVERITY_LIMIT), -big);
+    }
+    if (w->min_patients[n] > 0) {
+        int least = row(lp, GLP_LO, (double)w->min_patients[n], 0.0);
+        for (size_t p = 0; p < np; p++)
+            keel_triplets_put(&m->mat, least, m->col[p * nn + n], 1.0);
+        keel_triplets_put(&m->mat, least,
+                          column(lp, GLP_IV, (double)w->min_patients[n], SEVERITY_LIMIT), 1.0);
+    }
+}
+
 /* A part keeps the nurse of the part before it while she is on. */
 static void add_keeping(best_model *m, glp_prob *lp)
 {
@@ -223,6 +249,7 @@ static int build_and_solve(void *ctx)
             continue;
         for (size_t mo = 0; mo < w->nmoments; mo++)
             add_nurse_rows(m, lp, n, w->clocked ? (int)mo : -1);
+        add_bounds_rows(m, lp, n);
         int load = row(lp, GLP_UP, 0.0, -(double)w->duty_minutes[n]);
         for (size_t p = 0; p < np; p++)
             keel_triplets_put(&m->mat, load, m->col[p * nn + n], (double)w->care_minutes[p]);

@@ -5,15 +5,13 @@
  *
  * Loads are whole minutes, so a nurse's utilisation can only take the values
  * (duty + s) / capacity where s is a sum of care minutes of at most limit(n)
- * patients the nurse may take (with the clock, of any parts she may take); a small dynamic programme per nurse lists those
- * sums.  Stage 1 ("peak") sorts the candidate values between the proven
- * floor and the incumbent and asks, at a candidate t, "is there an
- * assignment in which every nurse's care stays within the largest reachable
- * sum that keeps the nurse at or under t?".  Yes gives a better incumbent; a
- * proven no moves the proven bound past t.  When bound and incumbent meet,
- * the optimum is proven, without waiting for an LP relaxation to close the
- * gap.  Stage 2 ("lift") asks the same upwards for the lightest utilisation
- * with every budget of stage 1 held.
+ * patients the nurse may take (with the clock, of any parts she may take); a small dynamic
+ * programme per nurse lists those sums.  Stage 1 ("peak") sorts the candidate values between the
+ * proven floor and the incumbent and asks, at a candidate t, "is there an assignment in which every
+ * nurse's care stays within the largest reachable sum that keeps the nurse at or under t?".  Yes
+ * gives a better incumbent; a proven no moves the proven bound past t.  When bound and incumbent
+ * meet, the optimum is proven, without waiting for an LP relaxation to close the gap.  Stage 2
+ * ("lift") asks the same upwards for the lightest utilisation with every budget of stage 1 held.
  *
  * Each question goes first to the dedicated search (solve_fit.c), then to
  * GLPK (solve_ilp.c).  Questions are time-boxed while the search narrows

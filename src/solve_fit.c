@@ -91,7 +91,8 @@ static int heavier_first(const void *a, const void *b)
 static bool same_for_question(const fit *F, size_t a, size_t b)
 {
     const keel_workload *w = F->w;
-    if (w->max_patients[a] != w->max_patients[b] || F->lo[a] != F->lo[b] || F->hi[a] != F->hi[b])
+    if (w->max_patients[a] != w->max_patients[b] || F->lo[a] != F->lo[b] || F->hi[a] != F->hi[b] ||
+        w->min_patients[a] != w->min_patients[b] || w->max_care[a] != w->max_care[b])
         return false;
     for (size_t p = 0; p < w->npatients; p++)
         if (keel_workload_eligible(w, p, a) != keel_workload_eligible(w, p, b))
@@ -133,7 +134,8 @@ static bool still_possible(const fit *F, size_t k)
     for (size_t n = 0; n < w->nnurses; n++) {
         if (!keel_workload_counted(w, n))
             continue;
-        long long r = F->hi[n] - F->care[n];
+        long long top = F->hi[n] < w->max_care[n] ? F->hi[n] : w->max_care[n];
+        long long r = top - F->care[n];
         if (w->clocked) {
             room += r >= smallest ? r : 0;
             owed += F->lo[n] > F->care[n] ? F->lo[n] - F->care[n] : 0;
@@ -152,6 +154,16 @@ static bool still_possible(const fit *F, size_t k)
             owed += F->lo[n] - F->care[n];
         }
     }
+    /* The nurses short of their fewest patients need that many still to come. */
+    if (w->bounds_rule) {
+        long long owed_patients = 0;
+        for (size_t n = 0; n < w->nnurses; n++) {
+            int most = keel_tally_most(&F->tally, n);
+            owed_patients += most < w->min_patients[n] ? w->min_patients[n] - most : 0;
+        }
+        if (owed_patients > (long long)(w->npatients - k))
+            return false;
+    }
     /* The high-acuity patients still to come need places under the rule. */
     if (!w->clocked && w->max_high_acuity != KEEL_ABSENT && F->high_after[k] > high_room)
         return false;
@@ -166,7 +178,7 @@ static bool search(fit *F, size_t k)
         for (size_t n = 0; n < nn; n++)
             if (keel_workload_counted(w, n) && F->care[n] < F->lo[n])
                 return false;
-        return true;
+        return !keel_tally_short(&F->tally);
     }
     if (++F->nodes > F->budget ||
         (F->deadline_ms && (F->nodes & 1023) == 0 && keel_clock_ms() >= F->deadline_ms)) {

@@ -70,7 +70,7 @@ static keel_status greedy_keep(const keel_workload *w, const long long *lo, cons
             size_t to = (size_t)v, from = (size_t)a;
             long long c = w->care_minutes[p];
             if (t.care[to] + c <= hi[to] && t.care[from] - c >= lo[from] &&
-                keel_tally_admits(&t, p, to)) {
+                keel_tally_may_give(&t, from) && keel_tally_admits(&t, p, to)) {
                 keel_tally_remove(&t, p, from);
                 keel_tally_add(&t, p, to);
                 nurse_of[p] = v;

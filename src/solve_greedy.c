@@ -82,7 +82,7 @@ static bool try_move(const keel_workload *w, int *nurse_of, long long *load, kee
     keel_ratio before = worse((keel_ratio){load[a], w->capacity_minutes[a]},
                               (keel_ratio){load[b], w->capacity_minutes[b]});
     for (size_t p = 0; p < w->npatients; p++) {
-        if (nurse_of[p] != (int)a || !keel_tally_admits(t, p, b))
+        if (nurse_of[p] != (int)a || !keel_tally_may_give(t, a) || !keel_tally_admits(t, p, b))
             continue;
         int c = w->care_minutes[p];
         keel_ratio after = worse((keel_ratio){load[a] - c, w->capacity_minutes[a]},
@@ -194,7 +194,7 @@ static bool lift_once(const keel_workload *w, const long long *hi, int *nurse_of
         long long c = w->care_minutes[p];
         keel_ratio after_a = {load[a] - c, w->capacity_minutes[a]};
         if (t->care[b] + c <= hi[b] && keel_ratio_cmp(after_a, low) > 0 &&
-            keel_tally_admits(t, p, b)) {
+            keel_tally_may_give(t, (size_t)a) && keel_tally_admits(t, p, b)) {
             nurse_of[p] = (int)b;
             load[a] -= c;
             load[b] += c;

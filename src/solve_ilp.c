@@ -119,9 +119,9 @@ static bool same_patients(const model *m, size_t a, size_t b)
            (!zones || w->zone[a] == w->zone[b]) &&
            (goal == KEEL_GOAL_FIT || w->previous[a] == w->previous[b]) &&
            (goal != KEEL_GOAL_NEAR || w->room[a] == w->room[b]) &&
-           (!w->clocked || (alone(w, a) && alone(w, b) &&
-                            w->first_moment[a] == w->first_moment[b] &&
-                            w->last_moment[a] == w->last_moment[b])) &&
+           (!w->clocked ||
+            (alone(w, a) && alone(w, b) && w->first_moment[a] == w->first_moment[b] &&
+             w->last_moment[a] == w->last_moment[b])) &&
            memcmp(&w->eligible[a * w->nnurses], &w->eligible[b * w->nnurses],
                   w->nnurses * sizeof *w->eligible) == 0;
 }
@@ -132,6 +132,7 @@ static bool same_nurses(const model *m, size_t a, size_t b)
     const long long *lo = m->q->lo, *hi = m->q->hi;
     if (w->capacity_minutes[a] != w->capacity_minutes[b] ||
         w->duty_minutes[a] != w->duty_minutes[b] || w->max_patients[a] != w->max_patients[b] ||
+        w->min_patients[a] != w->min_patients[b] || w->max_care[a] != w->max_care[b] ||
         lo[a] != lo[b] || hi[a] != hi[b])
         return false;
     for (size_t p = 0; p < w->npatients; p++)
@@ -228,7 +229,11 @@ static void add_rules(model *m, glp_prob *lp, size_t n, int mo)
 {
     const keel_workload *w = m->w;
     double limit = w->max_patients[n];
-    int count = new_row(lp, GLP_UP, 0.0, limit);
+    /* The fewest patients count over the shift (no clock: one moment). */
+    double least = mo < 0 ? (double)w->min_patients[n] : 0.0;
+    int count = least <= 0      ? new_row(lp, GLP_UP, 0.0, limit)
+                : least < limit ? new_row(lp, GLP_DB, least, limit)
+                                : new_row(lp, GLP_FX, limit, limit);
     for (size_t c = 0; c < m->nclasses; c++)
         if (col_at(m, c, n, mo))
             keel_triplets_put(&m->mat, count, col_at(m, c, n, mo), 1.0);
@@ -275,8 +280,8 @@ static void add_rules(model *m, glp_prob *lp, size_t n, int mo)
     if (w->zones_rule || near) {
         int row = w->max_zones != KEEL_ABSENT ? new_row(lp, GLP_UP, 0.0, (double)w->max_zones) : 0;
         for (size_t k = 0; k < w->nzones; k++) {
-            int z = tie(m, lp, n, mo, TRAIT_ZONE, (int)k, limit,
-                        near ? (double)w->npatients + 1 : 0.0);
+            int z =
+                tie(m, lp, n, mo, TRAIT_ZONE, (int)k, limit, near ? (double)w->npatients + 1 : 0.0);
             if (z && row)
                 keel_triplets_put(&m->mat, row, z, 1.0);
         }
@@ -353,8 +358,10 @@ static void build(model *m, glp_prob *lp)
     for (size_t n = 0; n < nn; n++) {
         if (!keel_workload_counted(w, n))
             continue;
-        int care =
-            new_row(lp, q->lo[n] == q->hi[n] ? GLP_FX : GLP_DB, (double)q->lo[n], (double)q->hi[n]);
+        long long hi = q->hi[n] < w->max_care[n] ? q->hi[n] : w->max_care[n];
+        int care = hi < q->lo[n]    ? new_row(lp, GLP_FX, -1.0, -1.0) /* cannot be met */
+                   : q->lo[n] == hi ? new_row(lp, GLP_FX, (double)hi, (double)hi)
+                                    : new_row(lp, GLP_DB, (double)q->lo[n], (double)hi);
         for (size_t c = 0; c < m->nclasses; c++) {
             int j = m->col[c * nn + n];
             if (j)

@@ -165,12 +165,22 @@ const char *keel_tally_breaks(const keel_tally *t, size_t p, size_t n)
         return "skill"; /* eligibility: the caller names the precise reason */
     if (w->clocked && splits(t, p, n))
         return "hand_off";
+    if (t->care[n] + w->care_minutes[p] > w->max_care[n])
+        return "capacity";
     for (int m = w->first_moment[p]; m < w->last_moment[p]; m++) {
         const char *rule = breaks_at(t, p, n, (size_t)m);
         if (rule)
             return rule;
     }
     return NULL;
+}
+
+bool keel_tally_short(const keel_tally *t)
+{
+    for (size_t n = 0; n < t->w->nnurses; n++)
+        if (keel_tally_most(t, n) < t->w->min_patients[n])
+            return true;
+    return false;
 }
 
 bool keel_tally_admits_instead(keel_tally *t, size_t p, size_t q, size_t n)

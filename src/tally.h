@@ -12,6 +12,10 @@
  *   high-acuity patients <= max_high_acuity     high_acuity
  *   not both sides of isolation separation      isolation
  *   zones <= max_zones                          zones
+ *   care(n) <= max_care(n)                      capacity (policy.max_utilisation)
+ * The fewest patients per nurse (min_patients) can only be judged on a whole
+ * assignment: keel_tally_short() says whether the tally keeps it, and
+ * keel_tally_may_give() whether n may give a patient away.
  * With the clock each count is per moment, over the parts that cover it
  * (a count limit broken is then `moment_limit`), and a part keeps the
  * nurse of the part before it while she is on (keel_workload_keeps).
@@ -61,6 +65,15 @@ const char *keel_tally_breaks(const keel_tally *t, size_t p, size_t n);
 static inline bool keel_tally_admits(const keel_tally *t, size_t p, size_t n)
 {
     return keel_tally_breaks(t, p, n) == NULL;
+}
+
+/* True when some counted nurse holds fewer than her min_patients. */
+bool keel_tally_short(const keel_tally *t);
+
+/* True when n may give one patient away and keep her min_patients. */
+static inline bool keel_tally_may_give(const keel_tally *t, size_t n)
+{
+    return t->w->min_patients[n] == 0 || keel_tally_most(t, n) > t->w->min_patients[n];
 }
 
 /* True when n may take p in place of q, which n holds. */

@@ -126,28 +126,30 @@ keel_status keel_template_write(const keel_template_options *o, const keel_censu
             FILL, FILL, FILL, FILL);
     /* Example times inside the shift, in whole hours after its start. */
     int h = atoi(shift->start);
-    fprintf(out,
-            "nurses:                     # one entry per nurse on the shift; ids must differ\n"
-            "  - {id: %s, role: charge, skills: []}\n"
-            "  - {id: %s, skills: []}\n"
-            "  # - {id: N9, start: \"%02d:00\", end: \"%02d:00\"}   # on for part of the shift\n"
-            "  # - {id: N8, breaks: [{at: \"%02d:00\", minutes: 30}], covers: N9}   # a break buddy\n"
-            "  # - {id: R1, role: relief}   # covers breaks\n\n",
-            FILL, FILL, (h + 4) % 24, (h + 12) % 24, (h + 5) % 24);
+    fprintf(
+        out,
+        "nurses:                     # one entry per nurse on the shift; ids must differ\n"
+        "  - {id: %s, role: charge, skills: []}\n"
+        "  - {id: %s, skills: []}\n"
+        "  # - {id: N9, start: \"%02d:00\", end: \"%02d:00\"}   # on for part of the shift\n"
+        "  # - {id: N8, breaks: [{at: \"%02d:00\", minutes: 30}], covers: N9}   # a break buddy\n"
+        "  # - {id: R1, role: relief}   # covers breaks\n\n",
+        FILL, FILL, (h + 4) % 24, (h + 12) % 24, (h + 5) % 24);
     if (census && census->npatients > 0) {
         fprintf(out, "# Patients from the census %s.\n", census->path);
         fputs("patients:\n", out);
         for (size_t p = 0; p < census->npatients; p++)
             keel_yaml_write_patient(out, NULL, &census->patients[p], NULL);
     } else {
-        fprintf(out,
-                "patients:                   # or: keel import census.csv --roster this-file\n"
-                "  - {id: %s, bed: %s, acuity: %s, needs: []}\n"
-                "  # leaves_at: \"%02d:00\" (a discharge), arrives_at: \"%02d:00\" (a transfer in)\n"
-                "\n"
-                "# expected_admissions:      # admissions the unit has been told of\n"
-                "#   - {id: ADM-1, at: \"%02d:00\", acuity: 3}\n",
-                FILL, FILL, FILL, (h + 4) % 24, (h + 7) % 24, (h + 8) % 24);
+        fprintf(
+            out,
+            "patients:                   # or: keel import census.csv --roster this-file\n"
+            "  - {id: %s, bed: %s, acuity: %s, needs: []}\n"
+            "  # leaves_at: \"%02d:00\" (a discharge), arrives_at: \"%02d:00\" (a transfer in)\n"
+            "\n"
+            "# expected_admissions:      # admissions the unit has been told of\n"
+            "#   - {id: ADM-1, at: \"%02d:00\", acuity: 3}\n",
+            FILL, FILL, FILL, (h + 4) % 24, (h + 7) % 24, (h + 8) % 24);
     }
     if (ferror(out))
         return keel_error_add(err, KEEL_ERR_IO, NULL, 0, 0, NULL, "cannot write the roster");

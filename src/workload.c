@@ -7,6 +7,7 @@
  */
 #include "keel/workload.h"
 
+#include <limits.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -64,7 +65,6 @@ static int nurse_limit(const keel_roster *r, const keel_nurse *n, int law)
             limit = given[i];
     return limit;
 }
-
 
 static bool has_every_need(const keel_roster *r, const keel_nurse *n, const keel_patient *p)
 {
@@ -148,8 +148,7 @@ static bool patient_allows(const keel_patient *p, const keel_nurse *n, bool firs
     return true;
 }
 
-bool keel_workload_may_take_at_all(const keel_roster *r, const keel_workload *w, size_t p,
-                                   size_t n)
+bool keel_workload_may_take_at_all(const keel_roster *r, const keel_workload *w, size_t p, size_t n)
 {
     const keel_patient *pt = &r->patients[p];
     return w->max_patients[n] > 0 && has_every_need(r, &r->nurses[n], pt) &&
@@ -179,6 +178,8 @@ void keel_workload_free(keel_workload *w)
     free(w->zone);
     free(w->room);
     free(w->previous);
+    free(w->min_patients);
+    free(w->max_care);
     free(w->patient);
     free(w->first_part);
     free(w->part_start);
@@ -320,6 +321,39 @@ static int break_total(const keel_roster *r, const keel_nurse *n)
     return or_default(n->break_minutes, or_default(r->shift.break_minutes, 0));
 }
 
+/* Nurse n's fewest patients and most care (policy.min_patients and
+ * max_utilisation); reports a nurse whose fewest is above her limit, and
+ * min_patients with times (not supported).  Returns true on a problem. */
+static bool bounds(const keel_roster *r, keel_workload *w, size_t n, keel_error *err)
+{
+    const keel_nurse *nurse = &r->nurses[n];
+    bool counted = w->max_patients[n] > 0;
+    int least = or_default(nurse->min_patients, or_default(r->policy.min_patients, 0));
+    w->min_patients[n] = counted ? least : 0;
+    w->max_care[n] = LLONG_MAX;
+    if (counted && r->policy.max_utilisation != KEEL_ABSENT)
+        w->max_care[n] =
+            (long long)r->policy.max_utilisation * w->capacity_minutes[n] / KEEL_TOLERANCE_SCALE -
+            w->duty_minutes[n];
+    w->bounds_rule = w->bounds_rule || w->min_patients[n] > 0 || w->max_care[n] != LLONG_MAX;
+    if (w->min_patients[n] > w->max_patients[n]) {
+        keel_error_add(err, KEEL_ERR_INPUT, r->path, nurse->mark.line, nurse->mark.column, "nurses",
+                       "nurse %s must take at least %d patients but may take at most %d; "
+                       "expected min_patients at most the patient limit",
+                       nurse->id, w->min_patients[n], w->max_patients[n]);
+        return true;
+    }
+    if (w->min_patients[n] > 0 && w->clocked) {
+        keel_error_add(err, KEEL_ERR_INPUT, r->path, nurse->mark.line, nurse->mark.column, "nurses",
+                       "min_patients does not work with times on the roster yet (nurse %s); "
+                       "expected a roster without start, end, arrives_at, leaves_at or "
+                       "expected admissions",
+                       nurse->id);
+        return true;
+    }
+    return false;
+}
+
 keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, keel_error *err)
 {
     keel_status rc = KEEL_OK;
@@ -354,10 +388,12 @@ keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, kee
     w->zone = keel_calloc(np, sizeof *w->zone);
     w->room = keel_calloc(np, sizeof *w->room);
     w->previous = keel_calloc(np, sizeof *w->previous);
-    if (!w->patient || !w->first_part || !w->part_start || !w->part_end || !w->first_moment ||
-        !w->last_moment || !w->care_minutes || !w->capacity_minutes || !w->duty_minutes ||
-        !w->max_patients || !w->eligible || !w->ratio_limit || !w->high_acuity || !w->side ||
-        !w->zone || !w->room || !w->previous) {
+    w->min_patients = keel_calloc(nn ? nn : 1, sizeof *w->min_patients);
+    w->max_care = keel_calloc(nn ? nn : 1, sizeof *w->max_care);
+    if (!w->min_patients || !w->max_care || !w->patient || !w->first_part || !w->part_start ||
+        !w->part_end || !w->first_moment || !w->last_moment || !w->care_minutes ||
+        !w->capacity_minutes || !w->duty_minutes || !w->max_patients || !w->eligible ||
+        !w->ratio_limit || !w->high_acuity || !w->side || !w->zone || !w->room || !w->previous) {
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }
@@ -378,6 +414,7 @@ keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, kee
         w->duty_minutes[n] = or_default(nurse->duty_minutes,
                                         or_default(r->policy.roles[nurse->role].duty_minutes, 0));
         w->max_patients[n] = nurse_limit(r, nurse, w->law_limit);
+        rc = bounds(r, w, n, err) ? KEEL_ERR_INPUT : rc;
         if (w->max_patients[n] > 0 && w->capacity_minutes[n] <= 0)
             rc = keel_error_add(err, KEEL_ERR_INPUT, r->path, nurse->mark.line, nurse->mark.column,
                                 "nurses",
@@ -388,6 +425,13 @@ keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, kee
     }
     if (rc)
         goto out;
+    w->joined_rules = w->joined_rules || w->bounds_rule;
+    w->balance = r->policy.balance;
+    if (w->balance == KEEL_BALANCE_SQUARES) {
+        rc = keel_error_add(err, KEEL_ERR_INPUT, r->path, 0, 0, "policy.balance",
+                            "balance: squares is not available yet; expected peak");
+        goto out;
+    }
     for (size_t q = 0; q < np; q++)
         for (size_t n = 0; n < nn; n++)
             w->eligible[q * nn + n] = keel_workload_may_take(r, w, q, n);
@@ -431,8 +475,8 @@ keel_status keel_workload_order(const keel_workload *w, size_t *order)
     for (size_t q = 0; q < w->npatients; q++)
         order[q] = q;
     for (size_t q = 0; q < w->npatients; q++)
-        care[q] = w->clocked ? keel_workload_patient_care(w, (size_t)w->patient[q])
-                             : w->care_minutes[q];
+        care[q] =
+            w->clocked ? keel_workload_patient_care(w, (size_t)w->patient[q]) : w->care_minutes[q];
     order_w = w;
     order_care = care;
     qsort(order, w->npatients, sizeof *order, placed_before);

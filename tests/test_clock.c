@@ -83,8 +83,8 @@ static void make(spec *s, char *text, size_t size)
         s->nskill[n] = n == 0 || draw(2);
         clock_text(s, s->nstart[n], a);
         clock_text(s, s->nend[n], b);
-        k += (size_t)snprintf(text + k, size - k, "  - {id: N%d, start: %s, end: %s%s}\n", n + 1,
-                              a, b, s->nskill[n] ? ", skills: [tele]" : "");
+        k += (size_t)snprintf(text + k, size - k, "  - {id: N%d, start: %s, end: %s%s}\n", n + 1, a,
+                              b, s->nskill[n] ? ", skills: [tele]" : "");
     }
     k += (size_t)snprintf(text + k, size - k, "patients:\n");
     for (int p = 0; p < s->np; p++) {

@@ -478,8 +478,8 @@ static void test_roster_suggests_the_nearest_key_only_when_close(void **state)
         "roster.yaml:2:19: nurses[0].nmae: unknown key; did you mean 'name'?",
         "roster.yaml:2:28: nurses[0].Skills: unknown key; did you mean 'skills'?",
         "roster.yaml:2:40: nurses[0].colour: unknown key; expected one of id, name, skills, "
-        "max_patients, minutes, break_minutes, duty_minutes, role, licence, preceptor, start, "
-        "end, breaks, covers",
+        "max_patients, min_patients, minutes, break_minutes, duty_minutes, role, licence, "
+        "preceptor, start, end, breaks, covers",
         "roster.yaml:3:12: patients[0].acuity: missing; every patient needs acuity, "
         "care_minutes or nas",
         "roster.yaml:3:21: patients[0].acuty: unknown key; did you mean 'acuity'?",

@@ -6,6 +6,7 @@
  * rosters.  The enumeration checks the rules by their definitions in
  * docs/model.md ("Hard rules"), written here again without keel's tally.
  */
+#include <limits.h>
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
@@ -22,12 +23,14 @@ static bool keeps_rules(const keel_workload *w, const int *a)
     for (size_t n = 0; n < w->nnurses; n++) {
         int k = 0, high = 0, sides[3] = {0, 0, 0}, tightest = (int)w->npatients;
         int zones = 0;
+        long long care = 0;
         for (size_t p = 0; p < w->npatients; p++) {
             if (a[p] != (int)n)
                 continue;
             if (!keel_workload_eligible(w, p, n))
                 return false;
             k++;
+            care += w->care_minutes[p];
             high += w->high_acuity[p];
             sides[w->side[p]]++;
             if (w->ratio_limit[p] < tightest)
@@ -38,6 +41,8 @@ static bool keeps_rules(const keel_workload *w, const int *a)
             zones += !seen;
         }
         if (k > w->max_patients[n] || k > tightest)
+            return false;
+        if (k < w->min_patients[n] || care > w->max_care[n])
             return false;
         if (w->max_high_acuity != KEEL_ABSENT && high > w->max_high_acuity)
             return false;
@@ -154,8 +159,11 @@ static void derive(tu_case *c)
     }
     w->isolation_rule = sides[KEEL_SIDE_PROTECTIVE] && sides[KEEL_SIDE_INFECTIOUS];
     w->zones_rule = w->max_zones != KEEL_ABSENT && w->nzones > (size_t)w->max_zones;
-    w->joined_rules =
-        ratios || w->max_high_acuity != KEEL_ABSENT || w->isolation_rule || w->zones_rule;
+    w->bounds_rule = false;
+    for (size_t n = 0; n < w->nnurses; n++)
+        w->bounds_rule = w->bounds_rule || w->min_patients[n] > 0 || w->max_care[n] != LLONG_MAX;
+    w->joined_rules = ratios || w->max_high_acuity != KEEL_ABSENT || w->isolation_rule ||
+                      w->zones_rule || w->bounds_rule;
 }
 
 /* ---- Random small rosters with every rule --------------------------------- */
@@ -193,6 +201,18 @@ static tu_case *random_rules_case(uint64_t *seed)
         w->ncontinuity += w->previous[p] >= 0;
         if (tu_range(seed, 0, 5) == 0)
             tu_add_need(c, p, "chemo");
+    }
+    /* Sometimes the fewest patients and a cap on utilisation (as the
+     * workload derives them: none for nurses who take no patients). */
+    bool least = tu_range(seed, 0, 3) == 0, cap = tu_range(seed, 0, 3) == 0;
+    for (size_t n = 0; n < nn; n++) {
+        if (w->max_patients[n] == 0)
+            continue;
+        if (least)
+            w->min_patients[n] = tu_range(seed, 0, w->max_patients[n] < 2 ? w->max_patients[n] : 2);
+        if (cap)
+            w->max_care[n] =
+                (long long)w->capacity_minutes[n] * tu_range(seed, 6, 12) / 10 - w->duty_minutes[n];
     }
     derive(c);
     tu_refresh(c);
@@ -241,7 +261,7 @@ static void test_every_stage_matches_exhaustive_enumeration(void **state)
             assert_true(s->diagnoses.n > 0);
             for (size_t i = 0; i < s->diagnoses.n; i++)
                 assert_non_null(strstr("skill patient_limit law_limit patient_ratio high_acuity "
-                                       "isolation zones lock avoid",
+                                       "isolation zones lock avoid capacity min_patients",
                                        s->diagnoses.items[i].rule));
         } else {
             feasible++;

@@ -268,19 +268,18 @@ static void test_limits_hold_at_every_moment_not_on_the_total(void **state)
 static void test_planned_handoffs_follow_the_nurse_who_leaves(void **state)
 {
     (void)state;
-    static const char *text =
-        "unit: {name: \"Test unit\", type: med-surg}\n"
-        "shift: {start: \"07:00\", minutes: 720}\n"
-        "policy: {max_patients: 2}\n"
-        "nurses:\n"
-        "  - {id: N1, end: \"15:00\"}\n"
-        "  - {id: N2}\n"
-        "  - {id: N3, start: \"11:00\"}\n"
-        "patients:\n"
-        "  - {id: P1, care_minutes: 120, nurse: N1, handoffs: [N3]}\n"
-        "  - {id: P2, care_minutes: 120, nurse: N2}\n"
-        "  - {id: P3, care_minutes: 120, nurse: N2, leaves_at: \"11:00\"}\n"
-        "  - {id: P4, care_minutes: 120, nurse: N2, arrives_at: \"11:00\"}\n";
+    static const char *text = "unit: {name: \"Test unit\", type: med-surg}\n"
+                              "shift: {start: \"07:00\", minutes: 720}\n"
+                              "policy: {max_patients: 2}\n"
+                              "nurses:\n"
+                              "  - {id: N1, end: \"15:00\"}\n"
+                              "  - {id: N2}\n"
+                              "  - {id: N3, start: \"11:00\"}\n"
+                              "patients:\n"
+                              "  - {id: P1, care_minutes: 120, nurse: N1, handoffs: [N3]}\n"
+                              "  - {id: P2, care_minutes: 120, nurse: N2}\n"
+                              "  - {id: P3, care_minutes: 120, nurse: N2, leaves_at: \"11:00\"}\n"
+                              "  - {id: P4, care_minutes: 120, nurse: N2, arrives_at: \"11:00\"}\n";
     loaded l = load(text);
     int plan[8];
     assert_true(keel_plan_from_roster(l.r, l.w, plan));

@@ -9,6 +9,7 @@
 
 #include <stdint.h>
 #include <stdio.h>
+#include <limits.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -94,6 +95,8 @@ static inline tu_case *tu_case_new(size_t nn, size_t np)
     c->w.max_zones = KEEL_ABSENT;
     c->w.room = calloc(np ? np : 1, sizeof(int));
     c->w.previous = calloc(np ? np : 1, sizeof(int));
+    c->w.min_patients = calloc(nn ? nn : 1, sizeof(int));
+    c->w.max_care = calloc(nn ? nn : 1, sizeof(long long));
     c->w.tolerance = KEEL_TOLERANCE_SCALE / 20;
     /* No clock: one part per patient, one moment. */
     c->w.npeople = np;
@@ -125,6 +128,7 @@ static inline tu_case *tu_case_new(size_t nn, size_t np)
         c->w.previous[p] = -1;
     }
     for (size_t n = 0; n < nn; n++) {
+        c->w.max_care[n] = LLONG_MAX;
         c->w.capacity_minutes[n] = 660;
         c->w.max_patients[n] = (int)np;
     }
@@ -196,6 +200,8 @@ static inline void tu_case_free(tu_case *c)
     free(c->w.zone);
     free(c->w.room);
     free(c->w.previous);
+    free(c->w.min_patients);
+    free(c->w.max_care);
     free(c->w.patient);
     free(c->w.first_part);
     free(c->w.part_start);

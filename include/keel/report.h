@@ -49,7 +49,7 @@ typedef struct keel_report {
     const keel_findings *violations; /* check: rules the given plan breaks, or NULL */
     const keel_staffing *staffing;   /* the staffing view, or NULL */
     const keel_explanation *explanation; /* why each patient went where, or NULL */
-    const keel_course *course; /* the course of the shift under nurse_of, or NULL */
+    const keel_course *course;           /* the course of the shift under nurse_of, or NULL */
 } keel_report;
 
 /* Writes the report in the named format to out.  Statuses: KEEL_OK,

@@ -88,12 +88,22 @@ typedef struct keel_break {
 /* Balance tolerance is kept exactly, in millionths of a utilisation point. */
 #define KEEL_TOLERANCE_SCALE 1000000
 
+/* What stage 1 balances (policy.balance). */
+typedef enum keel_balance {
+    KEEL_BALANCE_PEAK,    /* the heaviest utilisation (default) */
+    KEEL_BALANCE_SQUARES, /* the sum of load^2 / capacity over the counted nurses */
+} keel_balance;
+
+/* Name of a balance as written in the roster ("peak", "squares"). */
+const char *keel_balance_name(keel_balance balance);
+
 typedef struct keel_nurse {
     char *id;   /* required, unique */
     char *name; /* NULL when absent */
     size_t nskills;
     char **skills;
     int max_patients;     /* KEEL_ABSENT: policy.max_patients applies */
+    int min_patients;     /* KEEL_ABSENT: policy.min_patients applies */
     int minutes;          /* minutes on the unit; KEEL_ABSENT: shift.minutes */
     int break_minutes;    /* KEEL_ABSENT: shift.break_minutes */
     int duty_minutes;     /* fixed non-patient work; KEEL_ABSENT: the role's, else 0 */
@@ -190,6 +200,9 @@ typedef struct keel_roster {
         char **isolation_needs[KEEL_NISOLATION]; /* competencies each precaution needs */
         int max_zones;                           /* KEEL_ABSENT: no limit */
         int balance_tolerance;                   /* in 1/KEEL_TOLERANCE_SCALE; KEEL_ABSENT: 0.05 */
+        int min_patients;     /* fewest patients per counted nurse; KEEL_ABSENT: 0 */
+        int max_utilisation;  /* hard cap, in 1/KEEL_TOLERANCE_SCALE; KEEL_ABSENT: none */
+        keel_balance balance; /* KEEL_BALANCE_PEAK when absent */
     } policy;
 
     size_t nnurses;

@@ -18,6 +18,11 @@
  *
  *   limit(n)    also counts the per-nurse maximum of policy.ratio_table for
  *               the unit's type (law_limit)
+ *   min(n)      = the nurse's min_patients, else policy.min_patients, else 0
+ *               (0 for nurses who take no patients)
+ *   max_care(n) = floor(max_utilisation * capacity(n)) - duty(n): with
+ *               policy.max_utilisation, the most care a counted nurse may
+ *               carry (rule `capacity`)
  *
  * A pair (p, n) is eligible when n has every competency p needs (its
  * needs, and policy.isolation_needs of its precaution), limit(n) > 0, n is
@@ -78,28 +83,33 @@ typedef struct keel_workload {
     int max_zones; /* KEEL_ABSENT: no limit */
     int *room;     /* [npatients]: room index, or -1 */
     size_t nrooms;
-    int *previous;       /* [npatients]: index of the previous nurse on this roster, or -1 */
-    size_t ncontinuity;  /* patients whose previous nurse is on this roster */
-    long long tolerance; /* balance tolerance in 1/KEEL_TOLERANCE_SCALE */
-    bool joined_rules;   /* any rule that joins patients is on */
-    bool isolation_rule; /* separation is on and both sides have patients */
-    bool zones_rule;     /* max_zones is below the number of zones */
+    int *previous;        /* [npatients]: index of the previous nurse on this roster, or -1 */
+    size_t ncontinuity;   /* patients whose previous nurse is on this roster */
+    long long tolerance;  /* balance tolerance in 1/KEEL_TOLERANCE_SCALE */
+    bool joined_rules;    /* any rule that joins patients is on */
+    bool isolation_rule;  /* separation is on and both sides have patients */
+    bool zones_rule;      /* max_zones is below the number of zones */
+    int *min_patients;    /* [nnurses]: fewest patients a counted nurse takes (0: none) */
+    long long *max_care;  /* [nnurses]: most care minutes under policy.max_utilisation
+                             (LLONG_MAX: no cap) */
+    bool bounds_rule;     /* some nurse has min_patients or a care cap */
+    keel_balance balance; /* what stage 1 balances */
 
     /* The clock.  Arrays over parts are the ones above ([npatients]). */
-    size_t npeople;     /* patients of the roster (expected admissions included) */
-    int *patient;       /* [npatients]: the roster patient a part belongs to */
-    int *first_part;    /* [npeople + 1]: patient p's parts are first_part[p] .. [p+1]-1, in
-                           time order */
-    int *part_start;    /* [npatients]: minutes after the shift's start */
-    int *part_end;      /* [npatients] */
-    int *nurse_start;   /* [nnurses]: when she comes on */
-    int *nurse_end;     /* [nnurses]: when she leaves */
-    size_t nmoments;    /* elementary intervals of the shift (1 without times) */
-    int *moment_start;  /* [nmoments + 1]: moment m is [moment_start[m], moment_start[m+1]) */
-    int *first_moment;  /* [npatients]: part q covers moments first_moment[q] .. last_moment[q]-1 */
-    int *last_moment;   /* [npatients] */
-    int shift_minutes;  /* the shift's length */
-    bool clocked;       /* several moments or parts: counts are per moment, parts keep nurses */
+    size_t npeople;    /* patients of the roster (expected admissions included) */
+    int *patient;      /* [npatients]: the roster patient a part belongs to */
+    int *first_part;   /* [npeople + 1]: patient p's parts are first_part[p] .. [p+1]-1, in
+                          time order */
+    int *part_start;   /* [npatients]: minutes after the shift's start */
+    int *part_end;     /* [npatients] */
+    int *nurse_start;  /* [nnurses]: when she comes on */
+    int *nurse_end;    /* [nnurses]: when she leaves */
+    size_t nmoments;   /* elementary intervals of the shift (1 without times) */
+    int *moment_start; /* [nmoments + 1]: moment m is [moment_start[m], moment_start[m+1]) */
+    int *first_moment; /* [npatients]: part q covers moments first_moment[q] .. last_moment[q]-1 */
+    int *last_moment;  /* [npatients] */
+    int shift_minutes; /* the shift's length */
+    bool clocked;      /* several moments or parts: counts are per moment, parts keep nurses */
 } keel_workload;
 
 /* Which side of the isolation separation a patient is on. */

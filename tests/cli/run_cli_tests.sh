@@ -215,7 +215,7 @@ has "$work/clock-plan.yaml" "expected_admissions:" "expected admissions are writ
 expect 0 "the clocked plan checks clean" -- "$keel" check "$work/clock-plan.yaml"
 has "$work/out" "The plan keeps every rule keel checks." "keel's own clocked plan keeps every rule at every moment"
 # The first six patients (all here at 07:00) moved onto one nurse, whose limit is 5.
-awk '/id: "P-610[1-6]"/ {moving = 1} moving && /nurse:/ {sub(/"E0[0-9]"/, "\"E02\""); moving = 0} 1' "$work/clock-plan.yaml" > "$work/clock-edited.yaml"
+awk '/- id:/ {moving = /id: "P-610[1-6]"/} moving && /nurse:/ {sub(/"E0[0-9]"/, "\"E02\"")} moving && /handoffs:/ {next} 1' "$work/clock-plan.yaml" > "$work/clock-edited.yaml"
 expect 0 "a hand edit of the clocked plan" -- "$keel" check "$work/clock-edited.yaml" --format json
 has "$work/out" '"rule": "moment_limit"' "a limit broken at a moment is named moment_limit"
 expect 3 "too few places after a nurse leaves" -- "$keel" assign "$data/clock-too-few-later.yaml"
