@@ -110,6 +110,15 @@ int keel_report_first_nurse(const keel_report *rep, size_t p)
     return rep->nurse_of ? rep->nurse_of[rep->workload->first_part[p]] : -1;
 }
 
+bool keel_report_holds(const keel_report *rep, size_t p, size_t n)
+{
+    const keel_workload *w = rep->workload;
+    for (int q = w->first_part[p]; rep->nurse_of && q < w->first_part[p + 1]; q++)
+        if (rep->nurse_of[q] == (int)n)
+            return true;
+    return false;
+}
+
 long keel_report_care_held(const keel_report *rep, size_t p, size_t n)
 {
     const keel_workload *w = rep->workload;

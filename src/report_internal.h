@@ -36,6 +36,9 @@ void keel_yaml_write_patient(FILE *out, const keel_roster *r, const keel_patient
  * -1 (no assignment, or none for the patient). */
 int keel_report_first_nurse(const keel_report *rep, size_t p);
 
+/* True when nurse n holds roster patient p at some time. */
+bool keel_report_holds(const keel_report *rep, size_t p, size_t n);
+
 /* Minutes of patient p's care that nurse n carries (the parts she holds). */
 long keel_report_care_held(const keel_report *rep, size_t p, size_t n);
 

@@ -118,16 +118,6 @@ static void write_course(FILE *out, const keel_report *rep)
     fputs("]},\n", out);
 }
 
-/* True when nurse n holds roster patient p at some time. */
-static bool holds(const keel_report *rep, size_t p, size_t n)
-{
-    const keel_workload *w = rep->workload;
-    for (int q = w->first_part[p]; rep->nurse_of && q < w->first_part[p + 1]; q++)
-        if (rep->nurse_of[q] == (int)n)
-            return true;
-    return false;
-}
-
 static void write_nurses(FILE *out, const keel_report *rep)
 {
     const keel_roster *r = rep->roster;
@@ -151,7 +141,7 @@ static void write_nurses(FILE *out, const keel_report *rep)
         fputs(", \"patients\": [", out);
         size_t k = 0;
         for (size_t p = 0; rep->nurse_of && p < r->npatients; p++) {
-            if (!holds(rep, p, n))
+            if (!keel_report_holds(rep, p, n))
                 continue;
             fputs(k++ ? ", " : "", out);
             keel_write_quoted(out, r->patients[p].id);

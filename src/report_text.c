@@ -92,16 +92,6 @@ static void write_patient_line(FILE *out, const keel_report *rep, size_t p, int 
         fprintf(out, "        why: %s\n", rep->explanation->text[p]);
 }
 
-/* True when n holds p at some time. */
-static bool holds(const keel_report *rep, size_t p, size_t n)
-{
-    const keel_workload *w = rep->workload;
-    for (int q = w->first_part[p]; q < w->first_part[p + 1]; q++)
-        if (rep->nurse_of[q] == (int)n)
-            return true;
-    return false;
-}
-
 /* Nurse n's patient count over the shift, as "07:00 4, 11:00 3, 15:00 off". */
 static void write_timeline(FILE *out, const keel_report *rep, size_t n)
 {
@@ -279,7 +269,7 @@ static void write_nurse_blocks(FILE *out, const keel_report *rep)
         if (rep->course && r->clock && m->counted)
             write_timeline(out, rep, n);
         for (size_t p = 0; p < r->npatients; p++)
-            if (holds(rep, p, n))
+            if (keel_report_holds(rep, p, n))
                 write_patient_line(out, rep, p, (int)n);
     }
     fputc('\n', out);

@@ -148,18 +148,24 @@ static bool patient_allows(const keel_patient *p, const keel_nurse *n, bool firs
     return true;
 }
 
-bool keel_workload_may_take_at_all(const keel_roster *r, const keel_workload *w, size_t p, size_t n)
+/* Limit, competencies and the patient's own restrictions (a lock binds
+ * the first part only). */
+static bool allowed(const keel_roster *r, const keel_workload *w, size_t p, size_t n, bool first)
 {
     const keel_patient *pt = &r->patients[p];
     return w->max_patients[n] > 0 && has_every_need(r, &r->nurses[n], pt) &&
-           patient_allows(pt, &r->nurses[n], true);
+           patient_allows(pt, &r->nurses[n], first);
+}
+
+bool keel_workload_may_take_at_all(const keel_roster *r, const keel_workload *w, size_t p, size_t n)
+{
+    return allowed(r, w, p, n, true);
 }
 
 bool keel_workload_may_take(const keel_roster *r, const keel_workload *w, size_t q, size_t n)
 {
-    const keel_patient *p = &r->patients[w->patient[q]];
-    return w->max_patients[n] > 0 && has_every_need(r, &r->nurses[n], p) &&
-           patient_allows(p, &r->nurses[n], w->first_part[w->patient[q]] == (int)q) &&
+    size_t p = (size_t)w->patient[q];
+    return allowed(r, w, p, n, w->first_part[p] == (int)q) &&
            w->nurse_start[n] <= w->part_start[q] && w->nurse_end[n] >= w->part_end[q];
 }
 
