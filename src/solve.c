@@ -262,6 +262,17 @@ keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
     long long deadline = started + limit;
     if (!feasible)
         goto infeasible;
+    /* Stages 3 and 4, when they apply, get the last part of the time. */
+    bool follows = w->ncontinuity > 0 || w->nzones > 0 || w->nrooms > 0;
+    long long balance_deadline = follows ? started + limit * FOLLOW_START_TENTHS / 10 : deadline;
+    bool by_zone = false;
+    if (method->solve == keel_method_ilp && keel_zones_apply(w)) {
+        rc = keel_zones_solve(w, balance_deadline, s, &by_zone, err);
+        if (rc)
+            goto out;
+        if (by_zone)
+            goto balanced;
+    }
 
     /* The greedy placement may get stuck on patient limits even though an
      * assignment exists; then start from the one diagnose found.  With
@@ -305,10 +316,8 @@ keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
         keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }
-    /* Stages 3 and 4, when they apply, get the last part of the time. */
-    bool follows = w->ncontinuity > 0 || w->nzones > 0 || w->nrooms > 0;
-    long long balance_deadline = follows ? started + limit * FOLLOW_START_TENTHS / 10 : deadline;
     rc = method->solve(w, balance_deadline, s, err);
+balanced:
     if (!rc && keel_solve_explain_bound(roster, w, s->stages[0].bound, s))
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
     if (!rc)

@@ -379,23 +379,67 @@ static keel_status stage_lift(search *S, long long deadline_ms, int *best, keel_
     return KEEL_OK;
 }
 
+/* The search state of one workload: allocated here, freed by search_fini(). */
+static keel_status search_init(search *S, const keel_workload *w)
+{
+    size_t nn = w->nnurses;
+    *S = (search){.w = w};
+    S->sums = keel_calloc(nn ? nn : 1, sizeof *S->sums);
+    S->lo = keel_calloc(nn ? nn : 1, sizeof *S->lo);
+    S->hi = keel_calloc(nn ? nn : 1, sizeof *S->hi);
+    S->peak_hi = keel_calloc(nn ? nn : 1, sizeof *S->peak_hi);
+    S->trial = keel_calloc(w->npatients ? w->npatients : 1, sizeof *S->trial);
+    if (!S->sums || !S->lo || !S->hi || !S->peak_hi || !S->trial)
+        return KEEL_ERR_NOMEM;
+    for (size_t p = 0; p < w->npatients; p++)
+        S->care_total += w->care_minutes[p];
+    return KEEL_OK;
+}
+
+static void search_fini(search *S)
+{
+    for (size_t n = 0; S->sums && n < S->w->nnurses; n++)
+        free(S->sums[n].reach);
+    free(S->sums);
+    free(S->lo);
+    free(S->hi);
+    free(S->peak_hi);
+    free(S->trial);
+    free(S->cand);
+}
+
+keel_status keel_exact_lift_under(const keel_workload *w, keel_ratio cap, long long deadline_ms,
+                                  int *nurse_of, keel_stage *st, keel_error *err)
+{
+    search S;
+    keel_status rc = search_init(&S, w);
+    for (size_t n = 0; !rc && n < w->nnurses; n++) {
+        S.peak_hi[n] = -1;
+        if (!keel_workload_counted(w, n))
+            continue;
+        long long smax = cap.num * w->capacity_minutes[n] / cap.den - w->duty_minutes[n];
+        rc = reachable_sums(w, n, smax, &S.sums[n]);
+        if (!rc)
+            S.peak_hi[n] = budget_below(&S, n, cap);
+    }
+    if (rc)
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    else
+        rc = stage_lift(&S, deadline_ms, nurse_of, st, err);
+    st->name = "lift";
+    search_fini(&S);
+    return rc;
+}
+
 keel_status keel_method_ilp(const keel_workload *w, long long deadline_ms, keel_solution *sol,
                             keel_error *err)
 {
-    size_t nn = w->nnurses;
-    keel_status rc = KEEL_OK;
-    search S = {.w = w};
-    S.sums = keel_calloc(nn, sizeof *S.sums);
-    S.lo = keel_calloc(nn, sizeof *S.lo);
-    S.hi = keel_calloc(nn, sizeof *S.hi);
-    S.peak_hi = keel_calloc(nn, sizeof *S.peak_hi);
-    S.trial = keel_calloc(w->npatients, sizeof *S.trial);
-    if (!S.sums || !S.lo || !S.hi || !S.peak_hi || !S.trial) {
+    search S;
+    keel_status rc = search_init(&S, w);
+    if (rc) {
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }
-    for (size_t p = 0; p < w->npatients; p++)
-        S.care_total += w->care_minutes[p];
     sol->nstages = 2;
     sol->stages[0].name = "peak";
     sol->stages[1].name = "lift";
@@ -405,13 +449,6 @@ keel_status keel_method_ilp(const keel_workload *w, long long deadline_ms, keel_
     if (!rc)
         rc = stage_lift(&S, deadline_ms, sol->nurse_of, &sol->stages[1], err);
 out:
-    for (size_t n = 0; S.sums && n < nn; n++)
-        free(S.sums[n].reach);
-    free(S.sums);
-    free(S.lo);
-    free(S.hi);
-    free(S.peak_hi);
-    free(S.trial);
-    free(S.cand);
+    search_fini(&S);
     return rc;
 }

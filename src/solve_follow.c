@@ -115,16 +115,24 @@ static long long keep_ceiling(const keel_workload *w)
 
 /* Distinct values of key[] among the patients (zones or rooms in use):
  * each needs a nurse, a simple lower limit. */
+/* A proven floor on the distinct values of key[] per nurse, summed: every
+ * value in use needs a nurse; and when every patient has a value, every
+ * nurse who must take patients (min_patients) holds one at least. */
 static long long distinct(const keel_workload *w, const int *key, size_t nkeys)
 {
-    long long n = 0;
+    long long n = 0, working = 0;
+    bool everyone = true;
     for (size_t k = 0; k < nkeys; k++) {
         bool used = false;
         for (size_t p = 0; p < w->npatients && !used; p++)
             used = key[p] == (int)k;
         n += used;
     }
-    return n;
+    for (size_t p = 0; p < w->npatients; p++)
+        everyone = everyone && key[p] >= 0;
+    for (size_t m = 0; m < w->nnurses; m++)
+        working += w->min_patients[m] > 0;
+    return everyone && working > n ? working : n;
 }
 
 typedef struct follow {
@@ -244,8 +252,12 @@ keel_status keel_solve_follow(const keel_workload *w, bool exact, long long dead
         long long bound = distinct(w, w->zone, w->nzones), zones, rooms;
         int calls = 0;
         tolerance_windows(w, peak, lift, w->tolerance, F.lo, F.hi);
-        rc = improve(&F, KEEL_GOAL_NEAR, kept_needed, deadline_ms, sol->nurse_of, &bound, &calls,
-                     err);
+        keel_solve_spread(w, sol->nurse_of, &zones, &rooms);
+        /* At the simple floors already: nothing for GLPK to improve. */
+        bool floor = zones == bound && rooms == distinct(w, w->room, w->nrooms);
+        if (!floor)
+            rc = improve(&F, KEEL_GOAL_NEAR, kept_needed, deadline_ms, sol->nurse_of, &bound,
+                         &calls, err);
         if (rc)
             goto out;
         keel_solve_spread(w, sol->nurse_of, &zones, &rooms);

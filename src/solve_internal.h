@@ -157,6 +157,24 @@ keel_status keel_method_greedy(const keel_workload *w, long long deadline_ms, ke
 keel_status keel_method_ilp(const keel_workload *w, long long deadline_ms, keel_solution *sol,
                             keel_error *err); /* solve_exact.c */
 
+/* solve_exact.c: stage 2 alone with every counted nurse at or under the
+ * utilisation peak: raises the
+ * lightest utilisation from nurse_of (which must keep every rule and the
+ * peak) and fills st.  Statuses: KEEL_OK, KEEL_ERR_NOMEM, KEEL_ERR_SOLVER. */
+keel_status keel_exact_lift_under(const keel_workload *w, keel_ratio peak, long long deadline_ms,
+                                  int *nurse_of, keel_stage *st, keel_error *err);
+
+/* solve_zones.c: true when w splits by zone: max_zones 1, every patient in
+ * a zone, no clock, the nurses who take patients interchangeable. */
+bool keel_zones_apply(const keel_workload *w);
+
+/* solve_zones.c: stages 1 and 2 zone by zone (see the file); fills
+ * sol->nurse_of and the two stages and sets *found, or leaves *found false
+ * when no numbers of nurses per zone add up (the usual search then says
+ * why).  Statuses: KEEL_OK, KEEL_ERR_NOMEM, KEEL_ERR_SOLVER. */
+keel_status keel_zones_solve(const keel_workload *w, long long deadline_ms, keel_solution *sol,
+                             bool *found, keel_error *err);
+
 /* diagnose_rules.c: an assignment that keeps every rule, balance aside:
  * greedy, then the dedicated search, then GLPK, until deadline_ms.
  * Statuses: KEEL_OK (see *answer), KEEL_ERR_NOMEM, KEEL_ERR_SOLVER. */

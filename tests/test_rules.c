@@ -319,6 +319,68 @@ static void test_every_stage_matches_exhaustive_enumeration(void **state)
     assert_true(infeasible > 30);
 }
 
+/* Rosters that split by zone (max_zones 1, every patient in a zone, the
+ * nurses alike): keel solves stages 1 and 2 zone by zone, and must reach the
+ * optima of the enumeration over the whole roster. */
+static void test_zone_by_zone_matches_exhaustive_enumeration(void **state)
+{
+    (void)state;
+    /* Source: exhaustive enumeration of every assignment, as above. */
+    uint64_t seed = 20261202;
+    int split = 0;
+    for (int round = 0; round < 400; round++) {
+        size_t nn = (size_t)tu_range(&seed, 2, 4), np = (size_t)tu_range(&seed, 2, 8);
+        tu_case *c = tu_case_new(nn, np);
+        keel_workload *w = &c->w;
+        int limit = tu_range(&seed, 2, 4), least = tu_range(&seed, 0, 1);
+        long long cap = tu_range(&seed, 0, 1) ? LLONG_MAX : 660 * tu_range(&seed, 5, 10) / 10;
+        w->max_zones = 1;
+        w->nzones = (size_t)tu_range(&seed, 2, 3);
+        for (size_t n = 0; n < nn; n++) {
+            w->max_patients[n] = limit;
+            w->min_patients[n] = least;
+            w->max_care[n] = cap;
+        }
+        for (size_t p = 0; p < np; p++) {
+            w->care_minutes[p] = tu_range(&seed, 1, 14) * 30;
+            w->zone[p] = tu_range(&seed, 0, (int)w->nzones - 1);
+            w->ratio_limit[p] = tu_range(&seed, 0, 5) == 0 ? 1 : (int)np;
+        }
+        /* Zones are numbered by the patients who have them, as the workload does. */
+        int seen[3] = {-1, -1, -1}, next = 0;
+        for (size_t p = 0; p < np; p++) {
+            if (seen[w->zone[p]] < 0)
+                seen[w->zone[p]] = next++;
+            w->zone[p] = seen[w->zone[p]];
+        }
+        w->nzones = (size_t)next;
+        derive(c);
+        split += keel_zones_apply(w);
+        best b = {.w = w, .pass = PASS_BALANCE};
+        b.a = calloc(np + 1, sizeof *b.a);
+        b.lo = calloc(nn, sizeof *b.lo);
+        b.hi = calloc(nn, sizeof *b.hi);
+        visit(&b, 0);
+        keel_solution *s = solve(c);
+        if (!b.found) {
+            assert_int_equal(s->status, KEEL_SOLVE_INFEASIBLE);
+        } else {
+            assert_int_not_equal(s->status, KEEL_SOLVE_INFEASIBLE);
+            assert_true(keeps_rules(w, s->nurse_of));
+            assert_int_equal(stage(s, "peak")->status, KEEL_SOLVE_OPTIMAL);
+            assert_int_equal(stage(s, "lift")->status, KEEL_SOLVE_OPTIMAL);
+            assert_true(stage(s, "peak")->value == keel_ratio_value(b.peak));
+            assert_true(stage(s, "lift")->value == keel_ratio_value(b.lift));
+        }
+        keel_solution_free(s);
+        free(b.a);
+        free(b.lo);
+        free(b.hi);
+        tu_case_free(c);
+    }
+    assert_true(split > 200); /* most cases take the zone-by-zone path */
+}
+
 /* The bound explanations, on cases worked by hand (the floors of
  * docs/model.md "What sets the bound"). */
 static void test_the_bound_is_explained_by_its_reason(void **state)
@@ -450,6 +512,7 @@ int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_every_stage_matches_exhaustive_enumeration),
+        cmocka_unit_test(test_zone_by_zone_matches_exhaustive_enumeration),
         cmocka_unit_test(test_the_bound_is_explained_by_its_reason),
         cmocka_unit_test(test_each_joining_rule_is_named_when_it_conflicts),
     };

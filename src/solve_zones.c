@@ -1,0 +1,440 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * solve_zones.c - stages 1 and 2 by zone.  When every nurse works in one
+ * zone (policy.max_zones 1), every patient has a zone and the nurses who
+ * take patients are interchangeable (same capacity, duty, limits, care cap
+ * and eligible patients), a plan is a number of nurses k_z for each zone z
+ * and, in each zone, a plan of that zone alone.  So:
+ *
+ *   P(z, k)     the zone's proven best heaviest utilisation with k nurses
+ *               (the exact method on the zone alone, every rule kept);
+ *   U*          the least t for which numbers k_z with P(z, k_z) <= t add
+ *               up to the nurses (all of them when they take at least one
+ *               patient each, else at most all);
+ *   L(z, k)     the zone's best lightest utilisation with k nurses, every
+ *               one at or under U*;
+ *   L*          the most l for which numbers k_z with P(z, k_z) <= U* and
+ *               L(z, k_z) >= l add up likewise.
+ *
+ * Both are proven when every zone's figures are.  The numbers that add up
+ * are found by a reachability table over the zones (at most nurses + 1
+ * sums per zone).
+ */
+#include <limits.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "alloc.h"
+#include "solve_internal.h"
+
+/* One zone with k nurses: its plan after stage 1 and after stage 2. */
+typedef struct zone_try {
+    bool feasible;
+    bool peak_proven, lift_proven;
+    keel_ratio peak, lift;
+    int *plan; /* [zone patients]: nurse 0..k-1 of the zone */
+} zone_try;
+
+typedef struct zones {
+    const keel_workload *w;
+    size_t nz;
+    size_t *first;   /* [nz + 1]: zone z's patients are members[first[z] .. first[z + 1]) */
+    size_t *members; /* [npatients] */
+    size_t *counted; /* [ncounted]: the nurses who take patients */
+    size_t ncounted;
+    bool all_work;   /* every counted nurse must take a patient (min_patients > 0) */
+    zone_try *tries; /* [nz * (ncounted + 1)]: zone z with k nurses at z * (ncounted + 1) + k */
+    int calls;
+} zones;
+
+/* True when nurses a and b are interchangeable for every patient. */
+static bool alike(const keel_workload *w, size_t a, size_t b)
+{
+    if (w->capacity_minutes[a] != w->capacity_minutes[b] ||
+        w->duty_minutes[a] != w->duty_minutes[b] || w->max_patients[a] != w->max_patients[b] ||
+        w->min_patients[a] != w->min_patients[b] || w->max_care[a] != w->max_care[b])
+        return false;
+    for (size_t p = 0; p < w->npatients; p++)
+        if (keel_workload_eligible(w, p, a) != keel_workload_eligible(w, p, b))
+            return false;
+    return true;
+}
+
+bool keel_zones_apply(const keel_workload *w)
+{
+    if (w->clocked || w->max_zones != 1 || w->nzones < 2)
+        return false;
+    for (size_t p = 0; p < w->npatients; p++)
+        if (w->zone[p] < 0)
+            return false;
+    long first = -1;
+    for (size_t n = 0; n < w->nnurses; n++) {
+        if (!keel_workload_counted(w, n))
+            continue;
+        if (first < 0)
+            first = (long)n;
+        else if (!alike(w, (size_t)first, n))
+            return false;
+    }
+    return first >= 0;
+}
+
+/* The workload of patients members[0..np) of w with k copies of nurse n0. */
+static keel_workload *zone_workload(const keel_workload *w, const size_t *members, size_t np,
+                                    size_t n0, size_t k)
+{
+    keel_workload *z = keel_calloc(1, sizeof *z);
+    if (!z)
+        return NULL;
+    size_t a = np ? np : 1, b = k ? k : 1;
+    z->npatients = z->npeople = np;
+    z->nnurses = k;
+    z->care_minutes = keel_calloc(a, sizeof *z->care_minutes);
+    z->capacity_minutes = keel_calloc(b, sizeof *z->capacity_minutes);
+    z->duty_minutes = keel_calloc(b, sizeof *z->duty_minutes);
+    z->max_patients = keel_calloc(b, sizeof *z->max_patients);
+    z->min_patients = keel_calloc(b, sizeof *z->min_patients);
+    z->max_care = keel_calloc(b, sizeof *z->max_care);
+    z->eligible = keel_calloc(a * b, sizeof *z->eligible);
+    z->ratio_limit = keel_calloc(a, sizeof *z->ratio_limit);
+    z->high_acuity = keel_calloc(a, sizeof *z->high_acuity);
+    z->side = keel_calloc(a, sizeof *z->side);
+    z->zone = keel_calloc(a, sizeof *z->zone);
+    z->room = keel_calloc(a, sizeof *z->room);
+    z->previous = keel_calloc(a, sizeof *z->previous);
+    z->patient = keel_calloc(a, sizeof *z->patient);
+    z->first_part = keel_calloc(np + 1, sizeof *z->first_part);
+    z->part_start = keel_calloc(a, sizeof *z->part_start);
+    z->part_end = keel_calloc(a, sizeof *z->part_end);
+    z->first_moment = keel_calloc(a, sizeof *z->first_moment);
+    z->last_moment = keel_calloc(a, sizeof *z->last_moment);
+    z->nurse_start = keel_calloc(b, sizeof *z->nurse_start);
+    z->nurse_end = keel_calloc(b, sizeof *z->nurse_end);
+    z->moment_start = keel_calloc(2, sizeof *z->moment_start);
+    if (!z->care_minutes || !z->capacity_minutes || !z->duty_minutes || !z->max_patients ||
+        !z->min_patients || !z->max_care || !z->eligible || !z->ratio_limit || !z->high_acuity ||
+        !z->side || !z->zone || !z->room || !z->previous || !z->patient || !z->first_part ||
+        !z->part_start || !z->part_end || !z->first_moment || !z->last_moment || !z->nurse_start ||
+        !z->nurse_end || !z->moment_start) {
+        keel_workload_free(z);
+        return NULL;
+    }
+    z->law_limit = w->law_limit;
+    z->max_high_acuity = w->max_high_acuity;
+    z->max_zones = KEEL_ABSENT;
+    z->tolerance = w->tolerance;
+    z->balance = w->balance;
+    z->shift_minutes = w->shift_minutes;
+    z->nmoments = 1;
+    z->moment_start[1] = w->shift_minutes;
+    bool sides[3] = {false, false, false};
+    for (size_t i = 0; i < np; i++) {
+        size_t p = members[i];
+        z->care_minutes[i] = w->care_minutes[p];
+        z->ratio_limit[i] = w->ratio_limit[p] < (int)np ? w->ratio_limit[p] : (int)np;
+        z->high_acuity[i] = w->high_acuity[p];
+        z->side[i] = w->side[p];
+        z->zone[i] = -1;
+        z->room[i] = -1;
+        z->previous[i] = -1;
+        z->patient[i] = (int)i;
+        z->first_part[i + 1] = (int)i + 1;
+        z->part_end[i] = w->shift_minutes;
+        z->last_moment[i] = 1;
+        z->joined_rules = z->joined_rules || z->ratio_limit[i] < (int)np;
+        sides[z->side[i]] = true;
+        for (size_t n = 0; n < k; n++)
+            z->eligible[i * k + n] = keel_workload_eligible(w, p, n0);
+    }
+    for (size_t n = 0; n < k; n++) {
+        z->capacity_minutes[n] = w->capacity_minutes[n0];
+        z->duty_minutes[n] = w->duty_minutes[n0];
+        z->max_patients[n] = w->max_patients[n0];
+        z->min_patients[n] = w->min_patients[n0];
+        z->max_care[n] = w->max_care[n0];
+        z->nurse_end[n] = w->shift_minutes;
+    }
+    z->isolation_rule = sides[KEEL_SIDE_INFECTIOUS] && sides[KEEL_SIDE_PROTECTIVE];
+    z->bounds_rule = w->bounds_rule;
+    z->joined_rules =
+        z->joined_rules || z->max_high_acuity != KEEL_ABSENT || z->isolation_rule || z->bounds_rule;
+    return z;
+}
+
+static zone_try *try_at(zones *Z, size_t z, size_t k)
+{
+    return &Z->tries[z * (Z->ncounted + 1) + k];
+}
+
+/* Stage 1 of zone z alone with k nurses, within deadline_ms. */
+static keel_status solve_zone(zones *Z, size_t z, size_t k, long long deadline_ms, keel_error *err)
+{
+    const keel_workload *w = Z->w;
+    size_t np = Z->first[z + 1] - Z->first[z];
+    zone_try *t = try_at(Z, z, k);
+    keel_workload *sub = zone_workload(w, Z->members + Z->first[z], np, Z->counted[0], k);
+    t->plan = keel_calloc(np ? np : 1, sizeof *t->plan);
+    if (!sub || !t->plan) {
+        keel_workload_free(sub);
+        return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    }
+    keel_ilp_answer answer;
+    keel_status rc = keel_find_valid(sub, deadline_ms, t->plan, &answer, err);
+    if (!rc && answer == KEEL_ILP_FEASIBLE && keel_greedy_improve(sub, t->plan))
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    if (!rc && answer == KEEL_ILP_FEASIBLE) {
+        keel_solution s = {.npatients = np, .nurse_of = t->plan};
+        rc = keel_method_ilp(sub, deadline_ms, &s, err);
+        t->feasible = true;
+        t->peak = keel_solve_peak(sub, t->plan);
+        t->peak_proven = s.stages[0].status == KEEL_SOLVE_OPTIMAL;
+        Z->calls += s.stages[0].solver_calls + s.stages[1].solver_calls;
+    }
+    t->peak_proven = t->peak_proven || answer == KEEL_ILP_INFEASIBLE;
+    keel_workload_free(sub);
+    return rc;
+}
+
+/* Stage 2 of zone z alone with k nurses, every one at or under peak. */
+static keel_status lift_zone(zones *Z, size_t z, size_t k, keel_ratio peak, long long deadline_ms,
+                             keel_error *err)
+{
+    size_t np = Z->first[z + 1] - Z->first[z];
+    zone_try *t = try_at(Z, z, k);
+    keel_workload *sub = zone_workload(Z->w, Z->members + Z->first[z], np, Z->counted[0], k);
+    if (!sub)
+        return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    keel_stage st = {0};
+    keel_status rc = keel_exact_lift_under(sub, peak, deadline_ms, t->plan, &st, err);
+    t->lift = keel_solve_lift(sub, t->plan);
+    t->lift_proven = st.status == KEEL_SOLVE_OPTIMAL;
+    Z->calls += st.solver_calls;
+    keel_workload_free(sub);
+    return rc;
+}
+
+/* Numbers k_z with a try that passes keep() in every zone, adding up to all
+ * the counted nurses, or, with idle, to at most all (the most that can);
+ * fills pick[nz] and returns true when there are some. */
+static bool add_up(zones *Z, bool (*keep)(const zone_try *, const void *), const void *ctx,
+                   bool idle, size_t *pick)
+{
+    size_t nc = Z->ncounted, nz = Z->nz;
+    /* from[z * (nc + 1) + s]: the k of zone z by which sum s is first reached, or -1 */
+    int *from = keel_malloc((nz ? nz : 1) * (nc + 1) * sizeof *from);
+    bool *reach = keel_calloc(nc + 1, sizeof *reach), *next = keel_calloc(nc + 1, sizeof *next);
+    bool found = false;
+    if (!from || !reach || !next)
+        goto out;
+    reach[0] = true;
+    for (size_t z = 0; z < nz; z++) {
+        memset(next, 0, (nc + 1) * sizeof *next);
+        for (size_t s = 0; s <= nc; s++)
+            from[z * (nc + 1) + s] = -1;
+        for (size_t k = 1; k <= nc; k++) {
+            const zone_try *t = try_at(Z, z, k);
+            if (!t->feasible || !keep(t, ctx))
+                continue;
+            for (size_t s = 0; s + k <= nc; s++) {
+                if (!reach[s] || next[s + k])
+                    continue;
+                next[s + k] = true;
+                from[z * (nc + 1) + s + k] = (int)k;
+            }
+        }
+        memcpy(reach, next, (nc + 1) * sizeof *reach);
+    }
+    size_t total = nc + 1;
+    for (size_t s = nc + 1; s-- > 0 && total > nc;)
+        if (reach[s] && (idle || s == nc))
+            total = s;
+    if (total <= nc) {
+        found = true;
+        for (size_t z = nz; z-- > 0;) {
+            pick[z] = (size_t)from[z * (nc + 1) + total];
+            total -= pick[z];
+        }
+    }
+out:
+    free(from);
+    free(reach);
+    free(next);
+    return found;
+}
+
+static bool peak_within(const zone_try *t, const void *ctx)
+{
+    return keel_ratio_cmp(t->peak, *(const keel_ratio *)ctx) <= 0;
+}
+
+typedef struct lift_bar {
+    keel_ratio peak, lift;
+} lift_bar;
+
+static bool lift_within(const zone_try *t, const void *ctx)
+{
+    const lift_bar *b = ctx;
+    return keel_ratio_cmp(t->peak, b->peak) <= 0 && keel_ratio_cmp(t->lift, b->lift) >= 0;
+}
+
+static int ratio_order(const void *a, const void *b)
+{
+    return keel_ratio_cmp(*(const keel_ratio *)a, *(const keel_ratio *)b);
+}
+
+/* The values v(t) of every feasible try, sorted; *n of them. */
+static keel_ratio *values(zones *Z, bool lift, size_t *n)
+{
+    size_t cap = Z->nz * Z->ncounted + 1, k = 0;
+    keel_ratio *v = keel_malloc(cap * sizeof *v);
+    if (!v)
+        return NULL;
+    for (size_t z = 0; z < Z->nz; z++)
+        for (size_t j = 1; j <= Z->ncounted; j++)
+            if (try_at(Z, z, j)->feasible)
+                v[k++] = lift ? try_at(Z, z, j)->lift : try_at(Z, z, j)->peak;
+    qsort(v, k, sizeof *v, ratio_order);
+    *n = k;
+    return v;
+}
+
+/* The plan of the picked numbers: zone z's nurse j is the counted nurse
+ * after those of the zones before it. */
+static void assemble(const zones *Z, const size_t *pick, int *nurse_of)
+{
+    size_t next = 0;
+    for (size_t p = 0; p < Z->w->npatients; p++)
+        nurse_of[p] = -1;
+    for (size_t z = 0; z < Z->nz; z++) {
+        const zone_try *t = &Z->tries[z * (Z->ncounted + 1) + pick[z]];
+        for (size_t i = Z->first[z]; i < Z->first[z + 1]; i++)
+            nurse_of[Z->members[i]] = (int)Z->counted[next + (size_t)t->plan[i - Z->first[z]]];
+        next += pick[z];
+    }
+}
+
+static void stage_from(keel_stage *st, const char *name, keel_ratio value, bool proven,
+                       keel_ratio bound, int calls, long long started)
+{
+    double v = keel_ratio_value(value), b = keel_ratio_value(proven ? value : bound);
+    *st = (keel_stage){.name = name,
+                       .status = proven ? KEEL_SOLVE_OPTIMAL : KEEL_SOLVE_TIME_LIMIT,
+                       .value = v,
+                       .bound = b,
+                       .gap = proven ? 0.0 : keel_gap(v, b),
+                       .solver_calls = calls,
+                       .seconds = (double)(keel_clock_ms() - started) / 1000.0};
+}
+
+keel_status keel_zones_solve(const keel_workload *w, long long deadline_ms, keel_solution *sol,
+                             bool *found, keel_error *err)
+{
+    zones Z = {.w = w, .nz = w->nzones};
+    keel_status rc = KEEL_OK;
+    long long started = keel_clock_ms();
+    size_t np = w->npatients, nn = w->nnurses;
+    *found = false;
+    Z.first = keel_calloc(Z.nz + 1, sizeof *Z.first);
+    Z.members = keel_calloc(np ? np : 1, sizeof *Z.members);
+    Z.counted = keel_calloc(nn ? nn : 1, sizeof *Z.counted);
+    size_t *pick = keel_calloc(Z.nz ? Z.nz : 1, sizeof *pick);
+    keel_ratio *cand = NULL;
+    if (!Z.first || !Z.members || !Z.counted || !pick) {
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+        goto out;
+    }
+    for (size_t n = 0; n < nn; n++)
+        if (keel_workload_counted(w, n))
+            Z.counted[Z.ncounted++] = n;
+    Z.all_work = w->min_patients[Z.counted[0]] > 0;
+    for (size_t p = 0; p < np; p++)
+        Z.first[w->zone[p] + 1]++;
+    for (size_t z = 0; z < Z.nz; z++)
+        Z.first[z + 1] += Z.first[z];
+    for (size_t p = 0; p < np; p++) /* counting sort: zone z's next free place */
+        Z.members[pick[w->zone[p]]++ + Z.first[w->zone[p]]] = p;
+    memset(pick, 0, Z.nz * sizeof *pick);
+    Z.tries = keel_calloc(Z.nz * (Z.ncounted + 1), sizeof *Z.tries);
+    if (!Z.tries) {
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+        goto out;
+    }
+
+    /* Stage 1: every zone with every number of nurses it could have. */
+    size_t ntries = 0, done = 0;
+    for (size_t z = 0; z < Z.nz; z++)
+        ntries +=
+            Z.first[z + 1] - Z.first[z] < Z.ncounted ? Z.first[z + 1] - Z.first[z] : Z.ncounted;
+    bool proven = true;
+    for (size_t z = 0; z < Z.nz && !rc; z++) {
+        size_t most = Z.first[z + 1] - Z.first[z];
+        for (size_t k = 1; k <= most && k <= Z.ncounted && !rc; k++, done++) {
+            long long now = keel_clock_ms();
+            long long slice = (deadline_ms - now) / (long long)(ntries - done) / 2;
+            rc = solve_zone(&Z, z, k, now + (slice > 0 ? slice : 1), err);
+            proven = proven && try_at(&Z, z, k)->peak_proven;
+        }
+    }
+    size_t ncand = 0, at;
+    cand = rc ? NULL : values(&Z, false, &ncand);
+    if (!rc && !cand)
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    for (at = 0; !rc && at < ncand; at++)
+        if (add_up(&Z, peak_within, &cand[at], !Z.all_work, pick))
+            break;
+    if (rc || at == ncand)
+        goto out; /* no numbers add up: the usual search says why */
+    keel_ratio peak = cand[at];
+    int calls1 = Z.calls;
+    stage_from(&sol->stages[0], "peak", peak, proven, keel_solve_peak_floor(w), calls1, started);
+
+    /* Stage 2: each zone's best lightest with every nurse at or under U*. */
+    long long lift_started = keel_clock_ms();
+    bool lifted = true;
+    for (size_t z = 0; z < Z.nz && !rc; z++) {
+        for (size_t k = 1; k <= Z.ncounted && !rc; k++) {
+            zone_try *t = try_at(&Z, z, k);
+            if (!t->feasible || keel_ratio_cmp(t->peak, peak) > 0) {
+                t->feasible = false; /* no part of a plan at U* */
+                continue;
+            }
+            long long now = keel_clock_ms();
+            rc = lift_zone(&Z, z, k, peak, now + (deadline_ms - now) / 4 + 1, err);
+            lifted = lifted && t->lift_proven;
+        }
+    }
+    free(cand);
+    cand = rc ? NULL : values(&Z, true, &ncand);
+    if (!rc && !cand)
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    lift_bar bar = {peak, {0, 1}};
+    keel_ratio idle_util = {w->duty_minutes[Z.counted[0]], w->capacity_minutes[Z.counted[0]]};
+    bool any = false;
+    for (size_t i = ncand; !rc && i-- > 0;) {
+        bar.lift = cand[i];
+        bool idle = !Z.all_work && keel_ratio_cmp(idle_util, bar.lift) >= 0;
+        if (add_up(&Z, lift_within, &bar, idle, pick)) {
+            any = true;
+            break;
+        }
+    }
+    if (rc || !any)
+        goto out;
+    assemble(&Z, pick, sol->nurse_of);
+    /* Idle nurses (when nobody must work) count in the lightest. */
+    keel_ratio lift = keel_solve_lift(w, sol->nurse_of);
+    stage_from(&sol->stages[1], "lift", lift, lifted, keel_solve_lift_ceiling(w), Z.calls - calls1,
+               lift_started);
+    sol->nstages = 2;
+    *found = true;
+out:
+    for (size_t i = 0; Z.tries && i < Z.nz * (Z.ncounted + 1); i++)
+        free(Z.tries[i].plan);
+    free(Z.tries);
+    free(Z.first);
+    free(Z.members);
+    free(Z.counted);
+    free(pick);
+    free(cand);
+    return rc;
+}
