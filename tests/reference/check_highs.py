@@ -35,12 +35,10 @@ The last line of output is "N passed, M failed"; exit status 1 if M > 0.
 """
 
 import argparse
-import concurrent.futures
 import json
 import os
 import subprocess
 import sys
-import tempfile
 import time
 from fractions import Fraction
 
@@ -52,9 +50,10 @@ requirements.require_modules()
 
 import gen_rosters  # noqa: E402
 import highs_model  # noqa: E402
+import keel_run  # noqa: E402
+from keel_run import PRINT_TOL, fmt6 as fmt, is_num as _num  # noqa: E402
 
 TOL = 1e-6          # agreement between solvers (the contract's 1e-6)
-PRINT_TOL = 1e-9    # a printed utilisation against load / capacity
 
 
 # ---------------------------------------------------------------- keel runs
@@ -97,10 +96,6 @@ def stage_entry(doc, name, index):
     if index < len(stages) and isinstance(stages[index], dict):
         return stages[index]
     return None
-
-
-def _num(v):
-    return isinstance(v, (int, float)) and not isinstance(v, bool)
 
 
 def check_report(r, doc):
@@ -326,11 +321,7 @@ def check_one(job):
         if rc != 0:
             out["problems"].append("keel exit code %r (stderr: %s)"
                                    % (rc, stderr.strip().splitlines()[-1:] or ""))
-        if not isinstance(doc, dict):
-            out["problems"].append("keel printed no JSON object")
-            return out
-        problems, facts = check_report(r, doc)
-        out["problems"] += problems
+        facts = keel_run.report_facts(out, doc, lambda d: check_report(r, d))
         if facts is None:
             return out
         kk.update(status=facts["status"], U=float(facts["U"]), L=float(facts["L"]),
@@ -343,10 +334,6 @@ def check_one(job):
     except Exception as e:  # a broken roster or reference is a failure, not a crash
         out["problems"].append("check crashed: %s: %s" % (type(e).__name__, e))
     return out
-
-
-def fmt(v):
-    return "-" if v is None else "%.6f" % v
 
 
 def line(res):
@@ -369,7 +356,7 @@ def line(res):
 
 def main(argv=None):
     ap = argparse.ArgumentParser(description="Check keel against HiGHS on generated rosters")
-    ap.add_argument("keel", nargs="?", help="the keel executable")
+    keel_run.add_arguments(ap, "no keel: check HiGHS against matching and brute force only")
     ap.add_argument("--count", type=int, default=50, help="unit-size rosters (default 50)")
     ap.add_argument("--small-count", type=int, default=200,
                     help="tiny rosters, --small preset (default 200)")
@@ -378,27 +365,15 @@ def main(argv=None):
                     help="HiGHS time for stage 1 per roster; stage 2 gets half (default 20)")
     ap.add_argument("--keel-seconds", type=float, default=10.0,
                     help="keel --time-limit per roster (default 10)")
-    ap.add_argument("--jobs", type=int, default=min(2, os.cpu_count() or 1),
-                    help="rosters checked at once (default: 2, or 1 on one core)")
     ap.add_argument("--small", action="store_true",
                     help="only the tiny rosters (same as --count 0)")
-    ap.add_argument("--keep", metavar="DIR", help="write the rosters here and keep them")
-    ap.add_argument("--reference-only", action="store_true",
-                    help="no keel: check HiGHS against matching and brute force only")
     args = ap.parse_args(argv)
-    if args.keel is None and not args.reference_only:
-        ap.error("KEEL_EXE is required (or --reference-only)")
-    keel = None if args.reference_only else os.path.abspath(args.keel)
+    keel = keel_run.keel_of(ap, args)
     if args.small:
         args.count = 0
 
     t0 = time.monotonic()
-    tmp = None
-    if args.keep:
-        out_dir = args.keep
-    else:
-        tmp = tempfile.TemporaryDirectory(prefix="keel-ref-")
-        out_dir = tmp.name
+    out_dir, tmp = keel_run.work_dir(args.keep, "keel-ref-")
     unit = gen_rosters.write_rosters(out_dir, args.seed, args.count,
                                      gen_rosters.PRESETS["unit"]["patients"],
                                      gen_rosters.PRESETS["unit"]["nurses"], 0.03, "roster")
@@ -412,11 +387,7 @@ def main(argv=None):
           % (len(unit), len(small), args.seed, out_dir, args.highs_seconds,
              args.highs_seconds / 2, args.keel_seconds, args.jobs), flush=True)
 
-    results = []
-    with concurrent.futures.ProcessPoolExecutor(max_workers=max(1, args.jobs)) as ex:
-        for res in ex.map(check_one, jobs):
-            results.append(res)
-            print(line(res), flush=True)
+    results = keel_run.run_jobs(check_one, jobs, args.jobs, line)
 
     unit_res = [x for x in results if not x["small"] and x["highs"]]
     proved1 = sum(1 for x in unit_res if x["highs"]["s1"] in ("optimal", "infeasible"))
@@ -430,12 +401,7 @@ def main(argv=None):
                 if x["keel"] and x["keel"].get("print_err") is not None]
         if errs:
             print("# largest |printed utilisation - load/capacity|: %.3g" % max(errs))
-    print("# %.0f seconds" % (time.monotonic() - t0))
-    if tmp is not None:
-        tmp.cleanup()
-    failed = sum(1 for x in results if x["problems"])
-    print("%d passed, %d failed" % (len(results) - failed, failed))
-    return 1 if failed else 0
+    return keel_run.finish(results, t0, tmp)
 
 
 if __name__ == "__main__":

@@ -51,12 +51,8 @@ The last line of output is "N passed, M failed"; exit status 1 if M > 0,
 """
 
 import argparse
-import concurrent.futures
-import json
 import os
-import subprocess
 import sys
-import tempfile
 import time
 from fractions import Fraction
 
@@ -68,72 +64,22 @@ requirements.require_modules()
 
 import gen_rosters  # noqa: E402
 import highs_model  # noqa: E402
+import keel_run  # noqa: E402
 from highs_model import RULE_NAMES  # noqa: E402
+from keel_run import EXIT_NAMES, PRINT_TOL, run_keel  # noqa: E402
+from keel_run import is_num, stderr_head  # noqa: E402
 
 TOL = 1e-6          # agreement between solvers on U and L (the contract's 1e-6)
-PRINT_TOL = 1e-9    # a printed utilisation against load / capacity
-EXIT_NAMES = {0: "success", 1: "usage error", 2: "bad input", 3: "no valid assignment",
-              4: "internal or solver failure"}
 
 
 # ---------------------------------------------------------------- keel runs
-
-def run_keel(keel, path, seconds):
-    """Run `keel assign PATH -f json --time-limit S`.
-
-    Returns (exit code or None, parsed JSON or None, stderr, wall seconds).
-    """
-    cmd = [keel, "assign", path, "-f", "json", "--time-limit", "%g" % seconds]
-    t0 = time.monotonic()
-    try:
-        proc = subprocess.run(cmd, capture_output=True, text=True, timeout=seconds * 2 + 10)
-    except subprocess.TimeoutExpired as e:
-        return None, None, "keel did not stop: killed after %ss" % e.timeout, \
-            time.monotonic() - t0
-    except OSError as e:
-        return None, None, "cannot run %s: %s" % (keel, e), time.monotonic() - t0
-    doc = None
-    try:
-        doc = json.loads(proc.stdout)
-    except ValueError:
-        pass
-    return proc.returncode, doc, proc.stderr, time.monotonic() - t0
-
-
-def _stderr_head(stderr, lines=3):
-    got = [x.strip() for x in (stderr or "").splitlines() if x.strip()]
-    text = " | ".join(got[:lines])
-    if len(got) > lines:
-        text += " | ... (%d lines)" % len(got)
-    return text or "(nothing on stderr)"
-
 
 def _exit_text(rc):
     return "%r (%s)" % (rc, EXIT_NAMES.get(rc, "killed or unknown"))
 
 
-def _num(v):
-    return isinstance(v, (int, float)) and not isinstance(v, bool)
-
-
 def _int(v):
     return isinstance(v, int) and not isinstance(v, bool)
-
-
-def _exact(value, r):
-    """keel's printed utilisation as the exact load / capacity fraction.
-
-    Every stage value of U and L is (whole minutes) / capacity(n) with
-    capacity <= 1440; two such fractions differ by more than 4e-7, and keel
-    prints 12 significant digits, so the nearest fraction with a
-    denominator up to the largest capacity is the value.  None if it is
-    not such a fraction.
-    """
-    if not _num(value):
-        return None
-    big = max(n["capacity"] for n in r["nurses"] if n["counted"])
-    f = Fraction(value).limit_denominator(big)
-    return f if abs(float(f) - value) <= PRINT_TOL * max(1.0, abs(value)) else None
 
 
 # -------------------------------------------------------- keel's report
@@ -226,45 +172,17 @@ def check_report(r, doc):
         if n["counted"]:
             utils.append(u)
             got = entry.get("utilisation")
-            if not _num(got) or abs(got - float(u)) > PRINT_TOL:
+            if not is_num(got) or abs(got - float(u)) > PRINT_TOL:
                 problems.append("nurse %s: utilisation %r, load / capacity = %.12f"
                                 % (n["id"], got, float(u)))
     fU, fL = max(utils), min(utils)
-    imb = doc.get("imbalance")
-    if isinstance(imb, dict):
-        for key, want in (("max_utilisation", fU), ("min_utilisation", fL)):
-            if not _num(imb.get(key)) or abs(imb[key] - float(want)) > PRINT_TOL:
-                problems.append("imbalance.%s %r, the assignment gives %.12f"
-                                % (key, imb.get(key), float(want)))
-    else:
-        problems.append("report has no imbalance object")
+    keel_run.check_imbalance(doc, fU, fL, "assignment", problems)
 
     # The stages: names in the spec's order, only those that apply.
-    want_names = ["peak", "lift"] + (["continuity"] if r["stage3"] else []) \
-        + (["proximity"] if r["stage4"] else [])
-    stages = doc.get("stages")
-    if not isinstance(stages, list) or not all(isinstance(s, dict) for s in stages):
-        problems.append("report has no stages list")
+    got = keel_run.read_stages(r, doc, problems, ("optimal", "time_limit", "heuristic"))
+    if got is None:
         return problems, None
-    names = [s.get("name") for s in stages]
-    if names != want_names:
-        problems.append("stages %s, the roster calls for %s" % (names, want_names))
-    st = {s.get("name"): s for s in stages}
-    proven = {k: st.get(k, {}).get("status") == "optimal" for k in want_names}
-    status = doc.get("status")
-    if status == "optimal" and not all(proven.values()):
-        problems.append("status optimal but stages %s are not all proven"
-                        % {k: st.get(k, {}).get("status") for k in want_names})
-    if status not in ("optimal", "time_limit", "heuristic"):
-        problems.append("status %r for a feasible roster" % (status,))
-    if "peak" not in st or "lift" not in st:
-        return problems, None
-    kU = _exact(st["peak"].get("value"), r)
-    kL = _exact(st["lift"].get("value"), r)
-    if kU is None or kL is None:
-        problems.append("stage values peak %r, lift %r are not load / capacity fractions"
-                        % (st["peak"].get("value"), st["lift"].get("value")))
-        return problems, None
+    st, proven, status, kU, kL = got
     tol = r["tol"]
     kept, (Z, R) = highs_model.kept_of(r, assign), highs_model.proximity_of(r, assign)
     if r["stage3"] or r["stage4"]:
@@ -292,7 +210,7 @@ def check_report(r, doc):
             if cont.get("candidates") != r["candidates"]:
                 problems.append("continuity.candidates %r, the roster has %d"
                                 % (cont.get("candidates"), r["candidates"]))
-            if not _num(cont.get("tolerance")) or abs(cont["tolerance"] - float(tol)) > 1e-12:
+            if not is_num(cont.get("tolerance")) or abs(cont["tolerance"] - float(tol)) > 1e-12:
                 problems.append("continuity.tolerance %r, the roster's is %s"
                                 % (cont.get("tolerance"), tol))
             k0 = cont.get("kept_at_zero_tolerance", "absent")
@@ -306,7 +224,7 @@ def check_report(r, doc):
             problems.append("continuity proven at %d, yet the final assignment keeps %d "
                             "in the same windows" % (v, kept))
         b = cst.get("bound")
-        if b is not None and (not _num(b) or b < kept):
+        if b is not None and (not is_num(b) or b < kept):
             problems.append("continuity bound %r below the kept %d keel found" % (b, kept))
     elif cont is not None:
         problems.append("continuity object %r, but no previous_nurse is on the roster"
@@ -323,7 +241,7 @@ def check_report(r, doc):
             problems.append("proximity stage value %r, the assignment gives Z = %d"
                             % (pst.get("value"), Z))
         b = pst.get("bound")
-        if b is not None and (not _num(b) or b > Z):
+        if b is not None and (not is_num(b) or b > Z):
             problems.append("proximity bound %r above the Z %d keel found" % (b, Z))
     elif prox is not None:
         problems.append("proximity object %r, but no patient has a zone or a room" % (prox,))
@@ -408,7 +326,7 @@ def compare(r, k, ref):
                    % (k["U"], U["value"]))
     if U["proven"] and k["proven"]["peak"] and abs(float(k["U"]) - float(U["value"])) > TOL:
         out.append("peak: keel U* %.9f, reference U* %.9f" % (k["U"], U["value"]))
-    if _num(k["peak_bound"]) and k["peak_bound"] > float(U["value"]) + TOL:
+    if is_num(k["peak_bound"]) and k["peak_bound"] > float(U["value"]) + TOL:
         out.append("peak: keel's bound %.9f above the reference's feasible U %.9f"
                    % (k["peak_bound"], U["value"]))
     if k["U"] != U["value"]:
@@ -422,7 +340,7 @@ def compare(r, k, ref):
                    % (k["L"], L["value"]))
     if L["proven"] and k["proven"]["lift"] and abs(float(k["L"]) - float(L["value"])) > TOL:
         out.append("lift: keel L* %.9f, reference L* %.9f" % (k["L"], L["value"]))
-    if _num(k["lift_bound"]) and k["lift_bound"] < float(L["value"]) - TOL:
+    if is_num(k["lift_bound"]) and k["lift_bound"] < float(L["value"]) - TOL:
         out.append("lift: keel's bound %.9f below the reference's feasible L %.9f"
                    % (k["lift_bound"], L["value"]))
     if k["L"] != L["value"]:
@@ -439,7 +357,7 @@ def compare(r, k, ref):
         if C["proven"] and k["proven"]["continuity"] and k["cont_value"] != C["value"]:
             out.append("continuity: keel %r, reference %d (both proven)"
                        % (k["cont_value"], C["value"]))
-        if _num(k["cont_bound"]) and k["cont_bound"] < C["value"]:
+        if is_num(k["cont_bound"]) and k["cont_bound"] < C["value"]:
             out.append("continuity: keel's bound %r below the reference's feasible %d"
                        % (k["cont_bound"], C["value"]))
         k0 = k["k0"]
@@ -466,7 +384,7 @@ def compare(r, k, ref):
                        % (k["Z"], Zr["value"]))
         if Zr["proven"] and k["proven"]["proximity"] and k["Z"] != Zr["value"]:
             out.append("proximity: keel Z* %d, reference Z* %d" % (k["Z"], Zr["value"]))
-        if _num(k["prox_bound"]) and k["prox_bound"] > Zr["value"]:
+        if is_num(k["prox_bound"]) and k["prox_bound"] > Zr["value"]:
             out.append("proximity: keel's bound %r above the reference's feasible Z %d"
                        % (k["prox_bound"], Zr["value"]))
         if Rr is not None and k["Z"] == Zr["value"]:
@@ -493,7 +411,7 @@ def check_infeasible(doc, rc, stderr, kind):
     if rc != 3:
         text = "no assignment keeps the rules, but keel's exit code is %s" % _exit_text(rc)
         if rc == 2:
-            text += "; keel rejected the roster as bad input: " + _stderr_head(stderr)
+            text += "; keel rejected the roster as bad input: " + stderr_head(stderr)
         problems.append(text)
     if rc == 3:
         diag = doc.get("diagnosis") if isinstance(doc, dict) else None
@@ -557,16 +475,12 @@ def check_one(job):
         if rc != 0:
             text = "keel exit code %s on a roster the reference solves" % _exit_text(rc)
             if rc == 2:
-                text += "; keel rejected the roster as bad input: " + _stderr_head(stderr)
+                text += "; keel rejected the roster as bad input: " + stderr_head(stderr)
             else:
-                text += ": " + _stderr_head(stderr)
+                text += ": " + stderr_head(stderr)
             out["problems"].append(text)
             return out
-        if not isinstance(doc, dict):
-            out["problems"].append("keel printed no JSON object")
-            return out
-        problems, facts = check_report(r, doc)
-        out["problems"] += problems
+        facts = keel_run.report_facts(out, doc, lambda d: check_report(r, d))
         if facts is None:
             return out
         kk.update(status=facts["status"], U=facts["U"], L=facts["L"],
@@ -672,9 +586,7 @@ def _fmt(v):
 
 
 def line(res):
-    parts = ["%-16s" % res["name"]]
-    if res["kind"]:
-        parts.append("[infeasible: %s]" % res["kind"])
+    parts = keel_run.line_head(res, 16)
     k, h = res["keel"], res["ref"]
     if k is not None:
         if k.get("U") is not None:
@@ -691,19 +603,14 @@ def line(res):
         else:
             parts.append("ref %s (%.1fs)" % ("infeasible" if h["feasible"] is False
                                             else "undecided", h["seconds"]))
-    parts.append("FAIL" if res["problems"] else "ok")
-    text = "  ".join(parts)
-    for n in res["notes"]:
-        text += "\n    note: " + n
-    for p in res["problems"]:
-        text += "\n    " + p
-    return text
+    return keel_run.line_end(parts, res)
 
 
 def main(argv=None):
     ap = argparse.ArgumentParser(description="Check keel's roster rules and stages "
                                  "against HiGHS and brute force")
-    ap.add_argument("keel", nargs="?", help="the keel executable")
+    keel_run.add_arguments(ap, "no keel: HiGHS three ways against brute force (tiny) and "
+                           "against itself (unit size)")
     ap.add_argument("--count", type=int, default=None,
                     help="unit-size rosters (default 30; 10 with --reference-only)")
     ap.add_argument("--tiny-count", type=int, default=None,
@@ -714,28 +621,15 @@ def main(argv=None):
                     help="keel --time-limit per roster (default 10)")
     ap.add_argument("--highs-seconds", type=float, default=8.0,
                     help="HiGHS seconds per stage on unit-size rosters (default 8)")
-    ap.add_argument("--jobs", type=int, default=min(2, os.cpu_count() or 1),
-                    help="rosters checked at once (default: 2, or 1 on one core)")
-    ap.add_argument("--keep", metavar="DIR", help="write the rosters here and keep them")
-    ap.add_argument("--reference-only", action="store_true",
-                    help="no keel: HiGHS three ways against brute force (tiny) and "
-                         "against itself (unit size)")
     args = ap.parse_args(argv)
-    if args.keel is None and not args.reference_only:
-        ap.error("KEEL_EXE is required (or --reference-only)")
-    keel = None if args.reference_only else os.path.abspath(args.keel)
+    keel = keel_run.keel_of(ap, args)
     if args.count is None:
         args.count = 10 if args.reference_only else 30
     if args.tiny_count is None:
         args.tiny_count = 300 if args.reference_only else 200
 
     t0 = time.monotonic()
-    tmp = None
-    if args.keep:
-        out_dir = args.keep
-    else:
-        tmp = tempfile.TemporaryDirectory(prefix="keel-rules-")
-        out_dir = tmp.name
+    out_dir, tmp = keel_run.work_dir(args.keep, "keel-rules-")
     pre = gen_rosters.RULES_PRESETS
     # Every third unit-size roster is infeasible (30 cover the nine rules
     # once and a third of them again); every fourth tiny one.
@@ -754,11 +648,7 @@ def main(argv=None):
           % (len(unit), len(tiny), args.seed, gen_secs, out_dir, args.highs_seconds,
              args.keel_seconds, args.jobs), flush=True)
     work = reference_one if args.reference_only else check_one
-    results = []
-    with concurrent.futures.ProcessPoolExecutor(max_workers=max(1, args.jobs)) as ex:
-        for res in ex.map(work, jobs):
-            results.append(res)
-            print(line(res), flush=True)
+    results = keel_run.run_jobs(work, jobs, args.jobs, line)
 
     unit_res = [x for x in results if not x["tiny"] and x["ref"] and x["ref"]["feasible"]]
     for key, label in (("U", "peak"), ("L", "lift"), ("kept", "continuity"),
@@ -779,12 +669,7 @@ def main(argv=None):
         if rejected:
             print("# keel rejected %d of %d rosters as bad input (exit 2): does this keel "
                   "know the roster rules?" % (rejected, len(results)))
-    print("# %.0f seconds" % (time.monotonic() - t0))
-    if tmp is not None:
-        tmp.cleanup()
-    failed = sum(1 for x in results if x["problems"])
-    print("%d passed, %d failed" % (len(results) - failed, failed))
-    return 1 if failed else 0
+    return keel_run.finish(results, t0, tmp)
 
 
 if __name__ == "__main__":

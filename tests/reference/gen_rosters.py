@@ -146,13 +146,19 @@ def make_patients(rng, count, scale):
             extras.append("discharge")
         if rng.random() < 0.15:
             extras.append("isolation")
-        if extras:
-            p["extras"] = extras
-        needs = [s for s in SKILLS if rng.random() < need_rate[s]][:2]
-        if needs:
-            p["needs"] = needs
+        extras_and_needs(rng, p, extras, need_rate)
         patients.append(p)
     return patients
+
+
+def extras_and_needs(rng, p, extras, need_rate):
+    """Patient p's extras (when there are any) and up to two needs, each
+    skill of need_rate drawn at its rate, in need_rate's order."""
+    if extras:
+        p["extras"] = extras
+    needs = [s for s in need_rate if rng.random() < need_rate[s]][:2]
+    if needs:
+        p["needs"] = needs
 
 
 def repair(rng, doc):
@@ -239,11 +245,16 @@ def generate(rng, name, patients_range, nurses_range, infeasible_rate=0.0):
 
 
 def q(value):
-    """A YAML scalar: strings double-quoted (JSON quoting is valid YAML)."""
+    """A YAML value in flow style: strings double-quoted (JSON quoting is
+    valid YAML), lists and maps as flow sequences and flow maps."""
     if isinstance(value, bool):
         return "true" if value else "false"
     if isinstance(value, str):
         return json.dumps(value)
+    if isinstance(value, list):
+        return "[" + ", ".join(q(x) for x in value) + "]"
+    if isinstance(value, dict):
+        return "{" + ", ".join("%s: %s" % (k, q(x)) for k, x in value.items()) + "}"
     return str(value)
 
 
@@ -274,14 +285,19 @@ def to_yaml(doc):
         "%d: %d" % (k, v) for k, v in sorted(pol["acuity_minutes"].items())))
     out.append("  extra_minutes: {%s}" % ", ".join(
         "%s: %d" % (k, v) for k, v in pol["extra_minutes"].items()))
-    out.append("nurses:")
-    for n in doc["nurses"]:
-        out.append("  - " + flow_map(n, ["id", "skills", "max_patients", "minutes",
-                                          "break_minutes", "duty_minutes"]))
-    out.append("patients:")
-    for p in doc["patients"]:
-        out.append("  - " + flow_map(p, ["id", "acuity", "care_minutes", "extras", "needs"]))
+    out += people_lines(doc, ["id", "skills", "max_patients", "minutes", "break_minutes",
+                              "duty_minutes"], ["id", "acuity", "care_minutes", "extras", "needs"])
     return "\n".join(out) + "\n"
+
+
+def people_lines(doc, nurse_keys, patient_keys):
+    """The nurses and patients of a roster, one flow map each, keys in the
+    order given."""
+    out = ["nurses:"]
+    out += ["  - " + flow_map(n, nurse_keys) for n in doc["nurses"]]
+    out.append("patients:")
+    out += ["  - " + flow_map(p, patient_keys) for p in doc["patients"]]
+    return out
 
 
 # ------------------------------------------------------------------ rules
@@ -716,10 +732,11 @@ def generate_rules(rng, name, patients_range, nurses_range, kind=None):
     raise RuntimeError("no %s roster made for %s" % (kind or "feasible", name))
 
 
-def to_yaml_rules(doc):
-    """Render a rules roster (flow maps, keys in a fixed order)."""
-    out = ["# Invented test roster (gen_rosters.py --rules); not real patients or staff.",
-           "version: 1"]
+def head_lines(doc, maker):
+    """The first lines of a roster with a unit: the invented-data comment
+    (naming its maker), version, unit, shift, and policy up to
+    extra_minutes (ratio_table, max_patients, acuity_minutes)."""
+    out = ["# Invented test roster (%s); not real patients or staff." % maker, "version: 1"]
     out.append("unit:    " + flow_map(doc["unit"], ["name", "type"]))
     out.append("shift:   " + flow_map(doc["shift"], ["label", "start", "minutes",
                                                       "break_minutes"]))
@@ -730,8 +747,14 @@ def to_yaml_rules(doc):
             out.append("  %s: %s" % (key, q(pol[key])))
     out.append("  acuity_minutes: {%s}" % ", ".join(
         "%d: %d" % (k, v) for k, v in sorted(pol["acuity_minutes"].items())))
-    out.append("  extra_minutes: {%s}" % ", ".join(
-        "%s: %d" % (k, v) for k, v in pol["extra_minutes"].items()))
+    out.append("  extra_minutes: " + q(pol["extra_minutes"]))
+    return out
+
+
+def to_yaml_rules(doc):
+    """Render a rules roster (flow maps, keys in a fixed order)."""
+    out = head_lines(doc, "gen_rosters.py --rules")
+    pol = doc["policy"]
     if pol.get("roles"):
         out.append("  roles:")
         for role, spec in pol["roles"].items():
@@ -743,23 +766,18 @@ def to_yaml_rules(doc):
             out.append("  %s: %s" % (key, q(pol[key])))
     if "isolation_needs" in pol:
         out.append("  isolation_needs: " + flow_map(pol["isolation_needs"]))
-    out.append("nurses:")
-    for n in doc["nurses"]:
-        out.append("  - " + flow_map(n, ["id", "role", "preceptor", "skills", "max_patients",
-                                          "minutes", "break_minutes", "duty_minutes"]))
-    out.append("patients:")
-    for p in doc["patients"]:
-        out.append("  - " + flow_map(p, ["id", "room", "zone", "acuity", "care_minutes",
-                                          "extras", "needs", "ratio", "isolation",
-                                          "previous_nurse", "nurse", "lock", "avoid"]))
+    out += people_lines(doc, ["id", "role", "preceptor", "skills", "max_patients", "minutes",
+                              "break_minutes", "duty_minutes"],
+                        ["id", "room", "zone", "acuity", "care_minutes", "extras", "needs",
+                         "ratio", "isolation", "previous_nurse", "nurse", "lock", "avoid"])
     return "\n".join(out) + "\n"
 
 
-def write_rules_rosters(out_dir, seed, count, patients_range, nurses_range,
-                        infeasible_every=4, prefix="rules"):
-    """Write `count` rules rosters; every infeasible_every-th one is
-    infeasible, the kinds taken in turn.  Returns [(path, kind or None)].
-    Each roster has its own random stream (seed, index), so one roster's
+def write_kinds(out_dir, seed, count, prefix, kinds, infeasible_every, make, render):
+    """Write `count` rosters PREFIX-SEED-K.yaml, doc = make(rng, name,
+    kind), text = render(doc); every infeasible_every-th one is infeasible,
+    the kinds taken in turn.  Returns [(path, kind or None)].  Each roster
+    has its own random stream (prefix, seed, index), so one roster's
     retries do not change the others."""
     os.makedirs(out_dir, exist_ok=True)
     out = []
@@ -767,14 +785,23 @@ def write_rules_rosters(out_dir, seed, count, patients_range, nurses_range,
         rng = random.Random("%s-%d-%d" % (prefix, seed, k))
         kind = None
         if infeasible_every and k % infeasible_every == infeasible_every - 1:
-            kind = INFEASIBLE_KINDS[(k // infeasible_every) % len(INFEASIBLE_KINDS)]
+            kind = kinds[(k // infeasible_every) % len(kinds)]
         name = "%s-%d-%03d" % (prefix, seed, k)
-        doc = generate_rules(rng, name, patients_range, nurses_range, kind)
+        doc = make(rng, name, kind)
         path = os.path.join(out_dir, name + ".yaml")
         with open(path, "w", encoding="utf-8") as f:
-            f.write(to_yaml_rules(doc))
+            f.write(render(doc))
         out.append((path, kind))
     return out
+
+
+def write_rules_rosters(out_dir, seed, count, patients_range, nurses_range,
+                        infeasible_every=4, prefix="rules"):
+    """Write `count` rules rosters (write_kinds, the kinds INFEASIBLE_KINDS)."""
+    return write_kinds(out_dir, seed, count, prefix, INFEASIBLE_KINDS, infeasible_every,
+                       lambda rng, name, kind: generate_rules(rng, name, patients_range,
+                                                              nurses_range, kind),
+                       to_yaml_rules)
 
 
 def write_rosters(out_dir, seed, count, patients_range, nurses_range,

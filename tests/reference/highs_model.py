@@ -56,7 +56,9 @@ MILP model itself, and a bipartite feasibility test used by the generator.
 The second half of the file (from "The roster rules and the later stages")
 models the roster rules (ratio table, patient ratios, high acuity,
 isolation, zones, previous nurse) and stages 1-4, with its own brute force;
-check_rules.py uses it.
+check_rules.py uses it.  check_clock.py builds its clock model on the same
+MILP class and count rows (_Milp.count_rows, count_breaks) and solves its
+stages 1 and 2 with the same descent (run_balance, feasible_model).
 
 Usage: highs_model.py ROSTER.yaml [--time-limit SECONDS] [--model-share F]
                       [--brute-force] [--rules]
@@ -178,17 +180,18 @@ def assignment_feasible(r):
     return all(augment(p, set()) for p in range(len(r["patients"])))
 
 
-def loads_of(r, assign):
-    """Integer loads (minutes) per nurse for assign[p] = nurse index."""
+def loads_of(r, assign, key="patients"):
+    """Integer loads (minutes) per nurse for assign[p] = nurse index of
+    r[key][p] (patients; the clock's parts)."""
     loads = [n["duty"] for n in r["nurses"]]
     for p, j in enumerate(assign):
-        loads[j] += r["patients"][p]["care"]
+        loads[j] += r[key][p]["care"]
     return loads
 
 
-def peak_lift(r, assign):
+def peak_lift(r, assign, key="patients"):
     """Exact (U, L) as Fractions over the counted nurses."""
-    loads = loads_of(r, assign)
+    loads = loads_of(r, assign, key)
     us = [Fraction(loads[j], n["capacity"]) for j, n in enumerate(r["nurses"]) if n["counted"]]
     return max(us), min(us)
 
@@ -634,6 +637,29 @@ def _decimal(value):
     return Fraction(str(value))
 
 
+def ratio_table(policy, unit):
+    """(the table's per-nurse number or None, looser(value, what)): looser
+    raises RosterError for a limit above the table's number.  Checks the
+    unit's and the roles' limits; raises for a table keel does not know."""
+    table = None
+    if policy.get("ratio_table") is not None:
+        if policy["ratio_table"] != "california":
+            raise RosterError("unknown ratio_table %r" % policy["ratio_table"])
+        if unit.get("type") not in CALIFORNIA_TABLE:
+            raise RosterError("ratio_table california needs unit.type in %s, not %r"
+                              % (sorted(CALIFORNIA_TABLE), unit.get("type")))
+        table = CALIFORNIA_TABLE[unit["type"]]
+
+    def looser(value, what):
+        if table is not None and value is not None and value > table:
+            raise RosterError("%s %d is looser than the table's %d" % (what, value, table))
+
+    looser(policy.get("max_patients"), "policy.max_patients")
+    for role, spec in (policy.get("roles") or {}).items():
+        looser((spec or {}).get("max_patients"), "policy.roles.%s.max_patients" % role)
+    return table, looser
+
+
 def derive_rules(doc, relax=()):
     """The numbers of a roster with the new rules.
 
@@ -651,22 +677,7 @@ def derive_rules(doc, relax=()):
     acuity = policy.get("acuity_minutes") or {}
     extra = policy.get("extra_minutes") or {}
     roles = policy.get("roles") or {}
-    table = None
-    if policy.get("ratio_table") is not None:
-        if policy["ratio_table"] != "california":
-            raise RosterError("unknown ratio_table %r" % policy["ratio_table"])
-        if unit.get("type") not in CALIFORNIA_TABLE:
-            raise RosterError("ratio_table california needs unit.type in %s, not %r"
-                              % (sorted(CALIFORNIA_TABLE), unit.get("type")))
-        table = CALIFORNIA_TABLE[unit["type"]]
-
-    def looser(value, what):
-        if table is not None and value is not None and value > table:
-            raise RosterError("%s %d is looser than the table's %d" % (what, value, table))
-
-    looser(policy.get("max_patients"), "policy.max_patients")
-    for role, spec in roles.items():
-        looser((spec or {}).get("max_patients"), "policy.roles.%s.max_patients" % role)
+    table, looser = ratio_table(policy, unit)
 
     nurses = []
     index = {}
@@ -807,34 +818,38 @@ def violations(r, assign):
             out.append((rule, "patient %s with nurse %s" % (r["patients"][p]["id"],
                                                              r["nurses"][j]["id"])))
     for j, n in enumerate(r["nurses"]):
-        ps = mine[j]
-        c = len(ps)
-        if not ps:
-            continue
-        if n["limit"] is not None and c > n["limit"]:
-            out.append((n["limit_rule"], "nurse %s has %d patients, limit %d"
-                        % (n["id"], c, n["limit"])))
-        if r["ratios"]:
-            for p in ps:
-                q = r["patients"][p]["ratio"]
-                if q is not None and c > q:
-                    out.append(("patient_ratio", "nurse %s has %d patients, %s is 1:%d"
-                                % (n["id"], c, r["patients"][p]["id"], q)))
-        if r["high_max"] is not None:
-            h = sum(1 for p in ps if r["patients"][p]["high"])
-            if h > r["high_max"]:
-                out.append(("high_acuity", "nurse %s has %d high-acuity patients, at most %d"
-                            % (n["id"], h, r["high_max"])))
-        if r["separation"]:
-            kinds = {r["patients"][p]["isolation"] for p in ps}
-            if "protective" in kinds and kinds & set(INFECTIOUS):
-                out.append(("isolation", "nurse %s has protective and infectious patients"
-                            % n["id"]))
-        if r["max_zones"] is not None:
-            zones = {r["patients"][p]["zone"] for p in ps} - {None}
-            if len(zones) > r["max_zones"]:
-                out.append(("zones", "nurse %s covers %d zones, at most %d"
-                            % (n["id"], len(zones), r["max_zones"])))
+        if mine[j]:
+            out += [(rule, "nurse %s %s" % (n["id"], text))
+                    for rule, text in count_breaks(r, n, [r["patients"][p] for p in mine[j]])]
+    return out
+
+
+def count_breaks(r, n, held):
+    """The count rules (2-6) nurse n breaks holding the patients `held`
+    together: [(rule, text after the nurse's id)]."""
+    out = []
+    c = len(held)
+    if n["limit"] is not None and c > n["limit"]:
+        out.append((n.get("limit_rule", "patient_limit"),
+                    "has %d patients, limit %d" % (c, n["limit"])))
+    if r.get("ratios", True):
+        for pat in held:
+            if pat["ratio"] is not None and c > pat["ratio"]:
+                out.append(("patient_ratio", "has %d patients, %s is 1:%d"
+                            % (c, pat["id"], pat["ratio"])))
+    if r["high_max"] is not None:
+        h = sum(1 for pat in held if pat["high"])
+        if h > r["high_max"]:
+            out.append(("high_acuity", "has %d high-acuity patients, at most %d"
+                        % (h, r["high_max"])))
+    if r["separation"]:
+        kinds = {pat["isolation"] for pat in held}
+        if "protective" in kinds and kinds & set(INFECTIOUS):
+            out.append(("isolation", "has protective and infectious patients"))
+    if r["max_zones"] is not None:
+        zones = {pat["zone"] for pat in held} - {None}
+        if len(zones) > r["max_zones"]:
+            out.append(("zones", "covers %d zones, at most %d" % (len(zones), r["max_zones"])))
     return out
 
 
@@ -898,9 +913,55 @@ class _Milp:
                         time_limit, PRESOLVE)
         return res, STATUS_NAMES.get(res.status, "error")
 
+    def assignment(self, res):
+        """The rounded assignment of a HiGHS result (nurse index per item of
+        self.r[self.items], given by the columns self.xof[(item, nurse)]),
+        or None."""
+        if res.x is None:
+            return None
+        x = np.asarray(res.x)
+        assign = [None] * len(self.r[self.items])
+        for (p, j), k in self.xof.items():
+            if x[k] > 0.5:
+                if assign[p] is not None:
+                    raise AssertionError("reference incumbent gives a %s two nurses"
+                                         % self.items[:-1])
+                assign[p] = j
+        return assign
+
+    def count_rows(self, ks, held, limit):
+        """Rules 2-5 on columns ks that one nurse may hold together;
+        held[i] is the patient of ks[i] (ratio, high, isolation), self.r
+        the roster (high_max, separation, ratios).  Returns the count cap."""
+        r = self.r
+        cmax = len(ks) if limit is None else min(limit, len(ks))
+        if cmax < len(ks):
+            self.row([(k, 1.0) for k in ks], hi=cmax)                          # rule 2
+        for kp, pat in zip(ks, held):
+            q = pat["ratio"] if r.get("ratios", True) else None
+            if q is not None and q < cmax:
+                # count(j) + (cmax - q) x[p,j] <= cmax                         # rule 3
+                self.row([(k, 1.0) for k in ks if k != kp] + [(kp, 1.0 + cmax - q)], hi=cmax)
+        if r["high_max"] is not None:
+            hk = [k for k, pat in zip(ks, held) if pat["high"]]
+            if len(hk) > r["high_max"]:
+                self.row([(k, 1.0) for k in hk], hi=r["high_max"])            # rule 4
+        if r["separation"]:
+            prot = [k for k, pat in zip(ks, held) if pat["isolation"] == "protective"]
+            inf = [k for k, pat in zip(ks, held) if pat["isolation"] in INFECTIOUS]
+            if prot and inf:
+                y = self.col()                                                 # rule 5
+                for k in prot:
+                    self.row([(k, 1.0), (y, -1.0)], hi=0.0)
+                for k in inf:
+                    self.row([(k, 1.0), (y, 1.0)], hi=1.0)
+        return cmax
+
 
 class RulesModel(_Milp):
     """The hard rules as a MILP; zone / room indicator columns on request."""
+
+    items = "patients"
 
     def __init__(self, r, zone_cols=False, room_cols=False):
         super().__init__()
@@ -919,35 +980,8 @@ class RulesModel(_Milp):
         for p in range(len(r["patients"])):
             self.row([(k, 1.0) for k in by_patient[p]], 1.0, 1.0)          # rule 1
         for j, n in enumerate(r["nurses"]):
-            ks = self.by_nurse[j]
-            cmax = len(ks) if n["limit"] is None else min(n["limit"], len(ks))
-            if cmax < len(ks):
-                self.row([(k, 1.0) for k in ks], hi=cmax)                      # rule 2
-            for p, jj in self.pairs:
-                if jj != j or not r["ratios"]:
-                    continue
-                q = r["patients"][p]["ratio"]
-                if q is not None and q < cmax:
-                    # count(j) + (cmax - q) x[p,j] <= cmax                     # rule 3
-                    kp = self.xof[(p, j)]
-                    self.row([(k, 1.0) for k in ks if k != kp] + [(kp, 1.0 + cmax - q)],
-                             hi=cmax)
-            if r["high_max"] is not None:
-                hk = [self.xof[(p, j)] for p, jj in self.pairs
-                      if jj == j and r["patients"][p]["high"]]
-                if len(hk) > r["high_max"]:
-                    self.row([(k, 1.0) for k in hk], hi=r["high_max"])        # rule 4
-            if r["separation"]:
-                prot = [self.xof[(p, j)] for p, jj in self.pairs
-                        if jj == j and r["patients"][p]["isolation"] == "protective"]
-                inf = [self.xof[(p, j)] for p, jj in self.pairs
-                       if jj == j and r["patients"][p]["isolation"] in INFECTIOUS]
-                if prot and inf:
-                    y = self.col()                                             # rule 5
-                    for k in prot:
-                        self.row([(k, 1.0), (y, -1.0)], hi=0.0)
-                    for k in inf:
-                        self.row([(k, 1.0), (y, 1.0)], hi=1.0)
+            held = [r["patients"][p] for p, jj in self.pairs if jj == j]
+            self.count_rows(self.by_nurse[j], held, n["limit"])
         self.zof = {}
         if zone_cols or r["max_zones"] is not None:
             self.zof = self._indicators("zone")
@@ -988,23 +1022,6 @@ class RulesModel(_Milp):
     def window_rows(self, win):
         self.load_rows({j: w[0] for j, w in win.items()}, {j: w[1] for j, w in win.items()})
 
-    def assignment(self, res):
-        """The rounded assignment of a HiGHS result, or None."""
-        if res.x is None:
-            return None
-        x = np.asarray(res.x)
-        assign = [None] * len(self.r["patients"])
-        for (p, j), k in self.xof.items():
-            if x[k] > 0.5:
-                if assign[p] is not None:
-                    raise AssertionError("reference incumbent gives a patient two nurses")
-                assign[p] = j
-        return assign
-
-
-def _upt(r, assign):
-    """Exact (U, L) over counted nurses."""
-    return peak_lift(r, assign)
 
 
 class _Stage:
@@ -1025,7 +1042,7 @@ class _Stage:
         self.trivial = trivial
 
 
-def _run_stage(r, sg, time_limit, model_share, start):
+def _run_stage(r, sg, time_limit, model_share, start, breaks=None):
     """Textbook objective for model_share of the time, then a descent.
 
     Only HiGHS's "infeasible" verdicts on feasibility problems (no
@@ -1043,7 +1060,10 @@ def _run_stage(r, sg, time_limit, model_share, start):
     Returns (status dict, best assignment or None).  status: optimal /
     time_limit / infeasible / error; value: exact measure; bound; proof:
     descent / model+descent / count (proven by counting) / feasibility.
+    breaks(a): the hard rules a breaks (default violations(r, a)).
     """
+    if breaks is None:
+        breaks = lambda a: violations(r, a)  # noqa: E731
     t0 = time.monotonic()
     deadline = None if time_limit is None else t0 + time_limit
     st = {"status": "time_limit", "value": None, "bound": None, "proof": None, "steps": 0,
@@ -1052,7 +1072,7 @@ def _run_stage(r, sg, time_limit, model_share, start):
 
     def accept(a, need_better):
         nonlocal best
-        bad = violations(r, a) if None not in a else [("assignment", "patient without nurse")]
+        bad = breaks(a) if None not in a else [("assignment", "patient without nurse")]
         if bad:
             raise AssertionError("reference %s incumbent breaks %s" % (sg.name, bad[0]))
         if not sg.holds(a):
@@ -1131,16 +1151,15 @@ def _run_stage(r, sg, time_limit, model_share, start):
     return st, best
 
 
-def _stage_specs(r):
-    """Factories for the stages of roster r (closures over r)."""
+def _balance_stages(r, model, key):
+    """Factories for stages 1 (peak) and 2 (lift) of roster r: model(r) is
+    a fresh model (col, row, counted, care_terms, load_rows, assignment);
+    r[key] the items it assigns, each with its care minutes."""
     n = r["nurses"]
 
     def peak():
-        def build():
-            return RulesModel(r)
-
         def objective(m):
-            total = sum(p["care"] for p in r["patients"])
+            total = sum(p["care"] for p in r[key])
             ceiling = max((n[j]["duty"] + total) / n[j]["capacity"] for j in m.counted) + 1.0
             u = m.col(0.0, ceiling, integer=False)
             for j in m.counted:
@@ -1149,19 +1168,20 @@ def _stage_specs(r):
 
         def better(m, U):
             m.load_rows({}, {j: math.ceil(U * n[j]["capacity"]) - 1 for j in m.counted})
-        return _Stage("peak", build, lambda a: True, lambda a: _upt(r, a)[0], +1, objective,
+        return _Stage("peak", lambda: model(r), lambda a: True,
+                      lambda a: peak_lift(r, a, key)[0], +1, objective,
                       lambda db: db / OBJ_SCALE, better)
 
     def lift(U):
         hi = {j: math.floor(U * n[j]["capacity"]) for j, x in enumerate(n) if x["counted"]}
 
         def build():
-            m = RulesModel(r)
+            m = model(r)
             m.load_rows({}, hi)
             return m
 
         def holds(a):
-            loads = loads_of(r, a)
+            loads = loads_of(r, a, key)
             return all(loads[j] <= h for j, h in hi.items())
 
         def objective(m):
@@ -1173,8 +1193,32 @@ def _stage_specs(r):
 
         def better(m, L):
             m.load_rows({j: math.floor(L * n[j]["capacity"]) + 1 for j in m.counted}, {})
-        return _Stage("lift", build, holds, lambda a: _upt(r, a)[1], -1, objective,
+        return _Stage("lift", build, holds, lambda a: peak_lift(r, a, key)[1], -1, objective,
                       lambda db: -db / OBJ_SCALE, better)
+    return peak, lift
+
+
+def run_balance(r, model, key, time_limit, model_share, breaks=None):
+    """Stages 1 and 2 of roster r (see _balance_stages, _run_stage).
+
+    Returns (feasible: True / False / None (unknown), peak status, lift
+    status or None, the assignment or None).
+    """
+    if any(not e for e in r["eligible"]):
+        return False, {"status": "infeasible", "value": None, "bound": None,
+                       "proof": "no eligible nurse", "seconds": 0.0}, None, None
+    peak, lift = _balance_stages(r, model, key)
+    st, a = _run_stage(r, peak(), time_limit, model_share, None, breaks)
+    if st["status"] == "infeasible":
+        return False, st, None, None
+    if a is None:
+        return None, st, None, None
+    st2, a = _run_stage(r, lift(st["value"]), time_limit, model_share, a, breaks)
+    return True, st, st2, a
+
+
+def _stage_specs(r):
+    """Factories for stages 3 and 4 of roster r (closures over r)."""
 
     def continuity(win):
         def build():
@@ -1229,7 +1273,7 @@ def _stage_specs(r):
                       lambda a: proximity_of(r, a)[1], +1,
                       lambda m: {k: 1.0 for k in m.wof.values()},
                       lambda db: math.ceil(db - 1e-6), better, lambda w: w <= floor_r)
-    return peak, lift, continuity, zones, rooms
+    return continuity, zones, rooms
 
 
 def solve_rules(r, time_limit=None, model_share=0.1, zero_tolerance=True):
@@ -1246,22 +1290,13 @@ def solve_rules(r, time_limit=None, model_share=0.1, zero_tolerance=True):
     out = {"feasible": None, "stages": dict.fromkeys(
         ("peak", "lift", "continuity", "proximity", "rooms", "continuity0")),
         "U": None, "L": None, "assign": None, "proven": False}
-    if any(not e for e in r["eligible"]):
-        out["feasible"] = False
-        out["stages"]["peak"] = {"status": "infeasible", "value": None, "bound": None,
-                                 "proof": "no eligible nurse", "seconds": 0.0}
-        return out
-    peak, lift, continuity, zones, rooms = _stage_specs(r)
-    st, a = _run_stage(r, peak(), time_limit, model_share, None)
+    out["feasible"], st, st2, a = run_balance(r, RulesModel, "patients", time_limit,
+                                              model_share)
     out["stages"]["peak"] = st
-    if st["status"] == "infeasible":
-        out["feasible"] = False
+    if st2 is None:
         return out
-    if a is None:
-        return out
-    out["feasible"] = True
+    continuity, zones, rooms = _stage_specs(r)
     U = st["value"]
-    st2, a = _run_stage(r, lift(U), time_limit, model_share, a)
     out["stages"]["lift"] = st2
     L = st2["value"]
     out["U"], out["L"], out["assign"] = U, L, a
@@ -1293,13 +1328,20 @@ def solve_rules(r, time_limit=None, model_share=0.1, zero_tolerance=True):
 def feasible_rules(r, time_limit=30.0):
     """True / False / None (HiGHS ran out of time): is there any assignment
     that keeps the hard rules?"""
+    return feasible_model(r, RulesModel, lambda a: violations(r, a) if None not in a
+                          else [("assignment", "")], time_limit)
+
+
+def feasible_model(r, model, breaks, time_limit):
+    """True / False / None (HiGHS ran out of time): has model(r), with no
+    objective, a solution?  One found must break nothing (breaks(a) empty)."""
     if any(not e for e in r["eligible"]):
         return False
-    m = RulesModel(r)
+    m = model(r)
     res, status = m.solve({}, time_limit)
     a = m.assignment(res)
     if a is not None:
-        bad = violations(r, a) if None not in a else [("assignment", "")]
+        bad = breaks(a)
         if bad:
             raise AssertionError("reference feasibility incumbent breaks %s" % (bad[0],))
         return True
