@@ -353,7 +353,7 @@ static void test_the_clock_matches_exhaustive_enumeration(void **state)
     int rosters = 2000;
     for (int i = 0; i < rosters; i++)
         check_one();
-    print_message("%d rosters: %d without a valid plan, %d with parts cut at a nurse's end, "
+    print_message("# %d rosters: %d without a valid plan, %d with parts cut at a nurse's end, "
                   "%d with more than one moment\n",
                   rosters, ninfeasible, nhandoffs, nchurn);
     assert_true(ninfeasible > 0 && ninfeasible < rosters / 2);
