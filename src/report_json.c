@@ -5,6 +5,7 @@
  * and indices carry 10 significant digits.
  */
 #include <stdio.h>
+#include <string.h>
 
 #include "keel/keel.h"
 #include "report_internal.h"
@@ -241,7 +242,7 @@ static void write_imbalance(FILE *out, const keel_metrics *m)
 
 static void write_stages(FILE *out, const keel_solution *s)
 {
-    if (s->nstages > 0) {
+    if (s->nstages > 0 && strcmp(s->stages[0].name, "peak") == 0) {
         fprintf(out, "  \"bound\": {\"max_utilisation\": %.12g, \"gap\": %.12g", s->stages[0].bound,
                 s->stages[0].gap);
         if (s->bound_reason.text) {
@@ -348,7 +349,8 @@ keel_status keel_report_json(const keel_report *rep, FILE *out)
         write_findings(out, r, "violations", rep->violations);
     if (rep->kind == KEEL_REPORT_CHECK) {
         write_findings(out, r, "violations", rep->violations);
-        if (s && s->status != KEEL_SOLVE_INFEASIBLE && s->nstages > 0)
+        if (s && s->status != KEEL_SOLVE_INFEASIBLE && s->nstages > 0 &&
+            strcmp(s->stages[0].name, "peak") == 0)
             fprintf(out,
                     "  \"best_possible\": {\"status\": \"%s\", \"max_utilisation\": %.12g, "
                     "\"bound\": %.12g},\n",

@@ -315,23 +315,37 @@ static void write_count_stage(FILE *out, const keel_stage *st, const char *what,
     fputc('\n', out);
 }
 
+/* Stage 1 under policy.balance squares: the sum of load^2 / capacity. */
+static void write_squares_stage(FILE *out, const keel_stage *st)
+{
+    fprintf(out, "  sum of squares %.1f (load squared over capacity, summed)  ", st->value);
+    if (st->status == KEEL_SOLVE_OPTIMAL)
+        fputs("proven best possible", out);
+    else
+        fprintf(out, "not proven: the best possible is at least %.1f (gap %.2f %%)", st->bound,
+                100.0 * st->gap);
+    fputc('\n', out);
+}
+
 static void write_proof(FILE *out, const keel_solution *s, const keel_metrics *m)
 {
     fprintf(out, "Status: %s (method %s, %.2f s)\n", keel_solve_status_name(s->status), s->method,
             s->seconds);
     for (size_t i = 0; i < s->nstages; i++) {
         const keel_stage *st = &s->stages[i];
-        if (i == 0)
+        if (strcmp(st->name, "peak") == 0)
             write_stage(out, st, "heaviest", "the best possible is at least");
-        else if (i == 1)
+        else if (strcmp(st->name, "lift") == 0)
             write_stage(out, st, "lightest", "the best possible is at most");
+        else if (strcmp(st->name, "squares") == 0)
+            write_squares_stage(out, st);
         else if (st->name[0] == 'c')
             write_count_stage(out, st, "continuity", "kept", "the best possible is at most");
         else
             write_count_stage(out, st, "proximity", "zones", "the best possible is at least");
     }
     /* Stages 3 and 4 may have spent some of the balance tolerance. */
-    if (s->nstages > 2 && s->stages[0].value > 0 &&
+    if (s->nstages > 2 && strcmp(s->stages[0].name, "peak") == 0 && s->stages[0].value > 0 &&
         (m->max_utilisation > s->stages[0].value + 5e-10 ||
          m->min_utilisation < s->stages[1].value - 5e-10)) {
         char *line = keel_asprintf(
@@ -467,7 +481,7 @@ keel_status keel_report_text(const keel_report *rep, FILE *out)
             fputs("The plan keeps every rule keel checks.\n\n", out);
         if (s && s->status == KEEL_SOLVE_INFEASIBLE)
             write_findings(out, "No valid assignment exists", &s->diagnoses);
-        else if (s && s->nstages > 0) {
+        else if (s && s->nstages > 0 && strcmp(s->stages[0].name, "peak") == 0) {
             fprintf(
                 out, "Best possible heaviest utilisation: %.1f %% (%s)", 100.0 * s->stages[0].value,
                 s->stages[0].status == KEEL_SOLVE_OPTIMAL ? "proven" : "best found, not proven");

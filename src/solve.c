@@ -92,6 +92,25 @@ static keel_ratio extreme(const keel_workload *w, const int *nurse_of, int sign)
     return best;
 }
 
+double keel_solve_squares(const keel_workload *w, const int *nurse_of)
+{
+    double sum = 0;
+    for (size_t n = 0; n < w->nnurses; n++) {
+        if (!keel_workload_counted(w, n))
+            continue;
+        long long load = w->duty_minutes[n];
+        for (size_t p = 0; nurse_of && p < w->npatients; p++)
+            load += nurse_of[p] == (int)n ? w->care_minutes[p] : 0;
+        sum += (double)load * (double)load / w->capacity_minutes[n];
+    }
+    return sum;
+}
+
+double keel_solve_squares_floor(const keel_workload *w)
+{
+    return keel_solve_squares(w, NULL);
+}
+
 keel_ratio keel_solve_peak(const keel_workload *w, const int *nurse_of)
 {
     return extreme(w, nurse_of, 1);
@@ -318,7 +337,8 @@ keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
     }
     rc = method->solve(w, balance_deadline, s, err);
 balanced:
-    if (!rc && keel_solve_explain_bound(roster, w, s->stages[0].bound, s))
+    if (!rc && w->balance == KEEL_BALANCE_PEAK &&
+        keel_solve_explain_bound(roster, w, s->stages[0].bound, s))
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
     if (!rc)
         rc = keel_solve_follow(w, method->solve == keel_method_ilp, deadline, s, err);
@@ -354,6 +374,16 @@ keel_status keel_method_greedy(const keel_workload *w, long long deadline_ms, ke
 {
     (void)deadline_ms;
     (void)err;
+    if (w->balance == KEEL_BALANCE_SQUARES) {
+        double v = keel_solve_squares(w, sol->nurse_of), b = keel_solve_squares_floor(w);
+        sol->nstages = 1;
+        sol->stages[0] = (keel_stage){.name = "squares",
+                                      .status = v <= b ? KEEL_SOLVE_OPTIMAL : KEEL_SOLVE_HEURISTIC,
+                                      .value = v,
+                                      .bound = b,
+                                      .gap = keel_gap(v, b)};
+        return KEEL_OK;
+    }
     keel_ratio peak = keel_solve_peak(w, sol->nurse_of);
     keel_ratio lift = keel_solve_lift(w, sol->nurse_of);
     keel_ratio floor = keel_solve_peak_floor(w);

@@ -431,9 +431,63 @@ keel_status keel_exact_lift_under(const keel_workload *w, keel_ratio cap, long l
     return rc;
 }
 
+keel_status keel_exact_squares(const keel_workload *w, long long deadline_ms, int *nurse_of,
+                               keel_stage *st, keel_error *err)
+{
+    size_t nn = w->nnurses, np = w->npatients;
+    long long started = keel_clock_ms(), total = 0;
+    long long *lo = keel_calloc(nn ? nn : 1, sizeof *lo),
+              *hi = keel_calloc(nn ? nn : 1, sizeof *hi);
+    int *trial = keel_calloc(np ? np : 1, sizeof *trial);
+    keel_status rc = KEEL_OK;
+    if (!lo || !hi || !trial) {
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+        goto out;
+    }
+    for (size_t p = 0; p < np; p++)
+        total += w->care_minutes[p];
+    for (size_t n = 0; n < nn; n++)
+        hi[n] = total;
+    keel_ilp_question q = {.lo = lo, .hi = hi, .goal = KEEL_GOAL_SQUARES, .start = nurse_of};
+    keel_ilp_result res;
+    rc = keel_ilp_ask(w, &q, (long)(deadline_ms - started), trial, &res, err);
+    if (rc)
+        goto out;
+    double value = keel_solve_squares(w, nurse_of), bound = keel_solve_squares_floor(w);
+    if (res.answer == KEEL_ILP_FEASIBLE) {
+        if (keel_solve_squares(w, trial) < value) {
+            memcpy(nurse_of, trial, np * sizeof *trial);
+            value = keel_solve_squares(w, nurse_of);
+        }
+        if (res.squares_bound > bound)
+            bound = res.squares_bound;
+    }
+    /* GLPK works in floating point: its optimum is taken when it proves one,
+     * the bound never above the value. */
+    bool proven = res.answer == KEEL_ILP_FEASIBLE && res.proven;
+    if (proven || bound > value)
+        bound = value;
+    *st = (keel_stage){.name = "squares",
+                       .status = proven ? KEEL_SOLVE_OPTIMAL : KEEL_SOLVE_TIME_LIMIT,
+                       .value = value,
+                       .bound = bound,
+                       .gap = keel_gap(value, bound),
+                       .solver_calls = 1,
+                       .seconds = (double)(keel_clock_ms() - started) / 1000.0};
+out:
+    free(lo);
+    free(hi);
+    free(trial);
+    return rc;
+}
+
 keel_status keel_method_ilp(const keel_workload *w, long long deadline_ms, keel_solution *sol,
                             keel_error *err)
 {
+    if (w->balance == KEEL_BALANCE_SQUARES) {
+        sol->nstages = 1;
+        return keel_exact_squares(w, deadline_ms, sol->nurse_of, &sol->stages[0], err);
+    }
     search S;
     keel_status rc = search_init(&S, w);
     if (rc) {

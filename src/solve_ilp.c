@@ -73,6 +73,9 @@ typedef struct model {
     double bound; /* best bound GLPK reported, when have_bound */
     bool have_bound;
     bool start_given;
+    int *seg_first;      /* [nnurses]: SQUARES: first column of n's unit segments, or 0 */
+    int *seg_count;      /* [nnurses]: how many */
+    double squares_zero; /* SQUARES: sum of duty^2 / capacity, the objective's constant */
 } model;
 
 static int new_row(glp_prob *lp, int type, double lb, double ub)
@@ -160,7 +163,8 @@ static void group(model *m)
     }
     for (size_t n = 0; n < w->nnurses; n++) {
         m->next_twin[n] = -1;
-        if (!keel_workload_counted(w, n) || m->q->goal != KEEL_GOAL_FIT)
+        if (!keel_workload_counted(w, n) ||
+            (m->q->goal != KEEL_GOAL_FIT && m->q->goal != KEEL_GOAL_SQUARES))
             continue;
         for (size_t k = n + 1; k < w->nnurses; k++) {
             if (keel_workload_counted(w, k) && same_nurses(m, n, k)) {
@@ -301,6 +305,43 @@ static void add_proximity(model *m, glp_prob *lp, size_t n)
         tie(m, lp, n, -1, TRAIT_ROOM, (int)k, big, 1.0);
 }
 
+/* The least squares: care(n) = sum of unit segments s[n, k] in [0, 1], the
+ * k-th costing f(k) - f(k - 1) with f(x) = (duty + x)^2 / capacity.  f is
+ * convex, so the segments fill in order and the cost is f(care) - f(0),
+ * exact at whole minutes. */
+static void add_squares(model *m, glp_prob *lp, size_t n)
+{
+    const keel_workload *w = m->w;
+    size_t nn = w->nnurses;
+    long long most = 0;
+    for (size_t c = 0; c < m->nclasses; c++)
+        if (m->col[c * nn + n])
+            most += (long long)m->class_size[c] * w->care_minutes[m->class_first[c]];
+    if (m->q->hi[n] < most)
+        most = m->q->hi[n];
+    if (w->max_care[n] < most)
+        most = w->max_care[n];
+    double d = w->duty_minutes[n], cap = w->capacity_minutes[n];
+    m->squares_zero += d * d / cap;
+    if (most <= 0)
+        return;
+    int row = new_row(lp, GLP_FX, 0.0, 0.0);
+    for (size_t c = 0; c < m->nclasses; c++)
+        if (m->col[c * nn + n])
+            keel_triplets_put(&m->mat, row, m->col[c * nn + n],
+                              (double)w->care_minutes[m->class_first[c]]);
+    int first = glp_add_cols(lp, (int)most);
+    m->seg_first[n] = first;
+    m->seg_count[n] = (int)most;
+    for (int k = 1; k <= (int)most; k++) {
+        int j = first + k - 1;
+        glp_set_col_kind(lp, j, GLP_CV);
+        glp_set_col_bnds(lp, j, GLP_DB, 0.0, 1.0);
+        glp_set_obj_coef(lp, j, (2.0 * (d + k) - 1.0) / cap);
+        keel_triplets_put(&m->mat, row, j, -1.0);
+    }
+}
+
 /* A part keeps the nurse of the part before it while she is on. */
 static void add_keeping(model *m, glp_prob *lp)
 {
@@ -374,6 +415,9 @@ static void build(model *m, glp_prob *lp)
     }
     if (w->clocked)
         add_keeping(m, lp);
+    for (size_t n = 0; q->goal == KEEL_GOAL_SQUARES && n < nn; n++)
+        if (keel_workload_counted(w, n))
+            add_squares(m, lp, n);
     /* Load order of interchangeable nurses: load(n) - load(next twin) >= 0. */
     for (size_t n = 0; n < nn; n++) {
         if (m->next_twin[n] < 0)
@@ -436,6 +480,14 @@ static void on_event(glp_tree *tree, void *info)
             act[m->mat.ia[k]] += m->mat.ar[k] * x[m->mat.ja[k]];
     for (int j = m->ny + 1; j <= ncols && (size_t)j < m->nlink; j++)
         x[j] = m->link[j] && act[m->link[j]] > 0.5 ? 1.0 : 0.0;
+    /* Unit segments: the first care(n) of nurse n's are full. */
+    for (size_t n = 0; m->seg_first && n < nn; n++) {
+        long long care = 0;
+        for (size_t p = 0; p < w->npatients; p++)
+            care += m->q->start[p] == (int)n ? w->care_minutes[p] : 0;
+        for (int k = 0; k < m->seg_count[n]; k++)
+            x[m->seg_first[n] + k] = k < care ? 1.0 : 0.0;
+    }
     glp_ios_heur_sol(tree, x);
     free(x);
     free(act);
@@ -518,6 +570,7 @@ static int build_and_solve(model *m, long time_limit_ms, int *nurse_of, keel_ilp
         double bound = ret == 0 && status == GLP_OPT ? value : m->bound;
         /* Objectives are whole numbers: round the proven limit inwards. */
         res->bound = keep ? (long long)floor(bound + 1e-6) : (long long)ceil(bound - 1e-6);
+        res->squares_bound = m->squares_zero + bound;
         res->proven = ret == 0 && status == GLP_OPT;
         return 0;
     }
@@ -555,9 +608,15 @@ keel_status keel_ilp_ask(const keel_workload *w, const keel_ilp_question *q, lon
     m.next_twin = keel_calloc(nn ? nn : 1, sizeof *m.next_twin);
     m.col = keel_calloc(np * nn > 0 ? np * nn : 1, sizeof *m.col);
     m.left = keel_calloc(np * nn > 0 ? np * nn : 1, sizeof *m.left);
+    bool squares = q->goal == KEEL_GOAL_SQUARES;
+    if (squares) {
+        m.seg_first = keel_calloc(nn ? nn : 1, sizeof *m.seg_first);
+        m.seg_count = keel_calloc(nn ? nn : 1, sizeof *m.seg_count);
+    }
     keel_status rc = KEEL_OK;
     glp_prob *lp = NULL;
-    if (!m.class_of || !m.class_size || !m.class_first || !m.next_twin || !m.col || !m.left) {
+    if (!m.class_of || !m.class_size || !m.class_first || !m.next_twin || !m.col || !m.left ||
+        (squares && (!m.seg_first || !m.seg_count))) {
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }
@@ -601,6 +660,8 @@ out:
     free(m.next_twin);
     free(m.col);
     free(m.left);
+    free(m.seg_first);
+    free(m.seg_count);
     free(m.link);
     keel_triplets_fini(&m.mat);
     return rc;

@@ -50,6 +50,11 @@ void keel_solve_loads(const keel_workload *w, const int *nurse_of, long long *lo
 keel_ratio keel_solve_peak(const keel_workload *w, const int *nurse_of);
 keel_ratio keel_solve_lift(const keel_workload *w, const int *nurse_of);
 
+/* Sum of load^2 / capacity over the counted nurses under nurse_of, and the
+ * same with no patients placed (every nurse at her duty): a floor. */
+double keel_solve_squares(const keel_workload *w, const int *nurse_of);
+double keel_solve_squares_floor(const keel_workload *w);
+
 /* Proven simple limits: a lower limit on the heaviest utilisation of any
  * valid assignment (each counted nurse's duty, each patient on the nurse
  * that suits it best, the unit's total over the total capacity), and an
@@ -90,9 +95,10 @@ typedef enum keel_ilp_answer {
 
 /* solve_ilp.c: what an integer programme is asked. */
 typedef enum keel_ilp_goal {
-    KEEL_GOAL_FIT,  /* any assignment inside the windows */
-    KEEL_GOAL_KEEP, /* the most patients kept with their previous nurse */
-    KEEL_GOAL_NEAR, /* the fewest zones per nurse in all, then the fewest rooms */
+    KEEL_GOAL_FIT,     /* any assignment inside the windows */
+    KEEL_GOAL_KEEP,    /* the most patients kept with their previous nurse */
+    KEEL_GOAL_NEAR,    /* the fewest zones per nurse in all, then the fewest rooms */
+    KEEL_GOAL_SQUARES, /* the least sum of load^2 / capacity over counted nurses */
 } keel_ilp_goal;
 
 typedef struct keel_ilp_question {
@@ -105,10 +111,11 @@ typedef struct keel_ilp_question {
 
 typedef struct keel_ilp_result {
     keel_ilp_answer answer;
-    long long value; /* KEEP: patients kept; NEAR: zones in all (FEASIBLE only) */
-    long long rooms; /* NEAR: rooms in all */
-    long long bound; /* proven limit on value: upper for KEEP, lower for NEAR */
-    bool proven;     /* GLPK proved the answer optimal for the goal */
+    long long value;      /* KEEP: patients kept; NEAR: zones in all (FEASIBLE only) */
+    long long rooms;      /* NEAR: rooms in all */
+    long long bound;      /* proven limit on value: upper for KEEP, lower for NEAR */
+    bool proven;          /* GLPK proved the answer optimal for the goal */
+    double squares_bound; /* SQUARES: proven lower limit on the sum of load^2 / capacity */
 } keel_ilp_result;
 
 /* solve_ilp.c: solves the question with GLPK within time_limit_ms: every
@@ -174,6 +181,13 @@ bool keel_zones_apply(const keel_workload *w);
  * why).  Statuses: KEEL_OK, KEEL_ERR_NOMEM, KEEL_ERR_SOLVER. */
 keel_status keel_zones_solve(const keel_workload *w, long long deadline_ms, keel_solution *sol,
                              bool *found, keel_error *err);
+
+/* solve_exact.c: stage 1 under policy.balance squares: the least sum of
+ * load^2 / capacity, from nurse_of (a valid assignment), by GLPK within
+ * deadline_ms; fills st ("squares").  Statuses: KEEL_OK, KEEL_ERR_NOMEM,
+ * KEEL_ERR_SOLVER. */
+keel_status keel_exact_squares(const keel_workload *w, long long deadline_ms, int *nurse_of,
+                               keel_stage *st, keel_error *err);
 
 /* diagnose_rules.c: an assignment that keeps every rule, balance aside:
  * greedy, then the dedicated search, then GLPK, until deadline_ms.

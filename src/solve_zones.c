@@ -27,12 +27,16 @@
 #include "alloc.h"
 #include "solve_internal.h"
 
+/* Nodes the dedicated least-squares search may spend on one zone. */
+#define SQUARES_NODE_BUDGET 2000000L
+
 /* One zone with k nurses: its plan after stage 1 and after stage 2. */
 typedef struct zone_try {
     bool feasible;
-    bool peak_proven, lift_proven;
+    bool peak_proven, lift_proven, squares_proven;
     keel_ratio peak, lift;
-    int *plan; /* [zone patients]: nurse 0..k-1 of the zone */
+    double squares; /* under policy.balance squares: the zone's least sum */
+    int *plan;      /* [zone patients]: nurse 0..k-1 of the zone */
 } zone_try;
 
 typedef struct zones {
@@ -161,6 +165,164 @@ static keel_workload *zone_workload(const keel_workload *w, const size_t *member
     return z;
 }
 
+/* ---- The least squares of one zone, by a dedicated search ----------------
+ * For a zone whose only rules are the patient limits and the care cap (no
+ * ratios, high acuity or isolation), with k alike nurses: patients heaviest
+ * first, each to a nurse (nurses in the same state tried once); a node is cut
+ * when its sum of squares plus the least the patients still to come could
+ * add (their care poured over the nurses as water fills, lowest loads
+ * first, which convexity makes a floor) reaches the best found.  Sums of
+ * squares are whole numbers: (duty + load)^2 summed, over the one capacity. */
+typedef struct squares_search {
+    const keel_workload *w;
+    size_t k, np;
+    size_t *order;      /* patients, heaviest first */
+    long long *suffix;  /* [np + 1]: care still to come after position i */
+    long long *load;    /* [k]: duty + care so far */
+    int *count;         /* [k] */
+    int *assign, *best; /* [np] */
+    long long best_sum; /* LLONG_MAX: none yet */
+    long long *scratch; /* [k] */
+    size_t *cands;      /* [np * k]: the nurses tried at each depth */
+    long nodes, budget;
+    bool gave_up;
+} squares_search;
+
+static int cmp_ll(const void *a, const void *b)
+{
+    long long x = *(const long long *)a, y = *(const long long *)b;
+    return (x > y) - (x < y);
+}
+
+/* The least sum of squares after pouring r more minutes over the loads,
+ * continuously (a floor for whole patients), rounded down. */
+static long long poured(squares_search *S, long long r)
+{
+    size_t k = S->k;
+    memcpy(S->scratch, S->load, k * sizeof *S->scratch);
+    qsort(S->scratch, k, sizeof *S->scratch, cmp_ll);
+    /* Raise the lowest j loads to a common level until r is spent. */
+    long long spent = 0;
+    size_t j = 1;
+    while (j < k && spent + (S->scratch[j] - S->scratch[j - 1]) * (long long)j <= r) {
+        spent += (S->scratch[j] - S->scratch[j - 1]) * (long long)j;
+        j++;
+    }
+    double level = (double)S->scratch[j - 1] + (double)(r - spent) / (double)j;
+    double sum = (double)j * level * level;
+    for (size_t i = j; i < k; i++)
+        sum += (double)S->scratch[i] * (double)S->scratch[i];
+    return (long long)(sum - 1e-6 * (sum + 1)); /* never above the true floor */
+}
+
+static void squares_visit(squares_search *S, size_t i, long long sum)
+{
+    const keel_workload *w = S->w;
+    if (S->gave_up || ++S->nodes > S->budget) {
+        S->gave_up = true;
+        return;
+    }
+    if (i == S->np) {
+        for (size_t n = 0; n < S->k; n++)
+            if (S->count[n] < w->min_patients[0])
+                return;
+        if (sum < S->best_sum) {
+            S->best_sum = sum;
+            memcpy(S->best, S->assign, S->np * sizeof *S->best);
+        }
+        return;
+    }
+    if (S->best_sum != LLONG_MAX && poured(S, S->suffix[i]) >= S->best_sum)
+        return;
+    long long short_of = 0;
+    for (size_t n = 0; n < S->k; n++)
+        short_of += S->count[n] < w->min_patients[0] ? w->min_patients[0] - S->count[n] : 0;
+    if (short_of > (long long)(S->np - i))
+        return;
+    size_t p = S->order[i], *cand = S->cands + i * S->k, ncand = 0;
+    long long c = w->care_minutes[p], duty = w->duty_minutes[0];
+    /* Nurses with room, lightest first, one of each state (load, count). */
+    for (size_t m = 0; m < S->k; m++) {
+        if (S->count[m] + 1 > w->max_patients[0] || S->load[m] - duty + c > w->max_care[0] ||
+            !keel_workload_eligible(w, p, m))
+            continue;
+        bool twin = false;
+        for (size_t t = 0; t < ncand && !twin; t++)
+            twin = S->load[cand[t]] == S->load[m] && S->count[cand[t]] == S->count[m];
+        if (twin)
+            continue;
+        size_t at = ncand++;
+        while (at > 0 && S->load[cand[at - 1]] > S->load[m]) {
+            cand[at] = cand[at - 1];
+            at--;
+        }
+        cand[at] = m;
+    }
+    for (size_t t = 0; t < ncand && !S->gave_up; t++) {
+        size_t n = cand[t];
+        long long before = S->load[n];
+        S->load[n] = before + c;
+        S->count[n]++;
+        S->assign[p] = (int)n;
+        squares_visit(S, i + 1, sum - before * before + (before + c) * (before + c));
+        S->load[n] = before;
+        S->count[n]--;
+    }
+}
+
+/* True when the zone's only rules are limits and the cap (see above). */
+static bool plain_zone(const keel_workload *sub)
+{
+    if (sub->max_high_acuity != KEEL_ABSENT || sub->isolation_rule)
+        return false;
+    for (size_t p = 0; p < sub->npatients; p++)
+        if (sub->ratio_limit[p] < (int)sub->npatients)
+            return false;
+    return true;
+}
+
+/* The least sum of squares of a plain zone: fills plan and *proven (the
+ * search ran to the end) and returns true, or false when it found nothing
+ * within its nodes. */
+static bool squares_exact(const keel_workload *sub, long budget, int *plan, bool *proven)
+{
+    size_t np = sub->npatients, k = sub->nnurses;
+    squares_search S = {.w = sub, .k = k, .np = np, .best_sum = LLONG_MAX, .budget = budget};
+    S.order = keel_calloc(np ? np : 1, sizeof *S.order);
+    S.suffix = keel_calloc(np + 1, sizeof *S.suffix);
+    S.load = keel_calloc(k ? k : 1, sizeof *S.load);
+    S.count = keel_calloc(k ? k : 1, sizeof *S.count);
+    S.assign = keel_calloc(np ? np : 1, sizeof *S.assign);
+    S.best = keel_calloc(np ? np : 1, sizeof *S.best);
+    S.scratch = keel_calloc(k ? k : 1, sizeof *S.scratch);
+    S.cands = keel_calloc((np ? np : 1) * (k ? k : 1), sizeof *S.cands);
+    bool found = false;
+    *proven = false;
+    if (S.order && S.suffix && S.load && S.count && S.assign && S.best && S.scratch && S.cands &&
+        k > 0) {
+        if (keel_workload_order(sub, S.order) == KEEL_OK) {
+            for (size_t i = np; i-- > 0;)
+                S.suffix[i] = S.suffix[i + 1] + sub->care_minutes[S.order[i]];
+            for (size_t n = 0; n < k; n++)
+                S.load[n] = sub->duty_minutes[0];
+            squares_visit(&S, 0, (long long)k * sub->duty_minutes[0] * sub->duty_minutes[0]);
+            found = S.best_sum != LLONG_MAX;
+            *proven = !S.gave_up;
+            if (found)
+                memcpy(plan, S.best, np * sizeof *plan);
+        }
+    }
+    free(S.order);
+    free(S.suffix);
+    free(S.load);
+    free(S.count);
+    free(S.assign);
+    free(S.best);
+    free(S.scratch);
+    free(S.cands);
+    return found;
+}
+
 static zone_try *try_at(zones *Z, size_t z, size_t k)
 {
     return &Z->tries[z * (Z->ncounted + 1) + k];
@@ -179,7 +341,22 @@ static keel_status solve_zone(zones *Z, size_t z, size_t k, long long deadline_m
         return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
     }
     keel_ilp_answer answer;
-    keel_status rc = keel_find_valid(sub, deadline_ms, t->plan, &answer, err);
+    keel_status rc = KEEL_OK;
+    bool proven = false;
+    if (w->balance == KEEL_BALANCE_SQUARES && plain_zone(sub) &&
+        squares_exact(sub, SQUARES_NODE_BUDGET, t->plan, &proven)) {
+        t->feasible = true;
+        t->squares = keel_solve_squares(sub, t->plan);
+        t->squares_proven = t->peak_proven = proven;
+        keel_workload_free(sub);
+        return KEEL_OK;
+    }
+    if (proven) { /* the search ran to the end and found nothing: no plan */
+        t->peak_proven = true;
+        keel_workload_free(sub);
+        return KEEL_OK;
+    }
+    rc = keel_find_valid(sub, deadline_ms, t->plan, &answer, err);
     if (!rc && answer == KEEL_ILP_FEASIBLE && keel_greedy_improve(sub, t->plan))
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
     if (!rc && answer == KEEL_ILP_FEASIBLE) {
@@ -188,7 +365,10 @@ static keel_status solve_zone(zones *Z, size_t z, size_t k, long long deadline_m
         t->feasible = true;
         t->peak = keel_solve_peak(sub, t->plan);
         t->peak_proven = s.stages[0].status == KEEL_SOLVE_OPTIMAL;
-        Z->calls += s.stages[0].solver_calls + s.stages[1].solver_calls;
+        t->squares = keel_solve_squares(sub, t->plan);
+        t->squares_proven = t->peak_proven; /* stage 1 of the zone is squares then */
+        for (size_t i = 0; i < s.nstages; i++)
+            Z->calls += s.stages[i].solver_calls;
     }
     t->peak_proven = t->peak_proven || answer == KEEL_ILP_INFEASIBLE;
     keel_workload_free(sub);
@@ -326,6 +506,61 @@ static void stage_from(keel_stage *st, const char *name, keel_ratio value, bool 
                        .seconds = (double)(keel_clock_ms() - started) / 1000.0};
 }
 
+/* Under policy.balance squares: the numbers k_z whose zones' sums add up to
+ * the least, the nurses left idle (when allowed) adding duty^2 / capacity
+ * each; fills pick[] and returns true when any numbers add up. */
+static bool least_squares(zones *Z, size_t *pick)
+{
+    size_t nc = Z->ncounted, nz = Z->nz;
+    const keel_workload *w = Z->w;
+    double idle = (double)w->duty_minutes[Z->counted[0]] * w->duty_minutes[Z->counted[0]] /
+                  w->capacity_minutes[Z->counted[0]];
+    double *best = keel_malloc((nz + 1) * (nc + 1) * sizeof *best);
+    bool found = false;
+    if (!best)
+        return false;
+    /* best[z * (nc + 1) + s]: least sum of zones 0..z-1 with s nurses (-1: none). */
+    for (size_t i = 0; i < (nz + 1) * (nc + 1); i++)
+        best[i] = -1;
+    best[0] = 0;
+    for (size_t z = 0; z < nz; z++)
+        for (size_t s = 0; s <= nc; s++) {
+            double here = best[z * (nc + 1) + s];
+            for (size_t k = 1; here >= 0 && s + k <= nc; k++) {
+                const zone_try *t = try_at(Z, z, k);
+                double *next = &best[(z + 1) * (nc + 1) + s + k];
+                if (t->feasible && (*next < 0 || here + t->squares < *next))
+                    *next = here + t->squares;
+            }
+        }
+    size_t total = 0;
+    double least = -1;
+    for (size_t s = Z->all_work ? nc : 0; s <= nc; s++) {
+        double v = best[nz * (nc + 1) + s];
+        if (v >= 0 && (least < 0 || v + (double)(nc - s) * idle < least)) {
+            least = v + (double)(nc - s) * idle;
+            total = s;
+        }
+    }
+    if (least >= 0) {
+        found = true;
+        for (size_t z = nz; z-- > 0;) {
+            for (size_t k = 1; k <= total; k++) {
+                const zone_try *t = try_at(Z, z, k);
+                double before = best[z * (nc + 1) + total - k];
+                if (t->feasible && before >= 0 &&
+                    before + t->squares == best[(z + 1) * (nc + 1) + total]) {
+                    pick[z] = k;
+                    total -= k;
+                    break;
+                }
+            }
+        }
+    }
+    free(best);
+    return found;
+}
+
 keel_status keel_zones_solve(const keel_workload *w, long long deadline_ms, keel_solution *sol,
                              bool *found, keel_error *err)
 {
@@ -374,6 +609,22 @@ keel_status keel_zones_solve(const keel_workload *w, long long deadline_ms, keel
             rc = solve_zone(&Z, z, k, now + (slice > 0 ? slice : 1), err);
             proven = proven && try_at(&Z, z, k)->peak_proven;
         }
+    }
+    if (!rc && w->balance == KEEL_BALANCE_SQUARES) {
+        if (!least_squares(&Z, pick))
+            goto out;
+        assemble(&Z, pick, sol->nurse_of);
+        double v = keel_solve_squares(w, sol->nurse_of), b = keel_solve_squares_floor(w);
+        sol->stages[0] = (keel_stage){.name = "squares",
+                                      .status = proven ? KEEL_SOLVE_OPTIMAL : KEEL_SOLVE_TIME_LIMIT,
+                                      .value = v,
+                                      .bound = proven ? v : b,
+                                      .gap = proven ? 0.0 : keel_gap(v, b),
+                                      .solver_calls = Z.calls,
+                                      .seconds = (double)(keel_clock_ms() - started) / 1000.0};
+        sol->nstages = 1;
+        *found = true;
+        goto out;
     }
     size_t ncand = 0, at;
     cand = rc ? NULL : values(&Z, false, &ncand);

@@ -433,11 +433,7 @@ keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, kee
         goto out;
     w->joined_rules = w->joined_rules || w->bounds_rule;
     w->balance = r->policy.balance;
-    if (w->balance == KEEL_BALANCE_SQUARES) {
-        rc = keel_error_add(err, KEEL_ERR_INPUT, r->path, 0, 0, "policy.balance",
-                            "balance: squares is not available yet; expected peak");
-        goto out;
-    }
+
     for (size_t q = 0; q < np; q++)
         for (size_t n = 0; n < nn; n++)
             w->eligible[q * nn + n] = keel_workload_may_take(r, w, q, n);

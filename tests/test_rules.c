@@ -7,6 +7,7 @@
  * docs/model.md ("Hard rules"), written here again without keel's tally.
  */
 #include <limits.h>
+#include <math.h>
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
@@ -381,6 +382,81 @@ static void test_zone_by_zone_matches_exhaustive_enumeration(void **state)
     assert_true(split > 200); /* most cases take the zone-by-zone path */
 }
 
+/* The least sum of load^2 / capacity over every valid assignment, by
+ * enumeration: *least stays negative when there is none. */
+static void least_squares(const keel_workload *w, int *a, size_t p, double *least)
+{
+    if (p < w->npatients) {
+        for (size_t n = 0; n < w->nnurses; n++) {
+            a[p] = (int)n;
+            least_squares(w, a, p + 1, least);
+        }
+        return;
+    }
+    if (!keeps_rules(w, a))
+        return;
+    double sum = 0;
+    for (size_t n = 0; n < w->nnurses; n++) {
+        if (!keel_workload_counted(w, n))
+            continue;
+        double load = w->duty_minutes[n];
+        for (size_t q = 0; q < w->npatients; q++)
+            load += a[q] == (int)n ? w->care_minutes[q] : 0;
+        sum += load * load / w->capacity_minutes[n];
+    }
+    if (*least < 0 || sum < *least)
+        *least = sum;
+}
+
+/* policy.balance squares: keel's proven least sum of load^2 / capacity is
+ * the enumeration's, zone by zone (the dedicated search) or whole (GLPK). */
+static void test_squares_match_exhaustive_enumeration(void **state)
+{
+    (void)state;
+    /* Source: exhaustive enumeration of every assignment, as above. */
+    uint64_t seed = 4242;
+    int by_zone = 0, whole = 0;
+    for (int round = 0; round < 300; round++) {
+        size_t nn = (size_t)tu_range(&seed, 2, 3), np = (size_t)tu_range(&seed, 2, 7);
+        tu_case *c = tu_case_new(nn, np);
+        keel_workload *w = &c->w;
+        bool zoned = tu_range(&seed, 0, 1);
+        int limit = tu_range(&seed, 2, 4), least = tu_range(&seed, 0, 1);
+        w->balance = KEEL_BALANCE_SQUARES;
+        w->max_zones = zoned ? 1 : KEEL_ABSENT;
+        w->nzones = zoned ? 2 : 0;
+        for (size_t n = 0; n < nn; n++) {
+            w->max_patients[n] = limit;
+            w->min_patients[n] = least;
+            w->duty_minutes[n] = zoned ? 0 : tu_range(&seed, 0, 2) * 30;
+            w->capacity_minutes[n] = zoned ? 660 : tu_range(&seed, 0, 1) ? 420 : 660;
+        }
+        for (size_t p = 0; p < np; p++) {
+            w->care_minutes[p] = tu_range(&seed, 1, 14) * 30;
+            w->zone[p] = zoned ? (int)(p % 2) : -1;
+        }
+        derive(c);
+        by_zone += keel_zones_apply(w);
+        whole += !zoned;
+        int *a = calloc(np + 1, sizeof *a);
+        double best = -1;
+        least_squares(w, a, 0, &best);
+        keel_solution *s = solve(c);
+        if (best < 0) {
+            assert_int_equal(s->status, KEEL_SOLVE_INFEASIBLE);
+        } else {
+            assert_true(keeps_rules(w, s->nurse_of));
+            assert_string_equal(s->stages[0].name, "squares");
+            assert_int_equal(s->stages[0].status, KEEL_SOLVE_OPTIMAL);
+            assert_true(fabs(s->stages[0].value - best) <= 1e-9 * (1 + best));
+        }
+        keel_solution_free(s);
+        free(a);
+        tu_case_free(c);
+    }
+    assert_true(by_zone > 50 && whole > 50);
+}
+
 /* The bound explanations, on cases worked by hand (the floors of
  * docs/model.md "What sets the bound"). */
 static void test_the_bound_is_explained_by_its_reason(void **state)
@@ -513,6 +589,7 @@ int main(void)
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_every_stage_matches_exhaustive_enumeration),
         cmocka_unit_test(test_zone_by_zone_matches_exhaustive_enumeration),
+        cmocka_unit_test(test_squares_match_exhaustive_enumeration),
         cmocka_unit_test(test_the_bound_is_explained_by_its_reason),
         cmocka_unit_test(test_each_joining_rule_is_named_when_it_conflicts),
     };
