@@ -200,8 +200,9 @@ expect 0 "greedy method" -- "$keel" assign "$examples/medsurg-day.yaml" --method
 has "$work/out" '"method": "greedy"' "the greedy method says so"
 
 # The shift's clock (docs/model.md, "The clock").
+# (a short time limit: the checks below hold for any valid plan, proven or not)
 clock="$examples/medsurg-day-clock.yaml"
-expect 0 "a roster with a clock" -- "$keel" assign "$clock"
+expect 0 "a roster with a clock" -- "$keel" assign "$clock" --time-limit 2
 matches "$work/out" "patients over the shift: 07:00 [0-9], 15:00 off" "a nurse's count over the shift, and when she leaves"
 has "$work/out" "Planned hand-offs (a nurse leaves; not balance moves)" "planned hand-offs are listed apart"
 matches "$work/out" "15:00  E05 leaves: P-61[0-9]+ to E0[0-9]" "who takes whom when a nurse leaves"
@@ -209,14 +210,14 @@ has "$work/out" "Expected admissions, assigned in advance" "expected admissions 
 has "$work/out" "Break cover, in time order" "break cover is shown"
 has "$work/out" "Next unplanned admissions" "the admission order is shown"
 last_line_is_caution "$work/out" "the clock's report ends with the caution"
-expect 0 "a clocked plan as yaml" -- "$keel" assign "$clock" --format yaml -o "$work/clock-plan.yaml"
+expect 0 "a clocked plan as yaml" -- "$keel" assign "$clock" --time-limit 2 --format yaml -o "$work/clock-plan.yaml"
 has "$work/clock-plan.yaml" 'handoffs: ["' "the yaml plan names the planned hand-offs"
 has "$work/clock-plan.yaml" "expected_admissions:" "expected admissions are written back apart"
-expect 0 "the clocked plan checks clean" -- "$keel" check "$work/clock-plan.yaml"
+expect 0 "the clocked plan checks clean" -- "$keel" check "$work/clock-plan.yaml" --time-limit 2
 has "$work/out" "The plan keeps every rule keel checks." "keel's own clocked plan keeps every rule at every moment"
 # The first six patients (all here at 07:00) moved onto one nurse, whose limit is 5.
 awk '/- id:/ {moving = /id: "P-610[1-6]"/} moving && /nurse:/ {sub(/"E0[0-9]"/, "\"E02\"")} moving && /handoffs:/ {next} 1' "$work/clock-plan.yaml" > "$work/clock-edited.yaml"
-expect 0 "a hand edit of the clocked plan" -- "$keel" check "$work/clock-edited.yaml" --format json
+expect 0 "a hand edit of the clocked plan" -- "$keel" check "$work/clock-edited.yaml" --time-limit 2 --format json
 has "$work/out" '"rule": "moment_limit"' "a limit broken at a moment is named moment_limit"
 expect 3 "too few places after a nurse leaves" -- "$keel" assign "$data/clock-too-few-later.yaml"
 has "$work/err" "[moment_limit]" "the diagnosis names the moment limit"
