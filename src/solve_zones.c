@@ -90,36 +90,13 @@ static keel_workload *zone_workload(const keel_workload *w, const size_t *member
     keel_workload *z = keel_calloc(1, sizeof *z);
     if (!z)
         return NULL;
-    size_t a = np ? np : 1, b = k ? k : 1;
     z->npatients = z->npeople = np;
     z->nnurses = k;
-    z->care_minutes = keel_calloc(a, sizeof *z->care_minutes);
-    z->capacity_minutes = keel_calloc(b, sizeof *z->capacity_minutes);
-    z->duty_minutes = keel_calloc(b, sizeof *z->duty_minutes);
-    z->max_patients = keel_calloc(b, sizeof *z->max_patients);
-    z->min_patients = keel_calloc(b, sizeof *z->min_patients);
-    z->max_care = keel_calloc(b, sizeof *z->max_care);
-    z->eligible = keel_calloc(a * b, sizeof *z->eligible);
-    z->ratio_limit = keel_calloc(a, sizeof *z->ratio_limit);
-    z->high_acuity = keel_calloc(a, sizeof *z->high_acuity);
-    z->side = keel_calloc(a, sizeof *z->side);
-    z->zone = keel_calloc(a, sizeof *z->zone);
-    z->room = keel_calloc(a, sizeof *z->room);
-    z->previous = keel_calloc(a, sizeof *z->previous);
-    z->patient = keel_calloc(a, sizeof *z->patient);
-    z->first_part = keel_calloc(np + 1, sizeof *z->first_part);
-    z->part_start = keel_calloc(a, sizeof *z->part_start);
-    z->part_end = keel_calloc(a, sizeof *z->part_end);
-    z->first_moment = keel_calloc(a, sizeof *z->first_moment);
-    z->last_moment = keel_calloc(a, sizeof *z->last_moment);
-    z->nurse_start = keel_calloc(b, sizeof *z->nurse_start);
-    z->nurse_end = keel_calloc(b, sizeof *z->nurse_end);
+    bool ok = keel_workload_alloc(z);
+    z->nurse_start = keel_calloc(k ? k : 1, sizeof *z->nurse_start);
+    z->nurse_end = keel_calloc(k ? k : 1, sizeof *z->nurse_end);
     z->moment_start = keel_calloc(2, sizeof *z->moment_start);
-    if (!z->care_minutes || !z->capacity_minutes || !z->duty_minutes || !z->max_patients ||
-        !z->min_patients || !z->max_care || !z->eligible || !z->ratio_limit || !z->high_acuity ||
-        !z->side || !z->zone || !z->room || !z->previous || !z->patient || !z->first_part ||
-        !z->part_start || !z->part_end || !z->first_moment || !z->last_moment || !z->nurse_start ||
-        !z->nurse_end || !z->moment_start) {
+    if (!ok || !z->nurse_start || !z->nurse_end || !z->moment_start) {
         keel_workload_free(z);
         return NULL;
     }

@@ -360,6 +360,34 @@ static bool bounds(const keel_roster *r, keel_workload *w, size_t n, keel_error 
     return false;
 }
 
+bool keel_workload_alloc(keel_workload *w)
+{
+    size_t np = w->npatients ? w->npatients : 1, nn = w->nnurses ? w->nnurses : 1;
+    w->patient = keel_calloc(np, sizeof *w->patient);
+    w->first_part = keel_calloc(w->npeople + 1, sizeof *w->first_part);
+    w->part_start = keel_calloc(np, sizeof *w->part_start);
+    w->part_end = keel_calloc(np, sizeof *w->part_end);
+    w->first_moment = keel_calloc(np, sizeof *w->first_moment);
+    w->last_moment = keel_calloc(np, sizeof *w->last_moment);
+    w->care_minutes = keel_calloc(np, sizeof *w->care_minutes);
+    w->capacity_minutes = keel_calloc(nn, sizeof *w->capacity_minutes);
+    w->duty_minutes = keel_calloc(nn, sizeof *w->duty_minutes);
+    w->max_patients = keel_calloc(nn, sizeof *w->max_patients);
+    w->eligible = keel_calloc(np * nn, sizeof *w->eligible);
+    w->ratio_limit = keel_calloc(np, sizeof *w->ratio_limit);
+    w->high_acuity = keel_calloc(np, sizeof *w->high_acuity);
+    w->side = keel_calloc(np, sizeof *w->side);
+    w->zone = keel_calloc(np, sizeof *w->zone);
+    w->room = keel_calloc(np, sizeof *w->room);
+    w->previous = keel_calloc(np, sizeof *w->previous);
+    w->min_patients = keel_calloc(nn, sizeof *w->min_patients);
+    w->max_care = keel_calloc(nn, sizeof *w->max_care);
+    return w->min_patients && w->max_care && w->patient && w->first_part && w->part_start &&
+           w->part_end && w->first_moment && w->last_moment && w->care_minutes &&
+           w->capacity_minutes && w->duty_minutes && w->max_patients && w->eligible &&
+           w->ratio_limit && w->high_acuity && w->side && w->zone && w->room && w->previous;
+}
+
 keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, keel_error *err)
 {
     keel_status rc = KEEL_OK;
@@ -377,29 +405,7 @@ keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, kee
         goto out;
     }
     size_t np = w->npatients;
-    w->patient = keel_calloc(np, sizeof *w->patient);
-    w->first_part = keel_calloc(npeople + 1, sizeof *w->first_part);
-    w->part_start = keel_calloc(np, sizeof *w->part_start);
-    w->part_end = keel_calloc(np, sizeof *w->part_end);
-    w->first_moment = keel_calloc(np, sizeof *w->first_moment);
-    w->last_moment = keel_calloc(np, sizeof *w->last_moment);
-    w->care_minutes = keel_calloc(np, sizeof *w->care_minutes);
-    w->capacity_minutes = keel_calloc(nn, sizeof *w->capacity_minutes);
-    w->duty_minutes = keel_calloc(nn, sizeof *w->duty_minutes);
-    w->max_patients = keel_calloc(nn, sizeof *w->max_patients);
-    w->eligible = keel_calloc(np * nn, sizeof *w->eligible);
-    w->ratio_limit = keel_calloc(np, sizeof *w->ratio_limit);
-    w->high_acuity = keel_calloc(np, sizeof *w->high_acuity);
-    w->side = keel_calloc(np, sizeof *w->side);
-    w->zone = keel_calloc(np, sizeof *w->zone);
-    w->room = keel_calloc(np, sizeof *w->room);
-    w->previous = keel_calloc(np, sizeof *w->previous);
-    w->min_patients = keel_calloc(nn ? nn : 1, sizeof *w->min_patients);
-    w->max_care = keel_calloc(nn ? nn : 1, sizeof *w->max_care);
-    if (!w->min_patients || !w->max_care || !w->patient || !w->first_part || !w->part_start ||
-        !w->part_end || !w->first_moment || !w->last_moment || !w->care_minutes ||
-        !w->capacity_minutes || !w->duty_minutes || !w->max_patients || !w->eligible ||
-        !w->ratio_limit || !w->high_acuity || !w->side || !w->zone || !w->room || !w->previous) {
+    if (!keel_workload_alloc(w)) {
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }

@@ -151,6 +151,12 @@ void keel_time_text(const keel_roster *r, int offset, char buf[KEEL_TIME_SIZE]);
 bool keel_workload_may_take_at_all(const keel_roster *r, const keel_workload *w, size_t p,
                                    size_t n);
 
+/* Allocates w's arrays for w->npatients parts, w->nnurses nurses and
+ * w->npeople patients, zeroed (the clock's nurse times and moments aside);
+ * false when memory ran out (keel_workload_free() frees what was
+ * allocated).  For code that builds a workload of its own. */
+bool keel_workload_alloc(keel_workload *w);
+
 /* Frees the workload.  NULL-safe. */
 void keel_workload_free(keel_workload *w);
 
