@@ -582,7 +582,10 @@ keel_status keel_zones_solve(const keel_workload *w, long long deadline_ms, keel
         size_t most = Z.first[z + 1] - Z.first[z];
         for (size_t k = 1; k <= most && k <= Z.ncounted && !rc; k++, done++) {
             long long now = keel_clock_ms();
-            long long slice = (deadline_ms - now) / (long long)(ntries - done) / 2;
+            /* Most zones are proven at once; a hard one may use a fifth of
+             * what is left, so the others still get time. */
+            long long left = (long long)(ntries - done);
+            long long slice = (deadline_ms - now) / (left < 4 ? left + 1 : 5);
             rc = solve_zone(&Z, z, k, now + (slice > 0 ? slice : 1), err);
             proven = proven && try_at(&Z, z, k)->peak_proven;
         }
