@@ -91,13 +91,7 @@ static int heavier_first(const void *a, const void *b)
 static bool same_for_question(const fit *F, size_t a, size_t b)
 {
     const keel_workload *w = F->w;
-    if (w->max_patients[a] != w->max_patients[b] || F->lo[a] != F->lo[b] || F->hi[a] != F->hi[b] ||
-        w->min_patients[a] != w->min_patients[b] || w->max_care[a] != w->max_care[b])
-        return false;
-    for (size_t p = 0; p < w->npatients; p++)
-        if (keel_workload_eligible(w, p, a) != keel_workload_eligible(w, p, b))
-            return false;
-    return true;
+    return F->lo[a] == F->lo[b] && F->hi[a] == F->hi[b] && keel_workload_same_rules(w, a, b);
 }
 
 /* True when the rules that join patients see nurses a and b alike: the

@@ -133,15 +133,9 @@ static bool same_nurses(const model *m, size_t a, size_t b)
 {
     const keel_workload *w = m->w;
     const long long *lo = m->q->lo, *hi = m->q->hi;
-    if (w->capacity_minutes[a] != w->capacity_minutes[b] ||
-        w->duty_minutes[a] != w->duty_minutes[b] || w->max_patients[a] != w->max_patients[b] ||
-        w->min_patients[a] != w->min_patients[b] || w->max_care[a] != w->max_care[b] ||
-        lo[a] != lo[b] || hi[a] != hi[b])
-        return false;
-    for (size_t p = 0; p < w->npatients; p++)
-        if (keel_workload_eligible(w, p, a) != keel_workload_eligible(w, p, b))
-            return false;
-    return true;
+    return w->capacity_minutes[a] == w->capacity_minutes[b] &&
+           w->duty_minutes[a] == w->duty_minutes[b] && lo[a] == lo[b] && hi[a] == hi[b] &&
+           keel_workload_same_rules(w, a, b);
 }
 
 static void group(model *m)

@@ -54,14 +54,8 @@ typedef struct zones {
 /* True when nurses a and b are interchangeable for every patient. */
 static bool alike(const keel_workload *w, size_t a, size_t b)
 {
-    if (w->capacity_minutes[a] != w->capacity_minutes[b] ||
-        w->duty_minutes[a] != w->duty_minutes[b] || w->max_patients[a] != w->max_patients[b] ||
-        w->min_patients[a] != w->min_patients[b] || w->max_care[a] != w->max_care[b])
-        return false;
-    for (size_t p = 0; p < w->npatients; p++)
-        if (keel_workload_eligible(w, p, a) != keel_workload_eligible(w, p, b))
-            return false;
-    return true;
+    return w->capacity_minutes[a] == w->capacity_minutes[b] &&
+           w->duty_minutes[a] == w->duty_minutes[b] && keel_workload_same_rules(w, a, b);
 }
 
 bool keel_zones_apply(const keel_workload *w)

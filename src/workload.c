@@ -501,3 +501,14 @@ void keel_time_text(const keel_roster *r, int offset, char buf[KEEL_TIME_SIZE])
     int minute = (r->shift.start_minute + offset) % 1440;
     snprintf(buf, KEEL_TIME_SIZE, "%02d:%02d", minute / 60, minute % 60);
 }
+
+bool keel_workload_same_rules(const keel_workload *w, size_t a, size_t b)
+{
+    if (w->max_patients[a] != w->max_patients[b] || w->min_patients[a] != w->min_patients[b] ||
+        w->max_care[a] != w->max_care[b])
+        return false;
+    for (size_t p = 0; p < w->npatients; p++)
+        if (keel_workload_eligible(w, p, a) != keel_workload_eligible(w, p, b))
+            return false;
+    return true;
+}

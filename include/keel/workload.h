@@ -157,6 +157,10 @@ bool keel_workload_may_take_at_all(const keel_roster *r, const keel_workload *w,
  * allocated).  For code that builds a workload of its own. */
 bool keel_workload_alloc(keel_workload *w);
 
+/* True when nurses a and b have the same patient limits, fewest patients,
+ * care cap and eligible parts (capacity and duty aside). */
+bool keel_workload_same_rules(const keel_workload *w, size_t a, size_t b);
+
 /* Frees the workload.  NULL-safe. */
 void keel_workload_free(keel_workload *w);
 
