@@ -18,6 +18,10 @@
 #define DEFAULT_TIME_LIMIT_MS 10000L
 /* Share of the time limit (in tenths) after which stages 3 and 4 start. */
 #define FOLLOW_START_TENTHS 6
+/* Patients above which a pooled unit with one zone per nurse is first
+ * solved zone by zone with the plan's own nurses (keel_zones_polish): there
+ * the whole unit's search rarely improves the greedy plan in time. */
+#define POLISH_FROM 100
 
 /* A solver plugin: see keel_method_greedy() and keel_method_ilp(). */
 typedef struct keel_method {
@@ -334,6 +338,13 @@ keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
     if (rc) {
         keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
         goto out;
+    }
+    /* On a large pooled unit with one zone per nurse, each zone alone. */
+    if (method->solve == keel_method_ilp && w->zones_rule && w->npatients > POLISH_FROM) {
+        long long now = keel_clock_ms();
+        rc = keel_zones_polish(w, now + (balance_deadline - now) / 2, s->nurse_of, err);
+        if (rc)
+            goto out;
     }
     rc = method->solve(w, balance_deadline, s, err);
 balanced:

@@ -4,6 +4,12 @@
  * nurse with room whose utilisation after taking the patient is lowest
  * (Graham's LPT rule, in utilisation), then improving moves and swaps.
  *
+ * A patient left without a nurse is then placed by a chain of ejections
+ * (an augmenting path, as in bipartite matching, each step checked by the
+ * tally).  When patients are still left and policy.max_zones binds, the
+ * placement starts over with a home zone chosen for each nurse first
+ * (solve_homes.c) and each zoned patient placed within its zone's nurses.
+ *
  * It gives the incumbent the ILP starts from, the answer of
  * `--method greedy`, and a check in tests.  Every placement, move and swap
  * keeps every hard rule (the tally, tally.h, checks them).  Improvement accepts a move or swap
@@ -16,37 +22,22 @@
 #include "solve_internal.h"
 #include "tally.h"
 
-keel_status keel_greedy_place(const keel_workload *w, int *nurse_of, bool *placed_all)
+/* Places each unplaced patient of order, as in the file's head comment;
+ * with home, only with a nurse whose home is the patient's zone (unzoned
+ * patients with anyone). */
+static void place(const keel_workload *w, keel_tally *t, const size_t *order, size_t count,
+                  const int *home, long long *load, int *nurse_of)
 {
-    size_t np = w->npatients, nn = w->nnurses;
-    size_t *order = keel_malloc((np ? np : 1) * sizeof *order);
-    long long *load = keel_calloc(nn, sizeof *load);
-    keel_tally t;
-    keel_status rc = keel_tally_init(&t, w);
-    *placed_all = false;
-    if (rc == KEEL_OK && (!order || !load)) {
-        keel_tally_free(&t);
-        rc = KEEL_ERR_NOMEM;
-    }
-    if (rc)
-        goto out;
-    *placed_all = true;
-    for (size_t p = 0; p < np; p++)
-        nurse_of[p] = -1;
-    if (keel_workload_order(w, order)) {
-        keel_tally_free(&t);
-        *placed_all = false;
-        rc = KEEL_ERR_NOMEM;
-        goto out;
-    }
-    for (size_t n = 0; n < nn; n++)
-        load[n] = w->duty_minutes[n];
-    for (size_t k = 0; k < np; k++) {
+    for (size_t k = 0; k < count; k++) {
         size_t p = order[k];
+        if (nurse_of[p] >= 0)
+            continue;
         int best = -1;
         keel_ratio best_u = {0, 1};
-        for (size_t n = 0; n < nn; n++) {
-            if (!keel_tally_admits(&t, p, n))
+        for (size_t n = 0; n < w->nnurses; n++) {
+            if (home && w->zone[p] >= 0 && home[n] != w->zone[p])
+                continue;
+            if (!keel_tally_admits(t, p, n))
                 continue;
             keel_ratio u = {load[n] + w->care_minutes[p], w->capacity_minutes[n]};
             if (best < 0 || keel_ratio_cmp(u, best_u) < 0) {
@@ -54,18 +45,127 @@ keel_status keel_greedy_place(const keel_workload *w, int *nurse_of, bool *place
                 best_u = u;
             }
         }
-        if (best < 0) {
-            *placed_all = false;
+        if (best < 0)
             continue;
-        }
         nurse_of[p] = best;
         load[best] += w->care_minutes[p];
-        keel_tally_add(&t, p, (size_t)best);
+        keel_tally_add(t, p, (size_t)best);
     }
+}
+
+/* Finds a nurse for patient x by a chain of ejections (an augmenting path
+ * as in bipartite matching, every step checked by the tally): some nurse
+ * takes x directly, or takes x in place of a patient q for whom the same
+ * search goes on.  Each nurse is tried once per search (seen).  True when
+ * x has a nurse; the tally, loads and nurse_of then hold the whole chain. */
+static bool chain_for(const keel_workload *w, keel_tally *t, size_t x, bool *seen, long long *load,
+                      int *nurse_of)
+{
+    for (size_t n = 0; n < w->nnurses; n++)
+        if (!seen[n] && keel_tally_admits(t, x, n)) {
+            keel_tally_add(t, x, n);
+            load[n] += w->care_minutes[x];
+            nurse_of[x] = (int)n;
+            return true;
+        }
+    for (size_t n = 0; n < w->nnurses; n++) {
+        if (seen[n] || !keel_workload_eligible(w, x, n))
+            continue;
+        seen[n] = true;
+        for (size_t q = 0; q < w->npatients; q++) {
+            if (nurse_of[q] != (int)n || !keel_tally_admits_instead(t, x, q, n))
+                continue;
+            keel_tally_remove(t, q, n);
+            keel_tally_add(t, x, n);
+            nurse_of[q] = -1;
+            if (chain_for(w, t, q, seen, load, nurse_of)) {
+                load[n] += w->care_minutes[x] - w->care_minutes[q];
+                nurse_of[x] = (int)n;
+                return true;
+            }
+            keel_tally_remove(t, x, n);
+            keel_tally_add(t, q, n);
+            nurse_of[q] = (int)n;
+        }
+    }
+    return false;
+}
+
+/* Places what it can of the unplaced patients, directly or (without the
+ * clock, where parts are tied to the nurse before them) by chains of
+ * ejections. */
+static bool repair(const keel_workload *w, keel_tally *t, const size_t *order, long long *load,
+                   int *nurse_of)
+{
+    place(w, t, order, w->npatients, NULL, load, nurse_of);
+    if (w->clocked)
+        return true;
+    bool *seen = keel_malloc((w->nnurses + 1) * sizeof *seen);
+    if (!seen)
+        return false;
+    for (size_t k = 0; k < w->npatients; k++) {
+        if (nurse_of[order[k]] >= 0)
+            continue;
+        for (size_t n = 0; n < w->nnurses; n++)
+            seen[n] = false;
+        chain_for(w, t, order[k], seen, load, nurse_of);
+    }
+    free(seen);
+    return true;
+}
+
+static void start_over(const keel_workload *w, keel_tally *t, long long *load, int *nurse_of)
+{
+    for (size_t p = 0; p < w->npatients; p++)
+        nurse_of[p] = -1;
+    for (size_t n = 0; n < w->nnurses; n++)
+        load[n] = w->duty_minutes[n];
+    keel_tally_fill(t, nurse_of);
+}
+
+static bool all_placed(const keel_workload *w, const int *nurse_of)
+{
+    for (size_t p = 0; p < w->npatients; p++)
+        if (nurse_of[p] < 0)
+            return false;
+    return true;
+}
+
+keel_status keel_greedy_place(const keel_workload *w, int *nurse_of, bool *placed_all)
+{
+    size_t np = w->npatients, nn = w->nnurses;
+    size_t *order = keel_malloc((np ? np : 1) * sizeof *order);
+    long long *load = keel_calloc(nn + 1, sizeof *load);
+    int *home = keel_malloc((nn + 1) * sizeof *home);
+    keel_tally t;
+    keel_status rc = keel_tally_init(&t, w);
+    *placed_all = false;
+    if (rc)
+        goto out;
+    if (!order || !load || !home || keel_workload_order(w, order)) {
+        rc = KEEL_ERR_NOMEM;
+        goto free_tally;
+    }
+    start_over(w, &t, load, nurse_of);
+    bool ok = repair(w, &t, order, load, nurse_of);
+    /* Stuck on the zones: choose each nurse's zone first, then place. */
+    if (ok && !all_placed(w, nurse_of) && w->zones_rule) {
+        ok = keel_zone_homes(w, home);
+        if (ok) {
+            start_over(w, &t, load, nurse_of);
+            place(w, &t, order, np, home, load, nurse_of);
+            ok = repair(w, &t, order, load, nurse_of);
+        }
+    }
+    *placed_all = all_placed(w, nurse_of);
+    if (!ok)
+        rc = KEEL_ERR_NOMEM;
+free_tally:
     keel_tally_free(&t);
 out:
     free(order);
     free(load);
+    free(home);
     return rc;
 }
 

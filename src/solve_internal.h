@@ -76,6 +76,13 @@ keel_status keel_diagnose(const keel_roster *r, const keel_workload *w, int *nur
  * room (nurse_of is then partial).  Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
 keel_status keel_greedy_place(const keel_workload *w, int *nurse_of, bool *placed_all);
 
+/* solve_homes.c: a home zone for each counted nurse (home[n], -1 for none),
+ * chosen so that each zone has nurses for its patients: every home-zone
+ * placement is then within policy.max_zones.  A heuristic for the greedy
+ * placement when the zones leave patients without a nurse.  False when
+ * memory ran out. */
+bool keel_zone_homes(const keel_workload *w, int *home);
+
 /* solve_greedy.c: improving moves and swaps between pairs of nurses until
  * none lowers the heavier utilisation of the pair.  Keeps every rule.
  * Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
@@ -179,6 +186,14 @@ bool keel_zones_apply(const keel_workload *w);
  * sol->nurse_of and the two stages and sets *found, or leaves *found false
  * when no numbers of nurses per zone add up (the usual search then says
  * why).  Statuses: KEEL_OK, KEEL_ERR_NOMEM, KEEL_ERR_SOLVER. */
+/* solve_zones.c: with policy.max_zones 1, no clock and every patient in a
+ * zone, improves nurse_of (which keeps every rule) zone by zone, each
+ * nurse kept in the zone of her patients: the exact method's stages 1 and
+ * 2 on each zone alone, until deadline_ms.  Does nothing otherwise.
+ * Statuses: KEEL_OK, KEEL_ERR_NOMEM, KEEL_ERR_SOLVER. */
+keel_status keel_zones_polish(const keel_workload *w, long long deadline_ms, int *nurse_of,
+                              keel_error *err);
+
 keel_status keel_zones_solve(const keel_workload *w, long long deadline_ms, keel_solution *sol,
                              bool *found, keel_error *err);
 

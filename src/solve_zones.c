@@ -77,9 +77,10 @@ bool keel_zones_apply(const keel_workload *w)
     return first >= 0;
 }
 
-/* The workload of patients members[0..np) of w with k copies of nurse n0. */
+/* The workload of patients members[0..np) of w with nurses nurses[0..k)
+ * (or, when nurses is NULL, k copies of nurse n0). */
 static keel_workload *zone_workload(const keel_workload *w, const size_t *members, size_t np,
-                                    size_t n0, size_t k)
+                                    const size_t *nurses, size_t n0, size_t k)
 {
     keel_workload *z = keel_calloc(1, sizeof *z);
     if (!z)
@@ -119,14 +120,15 @@ static keel_workload *zone_workload(const keel_workload *w, const size_t *member
         z->joined_rules = z->joined_rules || z->ratio_limit[i] < (int)np;
         sides[z->side[i]] = true;
         for (size_t n = 0; n < k; n++)
-            z->eligible[i * k + n] = keel_workload_eligible(w, p, n0);
+            z->eligible[i * k + n] = keel_workload_eligible(w, p, nurses ? nurses[n] : n0);
     }
     for (size_t n = 0; n < k; n++) {
-        z->capacity_minutes[n] = w->capacity_minutes[n0];
-        z->duty_minutes[n] = w->duty_minutes[n0];
-        z->max_patients[n] = w->max_patients[n0];
-        z->min_patients[n] = w->min_patients[n0];
-        z->max_care[n] = w->max_care[n0];
+        size_t m = nurses ? nurses[n] : n0;
+        z->capacity_minutes[n] = w->capacity_minutes[m];
+        z->duty_minutes[n] = w->duty_minutes[m];
+        z->max_patients[n] = w->max_patients[m];
+        z->min_patients[n] = w->min_patients[m];
+        z->max_care[n] = w->max_care[m];
         z->nurse_end[n] = w->shift_minutes;
     }
     z->isolation_rule = sides[KEEL_SIDE_INFECTIOUS] && sides[KEEL_SIDE_PROTECTIVE];
@@ -305,7 +307,7 @@ static keel_status solve_zone(zones *Z, size_t z, size_t k, long long deadline_m
     const keel_workload *w = Z->w;
     size_t np = Z->first[z + 1] - Z->first[z];
     zone_try *t = try_at(Z, z, k);
-    keel_workload *sub = zone_workload(w, Z->members + Z->first[z], np, Z->counted[0], k);
+    keel_workload *sub = zone_workload(w, Z->members + Z->first[z], np, NULL, Z->counted[0], k);
     t->plan = keel_calloc(np ? np : 1, sizeof *t->plan);
     if (!sub || !t->plan) {
         keel_workload_free(sub);
@@ -352,7 +354,7 @@ static keel_status lift_zone(zones *Z, size_t z, size_t k, keel_ratio peak, long
 {
     size_t np = Z->first[z + 1] - Z->first[z];
     zone_try *t = try_at(Z, z, k);
-    keel_workload *sub = zone_workload(Z->w, Z->members + Z->first[z], np, Z->counted[0], k);
+    keel_workload *sub = zone_workload(Z->w, Z->members + Z->first[z], np, NULL, Z->counted[0], k);
     if (!sub)
         return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
     keel_stage st = {0};
@@ -661,5 +663,83 @@ out:
     free(Z.counted);
     free(pick);
     free(cand);
+    return rc;
+}
+
+/* ---- Zone by zone with the plan's own nurses ---------------------------
+ * With policy.max_zones 1 and every patient in a zone, the nurses of a plan
+ * split into the zones of their patients; keeping that split, each zone is
+ * a problem of its own.  Each is solved by the exact method (stages 1 and
+ * 2) from its part of the plan, within an equal share of the time left,
+ * and its plan kept when it is no worse. */
+static bool polish_applies(const keel_workload *w)
+{
+    if (w->max_zones != 1 || w->clocked || w->nzones < 2)
+        return false;
+    for (size_t p = 0; p < w->npatients; p++)
+        if (w->zone[p] < 0)
+            return false;
+    return true;
+}
+
+keel_status keel_zones_polish(const keel_workload *w, long long deadline_ms, int *nurse_of,
+                              keel_error *err)
+{
+    if (!polish_applies(w))
+        return KEEL_OK;
+    size_t np = w->npatients, nn = w->nnurses;
+    size_t *members = keel_malloc((np + 1) * sizeof *members);
+    size_t *nurses = keel_malloc((nn + 1) * sizeof *nurses);
+    int *local = keel_malloc((nn + 1) * sizeof *local);
+    int *plan = keel_malloc((np + 1) * sizeof *plan);
+    int *home = keel_malloc((nn + 1) * sizeof *home);
+    keel_status rc = KEEL_OK;
+    if (!members || !nurses || !local || !plan || !home) {
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+        goto out;
+    }
+    for (size_t n = 0; n < nn; n++)
+        home[n] = -1;
+    for (size_t p = 0; p < np; p++)
+        home[nurse_of[p]] = w->zone[p];
+    for (size_t z = 0; z < w->nzones && !rc; z++) {
+        size_t m = 0, k = 0;
+        for (size_t p = 0; p < np; p++)
+            if (w->zone[p] == (int)z)
+                members[m++] = p;
+        for (size_t n = 0; n < nn; n++)
+            if (home[n] == (int)z) {
+                local[n] = (int)k;
+                nurses[k++] = n;
+            }
+        if (m == 0)
+            continue;
+        keel_workload *sub = zone_workload(w, members, m, nurses, 0, k);
+        if (!sub) {
+            rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+            break;
+        }
+        for (size_t i = 0; i < m; i++)
+            plan[i] = local[nurse_of[members[i]]];
+        keel_ratio peak = keel_solve_peak(sub, plan), lift = keel_solve_lift(sub, plan);
+        long long now = keel_clock_ms();
+        keel_solution s = {.npatients = m, .nurse_of = plan};
+        rc = keel_method_ilp(sub, now + (deadline_ms - now) / (long long)(w->nzones - z), &s, err);
+        bool valid = false;
+        if (!rc && keel_solve_validate(sub, plan, &valid))
+            rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+        keel_ratio peak2 = keel_solve_peak(sub, plan), lift2 = keel_solve_lift(sub, plan);
+        int better = keel_ratio_cmp(peak2, peak);
+        if (!rc && valid && (better < 0 || (better == 0 && keel_ratio_cmp(lift2, lift) >= 0)))
+            for (size_t i = 0; i < m; i++)
+                nurse_of[members[i]] = (int)nurses[plan[i]];
+        keel_workload_free(sub);
+    }
+out:
+    free(members);
+    free(nurses);
+    free(local);
+    free(plan);
+    free(home);
     return rc;
 }

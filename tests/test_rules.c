@@ -11,6 +11,8 @@
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
+#include <stdlib.h>
+#include <string.h>
 
 #include <cmocka.h>
 
@@ -584,6 +586,121 @@ static void test_each_joining_rule_is_named_when_it_conflicts(void **state)
     tu_case_free(c);
 }
 
+/* ---- Zones on a pooled unit: home zones and zone-by-zone polish ---------- */
+
+/* The three heaviest patients are all in zone 0: heaviest first to the
+ * lightest nurse gives each nurse a zone-0 patient and strands zones 1 and
+ * 2 (one zone per nurse).  The placement's repairs (chains of ejections,
+ * home zones) place every patient, one zone per nurse. */
+static void test_placement_recovers_when_heaviest_first_strands_a_zone(void **state)
+{
+    (void)state;
+    tu_case *c = tu_case_new(3, 9);
+    keel_workload *w = &c->w;
+    static const int care[9] = {400, 390, 380, 100, 90, 80, 70, 60, 50};
+    w->max_zones = 1;
+    w->nzones = 3;
+    for (size_t n = 0; n < 3; n++)
+        w->max_patients[n] = 3;
+    for (size_t p = 0; p < 9; p++) {
+        w->care_minutes[p] = care[p];
+        w->zone[p] = (int)p / 3;
+    }
+    derive(c);
+    int nurse_of[9];
+    bool placed_all = false;
+    assert_int_equal(keel_greedy_place(w, nurse_of, &placed_all), KEEL_OK);
+    assert_true(placed_all);
+    assert_true(keeps_rules(w, nurse_of));
+    for (size_t p = 0; p < 9; p++) /* one nurse per zone */
+        assert_int_equal(nurse_of[p], nurse_of[p - p % 3]);
+    tu_case_free(c);
+}
+
+/* Random pooled rosters with one zone per nurse and nurses who differ
+ * (hours, limits, a skill), with high acuity, ratios and isolation: the
+ * greedy placement never breaks a rule, and the zone-by-zone polish keeps
+ * the rules, never raises the heaviest utilisation and reaches the least
+ * heaviest utilisation over the assignments that keep each nurse in her
+ * zone. */
+static void test_zone_polish_reaches_the_best_plan_with_the_zones_kept(void **state)
+{
+    (void)state;
+    /* Source: exhaustive enumeration of every assignment, as above. */
+    uint64_t seed = 77;
+    int placed = 0, feasible = 0;
+    for (int round = 0; round < 300; round++) {
+        size_t nn = (size_t)tu_range(&seed, 2, 4), np = (size_t)tu_range(&seed, 2, 8);
+        tu_case *c = tu_case_new(nn, np);
+        keel_workload *w = &c->w;
+        w->max_zones = 1;
+        w->nzones = (size_t)tu_range(&seed, 2, 3);
+        w->max_high_acuity = tu_range(&seed, 0, 1) ? 1 : KEEL_ABSENT;
+        for (size_t n = 0; n < nn; n++) {
+            w->capacity_minutes[n] = tu_range(&seed, 0, 2) == 0 ? 420 : 660;
+            w->max_patients[n] = tu_range(&seed, 1, 4);
+            if (tu_range(&seed, 0, 2) == 0)
+                tu_add_skill(c, n, "chemo");
+        }
+        for (size_t p = 0; p < np; p++) {
+            w->care_minutes[p] = tu_range(&seed, 1, 14) * 30;
+            w->ratio_limit[p] = tu_range(&seed, 0, 5) == 0 ? 2 : (int)np;
+            w->high_acuity[p] = w->max_high_acuity != KEEL_ABSENT && tu_range(&seed, 0, 3) == 0;
+            w->side[p] =
+                (signed char)(tu_range(&seed, 0, 3) < 3 ? KEEL_SIDE_NONE : tu_range(&seed, 1, 2));
+            w->zone[p] = tu_range(&seed, 0, (int)w->nzones - 1);
+            if (tu_range(&seed, 0, 4) == 0)
+                tu_add_need(c, p, "chemo");
+        }
+        tu_refresh(c);
+        derive(c);
+        best whole = {.w = w, .pass = PASS_BALANCE};
+        whole.a = calloc(np + 1, sizeof *whole.a);
+        visit(&whole, 0);
+        int *plan = calloc(np + 1, sizeof *plan);
+        bool placed_all = false;
+        assert_int_equal(keel_greedy_place(w, plan, &placed_all), KEEL_OK);
+        feasible += whole.found;
+        placed += placed_all;
+        if (placed_all) {
+            assert_true(keeps_rules(w, plan));
+            assert_int_equal(keel_greedy_improve(w, plan), KEEL_OK);
+            keel_ratio before = keel_solve_peak(w, plan);
+            int home[4] = {-1, -1, -1, -1};
+            for (size_t p = 0; p < np; p++)
+                home[plan[p]] = w->zone[p];
+            keel_error err;
+            keel_error_init(&err);
+            assert_int_equal(keel_zones_polish(w, keel_clock_ms() + 60000, plan, &err), KEEL_OK);
+            keel_error_fini(&err);
+            assert_true(keeps_rules(w, plan));
+            keel_ratio after = keel_solve_peak(w, plan);
+            assert_true(keel_ratio_cmp(after, before) <= 0);
+            /* The enumeration with each nurse held to her zone. */
+            bool *kept = malloc(np * nn * sizeof *kept);
+            memcpy(kept, w->eligible, np * nn * sizeof *kept);
+            for (size_t p = 0; p < np; p++)
+                for (size_t n = 0; n < nn; n++)
+                    w->eligible[p * nn + n] = kept[p * nn + n] && home[n] == w->zone[p];
+            best held = {.w = w, .pass = PASS_BALANCE};
+            held.a = calloc(np + 1, sizeof *held.a);
+            visit(&held, 0);
+            memcpy(w->eligible, kept, np * nn * sizeof *kept);
+            assert_true(held.found);
+            assert_int_equal(keel_ratio_cmp(after, held.peak), 0);
+            free(held.a);
+            free(kept);
+        }
+        free(plan);
+        free(whole.a);
+        tu_case_free(c);
+    }
+    print_message("zone polish: %d of %d feasible rosters placed by the greedy\n", placed,
+                  feasible);
+    assert_true(placed <= feasible);
+    assert_true(placed > feasible / 2);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -592,6 +709,8 @@ int main(void)
         cmocka_unit_test(test_squares_match_exhaustive_enumeration),
         cmocka_unit_test(test_the_bound_is_explained_by_its_reason),
         cmocka_unit_test(test_each_joining_rule_is_named_when_it_conflicts),
+        cmocka_unit_test(test_placement_recovers_when_heaviest_first_strands_a_zone),
+        cmocka_unit_test(test_zone_polish_reaches_the_best_plan_with_the_zones_kept),
     };
     return cmocka_run_group_tests_name("rules", tests, NULL, NULL);
 }
