@@ -22,6 +22,8 @@
  * solved zone by zone with the plan's own nurses (keel_zones_polish): there
  * the whole unit's search rarely improves the greedy plan in time. */
 #define POLISH_FROM 100
+/* Nodes the dedicated search may spend on a second starting plan. */
+#define SECOND_START_NODES 20000L
 
 /* A solver plugin: see keel_method_greedy() and keel_method_ilp(). */
 typedef struct keel_method {
@@ -251,6 +253,35 @@ static keel_solve_status overall_status(const keel_solution *s)
     return st;
 }
 
+/* A second starting plan when rules join patients: the dedicated search's
+ * first valid assignment, improved; kept when its heaviest utilisation is
+ * lower than that of nurse_of.  (The placements differ in where they get
+ * stuck, and the search from the better start proves more.) */
+static keel_status second_start(const keel_workload *w, long long deadline_ms, int *nurse_of)
+{
+    size_t np = w->npatients, nn = w->nnurses;
+    long long *lo = keel_calloc(nn + 1, sizeof *lo), *hi = keel_calloc(nn + 1, sizeof *hi);
+    int *other = keel_calloc(np + 1, sizeof *other);
+    keel_status rc = lo && hi && other ? KEEL_OK : KEEL_ERR_NOMEM;
+    long long total = 0;
+    for (size_t p = 0; p < np; p++)
+        total += w->care_minutes[p];
+    for (size_t n = 0; n < nn; n++)
+        hi[n] = total;
+    keel_ilp_answer answer = KEEL_ILP_UNKNOWN;
+    if (!rc)
+        rc = keel_fit_search(w, lo, hi, SECOND_START_NODES, deadline_ms, other, &answer);
+    if (!rc && answer == KEEL_ILP_FEASIBLE)
+        rc = keel_greedy_improve(w, other);
+    if (!rc && answer == KEEL_ILP_FEASIBLE &&
+        keel_ratio_cmp(keel_solve_peak(w, other), keel_solve_peak(w, nurse_of)) < 0)
+        memcpy(nurse_of, other, np * sizeof *nurse_of);
+    free(lo);
+    free(hi);
+    free(other);
+    return rc;
+}
+
 keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
                        const keel_solve_options *options, keel_solution **out, keel_error *err)
 {
@@ -338,6 +369,13 @@ keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
     if (rc) {
         keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
         goto out;
+    }
+    if (w->joined_rules) {
+        rc = second_start(w, deadline, s->nurse_of);
+        if (rc) {
+            keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
+            goto out;
+        }
     }
     /* On a large pooled unit with one zone per nurse, each zone alone. */
     if (method->solve == keel_method_ilp && w->zones_rule && w->npatients > POLISH_FROM) {
