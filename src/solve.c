@@ -266,7 +266,7 @@ static keel_status second_start(const keel_workload *w, long long deadline_ms, i
     long long total = 0;
     for (size_t p = 0; p < np; p++)
         total += w->care_minutes[p];
-    for (size_t n = 0; n < nn; n++)
+    for (size_t n = 0; hi && n < nn; n++)
         hi[n] = total;
     keel_ilp_answer answer = KEEL_ILP_UNKNOWN;
     if (!rc)
