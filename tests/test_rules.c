@@ -695,7 +695,7 @@ static void test_zone_polish_reaches_the_best_plan_with_the_zones_kept(void **st
         free(whole.a);
         tu_case_free(c);
     }
-    print_message("zone polish: %d of %d feasible rosters placed by the greedy\n", placed,
+    print_message("# zone polish: %d of %d feasible rosters placed by the greedy\n", placed,
                   feasible);
     assert_true(placed <= feasible);
     assert_true(placed > feasible / 2);
