@@ -6,10 +6,18 @@
  * Placing patients heaviest first across the whole unit spreads each zone's
  * patients over many nurses; once every nurse has used her zones, the last
  * patients of a zone find no nurse.  Deciding first which nurses work where
- * avoids that.  The homes are chosen in three passes:
+ * avoids that.  The homes are chosen in five passes:
  *
  *   pins      a zoned patient with one eligible nurse (a lock, a rare
  *             skill) brings that nurse home to the patient's zone;
+ *   counts    the nurses left are grouped by patient limit and room
+ *             (capacity less duty); a table over the zones chooses how
+ *             many of each group each zone gets, so that every zone has
+ *             places for its patients and nurses for its high-acuity
+ *             patients, with the least highest care per minute of room;
+ *             the nurses themselves are then chosen one at a time, for the
+ *             zone short of the most places when its patients are matched
+ *             to its nurses (shortage()), the nurse who leaves it shortest;
  *   cover     patients with the fewest eligible nurses first: a patient
  *             none of whose zone's nurses may take gets the eligible nurse
  *             without a home who may take the fewest patients overall;
@@ -17,7 +25,9 @@
  *             the most places (patients over the zone's patient limits, or
  *             high-acuity patients over what its nurses may hold), else to
  *             the zone with the highest care per minute of capacity; of the
- *             nurses, the one eligible for most of that zone's patients.
+ *             nurses, the one eligible for most of that zone's patients;
+ *   trade     nurses are moved or exchanged between two zones while that
+ *             lowers the two zones' shortage.
  *
  * A heuristic: the homes only steer the placement; every rule is still
  * checked by the tally, and a patient its zone cannot hold is placed after.
