@@ -370,7 +370,7 @@ keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
         keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }
-    if (w->joined_rules) {
+    if (method->solve == keel_method_ilp && w->joined_rules) {
         rc = second_start(w, deadline, s->nurse_of);
         if (rc) {
             keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
