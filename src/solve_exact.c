@@ -13,8 +13,10 @@
  * meet, the optimum is proven, without waiting for an LP relaxation to close the gap.  Stage 2
  * ("lift") asks the same upwards for the lightest utilisation with every budget of stage 1 held.
  *
- * Each question goes first to the dedicated search (solve_fit.c), then to
- * GLPK (solve_ilp.c).  Questions are time-boxed while the search narrows
+ * Each question goes first to the dedicated search (solve_fit.c) for half
+ * of its time, then to GLPK (solve_ilp.c) for the rest: the search finds
+ * and refutes tight packings that GLPK's relaxation cannot, GLPK answers
+ * questions its relaxation decides.  Questions are time-boxed while the search narrows
  * the range, so one hard question cannot stall it; at the end the decisive
  * question (just below the incumbent) gets all the time that is left.
  * Stage 1 may use most of the time limit; stage 2 the rest.
@@ -26,8 +28,6 @@
 #include "alloc.h"
 #include "solve_internal.h"
 
-/* Nodes the dedicated search may spend on one question before GLPK takes it. */
-#define FIT_NODE_BUDGET 200000L
 /* Share of the time left that one question gets while the range narrows. */
 #define QUESTION_SHARE 5
 /* Share of the time limit stage 1 may use (in tenths). */
@@ -188,8 +188,8 @@ static bool group_overflows(const search *S)
 }
 
 /* Asks whether an assignment fits the windows S->lo..S->hi, answering by
- * the cheap sums, the competency groups, the dedicated search or GLPK, in
- * that order. */
+ * the cheap sums, the competency groups, the dedicated search (until half
+ * the time is gone) or GLPK, in that order. */
 static keel_status ask(search *S, long long deadline_ms, keel_ilp_answer *answer, keel_error *err)
 {
     const keel_workload *w = S->w;
@@ -208,8 +208,9 @@ static keel_status ask(search *S, long long deadline_ms, keel_ilp_answer *answer
         *answer = KEEL_ILP_INFEASIBLE;
         return KEEL_OK;
     }
+    long long now = keel_clock_ms();
     keel_status rc =
-        keel_fit_search(w, S->lo, S->hi, FIT_NODE_BUDGET, deadline_ms, S->trial, answer);
+        keel_fit_search(w, S->lo, S->hi, LONG_MAX, now + (deadline_ms - now) / 2, S->trial, answer);
     if (rc)
         return keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
     if (*answer != KEEL_ILP_UNKNOWN)

@@ -11,9 +11,12 @@
  * interchangeable for the question and carry the same so far, only the
  * first is tried (with rules that join patients, only when those rules see
  * the two nurses alike too).  The rules that join patients are checked
- * by the tally (tally.h) at every step.  A node is cut when the room left that the remaining
- * patients could still use is less than their care, or the care they must
- * still bring to nurses below their window is more than they have.
+ * by the tally (tally.h) at every step.  A node is cut when the remaining
+ * patients outnumber the free places, when the room they could still use is
+ * less than their care (a nurse takes at most her free places' worth of the
+ * heaviest of them, and with one place left at most the largest that fits),
+ * or when the care they must still bring to nurses below their window is
+ * more than they have.
  *
  * The search stops after a node budget or at a deadline and answers
  * "unknown"; the caller then asks GLPK.  A "feasible" or "infeasible" answer is exact.
@@ -118,12 +121,29 @@ static bool same_state(const fit *F, size_t a, size_t b)
     return true;
 }
 
+/* The most care one more patient of order[k..] can bring within room r
+ * (they are sorted heaviest first). */
+static long long largest_within(const fit *F, size_t k, long long r)
+{
+    const keel_workload *w = F->w;
+    size_t a = k, b = w->npatients; /* the first patient of care <= r is in [a, b] */
+    while (a < b) {
+        size_t mid = a + (b - a) / 2;
+        if (w->care_minutes[F->order[mid]] > r)
+            a = mid + 1;
+        else
+            b = mid;
+    }
+    return a < w->npatients ? w->care_minutes[F->order[a]] : 0;
+}
+
 /* Cheap bounds on the remaining patients order[k..].  With the clock the
  * counts are per moment, so only care is bounded. */
 static bool still_possible(const fit *F, size_t k)
 {
     const keel_workload *w = F->w;
-    long long left = F->suffix[k], room = 0, owed = 0, high_room = 0;
+    size_t np = w->npatients;
+    long long left = F->suffix[k], room = 0, owed = 0, high_room = 0, open_places = 0;
     long long smallest = F->min_after[k];
     for (size_t n = 0; n < w->nnurses; n++) {
         if (!keel_workload_counted(w, n))
@@ -135,8 +155,18 @@ static bool still_possible(const fit *F, size_t k)
             owed += F->lo[n] > F->care[n] ? F->lo[n] - F->care[n] : 0;
             continue;
         }
-        if (r >= smallest && F->count[n] < w->max_patients[n])
-            room += r;
+        /* At most the free places' worth of the heaviest patients to come. */
+        int most = w->max_patients[n];
+        size_t open = most > F->count[n] ? (size_t)(most - F->count[n]) : 0;
+        if (open > np - k)
+            open = np - k;
+        long long heaviest = F->suffix[k] - F->suffix[k + open];
+        if (open == 1)
+            heaviest = largest_within(F, k, r);
+        if (r >= smallest) {
+            room += r < heaviest ? r : heaviest;
+            open_places += (long long)open;
+        }
         if (w->max_high_acuity != KEEL_ABSENT) {
             int places = w->max_high_acuity - F->tally.high[n];
             int free_places = w->max_patients[n] - F->count[n];
@@ -161,7 +191,7 @@ static bool still_possible(const fit *F, size_t k)
     /* The high-acuity patients still to come need places under the rule. */
     if (!w->clocked && w->max_high_acuity != KEEL_ABSENT && F->high_after[k] > high_room)
         return false;
-    return room >= left && owed <= left;
+    return room >= left && owed <= left && (w->clocked || open_places >= (long long)(np - k));
 }
 
 static bool search(fit *F, size_t k)
