@@ -140,7 +140,7 @@ typedef struct follow {
     long long *lo, *hi;
     int *trial;
     bool exact;
-    bool proven; /* GLPK proved its last answer optimal */
+    bool proven; /* GLPK proved its answer to the last question optimal */
 } follow;
 
 static void finish(keel_stage *st, const char *name, long long value, long long bound, bool exact,
@@ -164,8 +164,11 @@ static keel_status improve(follow *F, keel_ilp_goal goal, long long min_kept, lo
 {
     const keel_workload *w = F->w;
     long long left = deadline_ms - keel_clock_ms();
+    F->proven = false;
     if (!F->exact || left <= 0)
         return KEEL_OK;
+    if (goal == KEEL_GOAL_KEEP && keel_solve_kept(w, best) >= *bound)
+        return KEEL_OK; /* at the ceiling already */
     keel_ilp_question q = {
         .lo = F->lo, .hi = F->hi, .goal = goal, .min_kept = min_kept, .start = best};
     keel_ilp_result res;
