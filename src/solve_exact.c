@@ -45,9 +45,10 @@ typedef struct search {
     sums *sums;    /* [nnurses] */
     long long *lo; /* windows of care minutes asked about */
     long long *hi;
-    long long *peak_hi; /* stage 1's budgets, held in stage 2 */
-    int *trial;         /* the assignment an answer "yes" comes with */
-    keel_ratio *cand;   /* candidate utilisations, sorted, unique */
+    long long *peak_hi;   /* stage 1's budgets, held in stage 2 */
+    int *trial;           /* the assignment an answer "yes" comes with */
+    const int *incumbent; /* the best assignment so far: where the local search starts */
+    keel_ratio *cand;     /* candidate utilisations, sorted, unique */
     size_t ncand;
     long long care_total;
     int calls; /* questions GLPK answered in this stage */
@@ -209,8 +210,11 @@ static keel_status ask(search *S, long long deadline_ms, keel_ilp_answer *answer
         return KEEL_OK;
     }
     long long now = keel_clock_ms();
-    keel_status rc =
-        keel_fit_search(w, S->lo, S->hi, LONG_MAX, now + (deadline_ms - now) / 2, S->trial, answer);
+    keel_status rc = keel_fit_local(w, S->lo, S->hi, S->incumbent, now + (deadline_ms - now) / 5,
+                                    S->trial, answer);
+    if (!rc && *answer == KEEL_ILP_UNKNOWN)
+        rc = keel_fit_search(w, S->lo, S->hi, LONG_MAX, now + (deadline_ms - now) / 2, S->trial,
+                             answer);
     if (rc)
         return keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
     if (*answer != KEEL_ILP_UNKNOWN)
@@ -240,6 +244,7 @@ static keel_status descend(search *S, const direction *d, size_t lo, size_t hi,
 {
     const keel_workload *w = S->w;
     size_t soft = lo; /* below soft, questions were left unanswered */
+    S->incumbent = best;
     keel_status rc = KEEL_OK;
     while (lo < hi) {
         long long now = keel_clock_ms();

@@ -162,6 +162,14 @@ keel_status keel_fit_search(const keel_workload *w, const long long *lo, const l
                             long node_budget, long long deadline_ms, int *nurse_of,
                             keel_ilp_answer *answer);
 
+/* solve_local.c: the same question answered by a local search from start
+ * (an assignment that keeps every rule), until deadline_ms: *answer is
+ * KEEL_ILP_FEASIBLE with nurse_of filled, or KEEL_ILP_UNKNOWN (always
+ * with the clock).  Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
+keel_status keel_fit_local(const keel_workload *w, const long long *lo, const long long *hi,
+                           const int *start, long long deadline_ms, int *nurse_of,
+                           keel_ilp_answer *answer);
+
 /* The methods.  Each fills the stages of sol, whose nurse_of holds the
  * greedy incumbent on entry, and may replace the assignment with a better
  * one; deadline_ms is on keel_clock_ms().  Statuses: KEEL_OK,

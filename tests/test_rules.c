@@ -701,6 +701,78 @@ static void test_zone_polish_reaches_the_best_plan_with_the_zones_kept(void **st
     assert_true(placed > feasible / 2);
 }
 
+/* The first assignment of the enumeration's order that keeps every rule
+ * (and lies inside b's windows when inside_too). */
+static bool first_valid(best *b, size_t p, bool inside_too)
+{
+    if (p == b->w->npatients)
+        return keeps_rules(b->w, b->a) && (!inside_too || inside(b));
+    for (size_t n = 0; n < b->w->nnurses; n++) {
+        b->a[p] = (int)n;
+        if (first_valid(b, p + 1, inside_too))
+            return true;
+    }
+    return false;
+}
+
+/* The local search answers only with a plan that keeps every rule and
+ * fits the windows, never where no such plan exists, and finds one on
+ * most of the questions that have one. */
+static void test_local_search_answers_only_with_a_plan_that_fits(void **state)
+{
+    (void)state;
+    /* Source: exhaustive enumeration of every assignment, as above. */
+    uint64_t seed = 4242;
+    int asked = 0, exists = 0, found = 0;
+    for (int round = 0; round < 1500; round++) {
+        tu_case *c = random_rules_case(&seed);
+        keel_workload *w = &c->w;
+        size_t nn = w->nnurses, np = w->npatients;
+        best b = {.w = w};
+        b.a = calloc(np + 1, sizeof *b.a);
+        b.lo = calloc(nn, sizeof *b.lo);
+        b.hi = calloc(nn, sizeof *b.hi);
+        int *start = calloc(np + 1, sizeof *start), *out = calloc(np + 1, sizeof *out);
+        if (first_valid(&b, 0, false)) {
+            memcpy(start, b.a, np * sizeof *start);
+            long long total = 0;
+            for (size_t p = 0; p < np; p++)
+                total += w->care_minutes[p];
+            long long share = total / (long long)nn;
+            for (size_t n = 0; n < nn; n++) { /* windows around an even share */
+                b.lo[n] = tu_range(&seed, 0, 1) ? share - tu_range(&seed, 0, (int)share + 1) : 0;
+                b.lo[n] = b.lo[n] < 0 ? 0 : b.lo[n];
+                b.hi[n] = share + tu_range(&seed, 0, (int)share / 2 + 60);
+            }
+            keel_ilp_answer answer;
+            assert_int_equal(
+                keel_fit_local(w, b.lo, b.hi, start, keel_clock_ms() + 60000, out, &answer),
+                KEEL_OK);
+            assert_true(answer == KEEL_ILP_FEASIBLE || answer == KEEL_ILP_UNKNOWN);
+            bool any = first_valid(&b, 0, true);
+            asked++;
+            exists += any;
+            if (answer == KEEL_ILP_FEASIBLE) {
+                assert_true(any);
+                memcpy(b.a, out, np * sizeof *b.a);
+                assert_true(keeps_rules(w, b.a));
+                assert_true(inside(&b));
+                found++;
+            }
+        }
+        free(start);
+        free(out);
+        free(b.a);
+        free(b.lo);
+        free(b.hi);
+        tu_case_free(c);
+    }
+    print_message("# local search: found %d of %d fitting plans (%d questions)\n", found, exists,
+                  asked);
+    assert_true(exists > 200 && asked - exists > 200);
+    assert_true(found > exists / 2);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -711,6 +783,7 @@ int main(void)
         cmocka_unit_test(test_each_joining_rule_is_named_when_it_conflicts),
         cmocka_unit_test(test_placement_recovers_when_heaviest_first_strands_a_zone),
         cmocka_unit_test(test_zone_polish_reaches_the_best_plan_with_the_zones_kept),
+        cmocka_unit_test(test_local_search_answers_only_with_a_plan_that_fits),
     };
     return cmocka_run_group_tests_name("rules", tests, NULL, NULL);
 }

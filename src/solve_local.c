@@ -1,0 +1,200 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * solve_local.c - a local search for the question the exact method asks:
+ * is there an assignment in which every counted nurse n carries between
+ * lo[n] and hi[n] minutes of care?  It can only answer yes.
+ *
+ * From an assignment that keeps every rule, it moves one patient to
+ * another nurse or swaps two patients of two nurses, always keeping every
+ * rule (the tally checks each step), and drives the excess down: the care
+ * above hi[n] plus the care missing below lo[n], summed over the counted
+ * nurses.  Each step takes the best move or swap that touches a nurse
+ * outside her window, even when it makes the excess worse, except one that
+ * puts a patient back with a nurse it left in the last few steps (a tabu
+ * search).  Ties go to a fixed-seed coin, so runs are repeatable for the
+ * same number of steps.  Not used with the clock.
+ */
+#include <stdlib.h>
+#include <string.h>
+
+#include "alloc.h"
+#include "solve_internal.h"
+#include "tally.h"
+
+/* Steps for which a patient may not go back to a nurse it left. */
+#define TABU_MIN 7
+#define TABU_SPREAD 10
+
+typedef struct local {
+    const keel_workload *w;
+    const long long *lo, *hi;
+    int *nurse_of;
+    keel_tally t;
+    long *tabu_until; /* [npatients * nnurses]: step until which p may not go to n */
+    long step;
+    unsigned long long coin; /* xorshift state */
+} local;
+
+static unsigned long long flip(local *L)
+{
+    L->coin ^= L->coin << 13;
+    L->coin ^= L->coin >> 7;
+    L->coin ^= L->coin << 17;
+    return L->coin;
+}
+
+/* How far care c is from nurse n's window. */
+static long long off(const local *L, size_t n, long long c)
+{
+    if (!keel_workload_counted(L->w, n))
+        return 0;
+    return c > L->hi[n] ? c - L->hi[n] : c < L->lo[n] ? L->lo[n] - c : 0;
+}
+
+static long long excess(const local *L)
+{
+    long long e = 0;
+    for (size_t n = 0; n < L->w->nnurses; n++)
+        e += off(L, n, L->t.care[n]);
+    return e;
+}
+
+/* A candidate step: p goes to nurse to; when q >= 0, q goes to p's nurse. */
+typedef struct step {
+    long long delta;
+    size_t p;
+    long q;
+    size_t to;
+    unsigned long long tie;
+} step;
+
+static bool allowed(const local *L, size_t p, size_t n, bool aspire)
+{
+    return aspire || L->tabu_until[p * L->w->nnurses + n] <= L->step;
+}
+
+static void consider(local *L, step *best, bool *have, step s)
+{
+    s.tie = flip(L);
+    if (!*have || s.delta < best->delta || (s.delta == best->delta && s.tie < best->tie)) {
+        *best = s;
+        *have = true;
+    }
+}
+
+/* The best step that moves a patient of a away, or swaps one with a
+ * patient of another nurse (for a nurse above or below her window).  total is the excess now; a
+ * step that would reach zero is taken even when tabu. */
+static void steps_from(local *L, size_t a, long long total, step *best, bool *have)
+{
+    const keel_workload *w = L->w;
+    size_t np = w->npatients, nn = w->nnurses;
+    for (size_t p = 0; p < np; p++) {
+        if (L->nurse_of[p] != (int)a)
+            continue;
+        long long c = w->care_minutes[p], ca = L->t.care[a];
+        bool may_give = keel_tally_may_give(&L->t, a);
+        for (size_t b = 0; b < nn && may_give; b++) {
+            if (b == a || !keel_tally_admits(&L->t, p, b))
+                continue;
+            long long cb = L->t.care[b];
+            long long d = off(L, a, ca - c) - off(L, a, ca) + off(L, b, cb + c) - off(L, b, cb);
+            if (allowed(L, p, b, total + d == 0))
+                consider(L, best, have, (step){.delta = d, .p = p, .q = -1, .to = b});
+        }
+        for (size_t q = 0; q < np; q++) {
+            int bq = L->nurse_of[q];
+            if (bq < 0 || bq == (int)a || w->care_minutes[q] == c)
+                continue;
+            size_t b = (size_t)bq;
+            long long cb = L->t.care[b], dq = c - w->care_minutes[q];
+            long long d = off(L, a, ca - dq) - off(L, a, ca) + off(L, b, cb + dq) - off(L, b, cb);
+            if (!allowed(L, p, b, total + d == 0) || !allowed(L, q, a, total + d == 0))
+                continue;
+            if (!keel_tally_admits_instead(&L->t, p, q, b) ||
+                !keel_tally_admits_instead(&L->t, q, p, a))
+                continue;
+            consider(L, best, have, (step){.delta = d, .p = p, .q = (long)q, .to = b});
+        }
+    }
+}
+
+/* The best step that brings a patient to a, a nurse below her window. */
+static void steps_to(local *L, size_t a, long long total, step *best, bool *have)
+{
+    const keel_workload *w = L->w;
+    for (size_t p = 0; p < w->npatients; p++) {
+        int b = L->nurse_of[p];
+        if (b < 0 || b == (int)a || !keel_tally_may_give(&L->t, (size_t)b) ||
+            !keel_tally_admits(&L->t, p, a))
+            continue;
+        long long c = w->care_minutes[p], ca = L->t.care[a], cb = L->t.care[b];
+        long long d =
+            off(L, a, ca + c) - off(L, a, ca) + off(L, (size_t)b, cb - c) - off(L, (size_t)b, cb);
+        if (allowed(L, p, a, total + d == 0))
+            consider(L, best, have, (step){.delta = d, .p = p, .q = -1, .to = a});
+    }
+}
+
+static void apply(local *L, const step *s)
+{
+    size_t nn = L->w->nnurses, from = (size_t)L->nurse_of[s->p];
+    long tenure = TABU_MIN + (long)(flip(L) % TABU_SPREAD);
+    keel_tally_remove(&L->t, s->p, from);
+    if (s->q >= 0) {
+        size_t q = (size_t)s->q;
+        keel_tally_remove(&L->t, q, s->to);
+        keel_tally_add(&L->t, q, from);
+        L->nurse_of[q] = (int)from;
+        L->tabu_until[q * nn + s->to] = L->step + tenure;
+    }
+    keel_tally_add(&L->t, s->p, s->to);
+    L->nurse_of[s->p] = (int)s->to;
+    L->tabu_until[s->p * nn + from] = L->step + tenure;
+}
+
+keel_status keel_fit_local(const keel_workload *w, const long long *lo, const long long *hi,
+                           const int *start, long long deadline_ms, int *nurse_of,
+                           keel_ilp_answer *answer)
+{
+    size_t np = w->npatients, nn = w->nnurses;
+    *answer = KEEL_ILP_UNKNOWN;
+    if (w->clocked)
+        return KEEL_OK;
+    local L = {.w = w, .lo = lo, .hi = hi, .coin = 0x9e3779b97f4a7c15ULL};
+    L.nurse_of = keel_calloc(np ? np : 1, sizeof *L.nurse_of);
+    L.tabu_until = keel_calloc(np * nn > 0 ? np * nn : 1, sizeof *L.tabu_until);
+    keel_status rc = keel_tally_init(&L.t, w);
+    if (rc || !L.nurse_of || !L.tabu_until) {
+        rc = KEEL_ERR_NOMEM;
+        goto out;
+    }
+    memcpy(L.nurse_of, start, np * sizeof *L.nurse_of);
+    keel_tally_fill(&L.t, L.nurse_of);
+    long long total = excess(&L);
+    while (total > 0) {
+        if ((L.step & 15) == 0 && keel_clock_ms() >= deadline_ms)
+            goto out;
+        step best;
+        bool have = false;
+        for (size_t n = 0; n < nn; n++) {
+            if (off(&L, n, L.t.care[n]) == 0)
+                continue;
+            steps_from(&L, n, total, &best, &have);
+            if (L.t.care[n] < lo[n])
+                steps_to(&L, n, total, &best, &have);
+        }
+        if (!have)
+            goto out; /* every step is tabu or breaks a rule */
+        apply(&L, &best);
+        total += best.delta;
+        L.step++;
+    }
+    memcpy(nurse_of, L.nurse_of, np * sizeof *nurse_of);
+    *answer = KEEL_ILP_FEASIBLE;
+out:
+    free(L.nurse_of);
+    free(L.tabu_until);
+    keel_tally_free(&L.t);
+    return rc;
+}
