@@ -13,13 +13,15 @@
  * meet, the optimum is proven, without waiting for an LP relaxation to close the gap.  Stage 2
  * ("lift") asks the same upwards for the lightest utilisation with every budget of stage 1 held.
  *
- * Each question goes first to the dedicated search (solve_fit.c) for half
- * of its time, then to GLPK (solve_ilp.c) for the rest: the search finds
- * and refutes tight packings that GLPK's relaxation cannot, GLPK answers
- * questions its relaxation decides.  Questions are time-boxed while the search narrows
- * the range, so one hard question cannot stall it; at the end the decisive
- * question (just below the incumbent) gets all the time that is left.
- * Stage 1 may use most of the time limit; stage 2 the rest.
+ * Each question goes to the dedicated search (solve_fit.c) for a quick
+ * look, then to the local search (solve_local.c) for at most a fifth of its
+ * time, back to the dedicated search until half of its time, and to GLPK
+ * (solve_ilp.c) for the rest: the local search finds tight packings, the
+ * dedicated search finds and refutes them where GLPK's relaxation cannot,
+ * and GLPK answers the questions its relaxation decides.  Questions are time-boxed while the search
+ * narrows the range, so one hard question cannot stall it; at the end the decisive question (just
+ * below the incumbent) gets all the time that is left. Stage 1 may use most of the time limit;
+ * stage 2 the rest.
  */
 #include <limits.h>
 #include <stdlib.h>
@@ -28,6 +30,9 @@
 #include "alloc.h"
 #include "solve_internal.h"
 
+/* Nodes of the dedicated search's first, quick look at a question (about
+ * 20 ms): most questions end there. */
+#define QUICK_NODES 200000L
 /* Share of the time left that one question gets while the range narrows. */
 #define QUESTION_SHARE 5
 /* Share of the time limit stage 1 may use (in tenths). */
@@ -189,8 +194,8 @@ static bool group_overflows(const search *S)
 }
 
 /* Asks whether an assignment fits the windows S->lo..S->hi, answering by
- * the cheap sums, the competency groups, the dedicated search (until half
- * the time is gone) or GLPK, in that order. */
+ * the cheap sums, the competency groups, the dedicated and local searches
+ * (until half the time is gone) or GLPK, in that order. */
 static keel_status ask(search *S, long long deadline_ms, keel_ilp_answer *answer, keel_error *err)
 {
     const keel_workload *w = S->w;
@@ -210,8 +215,10 @@ static keel_status ask(search *S, long long deadline_ms, keel_ilp_answer *answer
         return KEEL_OK;
     }
     long long now = keel_clock_ms();
-    keel_status rc = keel_fit_local(w, S->lo, S->hi, S->incumbent, now + (deadline_ms - now) / 5,
-                                    S->trial, answer);
+    keel_status rc = keel_fit_search(w, S->lo, S->hi, QUICK_NODES, deadline_ms, S->trial, answer);
+    if (!rc && *answer == KEEL_ILP_UNKNOWN)
+        rc = keel_fit_local(w, S->lo, S->hi, S->incumbent, now + (deadline_ms - now) / 5, S->trial,
+                            answer);
     if (!rc && *answer == KEEL_ILP_UNKNOWN)
         rc = keel_fit_search(w, S->lo, S->hi, LONG_MAX, now + (deadline_ms - now) / 2, S->trial,
                              answer);
