@@ -16,7 +16,8 @@
  *
  * The largest floor that reaches the stage-1 bound is the explanation;
  * when the bound is above every floor, it was proven by search: patients
- * are whole (and limits and the rules that join patients hold), so the
+ * are whole (and limits and the rules that join patients hold; with one
+ * zone per nurse, the nurses split among the zones, solve_split.c), so the
  * work cannot be split as evenly as the averages allow.
  */
 #include <stdlib.h>
@@ -101,11 +102,15 @@ static char *describe(const keel_roster *r, const keel_workload *w, const floor_
     double pct = 100.0 * keel_ratio_value(f->value), at = 100.0 * bound;
     if (below) {
         char *simple = describe(r, w, f, bound, false, inside);
-        char *text = simple ? keel_asprintf("patients are whole: with the patient limits and the "
-                                            "unit's rules, no split of whole patients brings the "
+        /* With one zone per nurse, the nurses' split among the zones too. */
+        bool zones = keel_split_applies(w);
+        char *text = simple ? keel_asprintf("patients are whole%s: with the patient limits and the "
+                                            "unit's rules, no split of whole patients%s brings the "
                                             "heaviest load below %.1f %% (proven by search); the "
                                             "largest simple reason gives %.1f %%: %s",
-                                            at, pct, simple)
+                                            zones ? " and each nurse works in one zone" : "",
+                                            zones ? " and of the nurses among the zones" : "", at,
+                                            pct, simple)
                             : NULL;
         free(simple);
         return text;

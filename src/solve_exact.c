@@ -335,6 +335,29 @@ static void finish_stage(keel_stage *st, keel_ratio value, keel_ratio bound, boo
     st->seconds = (double)(keel_clock_ms() - started) / 1000.0;
 }
 
+/* The first candidate below position hi that the zone-split floor
+ * (solve_split.c) does not rule out; candidates before it are proven out. */
+static keel_status split_start(const search *S, size_t hi, size_t *lo)
+{
+    size_t a = 0, b = hi; /* the first possible position is in [a, b] */
+    *lo = 0;
+    if (!keel_split_applies(S->w))
+        return KEEL_OK;
+    while (a < b) {
+        size_t mid = a + (b - a) / 2;
+        bool possible = true;
+        keel_status rc = keel_split_possible(S->w, S->cand[mid], &possible);
+        if (rc)
+            return rc;
+        if (possible)
+            b = mid;
+        else
+            a = mid + 1;
+    }
+    *lo = a;
+    return KEEL_OK;
+}
+
 static keel_status stage_peak(search *S, long long deadline_ms, int *best, keel_stage *st,
                               keel_error *err)
 {
@@ -358,7 +381,11 @@ static keel_status stage_peak(search *S, long long deadline_ms, int *best, keel_
         return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
     S->calls = 0;
     size_t proven_lo = 0, hi = S->ncand ? peak_position(S, best) : 0;
-    keel_status rc = descend(S, &down, 0, hi, deadline_ms, best, &proven_lo, err);
+    size_t lo = 0;
+    keel_status rc = split_start(S, hi, &lo);
+    if (rc)
+        return keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
+    rc = descend(S, &down, lo, hi, deadline_ms, best, &proven_lo, err);
     if (rc)
         return rc;
     keel_ratio value = keel_solve_peak(w, best);

@@ -170,6 +170,18 @@ keel_status keel_fit_local(const keel_workload *w, const long long *lo, const lo
                            const int *start, long long deadline_ms, int *nurse_of,
                            keel_ilp_answer *answer);
 
+/* solve_split.c: true when the zone-split floor applies (policy.max_zones
+ * 1, every patient in a zone, no clock, at least two zones). */
+bool keel_split_applies(const keel_workload *w);
+
+/* solve_split.c: *possible is false when it is proven that no valid
+ * assignment has every counted nurse at or under utilisation t, because no
+ * split of the nurses among the zones gives each zone the care, places and
+ * high-acuity places it needs; true otherwise (also when the floor does not
+ * apply or its table would be too large).  Statuses: KEEL_OK,
+ * KEEL_ERR_NOMEM. */
+keel_status keel_split_possible(const keel_workload *w, keel_ratio t, bool *possible);
+
 /* The methods.  Each fills the stages of sol, whose nurse_of holds the
  * greedy incumbent on entry, and may replace the assignment with a better
  * one; deadline_ms is on keel_clock_ms().  Statuses: KEEL_OK,

@@ -617,6 +617,37 @@ static void test_placement_recovers_when_heaviest_first_strands_a_zone(void **st
     tu_case_free(c);
 }
 
+/* A pooled roster with one zone per nurse and nurses who differ (hours,
+ * duty, limits, a skill), with high acuity, ratios and isolation. */
+static tu_case *random_pooled_case(uint64_t *seed)
+{
+    size_t nn = (size_t)tu_range(seed, 2, 4), np = (size_t)tu_range(seed, 2, 8);
+    tu_case *c = tu_case_new(nn, np);
+    keel_workload *w = &c->w;
+    w->max_zones = 1;
+    w->nzones = (size_t)tu_range(seed, 2, 3);
+    w->max_high_acuity = tu_range(seed, 0, 1) ? 1 : KEEL_ABSENT;
+    for (size_t n = 0; n < nn; n++) {
+        w->capacity_minutes[n] = tu_range(seed, 0, 2) == 0 ? 420 : 660;
+        w->max_patients[n] = tu_range(seed, 1, 4);
+        if (tu_range(seed, 0, 2) == 0)
+            tu_add_skill(c, n, "chemo");
+    }
+    for (size_t p = 0; p < np; p++) {
+        w->care_minutes[p] = tu_range(seed, 1, 14) * 30;
+        w->ratio_limit[p] = tu_range(seed, 0, 5) == 0 ? 2 : (int)np;
+        w->high_acuity[p] = w->max_high_acuity != KEEL_ABSENT && tu_range(seed, 0, 3) == 0;
+        w->side[p] =
+            (signed char)(tu_range(seed, 0, 3) < 3 ? KEEL_SIDE_NONE : tu_range(seed, 1, 2));
+        w->zone[p] = tu_range(seed, 0, (int)w->nzones - 1);
+        if (tu_range(seed, 0, 4) == 0)
+            tu_add_need(c, p, "chemo");
+    }
+    tu_refresh(c);
+    derive(c);
+    return c;
+}
+
 /* Random pooled rosters with one zone per nurse and nurses who differ
  * (hours, limits, a skill), with high acuity, ratios and isolation: the
  * greedy placement never breaks a rule, and the zone-by-zone polish keeps
@@ -630,30 +661,9 @@ static void test_zone_polish_reaches_the_best_plan_with_the_zones_kept(void **st
     uint64_t seed = 77;
     int placed = 0, feasible = 0;
     for (int round = 0; round < 300; round++) {
-        size_t nn = (size_t)tu_range(&seed, 2, 4), np = (size_t)tu_range(&seed, 2, 8);
-        tu_case *c = tu_case_new(nn, np);
+        tu_case *c = random_pooled_case(&seed);
         keel_workload *w = &c->w;
-        w->max_zones = 1;
-        w->nzones = (size_t)tu_range(&seed, 2, 3);
-        w->max_high_acuity = tu_range(&seed, 0, 1) ? 1 : KEEL_ABSENT;
-        for (size_t n = 0; n < nn; n++) {
-            w->capacity_minutes[n] = tu_range(&seed, 0, 2) == 0 ? 420 : 660;
-            w->max_patients[n] = tu_range(&seed, 1, 4);
-            if (tu_range(&seed, 0, 2) == 0)
-                tu_add_skill(c, n, "chemo");
-        }
-        for (size_t p = 0; p < np; p++) {
-            w->care_minutes[p] = tu_range(&seed, 1, 14) * 30;
-            w->ratio_limit[p] = tu_range(&seed, 0, 5) == 0 ? 2 : (int)np;
-            w->high_acuity[p] = w->max_high_acuity != KEEL_ABSENT && tu_range(&seed, 0, 3) == 0;
-            w->side[p] =
-                (signed char)(tu_range(&seed, 0, 3) < 3 ? KEEL_SIDE_NONE : tu_range(&seed, 1, 2));
-            w->zone[p] = tu_range(&seed, 0, (int)w->nzones - 1);
-            if (tu_range(&seed, 0, 4) == 0)
-                tu_add_need(c, p, "chemo");
-        }
-        tu_refresh(c);
-        derive(c);
+        size_t nn = w->nnurses, np = w->npatients;
         best whole = {.w = w, .pass = PASS_BALANCE};
         whole.a = calloc(np + 1, sizeof *whole.a);
         visit(&whole, 0);
@@ -773,6 +783,48 @@ static void test_local_search_answers_only_with_a_plan_that_fits(void **state)
     assert_true(found > exists / 2);
 }
 
+/* The zone-split floor never rules out the optimum, and the exact method
+ * with it still proves the optimum of the enumeration; on some rosters it
+ * rules out values above the simple floors. */
+static void test_zone_split_floor_never_passes_the_optimum(void **state)
+{
+    (void)state;
+    /* Source: exhaustive enumeration of every assignment, as above. */
+    uint64_t seed = 515;
+    int feasible = 0, bites = 0;
+    for (int round = 0; round < 400; round++) {
+        tu_case *c = random_pooled_case(&seed);
+        keel_workload *w = &c->w;
+        for (size_t n = 0; n < w->nnurses; n++) /* some charge-like duty */
+            w->duty_minutes[n] = tu_range(&seed, 0, 3) == 0 ? tu_range(&seed, 1, 12) * 10 : 0;
+        best whole = {.w = w, .pass = PASS_BALANCE};
+        whole.a = calloc(w->npatients + 1, sizeof *whole.a);
+        visit(&whole, 0);
+        if (whole.found) {
+            feasible++;
+            bool possible = false;
+            assert_true(keel_split_applies(w));
+            assert_int_equal(keel_split_possible(w, whole.peak, &possible), KEEL_OK);
+            assert_true(possible);
+            keel_ratio simple = keel_solve_peak_floor(w);
+            if (keel_ratio_cmp(simple, whole.peak) < 0) {
+                assert_int_equal(keel_split_possible(w, simple, &possible), KEEL_OK);
+                bites += !possible;
+            }
+            keel_solution *s = solve(c);
+            assert_int_equal(s->stages[0].status, KEEL_SOLVE_OPTIMAL);
+            assert_true(s->stages[0].value == keel_ratio_value(whole.peak));
+            keel_solution_free(s);
+        }
+        free(whole.a);
+        tu_case_free(c);
+    }
+    print_message("# zone split: rules out the simple floor on %d of %d feasible rosters\n", bites,
+                  feasible);
+    assert_true(feasible > 150);
+    assert_true(bites > 0);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -784,6 +836,7 @@ int main(void)
         cmocka_unit_test(test_placement_recovers_when_heaviest_first_strands_a_zone),
         cmocka_unit_test(test_zone_polish_reaches_the_best_plan_with_the_zones_kept),
         cmocka_unit_test(test_local_search_answers_only_with_a_plan_that_fits),
+        cmocka_unit_test(test_zone_split_floor_never_passes_the_optimum),
     };
     return cmocka_run_group_tests_name("rules", tests, NULL, NULL);
 }
