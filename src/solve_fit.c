@@ -19,7 +19,8 @@
  * more than they have.
  *
  * The search stops after a node budget or at a deadline and answers
- * "unknown"; the caller then asks GLPK.  A "feasible" or "infeasible" answer is exact.
+ * "unknown"; the caller then tries its other answerers (solve_exact.c).  A
+ * "feasible" or "infeasible" answer is exact.
  */
 #include <stdlib.h>
 #include <string.h>
