@@ -103,7 +103,7 @@ static char *describe(const keel_roster *r, const keel_workload *w, const floor_
     if (below) {
         char *simple = describe(r, w, f, bound, false, inside);
         /* With one zone per nurse, the nurses' split among the zones too. */
-        bool zones = keel_split_applies(w);
+        bool zones = keel_one_zone_each(w);
         char *text = simple ? keel_asprintf("patients are whole%s: with the patient limits and the "
                                             "unit's rules, no split of whole patients%s brings the "
                                             "heaviest load below %.1f %% (proven by search); the "

@@ -14,13 +14,16 @@
  * ("lift") asks the same upwards for the lightest utilisation with every budget of stage 1 held.
  *
  * Each question goes to the dedicated search (solve_fit.c) for a quick
- * look, then to the local search (solve_local.c) for at most a fifth of its
- * time, back to the dedicated search until half of its time, and to GLPK
- * (solve_ilp.c) for the rest: the local search finds tight packings, the
- * dedicated search finds and refutes them where GLPK's relaxation cannot,
- * and GLPK answers the questions its relaxation decides.  Questions are time-boxed while the search
- * narrows the range, so one hard question cannot stall it; at the end the decisive question (just
- * below the incumbent) gets all the time that is left. Stage 1 may use most of the time limit;
+ * look, then to the local search (solve_local.c) for at most a fifth of
+ * its time, back to the dedicated search until half of its time, and to
+ * GLPK (solve_ilp.c) for the rest: the local search finds tight packings,
+ * the dedicated search finds and refutes them where GLPK's relaxation
+ * cannot, and GLPK answers the questions its relaxation decides.
+ * Questions are time-boxed while the search narrows the range, so one hard
+ * question cannot stall it; at the end the decisive question (just below
+ * the incumbent) gets all the time that is left.  On pooled units with one
+ * zone per nurse, stage 1 first skips the candidates the zone-split floor
+ * (solve_split.c) rules out.  Stage 1 may use most of the time limit;
  * stage 2 the rest.
  */
 #include <limits.h>
@@ -341,7 +344,7 @@ static keel_status split_start(const search *S, size_t hi, size_t *lo)
 {
     size_t a = 0, b = hi; /* the first possible position is in [a, b] */
     *lo = 0;
-    if (!keel_split_applies(S->w))
+    if (!keel_one_zone_each(S->w))
         return KEEL_OK;
     while (a < b) {
         size_t mid = a + (b - a) / 2;

@@ -170,9 +170,10 @@ keel_status keel_fit_local(const keel_workload *w, const long long *lo, const lo
                            const int *start, long long deadline_ms, int *nurse_of,
                            keel_ilp_answer *answer);
 
-/* solve_split.c: true when the zone-split floor applies (policy.max_zones
- * 1, every patient in a zone, no clock, at least two zones). */
-bool keel_split_applies(const keel_workload *w);
+/* solve_zones.c: true when each nurse works in one zone: policy.max_zones
+ * 1, every patient in a zone, at least two zones, no clock (where the zone
+ * polish and the zone-split floor apply). */
+bool keel_one_zone_each(const keel_workload *w);
 
 /* solve_split.c: *possible is false when it is proven that no valid
  * assignment has every counted nurse at or under utilisation t, because no

@@ -44,16 +44,6 @@ typedef struct split {
     long nways;
 } split;
 
-bool keel_split_applies(const keel_workload *w)
-{
-    if (w->max_zones != 1 || w->clocked || w->nzones < 2)
-        return false;
-    for (size_t p = 0; p < w->npatients; p++)
-        if (w->zone[p] < 0)
-            return false;
-    return true;
-}
-
 /* True when k nurses of each class meet the zone's three sums. */
 static bool meets(const split *S, const int *k)
 {
@@ -109,7 +99,7 @@ static bool fits(const split *S, long s, long v)
 keel_status keel_split_possible(const keel_workload *w, keel_ratio t, bool *possible)
 {
     *possible = true;
-    if (!keel_split_applies(w))
+    if (!keel_one_zone_each(w))
         return KEEL_OK;
     split S = {.a = t.num, .b = t.den};
     for (size_t n = 0; n < w->nnurses; n++) {

@@ -672,7 +672,7 @@ out:
  * a problem of its own.  Each is solved by the exact method (stages 1 and
  * 2) from its part of the plan, within an equal share of the time left,
  * and its plan kept when it is no worse. */
-static bool polish_applies(const keel_workload *w)
+bool keel_one_zone_each(const keel_workload *w)
 {
     if (w->max_zones != 1 || w->clocked || w->nzones < 2)
         return false;
@@ -685,7 +685,7 @@ static bool polish_applies(const keel_workload *w)
 keel_status keel_zones_polish(const keel_workload *w, long long deadline_ms, int *nurse_of,
                               keel_error *err)
 {
-    if (!polish_applies(w))
+    if (!keel_one_zone_each(w))
         return KEEL_OK;
     size_t np = w->npatients, nn = w->nnurses;
     size_t *members = keel_malloc((np + 1) * sizeof *members);
