@@ -183,6 +183,12 @@ bool keel_one_zone_each(const keel_workload *w);
  * KEEL_ERR_NOMEM. */
 keel_status keel_split_possible(const keel_workload *w, keel_ratio t, bool *possible);
 
+/* solve_local.c: lowers the heaviest utilisation of nurse_of (which keeps
+ * every rule) by the local search, asking each time for every counted
+ * nurse strictly below the plan's peak, until it finds none or deadline_ms
+ * passes.  Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
+keel_status keel_local_descent(const keel_workload *w, long long deadline_ms, int *nurse_of);
+
 /* The methods.  Each fills the stages of sol, whose nurse_of holds the
  * greedy incumbent on entry, and may replace the assignment with a better
  * one; deadline_ms is on keel_clock_ms().  Statuses: KEEL_OK,

@@ -206,3 +206,30 @@ out:
     keel_tally_free(&L.t);
     return rc;
 }
+
+keel_status keel_local_descent(const keel_workload *w, long long deadline_ms, int *nurse_of)
+{
+    size_t np = w->npatients, nn = w->nnurses;
+    long long *lo = keel_calloc(nn ? nn : 1, sizeof *lo),
+              *hi = keel_calloc(nn ? nn : 1, sizeof *hi);
+    int *trial = keel_calloc(np ? np : 1, sizeof *trial);
+    keel_status rc = lo && hi && trial ? KEEL_OK : KEEL_ERR_NOMEM;
+    keel_ilp_answer answer = KEEL_ILP_FEASIBLE;
+    while (!rc && answer == KEEL_ILP_FEASIBLE && keel_clock_ms() < deadline_ms) {
+        /* Every counted nurse strictly below the plan's heaviest utilisation. */
+        keel_ratio peak = keel_solve_peak(w, nurse_of);
+        for (size_t n = 0; n < nn; n++) {
+            long long cap = w->capacity_minutes[n];
+            hi[n] = keel_workload_counted(w, n)
+                        ? (peak.num * cap + peak.den - 1) / peak.den - 1 - w->duty_minutes[n]
+                        : 0;
+        }
+        rc = keel_fit_local(w, lo, hi, nurse_of, deadline_ms, trial, &answer);
+        if (!rc && answer == KEEL_ILP_FEASIBLE)
+            memcpy(nurse_of, trial, np * sizeof *nurse_of);
+    }
+    free(lo);
+    free(hi);
+    free(trial);
+    return rc;
+}
