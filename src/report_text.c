@@ -350,13 +350,16 @@ static void write_proof(FILE *out, const keel_solution *s, const keel_metrics *m
          m->min_utilisation < s->stages[1].value - 5e-10)) {
         char *line = keel_asprintf(
             "This plan spends some of the balance tolerance (%.1f points) on %s: heaviest "
-            "%.1f %% and lightest %.1f %%, against %.1f %% and %.1f %% at best.",
+            "%.1f %% and lightest %.1f %%, against %.1f %% and %.1f %% %s.",
             100.0 * s->continuity.tolerance,
             s->continuity.applies && s->proximity.applies ? "continuity and proximity"
             : s->continuity.applies                       ? "continuity"
                                                           : "proximity",
             100.0 * m->max_utilisation, 100.0 * m->min_utilisation, 100.0 * s->stages[0].value,
-            100.0 * s->stages[1].value);
+            100.0 * s->stages[1].value,
+            s->stages[0].status == KEEL_SOLVE_OPTIMAL && s->stages[1].status == KEEL_SOLVE_OPTIMAL
+                ? "at best"
+                : "in the most even plan found");
         if (line)
             keel_write_wrapped(out, "  ", line, 78);
         free(line);
