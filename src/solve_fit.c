@@ -157,8 +157,8 @@ static bool still_possible(const fit *F, size_t k)
             continue;
         }
         /* At most the free places' worth of the heaviest patients to come. */
-        int most = w->max_patients[n];
-        size_t open = most > F->count[n] ? (size_t)(most - F->count[n]) : 0;
+        int free_places = w->max_patients[n] - F->count[n];
+        size_t open = free_places > 0 ? (size_t)free_places : 0;
         if (open > np - k)
             open = np - k;
         long long heaviest = F->suffix[k] - F->suffix[k + open];
@@ -170,7 +170,6 @@ static bool still_possible(const fit *F, size_t k)
         }
         if (w->max_high_acuity != KEEL_ABSENT) {
             int places = w->max_high_acuity - F->tally.high[n];
-            int free_places = w->max_patients[n] - F->count[n];
             high_room += places < free_places ? places : free_places;
         }
         if (F->lo[n] > F->care[n]) {
