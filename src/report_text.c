@@ -307,6 +307,8 @@ static void write_count_stage(FILE *out, const keel_stage *st, const char *what,
     fprintf(out, "  %-11s %3.0f %-8s ", what, st->value, unit);
     if (st->status == KEEL_SOLVE_OPTIMAL)
         fputs("proven best possible", out);
+    else if (st->value == st->bound) /* proximity: the zones proven, the rooms not */
+        fputs("proven best possible; the rooms are not proven", out);
     else
         fprintf(out, "not proven: %s %.0f", limit, st->bound);
     if (st->solver_calls > 0)

@@ -113,12 +113,11 @@ static long long keep_ceiling(const keel_workload *w)
     return n;
 }
 
-/* Distinct values of key[] among the patients (zones or rooms in use):
- * each needs a nurse, a simple lower limit. */
 /* A proven floor on the distinct values of key[] per nurse, summed: every
  * value in use needs a nurse; and when every patient has a value, every
- * nurse who must take patients (min_patients) holds one at least. */
-static long long distinct(const keel_workload *w, const int *key, size_t nkeys)
+ * nurse who must take patients (min_patients, or a window lo[n] above
+ * zero) holds one at least. */
+static long long distinct(const keel_workload *w, const int *key, size_t nkeys, const long long *lo)
 {
     long long n = 0, working = 0;
     bool everyone = true;
@@ -131,7 +130,7 @@ static long long distinct(const keel_workload *w, const int *key, size_t nkeys)
     for (size_t p = 0; p < w->npatients; p++)
         everyone = everyone && key[p] >= 0;
     for (size_t m = 0; m < w->nnurses; m++)
-        working += w->min_patients[m] > 0;
+        working += w->min_patients[m] > 0 || (keel_workload_counted(w, m) && lo[m] > 0);
     return everyone && working > n ? working : n;
 }
 
@@ -143,16 +142,16 @@ typedef struct follow {
     bool proven; /* GLPK proved its answer to the last question optimal */
 } follow;
 
-static void finish(keel_stage *st, const char *name, long long value, long long bound, bool exact,
-                   int calls, long long started)
+/* Fills a stage; proven says the whole stage's objective is proven (for
+ * proximity, the rooms too: the value and bound are zones only). */
+static void finish(keel_stage *st, const char *name, long long value, long long bound, bool proven,
+                   bool exact, int calls, long long started)
 {
     st->name = name;
     st->value = (double)value;
     st->bound = (double)bound;
     st->gap = keel_gap(st->value, st->bound);
-    st->status = value == bound ? KEEL_SOLVE_OPTIMAL
-                 : exact        ? KEEL_SOLVE_TIME_LIMIT
-                                : KEEL_SOLVE_HEURISTIC;
+    st->status = proven ? KEEL_SOLVE_OPTIMAL : exact ? KEEL_SOLVE_TIME_LIMIT : KEEL_SOLVE_HEURISTIC;
     st->solver_calls = calls;
     st->seconds = (double)(keel_clock_ms() - started) / 1000.0;
 }
@@ -247,17 +246,26 @@ keel_status keel_solve_follow(const keel_workload *w, bool exact, long long dead
             sol->continuity.zero_proven = kept_needed == bound;
         }
         sol->continuity.kept = (long)kept_needed;
-        finish(&sol->stages[sol->nstages++], "continuity", kept_needed, bound, exact, calls,
-               started);
+        finish(&sol->stages[sol->nstages++], "continuity", kept_needed, bound, kept_needed == bound,
+               exact, calls, started);
     }
     if (near) {
         long long started = keel_clock_ms();
-        long long bound = distinct(w, w->zone, w->nzones), zones, rooms;
+        long long zones, rooms;
         int calls = 0;
         tolerance_windows(w, peak, lift, w->tolerance, F.lo, F.hi);
+        long long bound = distinct(w, w->zone, w->nzones, F.lo);
+        long long room_bound = distinct(w, w->room, w->nrooms, F.lo);
+        long long weight = (long long)w->npatients + 1;
+        /* A local search first, for at most a fifth of the stage's time. */
+        if ((rc = keel_near_local(w, F.lo, F.hi, kept_needed, weight * bound + room_bound,
+                                  started + (deadline_ms - started) / 5, sol->nurse_of))) {
+            rc = keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
+            goto out;
+        }
         keel_solve_spread(w, sol->nurse_of, &zones, &rooms);
         /* At the simple floors already: nothing for GLPK to improve. */
-        bool floor = zones == bound && rooms == distinct(w, w->room, w->nrooms);
+        bool floor = zones == bound && rooms == room_bound;
         if (!floor)
             rc = improve(&F, KEEL_GOAL_NEAR, kept_needed, deadline_ms, sol->nurse_of, &bound,
                          &calls, err);
@@ -269,9 +277,23 @@ keel_status keel_solve_follow(const keel_workload *w, bool exact, long long dead
         sol->proximity.rooms = (long)rooms;
         /* Zones and rooms are proven together, by GLPK or by the simple
          * limits (every zone and every room with patients needs a nurse). */
-        bool proven = F.proven || (zones == bound && rooms == distinct(w, w->room, w->nrooms));
-        finish(&sol->stages[sol->nstages++], "proximity", zones, proven ? zones : bound, exact,
-               calls, started);
+        bool proven = F.proven || (zones == bound && rooms == room_bound);
+        finish(&sol->stages[sol->nstages++], "proximity", zones, proven ? zones : bound, proven,
+               exact, calls, started);
+        /* Stage 4 keeps at least stage 3's count and may find a plan that
+         * keeps more (when stage 3 was not proven): report the plan's. */
+        long long kept = keel_solve_kept(w, sol->nurse_of);
+        if (keep && kept > kept_needed) {
+            keel_stage *st = &sol->stages[sol->nstages - 2];
+            sol->continuity.kept = (long)kept;
+            if (w->tolerance == 0) { /* the same windows */
+                sol->continuity.kept_at_zero = (long)kept;
+                sol->continuity.zero_proven = kept == (long long)st->bound;
+            }
+            st->value = (double)kept;
+            st->gap = keel_gap(st->value, st->bound);
+            st->status = kept == (long long)st->bound ? KEEL_SOLVE_OPTIMAL : st->status;
+        }
     }
 out:
     free(F.lo);

@@ -189,6 +189,26 @@ keel_status keel_split_possible(const keel_workload *w, keel_ratio t, bool *poss
  * passes.  Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
 keel_status keel_local_descent(const keel_workload *w, long long deadline_ms, int *nurse_of);
 
+/* The fixed-seed coin of the local searches (xorshift64): the next value
+ * of *state, which must not be zero. */
+static inline unsigned long long keel_coin_flip(unsigned long long *state)
+{
+    *state ^= *state << 13;
+    *state ^= *state >> 7;
+    *state ^= *state << 17;
+    return *state;
+}
+
+/* solve_near.c: lowers (census + 1) zones + rooms of nurse_of (which keeps
+ * every rule, the windows lo/hi and min_kept patients with their previous
+ * nurse) by a local search that keeps them too, until the cost reaches
+ * floor, the search stalls or deadline_ms passes; nurse_of becomes the
+ * cheapest plan seen.  Does nothing with the clock.  Statuses: KEEL_OK,
+ * KEEL_ERR_NOMEM. */
+keel_status keel_near_local(const keel_workload *w, const long long *lo, const long long *hi,
+                            long long min_kept, long long floor, long long deadline_ms,
+                            int *nurse_of);
+
 /* The methods.  Each fills the stages of sol, whose nurse_of holds the
  * greedy incumbent on entry, and may replace the assignment with a better
  * one; deadline_ms is on keel_clock_ms().  Statuses: KEEL_OK,

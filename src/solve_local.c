@@ -42,10 +42,7 @@ typedef struct local {
 
 static unsigned long long flip(local *L)
 {
-    L->coin ^= L->coin << 13;
-    L->coin ^= L->coin >> 7;
-    L->coin ^= L->coin << 17;
-    return L->coin;
+    return keel_coin_flip(&L->coin);
 }
 
 /* How far care c is from nurse n's window. */

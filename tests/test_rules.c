@@ -783,6 +783,67 @@ static void test_local_search_answers_only_with_a_plan_that_fits(void **state)
     assert_true(found > exists / 2);
 }
 
+/* The proximity search (stage 4) keeps every rule, the windows and the
+ * patients kept, never ends above its start, never below the optimum, and
+ * reaches the optimum on most rosters. */
+static void test_proximity_search_keeps_the_rules_and_reaches_the_best(void **state)
+{
+    (void)state;
+    /* Source: exhaustive enumeration of every assignment, as above. */
+    uint64_t seed = 8080;
+    int asked = 0, improved = 0, reached = 0;
+    for (int round = 0; round < 6000; round++) {
+        tu_case *c = random_rules_case(&seed);
+        keel_workload *w = &c->w;
+        size_t nn = w->nnurses, np = w->npatients;
+        best b = {.w = w, .pass = PASS_NEAR};
+        b.a = calloc(np + 1, sizeof *b.a);
+        b.lo = calloc(nn, sizeof *b.lo);
+        b.hi = calloc(nn, sizeof *b.hi);
+        int *plan = calloc(np + 1, sizeof *plan);
+        long long total = 0;
+        for (size_t p = 0; p < np; p++)
+            total += w->care_minutes[p];
+        long long share = total / (long long)nn;
+        for (size_t n = 0; n < nn; n++) { /* windows around an even share */
+            b.lo[n] = share - tu_range(&seed, 0, (int)share + 1);
+            b.lo[n] = b.lo[n] < 0 ? 0 : b.lo[n];
+            b.hi[n] = share + tu_range(&seed, 0, (int)share / 2 + 60);
+        }
+        if (np > 0 && first_valid(&b, 0, true)) {
+            memcpy(plan, b.a, np * sizeof *plan);
+            b.kept = tu_range(&seed, 0, (int)keel_solve_kept(w, plan));
+            long long zones, rooms, start_zones, start_rooms;
+            keel_solve_spread(w, plan, &start_zones, &start_rooms);
+            visit(&b, 0);
+            assert_true(b.near_found);
+            assert_int_equal(
+                keel_near_local(w, b.lo, b.hi, b.kept, 0, keel_clock_ms() + 60000, plan), KEEL_OK);
+            memcpy(b.a, plan, np * sizeof *b.a);
+            assert_true(keeps_rules(w, b.a));
+            assert_true(inside(&b));
+            assert_true(keel_solve_kept(w, plan) >= b.kept);
+            keel_solve_spread(w, plan, &zones, &rooms);
+            long long weight = (long long)np + 1;
+            long long cost = weight * zones + rooms, optimum = weight * b.zones + b.rooms;
+            assert_true(cost <= weight * start_zones + start_rooms);
+            assert_true(cost >= optimum);
+            asked++;
+            improved += cost < weight * start_zones + start_rooms;
+            reached += cost == optimum;
+        }
+        free(plan);
+        free(b.a);
+        free(b.lo);
+        free(b.hi);
+        tu_case_free(c);
+    }
+    print_message("# proximity search: at the optimum on %d of %d rosters (%d improved)\n", reached,
+                  asked, improved);
+    assert_true(asked > 300 && improved > 50);
+    assert_true(reached > asked * 9 / 10);
+}
+
 /* The zone-split floor never rules out the optimum, and the exact method
  * with it still proves the optimum of the enumeration; on some rosters it
  * rules out values above the simple floors. */
@@ -837,6 +898,7 @@ int main(void)
         cmocka_unit_test(test_zone_polish_reaches_the_best_plan_with_the_zones_kept),
         cmocka_unit_test(test_local_search_answers_only_with_a_plan_that_fits),
         cmocka_unit_test(test_zone_split_floor_never_passes_the_optimum),
+        cmocka_unit_test(test_proximity_search_keeps_the_rules_and_reaches_the_best),
     };
     return cmocka_run_group_tests_name("rules", tests, NULL, NULL);
 }
