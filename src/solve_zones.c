@@ -671,7 +671,8 @@ out:
  * split into the zones of their patients; keeping that split, each zone is
  * a problem of its own.  Each is solved by the exact method (stages 1 and
  * 2) from its part of the plan, within an equal share of the time left,
- * and its plan kept when it is no worse. */
+ * and its plan kept when it is no worse.  In the time left after that,
+ * the zones trade nurses (trade_zones). */
 bool keel_one_zone_each(const keel_workload *w)
 {
     if (w->max_zones != 1 || w->clocked || w->nzones < 2)
@@ -680,6 +681,184 @@ bool keel_one_zone_each(const keel_workload *w)
         if (w->zone[p] < 0)
             return false;
     return true;
+}
+
+/* The members of zone z (patients) and its nurses (home[n] == z), with
+ * local[n] the index of nurse n among them. */
+static void gather(const keel_workload *w, const int *home, int z, size_t *members, size_t *m,
+                   size_t *nurses, size_t *k, int *local)
+{
+    *m = *k = 0;
+    for (size_t p = 0; p < w->npatients; p++)
+        if (w->zone[p] == z)
+            members[(*m)++] = p;
+    for (size_t n = 0; n < w->nnurses; n++)
+        if (home[n] == z) {
+            local[n] = (int)*k;
+            nurses[(*k)++] = n;
+        }
+}
+
+/* Solves zone z with its nurses nurses[0..k) by the exact method from
+ * plan (the zone's part of a valid plan, in local nurse indices), within
+ * deadline_ms; *valid when the result keeps every rule. */
+static keel_status solve_part(const keel_workload *w, const size_t *members, size_t m,
+                              const size_t *nurses, size_t k, long long deadline_ms, int *plan,
+                              keel_ratio *peak, bool *valid, keel_error *err)
+{
+    keel_workload *sub = zone_workload(w, members, m, nurses, 0, k);
+    if (!sub)
+        return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    keel_solution s = {.npatients = m, .nurse_of = plan};
+    keel_status rc = keel_method_ilp(sub, deadline_ms, &s, err);
+    if (!rc && keel_solve_validate(sub, plan, valid))
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    *peak = keel_solve_peak(sub, plan);
+    keel_workload_free(sub);
+    return rc;
+}
+
+/* The greedy plan of zone z's patients with the nurses nurses[0..k): its
+ * heaviest utilisation in *peak, *placed false when it leaves a patient
+ * out or breaks a rule. */
+static keel_status greedy_part(const keel_workload *w, const size_t *members, size_t m,
+                               const size_t *nurses, size_t k, int *plan, keel_ratio *peak,
+                               bool *placed)
+{
+    keel_workload *sub = zone_workload(w, members, m, nurses, 0, k);
+    if (!sub)
+        return KEEL_ERR_NOMEM;
+    keel_status rc = keel_greedy_place(sub, plan, placed);
+    if (!rc && *placed)
+        rc = keel_greedy_improve(sub, plan);
+    if (!rc && *placed)
+        rc = keel_solve_validate(sub, plan, placed);
+    *peak = keel_solve_peak(sub, plan);
+    keel_workload_free(sub);
+    return rc;
+}
+
+/* The utilisation of nurse n in nurse_of. */
+static keel_ratio utilisation(const keel_workload *w, const int *nurse_of, size_t n)
+{
+    long long care = 0;
+    for (size_t p = 0; p < w->npatients; p++)
+        if (nurse_of[p] == (int)n)
+            care += w->care_minutes[p];
+    return (keel_ratio){w->duty_minutes[n] + care, w->capacity_minutes[n]};
+}
+
+/* The two zones of a trade: patients, nurses (local indices in plan). */
+typedef struct trade {
+    size_t *members[2], *nurses[2];
+    size_t m[2], k[2];
+    int *plan[2];
+} trade;
+
+/* A zone can be heavy because of whom it has (say a part-timer as its only
+ * nurse with a skill its patients need), which no plan of the zone alone
+ * undoes.  So the zone of the heaviest nurse trades one of its nurses for
+ * one of another zone (nurses alike in capacity, duty and rules are not
+ * traded): each trade is screened by placing both zones afresh with the
+ * greedy method; the trade whose heavier zone ends lowest, and below the
+ * heaviest nurse, is made, and both zones are then solved by the exact
+ * method.  Repeats while a trade gains and time is left.  home is scratch. */
+static keel_status trade_zones(const keel_workload *w, long long deadline_ms, int *nurse_of,
+                               int *home, keel_error *err)
+{
+    size_t np = w->npatients, nn = w->nnurses;
+    trade T = {0};
+    int *local = keel_malloc((nn + 1) * sizeof *local);
+    keel_status rc = local ? KEEL_OK : KEEL_ERR_NOMEM;
+    for (int i = 0; i < 2; i++) {
+        T.members[i] = keel_malloc((np + 1) * sizeof *T.members[i]);
+        T.nurses[i] = keel_malloc((nn + 1) * sizeof *T.nurses[i]);
+        T.plan[i] = keel_malloc((np + 1) * sizeof *T.plan[i]);
+        if (!T.members[i] || !T.nurses[i] || !T.plan[i])
+            rc = KEEL_ERR_NOMEM;
+    }
+    while (!rc && keel_clock_ms() < deadline_ms) {
+        size_t heavy = nn;
+        keel_ratio peak = {0, 1};
+        for (size_t n = 0; n < nn; n++) {
+            home[n] = -1;
+            if (keel_workload_counted(w, n) &&
+                (heavy == nn || keel_ratio_cmp(utilisation(w, nurse_of, n), peak) > 0)) {
+                heavy = n;
+                peak = utilisation(w, nurse_of, n);
+            }
+        }
+        for (size_t p = 0; p < np; p++)
+            home[nurse_of[p]] = w->zone[p];
+        if (heavy == nn || home[heavy] < 0)
+            break;
+        int zs = home[heavy];
+        size_t best_a = nn, best_b = nn;
+        keel_ratio best = peak;
+        for (size_t a = 0; a < nn && !rc; a++) {
+            for (size_t b = 0; b < nn && home[a] == zs && !rc; b++) {
+                if (home[b] < 0 || home[b] == zs || alike(w, a, b))
+                    continue;
+                if (keel_clock_ms() >= deadline_ms)
+                    goto out;
+                keel_ratio worst = {0, 1};
+                bool placed = true;
+                int zb = home[b];
+                home[a] = home[b] = -2; /* a and b trade places */
+                for (int i = 0; i < 2 && placed && !rc; i++) {
+                    gather(w, home, i == 0 ? zs : zb, T.members[i], &T.m[i], T.nurses[i], &T.k[i],
+                           local);
+                    T.nurses[i][T.k[i]++] = i == 0 ? b : a;
+                    keel_ratio part;
+                    rc = greedy_part(w, T.members[i], T.m[i], T.nurses[i], T.k[i], T.plan[i], &part,
+                                     &placed);
+                    if (keel_ratio_cmp(part, worst) > 0)
+                        worst = part;
+                }
+                home[a] = zs;
+                home[b] = zb;
+                if (!rc && placed && keel_ratio_cmp(worst, best) < 0) {
+                    best = worst;
+                    best_a = a;
+                    best_b = b;
+                }
+            }
+        }
+        if (rc || best_a == nn)
+            break;
+        /* Make the trade: both zones afresh, then by the exact method. */
+        int zb = home[best_b];
+        home[best_a] = home[best_b] = -2;
+        for (int i = 0; i < 2 && !rc; i++) {
+            int z = i == 0 ? zs : zb;
+            gather(w, home, z, T.members[i], &T.m[i], T.nurses[i], &T.k[i], local);
+            T.nurses[i][T.k[i]++] = i == 0 ? best_b : best_a;
+            keel_ratio part;
+            bool placed, valid = false;
+            rc = greedy_part(w, T.members[i], T.m[i], T.nurses[i], T.k[i], T.plan[i], &part,
+                             &placed);
+            if (rc)
+                break;
+            long long now = keel_clock_ms();
+            rc = solve_part(w, T.members[i], T.m[i], T.nurses[i], T.k[i],
+                            now + (deadline_ms - now) / (4 - i), T.plan[i], &part, &valid, err);
+            if (!rc && (!placed || !valid))
+                goto out; /* cannot happen: the screen placed both */
+        }
+        for (int i = 0; i < 2 && !rc; i++)
+            for (size_t j = 0; j < T.m[i]; j++)
+                nurse_of[T.members[i][j]] = (int)T.nurses[i][T.plan[i][j]];
+    }
+out:
+    if (rc == KEEL_ERR_NOMEM && err->status == KEEL_OK)
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    for (int i = 0; i < 2; i++) {
+        free(T.members[i]);
+        free(T.nurses[i]);
+        free(T.plan[i]);
+    }
+    free(local);
+    return rc;
 }
 
 keel_status keel_zones_polish(const keel_workload *w, long long deadline_ms, int *nurse_of,
@@ -703,15 +882,8 @@ keel_status keel_zones_polish(const keel_workload *w, long long deadline_ms, int
     for (size_t p = 0; p < np; p++)
         home[nurse_of[p]] = w->zone[p];
     for (size_t z = 0; z < w->nzones && !rc; z++) {
-        size_t m = 0, k = 0;
-        for (size_t p = 0; p < np; p++)
-            if (w->zone[p] == (int)z)
-                members[m++] = p;
-        for (size_t n = 0; n < nn; n++)
-            if (home[n] == (int)z) {
-                local[n] = (int)k;
-                nurses[k++] = n;
-            }
+        size_t m, k;
+        gather(w, home, (int)z, members, &m, nurses, &k, local);
         if (m == 0)
             continue;
         keel_workload *sub = zone_workload(w, members, m, nurses, 0, k);
@@ -735,6 +907,8 @@ keel_status keel_zones_polish(const keel_workload *w, long long deadline_ms, int
                 nurse_of[members[i]] = (int)nurses[plan[i]];
         keel_workload_free(sub);
     }
+    if (!rc)
+        rc = trade_zones(w, deadline_ms, nurse_of, home, err);
 out:
     free(members);
     free(nurses);

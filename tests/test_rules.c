@@ -651,15 +651,16 @@ static tu_case *random_pooled_case(uint64_t *seed)
 /* Random pooled rosters with one zone per nurse and nurses who differ
  * (hours, limits, a skill), with high acuity, ratios and isolation: the
  * greedy placement never breaks a rule, and the zone-by-zone polish keeps
- * the rules, never raises the heaviest utilisation and reaches the least
- * heaviest utilisation over the assignments that keep each nurse in her
- * zone. */
-static void test_zone_polish_reaches_the_best_plan_with_the_zones_kept(void **state)
+ * the rules, never raises the heaviest utilisation and reaches at least
+ * the least heaviest utilisation over the assignments that keep each nurse
+ * in her zone (trades of nurses between zones can go lower), never below
+ * the optimum. */
+static void test_zone_polish_reaches_the_best_plan_with_the_zones_kept_or_better(void **state)
 {
     (void)state;
     /* Source: exhaustive enumeration of every assignment, as above. */
     uint64_t seed = 77;
-    int placed = 0, feasible = 0;
+    int placed = 0, feasible = 0, traded = 0;
     for (int round = 0; round < 300; round++) {
         tu_case *c = random_pooled_case(&seed);
         keel_workload *w = &c->w;
@@ -697,7 +698,11 @@ static void test_zone_polish_reaches_the_best_plan_with_the_zones_kept(void **st
             visit(&held, 0);
             memcpy(w->eligible, kept, np * nn * sizeof *kept);
             assert_true(held.found);
-            assert_int_equal(keel_ratio_cmp(after, held.peak), 0);
+            /* At least as good as the best with the split kept (the zones
+             * may trade nurses), never below the optimum. */
+            assert_true(keel_ratio_cmp(after, held.peak) <= 0);
+            assert_true(keel_ratio_cmp(after, whole.peak) >= 0);
+            traded += keel_ratio_cmp(after, held.peak) < 0;
             free(held.a);
             free(kept);
         }
@@ -705,10 +710,12 @@ static void test_zone_polish_reaches_the_best_plan_with_the_zones_kept(void **st
         free(whole.a);
         tu_case_free(c);
     }
-    print_message("# zone polish: %d of %d feasible rosters placed by the greedy\n", placed,
-                  feasible);
+    print_message("# zone polish: %d of %d feasible rosters placed by the greedy; trades beat "
+                  "the split on %d\n",
+                  placed, feasible, traded);
     assert_true(placed <= feasible);
     assert_true(placed > feasible / 2);
+    assert_true(traded > 0);
 }
 
 /* The first assignment of the enumeration's order that keeps every rule
@@ -895,7 +902,7 @@ int main(void)
         cmocka_unit_test(test_the_bound_is_explained_by_its_reason),
         cmocka_unit_test(test_each_joining_rule_is_named_when_it_conflicts),
         cmocka_unit_test(test_placement_recovers_when_heaviest_first_strands_a_zone),
-        cmocka_unit_test(test_zone_polish_reaches_the_best_plan_with_the_zones_kept),
+        cmocka_unit_test(test_zone_polish_reaches_the_best_plan_with_the_zones_kept_or_better),
         cmocka_unit_test(test_local_search_answers_only_with_a_plan_that_fits),
         cmocka_unit_test(test_zone_split_floor_never_passes_the_optimum),
         cmocka_unit_test(test_proximity_search_keeps_the_rules_and_reaches_the_best),
