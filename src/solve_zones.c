@@ -748,6 +748,29 @@ static keel_ratio utilisation(const keel_workload *w, const int *nurse_of, size_
     return (keel_ratio){w->duty_minutes[n] + care, w->capacity_minutes[n]};
 }
 
+/* True when, after nurses a and b trade zones, both zones' averages
+ * (care and duty over capacity) are below peak: no plan of a zone keeps
+ * every nurse below its average. */
+static bool averages_below(const keel_workload *w, const int *home, size_t a, size_t b,
+                           keel_ratio peak)
+{
+    for (int i = 0; i < 2; i++) {
+        size_t out = i == 0 ? a : b, in = i == 0 ? b : a;
+        int z = home[out];
+        long long load = w->duty_minutes[in], capacity = w->capacity_minutes[in];
+        for (size_t p = 0; p < w->npatients; p++)
+            load += w->zone[p] == z ? w->care_minutes[p] : 0;
+        for (size_t n = 0; n < w->nnurses; n++)
+            if (home[n] == z && n != out) {
+                load += w->duty_minutes[n];
+                capacity += w->capacity_minutes[n];
+            }
+        if (keel_ratio_cmp((keel_ratio){load, capacity}, peak) >= 0)
+            return false;
+    }
+    return true;
+}
+
 /* The two zones of a trade: patients, nurses (local indices in plan). */
 typedef struct trade {
     size_t *members[2], *nurses[2];
@@ -797,7 +820,8 @@ static keel_status trade_zones(const keel_workload *w, long long deadline_ms, in
         keel_ratio best = peak;
         for (size_t a = 0; a < nn && !rc; a++) {
             for (size_t b = 0; b < nn && home[a] == zs && !rc; b++) {
-                if (home[b] < 0 || home[b] == zs || alike(w, a, b))
+                if (home[b] < 0 || home[b] == zs || alike(w, a, b) ||
+                    !averages_below(w, home, a, b, peak))
                     continue;
                 if (keel_clock_ms() >= deadline_ms)
                     goto out;
