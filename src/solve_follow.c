@@ -10,10 +10,11 @@
  *
  * computed exactly (U*, L* are fractions of whole minutes, t is kept in
  * millionths).  Stage 4 also keeps stage 3's count.  Each stage starts from
- * the assignment it is given and improves it: greedy moves and swaps toward
- * the previous nurse, then, with the exact method, GLPK (solve_ilp.c) with
- * a share of the time left.  What the tolerance bought is measured too:
- * the continuity optimum at zero tolerance.
+ * the assignment it is given and improves it: stage 3 by greedy moves and
+ * swaps toward the previous nurse, stage 4 by a local search
+ * (solve_near.c); then, with the exact method, GLPK (solve_ilp.c) with a
+ * share of the time left.  What the tolerance bought is measured too: the
+ * continuity optimum at zero tolerance.
  */
 #include <stdlib.h>
 #include <string.h>
@@ -276,7 +277,8 @@ keel_status keel_solve_follow(const keel_workload *w, bool exact, long long dead
         sol->proximity.zones = (long)zones;
         sol->proximity.rooms = (long)rooms;
         /* Zones and rooms are proven together, by GLPK or by the simple
-         * limits (every zone and every room with patients needs a nurse). */
+         * floors (every zone and room with patients needs a nurse, every
+         * nurse who must take patients holds one). */
         bool proven = F.proven || (zones == bound && rooms == room_bound);
         finish(&sol->stages[sol->nstages++], "proximity", zones, proven ? zones : bound, proven,
                exact, calls, started);

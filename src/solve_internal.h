@@ -201,9 +201,10 @@ static inline unsigned long long keel_coin_flip(unsigned long long *state)
 
 /* solve_near.c: lowers (census + 1) zones + rooms of nurse_of (which keeps
  * every rule, the windows lo/hi and min_kept patients with their previous
- * nurse) by a local search that keeps them too, until the cost reaches
- * floor, the search stalls or deadline_ms passes; nurse_of becomes the
- * cheapest plan seen.  Does nothing with the clock.  Statuses: KEEL_OK,
+ * nurse) by a local search that keeps the rules and min_kept (it may leave
+ * the windows on the way), until the cost reaches floor, the search stalls
+ * or deadline_ms passes; nurse_of becomes the cheapest plan seen inside the
+ * windows.  Does nothing with the clock.  Statuses: KEEL_OK,
  * KEEL_ERR_NOMEM. */
 keel_status keel_near_local(const keel_workload *w, const long long *lo, const long long *hi,
                             long long min_kept, long long floor, long long deadline_ms,
