@@ -704,7 +704,7 @@ static void gather(const keel_workload *w, const int *home, int z, size_t *membe
  * deadline_ms; *valid when the result keeps every rule. */
 static keel_status solve_part(const keel_workload *w, const size_t *members, size_t m,
                               const size_t *nurses, size_t k, long long deadline_ms, int *plan,
-                              keel_ratio *peak, bool *valid, keel_error *err)
+                              bool *valid, keel_error *err)
 {
     keel_workload *sub = zone_workload(w, members, m, nurses, 0, k);
     if (!sub)
@@ -713,7 +713,6 @@ static keel_status solve_part(const keel_workload *w, const size_t *members, siz
     keel_status rc = keel_method_ilp(sub, deadline_ms, &s, err);
     if (!rc && keel_solve_validate(sub, plan, valid))
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
-    *peak = keel_solve_peak(sub, plan);
     keel_workload_free(sub);
     return rc;
 }
@@ -778,6 +777,32 @@ typedef struct trade {
     int *plan[2];
 } trade;
 
+/* Places both zones afresh by the greedy method after nurse a trades
+ * places with nurse b (of another zone): T holds the zones' plans, *worst
+ * the heavier zone's peak, *placed false when a plan leaves a patient out
+ * or breaks a rule. */
+static keel_status place_trade(const keel_workload *w, int *home, size_t a, size_t b, trade *T,
+                               int *local, keel_ratio *worst, bool *placed)
+{
+    int za = home[a], zb = home[b];
+    keel_status rc = KEEL_OK;
+    *worst = (keel_ratio){0, 1};
+    *placed = true;
+    home[a] = home[b] = -2; /* in neither zone while the zones are gathered */
+    for (int i = 0; i < 2 && *placed && !rc; i++) {
+        gather(w, home, i == 0 ? za : zb, T->members[i], &T->m[i], T->nurses[i], &T->k[i], local);
+        T->nurses[i][T->k[i]++] = i == 0 ? b : a;
+        keel_ratio part;
+        rc = greedy_part(w, T->members[i], T->m[i], T->nurses[i], T->k[i], T->plan[i], &part,
+                         placed);
+        if (keel_ratio_cmp(part, *worst) > 0)
+            *worst = part;
+    }
+    home[a] = za;
+    home[b] = zb;
+    return rc;
+}
+
 /* A zone can be heavy because of whom it has (say a part-timer as its only
  * nurse with a skill its patients need), which no plan of the zone alone
  * undoes.  So the zone of the heaviest nurse trades one of its nurses for
@@ -805,10 +830,10 @@ static keel_status trade_zones(const keel_workload *w, long long deadline_ms, in
         keel_ratio peak = {0, 1};
         for (size_t n = 0; n < nn; n++) {
             home[n] = -1;
-            if (keel_workload_counted(w, n) &&
-                (heavy == nn || keel_ratio_cmp(utilisation(w, nurse_of, n), peak) > 0)) {
+            keel_ratio u = utilisation(w, nurse_of, n);
+            if (keel_workload_counted(w, n) && (heavy == nn || keel_ratio_cmp(u, peak) > 0)) {
                 heavy = n;
-                peak = utilisation(w, nurse_of, n);
+                peak = u;
             }
         }
         for (size_t p = 0; p < np; p++)
@@ -825,22 +850,9 @@ static keel_status trade_zones(const keel_workload *w, long long deadline_ms, in
                     continue;
                 if (keel_clock_ms() >= deadline_ms)
                     goto out;
-                keel_ratio worst = {0, 1};
-                bool placed = true;
-                int zb = home[b];
-                home[a] = home[b] = -2; /* a and b trade places */
-                for (int i = 0; i < 2 && placed && !rc; i++) {
-                    gather(w, home, i == 0 ? zs : zb, T.members[i], &T.m[i], T.nurses[i], &T.k[i],
-                           local);
-                    T.nurses[i][T.k[i]++] = i == 0 ? b : a;
-                    keel_ratio part;
-                    rc = greedy_part(w, T.members[i], T.m[i], T.nurses[i], T.k[i], T.plan[i], &part,
-                                     &placed);
-                    if (keel_ratio_cmp(part, worst) > 0)
-                        worst = part;
-                }
-                home[a] = zs;
-                home[b] = zb;
+                keel_ratio worst;
+                bool placed;
+                rc = place_trade(w, home, a, b, &T, local, &worst, &placed);
                 if (!rc && placed && keel_ratio_cmp(worst, best) < 0) {
                     best = worst;
                     best_a = a;
@@ -851,21 +863,14 @@ static keel_status trade_zones(const keel_workload *w, long long deadline_ms, in
         if (rc || best_a == nn)
             break;
         /* Make the trade: both zones afresh, then by the exact method. */
-        int zb = home[best_b];
-        home[best_a] = home[best_b] = -2;
+        keel_ratio worst;
+        bool placed;
+        rc = place_trade(w, home, best_a, best_b, &T, local, &worst, &placed);
         for (int i = 0; i < 2 && !rc; i++) {
-            int z = i == 0 ? zs : zb;
-            gather(w, home, z, T.members[i], &T.m[i], T.nurses[i], &T.k[i], local);
-            T.nurses[i][T.k[i]++] = i == 0 ? best_b : best_a;
-            keel_ratio part;
-            bool placed, valid = false;
-            rc = greedy_part(w, T.members[i], T.m[i], T.nurses[i], T.k[i], T.plan[i], &part,
-                             &placed);
-            if (rc)
-                break;
             long long now = keel_clock_ms();
+            bool valid = false;
             rc = solve_part(w, T.members[i], T.m[i], T.nurses[i], T.k[i],
-                            now + (deadline_ms - now) / (4 - i), T.plan[i], &part, &valid, err);
+                            now + (deadline_ms - now) / (4 - i), T.plan[i], &valid, err);
             if (!rc && (!placed || !valid))
                 goto out; /* cannot happen: the screen placed both */
         }
