@@ -189,6 +189,16 @@ keel_status keel_split_possible(const keel_workload *w, keel_ratio t, bool *poss
  * passes.  Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
 keel_status keel_local_descent(const keel_workload *w, long long deadline_ms, int *nurse_of);
 
+/* How far care c is from counted nurse n's window lo[n]..hi[n], in
+ * minutes (0 for a nurse who is not counted): the local searches' excess. */
+static inline long long keel_window_off(const keel_workload *w, const long long *lo,
+                                        const long long *hi, size_t n, long long c)
+{
+    if (!keel_workload_counted(w, n))
+        return 0;
+    return c > hi[n] ? c - hi[n] : c < lo[n] ? lo[n] - c : 0;
+}
+
 /* The fixed-seed coin of the local searches (xorshift64): the next value
  * of *state, which must not be zero. */
 static inline unsigned long long keel_coin_flip(unsigned long long *state)

@@ -48,9 +48,7 @@ static unsigned long long flip(local *L)
 /* How far care c is from nurse n's window. */
 static long long off(const local *L, size_t n, long long c)
 {
-    if (!keel_workload_counted(L->w, n))
-        return 0;
-    return c > L->hi[n] ? c - L->hi[n] : c < L->lo[n] ? L->lo[n] - c : 0;
+    return keel_window_off(L->w, L->lo, L->hi, n, c);
 }
 
 static long long excess(const local *L)

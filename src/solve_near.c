@@ -45,9 +45,9 @@ typedef struct near {
     int *zone_count;        /* [nnurses * nzones]: n's patients in each zone */
     int *room_count;        /* [nnurses * nrooms] */
     long *tabu_until;       /* [npatients * nnurses] */
-    long long weight;       /* of a zone: census + 1 */
+    long long weight;       /* of a zone against a room's 1, and of a minute outside a
+                               window against zone_minutes' zone: census + 1 */
     long long zone_minutes; /* scale of the proximity cost against the penalty */
-    long long minute;       /* of a minute outside a window, against a room's 1 */
     long long excess;       /* minutes outside the windows */
     long long kept, min_kept;
     long step;
@@ -103,19 +103,17 @@ static long long cost_instead(const near *S, size_t p, size_t q, size_t n)
     return d;
 }
 
-/* How far care c is from nurse n's window, in minutes. */
 static long long off(const near *S, size_t n, long long c)
 {
-    if (!keel_workload_counted(S->w, n))
-        return 0;
-    return c > S->hi[n] ? c - S->hi[n] : c < S->lo[n] ? S->lo[n] - c : 0;
+    return keel_window_off(S->w, S->lo, S->hi, n, c);
 }
 
-/* The change in the windows' penalty when a's care changes by da and b's by db. */
+/* The change in the windows' penalty when a's care changes by da and b's
+ * by db: weight per minute outside. */
 static long long penalty(const near *S, size_t a, long long da, size_t b, long long db)
 {
     long long ca = S->t.care[a], cb = S->t.care[b];
-    return S->minute * (off(S, a, ca + da) - off(S, a, ca) + off(S, b, cb + db) - off(S, b, cb));
+    return S->weight * (off(S, a, ca + da) - off(S, a, ca) + off(S, b, cb + db) - off(S, b, cb));
 }
 
 /* Patients kept with their previous nurse gained when p goes from a to b. */
@@ -190,7 +188,7 @@ static bool choose(near *S, long long total, long long record, step *best)
                 continue;
             long long pen = penalty(S, a, -c, b, c);
             long long d = S->zone_minutes * (out + cost_in(S, p, b)) + pen;
-            bool aspire = S->excess * S->minute + pen == 0 && total + d < record;
+            bool aspire = S->excess * S->weight + pen == 0 && total + d < record;
             if (S->kept + kept_change(S, p, a, b) < S->min_kept || !allowed(S, p, b, aspire))
                 continue;
             consider(S, best, &have, (step){.delta = d, .pen = pen, .p = p, .q = -1, .to = b});
@@ -206,7 +204,7 @@ static bool choose(near *S, long long total, long long record, step *best)
             long long dc = w->care_minutes[q] - c, pen = penalty(S, a, dc, b, -dc);
             long long d =
                 S->zone_minutes * (cost_instead(S, p, q, a) + cost_instead(S, q, p, b)) + pen;
-            bool aspire = S->excess * S->minute + pen == 0 && total + d < record;
+            bool aspire = S->excess * S->weight + pen == 0 && total + d < record;
             if (S->kept + kept_change(S, p, a, b) + kept_change(S, q, b, a) < S->min_kept ||
                 !allowed(S, p, b, aspire) || !allowed(S, q, a, aspire))
                 continue;
@@ -259,7 +257,6 @@ keel_status keel_near_local(const keel_workload *w, const long long *lo, const l
               .lo = lo,
               .hi = hi,
               .weight = (long long)np + 1,
-              .minute = (long long)np + 1,
               .zone_minutes = ZONE_MINUTES,
               .min_kept = min_kept,
               .coin = 0x2545f4914f6cdd1dULL};
@@ -288,7 +285,7 @@ keel_status keel_near_local(const keel_workload *w, const long long *lo, const l
             break; /* every step is tabu or breaks a rule */
         apply(&S, &best);
         total += best.delta;
-        S.excess += best.pen / S.minute;
+        S.excess += best.pen / S.weight;
         S.step++;
         since++;
         if (S.excess == 0 && total < record) {
