@@ -18,7 +18,7 @@
 
 #include "alloc.h"
 #include "solve_internal.h"
-#include "triplets.h"
+#include "ilp.h"
 
 static void on_glpk_error(void *info)
 {

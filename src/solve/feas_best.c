@@ -43,7 +43,7 @@
 
 #include "alloc.h"
 #include "solve_internal.h"
-#include "triplets.h"
+#include "ilp.h"
 
 enum {
     SEVERITY_PAIR = 100,

@@ -1,6 +1,6 @@
 /* SPDX-License-Identifier: GPL-3.0-or-later */
 /* triplets.c - a growing list of matrix entries; see triplets.h. */
-#include "triplets.h"
+#include "ilp.h"
 
 #include <stdlib.h>
 #include <string.h>
