@@ -16,6 +16,7 @@
 
 #include "alloc.h"
 #include "roster_internal.h"
+#include "workload_internal.h"
 
 enum {
     MAX_LEVEL = 99,

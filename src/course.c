@@ -12,6 +12,7 @@
 #include <string.h>
 
 #include "alloc.h"
+#include "workload_internal.h"
 
 /* Patients held per nurse and moment: held[n * nmoments + m].  A patient
  * has one part covering a moment, so parts counted are patients counted. */

@@ -9,6 +9,7 @@
 #include <string.h>
 
 #include "alloc.h"
+#include "workload_internal.h"
 
 const char *keel_reason_name(keel_reason reason)
 {

@@ -10,6 +10,7 @@
 #include <stdlib.h>
 
 #include "alloc.h"
+#include "workload_internal.h"
 
 void keel_metrics_free(keel_metrics *m)
 {

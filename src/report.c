@@ -9,6 +9,7 @@
 #include <string.h>
 
 #include "report_internal.h"
+#include "workload_internal.h"
 
 static const keel_writer writers[] = {
     {"text", keel_report_text},

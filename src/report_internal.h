@@ -6,6 +6,7 @@
 #include <stdio.h>
 
 #include "keel/report.h"
+#include "workload_internal.h"
 
 /* A writer formats a report; it returns KEEL_OK, or KEEL_ERR_USAGE when it
  * cannot show this kind of report.  Write errors are caught by the caller

@@ -9,6 +9,7 @@
 
 #include "keel/keel.h"
 #include "report_internal.h"
+#include "workload_internal.h"
 
 static void write_ids_of_patients(FILE *out, const keel_roster *r, const size_t *idx, size_t n)
 {

@@ -11,6 +11,7 @@
 #include "keel/keel.h"
 #include "alloc.h"
 #include "report_internal.h"
+#include "workload_internal.h"
 
 static void write_heading(FILE *out, const keel_report *rep)
 {

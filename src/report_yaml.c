@@ -9,6 +9,7 @@
 
 #include "keel/keel.h"
 #include "report_internal.h"
+#include "workload_internal.h"
 
 static void write_key_string(FILE *out, const char *indent, const char *key, const char *value)
 {

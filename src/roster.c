@@ -2723,3 +2723,13 @@ bool keel_nurse_has_skill(const keel_nurse *nurse, const char *skill)
             return true;
     return false;
 }
+
+void keel_time_text(const keel_roster *r, int offset, char buf[KEEL_TIME_SIZE])
+{
+    if (r->shift.start_minute == KEEL_ABSENT) {
+        snprintf(buf, KEEL_TIME_SIZE, "+%d min", offset);
+        return;
+    }
+    int minute = (r->shift.start_minute + offset) % 1440;
+    snprintf(buf, KEEL_TIME_SIZE, "%02d:%02d", minute / 60, minute % 60);
+}

@@ -14,6 +14,11 @@
  * KEEL_ERR_NOMEM. */
 keel_status keel_read_file(const char *path, char **text, size_t *len, keel_error *err);
 
+/* Writes the clock time `offset` minutes after the shift's start as
+ * "HH:MM" (or "+N min" when the shift has no start) into buf. */
+#define KEEL_TIME_SIZE 16
+void keel_time_text(const keel_roster *r, int offset, char buf[KEEL_TIME_SIZE]);
+
 /* Frees everything a patient owns (not the patient itself). */
 void keel_patient_fini(keel_patient *p);
 

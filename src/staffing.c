@@ -15,6 +15,7 @@
 #include "alloc.h"
 #include "keel/metrics.h"
 #include "textbuf.h"
+#include "workload_internal.h"
 
 #define MINUTES_PER_HOUR 60.0
 

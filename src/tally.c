@@ -9,6 +9,7 @@
 #include <string.h>
 
 #include "alloc.h"
+#include "workload_internal.h"
 
 keel_status keel_tally_init(keel_tally *t, const keel_workload *w)
 {
@@ -111,82 +112,4 @@ int keel_tally_most(const keel_tally *t, size_t n)
         if (t->count[n * t->w->nmoments + m] > most)
             most = t->count[n * t->w->nmoments + m];
     return most;
-}
-
-/* True when taking part p from nurse n would split p from the nurse of the
- * part before it, or the part after it from n, while that nurse is on. */
-static bool splits(const keel_tally *t, size_t p, size_t n)
-{
-    const keel_workload *w = t->w;
-    size_t first = (size_t)w->first_part[w->patient[p]];
-    size_t end = (size_t)w->first_part[w->patient[p] + 1];
-    if (p > first) {
-        int before = t->nurse_of[p - 1];
-        if (before >= 0 && before != (int)n && keel_workload_keeps(w, p, before))
-            return true;
-    }
-    if (p + 1 < end) {
-        int after = t->nurse_of[p + 1];
-        if (after >= 0 && after != (int)n && keel_workload_keeps(w, p + 1, (int)n))
-            return true;
-    }
-    return false;
-}
-
-/* The count limit n would break at moment m by taking p, or NULL. */
-static const char *breaks_at(const keel_tally *t, size_t p, size_t n, size_t m)
-{
-    const keel_workload *w = t->w;
-    size_t slot = n * w->nmoments + m;
-    int after = t->count[slot] + 1;
-    if (after > w->max_patients[n])
-        return w->clocked ? "moment_limit"
-               : w->law_limit != KEEL_ABSENT && w->max_patients[n] == w->law_limit
-                   ? "law_limit"
-                   : "patient_limit";
-    if (after > w->ratio_limit[p] || after > keel_tally_tightest(t, n, m))
-        return w->clocked ? "moment_limit" : "patient_ratio";
-    if (w->high_acuity[p] && w->max_high_acuity != KEEL_ABSENT &&
-        t->high[slot] + 1 > w->max_high_acuity)
-        return "high_acuity";
-    if ((w->side[p] == KEEL_SIDE_PROTECTIVE && t->sides[slot * 3 + KEEL_SIDE_INFECTIOUS] > 0) ||
-        (w->side[p] == KEEL_SIDE_INFECTIOUS && t->sides[slot * 3 + KEEL_SIDE_PROTECTIVE] > 0))
-        return "isolation";
-    if (w->max_zones != KEEL_ABSENT && w->zone[p] >= 0 &&
-        t->in_zone[slot * w->nzones + (size_t)w->zone[p]] == 0 && t->zones[slot] + 1 > w->max_zones)
-        return "zones";
-    return NULL;
-}
-
-const char *keel_tally_breaks(const keel_tally *t, size_t p, size_t n)
-{
-    const keel_workload *w = t->w;
-    if (!keel_workload_eligible(w, p, n))
-        return "skill"; /* eligibility: the caller names the precise reason */
-    if (w->clocked && splits(t, p, n))
-        return "hand_off";
-    if (t->care[n] + w->care_minutes[p] > w->max_care[n])
-        return "capacity";
-    for (int m = w->first_moment[p]; m < w->last_moment[p]; m++) {
-        const char *rule = breaks_at(t, p, n, (size_t)m);
-        if (rule)
-            return rule;
-    }
-    return NULL;
-}
-
-bool keel_tally_short(const keel_tally *t)
-{
-    for (size_t n = 0; n < t->w->nnurses; n++)
-        if (keel_tally_most(t, n) < t->w->min_patients[n])
-            return true;
-    return false;
-}
-
-bool keel_tally_admits_instead(keel_tally *t, size_t p, size_t q, size_t n)
-{
-    keel_tally_remove(t, q, n);
-    bool ok = keel_tally_admits(t, p, n);
-    keel_tally_add(t, q, n);
-    return ok;
 }

@@ -9,6 +9,7 @@
 
 #include "keel/keel.h"
 #include "report_internal.h"
+#include "workload_internal.h"
 
 #define FILL KEEL_PLACEHOLDER
 

@@ -14,6 +14,9 @@
 
 #include "alloc.h"
 #include "keel/nas.h"
+#include "rule.h"
+#include "sort.h"
+#include "workload_internal.h"
 
 static int or_default(int value, int fallback)
 {
@@ -98,8 +101,9 @@ static signed char side_of(const keel_roster *r, const keel_patient *p)
     return p->isolation == KEEL_ISOLATION_PROTECTIVE ? KEEL_SIDE_PROTECTIVE : KEEL_SIDE_INFECTIOUS;
 }
 
-/* The rules that join patients: ratio, high acuity, isolation, zones,
- * rooms and continuity. */
+/* The patients' data the rules read (ratio, high acuity, isolation side,
+ * zone), and rooms and previous nurses for the stages that follow the
+ * balance. */
 static keel_status join_rules(const keel_roster *r, keel_workload *w)
 {
     size_t np = w->npatients;
@@ -109,7 +113,6 @@ static keel_status join_rules(const keel_roster *r, keel_workload *w)
     w->max_high_acuity = r->policy.high_acuity.max_per_nurse;
     w->max_zones = r->policy.max_zones;
     w->tolerance = or_default(r->policy.balance_tolerance, KEEL_TOLERANCE_SCALE / 20);
-    bool sides[3] = {false, false, false};
     for (size_t p = 0; p < np; p++) {
         const keel_patient *pt = &r->patients[w->patient[p]];
         bool first = w->first_part[w->patient[p]] == (int)p;
@@ -117,21 +120,14 @@ static keel_status join_rules(const keel_roster *r, keel_workload *w)
         w->high_acuity[p] = w->max_high_acuity != KEEL_ABSENT && pt->acuity != KEEL_ABSENT &&
                             pt->acuity >= r->policy.high_acuity.level;
         w->side[p] = side_of(r, pt);
-        sides[w->side[p]] = true;
         w->zone[p] = intern(names, &w->nzones, pt->zone);
         w->previous[p] =
             first && pt->previous_nurse ? keel_roster_find_nurse(r, pt->previous_nurse) : -1;
         if (w->previous[p] >= 0)
             w->ncontinuity++;
-        if (w->ratio_limit[p] < (int)np)
-            w->joined_rules = true;
     }
     for (size_t p = 0; p < np; p++)
         w->room[p] = intern(names, &w->nrooms, r->patients[w->patient[p]].room);
-    w->isolation_rule = sides[KEEL_SIDE_INFECTIOUS] && sides[KEEL_SIDE_PROTECTIVE];
-    w->zones_rule = w->max_zones != KEEL_ABSENT && w->nzones > (size_t)w->max_zones;
-    w->joined_rules = w->joined_rules || w->max_high_acuity != KEEL_ABSENT || w->isolation_rule ||
-                      w->zones_rule || w->clocked;
     free(names);
     return KEEL_OK;
 }
@@ -167,6 +163,11 @@ bool keel_workload_may_take(const keel_roster *r, const keel_workload *w, size_t
     size_t p = (size_t)w->patient[q];
     return allowed(r, w, p, n, w->first_part[p] == (int)q) &&
            w->nurse_start[n] <= w->part_start[q] && w->nurse_end[n] >= w->part_end[q];
+}
+
+size_t keel_workload_nparts(const keel_workload *w)
+{
+    return w->npatients;
 }
 
 void keel_workload_free(keel_workload *w)
@@ -341,7 +342,6 @@ static bool bounds(const keel_roster *r, keel_workload *w, size_t n, keel_error 
         w->max_care[n] =
             (long long)r->policy.max_utilisation * w->capacity_minutes[n] / KEEL_TOLERANCE_SCALE -
             w->duty_minutes[n];
-    w->bounds_rule = w->bounds_rule || w->min_patients[n] > 0 || w->max_care[n] != LLONG_MAX;
     if (w->min_patients[n] > w->max_patients[n]) {
         keel_error_add(err, KEEL_ERR_INPUT, r->path, nurse->mark.line, nurse->mark.column, "nurses",
                        "nurse %s must take at least %d patients but may take at most %d; "
@@ -437,12 +437,12 @@ keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, kee
     }
     if (rc)
         goto out;
-    w->joined_rules = w->joined_rules || w->bounds_rule;
     w->balance = r->policy.balance;
 
     for (size_t q = 0; q < np; q++)
         for (size_t n = 0; n < nn; n++)
             w->eligible[q * nn + n] = keel_workload_may_take(r, w, q, n);
+    keelRuleFlags(w);
 out:
     free(ends);
     if (rc)
@@ -460,16 +460,20 @@ long long keel_workload_patient_care(const keel_workload *w, size_t p)
     return care;
 }
 
-static const keel_workload *order_w;
-static long long *order_care; /* [npatients]: care of each part's patient */
+/* Parts of different patients by patient care, heaviest first, ties by
+ * patient; a patient's parts in time order. */
+typedef struct order_ctx {
+    const keel_workload *w;
+    const long long *care; /* [npatients]: care of each part's patient (or the part's) */
+} order_ctx;
 
-static int placed_before(const void *a, const void *b)
+static int placed_before(const void *ctx, size_t i, size_t j)
 {
-    size_t i = *(const size_t *)a, j = *(const size_t *)b;
-    const keel_workload *w = order_w;
+    const order_ctx *o = ctx;
+    const keel_workload *w = o->w;
     if (w->patient[i] != w->patient[j]) {
-        if (order_care[i] != order_care[j])
-            return order_care[i] > order_care[j] ? -1 : 1;
+        if (o->care[i] != o->care[j])
+            return o->care[i] > o->care[j] ? -1 : 1;
         return w->patient[i] < w->patient[j] ? -1 : 1;
     }
     return (i > j) - (i < j);
@@ -485,30 +489,61 @@ keel_status keel_workload_order(const keel_workload *w, size_t *order)
     for (size_t q = 0; q < w->npatients; q++)
         care[q] =
             w->clocked ? keel_workload_patient_care(w, (size_t)w->patient[q]) : w->care_minutes[q];
-    order_w = w;
-    order_care = care;
-    qsort(order, w->npatients, sizeof *order, placed_before);
+    order_ctx o = {w, care};
+    bool sorted = keelSortIndices(order, w->npatients, placed_before, &o);
     free(care);
-    return KEEL_OK;
+    return sorted ? KEEL_OK : KEEL_ERR_NOMEM;
 }
 
-void keel_time_text(const keel_roster *r, int offset, char buf[KEEL_TIME_SIZE])
+keel_workload *keelWorkloadSubset(const keel_workload *w, const size_t *members, size_t np,
+                                  const size_t *nurses, size_t n0, size_t k)
 {
-    if (r->shift.start_minute == KEEL_ABSENT) {
-        snprintf(buf, KEEL_TIME_SIZE, "+%d min", offset);
-        return;
+    keel_workload *z = keel_calloc(1, sizeof *z);
+    if (!z)
+        return NULL;
+    z->npatients = z->npeople = np;
+    z->nnurses = k;
+    bool ok = keel_workload_alloc(z);
+    z->nurse_start = keel_calloc(k ? k : 1, sizeof *z->nurse_start);
+    z->nurse_end = keel_calloc(k ? k : 1, sizeof *z->nurse_end);
+    z->moment_start = keel_calloc(2, sizeof *z->moment_start);
+    if (!ok || !z->nurse_start || !z->nurse_end || !z->moment_start) {
+        keel_workload_free(z);
+        return NULL;
     }
-    int minute = (r->shift.start_minute + offset) % 1440;
-    snprintf(buf, KEEL_TIME_SIZE, "%02d:%02d", minute / 60, minute % 60);
-}
-
-bool keel_workload_same_rules(const keel_workload *w, size_t a, size_t b)
-{
-    if (w->max_patients[a] != w->max_patients[b] || w->min_patients[a] != w->min_patients[b] ||
-        w->max_care[a] != w->max_care[b])
-        return false;
-    for (size_t p = 0; p < w->npatients; p++)
-        if (keel_workload_eligible(w, p, a) != keel_workload_eligible(w, p, b))
-            return false;
-    return true;
+    z->law_limit = w->law_limit;
+    z->max_high_acuity = w->max_high_acuity;
+    z->max_zones = KEEL_ABSENT;
+    z->tolerance = w->tolerance;
+    z->balance = w->balance;
+    z->shift_minutes = w->shift_minutes;
+    z->nmoments = 1;
+    z->moment_start[1] = w->shift_minutes;
+    for (size_t i = 0; i < np; i++) {
+        size_t p = members[i];
+        z->care_minutes[i] = w->care_minutes[p];
+        z->ratio_limit[i] = w->ratio_limit[p] < (int)np ? w->ratio_limit[p] : (int)np;
+        z->high_acuity[i] = w->high_acuity[p];
+        z->side[i] = w->side[p];
+        z->zone[i] = -1;
+        z->room[i] = -1;
+        z->previous[i] = -1;
+        z->patient[i] = (int)i;
+        z->first_part[i + 1] = (int)i + 1;
+        z->part_end[i] = w->shift_minutes;
+        z->last_moment[i] = 1;
+        for (size_t n = 0; n < k; n++)
+            z->eligible[i * k + n] = keel_workload_eligible(w, p, nurses ? nurses[n] : n0);
+    }
+    for (size_t n = 0; n < k; n++) {
+        size_t m = nurses ? nurses[n] : n0;
+        z->capacity_minutes[n] = w->capacity_minutes[m];
+        z->duty_minutes[n] = w->duty_minutes[m];
+        z->max_patients[n] = w->max_patients[m];
+        z->min_patients[n] = w->min_patients[m];
+        z->max_care[n] = w->max_care[m];
+        z->nurse_end[n] = w->shift_minutes;
+    }
+    keelRuleFlags(z);
+    return z;
 }

@@ -20,6 +20,7 @@
 #include <cmocka.h>
 
 #include "keel/keel.h"
+#include "workload_internal.h"
 
 #define MAXN 3
 #define MAXP 5

@@ -18,6 +18,7 @@
 #include "alloc.h"
 #include "keel/course.h"
 #include "keel/keel.h"
+#include "workload_internal.h"
 
 typedef struct loaded {
     keel_roster *r;

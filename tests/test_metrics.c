@@ -11,6 +11,7 @@
 #include <cmocka.h>
 
 #include "testutil.h"
+#include "workload_internal.h"
 
 /* One patient per nurse with the given care minutes, capacity 600 each, so
  * utilisation n = care[n] / 600. */

@@ -12,6 +12,7 @@
 
 #include "alloc.h"
 #include "testutil.h"
+#include "workload_internal.h"
 
 static const char *examples = "examples";
 static const char *data = "tests/data";

@@ -27,6 +27,7 @@
 
 #include "alloc.h"
 #include "keel/roster.h"
+#include "workload_internal.h"
 
 static const char *data_dir = "tests/data";
 static const char *examples_dir = "examples";

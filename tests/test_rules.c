@@ -16,8 +16,17 @@
 
 #include <cmocka.h>
 
-#include "solve_internal.h"
+#include "solve/answer.h"
+#include "solve/bound.h"
+#include "solve/budget.h"
+#include "solve/heur.h"
+#include "solve/measure.h"
+#include "solve/zone.h"
+#include "keel/plan.h"
+#include "lp.h"
+#include "rule.h"
 #include "testutil.h"
+#include "workload_internal.h"
 
 /* ---- The rules by their definitions ----------------------------------------- */
 
@@ -95,7 +104,7 @@ static void leaf(best *b)
     if (!keeps_rules(w, b->a))
         return;
     if (b->pass == PASS_BALANCE) {
-        keel_ratio peak = keel_solve_peak(w, b->a), lift = keel_solve_lift(w, b->a);
+        keel_ratio peak = keel_measure_peak(w, b->a), lift = keel_measure_lift(w, b->a);
         int by_peak = b->found ? keel_ratio_cmp(peak, b->peak) : -1;
         if (by_peak < 0 || (by_peak == 0 && keel_ratio_cmp(lift, b->lift) > 0)) {
             b->peak = peak;
@@ -106,14 +115,14 @@ static void leaf(best *b)
     }
     if (!inside(b))
         return;
-    long long kept = keel_solve_kept(w, b->a);
+    long long kept = keel_measure_kept(w, b->a);
     if (b->pass == PASS_KEEP) {
         if (kept > b->kept)
             b->kept = kept;
         return;
     }
     long long zones, rooms;
-    keel_solve_spread(w, b->a, &zones, &rooms);
+    keel_measure_spread(w, b->a, &zones, &rooms);
     if (kept >= b->kept &&
         (!b->near_found || zones < b->zones || (zones == b->zones && rooms < b->rooms))) {
         b->zones = zones;
@@ -151,22 +160,10 @@ static void windows(best *b, long long t)
     }
 }
 
-/* Sets the derived flags of a hand-made case as the workload does. */
+/* Sets the derived switches of a hand-made case as the workload does. */
 static void derive(tu_case *c)
 {
-    keel_workload *w = &c->w;
-    bool sides[3] = {false, false, false}, ratios = false;
-    for (size_t p = 0; p < w->npatients; p++) {
-        sides[w->side[p]] = true;
-        ratios = ratios || w->ratio_limit[p] < (int)w->npatients;
-    }
-    w->isolation_rule = sides[KEEL_SIDE_PROTECTIVE] && sides[KEEL_SIDE_INFECTIOUS];
-    w->zones_rule = w->max_zones != KEEL_ABSENT && w->nzones > (size_t)w->max_zones;
-    w->bounds_rule = false;
-    for (size_t n = 0; n < w->nnurses; n++)
-        w->bounds_rule = w->bounds_rule || w->min_patients[n] > 0 || w->max_care[n] != LLONG_MAX;
-    w->joined_rules = ratios || w->max_high_acuity != KEEL_ABSENT || w->isolation_rule ||
-                      w->zones_rule || w->bounds_rule;
+    keelRuleFlags(&c->w);
 }
 
 /* ---- Random small rosters with every rule --------------------------------- */
@@ -282,7 +279,7 @@ static void test_every_stage_matches_exhaustive_enumeration(void **state)
                 assert_non_null(stage(s, "continuity"));
                 assert_true(stage(s, "continuity")->value == (double)b.kept);
                 assert_int_equal(s->continuity.kept, b.kept);
-                assert_int_equal(keel_solve_kept(w, s->nurse_of), b.kept);
+                assert_int_equal(keel_measure_kept(w, s->nurse_of), b.kept);
             } else {
                 assert_null(stage(s, "continuity"));
             }
@@ -290,7 +287,7 @@ static void test_every_stage_matches_exhaustive_enumeration(void **state)
             visit(&b, 0);
             assert_true(b.near_found);
             long long zones, rooms;
-            keel_solve_spread(w, s->nurse_of, &zones, &rooms);
+            keel_measure_spread(w, s->nurse_of, &zones, &rooms);
             bool near = false;
             for (size_t p = 0; p < w->npatients; p++)
                 near = near || w->zone[p] >= 0 || w->room[p] >= 0;
@@ -358,7 +355,7 @@ static void test_zone_by_zone_matches_exhaustive_enumeration(void **state)
         }
         w->nzones = (size_t)next;
         derive(c);
-        split += keel_zones_apply(w);
+        split += keel_zone_solve_applies(w);
         best b = {.w = w, .pass = PASS_BALANCE};
         b.a = calloc(np + 1, sizeof *b.a);
         b.lo = calloc(nn, sizeof *b.lo);
@@ -438,7 +435,7 @@ static void test_squares_match_exhaustive_enumeration(void **state)
             w->zone[p] = zoned ? (int)(p % 2) : -1;
         }
         derive(c);
-        by_zone += keel_zones_apply(w);
+        by_zone += keel_zone_solve_applies(w);
         whole += !zoned;
         int *a = calloc(np + 1, sizeof *a);
         double best = -1;
@@ -609,7 +606,7 @@ static void test_placement_recovers_when_heaviest_first_strands_a_zone(void **st
     derive(c);
     int nurse_of[9];
     bool placed_all = false;
-    assert_int_equal(keel_greedy_place(w, nurse_of, &placed_all), KEEL_OK);
+    assert_int_equal(keel_heur_greedy_place(w, nurse_of, &placed_all), KEEL_OK);
     assert_true(placed_all);
     assert_true(keeps_rules(w, nurse_of));
     for (size_t p = 0; p < 9; p++) /* one nurse per zone */
@@ -670,22 +667,22 @@ static void test_zone_polish_reaches_the_best_plan_with_the_zones_kept_or_better
         visit(&whole, 0);
         int *plan = calloc(np + 1, sizeof *plan);
         bool placed_all = false;
-        assert_int_equal(keel_greedy_place(w, plan, &placed_all), KEEL_OK);
+        assert_int_equal(keel_heur_greedy_place(w, plan, &placed_all), KEEL_OK);
         feasible += whole.found;
         placed += placed_all;
         if (placed_all) {
             assert_true(keeps_rules(w, plan));
-            assert_int_equal(keel_greedy_improve(w, plan), KEEL_OK);
-            keel_ratio before = keel_solve_peak(w, plan);
+            assert_int_equal(keel_heur_greedy_improve(w, plan), KEEL_OK);
+            keel_ratio before = keel_measure_peak(w, plan);
             int home[4] = {-1, -1, -1, -1};
             for (size_t p = 0; p < np; p++)
                 home[plan[p]] = w->zone[p];
             keel_error err;
             keel_error_init(&err);
-            assert_int_equal(keel_zones_polish(w, keel_clock_ms() + 60000, plan, &err), KEEL_OK);
+            assert_int_equal(keel_zone_polish(w, keel_budget_now() + 60000, plan, &err), KEEL_OK);
             keel_error_fini(&err);
             assert_true(keeps_rules(w, plan));
-            keel_ratio after = keel_solve_peak(w, plan);
+            keel_ratio after = keel_measure_peak(w, plan);
             assert_true(keel_ratio_cmp(after, before) <= 0);
             /* The enumeration with each nurse held to her zone. */
             bool *kept = malloc(np * nn * sizeof *kept);
@@ -761,15 +758,15 @@ static void test_local_search_answers_only_with_a_plan_that_fits(void **state)
                 b.lo[n] = b.lo[n] < 0 ? 0 : b.lo[n];
                 b.hi[n] = share + tu_range(&seed, 0, (int)share / 2 + 60);
             }
-            keel_ilp_answer answer;
-            assert_int_equal(
-                keel_fit_local(w, b.lo, b.hi, start, keel_clock_ms() + 60000, out, &answer),
-                KEEL_OK);
-            assert_true(answer == KEEL_ILP_FEASIBLE || answer == KEEL_ILP_UNKNOWN);
+            keel_answer answer;
+            keel_question q = {.w = w, .lo = b.lo, .hi = b.hi, .start = start};
+            assert_int_equal(keel_answer_local(&q, keel_budget_now() + 60000, out, &answer, NULL),
+                             KEEL_OK);
+            assert_true(answer == KEEL_ANSWER_YES || answer == KEEL_ANSWER_UNKNOWN);
             bool any = first_valid(&b, 0, true);
             asked++;
             exists += any;
-            if (answer == KEEL_ILP_FEASIBLE) {
+            if (answer == KEEL_ANSWER_YES) {
                 assert_true(any);
                 memcpy(b.a, out, np * sizeof *b.a);
                 assert_true(keeps_rules(w, b.a));
@@ -819,18 +816,18 @@ static void test_proximity_search_keeps_the_rules_and_reaches_the_best(void **st
         }
         if (np > 0 && first_valid(&b, 0, true)) {
             memcpy(plan, b.a, np * sizeof *plan);
-            b.kept = tu_range(&seed, 0, (int)keel_solve_kept(w, plan));
+            b.kept = tu_range(&seed, 0, (int)keel_measure_kept(w, plan));
             long long zones, rooms, start_zones, start_rooms;
-            keel_solve_spread(w, plan, &start_zones, &start_rooms);
+            keel_measure_spread(w, plan, &start_zones, &start_rooms);
             visit(&b, 0);
             assert_true(b.near_found);
             assert_int_equal(
-                keel_near_local(w, b.lo, b.hi, b.kept, 0, keel_clock_ms() + 60000, plan), KEEL_OK);
+                keel_heur_near(w, b.lo, b.hi, b.kept, 0, keel_budget_now() + 60000, plan), KEEL_OK);
             memcpy(b.a, plan, np * sizeof *b.a);
             assert_true(keeps_rules(w, b.a));
             assert_true(inside(&b));
-            assert_true(keel_solve_kept(w, plan) >= b.kept);
-            keel_solve_spread(w, plan, &zones, &rooms);
+            assert_true(keel_measure_kept(w, plan) >= b.kept);
+            keel_measure_spread(w, plan, &zones, &rooms);
             long long weight = (long long)np + 1;
             long long cost = weight * zones + rooms, optimum = weight * b.zones + b.rooms;
             assert_true(cost <= weight * start_zones + start_rooms);
@@ -871,12 +868,12 @@ static void test_zone_split_floor_never_passes_the_optimum(void **state)
         if (whole.found) {
             feasible++;
             bool possible = false;
-            assert_true(keel_one_zone_each(w));
-            assert_int_equal(keel_split_possible(w, whole.peak, &possible), KEEL_OK);
+            assert_true(keel_measure_one_zone_each(w));
+            assert_int_equal(keel_bound_split_possible(w, whole.peak, &possible), KEEL_OK);
             assert_true(possible);
-            keel_ratio simple = keel_solve_peak_floor(w);
+            keel_ratio simple = keel_bound_peak_floor(w);
             if (keel_ratio_cmp(simple, whole.peak) < 0) {
-                assert_int_equal(keel_split_possible(w, simple, &possible), KEEL_OK);
+                assert_int_equal(keel_bound_split_possible(w, simple, &possible), KEEL_OK);
                 bites += !possible;
             }
             keel_solution *s = solve(c);
@@ -893,6 +890,155 @@ static void test_zone_split_floor_never_passes_the_optimum(void **state)
     assert_true(bites > 0);
 }
 
+/* ---- The table of rules ------------------------------------------------ */
+
+/* Every rule of the table has every part its scope needs, and a rule's
+ * name finds it: adding a rule without its test, words or rows fails here. */
+static void test_every_rule_has_every_part(void **state)
+{
+    (void)state;
+    for (size_t i = 0; i < KEEL_NRULES; i++) {
+        const keel_rule *rule = keel_rules[i];
+        assert_non_null(rule);
+        assert_non_null(rule->name);
+        assert_ptr_equal(keelRuleFind(rule->name), rule);
+        bool joins = rule->scope == KEEL_SCOPE_MOMENT || rule->scope == KEEL_SCOPE_SHIFT;
+        switch (rule->scope) {
+        case KEEL_SCOPE_PAIR:
+            assert_non_null(rule->check);
+            assert_non_null(rule->pair_breaks);
+            assert_true(rule->severity > 0);
+            break;
+        case KEEL_SCOPE_MOMENT:
+        case KEEL_SCOPE_SHIFT:
+            assert_non_null(rule->check);
+            assert_non_null(rule->rows);
+            assert_true(rule->breaks || rule->whole); /* the tally's test */
+            assert_true(rule->severity > 0);
+            break;
+        case KEEL_SCOPE_CLOCK:
+            assert_non_null(rule->breaks);
+            assert_non_null(rule->check);
+            assert_non_null(rule->rows);
+            assert_non_null(rule->binds);
+            break;
+        case KEEL_SCOPE_NAME:
+            assert_null(rule->check);
+            break;
+        }
+        /* A joining rule that can be switched on can be relaxed and named
+         * by the diagnosis (the patient limit is Hall's, feas_hall.c). */
+        if (joins && rule->binds) {
+            assert_non_null(rule->relax);
+            assert_non_null(rule->say);
+            assert_non_null(rule->conflict);
+        }
+    }
+    /* The design's list of rule names, each once. */
+    const char *names[] = {"skill",      "patient_limit", "patient_ratio", "law_limit",
+                           "high_acuity", "isolation",    "zones",         "lock",
+                           "avoid",       "capacity",     "min_patients",  "moment_limit",
+                           "break_cover", "hand_off"};
+    assert_int_equal(sizeof names / sizeof *names, KEEL_NRULES);
+    for (size_t i = 0; i < KEEL_NRULES; i++)
+        assert_non_null(keelRuleFind(names[i]));
+}
+
+/* The rows of every rule over one nurse's patients, each column fixed at 1:
+ * the smallest total weight of breaking (soft), or whether they can be kept
+ * (hard; 0 kept, 1 not). */
+static double rows_verdict(const keel_workload *w, const int *a, size_t n, bool soft)
+{
+    keel_lp *lp = keel_lp_new(false);
+    int col[16];
+    size_t part[16];
+    double most[16];
+    size_t k = 0;
+    for (size_t p = 0; p < w->npatients; p++) {
+        if (a[p] != (int)n)
+            continue;
+        col[k] = keel_lp_col(lp, KEEL_LP_INTEGER, 1.0, 1.0, 0.0);
+        part[k] = p;
+        most[k] = 1.0;
+        k++;
+    }
+    keel_rows R = {.lp = lp, .w = w, .n = n, .moment = -1, .ncols = k, .col = col,
+                   .part = part, .most = most, .soft = soft,
+                   .census = (double)w->npatients};
+    keelRuleRows(&R, KEEL_SCOPE_MOMENT);
+    keelRuleRows(&R, KEEL_SCOPE_SHIFT);
+    keelRuleRows(&R, KEEL_SCOPE_CLOCK);
+    keel_lp_result res;
+    keel_error err;
+    keel_error_init(&err);
+    assert_int_equal(keel_lp_solve(lp, 60000, NULL, &res, &err), KEEL_OK);
+    keel_error_fini(&err);
+    keel_lp_free(lp);
+    if (!soft)
+        return res.outcome == KEEL_LP_INFEASIBLE ? 1.0 : 0.0;
+    assert_int_equal(res.outcome, KEEL_LP_OPTIMAL);
+    return res.value;
+}
+
+/* Each rule's parts say the same of every plan: the rules by their
+ * definitions (keeps_rules() above), the tally's tests, the plan check,
+ * the kept rows and the weighed rows, on random plans of small random
+ * rosters with every rule. */
+static void test_each_rules_parts_agree_on_every_plan(void **state)
+{
+    (void)state;
+    uint64_t seed = 4242;
+    int plans = 0, broken = 0;
+    for (int round = 0; round < 250; round++) {
+        tu_case *c = random_rules_case(&seed);
+        keel_workload *w = &c->w;
+        size_t np = w->npatients, nn = w->nnurses;
+        for (size_t p = 0; p < np; p++)
+            c->roster.patients[p].ratio =
+                w->ratio_limit[p] < (int)np ? w->ratio_limit[p] : KEEL_ABSENT;
+        int *a = calloc(np + 1, sizeof *a);
+        for (int trial = 0; trial < 12; trial++) {
+            bool placed = true;
+            for (size_t p = 0; p < np && placed; p++) {
+                size_t eligible[8], ne = 0;
+                for (size_t n = 0; n < nn; n++)
+                    if (keel_workload_eligible(w, p, n))
+                        eligible[ne++] = n;
+                placed = ne > 0;
+                if (placed)
+                    a[p] = (int)eligible[tu_range(&seed, 0, (int)ne - 1)];
+            }
+            if (!placed)
+                break;
+            bool keeps = keeps_rules(w, a), valid = false;
+            assert_int_equal(keel_measure_validate(w, a, &valid), KEEL_OK);
+            assert_int_equal(valid, keeps);
+            keel_findings found = {0};
+            keel_error err;
+            keel_error_init(&err);
+            assert_int_equal(keel_plan_check(&c->roster, w, a, &found, &err), KEEL_OK);
+            keel_error_fini(&err);
+            assert_int_equal(found.n == 0, keeps);
+            keel_findings_fini(&found);
+            double hard = 0, soft = 0;
+            for (size_t n = 0; n < nn; n++) {
+                if (!keel_workload_counted(w, n))
+                    continue;
+                hard += rows_verdict(w, a, n, false);
+                soft += rows_verdict(w, a, n, true);
+            }
+            assert_int_equal(hard == 0, keeps);
+            assert_int_equal(soft < 0.5, keeps);
+            plans++;
+            broken += !keeps;
+        }
+        free(a);
+        tu_case_free(c);
+    }
+    print_message("# rule parts: %d plans, %d breaking a rule\n", plans, broken);
+    assert_true(broken > plans / 5 && broken < plans - plans / 5);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -906,6 +1052,8 @@ int main(void)
         cmocka_unit_test(test_local_search_answers_only_with_a_plan_that_fits),
         cmocka_unit_test(test_zone_split_floor_never_passes_the_optimum),
         cmocka_unit_test(test_proximity_search_keeps_the_rules_and_reaches_the_best),
+        cmocka_unit_test(test_every_rule_has_every_part),
+        cmocka_unit_test(test_each_rules_parts_agree_on_every_plan),
     };
     return cmocka_run_group_tests_name("rules", tests, NULL, NULL);
 }

@@ -10,7 +10,11 @@
 
 #include <cmocka.h>
 
-#include "solve_internal.h"
+#include "solve/answer.h"
+#include "solve/bound.h"
+#include "solve/budget.h"
+#include "solve/heur.h"
+#include "solve/measure.h"
 #include "testutil.h"
 
 static keel_solution *solve(tu_case *c, const char *method)
@@ -52,9 +56,9 @@ static void test_plain_lpt_hits_grahams_worst_case(void **state)
         tu_case *c = graham_case(m);
         int *nurse_of = calloc(c->w.npatients, sizeof *nurse_of);
         bool placed_all = false;
-        assert_int_equal(keel_greedy_place(&c->w, nurse_of, &placed_all), KEEL_OK);
+        assert_int_equal(keel_heur_greedy_place(&c->w, nurse_of, &placed_all), KEEL_OK);
         assert_true(placed_all);
-        keel_ratio peak = keel_solve_peak(&c->w, nurse_of);
+        keel_ratio peak = keel_measure_peak(&c->w, nurse_of);
         assert_int_equal(peak.num, 4 * m - 1);
         free(nurse_of);
         tu_case_free(c);
@@ -68,7 +72,7 @@ static void test_ilp_reaches_grahams_optimum(void **state)
         tu_case *c = graham_case(m);
         keel_solution *s = solve(c, "ilp");
         assert_int_equal(s->status, KEEL_SOLVE_OPTIMAL);
-        keel_ratio peak = keel_solve_peak(&c->w, s->nurse_of);
+        keel_ratio peak = keel_measure_peak(&c->w, s->nurse_of);
         assert_int_equal(peak.num, 3 * m);
         assert_int_equal(peak.den, 1000);
         keel_solution_free(s);
@@ -89,8 +93,8 @@ static void test_greedy_is_never_worse_than_the_lpt_bound(void **state)
         keel_solution *g = solve(c, "greedy");
         keel_solution *x = solve(c, "ilp");
         assert_int_equal(x->status, KEEL_SOLVE_OPTIMAL);
-        double greedy = keel_ratio_value(keel_solve_peak(&c->w, g->nurse_of));
-        double best = keel_ratio_value(keel_solve_peak(&c->w, x->nurse_of));
+        double greedy = keel_ratio_value(keel_measure_peak(&c->w, g->nurse_of));
+        double best = keel_ratio_value(keel_measure_peak(&c->w, x->nurse_of));
         /* Source: Graham 1969, LPT <= (4/3 - 1/(3m)) OPT on identical machines. */
         assert_true(greedy <= (4.0 / 3.0 - 1.0 / (3.0 * m)) * best + 1e-12);
         assert_true(best <= greedy + 1e-12);
@@ -193,8 +197,8 @@ static void test_ilp_matches_exhaustive_enumeration_on_small_rosters(void **stat
             feasible++;
             assert_int_equal(s->status, KEEL_SOLVE_OPTIMAL);
             assert_int_equal(s->diagnoses.n, 0);
-            assert_int_equal(keel_ratio_cmp(keel_solve_peak(&c->w, s->nurse_of), e.best_peak), 0);
-            assert_int_equal(keel_ratio_cmp(keel_solve_lift(&c->w, s->nurse_of), e.best_lift), 0);
+            assert_int_equal(keel_ratio_cmp(keel_measure_peak(&c->w, s->nurse_of), e.best_peak), 0);
+            assert_int_equal(keel_ratio_cmp(keel_measure_lift(&c->w, s->nurse_of), e.best_lift), 0);
             assert_true(s->stages[0].value == keel_ratio_value(e.best_peak));
             assert_true(s->stages[0].bound == s->stages[0].value);
             assert_true(s->stages[1].value == keel_ratio_value(e.best_lift));
@@ -245,7 +249,7 @@ static void assert_fits(const keel_workload *w, const int *nurse_of, const long 
 /* The two answerers must agree; the dedicated search is exhaustive on these
  * sizes.  This test caught GLPK 5.0's MIP preprocessor accepting a point
  * outside a double-bounded row (one patient of 158 minutes, windows 45..148
- * and 0..183), which is why solve_ilp.c runs without it. */
+ * and 0..183), which is why lp.c runs without it. */
 static void test_glpk_and_the_dedicated_search_agree_on_every_question(void **state)
 {
     (void)state;
@@ -264,12 +268,14 @@ static void test_glpk_and_the_dedicated_search_agree_on_every_question(void **st
             hi[n] = share + tu_range(&seed, 0, (int)share + 60);
         }
         int *a = calloc(c->w.npatients + 1, sizeof *a), *b = calloc(c->w.npatients + 1, sizeof *b);
-        keel_ilp_answer by_search, by_glpk;
-        assert_int_equal(keel_fit_search(&c->w, lo, hi, 100000000L, 0, a, &by_search), KEEL_OK);
-        assert_int_equal(keel_ilp_fit(&c->w, lo, hi, 60000, b, &by_glpk, NULL), KEEL_OK);
-        assert_int_not_equal(by_search, KEEL_ILP_UNKNOWN);
+        keel_answer by_search, by_glpk;
+        keel_question q = {.w = &c->w, .lo = lo, .hi = hi, .nodes = 100000000L};
+        assert_int_equal(keel_answer_fit(&q, 0, a, &by_search, NULL), KEEL_OK);
+        assert_int_equal(keel_answer_ilp(&q, keel_budget_now() + 60000, b, &by_glpk, NULL),
+                         KEEL_OK);
+        assert_int_not_equal(by_search, KEEL_ANSWER_UNKNOWN);
         assert_int_equal(by_search, by_glpk);
-        if (by_glpk == KEEL_ILP_FEASIBLE) {
+        if (by_glpk == KEEL_ANSWER_YES) {
             assert_fits(&c->w, a, lo, hi);
             assert_fits(&c->w, b, lo, hi);
             yes++;
@@ -364,7 +370,7 @@ static void test_greedy_recovers_when_placement_gets_stuck_on_limits(void **stat
     tu_refresh(c);
     int nurse_of[2];
     bool placed_all = false;
-    assert_int_equal(keel_greedy_place(&c->w, nurse_of, &placed_all), KEEL_OK);
+    assert_int_equal(keel_heur_greedy_place(&c->w, nurse_of, &placed_all), KEEL_OK);
     assert_true(placed_all);
     assert_int_equal(nurse_of[0], 1);
     assert_int_equal(nurse_of[1], 0);

@@ -18,6 +18,7 @@
 #include "alloc.h"
 #include "keel/keel.h"
 #include "keel/staffing.h"
+#include "workload_internal.h"
 
 /* ---------------------------------------------------------------------------
  * Building rosters

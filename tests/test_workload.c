@@ -13,6 +13,7 @@
 #include <cmocka.h>
 
 #include "keel/keel.h"
+#include "workload_internal.h"
 
 typedef struct loaded {
     keel_roster *r;

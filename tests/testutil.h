@@ -14,6 +14,7 @@
 #include <string.h>
 
 #include "keel/keel.h"
+#include "workload_internal.h"
 
 /* A roster with nurses N1.. and patients P1.., owned by the test. */
 typedef struct tu_case {

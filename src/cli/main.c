@@ -429,13 +429,13 @@ static int run_check(const options *opt)
     keel_status rc = load(&s, opt);
     bool complete = false, partial = false;
     if (!rc) {
-        s.plan = calloc(s.workload->npatients ? s.workload->npatients : 1, sizeof *s.plan);
+        s.plan = calloc(keel_workload_nparts(s.workload) ? keel_workload_nparts(s.workload) : 1, sizeof *s.plan);
         if (!s.plan)
             rc = keel_error_add(&s.err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
     }
     if (!rc) {
         complete = keel_plan_from_roster(s.roster, s.workload, s.plan);
-        for (size_t q = 0; q < s.workload->npatients; q++)
+        for (size_t q = 0; q < keel_workload_nparts(s.workload); q++)
             partial = partial || s.plan[q] >= 0;
         rc = keel_metrics_compute(s.workload, complete ? s.plan : NULL, &s.metrics, &s.err);
     }

@@ -1,7 +1,7 @@
 /* SPDX-License-Identifier: GPL-3.0-or-later */
 /*
- * solve_fit.c - a dedicated branch and bound for the question the exact
- * method asks again and again: is there an assignment in which every
+ * answer_fit.c - a dedicated branch and bound for the window question the
+ * balance stages ask again and again: is there an assignment in which every
  * counted nurse n carries between lo[n] and hi[n] minutes of care?
  *
  * Patients go heaviest first; each tries the eligible nurses with room, the
@@ -10,8 +10,8 @@
  * non-decreasing index order, and of several nurses that are
  * interchangeable for the question and carry the same so far, only the
  * first is tried (with rules that join patients, only when those rules see
- * the two nurses alike too).  The rules that join patients are checked
- * by the tally (tally.h) at every step.  A node is cut when the remaining
+ * the two nurses alike too).  The rules are tested through the tally
+ * (keelRuleBreaks()) at every step.  A node is cut when the remaining
  * patients outnumber the free places, when the room they could still use is
  * less than their care (a nurse takes at most her free places' worth of the
  * heaviest of them, and with one place left at most the largest that fits),
@@ -19,15 +19,19 @@
  * more than they have.
  *
  * The search stops after a node budget or at a deadline and answers
- * "unknown"; the caller then tries its other answerers (solve_exact.c).  A
- * "feasible" or "infeasible" answer is exact.
+ * "unknown"; the chain then tries its other answerers (answer.c).  A yes
+ * or no is exact.
  */
 #include <stdlib.h>
 #include <string.h>
 
 #include "alloc.h"
-#include "solve_internal.h"
+#include "answer.h"
+#include "budget.h"
+#include "sort.h"
+#include "rule.h"
 #include "tally.h"
+#include "workload_internal.h"
 
 typedef struct fit {
     const keel_workload *w;
@@ -50,25 +54,9 @@ typedef struct fit {
     bool gave_up;
 } fit;
 
-static const keel_workload *sort_w;
-
-/* Compares what the rules see of two patients other than care and
- * eligibility: 0 when they are interchangeable. */
-static int joined_cmp(const keel_workload *w, size_t i, size_t j)
+static int heavier_first(const void *ctx, size_t i, size_t j)
 {
-    int d[] = {w->ratio_limit[i] - w->ratio_limit[j], w->high_acuity[i] - w->high_acuity[j],
-               w->isolation_rule ? w->side[i] - w->side[j] : 0,
-               w->zones_rule ? w->zone[i] - w->zone[j] : 0};
-    for (size_t k = 0; k < sizeof d / sizeof d[0]; k++)
-        if (d[k])
-            return (d[k] > 0) - (d[k] < 0);
-    return 0;
-}
-
-static int heavier_first(const void *a, const void *b)
-{
-    size_t i = *(const size_t *)a, j = *(const size_t *)b;
-    const keel_workload *w = sort_w;
+    const keel_workload *w = ctx;
     /* With the clock a patient's parts go together, in time order, so that
      * each part meets the nurse of the part before it. */
     if (w->clocked && w->patient[i] != w->patient[j]) {
@@ -86,7 +74,7 @@ static int heavier_first(const void *a, const void *b)
                    w->nnurses * sizeof *w->eligible);
     if (c)
         return c;
-    c = joined_cmp(w, i, j);
+    c = keelRuleOrder(w, i, j);
     if (c)
         return c;
     return (i > j) - (i < j);
@@ -95,7 +83,7 @@ static int heavier_first(const void *a, const void *b)
 static bool same_for_question(const fit *F, size_t a, size_t b)
 {
     const keel_workload *w = F->w;
-    return F->lo[a] == F->lo[b] && F->hi[a] == F->hi[b] && keel_workload_same_rules(w, a, b);
+    return F->lo[a] == F->lo[b] && F->hi[a] == F->hi[b] && keelRuleSameNurses(w, a, b);
 }
 
 /* True when the rules that join patients see nurses a and b alike: the
@@ -104,22 +92,11 @@ static bool same_for_question(const fit *F, size_t a, size_t b)
 static bool same_state(const fit *F, size_t a, size_t b)
 {
     const keel_workload *w = F->w;
-    const keel_tally *t = &F->tally;
     if (!w->joined_rules)
         return true;
     if (w->clocked)
         return false; /* counts per moment: not worth comparing */
-    if (t->high[a] != t->high[b] || keel_tally_tightest(t, a, 0) != keel_tally_tightest(t, b, 0))
-        return false;
-    for (size_t s = 1; s < 3; s++)
-        if ((t->sides[a * 3 + s] > 0) != (t->sides[b * 3 + s] > 0))
-            return false;
-    if (w->max_zones == KEEL_ABSENT)
-        return true;
-    for (size_t k = 0; k < w->nzones; k++)
-        if ((t->in_zone[a * w->nzones + k] > 0) != (t->in_zone[b * w->nzones + k] > 0))
-            return false;
-    return true;
+    return keelRuleSameHeld(&F->tally, a, b);
 }
 
 /* The most care one more patient of order[k..] can bring within room r
@@ -202,10 +179,10 @@ static bool search(fit *F, size_t k)
         for (size_t n = 0; n < nn; n++)
             if (keel_workload_counted(w, n) && F->care[n] < F->lo[n])
                 return false;
-        return !keel_tally_short(&F->tally);
+        return !keelRuleWhole(&F->tally);
     }
     if (++F->nodes > F->budget ||
-        (F->deadline_ms && (F->nodes & 1023) == 0 && keel_clock_ms() >= F->deadline_ms)) {
+        (F->deadline_ms && (F->nodes & 1023) == 0 && keel_budget_now() >= F->deadline_ms)) {
         F->gave_up = true;
         return false;
     }
@@ -217,7 +194,7 @@ static bool search(fit *F, size_t k)
     size_t *tried = F->tried + k * nn, ntried = 0;
     /* Candidates with room, most room first. */
     for (size_t n = (size_t)first; n < nn; n++) {
-        if (F->care[n] + c > F->hi[n] || !keel_tally_admits(&F->tally, p, n))
+        if (F->care[n] + c > F->hi[n] || !keelRuleAdmits(&F->tally, p, n))
             continue;
         bool twin_seen = false;
         for (size_t i = 0; i < ntried && !twin_seen; i++) {
@@ -250,12 +227,13 @@ static bool search(fit *F, size_t k)
     return false;
 }
 
-keel_status keel_fit_search(const keel_workload *w, const long long *lo, const long long *hi,
-                            long node_budget, long long deadline_ms, int *nurse_of,
-                            keel_ilp_answer *answer)
+keel_status keel_answer_fit(const keel_question *q, long long deadline_ms, int *nurse_of,
+                            keel_answer *answer, keel_error *err)
 {
+    const keel_workload *w = q->w;
     size_t np = w->npatients, nn = w->nnurses;
-    fit F = {.w = w, .lo = lo, .hi = hi, .budget = node_budget, .deadline_ms = deadline_ms};
+    fit F = {.w = w, .lo = q->lo, .hi = q->hi, .budget = q->nodes, .deadline_ms = deadline_ms};
+    *answer = KEEL_ANSWER_UNKNOWN;
     F.order = keel_calloc(np, sizeof *F.order);
     F.twin_of_prev = keel_calloc(np, sizeof *F.twin_of_prev);
     F.group = keel_calloc(nn, sizeof *F.group);
@@ -274,14 +252,16 @@ keel_status keel_fit_search(const keel_workload *w, const long long *lo, const l
     }
     for (size_t p = 0; p < np; p++)
         F.order[p] = p;
-    sort_w = w;
-    qsort(F.order, np, sizeof *F.order, heavier_first);
+    if (!keelSortIndices(F.order, np, heavier_first, w)) {
+        rc = KEEL_ERR_NOMEM;
+        goto out;
+    }
     for (size_t k = 1; k < np && !w->clocked; k++) {
         size_t a = F.order[k - 1], b = F.order[k];
         F.twin_of_prev[k] =
             w->care_minutes[a] == w->care_minutes[b] &&
             memcmp(&w->eligible[a * nn], &w->eligible[b * nn], nn * sizeof *w->eligible) == 0 &&
-            joined_cmp(w, a, b) == 0;
+            keelRuleOrder(w, a, b) == 0;
     }
     F.min_after[np] = 0;
     for (size_t k = np; k-- > 0;) {
@@ -301,9 +281,9 @@ keel_status keel_fit_search(const keel_workload *w, const long long *lo, const l
     }
     if (search(&F, 0)) {
         memcpy(nurse_of, F.assign, np * sizeof *nurse_of);
-        *answer = KEEL_ILP_FEASIBLE;
+        *answer = KEEL_ANSWER_YES;
     } else {
-        *answer = F.gave_up ? KEEL_ILP_UNKNOWN : KEEL_ILP_INFEASIBLE;
+        *answer = F.gave_up ? KEEL_ANSWER_UNKNOWN : KEEL_ANSWER_NO;
     }
 out:
     free(F.order);
@@ -316,5 +296,7 @@ out:
     keel_tally_free(&F.tally);
     free(F.assign);
     free(F.tried);
+    if (rc)
+        keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
     return rc;
 }

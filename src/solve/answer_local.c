@@ -1,10 +1,10 @@
 /* SPDX-License-Identifier: GPL-3.0-or-later */
 /*
- * solve_local.c - a local search for the question the exact method asks:
- * is there an assignment in which every counted nurse n carries between
- * lo[n] and hi[n] minutes of care?  It can only answer yes.
+ * answer_local.c - a local search for the window question: is there an
+ * assignment in which every counted nurse n carries between lo[n] and
+ * hi[n] minutes of care?  It can only answer yes.
  *
- * From an assignment that keeps every rule, it moves one patient to
+ * From the question's start (an assignment that keeps every rule), it moves one patient to
  * another nurse or swaps two patients of two nurses, always keeping every
  * rule (the tally checks each step), and drives the excess down: the care
  * above hi[n] plus the care missing below lo[n], summed over the counted
@@ -13,14 +13,19 @@
  * puts a patient back with a nurse it left in the last few steps (a tabu
  * search).  Ties go to a fixed-seed coin, so runs are repeatable for the
  * same number of steps.  It gives up at the deadline or after STALL_STEPS
- * steps without a new lowest excess.  Not used with the clock.
+ * steps without a new lowest excess.  Not used with the clock, nor without
+ * a start.
  */
 #include <stdlib.h>
 #include <string.h>
 
 #include "alloc.h"
-#include "solve_internal.h"
+#include "answer.h"
+#include "budget.h"
+#include "measure.h"
+#include "rule.h"
 #include "tally.h"
+#include "workload_internal.h"
 
 /* Steps for which a patient may not go back to a nurse it left. */
 #define TABU_MIN 7
@@ -42,13 +47,13 @@ typedef struct local {
 
 static unsigned long long flip(local *L)
 {
-    return keel_coin_flip(&L->coin);
+    return keel_measure_coin(&L->coin);
 }
 
 /* How far care c is from nurse n's window. */
 static long long off(const local *L, size_t n, long long c)
 {
-    return keel_window_off(L->w, L->lo, L->hi, n, c);
+    return keel_measure_window_off(L->w, L->lo, L->hi, n, c);
 }
 
 static long long excess(const local *L)
@@ -93,9 +98,9 @@ static void steps_from(local *L, size_t a, long long total, step *best, bool *ha
         if (L->nurse_of[p] != (int)a)
             continue;
         long long c = w->care_minutes[p], ca = L->t.care[a];
-        bool may_give = keel_tally_may_give(&L->t, a);
+        bool may_give = keelRuleMinMayGive(&L->t, a);
         for (size_t b = 0; b < nn && may_give; b++) {
-            if (b == a || !keel_tally_admits(&L->t, p, b))
+            if (b == a || !keelRuleAdmits(&L->t, p, b))
                 continue;
             long long cb = L->t.care[b];
             long long d = off(L, a, ca - c) - off(L, a, ca) + off(L, b, cb + c) - off(L, b, cb);
@@ -111,8 +116,8 @@ static void steps_from(local *L, size_t a, long long total, step *best, bool *ha
             long long d = off(L, a, ca - dq) - off(L, a, ca) + off(L, b, cb + dq) - off(L, b, cb);
             if (!allowed(L, p, b, total + d == 0) || !allowed(L, q, a, total + d == 0))
                 continue;
-            if (!keel_tally_admits_instead(&L->t, p, q, b) ||
-                !keel_tally_admits_instead(&L->t, q, p, a))
+            if (!keelRuleAdmitsInstead(&L->t, p, q, b) ||
+                !keelRuleAdmitsInstead(&L->t, q, p, a))
                 continue;
             consider(L, best, have, (step){.delta = d, .p = p, .q = (long)q, .to = b});
         }
@@ -125,8 +130,8 @@ static void steps_to(local *L, size_t a, long long total, step *best, bool *have
     const keel_workload *w = L->w;
     for (size_t p = 0; p < w->npatients; p++) {
         int b = L->nurse_of[p];
-        if (b < 0 || b == (int)a || !keel_tally_may_give(&L->t, (size_t)b) ||
-            !keel_tally_admits(&L->t, p, a))
+        if (b < 0 || b == (int)a || !keelRuleMinMayGive(&L->t, (size_t)b) ||
+            !keelRuleAdmits(&L->t, p, a))
             continue;
         long long c = w->care_minutes[p], ca = L->t.care[a], cb = L->t.care[b];
         long long d =
@@ -153,13 +158,15 @@ static void apply(local *L, const step *s)
     L->tabu_until[s->p * nn + from] = L->step + tenure;
 }
 
-keel_status keel_fit_local(const keel_workload *w, const long long *lo, const long long *hi,
-                           const int *start, long long deadline_ms, int *nurse_of,
-                           keel_ilp_answer *answer)
+keel_status keel_answer_local(const keel_question *q, long long deadline_ms, int *nurse_of,
+                              keel_answer *answer, keel_error *err)
 {
+    const keel_workload *w = q->w;
+    const long long *lo = q->lo, *hi = q->hi;
+    const int *start = q->start;
     size_t np = w->npatients, nn = w->nnurses;
-    *answer = KEEL_ILP_UNKNOWN;
-    if (w->clocked)
+    *answer = KEEL_ANSWER_UNKNOWN;
+    if (w->clocked || !start)
         return KEEL_OK;
     local L = {.w = w, .lo = lo, .hi = hi, .coin = 0x9e3779b97f4a7c15ULL};
     L.nurse_of = keel_calloc(np ? np : 1, sizeof *L.nurse_of);
@@ -174,7 +181,7 @@ keel_status keel_fit_local(const keel_workload *w, const long long *lo, const lo
     long long total = excess(&L), record = total;
     long since = 0; /* steps since the excess was last at a new low */
     while (total > 0) {
-        if (since >= STALL_STEPS || ((L.step & 15) == 0 && keel_clock_ms() >= deadline_ms))
+        if (since >= STALL_STEPS || ((L.step & 15) == 0 && keel_budget_now() >= deadline_ms))
             goto out;
         step best;
         bool have = false;
@@ -194,37 +201,12 @@ keel_status keel_fit_local(const keel_workload *w, const long long *lo, const lo
         record = total < record ? total : record;
     }
     memcpy(nurse_of, L.nurse_of, np * sizeof *nurse_of);
-    *answer = KEEL_ILP_FEASIBLE;
+    *answer = KEEL_ANSWER_YES;
 out:
     free(L.nurse_of);
     free(L.tabu_until);
     keel_tally_free(&L.t);
-    return rc;
-}
-
-keel_status keel_local_descent(const keel_workload *w, long long deadline_ms, int *nurse_of)
-{
-    size_t np = w->npatients, nn = w->nnurses;
-    long long *lo = keel_calloc(nn ? nn : 1, sizeof *lo),
-              *hi = keel_calloc(nn ? nn : 1, sizeof *hi);
-    int *trial = keel_calloc(np ? np : 1, sizeof *trial);
-    keel_status rc = lo && hi && trial ? KEEL_OK : KEEL_ERR_NOMEM;
-    keel_ilp_answer answer = KEEL_ILP_FEASIBLE;
-    while (!rc && answer == KEEL_ILP_FEASIBLE && keel_clock_ms() < deadline_ms) {
-        /* Every counted nurse strictly below the plan's heaviest utilisation. */
-        keel_ratio peak = keel_solve_peak(w, nurse_of);
-        for (size_t n = 0; n < nn; n++) {
-            long long cap = w->capacity_minutes[n];
-            hi[n] = keel_workload_counted(w, n)
-                        ? (peak.num * cap + peak.den - 1) / peak.den - 1 - w->duty_minutes[n]
-                        : 0;
-        }
-        rc = keel_fit_local(w, lo, hi, nurse_of, deadline_ms, trial, &answer);
-        if (!rc && answer == KEEL_ILP_FEASIBLE)
-            memcpy(nurse_of, trial, np * sizeof *nurse_of);
-    }
-    free(lo);
-    free(hi);
-    free(trial);
+    if (rc)
+        keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
     return rc;
 }

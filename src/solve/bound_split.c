@@ -1,6 +1,6 @@
 /* SPDX-License-Identifier: GPL-3.0-or-later */
 /*
- * solve_split.c - a proven floor for pooled units where each nurse works in
+ * bound_split.c - a proven floor for pooled units where each nurse works in
  * one zone (policy.max_zones 1, every patient in a zone, no clock).
  *
  * There the nurses who take patients split into the zones of their
@@ -25,7 +25,9 @@
 #include <stdlib.h>
 
 #include "alloc.h"
-#include "solve_internal.h"
+#include "bound.h"
+#include "measure.h"
+#include "workload_internal.h"
 
 #define SPLIT_CLASSES_MAX 8
 #define SPLIT_STATES_MAX (1L << 18)
@@ -96,10 +98,10 @@ static bool fits(const split *S, long s, long v)
     return true;
 }
 
-keel_status keel_split_possible(const keel_workload *w, keel_ratio t, bool *possible)
+keel_status keel_bound_split_possible(const keel_workload *w, keel_ratio t, bool *possible)
 {
     *possible = true;
-    if (!keel_one_zone_each(w))
+    if (!keel_measure_one_zone_each(w))
         return KEEL_OK;
     split S = {.a = t.num, .b = t.den};
     for (size_t n = 0; n < w->nnurses; n++) {

@@ -1,6 +1,6 @@
 /* SPDX-License-Identifier: GPL-3.0-or-later */
 /*
- * solve_bound.c - says what sets the proven limit on the heaviest load.
+ * bound_words.c - says what sets the proven limit on the heaviest load.
  *
  * Each simple reason forces a floor under the heaviest utilisation U of any
  * valid assignment:
@@ -17,14 +17,16 @@
  * The largest floor that reaches the stage-1 bound is the explanation;
  * when the bound is above every floor, it was proven by search: patients
  * are whole (and limits and the rules that join patients hold; with one
- * zone per nurse, the nurses split among the zones, solve_split.c), so the
+ * zone per nurse, the nurses split among the zones, bound_split.c), so the
  * work cannot be split as evenly as the averages allow.
  */
 #include <stdlib.h>
 #include <string.h>
 
 #include "alloc.h"
-#include "solve_internal.h"
+#include "bound.h"
+#include "measure.h"
+#include "workload_internal.h"
 
 /* Utilisations closer than this are the same bound (both come from whole
  * minutes over at most a day's minutes, so distinct ones differ by far more). */
@@ -103,7 +105,7 @@ static char *describe(const keel_roster *r, const keel_workload *w, const floor_
     if (below) {
         char *simple = describe(r, w, f, bound, false, inside);
         /* With one zone per nurse, the nurses' split among the zones too. */
-        bool zones = keel_one_zone_each(w);
+        bool zones = keel_measure_one_zone_each(w);
         char *text = simple ? keel_asprintf("patients are whole%s: with the patient limits and the "
                                             "unit's rules, no split of whole patients%s brings the "
                                             "heaviest load below %.1f %% (proven by search); the "
@@ -146,7 +148,7 @@ static char *describe(const keel_roster *r, const keel_workload *w, const floor_
     return text;
 }
 
-keel_status keel_solve_explain_bound(const keel_roster *r, const keel_workload *w, double bound,
+keel_status keel_bound_words(const keel_roster *r, const keel_workload *w, double bound,
                                      keel_solution *sol)
 {
     size_t np = w->npatients, nn = w->nnurses;

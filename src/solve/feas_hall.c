@@ -1,6 +1,7 @@
 /* SPDX-License-Identifier: GPL-3.0-or-later */
 /*
- * diagnose.c - does any valid assignment exist, and if not, why not.
+ * feas_hall.c - does any valid assignment exist under eligibility and
+ * patient limits, and if not, why not.
  *
  * Ignoring balance, a valid assignment is a b-matching: each patient to one
  * eligible nurse, each nurse at most the nurse's limit.  Augmenting paths find one
@@ -8,7 +9,7 @@
  * failed search reached form a proof (Hall's condition): every one of those
  * patients can only go to those nurses, the nurses are full, and the
  * patients outnumber the places.  Each such set becomes a finding in plain
- * words.  Sits between workload and solve; the solver runs only when this
+ * words.  The orchestrator asks it first; the solver runs only when this
  * says an assignment exists.
  */
 #include <stdio.h>
@@ -17,7 +18,8 @@
 
 #include "alloc.h"
 #include "finding_list.h"
-#include "solve_internal.h"
+#include "feas.h"
+#include "workload_internal.h"
 
 typedef struct matcher {
     const keel_workload *w;
@@ -325,7 +327,7 @@ static keel_status diagnose_clock(const keel_roster *r, const keel_workload *w, 
     return KEEL_OK;
 }
 
-keel_status keel_diagnose(const keel_roster *r, const keel_workload *w, int *nurse_of,
+keel_status keel_feas_hall(const keel_roster *r, const keel_workload *w, int *nurse_of,
                           bool *feasible, keel_findings *out)
 {
     if (w->clocked)

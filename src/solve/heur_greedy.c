@@ -1,6 +1,6 @@
 /* SPDX-License-Identifier: GPL-3.0-or-later */
 /*
- * solve_greedy.c - the fast method: heaviest patient first to the eligible
+ * heur_greedy.c - the greedy placement: heaviest patient first to the eligible
  * nurse with room whose utilisation after taking the patient is lowest
  * (Graham's LPT rule, in utilisation), then improving moves and swaps.
  *
@@ -8,19 +8,24 @@
  * (an augmenting path, as in bipartite matching, each step checked by the
  * tally).  When patients are still left and policy.max_zones binds, the
  * placement starts over with a home zone chosen for each nurse first
- * (solve_homes.c) and each zoned patient placed within its zone's nurses.
+ * (heur_homes.c) and each zoned patient placed within its zone's nurses.
  *
- * It gives the incumbent the ILP starts from, the answer of
+ * It gives the incumbent the exact method starts from, the start of
  * `--method greedy`, and a check in tests.  Every placement, move and swap
- * keeps every hard rule (the tally, tally.h, checks them).  Improvement accepts a move or swap
- * between nurses a and b only when it lowers max(u_a, u_b) strictly, so the sorted vector of
- * utilisations falls lexicographically and the search ends.
+ * keeps every rule (keelRuleBreaks() tests each step through the tally).
+ * Improvement accepts a move or swap between nurses a and b only when it
+ * lowers max(u_a, u_b) strictly, so the sorted vector of utilisations falls
+ * lexicographically and the search ends.
  */
 #include <stdlib.h>
 
 #include "alloc.h"
-#include "solve_internal.h"
+#include "budget.h"
+#include "heur.h"
+#include "measure.h"
+#include "rule.h"
 #include "tally.h"
+#include "workload_internal.h"
 
 /* Places each unplaced patient of order, as in the file's head comment;
  * with home, only with a nurse whose home is the patient's zone (unzoned
@@ -37,7 +42,7 @@ static void place(const keel_workload *w, keel_tally *t, const size_t *order, si
         for (size_t n = 0; n < w->nnurses; n++) {
             if (home && w->zone[p] >= 0 && home[n] != w->zone[p])
                 continue;
-            if (!keel_tally_admits(t, p, n))
+            if (!keelRuleAdmits(t, p, n))
                 continue;
             keel_ratio u = {load[n] + w->care_minutes[p], w->capacity_minutes[n]};
             if (best < 0 || keel_ratio_cmp(u, best_u) < 0) {
@@ -62,7 +67,7 @@ static bool chain_for(const keel_workload *w, keel_tally *t, size_t x, bool *see
                       int *nurse_of)
 {
     for (size_t n = 0; n < w->nnurses; n++)
-        if (!seen[n] && keel_tally_admits(t, x, n)) {
+        if (!seen[n] && keelRuleAdmits(t, x, n)) {
             keel_tally_add(t, x, n);
             load[n] += w->care_minutes[x];
             nurse_of[x] = (int)n;
@@ -73,7 +78,7 @@ static bool chain_for(const keel_workload *w, keel_tally *t, size_t x, bool *see
             continue;
         seen[n] = true;
         for (size_t q = 0; q < w->npatients; q++) {
-            if (nurse_of[q] != (int)n || !keel_tally_admits_instead(t, x, q, n))
+            if (nurse_of[q] != (int)n || !keelRuleAdmitsInstead(t, x, q, n))
                 continue;
             keel_tally_remove(t, q, n);
             keel_tally_add(t, x, n);
@@ -131,7 +136,7 @@ static bool all_placed(const keel_workload *w, const int *nurse_of)
     return true;
 }
 
-keel_status keel_greedy_place(const keel_workload *w, int *nurse_of, bool *placed_all)
+keel_status keel_heur_greedy_place(const keel_workload *w, int *nurse_of, bool *placed_all)
 {
     size_t np = w->npatients, nn = w->nnurses;
     size_t *order = keel_malloc((np ? np : 1) * sizeof *order);
@@ -150,7 +155,7 @@ keel_status keel_greedy_place(const keel_workload *w, int *nurse_of, bool *place
     bool ok = repair(w, &t, order, load, nurse_of);
     /* Stuck on the zones: choose each nurse's zone first, then place. */
     if (ok && !all_placed(w, nurse_of) && w->zones_rule) {
-        ok = keel_zone_homes(w, home);
+        ok = keel_heur_homes(w, home);
         if (ok) {
             start_over(w, &t, load, nurse_of);
             place(w, &t, order, np, home, load, nurse_of);
@@ -182,7 +187,7 @@ static bool try_move(const keel_workload *w, int *nurse_of, long long *load, kee
     keel_ratio before = worse((keel_ratio){load[a], w->capacity_minutes[a]},
                               (keel_ratio){load[b], w->capacity_minutes[b]});
     for (size_t p = 0; p < w->npatients; p++) {
-        if (nurse_of[p] != (int)a || !keel_tally_may_give(t, a) || !keel_tally_admits(t, p, b))
+        if (nurse_of[p] != (int)a || !keelRuleMinMayGive(t, a) || !keelRuleAdmits(t, p, b))
             continue;
         int c = w->care_minutes[p];
         keel_ratio after = worse((keel_ratio){load[a] - c, w->capacity_minutes[a]},
@@ -216,7 +221,7 @@ static bool try_swap(const keel_workload *w, int *nurse_of, long long *load, kee
             if (d == 0)
                 continue;
             if (w->joined_rules &&
-                (!keel_tally_admits_instead(t, p, q, b) || !keel_tally_admits_instead(t, q, p, a)))
+                (!keelRuleAdmitsInstead(t, p, q, b) || !keelRuleAdmitsInstead(t, q, p, a)))
                 continue;
             keel_ratio after = worse((keel_ratio){load[a] - d, w->capacity_minutes[a]},
                                      (keel_ratio){load[b] + d, w->capacity_minutes[b]});
@@ -236,7 +241,7 @@ static bool try_swap(const keel_workload *w, int *nurse_of, long long *load, kee
     return false;
 }
 
-keel_status keel_greedy_improve(const keel_workload *w, int *nurse_of)
+keel_status keel_heur_greedy_improve(const keel_workload *w, int *nurse_of)
 {
     size_t nn = w->nnurses;
     long long *load = keel_calloc(nn, sizeof *load);
@@ -245,7 +250,7 @@ keel_status keel_greedy_improve(const keel_workload *w, int *nurse_of)
         free(load);
         return KEEL_ERR_NOMEM;
     }
-    keel_solve_loads(w, nurse_of, load);
+    keel_measure_loads(w, nurse_of, load);
     keel_tally_fill(&t, nurse_of);
     bool improved = true;
     while (improved) {
@@ -294,7 +299,7 @@ static bool lift_once(const keel_workload *w, const long long *hi, int *nurse_of
         long long c = w->care_minutes[p];
         keel_ratio after_a = {load[a] - c, w->capacity_minutes[a]};
         if (t->care[b] + c <= hi[b] && keel_ratio_cmp(after_a, low) > 0 &&
-            keel_tally_may_give(t, (size_t)a) && keel_tally_admits(t, p, b)) {
+            keelRuleMinMayGive(t, (size_t)a) && keelRuleAdmits(t, p, b)) {
             nurse_of[p] = (int)b;
             load[a] -= c;
             load[b] += c;
@@ -309,8 +314,8 @@ static bool lift_once(const keel_workload *w, const long long *hi, int *nurse_of
             keel_ratio swapped_a = {load[a] - d, w->capacity_minutes[a]};
             if (t->care[b] + d > hi[b] || keel_ratio_cmp(swapped_a, low) <= 0)
                 continue;
-            if (!keel_tally_admits_instead(t, p, q, b) ||
-                !keel_tally_admits_instead(t, q, p, (size_t)a))
+            if (!keelRuleAdmitsInstead(t, p, q, b) ||
+                !keelRuleAdmitsInstead(t, q, p, (size_t)a))
                 continue;
             nurse_of[p] = (int)b;
             nurse_of[q] = a;
@@ -326,7 +331,7 @@ static bool lift_once(const keel_workload *w, const long long *hi, int *nurse_of
     return false;
 }
 
-keel_status keel_greedy_lift(const keel_workload *w, const long long *hi, int *nurse_of)
+keel_status keel_heur_greedy_lift(const keel_workload *w, const long long *hi, int *nurse_of)
 {
     long long *load = keel_calloc(w->nnurses ? w->nnurses : 1, sizeof *load);
     keel_tally t;
@@ -334,7 +339,7 @@ keel_status keel_greedy_lift(const keel_workload *w, const long long *hi, int *n
         free(load);
         return KEEL_ERR_NOMEM;
     }
-    keel_solve_loads(w, nurse_of, load);
+    keel_measure_loads(w, nurse_of, load);
     keel_tally_fill(&t, nurse_of);
     /* Each step raises the lowest utilisation or the number of nurses at
      * it falls, so the sorted vector rises and the loop ends. */

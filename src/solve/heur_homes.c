@@ -1,6 +1,6 @@
 /* SPDX-License-Identifier: GPL-3.0-or-later */
 /*
- * solve_homes.c - a home zone for each nurse who takes patients, so that
+ * heur_homes.c - a home zone for each nurse who takes patients, so that
  * the greedy placement can keep policy.max_zones on a large pooled unit.
  *
  * Placing patients heaviest first across the whole unit spreads each zone's
@@ -35,7 +35,10 @@
 #include <stdlib.h>
 
 #include "alloc.h"
-#include "solve_internal.h"
+#include "budget.h"
+#include "heur.h"
+#include "measure.h"
+#include "workload_internal.h"
 
 typedef struct homes {
     const keel_workload *w;
@@ -531,7 +534,7 @@ static void settle_counts(homes *H, const count_plan *C, int *need)
     }
 }
 
-bool keel_zone_homes(const keel_workload *w, int *home)
+bool keel_heur_homes(const keel_workload *w, int *home)
 {
     size_t np = w->npatients, nn = w->nnurses, nz = w->nzones;
     homes H = {.w = w, .home = home};

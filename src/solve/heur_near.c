@@ -1,6 +1,6 @@
 /* SPDX-License-Identifier: GPL-3.0-or-later */
 /*
- * solve_near.c - a local search for stage 4 (proximity): fewer zones per
+ * heur_near.c - a local search for stage 4 (proximity): fewer zones per
  * nurse in all, then fewer rooms, within the balance windows and keeping
  * stage 3's count of patients with their previous nurse.
  *
@@ -26,8 +26,12 @@
 #include <string.h>
 
 #include "alloc.h"
-#include "solve_internal.h"
+#include "budget.h"
+#include "heur.h"
+#include "measure.h"
+#include "rule.h"
 #include "tally.h"
+#include "workload_internal.h"
 
 #define TABU_MIN 5
 #define TABU_SPREAD 8
@@ -56,7 +60,7 @@ typedef struct near {
 
 static unsigned long long flip(near *S)
 {
-    return keel_coin_flip(&S->coin);
+    return keel_measure_coin(&S->coin);
 }
 
 /* The change in cost when nurse n loses patient p (out) or gains it. */
@@ -105,7 +109,7 @@ static long long cost_instead(const near *S, size_t p, size_t q, size_t n)
 
 static long long off(const near *S, size_t n, long long c)
 {
-    return keel_window_off(S->w, S->lo, S->hi, n, c);
+    return keel_measure_window_off(S->w, S->lo, S->hi, n, c);
 }
 
 /* The change in the windows' penalty when a's care changes by da and b's
@@ -148,10 +152,10 @@ static void consider(near *S, step *best, bool *have, step s)
         return;
     size_t a = (size_t)S->nurse_of[s.p];
     if (s.q < 0) {
-        if (!keel_tally_may_give(&S->t, a) || !keel_tally_admits(&S->t, s.p, s.to))
+        if (!keelRuleMinMayGive(&S->t, a) || !keelRuleAdmits(&S->t, s.p, s.to))
             return;
-    } else if (!keel_tally_admits_instead(&S->t, s.p, (size_t)s.q, s.to) ||
-               !keel_tally_admits_instead(&S->t, (size_t)s.q, s.p, a)) {
+    } else if (!keelRuleAdmitsInstead(&S->t, s.p, (size_t)s.q, s.to) ||
+               !keelRuleAdmitsInstead(&S->t, (size_t)s.q, s.p, a)) {
         return;
     }
     *best = s;
@@ -246,7 +250,7 @@ static void apply(near *S, const step *s)
     S->tabu_until[s->p * nn + from] = S->step + tenure;
 }
 
-keel_status keel_near_local(const keel_workload *w, const long long *lo, const long long *hi,
+keel_status keel_heur_near(const keel_workload *w, const long long *lo, const long long *hi,
                             long long min_kept, long long floor, long long deadline_ms,
                             int *nurse_of)
 {
@@ -273,13 +277,13 @@ keel_status keel_near_local(const keel_workload *w, const long long *lo, const l
     for (size_t p = 0; p < np; p++)
         if (nurse_of[p] >= 0)
             place(&S, p, (size_t)nurse_of[p], +1);
-    S.kept = keel_solve_kept(w, nurse_of);
+    S.kept = keel_measure_kept(w, nurse_of);
     long long zones, rooms;
-    keel_solve_spread(w, nurse_of, &zones, &rooms);
+    keel_measure_spread(w, nurse_of, &zones, &rooms);
     long long total = S.zone_minutes * (S.weight * zones + rooms), record = total;
     long since = 0;
     while (record > S.zone_minutes * floor && since < STALL_STEPS &&
-           ((S.step & 15) != 0 || keel_clock_ms() < deadline_ms)) {
+           ((S.step & 15) != 0 || keel_budget_now() < deadline_ms)) {
         step best;
         if (!choose(&S, total, record, &best))
             break; /* every step is tabu or breaks a rule */

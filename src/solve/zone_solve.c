@@ -1,6 +1,6 @@
 /* SPDX-License-Identifier: GPL-3.0-or-later */
 /*
- * solve_zones.c - stages 1 and 2 by zone.  When every nurse works in one
+ * zone_solve.c - stages 1 and 2 by zone (a method of its own).  When every nurse works in one
  * zone (policy.max_zones 1), every patient has a zone and the nurses who
  * take patients are interchangeable (same capacity, duty, limits, care cap
  * and eligible patients), a plan is a number of nurses k_z for each zone z
@@ -25,10 +25,13 @@
 #include <string.h>
 
 #include "alloc.h"
-#include "solve_internal.h"
-
-/* Nodes the dedicated least-squares search may spend on one zone. */
-#define SQUARES_NODE_BUDGET 2000000L
+#include "answer.h"
+#include "budget.h"
+#include "heur.h"
+#include "bound.h"
+#include "stage.h"
+#include "zone.h"
+#include "workload_internal.h"
 
 /* One zone with k nurses: its plan after stage 1 and after stage 2. */
 typedef struct zone_try {
@@ -51,14 +54,7 @@ typedef struct zones {
     int calls;
 } zones;
 
-/* True when nurses a and b are interchangeable for every patient. */
-static bool alike(const keel_workload *w, size_t a, size_t b)
-{
-    return w->capacity_minutes[a] == w->capacity_minutes[b] &&
-           w->duty_minutes[a] == w->duty_minutes[b] && keel_workload_same_rules(w, a, b);
-}
-
-bool keel_zones_apply(const keel_workload *w)
+bool keel_zone_solve_applies(const keel_workload *w)
 {
     if (w->clocked || w->max_zones != 1 || w->nzones < 2)
         return false;
@@ -71,71 +67,10 @@ bool keel_zones_apply(const keel_workload *w)
             continue;
         if (first < 0)
             first = (long)n;
-        else if (!alike(w, (size_t)first, n))
+        else if (!keel_measure_alike(w, (size_t)first, n))
             return false;
     }
     return first >= 0;
-}
-
-/* The workload of patients members[0..np) of w with nurses nurses[0..k)
- * (or, when nurses is NULL, k copies of nurse n0). */
-static keel_workload *zone_workload(const keel_workload *w, const size_t *members, size_t np,
-                                    const size_t *nurses, size_t n0, size_t k)
-{
-    keel_workload *z = keel_calloc(1, sizeof *z);
-    if (!z)
-        return NULL;
-    z->npatients = z->npeople = np;
-    z->nnurses = k;
-    bool ok = keel_workload_alloc(z);
-    z->nurse_start = keel_calloc(k ? k : 1, sizeof *z->nurse_start);
-    z->nurse_end = keel_calloc(k ? k : 1, sizeof *z->nurse_end);
-    z->moment_start = keel_calloc(2, sizeof *z->moment_start);
-    if (!ok || !z->nurse_start || !z->nurse_end || !z->moment_start) {
-        keel_workload_free(z);
-        return NULL;
-    }
-    z->law_limit = w->law_limit;
-    z->max_high_acuity = w->max_high_acuity;
-    z->max_zones = KEEL_ABSENT;
-    z->tolerance = w->tolerance;
-    z->balance = w->balance;
-    z->shift_minutes = w->shift_minutes;
-    z->nmoments = 1;
-    z->moment_start[1] = w->shift_minutes;
-    bool sides[3] = {false, false, false};
-    for (size_t i = 0; i < np; i++) {
-        size_t p = members[i];
-        z->care_minutes[i] = w->care_minutes[p];
-        z->ratio_limit[i] = w->ratio_limit[p] < (int)np ? w->ratio_limit[p] : (int)np;
-        z->high_acuity[i] = w->high_acuity[p];
-        z->side[i] = w->side[p];
-        z->zone[i] = -1;
-        z->room[i] = -1;
-        z->previous[i] = -1;
-        z->patient[i] = (int)i;
-        z->first_part[i + 1] = (int)i + 1;
-        z->part_end[i] = w->shift_minutes;
-        z->last_moment[i] = 1;
-        z->joined_rules = z->joined_rules || z->ratio_limit[i] < (int)np;
-        sides[z->side[i]] = true;
-        for (size_t n = 0; n < k; n++)
-            z->eligible[i * k + n] = keel_workload_eligible(w, p, nurses ? nurses[n] : n0);
-    }
-    for (size_t n = 0; n < k; n++) {
-        size_t m = nurses ? nurses[n] : n0;
-        z->capacity_minutes[n] = w->capacity_minutes[m];
-        z->duty_minutes[n] = w->duty_minutes[m];
-        z->max_patients[n] = w->max_patients[m];
-        z->min_patients[n] = w->min_patients[m];
-        z->max_care[n] = w->max_care[m];
-        z->nurse_end[n] = w->shift_minutes;
-    }
-    z->isolation_rule = sides[KEEL_SIDE_INFECTIOUS] && sides[KEEL_SIDE_PROTECTIVE];
-    z->bounds_rule = w->bounds_rule;
-    z->joined_rules =
-        z->joined_rules || z->max_high_acuity != KEEL_ABSENT || z->isolation_rule || z->bounds_rule;
-    return z;
 }
 
 /* ---- The least squares of one zone, by a dedicated search ----------------
@@ -307,19 +242,19 @@ static keel_status solve_zone(zones *Z, size_t z, size_t k, long long deadline_m
     const keel_workload *w = Z->w;
     size_t np = Z->first[z + 1] - Z->first[z];
     zone_try *t = try_at(Z, z, k);
-    keel_workload *sub = zone_workload(w, Z->members + Z->first[z], np, NULL, Z->counted[0], k);
+    keel_workload *sub = keelWorkloadSubset(w, Z->members + Z->first[z], np, NULL, Z->counted[0], k);
     t->plan = keel_calloc(np ? np : 1, sizeof *t->plan);
     if (!sub || !t->plan) {
         keel_workload_free(sub);
         return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
     }
-    keel_ilp_answer answer;
+    keel_answer answer;
     keel_status rc = KEEL_OK;
     bool proven = false;
     if (w->balance == KEEL_BALANCE_SQUARES && plain_zone(sub) &&
-        squares_exact(sub, SQUARES_NODE_BUDGET, t->plan, &proven)) {
+        squares_exact(sub, KEEL_NODES_ZONE_SQUARES, t->plan, &proven)) {
         t->feasible = true;
-        t->squares = keel_solve_squares(sub, t->plan);
+        t->squares = keel_measure_squares(sub, t->plan);
         t->squares_proven = t->peak_proven = proven;
         keel_workload_free(sub);
         return KEEL_OK;
@@ -329,21 +264,21 @@ static keel_status solve_zone(zones *Z, size_t z, size_t k, long long deadline_m
         keel_workload_free(sub);
         return KEEL_OK;
     }
-    rc = keel_find_valid(sub, deadline_ms, t->plan, &answer, err);
-    if (!rc && answer == KEEL_ILP_FEASIBLE && keel_greedy_improve(sub, t->plan))
+    rc = keel_answer_valid(sub, deadline_ms, t->plan, &answer, err);
+    if (!rc && answer == KEEL_ANSWER_YES && keel_heur_greedy_improve(sub, t->plan))
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
-    if (!rc && answer == KEEL_ILP_FEASIBLE) {
+    if (!rc && answer == KEEL_ANSWER_YES) {
         keel_solution s = {.npatients = np, .nurse_of = t->plan};
-        rc = keel_method_ilp(sub, deadline_ms, &s, err);
+        rc = keel_stage_balance(sub, true, deadline_ms, &s, err);
         t->feasible = true;
-        t->peak = keel_solve_peak(sub, t->plan);
+        t->peak = keel_measure_peak(sub, t->plan);
         t->peak_proven = s.stages[0].status == KEEL_SOLVE_OPTIMAL;
-        t->squares = keel_solve_squares(sub, t->plan);
+        t->squares = keel_measure_squares(sub, t->plan);
         t->squares_proven = t->peak_proven; /* stage 1 of the zone is squares then */
         for (size_t i = 0; i < s.nstages; i++)
             Z->calls += s.stages[i].solver_calls;
     }
-    t->peak_proven = t->peak_proven || answer == KEEL_ILP_INFEASIBLE;
+    t->peak_proven = t->peak_proven || answer == KEEL_ANSWER_NO;
     keel_workload_free(sub);
     return rc;
 }
@@ -354,12 +289,12 @@ static keel_status lift_zone(zones *Z, size_t z, size_t k, keel_ratio peak, long
 {
     size_t np = Z->first[z + 1] - Z->first[z];
     zone_try *t = try_at(Z, z, k);
-    keel_workload *sub = zone_workload(Z->w, Z->members + Z->first[z], np, NULL, Z->counted[0], k);
+    keel_workload *sub = keelWorkloadSubset(Z->w, Z->members + Z->first[z], np, NULL, Z->counted[0], k);
     if (!sub)
         return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
     keel_stage st = {0};
-    keel_status rc = keel_exact_lift_under(sub, peak, deadline_ms, t->plan, &st, err);
-    t->lift = keel_solve_lift(sub, t->plan);
+    keel_status rc = keel_stage_lift_under(sub, peak, deadline_ms, t->plan, &st, err);
+    t->lift = keel_measure_lift(sub, t->plan);
     t->lift_proven = st.status == KEEL_SOLVE_OPTIMAL;
     Z->calls += st.solver_calls;
     keel_workload_free(sub);
@@ -476,7 +411,7 @@ static void stage_from(keel_stage *st, const char *name, keel_ratio value, bool 
                        .bound = b,
                        .gap = proven ? 0.0 : keel_gap(v, b),
                        .solver_calls = calls,
-                       .seconds = (double)(keel_clock_ms() - started) / 1000.0};
+                       .seconds = (double)(keel_budget_now() - started) / 1000.0};
 }
 
 /* Under policy.balance squares: the numbers k_z whose zones' sums add up to
@@ -534,12 +469,12 @@ static bool least_squares(zones *Z, size_t *pick)
     return found;
 }
 
-keel_status keel_zones_solve(const keel_workload *w, long long deadline_ms, keel_solution *sol,
+keel_status keel_zone_solve(const keel_workload *w, long long deadline_ms, keel_solution *sol,
                              bool *found, keel_error *err)
 {
     zones Z = {.w = w, .nz = w->nzones};
     keel_status rc = KEEL_OK;
-    long long started = keel_clock_ms();
+    long long started = keel_budget_now();
     size_t np = w->npatients, nn = w->nnurses;
     *found = false;
     Z.first = keel_calloc(Z.nz + 1, sizeof *Z.first);
@@ -577,12 +512,12 @@ keel_status keel_zones_solve(const keel_workload *w, long long deadline_ms, keel
     for (size_t z = 0; z < Z.nz && !rc; z++) {
         size_t most = Z.first[z + 1] - Z.first[z];
         for (size_t k = 1; k <= most && k <= Z.ncounted && !rc; k++, done++) {
-            long long now = keel_clock_ms();
             /* Most zones are proven at once; a hard one may use a fifth of
              * what is left, so the others still get time. */
-            long long left = (long long)(ntries - done);
-            long long slice = (deadline_ms - now) / (left < 4 ? left + 1 : 5);
-            rc = solve_zone(&Z, z, k, now + (slice > 0 ? slice : 1), err);
+            rc = solve_zone(&Z, z, k,
+                            keel_budget_until(KEEL_SHARE_ZONE_TRY, keel_budget_now(), deadline_ms,
+                                              ntries - done + 1),
+                            err);
             proven = proven && try_at(&Z, z, k)->peak_proven;
         }
     }
@@ -590,14 +525,14 @@ keel_status keel_zones_solve(const keel_workload *w, long long deadline_ms, keel
         if (!least_squares(&Z, pick))
             goto out;
         assemble(&Z, pick, sol->nurse_of);
-        double v = keel_solve_squares(w, sol->nurse_of), b = keel_solve_squares_floor(w);
+        double v = keel_measure_squares(w, sol->nurse_of), b = keel_measure_squares(w, NULL);
         sol->stages[0] = (keel_stage){.name = "squares",
                                       .status = proven ? KEEL_SOLVE_OPTIMAL : KEEL_SOLVE_TIME_LIMIT,
                                       .value = v,
                                       .bound = proven ? v : b,
                                       .gap = proven ? 0.0 : keel_gap(v, b),
                                       .solver_calls = Z.calls,
-                                      .seconds = (double)(keel_clock_ms() - started) / 1000.0};
+                                      .seconds = (double)(keel_budget_now() - started) / 1000.0};
         sol->nstages = 1;
         *found = true;
         goto out;
@@ -613,10 +548,10 @@ keel_status keel_zones_solve(const keel_workload *w, long long deadline_ms, keel
         goto out; /* no numbers add up: the usual search says why */
     keel_ratio peak = cand[at];
     int calls1 = Z.calls;
-    stage_from(&sol->stages[0], "peak", peak, proven, keel_solve_peak_floor(w), calls1, started);
+    stage_from(&sol->stages[0], "peak", peak, proven, keel_bound_peak_floor(w), calls1, started);
 
     /* Stage 2: each zone's best lightest with every nurse at or under U*. */
-    long long lift_started = keel_clock_ms();
+    long long lift_started = keel_budget_now();
     bool lifted = true;
     for (size_t z = 0; z < Z.nz && !rc; z++) {
         for (size_t k = 1; k <= Z.ncounted && !rc; k++) {
@@ -625,8 +560,10 @@ keel_status keel_zones_solve(const keel_workload *w, long long deadline_ms, keel
                 t->feasible = false; /* no part of a plan at U* */
                 continue;
             }
-            long long now = keel_clock_ms();
-            rc = lift_zone(&Z, z, k, peak, now + (deadline_ms - now) / 4 + 1, err);
+            rc = lift_zone(&Z, z, k, peak,
+                           keel_budget_until(KEEL_SHARE_ZONE_LIFT, keel_budget_now(), deadline_ms,
+                                             0),
+                           err);
             lifted = lifted && t->lift_proven;
         }
     }
@@ -649,8 +586,8 @@ keel_status keel_zones_solve(const keel_workload *w, long long deadline_ms, keel
         goto out;
     assemble(&Z, pick, sol->nurse_of);
     /* Idle nurses (when nobody must work) count in the lightest. */
-    keel_ratio lift = keel_solve_lift(w, sol->nurse_of);
-    stage_from(&sol->stages[1], "lift", lift, lifted, keel_solve_lift_ceiling(w), Z.calls - calls1,
+    keel_ratio lift = keel_measure_lift(w, sol->nurse_of);
+    stage_from(&sol->stages[1], "lift", lift, lifted, keel_bound_lift_ceiling(w), Z.calls - calls1,
                lift_started);
     sol->nstages = 2;
     *found = true;
@@ -666,283 +603,3 @@ out:
     return rc;
 }
 
-/* ---- Zone by zone with the plan's own nurses ---------------------------
- * With policy.max_zones 1 and every patient in a zone, the nurses of a plan
- * split into the zones of their patients; keeping that split, each zone is
- * a problem of its own.  Each is solved by the exact method (stages 1 and
- * 2) from its part of the plan, within an equal share of the time left,
- * and its plan kept when it is no worse.  In the time left after that,
- * the zones trade nurses (trade_zones). */
-bool keel_one_zone_each(const keel_workload *w)
-{
-    if (w->max_zones != 1 || w->clocked || w->nzones < 2)
-        return false;
-    for (size_t p = 0; p < w->npatients; p++)
-        if (w->zone[p] < 0)
-            return false;
-    return true;
-}
-
-/* The members of zone z (patients) and its nurses (home[n] == z), with
- * local[n] the index of nurse n among them. */
-static void gather(const keel_workload *w, const int *home, int z, size_t *members, size_t *m,
-                   size_t *nurses, size_t *k, int *local)
-{
-    *m = *k = 0;
-    for (size_t p = 0; p < w->npatients; p++)
-        if (w->zone[p] == z)
-            members[(*m)++] = p;
-    for (size_t n = 0; n < w->nnurses; n++)
-        if (home[n] == z) {
-            local[n] = (int)*k;
-            nurses[(*k)++] = n;
-        }
-}
-
-/* Solves zone z with its nurses nurses[0..k) by the exact method from
- * plan (the zone's part of a valid plan, in local nurse indices), within
- * deadline_ms; *valid when the result keeps every rule. */
-static keel_status solve_part(const keel_workload *w, const size_t *members, size_t m,
-                              const size_t *nurses, size_t k, long long deadline_ms, int *plan,
-                              bool *valid, keel_error *err)
-{
-    keel_workload *sub = zone_workload(w, members, m, nurses, 0, k);
-    if (!sub)
-        return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
-    keel_solution s = {.npatients = m, .nurse_of = plan};
-    keel_status rc = keel_method_ilp(sub, deadline_ms, &s, err);
-    if (!rc && keel_solve_validate(sub, plan, valid))
-        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
-    keel_workload_free(sub);
-    return rc;
-}
-
-/* The greedy plan of zone z's patients with the nurses nurses[0..k): its
- * heaviest utilisation in *peak, *placed false when it leaves a patient
- * out or breaks a rule. */
-static keel_status greedy_part(const keel_workload *w, const size_t *members, size_t m,
-                               const size_t *nurses, size_t k, int *plan, keel_ratio *peak,
-                               bool *placed)
-{
-    keel_workload *sub = zone_workload(w, members, m, nurses, 0, k);
-    if (!sub)
-        return KEEL_ERR_NOMEM;
-    keel_status rc = keel_greedy_place(sub, plan, placed);
-    if (!rc && *placed)
-        rc = keel_greedy_improve(sub, plan);
-    if (!rc && *placed)
-        rc = keel_solve_validate(sub, plan, placed);
-    *peak = keel_solve_peak(sub, plan);
-    keel_workload_free(sub);
-    return rc;
-}
-
-/* The utilisation of nurse n in nurse_of. */
-static keel_ratio utilisation(const keel_workload *w, const int *nurse_of, size_t n)
-{
-    long long care = 0;
-    for (size_t p = 0; p < w->npatients; p++)
-        if (nurse_of[p] == (int)n)
-            care += w->care_minutes[p];
-    return (keel_ratio){w->duty_minutes[n] + care, w->capacity_minutes[n]};
-}
-
-/* True when, after nurses a and b trade zones, both zones' averages
- * (care and duty over capacity) are below peak: no plan of a zone keeps
- * every nurse below its average. */
-static bool averages_below(const keel_workload *w, const int *home, size_t a, size_t b,
-                           keel_ratio peak)
-{
-    for (int i = 0; i < 2; i++) {
-        size_t out = i == 0 ? a : b, in = i == 0 ? b : a;
-        int z = home[out];
-        long long load = w->duty_minutes[in], capacity = w->capacity_minutes[in];
-        for (size_t p = 0; p < w->npatients; p++)
-            load += w->zone[p] == z ? w->care_minutes[p] : 0;
-        for (size_t n = 0; n < w->nnurses; n++)
-            if (home[n] == z && n != out) {
-                load += w->duty_minutes[n];
-                capacity += w->capacity_minutes[n];
-            }
-        if (keel_ratio_cmp((keel_ratio){load, capacity}, peak) >= 0)
-            return false;
-    }
-    return true;
-}
-
-/* The two zones of a trade: patients, nurses (local indices in plan). */
-typedef struct trade {
-    size_t *members[2], *nurses[2];
-    size_t m[2], k[2];
-    int *plan[2];
-} trade;
-
-/* Places both zones afresh by the greedy method after nurse a trades
- * places with nurse b (of another zone): T holds the zones' plans, *worst
- * the heavier zone's peak, *placed false when a plan leaves a patient out
- * or breaks a rule. */
-static keel_status place_trade(const keel_workload *w, int *home, size_t a, size_t b, trade *T,
-                               int *local, keel_ratio *worst, bool *placed)
-{
-    int za = home[a], zb = home[b];
-    keel_status rc = KEEL_OK;
-    *worst = (keel_ratio){0, 1};
-    *placed = true;
-    home[a] = home[b] = -2; /* in neither zone while the zones are gathered */
-    for (int i = 0; i < 2 && *placed && !rc; i++) {
-        gather(w, home, i == 0 ? za : zb, T->members[i], &T->m[i], T->nurses[i], &T->k[i], local);
-        T->nurses[i][T->k[i]++] = i == 0 ? b : a;
-        keel_ratio part;
-        rc = greedy_part(w, T->members[i], T->m[i], T->nurses[i], T->k[i], T->plan[i], &part,
-                         placed);
-        if (keel_ratio_cmp(part, *worst) > 0)
-            *worst = part;
-    }
-    home[a] = za;
-    home[b] = zb;
-    return rc;
-}
-
-/* A zone can be heavy because of whom it has (say a part-timer as its only
- * nurse with a skill its patients need), which no plan of the zone alone
- * undoes.  So the zone of the heaviest nurse trades one of its nurses for
- * one of another zone (nurses alike in capacity, duty and rules are not
- * traded): each trade is screened by placing both zones afresh with the
- * greedy method; the trade whose heavier zone ends lowest, and below the
- * heaviest nurse, is made, and both zones are then solved by the exact
- * method.  Repeats while a trade gains and time is left.  home is scratch. */
-static keel_status trade_zones(const keel_workload *w, long long deadline_ms, int *nurse_of,
-                               int *home, keel_error *err)
-{
-    size_t np = w->npatients, nn = w->nnurses;
-    trade T = {0};
-    int *local = keel_malloc((nn + 1) * sizeof *local);
-    keel_status rc = local ? KEEL_OK : KEEL_ERR_NOMEM;
-    for (int i = 0; i < 2; i++) {
-        T.members[i] = keel_malloc((np + 1) * sizeof *T.members[i]);
-        T.nurses[i] = keel_malloc((nn + 1) * sizeof *T.nurses[i]);
-        T.plan[i] = keel_malloc((np + 1) * sizeof *T.plan[i]);
-        if (!T.members[i] || !T.nurses[i] || !T.plan[i])
-            rc = KEEL_ERR_NOMEM;
-    }
-    while (!rc && keel_clock_ms() < deadline_ms) {
-        size_t heavy = nn;
-        keel_ratio peak = {0, 1};
-        for (size_t n = 0; n < nn; n++) {
-            home[n] = -1;
-            keel_ratio u = utilisation(w, nurse_of, n);
-            if (keel_workload_counted(w, n) && (heavy == nn || keel_ratio_cmp(u, peak) > 0)) {
-                heavy = n;
-                peak = u;
-            }
-        }
-        for (size_t p = 0; p < np; p++)
-            home[nurse_of[p]] = w->zone[p];
-        if (heavy == nn || home[heavy] < 0)
-            break;
-        int zs = home[heavy];
-        size_t best_a = nn, best_b = nn;
-        keel_ratio best = peak;
-        for (size_t a = 0; a < nn && !rc; a++) {
-            for (size_t b = 0; b < nn && home[a] == zs && !rc; b++) {
-                if (home[b] < 0 || home[b] == zs || alike(w, a, b) ||
-                    !averages_below(w, home, a, b, peak))
-                    continue;
-                if (keel_clock_ms() >= deadline_ms)
-                    goto out;
-                keel_ratio worst;
-                bool placed;
-                rc = place_trade(w, home, a, b, &T, local, &worst, &placed);
-                if (!rc && placed && keel_ratio_cmp(worst, best) < 0) {
-                    best = worst;
-                    best_a = a;
-                    best_b = b;
-                }
-            }
-        }
-        if (rc || best_a == nn)
-            break;
-        /* Make the trade: both zones afresh, then by the exact method. */
-        keel_ratio worst;
-        bool placed;
-        rc = place_trade(w, home, best_a, best_b, &T, local, &worst, &placed);
-        for (int i = 0; i < 2 && !rc; i++) {
-            long long now = keel_clock_ms();
-            bool valid = false;
-            rc = solve_part(w, T.members[i], T.m[i], T.nurses[i], T.k[i],
-                            now + (deadline_ms - now) / (4 - i), T.plan[i], &valid, err);
-            if (!rc && (!placed || !valid))
-                goto out; /* cannot happen: the screen placed both */
-        }
-        for (int i = 0; i < 2 && !rc; i++)
-            for (size_t j = 0; j < T.m[i]; j++)
-                nurse_of[T.members[i][j]] = (int)T.nurses[i][T.plan[i][j]];
-    }
-out:
-    if (rc == KEEL_ERR_NOMEM && err->status == KEEL_OK)
-        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
-    for (int i = 0; i < 2; i++) {
-        free(T.members[i]);
-        free(T.nurses[i]);
-        free(T.plan[i]);
-    }
-    free(local);
-    return rc;
-}
-
-keel_status keel_zones_polish(const keel_workload *w, long long deadline_ms, int *nurse_of,
-                              keel_error *err)
-{
-    if (!keel_one_zone_each(w))
-        return KEEL_OK;
-    size_t np = w->npatients, nn = w->nnurses;
-    size_t *members = keel_malloc((np + 1) * sizeof *members);
-    size_t *nurses = keel_malloc((nn + 1) * sizeof *nurses);
-    int *local = keel_malloc((nn + 1) * sizeof *local);
-    int *plan = keel_malloc((np + 1) * sizeof *plan);
-    int *home = keel_malloc((nn + 1) * sizeof *home);
-    keel_status rc = KEEL_OK;
-    if (!members || !nurses || !local || !plan || !home) {
-        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
-        goto out;
-    }
-    for (size_t n = 0; n < nn; n++)
-        home[n] = -1;
-    for (size_t p = 0; p < np; p++)
-        home[nurse_of[p]] = w->zone[p];
-    for (size_t z = 0; z < w->nzones && !rc; z++) {
-        size_t m, k;
-        gather(w, home, (int)z, members, &m, nurses, &k, local);
-        if (m == 0)
-            continue;
-        keel_workload *sub = zone_workload(w, members, m, nurses, 0, k);
-        if (!sub) {
-            rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
-            break;
-        }
-        for (size_t i = 0; i < m; i++)
-            plan[i] = local[nurse_of[members[i]]];
-        keel_ratio peak = keel_solve_peak(sub, plan), lift = keel_solve_lift(sub, plan);
-        long long now = keel_clock_ms();
-        keel_solution s = {.npatients = m, .nurse_of = plan};
-        rc = keel_method_ilp(sub, now + (deadline_ms - now) / (long long)(w->nzones - z), &s, err);
-        bool valid = false;
-        if (!rc && keel_solve_validate(sub, plan, &valid))
-            rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
-        keel_ratio peak2 = keel_solve_peak(sub, plan), lift2 = keel_solve_lift(sub, plan);
-        int better = keel_ratio_cmp(peak2, peak);
-        if (!rc && valid && (better < 0 || (better == 0 && keel_ratio_cmp(lift2, lift) >= 0)))
-            for (size_t i = 0; i < m; i++)
-                nurse_of[members[i]] = (int)nurses[plan[i]];
-        keel_workload_free(sub);
-    }
-    if (!rc)
-        rc = trade_zones(w, deadline_ms, nurse_of, home, err);
-out:
-    free(members);
-    free(nurses);
-    free(local);
-    free(plan);
-    free(home);
-    return rc;
-}

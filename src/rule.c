@@ -1,0 +1,197 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * rule.c - the table of rules and the functions that walk it (see rule.h).
+ * Each rule's entry is defined in its own file (rule_<name>.c); the names
+ * that other entries report under are defined here.
+ *
+ * Table order is the order a plan's findings are listed in (keel check):
+ * competencies, then what each nurse holds at each moment, then locks and
+ * avoid lists, then each nurse's whole shift, then the clock.  The tally's
+ * test asks in another order, cheapest first: eligibility, the clock, the
+ * whole shift, then each moment.
+ */
+#include "rule.h"
+
+#include <stdlib.h>
+#include <string.h>
+
+#include "workload_internal.h"
+
+extern const keel_rule keel_rule_skill, keel_rule_lock, keel_rule_avoid;
+extern const keel_rule keel_rule_patient_limit, keel_rule_patient_ratio, keel_rule_high_acuity,
+    keel_rule_isolation, keel_rule_zones;
+extern const keel_rule keel_rule_capacity, keel_rule_min_patients, keel_rule_hand_off;
+
+/* Names other entries report under. */
+static const keel_rule law_limit = {
+    .name = "law_limit",
+    .scope = KEEL_SCOPE_NAME,
+    .severity = 80, /* the patient limit's soft rows weigh a limit the ratio table sets at this */
+};
+static const keel_rule moment_limit = {
+    .name = "moment_limit",
+    .scope = KEEL_SCOPE_NAME,
+};
+static const keel_rule break_cover = {
+    .name = "break_cover",
+    .scope = KEEL_SCOPE_NAME,
+};
+
+const keel_rule *const keel_rules[KEEL_NRULES] = {
+    [KEEL_RULE_SKILL] = &keel_rule_skill,
+    [KEEL_RULE_PATIENT_LIMIT] = &keel_rule_patient_limit,
+    [KEEL_RULE_PATIENT_RATIO] = &keel_rule_patient_ratio,
+    [KEEL_RULE_HIGH_ACUITY] = &keel_rule_high_acuity,
+    [KEEL_RULE_ISOLATION] = &keel_rule_isolation,
+    [KEEL_RULE_ZONES] = &keel_rule_zones,
+    [KEEL_RULE_LOCK] = &keel_rule_lock,
+    [KEEL_RULE_AVOID] = &keel_rule_avoid,
+    [KEEL_RULE_CAPACITY] = &keel_rule_capacity,
+    [KEEL_RULE_MIN_PATIENTS] = &keel_rule_min_patients,
+    [KEEL_RULE_HAND_OFF] = &keel_rule_hand_off,
+    [KEEL_RULE_LAW_LIMIT] = &law_limit,
+    [KEEL_RULE_MOMENT_LIMIT] = &moment_limit,
+    [KEEL_RULE_BREAK_COVER] = &break_cover,
+};
+
+const keel_rule *keelRuleFind(const char *name)
+{
+    for (size_t i = 0; i < KEEL_NRULES; i++)
+        if (strcmp(keel_rules[i]->name, name) == 0)
+            return keel_rules[i];
+    return NULL;
+}
+
+/* The rules of one scope that have a test, in table order. */
+static const char *breaks_in(keel_rule_scope scope, const keel_tally *t, size_t p, size_t n,
+                             size_t m)
+{
+    for (size_t i = 0; i < KEEL_NRULES; i++) {
+        const keel_rule *rule = keel_rules[i];
+        if (rule->scope != scope || !rule->breaks)
+            continue;
+        const char *name = rule->breaks(t, p, n, m);
+        if (name)
+            return name;
+    }
+    return NULL;
+}
+
+const char *keelRuleBreaks(const keel_tally *t, size_t p, size_t n)
+{
+    const keel_workload *w = t->w;
+    if (!keel_workload_eligible(w, p, n))
+        return keel_rules[KEEL_RULE_SKILL]->name; /* the caller names the precise reason */
+    const char *name = breaks_in(KEEL_SCOPE_CLOCK, t, p, n, 0);
+    if (!name)
+        name = breaks_in(KEEL_SCOPE_SHIFT, t, p, n, 0);
+    for (int m = w->first_moment[p]; !name && m < w->last_moment[p]; m++)
+        name = breaks_in(KEEL_SCOPE_MOMENT, t, p, n, (size_t)m);
+    return name;
+}
+
+bool keelRuleWhole(const keel_tally *t)
+{
+    for (size_t i = 0; i < KEEL_NRULES; i++)
+        if (keel_rules[i]->whole && keel_rules[i]->whole(t))
+            return true;
+    return false;
+}
+
+bool keelRuleAdmitsInstead(keel_tally *t, size_t p, size_t q, size_t n)
+{
+    keel_tally_remove(t, q, n);
+    bool ok = keelRuleAdmits(t, p, n);
+    keel_tally_add(t, q, n);
+    return ok;
+}
+
+/* True when rule i is switched on in w and can bind. */
+static bool on(const keel_workload *w, keel_rule_id i)
+{
+    return keel_rules[i]->binds && keel_rules[i]->binds(w);
+}
+
+void keelRuleFlags(keel_workload *w)
+{
+    w->isolation_rule = on(w, KEEL_RULE_ISOLATION);
+    w->zones_rule = on(w, KEEL_RULE_ZONES);
+    w->bounds_rule = on(w, KEEL_RULE_CAPACITY) || on(w, KEEL_RULE_MIN_PATIENTS);
+    w->joined_rules = w->clocked;
+    for (size_t i = 0; i < KEEL_NRULES; i++) {
+        keel_rule_scope scope = keel_rules[i]->scope;
+        if (scope == KEEL_SCOPE_MOMENT || scope == KEEL_SCOPE_SHIFT)
+            w->joined_rules = w->joined_rules || on(w, (keel_rule_id)i);
+    }
+}
+
+int keelRuleOrder(const keel_workload *w, size_t a, size_t b)
+{
+    for (size_t i = 0; i < KEEL_NRULES; i++) {
+        int d = keel_rules[i]->order ? keel_rules[i]->order(w, a, b) : 0;
+        if (d)
+            return d;
+    }
+    return 0;
+}
+
+bool keelRuleSameNurses(const keel_workload *w, size_t a, size_t b)
+{
+    for (size_t i = 0; i < KEEL_NRULES; i++)
+        if (keel_rules[i]->nurses_alike && !keel_rules[i]->nurses_alike(w, a, b))
+            return false;
+    return true;
+}
+
+bool keelRuleSameHeld(const keel_tally *t, size_t a, size_t b)
+{
+    for (size_t i = 0; i < KEEL_NRULES; i++)
+        if (keel_rules[i]->held_alike && !keel_rules[i]->held_alike(t, a, b))
+            return false;
+    return true;
+}
+
+int keelRulePairSeverity(const keel_roster *r, const keel_workload *w, size_t p, size_t n)
+{
+    if (keel_workload_eligible(w, p, n))
+        return 0;
+    if (!r)
+        return keel_rules[KEEL_RULE_SKILL]->severity;
+    int severity = 0;
+    for (size_t i = 0; i < KEEL_NRULES; i++)
+        if (keel_rules[i]->pair_breaks && keel_rules[i]->pair_breaks(r, w, p, n))
+            severity += keel_rules[i]->severity;
+    return severity;
+}
+
+void keelRuleRows(const keel_rows *R, keel_rule_scope scope)
+{
+    for (size_t i = 0; i < KEEL_NRULES; i++)
+        if (keel_rules[i]->scope == scope && keel_rules[i]->rows)
+            keel_rules[i]->rows(R);
+}
+
+int keelRuleTie(const keel_rows *R, int (*trait)(const keel_workload *w, size_t part), int v,
+                double big, double cost)
+{
+    int row = 0;
+    for (size_t i = 0; i < R->ncols; i++) {
+        if (trait(R->w, R->part[i]) != v)
+            continue;
+        if (!row)
+            row = keel_lp_row(R->lp, KEEL_LP_UP, 0.0, 0.0);
+        keel_lp_put(R->lp, row, R->col[i], 1.0);
+    }
+    if (!row)
+        return 0;
+    int x = keel_lp_indicator(R->lp, row, big, cost);
+    for (size_t i = 0; i < R->ncols && cost > 0; i++) {
+        if (trait(R->w, R->part[i]) != v)
+            continue;
+        double most = R->most[i] < big ? R->most[i] : big;
+        int alone = keel_lp_row(R->lp, KEEL_LP_UP, 0.0, 0.0);
+        keel_lp_put(R->lp, alone, R->col[i], 1.0);
+        keel_lp_put(R->lp, alone, x, -most);
+    }
+    return x;
+}
