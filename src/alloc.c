@@ -1,7 +1,9 @@
 /* SPDX-License-Identifier: GPL-3.0-or-later */
 /*
  * alloc.c - the allocation wrapper with a fault-injection hook for tests.
- * Not thread-safe in its counting: tests that inject faults run one thread.
+ * The hook's counters are per thread: a fault test counts and fails the
+ * allocations of its own thread only, and threads solving rosters at once
+ * share no state here.
  */
 #include "alloc.h"
 
@@ -11,8 +13,8 @@
 #include <stdlib.h>
 #include <string.h>
 
-static long fail_at; /* 0: never fail; otherwise the countdown to the failing call */
-static long made;    /* allocations since the last keel_alloc_fail_at() */
+static _Thread_local long fail_at; /* 0: never fail; otherwise the countdown to the failing call */
+static _Thread_local long made;    /* allocations since the last keel_alloc_fail_at() */
 
 static int should_fail(void)
 {

@@ -28,9 +28,10 @@ char *keel_asprintf(const char *fmt, ...)
 #endif
     ;
 
-/* Test hook: the nth allocation from now (1 = the next) fails, and so do
- * none after it.  n <= 0 turns failures off.  Returns how many allocations
- * were made since the last call, so a test can count a call's allocations. */
+/* Test hook, for the calling thread: its nth allocation from now (1 = the
+ * next) fails, and none after it.  n <= 0 turns failures off.  Returns how
+ * many allocations the thread made since its last call, so a test can
+ * count a call's allocations. */
 long keel_alloc_fail_at(long n);
 
 #endif

@@ -26,6 +26,8 @@
 #ifndef KEEL_CENSUS_H
 #define KEEL_CENSUS_H
 
+#include "keel/api.h"
+
 #include <stddef.h>
 
 #include "keel/error.h"
@@ -47,11 +49,11 @@ typedef struct keel_census {
  * *out is owned by the caller (keel_census_free()).  Statuses: KEEL_OK;
  * KEEL_ERR_IO (cannot read); KEEL_ERR_INPUT (every problem found, with line
  * and column; *out is NULL); KEEL_ERR_USAGE (a bad mapping); KEEL_ERR_NOMEM. */
-keel_status keel_census_load(const char *path, const char *map, keel_census **out, keel_error *err);
+KEEL_API keel_status keel_census_load(const char *path, const char *map, keel_census **out, keel_error *err);
 
 /* Like keel_census_load() but reads len bytes of text; name is used in
  * messages. */
-keel_status keel_census_parse(const char *name, const char *text, size_t len, const char *map,
+KEEL_API keel_status keel_census_parse(const char *name, const char *text, size_t len, const char *map,
                               keel_census **out, keel_error *err);
 
 /* Hands the census's patients to roster r, replacing its patients (r then
@@ -59,10 +61,10 @@ keel_status keel_census_parse(const char *name, const char *text, size_t len, co
  * in policy.acuity_minutes, extras in policy.extra_minutes, nurses named in
  * previous_nurse are not checked (they may be off the roster).  Problems
  * name the census file and row.  Statuses: KEEL_OK, KEEL_ERR_INPUT. */
-keel_status keel_census_into_roster(keel_census *c, keel_roster *r, keel_error *err);
+KEEL_API keel_status keel_census_into_roster(keel_census *c, keel_roster *r, keel_error *err);
 
 /* NULL-safe. */
-void keel_census_free(keel_census *c);
+KEEL_API void keel_census_free(keel_census *c);
 
 #ifdef __cplusplus
 }

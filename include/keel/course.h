@@ -6,7 +6,7 @@
  * admissions.  Computed after the solve, from the roster, the workload and
  * the assignment; the report writers only format it.
  *
- * The assignment is nurse_of[w->npatients] over the workload's parts (a
+ * The assignment is nurse_of[keel_workload_nparts(w)] over the workload's parts (a
  * nurse index or -1).  A patient counts once at a moment while one of its
  * parts held by the nurse covers that moment; counts change only at moment
  * boundaries (w->moment_start), so every figure below is exact.
@@ -62,6 +62,8 @@
  */
 #ifndef KEEL_COURSE_H
 #define KEEL_COURSE_H
+
+#include "keel/api.h"
 
 #include <stdbool.h>
 #include <stddef.h>
@@ -130,14 +132,14 @@ typedef struct keel_course {
 } keel_course;
 
 /* Computes the course of the shift for the assignment nurse_of
- * ([w->npatients], a nurse index or -1) of roster r under workload w, with
+ * ([keel_workload_nparts(w)], a nurse index or -1) of roster r under workload w, with
  * an admission order of up to nadmissions picks.  The caller owns *out; free
  * it with keel_course_free().  Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
-keel_status keel_course_compute(const keel_roster *r, const keel_workload *w, const int *nurse_of,
+KEEL_API keel_status keel_course_compute(const keel_roster *r, const keel_workload *w, const int *nurse_of,
                                 size_t nadmissions, keel_course **out, keel_error *err);
 
 /* Frees the course.  NULL-safe. */
-void keel_course_free(keel_course *c);
+KEEL_API void keel_course_free(keel_course *c);
 
 #ifdef __cplusplus
 }

@@ -11,6 +11,8 @@
 #ifndef KEEL_ERROR_H
 #define KEEL_ERROR_H
 
+#include "keel/api.h"
+
 #include <stddef.h>
 
 #ifdef __cplusplus
@@ -47,16 +49,16 @@ typedef struct keel_error {
 } keel_error;
 
 /* Sets err to "no error".  err must not be NULL. */
-void keel_error_init(keel_error *err);
+KEEL_API void keel_error_init(keel_error *err);
 
 /* Frees every problem in err and sets it back to "no error".  NULL-safe. */
-void keel_error_fini(keel_error *err);
+KEEL_API void keel_error_fini(keel_error *err);
 
 /* Records a problem; the message is printf-formatted.  Returns status, so a
  * caller can write `return keel_error_add(err, KEEL_ERR_INPUT, ...)`.  err
  * may be NULL (nothing is recorded).  If memory runs out while recording,
  * err->status becomes KEEL_ERR_NOMEM and the problem is dropped. */
-keel_status keel_error_add(keel_error *err, keel_status status, const char *file, int line,
+KEEL_API keel_status keel_error_add(keel_error *err, keel_status status, const char *file, int line,
                            int column, const char *key, const char *fmt, ...)
 #if defined(__GNUC__)
     __attribute__((format(printf, 7, 8)))
@@ -66,10 +68,10 @@ keel_status keel_error_add(keel_error *err, keel_status status, const char *file
 /* Writes problem p as "file:line:column: key: message" (parts that are
  * absent are left out) into buf, always NUL-terminated when size > 0.
  * Returns the length the full text needs, like snprintf. */
-int keel_problem_format(const keel_problem *p, char *buf, size_t size);
+KEEL_API int keel_problem_format(const keel_problem *p, char *buf, size_t size);
 
 /* A short, static, human-readable name of a status ("bad input", ...). */
-const char *keel_status_string(keel_status status);
+KEEL_API const char *keel_status_string(keel_status status);
 
 #ifdef __cplusplus
 }

@@ -13,6 +13,8 @@
 #ifndef KEEL_EXPLAIN_H
 #define KEEL_EXPLAIN_H
 
+#include "keel/api.h"
+
 #include <stddef.h>
 
 #include "keel/error.h"
@@ -32,7 +34,7 @@ typedef enum keel_reason {
 } keel_reason;
 
 /* Name of a reason as in json ("locked", "only_nurse", ...). */
-const char *keel_reason_name(keel_reason reason);
+KEEL_API const char *keel_reason_name(keel_reason reason);
 
 typedef struct keel_explanation {
     size_t npatients;
@@ -43,11 +45,11 @@ typedef struct keel_explanation {
 /* Explains the assignment nurse_of (every patient placed) of roster r with
  * workload w.  The caller owns *out; free it with keel_explanation_free().
  * Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
-keel_status keel_explain(const keel_roster *r, const keel_workload *w, const int *nurse_of,
+KEEL_API keel_status keel_explain(const keel_roster *r, const keel_workload *w, const int *nurse_of,
                          keel_explanation **out, keel_error *err);
 
 /* NULL-safe. */
-void keel_explanation_free(keel_explanation *e);
+KEEL_API void keel_explanation_free(keel_explanation *e);
 
 #ifdef __cplusplus
 }

@@ -12,6 +12,8 @@
 #ifndef KEEL_FINDING_H
 #define KEEL_FINDING_H
 
+#include "keel/api.h"
+
 #include <stddef.h>
 
 #ifdef __cplusplus
@@ -34,7 +36,7 @@ typedef struct keel_findings {
 } keel_findings;
 
 /* Frees every finding in the list and empties it.  NULL-safe. */
-void keel_findings_fini(keel_findings *list);
+KEEL_API void keel_findings_fini(keel_findings *list);
 
 #ifdef __cplusplus
 }

@@ -13,6 +13,8 @@
 #ifndef KEEL_LAW_H
 #define KEEL_LAW_H
 
+#include "keel/api.h"
+
 #include <stdbool.h>
 #include <stddef.h>
 
@@ -51,17 +53,17 @@ typedef struct keel_law_table {
 } keel_law_table;
 
 /* The built-in tables, in a fixed order. */
-size_t keel_law_ntables(void);
-const keel_law_table *keel_law_table_at(size_t i);
+KEEL_API size_t keel_law_ntables(void);
+KEEL_API const keel_law_table *keel_law_table_at(size_t i);
 
 /* The table named name, or NULL. */
-const keel_law_table *keel_law_find(const char *name);
+KEEL_API const keel_law_table *keel_law_find(const char *name);
 
 /* True when the table has an entry of any kind for the unit type. */
-bool keel_law_covers(const keel_law_table *t, const char *unit_type);
+KEEL_API bool keel_law_covers(const keel_law_table *t, const char *unit_type);
 
 /* The per-nurse maximum for the unit type, or -1 when the table sets none. */
-int keel_law_nurse_max(const keel_law_table *t, const char *unit_type);
+KEEL_API int keel_law_nurse_max(const keel_law_table *t, const char *unit_type);
 
 /* The shift class of a shift that starts start_minute after midnight and
  * lasts minutes: the class whose hours it overlaps most, ties settled as the
@@ -69,14 +71,14 @@ int keel_law_nurse_max(const keel_law_table *t, const char *unit_type);
  * afternoon, afternoon and night equal is night, morning and night equal is
  * morning).  A table without shift classes, or start_minute < 0, gives
  * KEEL_SHIFT_ANY. */
-keel_shift_class keel_law_shift_class(const keel_law_table *t, int start_minute, int minutes);
+KEEL_API keel_shift_class keel_law_shift_class(const keel_law_table *t, int start_minute, int minutes);
 
 /* Name of a shift class ("morning", ...; "any"). */
-const char *keel_shift_class_name(keel_shift_class c);
+KEEL_API const char *keel_shift_class_name(keel_shift_class c);
 
 /* The ward minimum of nurses for census patients on a unit of this type and
  * shift class, or -1 when the table sets none. */
-int keel_law_ward_minimum(const keel_law_table *t, const char *unit_type, keel_shift_class c,
+KEEL_API int keel_law_ward_minimum(const keel_law_table *t, const char *unit_type, keel_shift_class c,
                           size_t census);
 
 #ifdef __cplusplus

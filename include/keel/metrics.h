@@ -16,6 +16,8 @@
 #ifndef KEEL_METRICS_H
 #define KEEL_METRICS_H
 
+#include "keel/api.h"
+
 #include <stdbool.h>
 #include <stddef.h>
 
@@ -57,14 +59,14 @@ typedef struct keel_metrics {
     double nurses_needed;    /* (care + duty) / mean capacity of counted nurses */
 } keel_metrics;
 
-/* Computes the metrics of the assignment nurse_of ([w->npatients], a nurse
- * index or -1) under workload w.  The caller owns *out; free it with
+/* Computes the metrics of the assignment nurse_of ([keel_workload_nparts(w)],
+ * a nurse index or -1) under workload w.  The caller owns *out; free it with
  * keel_metrics_free().  Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
-keel_status keel_metrics_compute(const keel_workload *w, const int *nurse_of, keel_metrics **out,
+KEEL_API keel_status keel_metrics_compute(const keel_workload *w, const int *nurse_of, keel_metrics **out,
                                  keel_error *err);
 
 /* Frees the metrics.  NULL-safe. */
-void keel_metrics_free(keel_metrics *m);
+KEEL_API void keel_metrics_free(keel_metrics *m);
 
 #ifdef __cplusplus
 }

@@ -28,6 +28,8 @@
 #ifndef KEEL_NAS_H
 #define KEEL_NAS_H
 
+#include "keel/api.h"
+
 #include <stddef.h>
 
 #ifdef __cplusplus
@@ -52,12 +54,12 @@ typedef struct keel_nas_item {
 /* Lines in the item table (items and levels), and line i in table order
  * (by item, then level), or NULL when i is out of range.  Borrowed: the
  * table is static. */
-size_t keel_nas_ntable(void);
-const keel_nas_item *keel_nas_table_at(size_t i);
+KEEL_API size_t keel_nas_ntable(void);
+KEEL_API const keel_nas_item *keel_nas_table_at(size_t i);
 
 /* The line whose code is exactly code ("1a", not "1A" or " 1a"), or NULL.
  * NULL code gives NULL. */
-const keel_nas_item *keel_nas_find(const char *code);
+KEEL_API const keel_nas_item *keel_nas_find(const char *code);
 
 /* What is wrong with one entry of a patient's list of codes. */
 typedef enum keel_nas_problem {
@@ -81,7 +83,7 @@ typedef struct keel_nas_sheet {
 } keel_nas_sheet;
 
 /* Sets sheet to an empty list (score 0).  sheet must not be NULL. */
-void keel_nas_sheet_init(keel_nas_sheet *sheet);
+KEEL_API void keel_nas_sheet_init(keel_nas_sheet *sheet);
 
 /* Offers the next entry of the list; its index is sheet->nentries before
  * the call (0 for the first).  A valid entry adds its weight to the score;
@@ -91,18 +93,18 @@ void keel_nas_sheet_init(keel_nas_sheet *sheet);
  * entry already holding the item for KEEL_NAS_DUPLICATE and
  * KEEL_NAS_ALTERNATIVE, and to the entry's own index otherwise.  A NULL
  * code is KEEL_NAS_UNKNOWN. */
-keel_nas_problem keel_nas_sheet_add(keel_nas_sheet *sheet, const char *code, size_t *earlier);
+KEEL_API keel_nas_problem keel_nas_sheet_add(keel_nas_sheet *sheet, const char *code, size_t *earlier);
 
 /* Checks codes[0 .. ncodes) and returns the first problem, or KEEL_NAS_OK
  * when the whole list is valid.  On a problem, *bad (when not NULL) is the
  * index of the first bad entry and *earlier (when not NULL) is as for
  * keel_nas_sheet_add(); both are left alone on KEEL_NAS_OK.  codes may be
  * NULL when ncodes is 0. */
-keel_nas_problem keel_nas_validate(char *const *codes, size_t ncodes, size_t *bad, size_t *earlier);
+KEEL_API keel_nas_problem keel_nas_validate(char *const *codes, size_t ncodes, size_t *bad, size_t *earlier);
 
 /* The score of codes[0 .. ncodes) in tenths of a point (0 for an empty
  * list), or -1 when the list is not valid (see keel_nas_validate()). */
-int keel_nas_score(char *const *codes, size_t ncodes);
+KEEL_API int keel_nas_score(char *const *codes, size_t ncodes);
 
 /* Writes the message for a problem of entry code into buf, in keel's shape
  * "what is wrong; what was expected" without file, position or key (the
@@ -111,7 +113,7 @@ int keel_nas_score(char *const *codes, size_t ncodes);
  * is ignored otherwise; NULL strings are shown as "(null)".  buf is always
  * NUL-terminated when size > 0 (buf may be NULL when size is 0).  Returns
  * the length the full text needs, like snprintf. */
-int keel_nas_problem_format(keel_nas_problem problem, const char *code, const char *earlier_code,
+KEEL_API int keel_nas_problem_format(keel_nas_problem problem, const char *code, const char *earlier_code,
                             char *buf, size_t size);
 
 /* Care minutes of a patient with a score of score_tenths over a shift of
@@ -120,14 +122,14 @@ int keel_nas_problem_format(keel_nas_problem problem, const char *code, const ch
  * 100 points over 480 minutes is 480; 55.6 points over a day is 800.64,
  * so 801.  Returns -1 when either argument is negative or the result does
  * not fit an int.  The figure is an approximation: see keel_nas_note(). */
-int keel_nas_shift_minutes(int score_tenths, int shift_minutes);
+KEEL_API int keel_nas_shift_minutes(int score_tenths, int shift_minutes);
 
 /* A one-sentence caution for reports that show NAS-based minutes.  Static
  * text. */
-const char *keel_nas_note(void);
+KEEL_API const char *keel_nas_note(void);
 
 /* A short, static name of a problem ("unknown item", ...; "ok"). */
-const char *keel_nas_problem_name(keel_nas_problem problem);
+KEEL_API const char *keel_nas_problem_name(keel_nas_problem problem);
 
 #ifdef __cplusplus
 }

@@ -6,6 +6,8 @@
 #ifndef KEEL_PLAN_H
 #define KEEL_PLAN_H
 
+#include "keel/api.h"
+
 #include <stdbool.h>
 #include <stddef.h>
 
@@ -18,12 +20,12 @@
 extern "C" {
 #endif
 
-/* Fills nurse_of[w->npatients] (one entry per part, see keel/workload.h)
+/* Fills nurse_of[keel_workload_nparts(w)] (one entry per part, see keel/workload.h)
  * from the roster's `nurse:` and `handoffs:` keys: a patient starts with
  * `nurse` and, each time that nurse leaves before the patient does, goes to
  * the next of `handoffs` (-1 where the plan names nobody).  Returns true
  * when every part has a nurse. */
-bool keel_plan_from_roster(const keel_roster *roster, const keel_workload *w, int *nurse_of);
+KEEL_API bool keel_plan_from_roster(const keel_roster *roster, const keel_workload *w, int *nurse_of);
 
 /* Appends to *out one finding for each rule the assignment nurse_of (per
  * part) breaks (unassigned parts are skipped): `skill` for a missing
@@ -35,7 +37,7 @@ bool keel_plan_from_roster(const keel_roster *roster, const keel_workload *w, in
  * "from HH:MM to HH:MM"), and `hand_off` names a patient held by a nurse
  * who is not on, or planned hand-offs that do not happen.  Statuses: KEEL_OK,
  * KEEL_ERR_NOMEM.  The caller owns what is appended. */
-keel_status keel_plan_check(const keel_roster *roster, const keel_workload *w, const int *nurse_of,
+KEEL_API keel_status keel_plan_check(const keel_roster *roster, const keel_workload *w, const int *nurse_of,
                             keel_findings *out, keel_error *err);
 
 #ifdef __cplusplus

@@ -10,6 +10,8 @@
 #ifndef KEEL_REPORT_H
 #define KEEL_REPORT_H
 
+#include "keel/api.h"
+
 #include <stdbool.h>
 #include <stddef.h>
 #include <stdio.h>
@@ -55,12 +57,12 @@ typedef struct keel_report {
 /* Writes the report in the named format to out.  Statuses: KEEL_OK,
  * KEEL_ERR_USAGE (unknown format, or a format that cannot show this kind),
  * KEEL_ERR_IO (a write failed). */
-keel_status keel_report_write(const char *format, const keel_report *report, FILE *out,
+KEEL_API keel_status keel_report_write(const char *format, const keel_report *report, FILE *out,
                               keel_error *err);
 
 /* Number of formats and their names, for help texts. */
-size_t keel_report_nformats(void);
-const char *keel_report_format_name(size_t i);
+KEEL_API size_t keel_report_nformats(void);
+KEEL_API const char *keel_report_format_name(size_t i);
 
 #ifdef __cplusplus
 }

@@ -14,6 +14,8 @@
 #ifndef KEEL_ROSTER_H
 #define KEEL_ROSTER_H
 
+#include "keel/api.h"
+
 #include <stdbool.h>
 #include <stddef.h>
 
@@ -29,8 +31,8 @@ extern "C" {
 #define KEEL_PLACEHOLDER "FILL_IN"
 
 /* The unit.type words, in their documented order. */
-size_t keel_unit_ntypes(void);
-const char *keel_unit_type(size_t i);
+KEEL_API size_t keel_unit_ntypes(void);
+KEEL_API const char *keel_unit_type(size_t i);
 
 /* Value of an optional integer field that the roster does not give. */
 #define KEEL_ABSENT (-1)
@@ -54,7 +56,7 @@ typedef enum keel_role {
 #define KEEL_NROLES 6
 
 /* Name of a role as written in the roster ("staff", "charge", ...). */
-const char *keel_role_name(keel_role role);
+KEEL_API const char *keel_role_name(keel_role role);
 
 /* The nurse's licence (nurses[].licence; default rn). */
 typedef enum keel_licence {
@@ -74,7 +76,7 @@ typedef enum keel_isolation {
 #define KEEL_NISOLATION 5
 
 /* Name of a precaution as written in the roster ("contact", ...; "none"). */
-const char *keel_isolation_name(keel_isolation isolation);
+KEEL_API const char *keel_isolation_name(keel_isolation isolation);
 
 /* A timed break (nurses[].breaks[]).  Times on a roster are kept as
  * minutes after the shift's start (0 .. shift.minutes), read against the
@@ -95,7 +97,7 @@ typedef enum keel_balance {
 } keel_balance;
 
 /* Name of a balance as written in the roster ("peak", "squares"). */
-const char *keel_balance_name(keel_balance balance);
+KEEL_API const char *keel_balance_name(keel_balance balance);
 
 typedef struct keel_nurse {
     char *id;   /* required, unique */
@@ -217,27 +219,27 @@ typedef struct keel_roster {
  * KEEL_OK; KEEL_ERR_IO (cannot read: one problem naming the file);
  * KEEL_ERR_INPUT (every schema and syntax problem found in the file, each
  * with line, column and key path; *out is NULL); KEEL_ERR_NOMEM. */
-keel_status keel_roster_load(const char *path, keel_roster **out, keel_error *err);
+KEEL_API keel_status keel_roster_load(const char *path, keel_roster **out, keel_error *err);
 
 /* Like keel_roster_load() but reads len bytes of YAML from text; name is
  * used in messages as the file name. */
-keel_status keel_roster_parse(const char *name, const char *text, size_t len, keel_roster **out,
+KEEL_API keel_status keel_roster_parse(const char *name, const char *text, size_t len, keel_roster **out,
                               keel_error *err);
 
 /* Frees the roster and everything it owns.  NULL-safe. */
-void keel_roster_free(keel_roster *roster);
+KEEL_API void keel_roster_free(keel_roster *roster);
 
 /* Index of the nurse with this id, or -1.  Borrowed strings only. */
-int keel_roster_find_nurse(const keel_roster *roster, const char *id);
+KEEL_API int keel_roster_find_nurse(const keel_roster *roster, const char *id);
 
 /* Minutes of an acuity level in policy.acuity_minutes, or KEEL_ABSENT. */
-int keel_roster_acuity_minutes(const keel_roster *roster, int level);
+KEEL_API int keel_roster_acuity_minutes(const keel_roster *roster, int level);
 
 /* Minutes of a named extra in policy.extra_minutes, or KEEL_ABSENT. */
-int keel_roster_extra_minutes(const keel_roster *roster, const char *name);
+KEEL_API int keel_roster_extra_minutes(const keel_roster *roster, const char *name);
 
 /* True when the nurse has the named competency in skills. */
-bool keel_nurse_has_skill(const keel_nurse *nurse, const char *skill);
+KEEL_API bool keel_nurse_has_skill(const keel_nurse *nurse, const char *skill);
 
 #ifdef __cplusplus
 }

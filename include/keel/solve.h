@@ -13,16 +13,19 @@
  * counted nurse stays at or under U + tolerance and at or over L - tolerance
  * of stages 1 and 2, and stage 4 keeps stage 3's count.
  *
- * Methods are plugins behind one table ({name, solve}): "greedy" (heaviest
- * patient first to the least-utilised eligible nurse, then improving moves
- * and swaps) and "ilp" (greedy incumbent, then exact search with GLPK over
- * the finitely many values a utilisation can take in whole minutes).
+ * Methods are rows of one table of properties: "greedy" (heaviest patient
+ * first to the least-utilised eligible nurse, then improving moves and
+ * swaps) and "ilp" (greedy incumbent, then exact search with GLPK over the
+ * finitely many values a utilisation can take in whole minutes).
+ * keel_solve() may run in several threads at once (keel/keel.h, "Threads").
  * The time limit covers the whole solve, shared by the stages.  A solution
  * is called optimal only when every stage is proven; otherwise it carries
  * its proven bound and gap.
  */
 #ifndef KEEL_SOLVE_H
 #define KEEL_SOLVE_H
+
+#include "keel/api.h"
 
 #include <stdbool.h>
 #include <stddef.h>
@@ -45,7 +48,7 @@ typedef enum keel_solve_status {
 
 /* Name used in every output format: "optimal", "time_limit", "heuristic",
  * "infeasible". */
-const char *keel_solve_status_name(keel_solve_status status);
+KEEL_API const char *keel_solve_status_name(keel_solve_status status);
 
 typedef struct keel_solve_options {
     const char *method; /* "ilp" (default when NULL) or "greedy" */
@@ -61,8 +64,21 @@ typedef struct keel_solve_options {
  * a proven lower limit on the zones of all nurses together).
  * gap = |value - bound| / max(|value|, |bound|): 0 when proven, the usual
  * relative MIP gap. */
+/* Every stage a solve may run, in the order they run.  A solution lists
+ * the stages that ran, in this order: "peak" and "lift" under policy.balance
+ * peak or "squares" under squares, then "continuity" and "proximity" when
+ * they apply. */
+typedef enum keel_stage_kind {
+    KEEL_STAGE_PEAK,
+    KEEL_STAGE_LIFT,
+    KEEL_STAGE_SQUARES,
+    KEEL_STAGE_CONTINUITY,
+    KEEL_STAGE_PROXIMITY,
+    KEEL_STAGE_KINDS /* the number of kinds: no solve runs more stages */
+} keel_stage_kind;
+
 typedef struct keel_stage {
-    const char *name;         /* "peak", "lift", "continuity" or "proximity" */
+    const char *name;         /* "peak", "lift", "squares", "continuity" or "proximity" */
     keel_solve_status status; /* OPTIMAL, TIME_LIMIT or HEURISTIC */
     double value;
     double bound;
@@ -77,7 +93,7 @@ typedef struct keel_solution {
     size_t npatients;
     int *nurse_of; /* [npatients]: nurse index, -1 when infeasible */
     size_t nstages;
-    keel_stage stages[4];
+    keel_stage stages[KEEL_STAGE_KINDS];
     struct {
         bool applies;      /* some patient's previous nurse is on the roster */
         long kept;         /* patients kept with their previous nurse */
@@ -107,15 +123,15 @@ typedef struct keel_solution {
  * The caller owns *out; free it with keel_solution_free().  Statuses:
  * KEEL_OK, KEEL_ERR_USAGE (unknown method), KEEL_ERR_NOMEM, KEEL_ERR_SOLVER.
  * Borrowed: roster and w must outlive the call only. */
-keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
+KEEL_API keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
                        const keel_solve_options *options, keel_solution **out, keel_error *err);
 
 /* Frees the solution.  NULL-safe. */
-void keel_solution_free(keel_solution *solution);
+KEEL_API void keel_solution_free(keel_solution *solution);
 
 /* Number of methods and their names, for help texts. */
-size_t keel_solve_nmethods(void);
-const char *keel_solve_method_name(size_t i);
+KEEL_API size_t keel_solve_nmethods(void);
+KEEL_API const char *keel_solve_method_name(size_t i);
 
 #ifdef __cplusplus
 }

@@ -40,6 +40,8 @@
 #ifndef KEEL_STAFFING_H
 #define KEEL_STAFFING_H
 
+#include "keel/api.h"
+
 #include <stdbool.h>
 #include <stddef.h>
 
@@ -124,7 +126,7 @@ typedef struct keel_staffing {
  * keel_workload_compute(r, ...)).  Nothing in *out is owned: out->table
  * points into the built-in tables.  Statuses: KEEL_OK; KEEL_ERR_NOMEM (*out
  * is then zeroed). */
-keel_status keel_staffing_compute(const keel_roster *r, const keel_workload *w, keel_staffing *out,
+KEEL_API keel_status keel_staffing_compute(const keel_roster *r, const keel_workload *w, keel_staffing *out,
                                   keel_error *err);
 
 /* Writes the staffing view in plain words into buf, e.g. "28 patients need
@@ -134,10 +136,10 @@ keel_status keel_staffing_compute(const keel_roster *r, const keel_workload *w, 
  * counted nurses may hold under it.  buf is always NUL-terminated when size
  * > 0 (buf may be NULL when size is 0).  Returns the length the full text
  * needs, like snprintf. */
-int keel_staffing_format(const keel_staffing *s, char *buf, size_t size);
+KEEL_API int keel_staffing_format(const keel_staffing *s, char *buf, size_t size);
 
 /* Name of a need ("ward minimum", "limits", "care minutes"; "none"). */
-const char *keel_staffing_need_name(keel_staffing_need need);
+KEEL_API const char *keel_staffing_need_name(keel_staffing_need need);
 
 #ifdef __cplusplus
 }

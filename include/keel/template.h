@@ -11,6 +11,8 @@
 #ifndef KEEL_TEMPLATE_H
 #define KEEL_TEMPLATE_H
 
+#include "keel/api.h"
+
 #include <stdio.h>
 
 #include "keel/census.h"
@@ -30,7 +32,7 @@ typedef struct keel_template_options {
 /* Writes the template to out; census may be NULL (one placeholder patient).
  * Statuses: KEEL_OK; KEEL_ERR_USAGE (unknown unit type, shift or table, or a
  * table without an entry for the unit type); KEEL_ERR_IO (a write failed). */
-keel_status keel_template_write(const keel_template_options *options, const keel_census *census,
+KEEL_API keel_status keel_template_write(const keel_template_options *options, const keel_census *census,
                                 FILE *out, keel_error *err);
 
 #ifdef __cplusplus

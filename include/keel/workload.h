@@ -1,8 +1,9 @@
 /* SPDX-License-Identifier: GPL-3.0-or-later */
 /*
  * keel/workload.h - the numbers the solver works on, derived once from a
- * roster (an opaque value; keel's own modules read its fields): care minutes per patient, capacity, duty minutes and patient
- * limit per nurse, and which patient-nurse pairs are eligible.
+ * roster (an opaque value; keel's own modules read its fields): care
+ * minutes per patient, capacity, duty minutes and patient limit per nurse,
+ * and which patient-nurse pairs are eligible.
  *
  *   care(p)     = care_minutes, or the shift's share of its NAS score, or
  *                 policy.acuity_minutes[acuity]; plus
@@ -55,6 +56,8 @@
 #ifndef KEEL_WORKLOAD_H
 #define KEEL_WORKLOAD_H
 
+#include "keel/api.h"
+
 #include <stddef.h>
 
 #include "keel/error.h"
@@ -72,17 +75,17 @@ typedef struct keel_workload keel_workload;
 /* Derives the workload of a valid roster.  The caller owns *out; free it with
  * keel_workload_free().  Statuses: KEEL_OK, KEEL_ERR_NOMEM, KEEL_ERR_INPUT
  * (a counted nurse without capacity: one problem per nurse). */
-keel_status keel_workload_compute(const keel_roster *roster, keel_workload **out, keel_error *err);
+KEEL_API keel_status keel_workload_compute(const keel_roster *roster, keel_workload **out, keel_error *err);
 
 /* The number of parts the solver assigns: the length of every nurse_of
  * array (keel_solution.nurse_of, keel_plan_check()'s plan).  Without times
  * in the roster there is one part per patient, in the roster's order; with
  * them a patient's stay is cut where a nurse leaves (docs/model.md, "The
  * clock"). */
-size_t keel_workload_nparts(const keel_workload *w);
+KEEL_API size_t keel_workload_nparts(const keel_workload *w);
 
 /* Frees the workload.  NULL-safe. */
-void keel_workload_free(keel_workload *w);
+KEEL_API void keel_workload_free(keel_workload *w);
 
 #ifdef __cplusplus
 }
