@@ -1,5 +1,9 @@
 /* SPDX-License-Identifier: GPL-3.0-or-later */
-/* report_internal.h - the writer plugin interface (internal). */
+/*
+ * report_internal.h - what the writers share (internal): the writer
+ * interface (report.c's table), reading the plan (report_plan.c) and
+ * shaping text (report_out.c).
+ */
 #ifndef KEEL_REPORT_INTERNAL_H
 #define KEEL_REPORT_INTERNAL_H
 
@@ -16,41 +20,45 @@ typedef struct keel_writer {
     keel_status (*write)(const keel_report *report, FILE *out);
 } keel_writer;
 
-keel_status keel_report_text(const keel_report *report, FILE *out);
-keel_status keel_report_json(const keel_report *report, FILE *out);
-keel_status keel_report_yaml(const keel_report *report, FILE *out);
+keel_status keel_report_text(const keel_report *report, FILE *out); /* report_text.c */
+keel_status keel_report_json(const keel_report *report, FILE *out); /* report_json.c */
+keel_status keel_report_yaml(const keel_report *report, FILE *out); /* report_yaml.c */
 
-/* Writes s as a double-quoted string with JSON escapes (valid YAML too). */
-void keel_write_quoted(FILE *out, const char *s);
+/* report_yaml.c: writes one patient as an entry of a roster's patients
+ * list, with nurse as its `nurse:` (NULL: none).  r gives the shift's start
+ * for the patient's times; NULL when the patient has none. */
+void keel_report_yaml_patient(FILE *out, const keel_roster *r, const keel_patient *patient,
+                              const char *nurse);
+
+/* report_plan.c */
 
 /* True when some patient's care minutes come from NAS items (the reports
  * then carry keel_nas_note()). */
-bool keel_report_uses_nas(const keel_roster *r);
-
-/* Writes one patient as an entry of a roster's patients list, with nurse as
- * its `nurse:` (NULL: none).  r gives the shift's start for the patient's
- * times; NULL when the patient has none. */
-void keel_yaml_write_patient(FILE *out, const keel_roster *r, const keel_patient *patient,
-                             const char *nurse);
+bool keel_report_plan_uses_nas(const keel_roster *r);
 
 /* The nurse roster patient p starts with under the report's assignment, or
  * -1 (no assignment, or none for the patient). */
-int keel_report_first_nurse(const keel_report *rep, size_t p);
+int keel_report_plan_first_nurse(const keel_report *rep, size_t p);
 
 /* True when nurse n holds roster patient p at some time. */
-bool keel_report_holds(const keel_report *rep, size_t p, size_t n);
+bool keel_report_plan_holds(const keel_report *rep, size_t p, size_t n);
 
 /* Minutes of patient p's care that nurse n carries (the parts she holds). */
-long keel_report_care_held(const keel_report *rep, size_t p, size_t n);
+long keel_report_plan_care_held(const keel_report *rep, size_t p, size_t n);
 
 /* Next planned hand-off of patient p after part *q (start with *q at the
  * patient's first part): true and fills *at (minutes after the shift's
  * start), *from and *to, moving *q on; false when there are no more. */
-bool keel_report_next_handoff(const keel_report *rep, size_t p, int *q, int *at, int *from,
-                              int *to);
+bool keel_report_plan_next_handoff(const keel_report *rep, size_t p, int *q, int *at, int *from,
+                                   int *to);
+
+/* report_out.c */
+
+/* Writes s as a double-quoted string with JSON escapes (valid YAML too). */
+void keel_report_out_quoted(FILE *out, const char *s);
 
 /* Writes text as lines of at most width columns (words longer than a line
  * stand alone), each starting with indent. */
-void keel_write_wrapped(FILE *out, const char *indent, const char *text, size_t width);
+void keel_report_out_wrapped(FILE *out, const char *indent, const char *text, size_t width);
 
 #endif

@@ -17,7 +17,7 @@ static void write_ids_of_patients(FILE *out, const keel_roster *r, const size_t 
     for (size_t i = 0; i < n; i++) {
         if (i)
             fputs(", ", out);
-        keel_write_quoted(out, r->patients[idx[i]].id);
+        keel_report_out_quoted(out, r->patients[idx[i]].id);
     }
     fputc(']', out);
 }
@@ -28,7 +28,7 @@ static void write_ids_of_nurses(FILE *out, const keel_roster *r, const size_t *i
     for (size_t i = 0; i < n; i++) {
         if (i)
             fputs(", ", out);
-        keel_write_quoted(out, r->nurses[idx[i]].id);
+        keel_report_out_quoted(out, r->nurses[idx[i]].id);
     }
     fputc(']', out);
 }
@@ -45,7 +45,7 @@ static void write_findings(FILE *out, const keel_roster *r, const char *key,
         fputs(", \"nurses\": ", out);
         write_ids_of_nurses(out, r, f->nurses, f->nnurses);
         fputs(", \"message\": ", out);
-        keel_write_quoted(out, f->message);
+        keel_report_out_quoted(out, f->message);
         fputc('}', out);
     }
     fputs(list && list->n ? "\n  ],\n" : "],\n", out);
@@ -90,10 +90,10 @@ static void write_course(FILE *out, const keel_report *rep)
         keel_time_text(r, b->at, from);
         keel_time_text(r, b->at + b->minutes, to);
         fputs(i ? ",\n    {\"nurse\": " : "\n    {\"nurse\": ", out);
-        keel_write_quoted(out, r->nurses[b->nurse].id);
+        keel_report_out_quoted(out, r->nurses[b->nurse].id);
         fprintf(out, ", \"from\": \"%s\", \"to\": \"%s\", \"cover\": ", from, to);
         if (b->cover >= 0)
-            keel_write_quoted(out, r->nurses[b->cover].id);
+            keel_report_out_quoted(out, r->nurses[b->cover].id);
         else
             fputs("null", out);
         fprintf(out, ", \"relief\": %s, \"patients\": ", b->relief ? "true" : "false");
@@ -113,7 +113,7 @@ static void write_course(FILE *out, const keel_report *rep)
             c->admission_minutes);
     for (size_t i = 0; i < c->npicks; i++) {
         fputs(i ? ", {\"nurse\": " : "{\"nurse\": ", out);
-        keel_write_quoted(out, r->nurses[c->picks[i].nurse].id);
+        keel_report_out_quoted(out, r->nurses[c->picks[i].nurse].id);
         fprintf(out, ", \"load_minutes\": %d, \"utilisation\": %.12g}", c->picks[i].load_minutes,
                 c->picks[i].utilisation);
     }
@@ -128,11 +128,11 @@ static void write_nurses(FILE *out, const keel_report *rep)
     for (size_t n = 0; n < r->nnurses; n++) {
         fputs(n ? ",\n    " : "\n    ", out);
         fputs("{\"id\": ", out);
-        keel_write_quoted(out, r->nurses[n].id);
+        keel_report_out_quoted(out, r->nurses[n].id);
         fprintf(out, ", \"role\": \"%s\"", keel_role_name(r->nurses[n].role));
         if (r->nurses[n].preceptor) {
             fputs(", \"preceptor\": ", out);
-            keel_write_quoted(out, r->nurses[n].preceptor);
+            keel_report_out_quoted(out, r->nurses[n].preceptor);
             if (r->nurses[n].max_patients != KEEL_ABSENT)
                 fprintf(out, ", \"share_max_patients\": %d", r->nurses[n].max_patients);
         }
@@ -143,10 +143,10 @@ static void write_nurses(FILE *out, const keel_report *rep)
         fputs(", \"patients\": [", out);
         size_t k = 0;
         for (size_t p = 0; rep->nurse_of && p < r->npatients; p++) {
-            if (!keel_report_holds(rep, p, n))
+            if (!keel_report_plan_holds(rep, p, n))
                 continue;
             fputs(k++ ? ", " : "", out);
-            keel_write_quoted(out, r->patients[p].id);
+            keel_report_out_quoted(out, r->patients[p].id);
         }
         fputc(']', out);
         const keel_nurse_metrics *m = &rep->metrics->nurses[n];
@@ -173,10 +173,10 @@ static void write_patients(FILE *out, const keel_report *rep)
     for (size_t p = 0; p < r->npatients; p++) {
         fputs(p ? ",\n    " : "\n    ", out);
         fputs("{\"id\": ", out);
-        keel_write_quoted(out, r->patients[p].id);
+        keel_report_out_quoted(out, r->patients[p].id);
         if (r->patients[p].bed) {
             fputs(", \"bed\": ", out);
-            keel_write_quoted(out, r->patients[p].bed);
+            keel_report_out_quoted(out, r->patients[p].bed);
         }
         fprintf(out, ", \"care_minutes\": %lld, \"locked\": %s, \"sitter\": %s",
                 keel_workload_patient_care(rep->workload, p),
@@ -195,25 +195,25 @@ static void write_patients(FILE *out, const keel_report *rep)
         }
         if (r->patients[p].previous_nurse) {
             fputs(", \"previous_nurse\": ", out);
-            keel_write_quoted(out, r->patients[p].previous_nurse);
+            keel_report_out_quoted(out, r->patients[p].previous_nurse);
         }
         fputs(", \"nurse\": ", out);
-        int n = keel_report_first_nurse(rep, p);
+        int n = keel_report_plan_first_nurse(rep, p);
         if (n >= 0)
-            keel_write_quoted(out, r->nurses[n].id);
+            keel_report_out_quoted(out, r->nurses[n].id);
         else
             fputs("null", out);
         if (r->clock && rep->nurse_of) {
             fputs(", \"handoffs\": [", out);
             int q = rep->workload->first_part[p], at, from, to;
-            for (size_t k = 0; keel_report_next_handoff(rep, p, &q, &at, &from, &to); k++) {
+            for (size_t k = 0; keel_report_plan_next_handoff(rep, p, &q, &at, &from, &to); k++) {
                 char buf[KEEL_TIME_SIZE];
                 keel_time_text(r, at, buf);
                 fprintf(out, "%s{\"at\": \"%s\", \"from\": ", k ? ", " : "", buf);
-                keel_write_quoted(out, r->nurses[from].id);
+                keel_report_out_quoted(out, r->nurses[from].id);
                 fputs(", \"to\": ", out);
                 if (to >= 0)
-                    keel_write_quoted(out, r->nurses[to].id);
+                    keel_report_out_quoted(out, r->nurses[to].id);
                 else
                     fputs("null", out);
                 fputc('}', out);
@@ -223,7 +223,7 @@ static void write_patients(FILE *out, const keel_report *rep)
         if (rep->explanation && n >= 0) {
             fprintf(out, ", \"why\": {\"reason\": \"%s\", \"text\": ",
                     keel_reason_name(rep->explanation->reason[p]));
-            keel_write_quoted(out, rep->explanation->text[p]);
+            keel_report_out_quoted(out, rep->explanation->text[p]);
             fputc('}', out);
         }
         fputc('}', out);
@@ -249,7 +249,7 @@ static void write_stages(FILE *out, const keel_solution *s)
         if (s->bound_reason.text) {
             fprintf(out, ", \"reason\": \"%s\", \"simple_floor\": %.12g, \"explanation\": ",
                     s->bound_reason.kind, s->bound_reason.floor);
-            keel_write_quoted(out, s->bound_reason.text);
+            keel_report_out_quoted(out, s->bound_reason.text);
         }
         fputs("},\n", out);
     }
@@ -324,7 +324,7 @@ keel_status keel_report_json(const keel_report *rep, FILE *out)
     fprintf(out, "  \"keel_version\": \"%s\",\n", keel_version());
     fprintf(out, "  \"command\": \"%s\",\n", rep->kind == KEEL_REPORT_ASSIGN ? "assign" : "check");
     fputs("  \"roster\": ", out);
-    keel_write_quoted(out, r->path ? r->path : "");
+    keel_report_out_quoted(out, r->path ? r->path : "");
     fputs(",\n", out);
     if (rep->kind == KEEL_REPORT_ASSIGN && s) {
         fprintf(out, "  \"status\": \"%s\",\n  \"method\": \"%s\",\n  \"seconds\": %.3f,\n",
@@ -362,13 +362,13 @@ keel_status keel_report_json(const keel_report *rep, FILE *out)
         write_stages(out, s);
     if (s)
         write_findings(out, r, "diagnosis", &s->diagnoses);
-    if (keel_report_uses_nas(r)) {
+    if (keel_report_plan_uses_nas(r)) {
         fputs("  \"nas_note\": ", out);
-        keel_write_quoted(out, keel_nas_note());
+        keel_report_out_quoted(out, keel_nas_note());
         fputs(",\n", out);
     }
     fputs("  \"caution\": ", out);
-    keel_write_quoted(out, KEEL_CAUTION);
+    keel_report_out_quoted(out, KEEL_CAUTION);
     fputs("\n}\n", out);
     return KEEL_OK;
 }

@@ -47,7 +47,7 @@ static void write_stay(FILE *out, const keel_report *rep, size_t p, int n)
         fprintf(out, "  leaves %s", buf);
     }
     int q = rep->workload->first_part[p], at, from, to;
-    while (keel_report_next_handoff(rep, p, &q, &at, &from, &to)) {
+    while (keel_report_plan_next_handoff(rep, p, &q, &at, &from, &to)) {
         keel_time_text(r, at, buf);
         if (from == n)
             fprintf(out, "  hands over to %s at %s", to >= 0 ? r->nurses[to].id : "nobody", buf);
@@ -61,7 +61,7 @@ static void write_stay(FILE *out, const keel_report *rep, size_t p, int n)
 static void write_patient_line(FILE *out, const keel_report *rep, size_t p, int n)
 {
     const keel_patient *pat = &rep->roster->patients[p];
-    long long care = n >= 0 ? keel_report_care_held(rep, p, (size_t)n)
+    long long care = n >= 0 ? keel_report_plan_care_held(rep, p, (size_t)n)
                             : keel_workload_patient_care(rep->workload, p);
     fprintf(out, "      %-10s bed %-8s %4lld min", pat->id, pat->bed ? pat->bed : "-", care);
     if (pat->acuity != KEEL_ABSENT)
@@ -119,7 +119,7 @@ static void write_handoffs(FILE *out, const keel_report *rep)
         size_t k = 0;
         for (size_t p = 0; p < r->npatients; p++) {
             int q = rep->workload->first_part[p], when, from, to;
-            while (keel_report_next_handoff(rep, p, &q, &when, &from, &to)) {
+            while (keel_report_plan_next_handoff(rep, p, &q, &when, &from, &to)) {
                 if (from != (int)n)
                     continue;
                 if (!any)
@@ -151,7 +151,7 @@ static void write_expected(FILE *out, const keel_report *rep)
         if (!any)
             fputs("Expected admissions, assigned in advance\n", out);
         any = true;
-        int n = keel_report_first_nurse(rep, p);
+        int n = keel_report_plan_first_nurse(rep, p);
         keel_time_text(r, r->patients[p].arrives_at, at);
         fprintf(out, "  %s  %-10s %4lld min  to %s\n", at, r->patients[p].id,
                 keel_workload_patient_care(rep->workload, p), n >= 0 ? r->nurses[n].id : "nobody");
@@ -270,7 +270,7 @@ static void write_nurse_blocks(FILE *out, const keel_report *rep)
         if (rep->course && r->clock && m->counted)
             write_timeline(out, rep, n);
         for (size_t p = 0; p < r->npatients; p++)
-            if (keel_report_holds(rep, p, n))
+            if (keel_report_plan_holds(rep, p, n))
                 write_patient_line(out, rep, p, (int)n);
     }
     fputc('\n', out);
@@ -364,13 +364,13 @@ static void write_proof(FILE *out, const keel_solution *s, const keel_metrics *m
                 ? "at best"
                 : "in the most even plan found");
         if (line)
-            keel_write_wrapped(out, "  ", line, 78);
+            keel_report_out_wrapped(out, "  ", line, 78);
         free(line);
     }
     if (s->bound_reason.text) {
         char *line = keel_asprintf("What sets the bound: %s.", s->bound_reason.text);
         if (line)
-            keel_write_wrapped(out, "  ", line, 78);
+            keel_report_out_wrapped(out, "  ", line, 78);
         free(line);
     }
     if (s->continuity.applies) {
@@ -386,7 +386,7 @@ static void write_proof(FILE *out, const keel_solution *s, const keel_metrics *m
                                    "last shift%s.",
                                    s->continuity.kept, s->continuity.candidates, zero);
         if (line)
-            keel_write_wrapped(out, "  ", line, 78);
+            keel_report_out_wrapped(out, "  ", line, 78);
         free(line);
     }
     if (s->proximity.applies && s->proximity.rooms > 0)
@@ -419,7 +419,7 @@ static void write_staffing(FILE *out, const keel_metrics *m, const keel_staffing
     if (st) {
         char buf[1024];
         keel_staffing_format(st, buf, sizeof buf);
-        keel_write_wrapped(out, "  ", buf, 78);
+        keel_report_out_wrapped(out, "  ", buf, 78);
     }
     fputc('\n', out);
 }
@@ -504,7 +504,7 @@ keel_status keel_report_text(const keel_report *rep, FILE *out)
             fputc('\n', out);
         }
     }
-    if (keel_report_uses_nas(rep->roster))
+    if (keel_report_plan_uses_nas(rep->roster))
         fprintf(out, "* %s\n\n", keel_nas_note());
     write_staffing(out, rep->metrics, rep->staffing);
     fprintf(out, "%s\n", KEEL_CAUTION);

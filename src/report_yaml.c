@@ -16,7 +16,7 @@ static void write_key_string(FILE *out, const char *indent, const char *key, con
     if (!value)
         return;
     fprintf(out, "%s%s: ", indent, key);
-    keel_write_quoted(out, value);
+    keel_report_out_quoted(out, value);
     fputc('\n', out);
 }
 
@@ -35,7 +35,7 @@ static void write_key_list(FILE *out, const char *indent, const char *key, char 
     for (size_t i = 0; i < n; i++) {
         if (i)
             fputs(", ", out);
-        keel_write_quoted(out, items[i]);
+        keel_report_out_quoted(out, items[i]);
     }
     fputs("]\n", out);
 }
@@ -81,7 +81,7 @@ static void write_head(FILE *out, const keel_roster *r)
         fputs("  extra_minutes: {", out);
         for (size_t i = 0; i < r->policy.nextras; i++) {
             fputs(i ? ", " : "", out);
-            keel_write_quoted(out, r->policy.extra_minutes[i].name);
+            keel_report_out_quoted(out, r->policy.extra_minutes[i].name);
             fprintf(out, ": %d", r->policy.extra_minutes[i].minutes);
         }
         fputs("}\n", out);
@@ -132,7 +132,7 @@ static void write_nurses(FILE *out, const keel_roster *r)
     for (size_t n = 0; n < r->nnurses; n++) {
         const keel_nurse *nu = &r->nurses[n];
         fputs("  - id: ", out);
-        keel_write_quoted(out, nu->id);
+        keel_report_out_quoted(out, nu->id);
         fputc('\n', out);
         write_key_string(out, "    ", "name", nu->name);
         write_key_list(out, "    ", "skills", nu->skills, nu->nskills);
@@ -157,11 +157,11 @@ static void write_nurses(FILE *out, const keel_roster *r)
     }
 }
 
-void keel_yaml_write_patient(FILE *out, const keel_roster *r, const keel_patient *pa,
+void keel_report_yaml_patient(FILE *out, const keel_roster *r, const keel_patient *pa,
                              const char *nurse)
 {
     fputs("  - id: ", out);
-    keel_write_quoted(out, pa->id);
+    keel_report_out_quoted(out, pa->id);
     fputc('\n', out);
     write_key_string(out, "    ", "bed", pa->bed);
     write_key_string(out, "    ", "name", pa->name);
@@ -198,9 +198,9 @@ static void write_handoffs(FILE *out, const keel_report *rep, size_t p)
     }
     int q = rep->workload->first_part[p], at, from, to;
     size_t k = 0;
-    for (; keel_report_next_handoff(rep, p, &q, &at, &from, &to); k++) {
+    for (; keel_report_plan_next_handoff(rep, p, &q, &at, &from, &to); k++) {
         fputs(k ? ", " : "    handoffs: [", out);
-        keel_write_quoted(out, to >= 0 ? r->nurses[to].id : "");
+        keel_report_out_quoted(out, to >= 0 ? r->nurses[to].id : "");
     }
     if (k)
         fputs("]\n", out);
@@ -219,8 +219,8 @@ static void write_patients(FILE *out, const keel_report *rep, bool expected)
         if (!any)
             fputs("expected_admissions:\n", out);
         any = true;
-        int n = keel_report_first_nurse(rep, p);
-        keel_yaml_write_patient(out, r, &r->patients[p],
+        int n = keel_report_plan_first_nurse(rep, p);
+        keel_report_yaml_patient(out, r, &r->patients[p],
                                 n >= 0 ? r->nurses[n].id : r->patients[p].nurse);
         write_handoffs(out, rep, p);
     }

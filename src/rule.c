@@ -2,7 +2,7 @@
 /*
  * rule.c - the table of rules and the functions that walk it (see rule.h).
  * Each rule's entry is defined in its own file (rule_<name>.c); the names
- * that other entries report under are defined here.
+ * that other entries report under, in rule_name.c.
  *
  * Table order is the order a plan's findings are listed in (keel check):
  * competencies, then what each nurse holds at each moment, then locks and
@@ -17,26 +17,6 @@
 
 #include "workload_internal.h"
 
-extern const keel_rule keel_rule_skill, keel_rule_lock, keel_rule_avoid;
-extern const keel_rule keel_rule_patient_limit, keel_rule_patient_ratio, keel_rule_high_acuity,
-    keel_rule_isolation, keel_rule_zones;
-extern const keel_rule keel_rule_capacity, keel_rule_min_patients, keel_rule_hand_off;
-
-/* Names other entries report under. */
-static const keel_rule law_limit = {
-    .name = "law_limit",
-    .scope = KEEL_SCOPE_NAME,
-    .severity = 80, /* the patient limit's soft rows weigh a limit the ratio table sets at this */
-};
-static const keel_rule moment_limit = {
-    .name = "moment_limit",
-    .scope = KEEL_SCOPE_NAME,
-};
-static const keel_rule break_cover = {
-    .name = "break_cover",
-    .scope = KEEL_SCOPE_NAME,
-};
-
 const keel_rule *const keel_rules[KEEL_NRULES] = {
     [KEEL_RULE_SKILL] = &keel_rule_skill,
     [KEEL_RULE_PATIENT_LIMIT] = &keel_rule_patient_limit,
@@ -49,9 +29,9 @@ const keel_rule *const keel_rules[KEEL_NRULES] = {
     [KEEL_RULE_CAPACITY] = &keel_rule_capacity,
     [KEEL_RULE_MIN_PATIENTS] = &keel_rule_min_patients,
     [KEEL_RULE_HAND_OFF] = &keel_rule_hand_off,
-    [KEEL_RULE_LAW_LIMIT] = &law_limit,
-    [KEEL_RULE_MOMENT_LIMIT] = &moment_limit,
-    [KEEL_RULE_BREAK_COVER] = &break_cover,
+    [KEEL_RULE_LAW_LIMIT] = &keel_rule_law_limit,
+    [KEEL_RULE_MOMENT_LIMIT] = &keel_rule_moment_limit,
+    [KEEL_RULE_BREAK_COVER] = &keel_rule_break_cover,
 };
 
 const keel_rule *keelRuleFind(const char *name)
@@ -169,29 +149,4 @@ void keelRuleRows(const keel_rows *R, keel_rule_scope scope)
     for (size_t i = 0; i < KEEL_NRULES; i++)
         if (keel_rules[i]->scope == scope && keel_rules[i]->rows)
             keel_rules[i]->rows(R);
-}
-
-int keelRuleTie(const keel_rows *R, int (*trait)(const keel_workload *w, size_t part), int v,
-                double big, double cost)
-{
-    int row = 0;
-    for (size_t i = 0; i < R->ncols; i++) {
-        if (trait(R->w, R->part[i]) != v)
-            continue;
-        if (!row)
-            row = keel_lp_row(R->lp, KEEL_LP_UP, 0.0, 0.0);
-        keel_lp_put(R->lp, row, R->col[i], 1.0);
-    }
-    if (!row)
-        return 0;
-    int x = keel_lp_indicator(R->lp, row, big, cost);
-    for (size_t i = 0; i < R->ncols && cost > 0; i++) {
-        if (trait(R->w, R->part[i]) != v)
-            continue;
-        double most = R->most[i] < big ? R->most[i] : big;
-        int alone = keel_lp_row(R->lp, KEEL_LP_UP, 0.0, 0.0);
-        keel_lp_put(R->lp, alone, R->col[i], 1.0);
-        keel_lp_put(R->lp, alone, x, -most);
-    }
-    return x;
 }

@@ -156,7 +156,22 @@ typedef struct keel_rule {
     bool (*held_alike)(const keel_tally *t, size_t a, size_t b);
 } keel_rule;
 
-/* The table, indexed by keel_rule_id. */
+/* The entries, each defined in the file its comment names.  An entry
+ * reports under its own name (or, for the limits, under one of the names
+ * of rule_name.c); only rule.c reads them through the table. */
+extern const keel_rule keel_rule_skill, keel_rule_lock, keel_rule_avoid; /* rule_pair.c */
+extern const keel_rule keel_rule_patient_limit;                          /* rule_limit.c */
+extern const keel_rule keel_rule_patient_ratio;                          /* rule_ratio.c */
+extern const keel_rule keel_rule_high_acuity;                            /* rule_high.c */
+extern const keel_rule keel_rule_isolation;                              /* rule_isolation.c */
+extern const keel_rule keel_rule_zones;                                  /* rule_zones.c */
+extern const keel_rule keel_rule_capacity;                               /* rule_capacity.c */
+extern const keel_rule keel_rule_min_patients;                           /* rule_min.c */
+extern const keel_rule keel_rule_hand_off;                               /* rule_hand_off.c */
+extern const keel_rule keel_rule_law_limit, keel_rule_moment_limit,
+    keel_rule_break_cover; /* rule_name.c: names that other entries report under */
+
+/* The table, indexed by keel_rule_id (rule.c). */
 extern const keel_rule *const keel_rules[KEEL_NRULES];
 
 /* The entry of a rule name, or NULL. */
@@ -210,7 +225,7 @@ int keelRulePairSeverity(const keel_roster *r, const keel_workload *w, size_t p,
  * KEEL_SCOPE_CLOCK once per nurse over all her columns. */
 void keelRuleRows(const keel_rows *R, keel_rule_scope scope);
 
-/* A binary x that is 1 whenever some column of R with trait(w, part) == v
+/* rule_tie.c: a binary x that is 1 whenever some column of R with trait(w, part) == v
  * counts a patient: the row sum of those columns <= big x, and, when x has
  * a cost, each column alone <= min(most, big) x (the same integer points, a
  * far tighter relaxation).  Returns x, or 0 when no column has the value. */

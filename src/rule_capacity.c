@@ -21,7 +21,7 @@ static const char *breaks(const keel_tally *t, size_t p, size_t n, size_t m)
 {
     (void)m;
     const keel_workload *w = t->w;
-    return t->care[n] + w->care_minutes[p] > w->max_care[n] ? keel_rules[KEEL_RULE_CAPACITY]->name
+    return t->care[n] + w->care_minutes[p] > w->max_care[n] ? keel_rule_capacity.name
                                                              : NULL;
 }
 

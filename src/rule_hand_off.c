@@ -37,7 +37,7 @@ static bool splits(const keel_tally *t, size_t p, size_t n)
 static const char *breaks(const keel_tally *t, size_t p, size_t n, size_t m)
 {
     (void)m;
-    return t->w->clocked && splits(t, p, n) ? keel_rules[KEEL_RULE_HAND_OFF]->name : NULL;
+    return t->w->clocked && splits(t, p, n) ? keel_rule_hand_off.name : NULL;
 }
 
 /* True when nurse n is on throughout part q. */

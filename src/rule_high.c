@@ -21,7 +21,7 @@ static const char *breaks(const keel_tally *t, size_t p, size_t n, size_t m)
     const keel_workload *w = t->w;
     bool over = w->high_acuity[p] && w->max_high_acuity != KEEL_ABSENT &&
                 t->high[n * w->nmoments + m] + 1 > w->max_high_acuity;
-    return over ? keel_rules[KEEL_RULE_HIGH_ACUITY]->name : NULL;
+    return over ? keel_rule_high_acuity.name : NULL;
 }
 
 static keel_status check(const keel_rule_plan *c, size_t n, size_t m, const size_t *mine, size_t k,

@@ -25,7 +25,7 @@ static const char *breaks(const keel_tally *t, size_t p, size_t n, size_t m)
     bool mixed =
         (w->side[p] == KEEL_SIDE_PROTECTIVE && t->sides[slot * 3 + KEEL_SIDE_INFECTIOUS] > 0) ||
         (w->side[p] == KEEL_SIDE_INFECTIOUS && t->sides[slot * 3 + KEEL_SIDE_PROTECTIVE] > 0);
-    return mixed ? keel_rules[KEEL_RULE_ISOLATION]->name : NULL;
+    return mixed ? keel_rule_isolation.name : NULL;
 }
 
 static keel_status check(const keel_rule_plan *c, size_t n, size_t m, const size_t *mine, size_t k,

@@ -27,9 +27,9 @@ static bool by_law(const keel_workload *w, size_t n)
 
 static const char *name_for(const keel_workload *w, size_t n)
 {
-    return w->clocked  ? keel_rules[KEEL_RULE_MOMENT_LIMIT]->name
-           : by_law(w, n) ? keel_rules[KEEL_RULE_LAW_LIMIT]->name
-                          : keel_rules[KEEL_RULE_PATIENT_LIMIT]->name;
+    return w->clocked  ? keel_rule_moment_limit.name
+           : by_law(w, n) ? keel_rule_law_limit.name
+                          : keel_rule_patient_limit.name;
 }
 
 static const char *breaks(const keel_tally *t, size_t p, size_t n, size_t m)
@@ -73,7 +73,7 @@ static void rows(const keel_rows *R)
     double limit = w->max_patients[R->n];
     int count = keel_lp_row(R->lp, KEEL_LP_UP, 0.0, limit);
     if (R->soft) {
-        int severity = by_law(w, R->n) ? keel_rules[KEEL_RULE_LAW_LIMIT]->severity : LIMIT_SEVERITY;
+        int severity = by_law(w, R->n) ? keel_rule_law_limit.severity : LIMIT_SEVERITY;
         keel_lp_put(R->lp, count,
                     keel_lp_col(R->lp, KEEL_LP_INTEGER, 0.0, R->census, severity), -1.0);
     }

@@ -24,8 +24,8 @@
 
 static const char *name_for(const keel_workload *w)
 {
-    return w->clocked ? keel_rules[KEEL_RULE_MOMENT_LIMIT]->name
-                      : keel_rules[KEEL_RULE_PATIENT_RATIO]->name;
+    return w->clocked ? keel_rule_moment_limit.name
+                      : keel_rule_patient_ratio.name;
 }
 
 static const char *breaks(const keel_tally *t, size_t p, size_t n, size_t m)

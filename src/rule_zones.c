@@ -26,7 +26,7 @@ static const char *breaks(const keel_tally *t, size_t p, size_t n, size_t m)
     bool over = w->max_zones != KEEL_ABSENT && w->zone[p] >= 0 &&
                 t->in_zone[slot * w->nzones + (size_t)w->zone[p]] == 0 &&
                 t->zones[slot] + 1 > w->max_zones;
-    return over ? keel_rules[KEEL_RULE_ZONES]->name : NULL;
+    return over ? keel_rule_zones.name : NULL;
 }
 
 static keel_status check(const keel_rule_plan *c, size_t n, size_t m, const size_t *mine, size_t k,

@@ -89,7 +89,7 @@ keel_status keel_template_write(const keel_template_options *o, const keel_censu
     fputs("version: 1\n\nunit:\n", out);
     if (o->unit_name) {
         fputs("  name: ", out);
-        keel_write_quoted(out, o->unit_name);
+        keel_report_out_quoted(out, o->unit_name);
         fputc('\n', out);
     } else {
         fprintf(out, "  name: %s                 # e.g. \"4 West\"\n", FILL);
@@ -140,7 +140,7 @@ keel_status keel_template_write(const keel_template_options *o, const keel_censu
         fprintf(out, "# Patients from the census %s.\n", census->path);
         fputs("patients:\n", out);
         for (size_t p = 0; p < census->npatients; p++)
-            keel_yaml_write_patient(out, NULL, &census->patients[p], NULL);
+            keel_report_yaml_patient(out, NULL, &census->patients[p], NULL);
     } else {
         fprintf(
             out,
