@@ -871,7 +871,7 @@ static void test_zone_split_floor_never_passes_the_optimum(void **state)
             assert_true(keel_measure_one_zone_each(w));
             assert_int_equal(keel_bound_split_possible(w, whole.peak, &possible), KEEL_OK);
             assert_true(possible);
-            keel_ratio simple = keel_bound_peak_floor(w);
+            keel_ratio simple = keel_bound_simple_peak(w);
             if (keel_ratio_cmp(simple, whole.peak) < 0) {
                 assert_int_equal(keel_bound_split_possible(w, simple, &possible), KEEL_OK);
                 bites += !possible;

@@ -3,8 +3,8 @@
  * bound.h - proven limits and their words (internal; src/solve/, beside
  * the answerers and the heuristics).
  *
- *   bound_floor.c  the simple floors: a lower limit on the heaviest
- *                  utilisation, an upper limit on the lightest
+ *   bound_simple.c the simple limits: a lower limit on the heaviest
+ *                 utilisation, an upper limit on the lightest
  *   bound_split.c  the zone-split floor of pooled units (one zone a nurse)
  *   bound_words.c  what sets the proven bound, in plain words
  */
@@ -18,12 +18,12 @@
 #include "keel/solve.h"
 #include "measure.h"
 
-/* bound_floor.c: a lower limit on the heaviest utilisation of any valid
+/* bound_simple.c: a lower limit on the heaviest utilisation of any valid
  * assignment (each counted nurse's duty, each patient on the nurse that
  * suits it best, the unit's total over the total capacity), and an upper
  * limit on the lightest (the unit's total over the total capacity). */
-keel_ratio keel_bound_peak_floor(const keel_workload *w);
-keel_ratio keel_bound_lift_ceiling(const keel_workload *w);
+keel_ratio keel_bound_simple_peak(const keel_workload *w);
+keel_ratio keel_bound_simple_lift(const keel_workload *w);
 
 /* bound_split.c: *possible is false when it is proven that no valid
  * assignment has every counted nurse at or under utilisation t, because no

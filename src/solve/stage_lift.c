@@ -41,7 +41,7 @@ static keel_status exact_lift(keel_search *S, long long deadline_ms, int *best, 
     long long started = keel_budget_now();
     if (keel_heur_greedy_lift(w, S->peak_hi, best))
         return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
-    keel_ratio incumbent = keel_measure_lift(w, best), ceiling = keel_bound_lift_ceiling(w);
+    keel_ratio incumbent = keel_measure_lift(w, best), ceiling = keel_bound_simple_lift(w);
     if (keel_stage_search_candidates(S, S->peak_hi, incumbent, ceiling))
         return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
     S->calls = 0;
@@ -63,7 +63,7 @@ keel_status keel_stage_lift(keel_search *S, bool exact, long long deadline_ms, i
     st->name = "lift";
     if (exact)
         return exact_lift(S, deadline_ms, nurse_of, st, err);
-    keel_ratio lift = keel_measure_lift(w, nurse_of), ceiling = keel_bound_lift_ceiling(w);
+    keel_ratio lift = keel_measure_lift(w, nurse_of), ceiling = keel_bound_simple_lift(w);
     double l = keel_ratio_value(lift);
     *st = (keel_stage){
         .name = "lift",

@@ -14,7 +14,7 @@
  * Greedy: the local descent, which asks the local search (answer_local.c)
  * again and again for every counted nurse strictly below the plan's peak,
  * for a share of the time (budget.c's "descent"); the bound is the simple
- * floor (bound_floor.c).
+ * floor (bound_simple.c).
  */
 #include <stdlib.h>
 #include <string.h>
@@ -69,7 +69,7 @@ static keel_status exact_peak(keel_search *S, long long deadline_ms, int *best, 
     static const keel_direction down = {peak_windows, peak_position, true};
     const keel_workload *w = S->w;
     long long started = keel_budget_now();
-    keel_ratio incumbent = keel_measure_peak(w, best), floor = keel_bound_peak_floor(w);
+    keel_ratio incumbent = keel_measure_peak(w, best), floor = keel_bound_simple_peak(w);
     for (size_t n = 0; n < w->nnurses; n++) {
         S->lo[n] = 0;
         S->hi[n] = -1;
@@ -149,7 +149,7 @@ keel_status keel_stage_peak(keel_search *S, bool exact, long long deadline_ms, i
         descent(w, keel_budget_until(KEEL_SHARE_DESCENT, now, deadline_ms, 0), nurse_of, err);
     if (rc)
         return rc;
-    keel_ratio peak = keel_measure_peak(w, nurse_of), floor = keel_bound_peak_floor(w);
+    keel_ratio peak = keel_measure_peak(w, nurse_of), floor = keel_bound_simple_peak(w);
     double u = keel_ratio_value(peak);
     *st = (keel_stage){.name = "peak",
                        .status = keel_ratio_cmp(peak, floor) <= 0 ? KEEL_SOLVE_OPTIMAL

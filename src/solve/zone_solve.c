@@ -548,7 +548,7 @@ keel_status keel_zone_solve(const keel_workload *w, long long deadline_ms, keel_
         goto out; /* no numbers add up: the usual search says why */
     keel_ratio peak = cand[at];
     int calls1 = Z.calls;
-    stage_from(&sol->stages[0], "peak", peak, proven, keel_bound_peak_floor(w), calls1, started);
+    stage_from(&sol->stages[0], "peak", peak, proven, keel_bound_simple_peak(w), calls1, started);
 
     /* Stage 2: each zone's best lightest with every nurse at or under U*. */
     long long lift_started = keel_budget_now();
@@ -587,7 +587,7 @@ keel_status keel_zone_solve(const keel_workload *w, long long deadline_ms, keel_
     assemble(&Z, pick, sol->nurse_of);
     /* Idle nurses (when nobody must work) count in the lightest. */
     keel_ratio lift = keel_measure_lift(w, sol->nurse_of);
-    stage_from(&sol->stages[1], "lift", lift, lifted, keel_bound_lift_ceiling(w), Z.calls - calls1,
+    stage_from(&sol->stages[1], "lift", lift, lifted, keel_bound_simple_lift(w), Z.calls - calls1,
                lift_started);
     sol->nstages = 2;
     *found = true;

@@ -1,6 +1,6 @@
 /* SPDX-License-Identifier: GPL-3.0-or-later */
 /*
- * bound_floor.c - the simple proven limits (see bound.h): no valid
+ * bound_simple.c - the simple proven limits (see bound.h): no valid
  * assignment has its heaviest utilisation below the floor, nor its
  * lightest above the ceiling.
  *
@@ -28,7 +28,7 @@ static keel_ratio unit_average(const keel_workload *w)
     return avg;
 }
 
-keel_ratio keel_bound_peak_floor(const keel_workload *w)
+keel_ratio keel_bound_simple_peak(const keel_workload *w)
 {
     keel_ratio floor = unit_average(w);
     for (size_t n = 0; n < w->nnurses; n++) {
@@ -54,7 +54,7 @@ keel_ratio keel_bound_peak_floor(const keel_workload *w)
     return floor;
 }
 
-keel_ratio keel_bound_lift_ceiling(const keel_workload *w)
+keel_ratio keel_bound_simple_lift(const keel_workload *w)
 {
     return unit_average(w);
 }
