@@ -19,7 +19,7 @@
  * Invariants: every problem in the file is reported, not only the first;
  * on any failure *out is NULL and nothing leaks; a value that fails its
  * check leaves its field absent, so later checks do not repeat the problem.
- * This is the only file of keel that includes yaml.h.
+ * The steps already in files of their own are listed in roster_loader.h.
  */
 #include "keel/roster.h"
 
@@ -32,478 +32,17 @@
 #include <stdlib.h>
 #include <string.h>
 
-#include <yaml.h>
-
 #include "alloc.h"
 #include "keel/nas.h"
 #include "roster_internal.h"
-
-#define ARRAY_LEN(a) (sizeof(a) / sizeof((a)[0]))
+#include "roster_loader.h"
 
 enum {
-    MAX_DEPTH = 64, /* nesting accepted; a roster needs 5 levels */
-    MAX_PATH = 256, /* bytes of a key path in a message; longer ones are cut */
-    MAX_SHOWN = 40, /* bytes of a file's text quoted back in a message */
-    SHOWN_SIZE = MAX_SHOWN + 4,
-    MAX_KEYS = 24,          /* rows in one key table */
-    MAX_SUGGEST = 64,       /* longest unknown key that gets a "did you mean" */
-    MINUTES_PER_DAY = 1440, /* the upper bound of every minutes figure */
+    MAX_KEYS = 24, /* rows in one key table */
     MAX_PATIENTS = 99,
     MAX_LEVEL = 99,
     MAX_UTILISATION = 10 * KEEL_TOLERANCE_SCALE, /* policy.max_utilisation, in millionths */
 };
-
-/* ---------------------------------------------------------------------------
- * The node tree
- */
-
-typedef enum node_kind { NODE_SCALAR, NODE_SEQUENCE, NODE_MAPPING, NODE_ALIAS } node_kind;
-
-/* One YAML node.  A mapping keeps keys and values alternately in items. */
-typedef struct node {
-    node_kind kind;
-    keel_mark mark;
-    bool quoted;  /* scalar in quotes or block style: text, never a number */
-    char *text;   /* scalar text, NUL-terminated */
-    size_t len;   /* scalar bytes as written; more than strlen(text) if it holds NUL */
-    char *anchor; /* the anchor it defines, or an alias's target; keel rejects both */
-    char *tag;    /* an explicit tag; keel rejects it */
-    size_t nitems;
-    size_t capacity;
-    struct node **items;
-} node;
-
-typedef enum table_state { TABLE_ABSENT, TABLE_BROKEN, TABLE_READ } table_state;
-
-/* Everything one load needs.  Problems go to err; nproblems counts them even
- * when err is NULL.  Once memory runs out nothing more is reported. */
-typedef struct loader {
-    const char *file;
-    const char *text;
-    size_t len;
-    keel_error *err;
-    size_t first_problem; /* index in err of this load's first problem */
-    size_t nproblems;
-    bool nomem;
-    char path[MAX_PATH]; /* key path of the value being checked */
-    size_t pathlen;
-    keel_roster *roster;
-    table_state acuity_table;
-    table_state extra_table;
-    size_t nexpected;       /* expected_admissions, read apart until the walk ends */
-    keel_patient *expected; /* then appended to roster->patients (merge_expected()) */
-    size_t nlisted;         /* roster->patients[0..nlisted) come from `patients` */
-    const node *patient_list, *expected_list; /* for the checks after the walk */
-} loader;
-
-static void free_node(node *n)
-{
-    if (!n)
-        return;
-    for (size_t i = 0; i < n->nitems; i++)
-        free_node(n->items[i]);
-    free(n->items);
-    free(n->text);
-    free(n->anchor);
-    free(n->tag);
-    free(n);
-}
-
-/* libyaml's 0-based mark as keel's 1-based one: the one place they differ. */
-static keel_mark mark_of(yaml_mark_t m)
-{
-    return (keel_mark){.line = m.line < INT_MAX ? (int)m.line + 1 : INT_MAX,
-                       .column = m.column < INT_MAX ? (int)m.column + 1 : INT_MAX};
-}
-
-/* The value of key in mapping map (the first, if given twice), or NULL. */
-static const node *find_value(const node *map, const char *key)
-{
-    if (!map || map->kind != NODE_MAPPING)
-        return NULL;
-    for (size_t i = 0; i + 1 < map->nitems; i += 2) {
-        const node *k = map->items[i];
-        if (k->kind == NODE_SCALAR && strcmp(k->text, key) == 0)
-            return map->items[i + 1];
-    }
-    return NULL;
-}
-
-static bool is_null(const node *n)
-{
-    static const char *const nulls[] = {"", "~", "null", "Null", "NULL"};
-    if (n->kind != NODE_SCALAR || n->quoted)
-        return false;
-    for (size_t i = 0; i < ARRAY_LEN(nulls); i++)
-        if (strcmp(n->text, nulls[i]) == 0)
-            return true;
-    return false;
-}
-
-/* ---------------------------------------------------------------------------
- * Reporting
- */
-
-/* Copies s for a message into buf[SHOWN_SIZE]: control characters become
- * '?', and text longer than MAX_SHOWN is cut (marked "...") between UTF-8
- * characters.  Returns buf. */
-static const char *show(char *buf, const char *s)
-{
-    size_t len = strlen(s), cut = len;
-    if (len > MAX_SHOWN) {
-        cut = MAX_SHOWN;
-        while (cut > 0 && ((unsigned char)s[cut] & 0xC0) == 0x80)
-            cut--;
-    }
-    for (size_t i = 0; i < cut; i++)
-        buf[i] = ((unsigned char)s[i] < 0x20 || s[i] == 0x7F) ? '?' : s[i];
-    strcpy(buf + cut, cut < len ? "..." : "");
-    return buf;
-}
-
-static char *format_message(const char *fmt, va_list ap)
-{
-    va_list copy;
-    va_copy(copy, ap);
-    int len = vsnprintf(NULL, 0, fmt, copy);
-    va_end(copy);
-    char *message = len < 0 ? NULL : keel_malloc((size_t)len + 1);
-    if (message)
-        vsnprintf(message, (size_t)len + 1, fmt, ap);
-    return message;
-}
-
-/* Records an input problem at mark `at`, keyed by the current path. */
-static void report(loader *ld, keel_mark at, const char *fmt, ...)
-#if defined(__GNUC__)
-    __attribute__((format(printf, 3, 4)))
-#endif
-    ;
-
-static void report(loader *ld, keel_mark at, const char *fmt, ...)
-{
-    if (ld->nomem)
-        return;
-    ld->nproblems++;
-    if (!ld->err)
-        return;
-    va_list ap;
-    va_start(ap, fmt);
-    char *message = format_message(fmt, ap);
-    va_end(ap);
-    size_t before = ld->err->nproblems;
-    if (message)
-        keel_error_add(ld->err, KEEL_ERR_INPUT, ld->file, at.line, at.column,
-                       ld->pathlen ? ld->path : NULL, "%s", message);
-    if (!message || ld->err->nproblems == before)
-        ld->nomem = true;
-    free(message);
-}
-
-/* Appends ".key" (or "key" at the top) to the path; returns the old length
- * for pop_path(). */
-static size_t push_key(loader *ld, const char *key)
-{
-    char shown[SHOWN_SIZE];
-    size_t old = ld->pathlen;
-    int n = snprintf(ld->path + old, MAX_PATH - old, "%s%s", old ? "." : "", show(shown, key));
-    ld->pathlen = n < 0 ? old : strlen(ld->path);
-    return old;
-}
-
-static size_t push_index(loader *ld, size_t index)
-{
-    size_t old = ld->pathlen;
-    snprintf(ld->path + old, MAX_PATH - old, "[%zu]", index);
-    ld->pathlen = strlen(ld->path);
-    return old;
-}
-
-static void pop_path(loader *ld, size_t old)
-{
-    ld->pathlen = old;
-    ld->path[old] = '\0';
-}
-
-/* Sets the path to list[index].key (key may be NULL), for the checks that
- * run after the walk. */
-static void set_path(loader *ld, const char *list, size_t index, const char *key)
-{
-    pop_path(ld, 0);
-    push_key(ld, list);
-    push_index(ld, index);
-    if (key)
-        push_key(ld, key);
-}
-
-/* Writes a short description of what node n is, for "found ...". */
-static const char *describe(const node *n, char *buf, size_t size)
-{
-    char shown[SHOWN_SIZE];
-    if (n->kind == NODE_SEQUENCE)
-        snprintf(buf, size, "a sequence");
-    else if (n->kind == NODE_MAPPING)
-        snprintf(buf, size, "a mapping");
-    else if (is_null(n))
-        snprintf(buf, size, "no value");
-    else if (n->quoted)
-        snprintf(buf, size, "the string \"%s\"", show(shown, n->text));
-    else
-        snprintf(buf, size, "'%s'", show(shown, n->text));
-    return buf;
-}
-
-/* Reports that n is not what was expected.  Aliases are reported once, by
- * check_plain_yaml(), and not again here. */
-static bool is_placeholder(const node *n);
-
-static void report_type(loader *ld, const node *n, const char *expected)
-{
-    char what[SHOWN_SIZE + 16];
-    if (n->kind != NODE_ALIAS && !is_placeholder(n))
-        report(ld, n->mark, "found %s; expected %s", describe(n, what, sizeof what), expected);
-}
-
-/* The mark of byte offset in the text, for reader errors that give no mark.
- * Columns count characters, as libyaml's marks do. */
-static keel_mark mark_at_offset(const loader *ld, size_t offset)
-{
-    keel_mark at = {.line = 1, .column = 1};
-    for (size_t i = 0; i < offset && i < ld->len; i++) {
-        if (ld->text[i] == '\n') {
-            at.line++;
-            at.column = 1;
-        } else if (((unsigned char)ld->text[i] & 0xC0) != 0x80) {
-            at.column++;
-        }
-    }
-    return at;
-}
-
-static void report_parser_error(loader *ld, const yaml_parser_t *parser)
-{
-    const char *problem = parser->problem ? parser->problem : "unknown problem";
-    if (parser->error == YAML_MEMORY_ERROR) {
-        ld->nomem = true;
-    } else if (parser->error == YAML_READER_ERROR) {
-        keel_mark at = mark_at_offset(ld, parser->problem_offset);
-        if (parser->problem_value >= 0)
-            report(ld, at, "cannot read the text: %s (byte 0x%02X); expected UTF-8 text", problem,
-                   (unsigned)parser->problem_value);
-        else
-            report(ld, at, "cannot read the text: %s; expected UTF-8 text", problem);
-    } else if (parser->context) {
-        report(ld, mark_of(parser->problem_mark), "YAML syntax error: %s (%s on line %d)", problem,
-               parser->context, mark_of(parser->context_mark).line);
-    } else {
-        report(ld, mark_of(parser->problem_mark), "YAML syntax error: %s", problem);
-    }
-}
-
-/* ---------------------------------------------------------------------------
- * Reading the YAML into nodes
- */
-
-/* Parses the next event; on a syntax error reports it and returns false. */
-static bool next_event(loader *ld, yaml_parser_t *parser, yaml_event_t *event)
-{
-    if (yaml_parser_parse(parser, event))
-        return true;
-    report_parser_error(ld, parser);
-    return false;
-}
-
-/* Keeps the anchor and tag of a node's event, to be reported with their
- * key paths by check_plain_yaml(). */
-static bool keep_anchor_and_tag(loader *ld, node *n, const yaml_event_t *event)
-{
-    const yaml_char_t *anchor = NULL, *tag = NULL;
-    if (event->type == YAML_SCALAR_EVENT) {
-        anchor = event->data.scalar.anchor;
-        tag = event->data.scalar.tag;
-    } else if (event->type == YAML_SEQUENCE_START_EVENT) {
-        anchor = event->data.sequence_start.anchor;
-        tag = event->data.sequence_start.tag;
-    } else if (event->type == YAML_MAPPING_START_EVENT) {
-        anchor = event->data.mapping_start.anchor;
-        tag = event->data.mapping_start.tag;
-    } else if (event->type == YAML_ALIAS_EVENT) {
-        anchor = event->data.alias.anchor;
-    }
-    n->anchor = keel_strdup((const char *)anchor);
-    n->tag = keel_strdup((const char *)tag);
-    if ((anchor && !n->anchor) || (tag && !n->tag))
-        ld->nomem = true;
-    return !ld->nomem;
-}
-
-static bool fill_scalar(loader *ld, node *n, const yaml_event_t *event)
-{
-    const char *value = (const char *)event->data.scalar.value;
-    size_t length = event->data.scalar.length;
-    n->kind = NODE_SCALAR;
-    n->quoted = event->data.scalar.style != YAML_PLAIN_SCALAR_STYLE;
-    n->text = keel_strndup(value, length);
-    n->len = length;
-    if (!n->text)
-        ld->nomem = true;
-    return n->text != NULL;
-}
-
-static bool add_child(loader *ld, node *parent, node *child)
-{
-    if (parent->nitems == parent->capacity) {
-        size_t capacity = parent->capacity ? 2 * parent->capacity : 8;
-        node **grown = keel_reallocarray(parent->items, capacity, sizeof *grown);
-        if (!grown) {
-            ld->nomem = true;
-            return false;
-        }
-        parent->items = grown;
-        parent->capacity = capacity;
-    }
-    parent->items[parent->nitems++] = child;
-    return true;
-}
-
-static bool read_node(loader *ld, yaml_parser_t *parser, yaml_event_t *event, int depth,
-                      node **out);
-
-/* Reads the children of a sequence or mapping up to its end event. */
-static bool read_children(loader *ld, yaml_parser_t *parser, node *n, int depth)
-{
-    if (depth >= MAX_DEPTH) {
-        report(ld, n->mark, "nesting deeper than %d levels; a roster needs at most 5", MAX_DEPTH);
-        return false;
-    }
-    for (;;) {
-        yaml_event_t event;
-        node *child;
-        if (!next_event(ld, parser, &event))
-            return false;
-        if (event.type == YAML_SEQUENCE_END_EVENT || event.type == YAML_MAPPING_END_EVENT) {
-            yaml_event_delete(&event);
-            return true;
-        }
-        if (!read_node(ld, parser, &event, depth + 1, &child))
-            return false;
-        if (!add_child(ld, n, child)) {
-            free_node(child);
-            return false;
-        }
-    }
-}
-
-/* Builds the node that starts with event (consumed) and everything in it. */
-static bool read_node(loader *ld, yaml_parser_t *parser, yaml_event_t *event, int depth, node **out)
-{
-    bool ok = true;
-    node *n = keel_calloc(1, sizeof *n);
-    *out = NULL;
-    if (!n) {
-        ld->nomem = true;
-        yaml_event_delete(event);
-        return false;
-    }
-    n->mark = mark_of(event->start_mark);
-    ok = keep_anchor_and_tag(ld, n, event);
-    if (!ok)
-        n->kind = NODE_ALIAS;
-    else if (event->type == YAML_SCALAR_EVENT)
-        ok = fill_scalar(ld, n, event);
-    else if (event->type == YAML_SEQUENCE_START_EVENT)
-        n->kind = NODE_SEQUENCE;
-    else if (event->type == YAML_MAPPING_START_EVENT)
-        n->kind = NODE_MAPPING;
-    else
-        n->kind = NODE_ALIAS;
-    yaml_event_delete(event);
-    if (ok && (n->kind == NODE_SEQUENCE || n->kind == NODE_MAPPING))
-        ok = read_children(ld, parser, n, depth);
-    if (!ok) {
-        free_node(n);
-        return false;
-    }
-    *out = n;
-    return true;
-}
-
-/* Reads the one document of the file into *root.  An empty file, a syntax
- * error or a second document is reported and ends the load. */
-static bool read_document(loader *ld, yaml_parser_t *parser, node **root)
-{
-    yaml_event_t event;
-    *root = NULL;
-    if (!next_event(ld, parser, &event)) /* stream start */
-        return false;
-    yaml_event_delete(&event);
-    if (!next_event(ld, parser, &event))
-        return false;
-    if (event.type == YAML_STREAM_END_EVENT) {
-        yaml_event_delete(&event);
-        report(ld, (keel_mark){1, 1},
-               "the file is empty or only comments; expected a roster "
-               "with shift, nurses and patients");
-        return false;
-    }
-    yaml_event_delete(&event); /* document start */
-    if (!next_event(ld, parser, &event) || !read_node(ld, parser, &event, 1, root))
-        return false;
-    if (!next_event(ld, parser, &event)) /* document end */
-        goto fail;
-    yaml_event_delete(&event);
-    if (!next_event(ld, parser, &event))
-        goto fail;
-    if (event.type == YAML_DOCUMENT_START_EVENT) {
-        report(ld, mark_of(event.start_mark),
-               "a second YAML document starts here; expected one roster per file");
-        yaml_event_delete(&event);
-        goto fail;
-    }
-    yaml_event_delete(&event);
-    return true;
-fail:
-    free_node(*root);
-    *root = NULL;
-    return false;
-}
-
-/* Reports every anchor, alias and tag in the tree: keel reads plain YAML
- * only, so that each value is written where it applies. */
-/* The placeholder `keel new` writes where only the unit knows the value;
- * reported once, by check_plain_yaml(), and by no typed reader. */
-static bool is_placeholder(const node *n)
-{
-    return n->kind == NODE_SCALAR && !n->quoted && strcmp(n->text, KEEL_PLACEHOLDER) == 0;
-}
-
-static void check_plain_yaml(loader *ld, const node *n)
-{
-    char shown[SHOWN_SIZE];
-    if (is_placeholder(n))
-        report(ld, n->mark, "%s is a placeholder from keel new; put the unit's own value here",
-               KEEL_PLACEHOLDER);
-    if (n->kind == NODE_ALIAS)
-        report(ld, n->mark, "alias '*%s' is not supported; write the value out in full",
-               show(shown, n->anchor));
-    else if (n->anchor)
-        report(ld, n->mark, "anchor '&%s' is not supported; write each value out in full",
-               show(shown, n->anchor));
-    if (n->tag)
-        report(ld, n->mark, "tag '%s' is not supported; remove it (quotes make a value text)",
-               show(shown, n->tag));
-    if (n->kind == NODE_SCALAR && strlen(n->text) != n->len)
-        report(ld, n->mark, "text with a NUL character; expected text without one");
-    for (size_t i = 0; i < n->nitems; i++) {
-        size_t old = ld->pathlen;
-        if (n->kind == NODE_SEQUENCE)
-            push_index(ld, i);
-        else if (i % 2 == 1)
-            push_key(ld, n->items[i - 1]->kind == NODE_SCALAR ? n->items[i - 1]->text : "?");
-        check_plain_yaml(ld, n->items[i]);
-        pop_path(ld, old);
-    }
-}
 
 /* ---------------------------------------------------------------------------
  * Scalar values
@@ -539,12 +78,13 @@ static bool read_int(loader *ld, const node *n, int min, int max, int *out)
     long value;
     char shown[SHOWN_SIZE];
     if (!scan_int(n, &value)) {
-        report_type(ld, n, "an integer");
+        keel_roster_tree_report_type(ld, n, "an integer");
         return false;
     }
     if (value < min || value > max) {
-        report(ld, n->mark, "%s is out of range; expected an integer from %d to %d",
-               show(shown, n->text), min, max);
+        keel_roster_report_problem(ld, n->mark,
+                                   "%s is out of range; expected an integer from %d to %d",
+                                   keel_roster_report_show(shown, n->text), min, max);
         return false;
     }
     *out = (int)value;
@@ -555,12 +95,14 @@ static bool read_int(loader *ld, const node *n, int min, int max, int *out)
 static bool read_string(loader *ld, const node *n, char **out)
 {
     *out = NULL;
-    if (n->kind != NODE_SCALAR || is_null(n) || is_placeholder(n)) {
-        report_type(ld, n, "a string");
+    if (n->kind != NODE_SCALAR || keel_roster_tree_is_null(n) ||
+        keel_roster_tree_is_placeholder(n)) {
+        keel_roster_tree_report_type(ld, n, "a string");
         return false;
     }
     if (n->text[0] == '\0') {
-        report(ld, n->mark, "found an empty string; expected a non-empty string");
+        keel_roster_report_problem(ld, n->mark,
+                                   "found an empty string; expected a non-empty string");
         return false;
     }
     *out = keel_strdup(n->text);
@@ -710,7 +252,7 @@ static void report_unknown_key(loader *ld, const node *key, const key_rule *keys
     const char *suggestion = suggest_key(key->text, keys, nkeys);
     char names[MAX_KEYS * 20] = "";
     if (suggestion) {
-        report(ld, key->mark, "unknown key; did you mean '%s'?", suggestion);
+        keel_roster_report_problem(ld, key->mark, "unknown key; did you mean '%s'?", suggestion);
         return;
     }
     for (size_t i = 0; i < nkeys; i++) {
@@ -719,18 +261,18 @@ static void report_unknown_key(loader *ld, const node *key, const key_rule *keys
         strcat(names, names[0] ? ", " : "");
         strcat(names, keys[i].name);
     }
-    report(ld, key->mark, "unknown key; expected one of %s", names);
+    keel_roster_report_problem(ld, key->mark, "unknown key; expected one of %s", names);
 }
 
 /* True when key can name something: a scalar with text (reported if not). */
 static bool check_key(loader *ld, const node *key)
 {
     char what[SHOWN_SIZE + 16];
-    if (key->kind == NODE_SCALAR && !is_null(key) && key->text[0] != '\0')
+    if (key->kind == NODE_SCALAR && !keel_roster_tree_is_null(key) && key->text[0] != '\0')
         return true;
     if (key->kind != NODE_ALIAS)
-        report(ld, key->mark, "found %s as a key; expected a name",
-               describe(key, what, sizeof what));
+        keel_roster_report_problem(ld, key->mark, "found %s as a key; expected a name",
+                                   keel_roster_tree_describe(key, what, sizeof what));
     return false;
 }
 
@@ -742,7 +284,7 @@ static void walk_mapping(loader *ld, const node *map, const key_rule *keys, size
     const node *seen[MAX_KEYS] = {NULL};
     assert(nkeys <= MAX_KEYS);
     if (map->kind != NODE_MAPPING) {
-        report_type(ld, map, "a mapping");
+        keel_roster_tree_report_type(ld, map, "a mapping");
         return;
     }
     for (size_t i = 0; i + 1 < map->nitems; i += 2) {
@@ -753,25 +295,26 @@ static void walk_mapping(loader *ld, const node *map, const key_rule *keys, size
         for (size_t r = 0; r < nkeys && !rule; r++)
             if (strcmp(keys[r].name, key->text) == 0)
                 rule = &keys[r];
-        size_t old = push_key(ld, key->text);
+        size_t old = keel_roster_report_push_key(ld, key->text);
         if (!rule) {
             report_unknown_key(ld, key, keys, nkeys);
         } else if (rule->refused) {
-            report(ld, key->mark, "%s", rule->refused);
+            keel_roster_report_problem(ld, key->mark, "%s", rule->refused);
         } else if (seen[rule - keys]) {
-            report(ld, key->mark, "given twice (first on line %d); expected each key once",
-                   seen[rule - keys]->mark.line);
+            keel_roster_report_problem(ld, key->mark,
+                                       "given twice (first on line %d); expected each key once",
+                                       seen[rule - keys]->mark.line);
         } else {
             seen[rule - keys] = key;
             rule->parse(ld, value, target, rule);
         }
-        pop_path(ld, old);
+        keel_roster_report_pop_path(ld, old);
     }
     for (size_t r = 0; r < nkeys; r++) {
         if (keys[r].need && !seen[r]) {
-            size_t old = push_key(ld, keys[r].name);
-            report(ld, map->mark, "missing; %s", keys[r].need);
-            pop_path(ld, old);
+            size_t old = keel_roster_report_push_key(ld, keys[r].name);
+            keel_roster_report_problem(ld, map->mark, "missing; %s", keys[r].need);
+            keel_roster_report_pop_path(ld, old);
         }
     }
 }
@@ -799,7 +342,7 @@ static void read_names(loader *ld, const node *value, char ***names, size_t *cou
 {
     char shown[SHOWN_SIZE];
     if (value->kind != NODE_SEQUENCE) {
-        report_type(ld, value, expected);
+        keel_roster_tree_report_type(ld, value, expected);
         return;
     }
     *names = keel_calloc(value->nitems, sizeof **names);
@@ -809,18 +352,19 @@ static void read_names(loader *ld, const node *value, char ***names, size_t *cou
     }
     *count = value->nitems;
     for (size_t i = 0; i < value->nitems; i++) {
-        size_t old = push_index(ld, i);
+        size_t old = keel_roster_report_push_index(ld, i);
         if (read_string(ld, value->items[i], &(*names)[i]) && once) {
             for (size_t j = 0; j < i; j++) {
                 if ((*names)[j] && strcmp((*names)[j], (*names)[i]) == 0) {
-                    report(ld, value->items[i]->mark,
-                           "'%s' is already listed at [%zu]; expected each name once",
-                           show(shown, (*names)[i]), j);
+                    keel_roster_report_problem(
+                        ld, value->items[i]->mark,
+                        "'%s' is already listed at [%zu]; expected each name once",
+                        keel_roster_report_show(shown, (*names)[i]), j);
                     break;
                 }
             }
         }
-        pop_path(ld, old);
+        keel_roster_report_pop_path(ld, old);
     }
 }
 
@@ -852,16 +396,17 @@ static void parse_version(loader *ld, const node *value, void *target, const key
     (void)target;
     (void)rule;
     if (!scan_int(value, &version))
-        report_type(ld, value, "the integer 1");
+        keel_roster_tree_report_type(ld, value, "the integer 1");
     else if (version != 1)
-        report(ld, value->mark, "%s is not supported; expected 1", show(shown, value->text));
+        keel_roster_report_problem(ld, value->mark, "%s is not supported; expected 1",
+                                   keel_roster_report_show(shown, value->text));
 }
 
 static void parse_clock(loader *ld, const node *value, void *target, const key_rule *rule)
 {
     int minute = value->kind == NODE_SCALAR ? scan_clock(value->text) : -1;
     if (minute < 0)
-        report_type(ld, value, "a time of day from 00:00 to 23:59");
+        keel_roster_tree_report_type(ld, value, "a time of day from 00:00 to 23:59");
     else
         *(int *)field_of(target, rule->offset) = minute;
 }
@@ -878,7 +423,7 @@ static void parse_date(loader *ld, const node *value, void *target, const key_ru
 {
     char **date = field_of(target, rule->offset);
     if (value->kind != NODE_SCALAR || !is_calendar_date(value->text)) {
-        report_type(ld, value, "a calendar date as YYYY-MM-DD");
+        keel_roster_tree_report_type(ld, value, "a calendar date as YYYY-MM-DD");
         return;
     }
     *date = keel_strdup(value->text);
@@ -948,13 +493,13 @@ static bool read_word(loader *ld, const node *n, const char *what, const char *c
                       size_t nwords, bool of_nurse, int *index)
 {
     char shown[SHOWN_SIZE], names[256];
-    if (is_placeholder(n))
+    if (keel_roster_tree_is_placeholder(n))
         return false;
     join_words(names, sizeof names, words, nwords);
-    if (n->kind != NODE_SCALAR || is_null(n) || n->text[0] == '\0') {
+    if (n->kind != NODE_SCALAR || keel_roster_tree_is_null(n) || n->text[0] == '\0') {
         char expected[sizeof names + 16];
         snprintf(expected, sizeof expected, "one of %s", names);
-        report_type(ld, n, expected);
+        keel_roster_tree_report_type(ld, n, expected);
         return false;
     }
     for (size_t i = 0; i < nwords; i++) {
@@ -965,15 +510,17 @@ static bool read_word(loader *ld, const node *n, const char *what, const char *c
     }
     const char *suggestion = suggest_word(n->text, words, nwords);
     if (of_nurse && names_unlicensed_staff(n->text))
-        report(ld, n->mark,
-               "'%s' names unlicensed staff, who do not belong under nurses; expected one of %s",
-               show(shown, n->text), names);
+        keel_roster_report_problem(
+            ld, n->mark,
+            "'%s' names unlicensed staff, who do not belong under nurses; expected one of %s",
+            keel_roster_report_show(shown, n->text), names);
     else if (suggestion)
-        report(ld, n->mark, "unknown %s '%s'; did you mean '%s'? expected one of %s", what,
-               show(shown, n->text), suggestion, names);
+        keel_roster_report_problem(ld, n->mark,
+                                   "unknown %s '%s'; did you mean '%s'? expected one of %s", what,
+                                   keel_roster_report_show(shown, n->text), suggestion, names);
     else
-        report(ld, n->mark, "unknown %s '%s'; expected one of %s", what, show(shown, n->text),
-               names);
+        keel_roster_report_problem(ld, n->mark, "unknown %s '%s'; expected one of %s", what,
+                                   keel_roster_report_show(shown, n->text), names);
     return false;
 }
 
@@ -1009,7 +556,7 @@ static void parse_bool(loader *ld, const node *value, void *target, const key_ru
     bool is_false =
         value->kind == NODE_SCALAR && !value->quoted && strcmp(value->text, "false") == 0;
     if (!is_true && !is_false)
-        report_type(ld, value, "true or false");
+        keel_roster_tree_report_type(ld, value, "true or false");
     else
         *(bool *)field_of(target, rule->offset) = is_true;
 }
@@ -1030,7 +577,7 @@ static void parse_ratio(loader *ld, const node *value, void *target, const key_r
     if (s[0] == '1' && s[1] == ':' && s[2] >= '0' && s[2] <= '9')
         n = strtol(s + 2, &end, 10);
     if (n < 1 || n > MAX_PATIENTS || *end != '\0')
-        report_type(ld, value, "a ratio such as \"1:2\" (1:1 to 1:99)");
+        keel_roster_tree_report_type(ld, value, "a ratio such as \"1:2\" (1:1 to 1:99)");
     else
         *(int *)field_of(target, rule->offset) = (int)n;
 }
@@ -1072,10 +619,11 @@ static void parse_tolerance(loader *ld, const node *value, void *target, const k
         frac *= 10;
     long ppm = whole * KEEL_TOLERANCE_SCALE + frac;
     if (rule->max > 0 && (!ok || ppm > most || ppm < rule->min))
-        report_type(ld, value,
-                    "a number above 0 and at most 10 with at most 6 decimals, such as 1.0");
+        keel_roster_tree_report_type(
+            ld, value, "a number above 0 and at most 10 with at most 6 decimals, such as 1.0");
     else if (!ok || ppm > most)
-        report_type(ld, value, "a number from 0 to 1 with at most 6 decimals, such as 0.05");
+        keel_roster_tree_report_type(ld, value,
+                                     "a number from 0 to 1 with at most 6 decimals, such as 0.05");
     else
         *(int *)field_of(target, rule->offset) = (int)ppm;
 }
@@ -1114,7 +662,8 @@ static void parse_isolation_needs(loader *ld, const node *value, void *target, c
     keel_roster *r = target;
     (void)rule;
     if (value->kind != NODE_MAPPING) {
-        report_type(ld, value, "a mapping from precaution to competencies, like {airborne: [n95]}");
+        keel_roster_tree_report_type(
+            ld, value, "a mapping from precaution to competencies, like {airborne: [n95]}");
         return;
     }
     for (size_t i = 0; i + 1 < value->nitems; i += 2) {
@@ -1122,11 +671,12 @@ static void parse_isolation_needs(loader *ld, const node *value, void *target, c
         int kind;
         if (!check_key(ld, key))
             continue;
-        size_t old = push_key(ld, key->text);
+        size_t old = keel_roster_report_push_key(ld, key->text);
         first = earlier_key(value, i);
         if (first) {
-            report(ld, key->mark, "given twice (first on line %d); expected each precaution once",
-                   first->mark.line);
+            keel_roster_report_problem(
+                ld, key->mark, "given twice (first on line %d); expected each precaution once",
+                first->mark.line);
         } else if (read_word(ld, key, "precaution", isolation_names + 1, KEEL_NISOLATION - 1, false,
                              &kind)) {
             key_rule names = {.offset = offsetof(keel_roster, policy.isolation_needs) +
@@ -1135,7 +685,7 @@ static void parse_isolation_needs(loader *ld, const node *value, void *target, c
                                               (size_t)(kind + 1) * sizeof(size_t)};
             parse_names(ld, value->items[i + 1], r, &names);
         }
-        pop_path(ld, old);
+        keel_roster_report_pop_path(ld, old);
     }
 }
 
@@ -1163,11 +713,13 @@ static void parse_acuity_table(loader *ld, const node *value, void *target, cons
     (void)rule;
     ld->acuity_table = TABLE_BROKEN;
     if (value->kind != NODE_MAPPING) {
-        report_type(ld, value, "a mapping from acuity level to care minutes, like {1: 90}");
+        keel_roster_tree_report_type(ld, value,
+                                     "a mapping from acuity level to care minutes, like {1: 90}");
         return;
     }
     if (value->nitems == 0) {
-        report(ld, value->mark, "found an empty mapping; expected care minutes per acuity level");
+        keel_roster_report_problem(
+            ld, value->mark, "found an empty mapping; expected care minutes per acuity level");
         return;
     }
     r->policy.acuity_minutes = keel_calloc(value->nitems / 2, sizeof *r->policy.acuity_minutes);
@@ -1182,20 +734,22 @@ static void parse_acuity_table(loader *ld, const node *value, void *target, cons
         int first;
         if (!check_key(ld, key))
             continue;
-        size_t old = push_key(ld, key->text);
+        size_t old = keel_roster_report_push_key(ld, key->text);
         keel_acuity_level entry = {.minutes = KEEL_ABSENT};
         if (!scan_int(key, &level) || level < 0 || level > MAX_LEVEL) {
-            report(ld, key->mark, "level '%s' is not valid; expected an integer from 0 to %d",
-                   show(shown, key->text), MAX_LEVEL);
+            keel_roster_report_problem(ld, key->mark,
+                                       "level '%s' is not valid; expected an integer from 0 to %d",
+                                       keel_roster_report_show(shown, key->text), MAX_LEVEL);
         } else if ((first = find_level_line(value, i, level)) > 0) {
-            report(ld, key->mark, "level %ld given twice (first on line %d); expected each once",
-                   level, first);
+            keel_roster_report_problem(
+                ld, key->mark, "level %ld given twice (first on line %d); expected each once",
+                level, first);
         } else {
             entry.level = (int)level;
             read_int(ld, value->items[i + 1], 0, MINUTES_PER_DAY, &entry.minutes);
             r->policy.acuity_minutes[r->policy.nacuity++] = entry;
         }
-        pop_path(ld, old);
+        keel_roster_report_pop_path(ld, old);
     }
     qsort(r->policy.acuity_minutes, r->policy.nacuity, sizeof *r->policy.acuity_minutes,
           compare_levels);
@@ -1208,7 +762,8 @@ static void parse_extra_table(loader *ld, const node *value, void *target, const
     (void)rule;
     ld->extra_table = TABLE_BROKEN;
     if (value->kind != NODE_MAPPING) {
-        report_type(ld, value, "a mapping from extra to care minutes, like {admission: 90}");
+        keel_roster_tree_report_type(ld, value,
+                                     "a mapping from extra to care minutes, like {admission: 90}");
         return;
     }
     r->policy.extra_minutes = keel_calloc(value->nitems / 2, sizeof *r->policy.extra_minutes);
@@ -1222,11 +777,12 @@ static void parse_extra_table(loader *ld, const node *value, void *target, const
         const node *first = NULL;
         if (!check_key(ld, key))
             continue;
-        size_t old = push_key(ld, key->text);
+        size_t old = keel_roster_report_push_key(ld, key->text);
         first = earlier_key(value, i);
         if (first) {
-            report(ld, key->mark, "given twice (first on line %d); expected each extra once",
-                   first->mark.line);
+            keel_roster_report_problem(ld, key->mark,
+                                       "given twice (first on line %d); expected each extra once",
+                                       first->mark.line);
         } else {
             keel_extra *extra = &r->policy.extra_minutes[r->policy.nextras];
             extra->minutes = KEEL_ABSENT;
@@ -1235,7 +791,7 @@ static void parse_extra_table(loader *ld, const node *value, void *target, const
                 read_int(ld, value->items[i + 1], 0, MINUTES_PER_DAY, &extra->minutes);
             }
         }
-        pop_path(ld, old);
+        keel_roster_report_pop_path(ld, old);
     }
 }
 
@@ -1245,11 +801,12 @@ static bool check_list(loader *ld, const node *value, const char *what)
     char expected[64];
     snprintf(expected, sizeof expected, "a list of %ss", what);
     if (value->kind != NODE_SEQUENCE) {
-        report_type(ld, value, expected);
+        keel_roster_tree_report_type(ld, value, expected);
         return false;
     }
     if (value->nitems == 0) {
-        report(ld, value->mark, "found an empty list; expected at least one %s", what);
+        keel_roster_report_problem(ld, value->mark, "found an empty list; expected at least one %s",
+                                   what);
         return false;
     }
     return true;
@@ -1286,9 +843,9 @@ static void parse_breaks(loader *ld, const node *value, void *target, const key_
     for (size_t i = 0; i < value->nitems; i++) {
         n->breaks[i] =
             (keel_break){.at = KEEL_ABSENT, .minutes = KEEL_ABSENT, .mark = value->items[i]->mark};
-        size_t old = push_index(ld, i);
+        size_t old = keel_roster_report_push_index(ld, i);
         walk_mapping(ld, value->items[i], break_keys, ARRAY_LEN(break_keys), &n->breaks[i]);
-        pop_path(ld, old);
+        keel_roster_report_pop_path(ld, old);
     }
 }
 
@@ -1435,9 +992,9 @@ static void parse_nurses(loader *ld, const node *value, void *target, const key_
                                     .start = KEEL_ABSENT,
                                     .end = KEEL_ABSENT,
                                     .mark = value->items[i]->mark};
-        size_t old = push_index(ld, i);
+        size_t old = keel_roster_report_push_index(ld, i);
         walk_mapping(ld, value->items[i], nurse_keys, ARRAY_LEN(nurse_keys), &r->nurses[i]);
-        pop_path(ld, old);
+        keel_roster_report_pop_path(ld, old);
     }
 }
 
@@ -1460,9 +1017,9 @@ static void read_patients(loader *ld, const node *value, const key_rule *keys, s
                                    .leaves_at = KEEL_ABSENT,
                                    .expected = expected,
                                    .mark = value->items[i]->mark};
-        size_t old = push_index(ld, i);
+        size_t old = keel_roster_report_push_index(ld, i);
         walk_mapping(ld, value->items[i], keys, nkeys, &(*out)[i]);
-        pop_path(ld, old);
+        keel_roster_report_pop_path(ld, old);
     }
 }
 
@@ -1482,7 +1039,7 @@ static void parse_expected(loader *ld, const node *value, void *target, const ke
     (void)target;
     (void)rule;
     if (value->kind != NODE_SEQUENCE)
-        report_type(ld, value, "a list of expected admissions ([] for none)");
+        keel_roster_tree_report_type(ld, value, "a list of expected admissions ([] for none)");
     else if (value->nitems > 0)
         read_patients(ld, value, expected_keys, ARRAY_LEN(expected_keys), true, &ld->expected,
                       &ld->nexpected);
@@ -1529,8 +1086,8 @@ static void parse_role_table(loader *ld, const node *value, void *target, const 
     keel_roster *r = target;
     (void)rule;
     if (value->kind != NODE_MAPPING) {
-        report_type(ld, value,
-                    "a mapping from role to its limits, like {charge: {max_patients: 2}}");
+        keel_roster_tree_report_type(
+            ld, value, "a mapping from role to its limits, like {charge: {max_patients: 2}}");
         return;
     }
     for (size_t i = 0; i + 1 < value->nitems; i += 2) {
@@ -1538,15 +1095,16 @@ static void parse_role_table(loader *ld, const node *value, void *target, const 
         int role;
         if (!check_key(ld, key))
             continue;
-        size_t old = push_key(ld, key->text);
+        size_t old = keel_roster_report_push_key(ld, key->text);
         first = earlier_key(value, i);
         if (first)
-            report(ld, key->mark, "given twice (first on line %d); expected each role once",
-                   first->mark.line);
+            keel_roster_report_problem(ld, key->mark,
+                                       "given twice (first on line %d); expected each role once",
+                                       first->mark.line);
         else if (read_word(ld, key, "role", role_names, KEEL_NROLES, true, &role))
             walk_mapping(ld, value->items[i + 1], role_policy_keys, ARRAY_LEN(role_policy_keys),
                          &r->policy.roles[role]);
-        pop_path(ld, old);
+        keel_roster_report_pop_path(ld, old);
     }
 }
 
@@ -1634,12 +1192,13 @@ static void check_shift_break(loader *ld, const node *root)
     if (r->shift.minutes == KEEL_ABSENT || r->shift.break_minutes == KEEL_ABSENT ||
         r->shift.break_minutes < r->shift.minutes)
         return;
-    pop_path(ld, 0);
-    push_key(ld, "shift");
-    push_key(ld, "break_minutes");
-    report(ld, find_value(find_value(root, "shift"), "break_minutes")->mark,
-           "a %d-minute break leaves no time in a %d-minute shift; expected less than %d",
-           r->shift.break_minutes, r->shift.minutes, r->shift.minutes);
+    keel_roster_report_pop_path(ld, 0);
+    keel_roster_report_push_key(ld, "shift");
+    keel_roster_report_push_key(ld, "break_minutes");
+    keel_roster_report_problem(
+        ld, keel_roster_tree_find(keel_roster_tree_find(root, "shift"), "break_minutes")->mark,
+        "a %d-minute break leaves no time in a %d-minute shift; expected less than %d",
+        r->shift.break_minutes, r->shift.minutes, r->shift.minutes);
 }
 
 /* ---------------------------------------------------------------------------
@@ -1667,9 +1226,9 @@ static const node *patient_item(const loader *ld, size_t i)
 static void set_patient_path(loader *ld, size_t i, const char *key)
 {
     if (i < ld->nlisted)
-        set_path(ld, "patients", i, key);
+        keel_roster_report_set_path(ld, "patients", i, key);
     else
-        set_path(ld, "expected_admissions", i - ld->nlisted, key);
+        keel_roster_report_set_path(ld, "expected_admissions", i - ld->nlisted, key);
 }
 
 /* Appends the expected admissions to the patients (after the walk, so that
@@ -1712,11 +1271,12 @@ static void convert_time(loader *ld, const node *shift, const node *value, bool 
         return;
     *minute = KEEL_ABSENT;
     if (r->shift.start_minute == KEEL_ABSENT) {
-        if (shift && shift->kind == NODE_MAPPING && !find_value(shift, "start"))
-            report(ld, value->mark,
-                   "%s needs shift.start to be read against the shift; expected shift.start, "
-                   "the time the shift starts",
-                   show(shown, value->text));
+        if (shift && shift->kind == NODE_MAPPING && !keel_roster_tree_find(shift, "start"))
+            keel_roster_report_problem(
+                ld, value->mark,
+                "%s needs shift.start to be read against the shift; expected shift.start, "
+                "the time the shift starts",
+                keel_roster_report_show(shown, value->text));
         return;
     }
     if (r->shift.minutes == KEEL_ABSENT)
@@ -1727,8 +1287,9 @@ static void convert_time(loader *ld, const node *shift, const node *value, bool 
     if (offset > r->shift.minutes) {
         clock_text(r, 0, from);
         clock_text(r, r->shift.minutes, to);
-        report(ld, value->mark, "%s is outside the shift (%s to %s); expected a time from %s to %s",
-               show(shown, value->text), from, to, from, to);
+        keel_roster_report_problem(
+            ld, value->mark, "%s is outside the shift (%s to %s); expected a time from %s to %s",
+            keel_roster_report_show(shown, value->text), from, to, from, to);
         return;
     }
     *minute = offset;
@@ -1739,19 +1300,21 @@ static void convert_time(loader *ld, const node *shift, const node *value, bool 
 static void convert_times(loader *ld, const node *root)
 {
     keel_roster *r = ld->roster;
-    const node *shift = find_value(root, "shift"), *nurses = find_value(root, "nurses");
+    const node *shift = keel_roster_tree_find(root, "shift"),
+               *nurses = keel_roster_tree_find(root, "nurses");
     for (size_t i = 0; i < r->nnurses; i++) {
         keel_nurse *n = &r->nurses[i];
-        const node *item = nurses->items[i], *breaks = find_value(item, "breaks");
-        set_path(ld, "nurses", i, "start");
-        convert_time(ld, shift, find_value(item, "start"), false, &n->start);
-        set_path(ld, "nurses", i, "end");
-        convert_time(ld, shift, find_value(item, "end"), true, &n->end);
+        const node *item = nurses->items[i], *breaks = keel_roster_tree_find(item, "breaks");
+        keel_roster_report_set_path(ld, "nurses", i, "start");
+        convert_time(ld, shift, keel_roster_tree_find(item, "start"), false, &n->start);
+        keel_roster_report_set_path(ld, "nurses", i, "end");
+        convert_time(ld, shift, keel_roster_tree_find(item, "end"), true, &n->end);
         for (size_t b = 0; b < n->nbreaks; b++) {
-            set_path(ld, "nurses", i, "breaks");
-            push_index(ld, b);
-            push_key(ld, "at");
-            convert_time(ld, shift, find_value(breaks->items[b], "at"), false, &n->breaks[b].at);
+            keel_roster_report_set_path(ld, "nurses", i, "breaks");
+            keel_roster_report_push_index(ld, b);
+            keel_roster_report_push_key(ld, "at");
+            convert_time(ld, shift, keel_roster_tree_find(breaks->items[b], "at"), false,
+                         &n->breaks[b].at);
         }
     }
     for (size_t i = 0; i < r->npatients; i++) {
@@ -1759,9 +1322,9 @@ static void convert_times(loader *ld, const node *root)
         const node *item = patient_item(ld, i);
         const char *arrival = p->expected ? "at" : "arrives_at";
         set_patient_path(ld, i, arrival);
-        convert_time(ld, shift, find_value(item, arrival), false, &p->arrives_at);
+        convert_time(ld, shift, keel_roster_tree_find(item, arrival), false, &p->arrives_at);
         set_patient_path(ld, i, "leaves_at");
-        convert_time(ld, shift, find_value(item, "leaves_at"), true, &p->leaves_at);
+        convert_time(ld, shift, keel_roster_tree_find(item, "leaves_at"), true, &p->leaves_at);
     }
 }
 
@@ -1775,7 +1338,7 @@ static void nurse_span(const keel_roster *r, const keel_nurse *n, int *start, in
 /* True when the key is absent or its time was read. */
 static bool time_read(const node *item, const char *key, int value)
 {
-    return !find_value(item, key) || value != KEEL_ABSENT;
+    return !keel_roster_tree_find(item, key) || value != KEEL_ABSENT;
 }
 
 /* A nurse's own start comes before her end; `minutes`, when given with
@@ -1797,29 +1360,33 @@ static bool check_nurse_span(loader *ld, size_t i, const node *item)
     clock_text(r, start, from);
     clock_text(r, end, to);
     if (start >= end && n->start != KEEL_ABSENT && n->end != KEEL_ABSENT) {
-        set_path(ld, "nurses", i, "end");
-        report(ld, find_value(item, "end")->mark,
-               "%s is not after the nurse's start at %s; expected an end later than the start", to,
-               from);
+        keel_roster_report_set_path(ld, "nurses", i, "end");
+        keel_roster_report_problem(
+            ld, keel_roster_tree_find(item, "end")->mark,
+            "%s is not after the nurse's start at %s; expected an end later than the start", to,
+            from);
         return false;
     }
     if (start >= end && n->start != KEEL_ABSENT) {
-        set_path(ld, "nurses", i, "start");
-        report(ld, find_value(item, "start")->mark,
-               "%s is when the shift ends; expected a start before %s", from, to);
+        keel_roster_report_set_path(ld, "nurses", i, "start");
+        keel_roster_report_problem(ld, keel_roster_tree_find(item, "start")->mark,
+                                   "%s is when the shift ends; expected a start before %s", from,
+                                   to);
         return false;
     }
     if (start >= end) {
-        set_path(ld, "nurses", i, "end");
-        report(ld, find_value(item, "end")->mark,
-               "%s is when the shift starts; expected an end after %s", to, from);
+        keel_roster_report_set_path(ld, "nurses", i, "end");
+        keel_roster_report_problem(ld, keel_roster_tree_find(item, "end")->mark,
+                                   "%s is when the shift starts; expected an end after %s", to,
+                                   from);
         return false;
     }
     if (n->minutes != KEEL_ABSENT && n->minutes != end - start) {
-        set_path(ld, "nurses", i, "minutes");
-        report(ld, find_value(item, "minutes")->mark,
-               "%d minutes on the unit, but %s to %s is %d minutes; expected %d, or no minutes",
-               n->minutes, from, to, end - start, end - start);
+        keel_roster_report_set_path(ld, "nurses", i, "minutes");
+        keel_roster_report_problem(
+            ld, keel_roster_tree_find(item, "minutes")->mark,
+            "%d minutes on the unit, but %s to %s is %d minutes; expected %d, or no minutes",
+            n->minutes, from, to, end - start, end - start);
     }
     return true;
 }
@@ -1831,7 +1398,7 @@ static int check_breaks(loader *ld, size_t i, const node *item)
 {
     const keel_roster *r = ld->roster;
     const keel_nurse *n = &r->nurses[i];
-    const node *list = find_value(item, "breaks");
+    const node *list = keel_roster_tree_find(item, "breaks");
     const keel_break *before = NULL;
     size_t before_index = 0;
     char at[CLOCK_SIZE], from[CLOCK_SIZE], to[CLOCK_SIZE], other[CLOCK_SIZE];
@@ -1849,36 +1416,40 @@ static int check_breaks(loader *ld, size_t i, const node *item)
             complete = false;
             continue;
         }
-        set_path(ld, "nurses", i, "breaks");
-        push_index(ld, k);
+        keel_roster_report_set_path(ld, "nurses", i, "breaks");
+        keel_roster_report_push_index(ld, k);
         clock_text(r, b->at, at);
         if (before)
             clock_text(r, before->at, other);
         if (b->at < start || b->at >= end) {
-            push_key(ld, "at");
-            report(ld, find_value(entry, "at")->mark,
-                   "the break at %s is outside the nurse's time on the unit (%s to %s); expected "
-                   "a break that starts from %s and before %s",
-                   at, from, to, from, to);
+            keel_roster_report_push_key(ld, "at");
+            keel_roster_report_problem(
+                ld, keel_roster_tree_find(entry, "at")->mark,
+                "the break at %s is outside the nurse's time on the unit (%s to %s); expected "
+                "a break that starts from %s and before %s",
+                at, from, to, from, to);
         } else if (b->at + b->minutes > end) {
-            push_key(ld, "minutes");
-            report(ld, find_value(entry, "minutes")->mark,
-                   "a %d-minute break at %s runs past the nurse's end at %s; expected at most %d",
-                   b->minutes, at, to, end - b->at);
+            keel_roster_report_push_key(ld, "minutes");
+            keel_roster_report_problem(
+                ld, keel_roster_tree_find(entry, "minutes")->mark,
+                "a %d-minute break at %s runs past the nurse's end at %s; expected at most %d",
+                b->minutes, at, to, end - b->at);
         } else if (before && b->at < before->at) {
-            push_key(ld, "at");
-            report(ld, find_value(entry, "at")->mark,
-                   "the break at %s comes before the break at %s (breaks[%zu]); expected the "
-                   "breaks in time order",
-                   at, other, before_index);
+            keel_roster_report_push_key(ld, "at");
+            keel_roster_report_problem(
+                ld, keel_roster_tree_find(entry, "at")->mark,
+                "the break at %s comes before the break at %s (breaks[%zu]); expected the "
+                "breaks in time order",
+                at, other, before_index);
         } else if (before && b->at < before->at + before->minutes) {
             char ends[CLOCK_SIZE];
-            push_key(ld, "at");
-            report(ld, find_value(entry, "at")->mark,
-                   "the break at %s starts before the %d-minute break at %s (breaks[%zu]) ends "
-                   "at %s; expected breaks that do not overlap",
-                   at, before->minutes, other, before_index,
-                   clock_text(r, before->at + before->minutes, ends));
+            keel_roster_report_push_key(ld, "at");
+            keel_roster_report_problem(
+                ld, keel_roster_tree_find(entry, "at")->mark,
+                "the break at %s starts before the %d-minute break at %s (breaks[%zu]) ends "
+                "at %s; expected breaks that do not overlap",
+                at, before->minutes, other, before_index,
+                clock_text(r, before->at + before->minutes, ends));
         } else {
             total += b->minutes;
             before = b;
@@ -1890,10 +1461,11 @@ static int check_breaks(loader *ld, size_t i, const node *item)
     if (!complete)
         return KEEL_ABSENT;
     if (n->break_minutes != KEEL_ABSENT && n->break_minutes != total) {
-        set_path(ld, "nurses", i, "break_minutes");
-        report(ld, find_value(item, "break_minutes")->mark,
-               "%d break minutes, but the breaks add up to %d; expected %d, or no break_minutes",
-               n->break_minutes, total, total);
+        keel_roster_report_set_path(ld, "nurses", i, "break_minutes");
+        keel_roster_report_problem(
+            ld, keel_roster_tree_find(item, "break_minutes")->mark,
+            "%d break minutes, but the breaks add up to %d; expected %d, or no break_minutes",
+            n->break_minutes, total, total);
     }
     return total;
 }
@@ -1903,19 +1475,21 @@ static void check_covers(loader *ld, size_t i, const node *item)
 {
     const keel_roster *r = ld->roster;
     const keel_nurse *n = &r->nurses[i];
-    const node *given = find_value(item, "covers");
+    const node *given = keel_roster_tree_find(item, "covers");
     char shown[SHOWN_SIZE];
     if (!n->covers)
         return;
     int k = keel_roster_find_nurse(r, n->covers);
-    set_path(ld, "nurses", i, "covers");
+    keel_roster_report_set_path(ld, "nurses", i, "covers");
     if (k < 0)
-        report(ld, given->mark, "no nurse '%s' on this roster", show(shown, n->covers));
+        keel_roster_report_problem(ld, given->mark, "no nurse '%s' on this roster",
+                                   keel_roster_report_show(shown, n->covers));
     else if ((size_t)k == i || (n->id && strcmp(n->id, n->covers) == 0))
-        report(ld, given->mark,
-               "'%s' is this nurse's own id; expected the id of another nurse, whose patients "
-               "this nurse holds during that nurse's breaks",
-               show(shown, n->covers));
+        keel_roster_report_problem(
+            ld, given->mark,
+            "'%s' is this nurse's own id; expected the id of another nurse, whose patients "
+            "this nurse holds during that nurse's breaks",
+            keel_roster_report_show(shown, n->covers));
 }
 
 /* A patient's own arrival comes before the departure (a patient who
@@ -1938,18 +1512,21 @@ static void check_patient_times(loader *ld, size_t i, const node *item)
     clock_text(r, leaves, to);
     if (p->arrives_at != KEEL_ABSENT && p->leaves_at != KEEL_ABSENT) {
         set_patient_path(ld, i, "leaves_at");
-        report(ld, find_value(item, "leaves_at")->mark,
-               "%s is not after the patient's arrival at %s; expected a departure later than "
-               "the arrival",
-               to, from);
+        keel_roster_report_problem(
+            ld, keel_roster_tree_find(item, "leaves_at")->mark,
+            "%s is not after the patient's arrival at %s; expected a departure later than "
+            "the arrival",
+            to, from);
     } else if (p->arrives_at != KEEL_ABSENT) {
         set_patient_path(ld, i, arrival);
-        report(ld, find_value(item, arrival)->mark,
-               "%s is when the shift ends; expected an arrival before %s", from, to);
+        keel_roster_report_problem(ld, keel_roster_tree_find(item, arrival)->mark,
+                                   "%s is when the shift ends; expected an arrival before %s", from,
+                                   to);
     } else {
         set_patient_path(ld, i, "leaves_at");
-        report(ld, find_value(item, "leaves_at")->mark,
-               "%s is when the shift starts; expected a departure after %s", to, from);
+        keel_roster_report_problem(ld, keel_roster_tree_find(item, "leaves_at")->mark,
+                                   "%s is when the shift starts; expected a departure after %s", to,
+                                   from);
     }
 }
 
@@ -1959,15 +1536,16 @@ static void check_handoffs(loader *ld, size_t i, const node *item)
 {
     const keel_roster *r = ld->roster;
     const keel_patient *p = &r->patients[i];
-    const node *list = find_value(item, "handoffs");
+    const node *list = keel_roster_tree_find(item, "handoffs");
     char shown[SHOWN_SIZE];
     if (p->nhandoffs == 0)
         return;
-    if (!find_value(item, "nurse")) {
+    if (!keel_roster_tree_find(item, "nurse")) {
         set_patient_path(ld, i, "handoffs");
-        report(ld, list->mark,
-               "hand-offs without a nurse; expected nurse: the id of the nurse who has the "
-               "patient first");
+        keel_roster_report_problem(
+            ld, list->mark,
+            "hand-offs without a nurse; expected nurse: the id of the nurse who has the "
+            "patient first");
         return;
     }
     for (size_t k = 0; k < p->nhandoffs; k++) {
@@ -1975,18 +1553,21 @@ static void check_handoffs(loader *ld, size_t i, const node *item)
         if (!id)
             continue;
         set_patient_path(ld, i, "handoffs");
-        push_index(ld, k);
+        keel_roster_report_push_index(ld, k);
         if (r->nnurses && keel_roster_find_nurse(r, id) < 0)
-            report(ld, list->items[k]->mark, "no nurse '%s' on this roster", show(shown, id));
+            keel_roster_report_problem(ld, list->items[k]->mark, "no nurse '%s' on this roster",
+                                       keel_roster_report_show(shown, id));
         else if (before && strcmp(before, id) == 0 && k == 0)
-            report(ld, list->items[k]->mark,
-                   "'%s' is the patient's nurse already; expected a hand-off to another nurse",
-                   show(shown, id));
+            keel_roster_report_problem(
+                ld, list->items[k]->mark,
+                "'%s' is the patient's nurse already; expected a hand-off to another nurse",
+                keel_roster_report_show(shown, id));
         else if (before && strcmp(before, id) == 0)
-            report(ld, list->items[k]->mark,
-                   "'%s' already has the patient from handoffs[%zu]; expected a hand-off to "
-                   "another nurse",
-                   show(shown, id), k - 1);
+            keel_roster_report_problem(
+                ld, list->items[k]->mark,
+                "'%s' already has the patient from handoffs[%zu]; expected a hand-off to "
+                "another nurse",
+                keel_roster_report_show(shown, id), k - 1);
     }
 }
 
@@ -1999,22 +1580,25 @@ static void report_break_fills(loader *ld, size_t i, const node *item, int minut
 {
     const keel_nurse *n = &ld->roster->nurses[i];
     if (n->break_minutes != KEEL_ABSENT) {
-        set_path(ld, "nurses", i, "break_minutes");
-        report(ld, find_value(item, "break_minutes")->mark,
-               "a %d-minute break leaves no time in %d minutes on the unit; expected less than %d",
-               break_minutes, minutes, minutes);
+        keel_roster_report_set_path(ld, "nurses", i, "break_minutes");
+        keel_roster_report_problem(
+            ld, keel_roster_tree_find(item, "break_minutes")->mark,
+            "a %d-minute break leaves no time in %d minutes on the unit; expected less than %d",
+            break_minutes, minutes, minutes);
     } else if (n->nbreaks) {
-        set_path(ld, "nurses", i, "breaks");
-        report(ld, find_value(item, "breaks")->mark,
-               "breaks of %d minutes in all leave no time in %d minutes on the unit; expected "
-               "less than %d",
-               break_minutes, minutes, minutes);
+        keel_roster_report_set_path(ld, "nurses", i, "breaks");
+        keel_roster_report_problem(
+            ld, keel_roster_tree_find(item, "breaks")->mark,
+            "breaks of %d minutes in all leave no time in %d minutes on the unit; expected "
+            "less than %d",
+            break_minutes, minutes, minutes);
     } else if (minutes_key) {
-        set_path(ld, "nurses", i, minutes_key);
-        report(ld, find_value(item, minutes_key)->mark,
-               "%d minutes on the unit leave no time after the shift's %d-minute break; "
-               "expected more than %d, or break_minutes for this nurse",
-               minutes, break_minutes, break_minutes);
+        keel_roster_report_set_path(ld, "nurses", i, minutes_key);
+        keel_roster_report_problem(
+            ld, keel_roster_tree_find(item, minutes_key)->mark,
+            "%d minutes on the unit leave no time after the shift's %d-minute break; "
+            "expected more than %d, or break_minutes for this nurse",
+            minutes, break_minutes, break_minutes);
     }
 }
 
@@ -2041,20 +1625,22 @@ static void check_nurse_minutes(loader *ld, size_t i, const node *item, int brea
     if (minutes == KEEL_ABSENT)
         return;
     if (!timed && r->shift.minutes != KEEL_ABSENT && minutes > r->shift.minutes) {
-        set_path(ld, "nurses", i, "minutes");
-        report(ld, find_value(item, "minutes")->mark,
-               "%d minutes on the unit exceed the %d-minute shift; expected at most %d", minutes,
-               r->shift.minutes, r->shift.minutes);
+        keel_roster_report_set_path(ld, "nurses", i, "minutes");
+        keel_roster_report_problem(
+            ld, keel_roster_tree_find(item, "minutes")->mark,
+            "%d minutes on the unit exceed the %d-minute shift; expected at most %d", minutes,
+            r->shift.minutes, r->shift.minutes);
         return;
     }
     if (break_minutes != KEEL_ABSENT && break_minutes >= minutes)
         report_break_fills(ld, i, item, minutes, break_minutes,
                            n->minutes != KEEL_ABSENT || timed ? minutes_key : NULL);
     if (n->duty_minutes != KEEL_ABSENT && n->duty_minutes > minutes) {
-        set_path(ld, "nurses", i, "duty_minutes");
-        report(ld, find_value(item, "duty_minutes")->mark,
-               "%d duty minutes exceed the %d minutes on the unit; expected at most %d",
-               n->duty_minutes, minutes, minutes);
+        keel_roster_report_set_path(ld, "nurses", i, "duty_minutes");
+        keel_roster_report_problem(
+            ld, keel_roster_tree_find(item, "duty_minutes")->mark,
+            "%d duty minutes exceed the %d minutes on the unit; expected at most %d",
+            n->duty_minutes, minutes, minutes);
     }
 }
 
@@ -2062,18 +1648,20 @@ static void check_nurse_minutes(loader *ld, size_t i, const node *item, int brea
  * list's entries ("nurse"). */
 static void check_unique_id(loader *ld, const node *list, size_t i, const char *what)
 {
-    const node *id = find_value(list->items[i], "id");
+    const node *id = keel_roster_tree_find(list->items[i], "id");
     char shown[SHOWN_SIZE], key[16];
-    if (!id || id->kind != NODE_SCALAR || is_null(id) || is_placeholder(id))
+    if (!id || id->kind != NODE_SCALAR || keel_roster_tree_is_null(id) ||
+        keel_roster_tree_is_placeholder(id))
         return;
     for (size_t j = 0; j < i; j++) {
-        const node *other = find_value(list->items[j], "id");
-        if (other && other->kind == NODE_SCALAR && !is_null(other) &&
+        const node *other = keel_roster_tree_find(list->items[j], "id");
+        if (other && other->kind == NODE_SCALAR && !keel_roster_tree_is_null(other) &&
             strcmp(other->text, id->text) == 0) {
             snprintf(key, sizeof key, "%ss", what);
-            set_path(ld, key, i, "id");
-            report(ld, id->mark, "%s id '%s' is already used on line %d; expected a unique id",
-                   what, show(shown, id->text), other->mark.line);
+            keel_roster_report_set_path(ld, key, i, "id");
+            keel_roster_report_problem(
+                ld, id->mark, "%s id '%s' is already used on line %d; expected a unique id", what,
+                keel_roster_report_show(shown, id->text), other->mark.line);
             return;
         }
     }
@@ -2084,7 +1672,7 @@ static void check_unique_id(loader *ld, const node *list, size_t i, const char *
  * preceptor. */
 static bool role_is_known(const keel_nurse *n, const node *item)
 {
-    const node *role = find_value(item, "role");
+    const node *role = keel_roster_tree_find(item, "role");
     return !role || (role->kind == NODE_SCALAR && strcmp(role->text, keel_role_name(n->role)) == 0);
 }
 
@@ -2094,36 +1682,41 @@ static void check_preceptor(loader *ld, size_t i, const node *item)
 {
     const keel_roster *r = ld->roster;
     const keel_nurse *n = &r->nurses[i];
-    const node *given = find_value(item, "preceptor");
+    const node *given = keel_roster_tree_find(item, "preceptor");
     char shown[SHOWN_SIZE];
     if (!role_is_known(n, item))
         return;
-    set_path(ld, "nurses", i, "preceptor");
+    keel_roster_report_set_path(ld, "nurses", i, "preceptor");
     if (n->role == KEEL_ROLE_ORIENTEE && !given) {
-        report(ld, item->mark,
-               "missing; an orientee needs a preceptor, the id of a nurse on this roster who "
-               "is not an orientee");
+        keel_roster_report_problem(
+            ld, item->mark,
+            "missing; an orientee needs a preceptor, the id of a nurse on this roster who "
+            "is not an orientee");
         return;
     }
     if (!n->preceptor)
         return;
     int k = keel_roster_find_nurse(r, n->preceptor);
     if (n->role != KEEL_ROLE_ORIENTEE)
-        report(ld, given->mark,
-               "a preceptor is given but the role is %s; expected role: orientee, or no "
-               "preceptor",
-               keel_role_name(n->role));
+        keel_roster_report_problem(
+            ld, given->mark,
+            "a preceptor is given but the role is %s; expected role: orientee, or no "
+            "preceptor",
+            keel_role_name(n->role));
     else if (k < 0)
-        report(ld, given->mark, "no nurse '%s' on this roster", show(shown, n->preceptor));
+        keel_roster_report_problem(ld, given->mark, "no nurse '%s' on this roster",
+                                   keel_roster_report_show(shown, n->preceptor));
     else if ((size_t)k == i || (n->id && strcmp(n->id, n->preceptor) == 0))
-        report(ld, given->mark,
-               "'%s' is this nurse's own id; expected the id of another nurse who is not an "
-               "orientee",
-               show(shown, n->preceptor));
+        keel_roster_report_problem(
+            ld, given->mark,
+            "'%s' is this nurse's own id; expected the id of another nurse who is not an "
+            "orientee",
+            keel_roster_report_show(shown, n->preceptor));
     else if (r->nurses[k].role == KEEL_ROLE_ORIENTEE)
-        report(ld, given->mark,
-               "nurse '%s' is an orientee too; expected a preceptor who is not an orientee",
-               show(shown, n->preceptor));
+        keel_roster_report_problem(
+            ld, given->mark,
+            "nurse '%s' is an orientee too; expected a preceptor who is not an orientee",
+            keel_roster_report_show(shown, n->preceptor));
 }
 
 static void check_nurses(loader *ld, const node *list)
@@ -2174,8 +1767,8 @@ static void check_acuity(loader *ld, size_t i, const node *item)
             return;
     format_levels(r, levels, sizeof levels);
     set_patient_path(ld, i, "acuity");
-    report(ld, find_value(item, "acuity")->mark, "level %d is not in policy.acuity_minutes (%s)",
-           p->acuity, levels);
+    keel_roster_report_problem(ld, keel_roster_tree_find(item, "acuity")->mark,
+                               "level %d is not in policy.acuity_minutes (%s)", p->acuity, levels);
 }
 
 /* Each entry of patients[i].nas is an item code of the instrument, each
@@ -2183,7 +1776,7 @@ static void check_acuity(loader *ld, size_t i, const node *item)
 static void check_nas(loader *ld, size_t i, const node *item)
 {
     const keel_patient *p = &ld->roster->patients[i];
-    const node *list = find_value(item, "nas");
+    const node *list = keel_roster_tree_find(item, "nas");
     keel_nas_sheet sheet;
     char message[256];
     if (!list || list->kind != NODE_SEQUENCE || p->nnas == 0)
@@ -2197,8 +1790,8 @@ static void check_nas(loader *ld, size_t i, const node *item)
             continue;
         keel_nas_problem_format(problem, p->nas[k], p->nas[earlier], message, sizeof message);
         set_patient_path(ld, i, "nas");
-        push_index(ld, k);
-        report(ld, list->items[k]->mark, "%s", message);
+        keel_roster_report_push_index(ld, k);
+        keel_roster_report_problem(ld, list->items[k]->mark, "%s", message);
     }
 }
 
@@ -2214,7 +1807,7 @@ static void check_extras(loader *ld, size_t i, const node *item)
 {
     const keel_roster *r = ld->roster;
     const keel_patient *p = &r->patients[i];
-    const node *list = find_value(item, "extras");
+    const node *list = keel_roster_tree_find(item, "extras");
     char shown[SHOWN_SIZE], names[256] = "";
     if (ld->extra_table == TABLE_BROKEN)
         return;
@@ -2227,14 +1820,16 @@ static void check_extras(loader *ld, size_t i, const node *item)
         if (!p->extras[e] || has_extra(r, p->extras[e]))
             continue;
         set_patient_path(ld, i, "extras");
-        push_index(ld, e);
+        keel_roster_report_push_index(ld, e);
         if (r->policy.nextras == 0)
-            report(ld, list->items[e]->mark,
-                   "unknown extra '%s'; expected a name from policy.extra_minutes, which has none",
-                   show(shown, p->extras[e]));
+            keel_roster_report_problem(
+                ld, list->items[e]->mark,
+                "unknown extra '%s'; expected a name from policy.extra_minutes, which has none",
+                keel_roster_report_show(shown, p->extras[e]));
         else
-            report(ld, list->items[e]->mark, "unknown extra '%s'; expected one of %s",
-                   show(shown, p->extras[e]), names);
+            keel_roster_report_problem(ld, list->items[e]->mark,
+                                       "unknown extra '%s'; expected one of %s",
+                                       keel_roster_report_show(shown, p->extras[e]), names);
     }
 }
 
@@ -2246,19 +1841,21 @@ static void check_patient_nurse(loader *ld, size_t i, const node *item)
     if (!p->nurse || r->nnurses == 0 || keel_roster_find_nurse(r, p->nurse) >= 0)
         return;
     set_patient_path(ld, i, "nurse");
-    report(ld, find_value(item, "nurse")->mark, "no nurse '%s' on this roster",
-           show(shown, p->nurse));
+    keel_roster_report_problem(ld, keel_roster_tree_find(item, "nurse")->mark,
+                               "no nurse '%s' on this roster",
+                               keel_roster_report_show(shown, p->nurse));
 }
 
 /* A locked patient keeps the nurse it names. */
 static void check_lock(loader *ld, size_t i, const node *item)
 {
-    if (!ld->roster->patients[i].lock || find_value(item, "nurse"))
+    if (!ld->roster->patients[i].lock || keel_roster_tree_find(item, "nurse"))
         return;
     set_patient_path(ld, i, "lock");
-    report(ld, find_value(item, "lock")->mark,
-           "lock: true without a nurse; a locked patient needs nurse: the id of the nurse who "
-           "keeps the patient");
+    keel_roster_report_problem(
+        ld, keel_roster_tree_find(item, "lock")->mark,
+        "lock: true without a nurse; a locked patient needs nurse: the id of the nurse who "
+        "keeps the patient");
 }
 
 /* Every nurse a patient avoids is on the roster, and a locked patient is
@@ -2268,22 +1865,23 @@ static void check_avoid(loader *ld, size_t i, const node *item)
 {
     const keel_roster *r = ld->roster;
     const keel_patient *p = &r->patients[i];
-    const node *list = find_value(item, "avoid");
+    const node *list = keel_roster_tree_find(item, "avoid");
     char shown[SHOWN_SIZE];
     for (size_t a = 0; a < p->navoid; a++) {
         if (!p->avoid[a])
             continue;
         if (keel_roster_find_nurse(r, p->avoid[a]) < 0) {
             set_patient_path(ld, i, "avoid");
-            push_index(ld, a);
-            report(ld, list->items[a]->mark, "no nurse '%s' on this roster",
-                   show(shown, p->avoid[a]));
+            keel_roster_report_push_index(ld, a);
+            keel_roster_report_problem(ld, list->items[a]->mark, "no nurse '%s' on this roster",
+                                       keel_roster_report_show(shown, p->avoid[a]));
         } else if (p->lock && p->nurse && strcmp(p->nurse, p->avoid[a]) == 0) {
             set_patient_path(ld, i, "nurse");
-            report(ld, find_value(item, "nurse")->mark,
-                   "the patient is locked to '%s', who is on its avoid list (avoid[%zu] on line "
-                   "%d); expected a nurse the patient does not avoid",
-                   show(shown, p->nurse), a, list->items[a]->mark.line);
+            keel_roster_report_problem(
+                ld, keel_roster_tree_find(item, "nurse")->mark,
+                "the patient is locked to '%s', who is on its avoid list (avoid[%zu] on line "
+                "%d); expected a nurse the patient does not avoid",
+                keel_roster_report_show(shown, p->nurse), a, list->items[a]->mark.line);
         }
     }
 }
@@ -2292,17 +1890,19 @@ static void check_avoid(loader *ld, size_t i, const node *item)
  * patients and the expected admissions. */
 static void check_unique_patient_id(loader *ld, size_t i)
 {
-    const node *id = find_value(patient_item(ld, i), "id");
+    const node *id = keel_roster_tree_find(patient_item(ld, i), "id");
     char shown[SHOWN_SIZE];
-    if (!id || id->kind != NODE_SCALAR || is_null(id) || is_placeholder(id))
+    if (!id || id->kind != NODE_SCALAR || keel_roster_tree_is_null(id) ||
+        keel_roster_tree_is_placeholder(id))
         return;
     for (size_t j = 0; j < i; j++) {
-        const node *other = find_value(patient_item(ld, j), "id");
-        if (other && other->kind == NODE_SCALAR && !is_null(other) &&
+        const node *other = keel_roster_tree_find(patient_item(ld, j), "id");
+        if (other && other->kind == NODE_SCALAR && !keel_roster_tree_is_null(other) &&
             strcmp(other->text, id->text) == 0) {
             set_patient_path(ld, i, "id");
-            report(ld, id->mark, "patient id '%s' is already used on line %d; expected a unique id",
-                   show(shown, id->text), other->mark.line);
+            keel_roster_report_problem(
+                ld, id->mark, "patient id '%s' is already used on line %d; expected a unique id",
+                keel_roster_report_show(shown, id->text), other->mark.line);
             return;
         }
     }
@@ -2315,10 +1915,11 @@ static void check_patients(loader *ld)
         if (item->kind != NODE_MAPPING)
             continue;
         check_unique_patient_id(ld, i);
-        if (!find_value(item, "acuity") && !find_value(item, "care_minutes") &&
-            !find_value(item, "nas")) {
+        if (!keel_roster_tree_find(item, "acuity") &&
+            !keel_roster_tree_find(item, "care_minutes") && !keel_roster_tree_find(item, "nas")) {
             set_patient_path(ld, i, "acuity");
-            report(ld, item->mark, "missing; every patient needs acuity, care_minutes or nas");
+            keel_roster_report_problem(ld, item->mark,
+                                       "missing; every patient needs acuity, care_minutes or nas");
         }
         check_acuity(ld, i, item);
         check_nas(ld, i, item);
@@ -2337,7 +1938,7 @@ static void check_patients(loader *ld)
 static void check_acuity_scale(loader *ld, const node *root)
 {
     const keel_roster *r = ld->roster;
-    const node *policy = find_value(root, "policy");
+    const node *policy = keel_roster_tree_find(root, "policy");
     if (ld->acuity_table != TABLE_ABSENT)
         return;
     for (size_t i = 0; i < r->npatients; i++) {
@@ -2346,13 +1947,14 @@ static void check_acuity_scale(loader *ld, const node *root)
         set_patient_path(ld, i, NULL);
         char entry[MAX_PATH];
         snprintf(entry, sizeof entry, "%s", ld->path);
-        pop_path(ld, 0);
-        push_key(ld, "policy");
-        push_key(ld, "acuity_minutes");
-        report(ld, policy ? policy->mark : root->mark,
-               "missing, but %s on line %d gives an acuity level; expected care minutes per "
-               "level, as keel has no acuity scale of its own",
-               entry, find_value(patient_item(ld, i), "acuity")->mark.line);
+        keel_roster_report_pop_path(ld, 0);
+        keel_roster_report_push_key(ld, "policy");
+        keel_roster_report_push_key(ld, "acuity_minutes");
+        keel_roster_report_problem(
+            ld, policy ? policy->mark : root->mark,
+            "missing, but %s on line %d gives an acuity level; expected care minutes per "
+            "level, as keel has no acuity scale of its own",
+            entry, keel_roster_tree_find(patient_item(ld, i), "acuity")->mark.line);
         return;
     }
 }
@@ -2366,10 +1968,11 @@ static void check_not_looser(loader *ld, const node *at, int value, const char *
     int law = keel_law_nurse_max(t, r->unit.type);
     if (law < 0 || value == KEEL_ABSENT || value <= law)
         return;
-    report(ld, at->mark,
-           "%s%d is looser than the %s table (%s, 1:%d for %s as encoded on %s); expected at "
-           "most %d",
-           what, value, t->name, t->citation, law, r->unit.type, t->encoded, law);
+    keel_roster_report_problem(
+        ld, at->mark,
+        "%s%d is looser than the %s table (%s, 1:%d for %s as encoded on %s); expected at "
+        "most %d",
+        what, value, t->name, t->citation, law, r->unit.type, t->encoded, law);
 }
 
 /* policy.ratio_table needs a unit type it covers (and, for a table that
@@ -2379,7 +1982,7 @@ static void check_ratio_table(loader *ld, const node *root)
 {
     const keel_roster *r = ld->roster;
     const keel_law_table *t = r->policy.ratio_table;
-    const node *policy = find_value(root, "policy");
+    const node *policy = keel_roster_tree_find(root, "policy");
     char covered[256] = "";
     if (!t)
         return;
@@ -2390,75 +1993,79 @@ static void check_ratio_table(loader *ld, const node *root)
                  t->entries[i].unit_type);
         used = strlen(covered);
     }
-    pop_path(ld, 0);
-    push_key(ld, "policy");
-    push_key(ld, "ratio_table");
-    const node *at = find_value(policy, "ratio_table");
+    keel_roster_report_pop_path(ld, 0);
+    keel_roster_report_push_key(ld, "policy");
+    keel_roster_report_push_key(ld, "ratio_table");
+    const node *at = keel_roster_tree_find(policy, "ratio_table");
     if (!r->unit.type) {
-        report(ld, at->mark,
-               "the %s table needs unit.type to know which entry applies; expected unit.type, "
-               "one of %s",
-               t->name, covered);
+        keel_roster_report_problem(
+            ld, at->mark,
+            "the %s table needs unit.type to know which entry applies; expected unit.type, "
+            "one of %s",
+            t->name, covered);
         return;
     }
     if (!keel_law_covers(t, r->unit.type)) {
-        report(ld, at->mark,
-               "the %s table as encoded on %s has no entry for unit type '%s'; expected a unit "
-               "of type %s, or no ratio_table",
-               t->name, t->encoded, r->unit.type, covered);
+        keel_roster_report_problem(
+            ld, at->mark,
+            "the %s table as encoded on %s has no entry for unit type '%s'; expected a unit "
+            "of type %s, or no ratio_table",
+            t->name, t->encoded, r->unit.type, covered);
         return;
     }
     if (t->classes && r->shift.start_minute == KEEL_ABSENT)
-        report(ld, at->mark,
-               "the %s table differs by shift (%s); expected shift.start to tell which applies",
-               t->name, t->classes);
+        keel_roster_report_problem(
+            ld, at->mark,
+            "the %s table differs by shift (%s); expected shift.start to tell which applies",
+            t->name, t->classes);
     if (r->policy.max_patients != KEEL_ABSENT) {
-        pop_path(ld, 0);
-        push_key(ld, "policy");
-        push_key(ld, "max_patients");
-        check_not_looser(ld, find_value(policy, "max_patients"), r->policy.max_patients,
+        keel_roster_report_pop_path(ld, 0);
+        keel_roster_report_push_key(ld, "policy");
+        keel_roster_report_push_key(ld, "max_patients");
+        check_not_looser(ld, keel_roster_tree_find(policy, "max_patients"), r->policy.max_patients,
                          "max_patients ");
     }
-    const node *roles = find_value(policy, "roles");
+    const node *roles = keel_roster_tree_find(policy, "roles");
     for (size_t i = 0; roles && roles->kind == NODE_MAPPING && i + 1 < roles->nitems; i += 2) {
-        const node *key = roles->items[i], *limit = find_value(roles->items[i + 1], "max_patients");
+        const node *key = roles->items[i],
+                   *limit = keel_roster_tree_find(roles->items[i + 1], "max_patients");
         long value;
         if (!limit || !scan_int(limit, &value) || key->kind != NODE_SCALAR)
             continue;
-        pop_path(ld, 0);
-        push_key(ld, "policy");
-        push_key(ld, "roles");
-        push_key(ld, key->text);
-        push_key(ld, "max_patients");
+        keel_roster_report_pop_path(ld, 0);
+        keel_roster_report_push_key(ld, "policy");
+        keel_roster_report_push_key(ld, "roles");
+        keel_roster_report_push_key(ld, key->text);
+        keel_roster_report_push_key(ld, "max_patients");
         check_not_looser(ld, limit, (int)value, "max_patients ");
     }
-    const node *nurses = find_value(root, "nurses");
+    const node *nurses = keel_roster_tree_find(root, "nurses");
     for (size_t i = 0; i < r->nnurses; i++) {
         if (r->nurses[i].max_patients == KEEL_ABSENT)
             continue;
-        set_path(ld, "nurses", i, "max_patients");
-        check_not_looser(ld, find_value(nurses->items[i], "max_patients"),
+        keel_roster_report_set_path(ld, "nurses", i, "max_patients");
+        check_not_looser(ld, keel_roster_tree_find(nurses->items[i], "max_patients"),
                          r->nurses[i].max_patients, "max_patients ");
     }
     for (size_t i = 0; i < r->npatients; i++) {
         if (r->patients[i].ratio == KEEL_ABSENT)
             continue;
         set_patient_path(ld, i, "ratio");
-        check_not_looser(ld, find_value(patient_item(ld, i), "ratio"), r->patients[i].ratio,
-                         "ratio 1:");
+        check_not_looser(ld, keel_roster_tree_find(patient_item(ld, i), "ratio"),
+                         r->patients[i].ratio, "ratio 1:");
     }
 }
 
 static void check_roster(loader *ld, const node *root)
 {
-    const node *nurses = find_value(root, "nurses");
-    const node *policy = find_value(root, "policy");
+    const node *nurses = keel_roster_tree_find(root, "nurses");
+    const node *policy = keel_roster_tree_find(root, "policy");
     if (policy && policy->kind != NODE_MAPPING) {
         ld->acuity_table = TABLE_BROKEN;
         ld->extra_table = TABLE_BROKEN;
     }
-    ld->patient_list = find_value(root, "patients");
-    ld->expected_list = find_value(root, "expected_admissions");
+    ld->patient_list = keel_roster_tree_find(root, "patients");
+    ld->expected_list = keel_roster_tree_find(root, "expected_admissions");
     merge_expected(ld);
     convert_times(ld, root);
     check_shift_break(ld, root);
@@ -2469,7 +2076,7 @@ static void check_roster(loader *ld, const node *root)
         check_acuity_scale(ld, root);
     }
     check_ratio_table(ld, root);
-    pop_path(ld, 0);
+    keel_roster_report_pop_path(ld, 0);
 }
 
 /* ---------------------------------------------------------------------------
@@ -2599,28 +2206,25 @@ keel_status keel_roster_parse(const char *name, const char *text, size_t len, ke
                  .len = len,
                  .err = err,
                  .first_problem = err ? err->nproblems : 0};
-    yaml_parser_t parser;
     node *root = NULL;
     if (!out || !name || (!text && len))
         return keel_error_add(err, KEEL_ERR_USAGE, NULL, 0, 0, NULL,
                               "keel_roster_parse: out, name and text are required");
     *out = NULL;
     ld.roster = new_roster(name);
-    if (!ld.roster || !yaml_parser_initialize(&parser)) {
+    if (!ld.roster) {
         ld.nomem = true;
         return finish(&ld, ld.roster, out);
     }
-    yaml_parser_set_input_string(&parser, (const unsigned char *)(text ? text : ""), len);
-    if (read_document(&ld, &parser, &root)) {
-        check_plain_yaml(&ld, root);
+    if (keel_roster_tree_read(&ld, &root)) {
         if (root->kind != NODE_MAPPING)
-            report_type(&ld, root, "a mapping with the keys shift, nurses and patients");
+            keel_roster_tree_report_type(&ld, root,
+                                         "a mapping with the keys shift, nurses and patients");
         else
             walk_mapping(&ld, root, roster_keys, ARRAY_LEN(roster_keys), ld.roster);
         check_roster(&ld, root);
     }
-    yaml_parser_delete(&parser);
-    free_node(root);
+    keel_roster_tree_free(root);
     return finish(&ld, ld.roster, out);
 }
 
