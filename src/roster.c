@@ -7,7 +7,7 @@
  * Two steps.  read_document() turns libyaml's event stream into a small
  * owned tree of nodes (scalar, sequence, mapping) that keeps each node's
  * 1-based position and whether a scalar was quoted; anchors, aliases and
- * tags are reported, never expanded.  walk_mapping() then checks a mapping
+ * tags are reported, never expanded.  keel_roster_walk_mapping() then checks a mapping
  * against a table of keys, one row per key naming its parser, so a new key
  * is one new row.  Checks that need the whole file (unique ids, references,
  * limits that depend on the shift) run after the walk, on the filled roster.
@@ -38,285 +38,14 @@
 #include "roster_loader.h"
 
 enum {
-    MAX_KEYS = 24, /* rows in one key table */
     MAX_PATIENTS = 99,
     MAX_LEVEL = 99,
     MAX_UTILISATION = 10 * KEEL_TOLERANCE_SCALE, /* policy.max_utilisation, in millionths */
 };
 
-/* ---------------------------------------------------------------------------
- * Scalar values
- */
-
-/* Reads a plain decimal integer; values beyond a billion saturate, which
- * every range check rejects.  False when n is not an integer. */
-static bool scan_int(const node *n, long *out)
-{
-    if (n->kind != NODE_SCALAR || n->quoted)
-        return false;
-    const char *s = n->text;
-    bool negative = *s == '-';
-    if (*s == '-' || *s == '+')
-        s++;
-    if (!*s)
-        return false;
-    long value = 0;
-    for (; *s; s++) {
-        if (*s < '0' || *s > '9')
-            return false;
-        if (value < 1000000000L)
-            value = value * 10 + (*s - '0');
-    }
-    *out = negative ? -value : value;
-    return true;
-}
-
-/* Reads an integer in [min, max] into *out; reports and returns false if n
- * is not one. */
-static bool read_int(loader *ld, const node *n, int min, int max, int *out)
-{
-    long value;
-    char shown[SHOWN_SIZE];
-    if (!scan_int(n, &value)) {
-        keel_roster_tree_report_type(ld, n, "an integer");
-        return false;
-    }
-    if (value < min || value > max) {
-        keel_roster_report_problem(ld, n->mark,
-                                   "%s is out of range; expected an integer from %d to %d",
-                                   keel_roster_report_show(shown, n->text), min, max);
-        return false;
-    }
-    *out = (int)value;
-    return true;
-}
-
-/* Copies a non-empty string into *out (NULL if n is not one, reported). */
-static bool read_string(loader *ld, const node *n, char **out)
-{
-    *out = NULL;
-    if (n->kind != NODE_SCALAR || keel_roster_tree_is_null(n) ||
-        keel_roster_tree_is_placeholder(n)) {
-        keel_roster_tree_report_type(ld, n, "a string");
-        return false;
-    }
-    if (n->text[0] == '\0') {
-        keel_roster_report_problem(ld, n->mark,
-                                   "found an empty string; expected a non-empty string");
-        return false;
-    }
-    *out = keel_strdup(n->text);
-    if (!*out)
-        ld->nomem = true;
-    return *out != NULL;
-}
-
-/* Minutes after midnight of "H:MM" or "HH:MM", or -1. */
-static int scan_clock(const char *s)
-{
-    size_t hour_digits = strspn(s, "0123456789");
-    if (hour_digits < 1 || hour_digits > 2 || s[hour_digits] != ':')
-        return -1;
-    const char *m = s + hour_digits + 1;
-    if (strspn(m, "0123456789") != 2 || m[2] != '\0')
-        return -1;
-    int hours = atoi(s), minutes = (m[0] - '0') * 10 + (m[1] - '0');
-    if (hours > 23 || minutes > 59)
-        return -1;
-    return hours * 60 + minutes;
-}
-
-/* True when s is YYYY-MM-DD and names a day of the Gregorian calendar. */
-static bool is_calendar_date(const char *s)
-{
-    static const int days[] = {31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31};
-    if (strlen(s) != 10 || s[4] != '-' || s[7] != '-')
-        return false;
-    for (int i = 0; i < 10; i++)
-        if (i != 4 && i != 7 && (s[i] < '0' || s[i] > '9'))
-            return false;
-    int year = atoi(s), month = atoi(s + 5), day = atoi(s + 8);
-    bool leap = (year % 4 == 0 && year % 100 != 0) || year % 400 == 0; /* Gregorian */
-    if (year < 1 || month < 1 || month > 12 || day < 1)
-        return false;
-    return day <= days[month - 1] + (month == 2 && leap);
-}
-
-/* ---------------------------------------------------------------------------
- * Key tables and the mapping walker
- */
-
-typedef struct key_rule key_rule;
-
-/* Checks value and stores it into target as the rule says. */
-typedef void (*parse_fn)(loader *ld, const node *value, void *target, const key_rule *rule);
-
-struct key_rule {
-    const char *name;
-    parse_fn parse;
-    size_t offset;        /* the field of target that the parser fills */
-    size_t count_offset;  /* lists: the size_t that counts the entries */
-    int min, max;         /* integers: the documented range */
-    const key_rule *keys; /* nested mappings: their key table */
-    size_t nkeys;
-    const char *need;    /* required keys: why, for the "missing" message */
-    const char *refused; /* a key of a sibling table that is not allowed here: why */
-};
-
 static void *field_of(void *target, size_t offset)
 {
     return (char *)target + offset;
-}
-
-/* Optimal string alignment distance of a and b (both at most MAX_SUGGEST). */
-static size_t edit_distance(const char *a, const char *b)
-{
-    size_t la = strlen(a), lb = strlen(b);
-    size_t d[MAX_SUGGEST + 1][MAX_SUGGEST + 1];
-    for (size_t i = 0; i <= la; i++)
-        d[i][0] = i;
-    for (size_t j = 0; j <= lb; j++)
-        d[0][j] = j;
-    for (size_t i = 1; i <= la; i++) {
-        for (size_t j = 1; j <= lb; j++) {
-            size_t best = d[i - 1][j - 1] + (a[i - 1] != b[j - 1]);
-            if (d[i - 1][j] + 1 < best)
-                best = d[i - 1][j] + 1;
-            if (d[i][j - 1] + 1 < best)
-                best = d[i][j - 1] + 1;
-            if (i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1] &&
-                d[i - 2][j - 2] + 1 < best)
-                best = d[i - 2][j - 2] + 1;
-            d[i][j] = best;
-        }
-    }
-    return d[la][lb];
-}
-
-/* True when candidate is closer to word than *best_distance and close
- * enough to be a typo of it; then *best_distance becomes its distance. */
-static bool is_closer(const char *word, const char *candidate, size_t *best_distance)
-{
-    size_t distance = edit_distance(word, candidate);
-    size_t longer = strlen(word) > strlen(candidate) ? strlen(word) : strlen(candidate);
-    if (distance >= *best_distance || 3 * distance > longer)
-        return false;
-    *best_distance = distance;
-    return true;
-}
-
-/* The valid key closest to word, when it is close enough to be a typo. */
-static const char *suggest_key(const char *word, const key_rule *keys, size_t nkeys)
-{
-    const char *best = NULL;
-    size_t best_distance = 3;
-    if (strlen(word) > MAX_SUGGEST)
-        return NULL;
-    for (size_t i = 0; i < nkeys; i++)
-        if (!keys[i].refused && is_closer(word, keys[i].name, &best_distance))
-            best = keys[i].name;
-    return best;
-}
-
-/* True when a and b are the same ASCII text, ignoring case. */
-static bool same_ignoring_case(const char *a, const char *b)
-{
-    for (; *a && *b; a++, b++) {
-        char x = *a >= 'A' && *a <= 'Z' ? (char)(*a - 'A' + 'a') : *a;
-        char y = *b >= 'A' && *b <= 'Z' ? (char)(*b - 'A' + 'a') : *b;
-        if (x != y)
-            return false;
-    }
-    return *a == *b;
-}
-
-/* The word of words[0..nwords) closest to word: one that differs only in
- * case, else one close enough to be a typo; NULL when none is. */
-static const char *suggest_word(const char *word, const char *const *words, size_t nwords)
-{
-    const char *best = NULL;
-    size_t best_distance = 3;
-    for (size_t i = 0; i < nwords; i++)
-        if (same_ignoring_case(word, words[i]))
-            return words[i];
-    if (strlen(word) > MAX_SUGGEST)
-        return NULL;
-    for (size_t i = 0; i < nwords; i++)
-        if (is_closer(word, words[i], &best_distance))
-            best = words[i];
-    return best;
-}
-
-static void report_unknown_key(loader *ld, const node *key, const key_rule *keys, size_t nkeys)
-{
-    const char *suggestion = suggest_key(key->text, keys, nkeys);
-    char names[MAX_KEYS * 20] = "";
-    if (suggestion) {
-        keel_roster_report_problem(ld, key->mark, "unknown key; did you mean '%s'?", suggestion);
-        return;
-    }
-    for (size_t i = 0; i < nkeys; i++) {
-        if (keys[i].refused)
-            continue;
-        strcat(names, names[0] ? ", " : "");
-        strcat(names, keys[i].name);
-    }
-    keel_roster_report_problem(ld, key->mark, "unknown key; expected one of %s", names);
-}
-
-/* True when key can name something: a scalar with text (reported if not). */
-static bool check_key(loader *ld, const node *key)
-{
-    char what[SHOWN_SIZE + 16];
-    if (key->kind == NODE_SCALAR && !keel_roster_tree_is_null(key) && key->text[0] != '\0')
-        return true;
-    if (key->kind != NODE_ALIAS)
-        keel_roster_report_problem(ld, key->mark, "found %s as a key; expected a name",
-                                   keel_roster_tree_describe(key, what, sizeof what));
-    return false;
-}
-
-/* Checks that map is a mapping whose keys are in the table, each at most
- * once, with every required key present; hands each value to its parser. */
-static void walk_mapping(loader *ld, const node *map, const key_rule *keys, size_t nkeys,
-                         void *target)
-{
-    const node *seen[MAX_KEYS] = {NULL};
-    assert(nkeys <= MAX_KEYS);
-    if (map->kind != NODE_MAPPING) {
-        keel_roster_tree_report_type(ld, map, "a mapping");
-        return;
-    }
-    for (size_t i = 0; i + 1 < map->nitems; i += 2) {
-        const node *key = map->items[i], *value = map->items[i + 1];
-        const key_rule *rule = NULL;
-        if (!check_key(ld, key))
-            continue;
-        for (size_t r = 0; r < nkeys && !rule; r++)
-            if (strcmp(keys[r].name, key->text) == 0)
-                rule = &keys[r];
-        size_t old = keel_roster_report_push_key(ld, key->text);
-        if (!rule) {
-            report_unknown_key(ld, key, keys, nkeys);
-        } else if (rule->refused) {
-            keel_roster_report_problem(ld, key->mark, "%s", rule->refused);
-        } else if (seen[rule - keys]) {
-            keel_roster_report_problem(ld, key->mark,
-                                       "given twice (first on line %d); expected each key once",
-                                       seen[rule - keys]->mark.line);
-        } else {
-            seen[rule - keys] = key;
-            rule->parse(ld, value, target, rule);
-        }
-        keel_roster_report_pop_path(ld, old);
-    }
-    for (size_t r = 0; r < nkeys; r++) {
-        if (keys[r].need && !seen[r]) {
-            size_t old = keel_roster_report_push_key(ld, keys[r].name);
-            keel_roster_report_problem(ld, map->mark, "missing; %s", keys[r].need);
-            keel_roster_report_pop_path(ld, old);
-        }
-    }
 }
 
 /* ---------------------------------------------------------------------------
@@ -325,13 +54,13 @@ static void walk_mapping(loader *ld, const node *map, const key_rule *keys, size
 
 static void parse_string(loader *ld, const node *value, void *target, const key_rule *rule)
 {
-    read_string(ld, value, field_of(target, rule->offset));
+    keel_roster_words_read_string(ld, value, field_of(target, rule->offset));
 }
 
 static void parse_int(loader *ld, const node *value, void *target, const key_rule *rule)
 {
     int number;
-    if (read_int(ld, value, rule->min, rule->max, &number))
+    if (keel_roster_words_read_int(ld, value, rule->min, rule->max, &number))
         *(int *)field_of(target, rule->offset) = number;
 }
 
@@ -353,7 +82,7 @@ static void read_names(loader *ld, const node *value, char ***names, size_t *cou
     *count = value->nitems;
     for (size_t i = 0; i < value->nitems; i++) {
         size_t old = keel_roster_report_push_index(ld, i);
-        if (read_string(ld, value->items[i], &(*names)[i]) && once) {
+        if (keel_roster_words_read_string(ld, value->items[i], &(*names)[i]) && once) {
             for (size_t j = 0; j < i; j++) {
                 if ((*names)[j] && strcmp((*names)[j], (*names)[i]) == 0) {
                     keel_roster_report_problem(
@@ -386,7 +115,7 @@ static void parse_handoffs(loader *ld, const node *value, void *target, const ke
 
 static void parse_section(loader *ld, const node *value, void *target, const key_rule *rule)
 {
-    walk_mapping(ld, value, rule->keys, rule->nkeys, target);
+    keel_roster_walk_mapping(ld, value, rule->keys, rule->nkeys, target);
 }
 
 static void parse_version(loader *ld, const node *value, void *target, const key_rule *rule)
@@ -395,7 +124,7 @@ static void parse_version(loader *ld, const node *value, void *target, const key
     char shown[SHOWN_SIZE];
     (void)target;
     (void)rule;
-    if (!scan_int(value, &version))
+    if (!keel_roster_words_scan_int(value, &version))
         keel_roster_tree_report_type(ld, value, "the integer 1");
     else if (version != 1)
         keel_roster_report_problem(ld, value->mark, "%s is not supported; expected 1",
@@ -404,7 +133,7 @@ static void parse_version(loader *ld, const node *value, void *target, const key
 
 static void parse_clock(loader *ld, const node *value, void *target, const key_rule *rule)
 {
-    int minute = value->kind == NODE_SCALAR ? scan_clock(value->text) : -1;
+    int minute = value->kind == NODE_SCALAR ? keel_roster_words_scan_clock(value->text) : -1;
     if (minute < 0)
         keel_roster_tree_report_type(ld, value, "a time of day from 00:00 to 23:59");
     else
@@ -422,7 +151,7 @@ static void parse_time(loader *ld, const node *value, void *target, const key_ru
 static void parse_date(loader *ld, const node *value, void *target, const key_rule *rule)
 {
     char **date = field_of(target, rule->offset);
-    if (value->kind != NODE_SCALAR || !is_calendar_date(value->text)) {
+    if (value->kind != NODE_SCALAR || !keel_roster_words_is_date(value->text)) {
         keel_roster_tree_report_type(ld, value, "a calendar date as YYYY-MM-DD");
         return;
     }
@@ -443,92 +172,12 @@ static const char *const licence_names[] = {"rn", "lpn"};
 static const char *const isolation_names[KEEL_NISOLATION] = {"none", "contact", "droplet",
                                                              "airborne", "protective"};
 
-/* Titles of unlicensed assistive staff, who take no assignment of their own
- * (common practice, no source).  Compared ignoring case; a title that
- * contains one of the stems also counts. */
-static const char *const unlicensed_titles[] = {"cna", "uap", "pct", "hca", "sitter", "tech"};
-static const char *const unlicensed_stems[] = {"assistant", "aide", "technician"};
-
-static bool contains_ignoring_case(const char *text, const char *stem)
-{
-    size_t n = strlen(stem);
-    for (; strlen(text) >= n; text++) {
-        size_t i = 0;
-        while (i < n && (text[i] | 0x20) == stem[i])
-            i++;
-        if (i == n)
-            return true;
-    }
-    return false;
-}
-
-static bool names_unlicensed_staff(const char *word)
-{
-    for (size_t i = 0; i < ARRAY_LEN(unlicensed_titles); i++)
-        if (same_ignoring_case(word, unlicensed_titles[i]))
-            return true;
-    for (size_t i = 0; i < ARRAY_LEN(unlicensed_stems); i++)
-        if (contains_ignoring_case(word, unlicensed_stems[i]))
-            return true;
-    return false;
-}
-
-/* Writes words[0..nwords) as "a, b, c" into buf. */
-static const char *join_words(char *buf, size_t size, const char *const *words, size_t nwords)
-{
-    size_t used = 0;
-    buf[0] = '\0';
-    for (size_t i = 0; i < nwords && used < size; i++) {
-        snprintf(buf + used, size - used, "%s%s", i ? ", " : "", words[i]);
-        used = strlen(buf);
-    }
-    return buf;
-}
-
-/* Reads n, which must be one of words[0..nwords), into *index.  what names
- * the word in messages ("role"); for nurses' roles and licences a word that
- * names unlicensed staff gets its own message.  Reports and returns false
- * when n is not one of the words. */
-static bool read_word(loader *ld, const node *n, const char *what, const char *const *words,
-                      size_t nwords, bool of_nurse, int *index)
-{
-    char shown[SHOWN_SIZE], names[256];
-    if (keel_roster_tree_is_placeholder(n))
-        return false;
-    join_words(names, sizeof names, words, nwords);
-    if (n->kind != NODE_SCALAR || keel_roster_tree_is_null(n) || n->text[0] == '\0') {
-        char expected[sizeof names + 16];
-        snprintf(expected, sizeof expected, "one of %s", names);
-        keel_roster_tree_report_type(ld, n, expected);
-        return false;
-    }
-    for (size_t i = 0; i < nwords; i++) {
-        if (strcmp(n->text, words[i]) == 0) {
-            *index = (int)i;
-            return true;
-        }
-    }
-    const char *suggestion = suggest_word(n->text, words, nwords);
-    if (of_nurse && names_unlicensed_staff(n->text))
-        keel_roster_report_problem(
-            ld, n->mark,
-            "'%s' names unlicensed staff, who do not belong under nurses; expected one of %s",
-            keel_roster_report_show(shown, n->text), names);
-    else if (suggestion)
-        keel_roster_report_problem(ld, n->mark,
-                                   "unknown %s '%s'; did you mean '%s'? expected one of %s", what,
-                                   keel_roster_report_show(shown, n->text), suggestion, names);
-    else
-        keel_roster_report_problem(ld, n->mark, "unknown %s '%s'; expected one of %s", what,
-                                   keel_roster_report_show(shown, n->text), names);
-    return false;
-}
-
 static void parse_unit_type(loader *ld, const node *value, void *target, const key_rule *rule)
 {
     char **type = field_of(target, rule->offset);
     int index;
-    if (!read_word(ld, value, "unit type", unit_types, ARRAY_LEN(unit_types), false, &index))
+    if (!keel_roster_words_read_word(ld, value, "unit type", unit_types, ARRAY_LEN(unit_types),
+                                     false, &index))
         return;
     *type = keel_strdup(unit_types[index]);
     if (!*type)
@@ -538,14 +187,15 @@ static void parse_unit_type(loader *ld, const node *value, void *target, const k
 static void parse_role(loader *ld, const node *value, void *target, const key_rule *rule)
 {
     int index;
-    if (read_word(ld, value, "role", role_names, KEEL_NROLES, true, &index))
+    if (keel_roster_words_read_word(ld, value, "role", role_names, KEEL_NROLES, true, &index))
         *(keel_role *)field_of(target, rule->offset) = (keel_role)index;
 }
 
 static void parse_licence(loader *ld, const node *value, void *target, const key_rule *rule)
 {
     int index;
-    if (read_word(ld, value, "licence", licence_names, ARRAY_LEN(licence_names), true, &index))
+    if (keel_roster_words_read_word(ld, value, "licence", licence_names, ARRAY_LEN(licence_names),
+                                    true, &index))
         *(keel_licence *)field_of(target, rule->offset) = (keel_licence)index;
 }
 
@@ -564,7 +214,8 @@ static void parse_bool(loader *ld, const node *value, void *target, const key_ru
 static void parse_isolation(loader *ld, const node *value, void *target, const key_rule *rule)
 {
     int index;
-    if (read_word(ld, value, "precaution", isolation_names + 1, KEEL_NISOLATION - 1, false, &index))
+    if (keel_roster_words_read_word(ld, value, "precaution", isolation_names + 1,
+                                    KEEL_NISOLATION - 1, false, &index))
         *(keel_isolation *)field_of(target, rule->offset) = (keel_isolation)(index + 1);
 }
 
@@ -590,7 +241,7 @@ static void parse_ratio_table(loader *ld, const node *value, void *target, const
     int index;
     for (size_t i = 0; i < count && i < ARRAY_LEN(names); i++)
         names[i] = keel_law_table_at(i)->name;
-    if (read_word(ld, value, "ratio table", names, count, false, &index))
+    if (keel_roster_words_read_word(ld, value, "ratio table", names, count, false, &index))
         *(const keel_law_table **)field_of(target, rule->offset) = keel_law_table_at((size_t)index);
 }
 
@@ -639,7 +290,8 @@ const char *keel_balance_name(keel_balance balance)
 static void parse_balance(loader *ld, const node *value, void *target, const key_rule *rule)
 {
     int index;
-    if (read_word(ld, value, "balance", balance_names, ARRAY_LEN(balance_names), false, &index))
+    if (keel_roster_words_read_word(ld, value, "balance", balance_names, ARRAY_LEN(balance_names),
+                                    false, &index))
         *(keel_balance *)field_of(target, rule->offset) = (keel_balance)index;
 }
 
@@ -669,7 +321,7 @@ static void parse_isolation_needs(loader *ld, const node *value, void *target, c
     for (size_t i = 0; i + 1 < value->nitems; i += 2) {
         const node *key = value->items[i], *first = NULL;
         int kind;
-        if (!check_key(ld, key))
+        if (!keel_roster_walk_check_key(ld, key))
             continue;
         size_t old = keel_roster_report_push_key(ld, key->text);
         first = earlier_key(value, i);
@@ -677,8 +329,8 @@ static void parse_isolation_needs(loader *ld, const node *value, void *target, c
             keel_roster_report_problem(
                 ld, key->mark, "given twice (first on line %d); expected each precaution once",
                 first->mark.line);
-        } else if (read_word(ld, key, "precaution", isolation_names + 1, KEEL_NISOLATION - 1, false,
-                             &kind)) {
+        } else if (keel_roster_words_read_word(ld, key, "precaution", isolation_names + 1,
+                                               KEEL_NISOLATION - 1, false, &kind)) {
             key_rule names = {.offset = offsetof(keel_roster, policy.isolation_needs) +
                                         (size_t)(kind + 1) * sizeof(char **),
                               .count_offset = offsetof(keel_roster, policy.nisolation_needs) +
@@ -700,7 +352,7 @@ static int find_level_line(const node *map, size_t end, long level)
 {
     long other;
     for (size_t i = 0; i < end; i += 2)
-        if (scan_int(map->items[i], &other) && other == level)
+        if (keel_roster_words_scan_int(map->items[i], &other) && other == level)
             return map->items[i]->mark.line;
     return 0;
 }
@@ -732,11 +384,11 @@ static void parse_acuity_table(loader *ld, const node *value, void *target, cons
         const node *key = value->items[i];
         long level;
         int first;
-        if (!check_key(ld, key))
+        if (!keel_roster_walk_check_key(ld, key))
             continue;
         size_t old = keel_roster_report_push_key(ld, key->text);
         keel_acuity_level entry = {.minutes = KEEL_ABSENT};
-        if (!scan_int(key, &level) || level < 0 || level > MAX_LEVEL) {
+        if (!keel_roster_words_scan_int(key, &level) || level < 0 || level > MAX_LEVEL) {
             keel_roster_report_problem(ld, key->mark,
                                        "level '%s' is not valid; expected an integer from 0 to %d",
                                        keel_roster_report_show(shown, key->text), MAX_LEVEL);
@@ -746,7 +398,7 @@ static void parse_acuity_table(loader *ld, const node *value, void *target, cons
                 level, first);
         } else {
             entry.level = (int)level;
-            read_int(ld, value->items[i + 1], 0, MINUTES_PER_DAY, &entry.minutes);
+            keel_roster_words_read_int(ld, value->items[i + 1], 0, MINUTES_PER_DAY, &entry.minutes);
             r->policy.acuity_minutes[r->policy.nacuity++] = entry;
         }
         keel_roster_report_pop_path(ld, old);
@@ -775,7 +427,7 @@ static void parse_extra_table(loader *ld, const node *value, void *target, const
     for (size_t i = 0; i + 1 < value->nitems; i += 2) {
         const node *key = value->items[i];
         const node *first = NULL;
-        if (!check_key(ld, key))
+        if (!keel_roster_walk_check_key(ld, key))
             continue;
         size_t old = keel_roster_report_push_key(ld, key->text);
         first = earlier_key(value, i);
@@ -786,9 +438,10 @@ static void parse_extra_table(loader *ld, const node *value, void *target, const
         } else {
             keel_extra *extra = &r->policy.extra_minutes[r->policy.nextras];
             extra->minutes = KEEL_ABSENT;
-            if (read_string(ld, key, &extra->name)) {
+            if (keel_roster_words_read_string(ld, key, &extra->name)) {
                 r->policy.nextras++;
-                read_int(ld, value->items[i + 1], 0, MINUTES_PER_DAY, &extra->minutes);
+                keel_roster_words_read_int(ld, value->items[i + 1], 0, MINUTES_PER_DAY,
+                                           &extra->minutes);
             }
         }
         keel_roster_report_pop_path(ld, old);
@@ -844,7 +497,8 @@ static void parse_breaks(loader *ld, const node *value, void *target, const key_
         n->breaks[i] =
             (keel_break){.at = KEEL_ABSENT, .minutes = KEEL_ABSENT, .mark = value->items[i]->mark};
         size_t old = keel_roster_report_push_index(ld, i);
-        walk_mapping(ld, value->items[i], break_keys, ARRAY_LEN(break_keys), &n->breaks[i]);
+        keel_roster_walk_mapping(ld, value->items[i], break_keys, ARRAY_LEN(break_keys),
+                                 &n->breaks[i]);
         keel_roster_report_pop_path(ld, old);
     }
 }
@@ -993,7 +647,8 @@ static void parse_nurses(loader *ld, const node *value, void *target, const key_
                                     .end = KEEL_ABSENT,
                                     .mark = value->items[i]->mark};
         size_t old = keel_roster_report_push_index(ld, i);
-        walk_mapping(ld, value->items[i], nurse_keys, ARRAY_LEN(nurse_keys), &r->nurses[i]);
+        keel_roster_walk_mapping(ld, value->items[i], nurse_keys, ARRAY_LEN(nurse_keys),
+                                 &r->nurses[i]);
         keel_roster_report_pop_path(ld, old);
     }
 }
@@ -1018,7 +673,7 @@ static void read_patients(loader *ld, const node *value, const key_rule *keys, s
                                    .expected = expected,
                                    .mark = value->items[i]->mark};
         size_t old = keel_roster_report_push_index(ld, i);
-        walk_mapping(ld, value->items[i], keys, nkeys, &(*out)[i]);
+        keel_roster_walk_mapping(ld, value->items[i], keys, nkeys, &(*out)[i]);
         keel_roster_report_pop_path(ld, old);
     }
 }
@@ -1093,7 +748,7 @@ static void parse_role_table(loader *ld, const node *value, void *target, const 
     for (size_t i = 0; i + 1 < value->nitems; i += 2) {
         const node *key = value->items[i], *first = NULL;
         int role;
-        if (!check_key(ld, key))
+        if (!keel_roster_walk_check_key(ld, key))
             continue;
         size_t old = keel_roster_report_push_key(ld, key->text);
         first = earlier_key(value, i);
@@ -1101,9 +756,9 @@ static void parse_role_table(loader *ld, const node *value, void *target, const 
             keel_roster_report_problem(ld, key->mark,
                                        "given twice (first on line %d); expected each role once",
                                        first->mark.line);
-        else if (read_word(ld, key, "role", role_names, KEEL_NROLES, true, &role))
-            walk_mapping(ld, value->items[i + 1], role_policy_keys, ARRAY_LEN(role_policy_keys),
-                         &r->policy.roles[role]);
+        else if (keel_roster_words_read_word(ld, key, "role", role_names, KEEL_NROLES, true, &role))
+            keel_roster_walk_mapping(ld, value->items[i + 1], role_policy_keys,
+                                     ARRAY_LEN(role_policy_keys), &r->policy.roles[role]);
         keel_roster_report_pop_path(ld, old);
     }
 }
@@ -2030,7 +1685,7 @@ static void check_ratio_table(loader *ld, const node *root)
         const node *key = roles->items[i],
                    *limit = keel_roster_tree_find(roles->items[i + 1], "max_patients");
         long value;
-        if (!limit || !scan_int(limit, &value) || key->kind != NODE_SCALAR)
+        if (!limit || !keel_roster_words_scan_int(limit, &value) || key->kind != NODE_SCALAR)
             continue;
         keel_roster_report_pop_path(ld, 0);
         keel_roster_report_push_key(ld, "policy");
@@ -2221,7 +1876,7 @@ keel_status keel_roster_parse(const char *name, const char *text, size_t len, ke
             keel_roster_tree_report_type(&ld, root,
                                          "a mapping with the keys shift, nurses and patients");
         else
-            walk_mapping(&ld, root, roster_keys, ARRAY_LEN(roster_keys), ld.roster);
+            keel_roster_walk_mapping(&ld, root, roster_keys, ARRAY_LEN(roster_keys), ld.roster);
         check_roster(&ld, root);
     }
     keel_roster_tree_free(root);

@@ -80,6 +80,24 @@ typedef struct loader {
     const node *patient_list, *expected_list; /* for the checks after the walk */
 } loader;
 
+/* A table of keys: one row per key of a mapping, naming its parser. */
+typedef struct key_rule key_rule;
+
+/* Checks value and stores it into target as the rule says. */
+typedef void (*parse_fn)(loader *ld, const node *value, void *target, const key_rule *rule);
+
+struct key_rule {
+    const char *name;
+    parse_fn parse;
+    size_t offset;        /* the field of target that the parser fills */
+    size_t count_offset;  /* lists: the size_t that counts the entries */
+    int min, max;         /* integers: the documented range */
+    const key_rule *keys; /* nested mappings: their key table */
+    size_t nkeys;
+    const char *need;    /* required keys: why, for the "missing" message */
+    const char *refused; /* a key of a sibling table that is not allowed here: why */
+};
+
 /* roster_report.c */
 
 /* Records an input problem at mark `at`, keyed by the current path. */
@@ -122,5 +140,39 @@ const char *keel_roster_tree_describe(const node *n, char *buf, size_t size);
 /* Reports "found <what n is>; expected <expected>" (not for an alias or the
  * placeholder, which are reported once already). */
 void keel_roster_tree_report_type(loader *ld, const node *n, const char *expected);
+
+/* roster_words.c */
+
+/* A plain decimal integer (values beyond a billion saturate); false, not
+ * reported, when n is not one. */
+bool keel_roster_words_scan_int(const node *n, long *out);
+/* An integer in [min, max] or a non-empty string (copied); reported and
+ * false when n is not one. */
+bool keel_roster_words_read_int(loader *ld, const node *n, int min, int max, int *out);
+bool keel_roster_words_read_string(loader *ld, const node *n, char **out);
+/* Minutes after midnight of "H:MM" or "HH:MM", or -1. */
+int keel_roster_words_scan_clock(const char *s);
+/* True when s is YYYY-MM-DD and names a day of the Gregorian calendar. */
+bool keel_roster_words_is_date(const char *s);
+
+/* True when candidate is closer to word than *best_distance and close
+ * enough to be a typo of it; then *best_distance becomes its distance. */
+bool keel_roster_words_is_closer(const char *word, const char *candidate, size_t *best_distance);
+/* Reads n, one of words[0..nwords), into *index; what names the word in
+ * messages ("role"), of_nurse adds the message for unlicensed staff.
+ * Reported and false when n is not one of the words. */
+bool keel_roster_words_read_word(loader *ld, const node *n, const char *what,
+                                 const char *const *words, size_t nwords, bool of_nurse,
+                                 int *index);
+
+/* roster_walk.c */
+
+/* Checks that map is a mapping whose keys are in keys[0..nkeys), each at
+ * most once, with every required key present; hands each value to its
+ * parser with target. */
+void keel_roster_walk_mapping(loader *ld, const node *map, const key_rule *keys, size_t nkeys,
+                              void *target);
+/* True when key can name something: a scalar with text (reported if not). */
+bool keel_roster_walk_check_key(loader *ld, const node *key);
 
 #endif
