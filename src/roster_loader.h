@@ -74,9 +74,10 @@ typedef struct loader {
     keel_roster *roster;
     table_state acuity_table;
     table_state extra_table;
-    size_t nexpected;       /* expected_admissions, read apart until the walk ends */
-    keel_patient *expected; /* then appended to roster->patients (merge_expected()) */
-    size_t nlisted;         /* roster->patients[0..nlisted) come from `patients` */
+    size_t nexpected; /* expected_admissions, read apart until the walk ends */
+    keel_patient
+        *expected;  /* then appended to roster->patients (keel_roster_keys_merge_expected()) */
+    size_t nlisted; /* roster->patients[0..nlisted) come from `patients` */
     const node *patient_list, *expected_list; /* for the checks after the walk */
 } loader;
 
@@ -174,5 +175,16 @@ void keel_roster_walk_mapping(loader *ld, const node *map, const key_rule *keys,
                               void *target);
 /* True when key can name something: a scalar with text (reported if not). */
 bool keel_roster_walk_check_key(loader *ld, const node *key);
+
+/* roster_keys.c */
+
+/* Reads the file's top mapping into ld->roster: the walk. */
+void keel_roster_keys_read(loader *ld, const node *root);
+/* Appends the expected admissions to the roster's patients, after the walk. */
+void keel_roster_keys_merge_expected(loader *ld);
+/* The node of roster->patients[i], and the path patients[i].key or
+ * expected_admissions[j].key (key may be NULL); after the merge. */
+const node *keel_roster_keys_patient_node(const loader *ld, size_t i);
+void keel_roster_keys_patient_path(loader *ld, size_t i, const char *key);
 
 #endif
