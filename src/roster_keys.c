@@ -120,7 +120,7 @@ static void parse_clock(loader *ld, const node *value, void *target, const key_r
 }
 
 /* A nurse's or patient's own time of day.  Kept as minutes after midnight
- * until convert_times() reads it against the shift. */
+ * until keel_roster_clock_convert() reads it against the shift. */
 static void parse_time(loader *ld, const node *value, void *target, const key_rule *rule)
 {
     ld->roster->clock = true;

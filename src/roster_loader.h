@@ -187,4 +187,20 @@ void keel_roster_keys_merge_expected(loader *ld);
 const node *keel_roster_keys_patient_node(const loader *ld, size_t i);
 void keel_roster_keys_patient_path(loader *ld, size_t i, const char *key);
 
+/* roster_clock.c */
+
+/* Turns every nurse's and patient's own time into minutes after the
+ * shift's start, reporting those that do not fit the shift. */
+void keel_roster_clock_convert(loader *ld, const node *root);
+/* Checks nurses[i]'s own times and minutes (item is its node), and
+ * patients[i]'s arrival and departure. */
+void keel_roster_clock_check_nurse(loader *ld, size_t i, const node *item);
+void keel_roster_clock_check_patient(loader *ld, size_t i, const node *item);
+
+/* roster_check.c */
+
+/* Runs the steps after the walk on the filled roster: the merge of the
+ * expected admissions, the clock, and the checks across the file. */
+void keel_roster_check_file(loader *ld, const node *root);
+
 #endif
