@@ -84,8 +84,8 @@ static void parse_names(loader *ld, const node *value, void *target, const key_r
 }
 
 /* patients[].handoffs: nurse ids in order.  The format asks only that
- * neighbours differ (check_handoffs()); whether each hand-off can happen is
- * a question about the plan, not the file. */
+ * neighbours differ (check_handoffs() in roster_check.c); whether each
+ * hand-off can happen is a question about the plan, not the file. */
 static void parse_handoffs(loader *ld, const node *value, void *target, const key_rule *rule)
 {
     read_names(ld, value, field_of(target, rule->offset), field_of(target, rule->count_offset),
@@ -458,7 +458,7 @@ static const key_rule break_keys[] = {
 };
 
 /* nurses[].breaks: timed breaks, each {at, minutes}; checked against the
- * nurse's time on the unit by check_breaks(). */
+ * nurse's time on the unit by check_breaks() in roster_clock.c. */
 static void parse_breaks(loader *ld, const node *value, void *target, const key_rule *rule)
 {
     keel_nurse *n = target;
