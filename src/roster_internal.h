@@ -1,6 +1,6 @@
 /* SPDX-License-Identifier: GPL-3.0-or-later */
-/* roster_internal.h - pieces of the roster module other readers share
- * (internal). */
+/* roster_internal.h - pieces of the roster module other modules share
+ * (internal; the loader's own files share roster_loader.h). */
 #ifndef KEEL_ROSTER_INTERNAL_H
 #define KEEL_ROSTER_INTERNAL_H
 

@@ -1,6 +1,6 @@
 /* SPDX-License-Identifier: GPL-3.0-or-later */
 /*
- * test_roster.c - tests of the roster loader (src/roster.c): what a valid
+ * test_roster.c - tests of the roster loader (src/roster*.c): what a valid
  * roster turns into, every kind of problem a bad one reports, golden
  * messages for the files under tests/data/bad/, the example rosters, and
  * clean failure when any allocation fails.
