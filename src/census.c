@@ -492,7 +492,7 @@ keel_status keel_census_load(const char *path, const char *map, keel_census **ou
     char *text = NULL;
     size_t len = 0;
     *out = NULL;
-    keel_status rc = keel_read_file(path, &text, &len, err);
+    keel_status rc = keel_roster_read_file(path, &text, &len, err);
     if (rc)
         return rc;
     rc = keel_census_parse(path, text, len, map, out, err);
@@ -521,7 +521,7 @@ keel_status keel_census_into_roster(keel_census *c, keel_roster *r, keel_error *
     if (rc)
         return rc;
     for (size_t i = 0; i < r->npatients; i++)
-        keel_patient_fini(&r->patients[i]);
+        keel_roster_data_patient_fini(&r->patients[i]);
     free(r->patients);
     r->patients = c->patients;
     r->npatients = c->npatients;
@@ -535,7 +535,7 @@ void keel_census_free(keel_census *c)
     if (!c)
         return;
     for (size_t i = 0; i < c->npatients; i++)
-        keel_patient_fini(&c->patients[i]);
+        keel_roster_data_patient_fini(&c->patients[i]);
     free(c->patients);
     free(c->path);
     free(c);

@@ -80,8 +80,8 @@ static keel_status keep_new(const keel_roster *r, const keel_workload *w, size_t
         if (seen)
             continue;
         char at[KEEL_TIME_SIZE], until[KEEL_TIME_SIZE];
-        keel_time_text(r, w->moment_start[m], at);
-        keel_time_text(r, w->moment_start[m + 1], until);
+        keel_roster_clock_text(r, w->moment_start[m], at);
+        keel_roster_clock_text(r, w->moment_start[m + 1], until);
         char *msg = w->clocked ? keel_asprintf("from %s to %s, %s", at, until, f->message)
                                : keel_strdup(f->message);
         rc = keel_findings_add(out, f->rule, f->patients, f->npatients, f->nurses, f->nnurses,

@@ -57,7 +57,7 @@ static void write_time(FILE *out, const keel_roster *r, const char *key, int off
     char buf[KEEL_TIME_SIZE];
     if (offset == KEEL_ABSENT)
         return;
-    keel_time_text(r, offset, buf);
+    keel_roster_clock_text(r, offset, buf);
     fprintf(out, ", \"%s\": \"%s\"", key, buf);
 }
 
@@ -68,7 +68,7 @@ static void write_timeline(FILE *out, const keel_report *rep, size_t n)
     char at[KEEL_TIME_SIZE];
     fputs(", \"timeline\": [", out);
     for (size_t i = 0; i < t->nchanges; i++) {
-        keel_time_text(rep->roster, t->changes[i].at, at);
+        keel_roster_clock_text(rep->roster, t->changes[i].at, at);
         if (t->changes[i].patients == KEEL_COURSE_OFF)
             fprintf(out, "%s{\"at\": \"%s\", \"off\": true}", i ? ", " : "", at);
         else
@@ -87,8 +87,8 @@ static void write_course(FILE *out, const keel_report *rep)
     fputs("  \"break_cover\": [", out);
     for (size_t i = 0; i < c->nbreaks; i++) {
         const keel_break_cover *b = &c->breaks[i];
-        keel_time_text(r, b->at, from);
-        keel_time_text(r, b->at + b->minutes, to);
+        keel_roster_clock_text(r, b->at, from);
+        keel_roster_clock_text(r, b->at + b->minutes, to);
         fputs(i ? ",\n    {\"nurse\": " : "\n    {\"nurse\": ", out);
         keel_report_out_quoted(out, r->nurses[b->nurse].id);
         fprintf(out, ", \"from\": \"%s\", \"to\": \"%s\", \"cover\": ", from, to);
@@ -208,7 +208,7 @@ static void write_patients(FILE *out, const keel_report *rep)
             int q = rep->workload->first_part[p], at, from, to;
             for (size_t k = 0; keel_report_plan_next_handoff(rep, p, &q, &at, &from, &to); k++) {
                 char buf[KEEL_TIME_SIZE];
-                keel_time_text(r, at, buf);
+                keel_roster_clock_text(r, at, buf);
                 fprintf(out, "%s{\"at\": \"%s\", \"from\": ", k ? ", " : "", buf);
                 keel_report_out_quoted(out, r->nurses[from].id);
                 fputs(", \"to\": ", out);
@@ -306,8 +306,8 @@ static void write_staffing(FILE *out, const keel_report *rep)
     }
     if (st->clocked && st->moment_need > 0) {
         char from[KEEL_TIME_SIZE], to[KEEL_TIME_SIZE];
-        keel_time_text(rep->roster, st->moment_from, from);
-        keel_time_text(rep->roster, st->moment_to, to);
+        keel_roster_clock_text(rep->roster, st->moment_from, from);
+        keel_roster_clock_text(rep->roster, st->moment_to, to);
         fprintf(out,
                 ", \"tightest_moment\": {\"from\": \"%s\", \"to\": \"%s\", \"nurses_on\": %d, "
                 "\"limits_need\": %d}",

@@ -36,19 +36,19 @@ static void write_stay(FILE *out, const keel_report *rep, size_t p, int n)
     const keel_patient *pat = &r->patients[p];
     char buf[KEEL_TIME_SIZE];
     if (pat->expected) {
-        keel_time_text(r, pat->arrives_at, buf);
+        keel_roster_clock_text(r, pat->arrives_at, buf);
         fprintf(out, "  expected admission at %s", buf);
     } else if (pat->arrives_at != KEEL_ABSENT) {
-        keel_time_text(r, pat->arrives_at, buf);
+        keel_roster_clock_text(r, pat->arrives_at, buf);
         fprintf(out, "  arrives %s", buf);
     }
     if (pat->leaves_at != KEEL_ABSENT) {
-        keel_time_text(r, pat->leaves_at, buf);
+        keel_roster_clock_text(r, pat->leaves_at, buf);
         fprintf(out, "  leaves %s", buf);
     }
     int q = rep->workload->first_part[p], at, from, to;
     while (keel_report_plan_next_handoff(rep, p, &q, &at, &from, &to)) {
-        keel_time_text(r, at, buf);
+        keel_roster_clock_text(r, at, buf);
         if (from == n)
             fprintf(out, "  hands over to %s at %s", to >= 0 ? r->nurses[to].id : "nobody", buf);
         else if (to == n)
@@ -100,7 +100,7 @@ static void write_timeline(FILE *out, const keel_report *rep, size_t n)
     char at[KEEL_TIME_SIZE];
     fputs("       patients over the shift:", out);
     for (size_t i = 0; i < t->nchanges; i++) {
-        keel_time_text(rep->roster, t->changes[i].at, at);
+        keel_roster_clock_text(rep->roster, t->changes[i].at, at);
         if (t->changes[i].patients == KEEL_COURSE_OFF)
             fprintf(out, "%s %s off", i ? "," : "", at);
         else
@@ -126,7 +126,7 @@ static void write_handoffs(FILE *out, const keel_report *rep)
                     fputs("Planned hand-offs (a nurse leaves; not balance moves)\n", out);
                 any = true;
                 if (k++ == 0) {
-                    keel_time_text(r, when, at);
+                    keel_roster_clock_text(r, when, at);
                     fprintf(out, "  %s  %s leaves:", at, r->nurses[n].id);
                 }
                 fprintf(out, "%s %s to %s", k > 1 ? "," : "", r->patients[p].id,
@@ -152,7 +152,7 @@ static void write_expected(FILE *out, const keel_report *rep)
             fputs("Expected admissions, assigned in advance\n", out);
         any = true;
         int n = keel_report_plan_first_nurse(rep, p);
-        keel_time_text(r, r->patients[p].arrives_at, at);
+        keel_roster_clock_text(r, r->patients[p].arrives_at, at);
         fprintf(out, "  %s  %-10s %4lld min  to %s\n", at, r->patients[p].id,
                 keel_workload_patient_care(rep->workload, p), n >= 0 ? r->nurses[n].id : "nobody");
     }
@@ -164,8 +164,8 @@ static void write_one_cover(FILE *out, const keel_report *rep, const keel_break_
 {
     const keel_roster *r = rep->roster;
     char from[KEEL_TIME_SIZE], to[KEEL_TIME_SIZE];
-    keel_time_text(r, b->at, from);
-    keel_time_text(r, b->at + b->minutes, to);
+    keel_roster_clock_text(r, b->at, from);
+    keel_roster_clock_text(r, b->at + b->minutes, to);
     fprintf(out, "  %s-%s  %s on break: ", from, to, r->nurses[b->nurse].id);
     if (b->npatients == 0) {
         fputs("holds no patients then\n", out);

@@ -122,7 +122,7 @@ static void write_key_time(FILE *out, const keel_roster *r, const char *indent, 
     char buf[KEEL_TIME_SIZE];
     if (!r || offset == KEEL_ABSENT)
         return;
-    keel_time_text(r, offset, buf);
+    keel_roster_clock_text(r, offset, buf);
     fprintf(out, "%s%s: \"%s\"\n", indent, key, buf);
 }
 

@@ -1,7 +1,7 @@
 /* SPDX-License-Identifier: GPL-3.0-or-later */
 /*
- * roster.c - the roster module's public functions: load and parse a roster
- * file, free a roster, and the look-ups on a loaded roster.
+ * roster.c - the roster module's entry points: load and parse a roster
+ * file (freeing a roster and the look-ups on one are in roster_data.c).
  *
  * Loading is the first stage of the pipeline; the loader's steps are in
  * roster_*.c (roster_loader.h lists them): read the YAML into a tree of
@@ -46,59 +46,6 @@ static keel_roster *new_roster(const char *name)
     return r;
 }
 
-static void free_names(char **names, size_t count)
-{
-    for (size_t i = 0; names && i < count; i++)
-        free(names[i]);
-    free(names);
-}
-
-void keel_patient_fini(keel_patient *p)
-{
-    free(p->id);
-    free(p->bed);
-    free(p->name);
-    free_names(p->extras, p->nextras);
-    free_names(p->needs, p->nneeds);
-    free(p->nurse);
-    free_names(p->avoid, p->navoid);
-    free(p->room);
-    free(p->zone);
-    free(p->previous_nurse);
-    free_names(p->nas, p->nnas);
-    free_names(p->handoffs, p->nhandoffs);
-}
-
-void keel_roster_free(keel_roster *roster)
-{
-    if (!roster)
-        return;
-    for (size_t i = 0; i < roster->nnurses; i++) {
-        keel_nurse *n = &roster->nurses[i];
-        free(n->id);
-        free(n->name);
-        free_names(n->skills, n->nskills);
-        free(n->preceptor);
-        free(n->breaks);
-        free(n->covers);
-    }
-    free(roster->nurses);
-    for (size_t i = 0; i < roster->npatients; i++)
-        keel_patient_fini(&roster->patients[i]);
-    free(roster->patients);
-    for (size_t i = 0; i < KEEL_NISOLATION; i++)
-        free_names(roster->policy.isolation_needs[i], roster->policy.nisolation_needs[i]);
-    for (size_t i = 0; i < roster->policy.nextras; i++)
-        free(roster->policy.extra_minutes[i].name);
-    free(roster->policy.extra_minutes);
-    free(roster->policy.acuity_minutes);
-    free(roster->shift.label);
-    free(roster->shift.date);
-    free(roster->unit.name);
-    free(roster->unit.type);
-    free(roster->path);
-    free(roster);
-}
 
 /* Puts this load's problems in file order (line, then column), keeping the
  * order of problems at the same place. */
@@ -162,7 +109,7 @@ keel_status keel_roster_parse(const char *name, const char *text, size_t len, ke
 }
 
 /* Reads the whole file at path into a new buffer. */
-keel_status keel_read_file(const char *path, char **text, size_t *len, keel_error *err)
+keel_status keel_roster_read_file(const char *path, char **text, size_t *len, keel_error *err)
 {
     size_t capacity = 0, used = 0;
     char *buf = NULL;
@@ -201,42 +148,10 @@ keel_status keel_roster_load(const char *path, keel_roster **out, keel_error *er
         return keel_error_add(err, KEEL_ERR_USAGE, NULL, 0, 0, NULL,
                               "keel_roster_load: out and path are required");
     *out = NULL;
-    keel_status rc = keel_read_file(path, &text, &len, err);
+    keel_status rc = keel_roster_read_file(path, &text, &len, err);
     if (rc)
         return rc;
     rc = keel_roster_parse(path, text, len, out, err);
     free(text);
     return rc;
-}
-
-int keel_roster_find_nurse(const keel_roster *roster, const char *id)
-{
-    for (size_t i = 0; roster && id && i < roster->nnurses; i++)
-        if (roster->nurses[i].id && strcmp(roster->nurses[i].id, id) == 0)
-            return (int)i;
-    return -1;
-}
-
-int keel_roster_acuity_minutes(const keel_roster *roster, int level)
-{
-    for (size_t i = 0; roster && i < roster->policy.nacuity; i++)
-        if (roster->policy.acuity_minutes[i].level == level)
-            return roster->policy.acuity_minutes[i].minutes;
-    return KEEL_ABSENT;
-}
-
-int keel_roster_extra_minutes(const keel_roster *roster, const char *name)
-{
-    for (size_t i = 0; roster && name && i < roster->policy.nextras; i++)
-        if (strcmp(roster->policy.extra_minutes[i].name, name) == 0)
-            return roster->policy.extra_minutes[i].minutes;
-    return KEEL_ABSENT;
-}
-
-bool keel_nurse_has_skill(const keel_nurse *nurse, const char *skill)
-{
-    for (size_t i = 0; i < nurse->nskills; i++)
-        if (strcmp(nurse->skills[i], skill) == 0)
-            return true;
-    return false;
 }

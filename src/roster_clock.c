@@ -358,7 +358,7 @@ void keel_roster_clock_check_nurse(loader *ld, size_t i, const node *item)
     check_nurse_minutes(ld, i, item, breaks);
 }
 
-void keel_time_text(const keel_roster *r, int offset, char buf[KEEL_TIME_SIZE])
+void keel_roster_clock_text(const keel_roster *r, int offset, char buf[KEEL_TIME_SIZE])
 {
     if (r->shift.start_minute == KEEL_ABSENT) {
         snprintf(buf, KEEL_TIME_SIZE, "+%d min", offset);

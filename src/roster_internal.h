@@ -9,17 +9,17 @@
 #include "keel/error.h"
 #include "keel/roster.h"
 
-/* Reads the whole file at path into a new buffer *text of *len bytes.
- * Statuses: KEEL_OK, KEEL_ERR_IO (one problem naming the file),
+/* roster.c: reads the whole file at path into a new buffer *text of *len
+ * bytes.  Statuses: KEEL_OK, KEEL_ERR_IO (one problem naming the file),
  * KEEL_ERR_NOMEM. */
-keel_status keel_read_file(const char *path, char **text, size_t *len, keel_error *err);
+keel_status keel_roster_read_file(const char *path, char **text, size_t *len, keel_error *err);
 
-/* Writes the clock time `offset` minutes after the shift's start as
- * "HH:MM" (or "+N min" when the shift has no start) into buf. */
+/* roster_clock.c: writes the clock time `offset` minutes after the shift's
+ * start as "HH:MM" (or "+N min" when the shift has no start) into buf. */
 #define KEEL_TIME_SIZE 16
-void keel_time_text(const keel_roster *r, int offset, char buf[KEEL_TIME_SIZE]);
+void keel_roster_clock_text(const keel_roster *r, int offset, char buf[KEEL_TIME_SIZE]);
 
-/* Frees everything a patient owns (not the patient itself). */
-void keel_patient_fini(keel_patient *p);
+/* roster_data.c: frees everything a patient owns (not the patient itself). */
+void keel_roster_data_patient_fini(keel_patient *p);
 
 #endif

@@ -853,7 +853,7 @@ void keel_roster_keys_merge_expected(loader *ld)
     if (!all) {
         ld->nomem = true;
         for (size_t i = 0; i < ld->nexpected; i++)
-            keel_patient_fini(&ld->expected[i]);
+            keel_roster_data_patient_fini(&ld->expected[i]);
     } else {
         memcpy(all + r->npatients, ld->expected, ld->nexpected * sizeof *all);
         r->patients = all;

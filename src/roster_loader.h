@@ -6,9 +6,9 @@
  * The loader loads a roster file and checks it against the roster format
  * (docs/roster-format.md).  First stage of the pipeline: every later stage
  * may trust that a keel_roster is complete and consistent.  Its files, each
- * using only those before it (and keel_patient_fini() and the look-ups of
- * roster.c):
+ * using only those before it (tests/structure/check_layers.py keeps it so):
  *
+ *   roster_data.c    freeing a roster, the look-ups on it
  *   roster_report.c  problems, with line, column and key path
  *   roster_tree.c    the YAML read into a tree of nodes (the only yaml.h user)
  *   roster_words.c   scalar values and words: integers, times, one of a list
@@ -16,7 +16,7 @@
  *   roster_keys.c    the format's key tables and the parsers they name
  *   roster_clock.c   the nurses' and patients' own times against the shift
  *   roster_check.c   checks across the file, after the walk
- *   roster.c         the public functions: load, parse, free, look-ups
+ *   roster.c         load and parse: the loader's entry points
  *
  * Invariants: every problem in the file is reported, not only the first;
  * on any failure *out is NULL and nothing leaks; a value that fails its

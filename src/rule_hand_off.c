@@ -65,8 +65,8 @@ static keel_status check(const keel_rule_plan *c, size_t n, size_t m, const size
         if (nurse < 0 || on_for(w, q, nurse))
             continue;
         char from[KEEL_TIME_SIZE], to[KEEL_TIME_SIZE];
-        keel_time_text(r, w->part_start[q], from);
-        keel_time_text(r, w->part_end[q], to);
+        keel_roster_clock_text(r, w->part_start[q], from);
+        keel_roster_clock_text(r, w->part_end[q], to);
         size_t nn = (size_t)nurse;
         char *msg = keel_asprintf("%s is with %s from %s to %s, but %s is not on then", pat->id,
                                   r->nurses[nurse].id, from, to, r->nurses[nurse].id);

@@ -74,8 +74,8 @@ static keel_status add_moment_finding(const keel_roster *r, const keel_workload 
         }
     }
     char from[KEEL_TIME_SIZE], to[KEEL_TIME_SIZE];
-    keel_time_text(r, w->moment_start[busiest], from);
-    keel_time_text(r, w->moment_start[busiest + 1], to);
+    keel_roster_clock_text(r, w->moment_start[busiest], from);
+    keel_roster_clock_text(r, w->moment_start[busiest + 1], to);
     char *msg = keel_asprintf("no plan keeps every patient limit at every moment of the shift "
                               "while each patient keeps a nurse until she leaves; the busiest "
                               "time is %s to %s, with %ld patient%s for %ld place%s",

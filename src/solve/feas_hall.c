@@ -316,8 +316,8 @@ static keel_status diagnose_clock(const keel_roster *r, const keel_workload *w, 
             continue;
         *feasible = false;
         char from[KEEL_TIME_SIZE], to[KEEL_TIME_SIZE];
-        keel_time_text(r, w->part_start[q], from);
-        keel_time_text(r, w->part_end[q], to);
+        keel_roster_clock_text(r, w->part_start[q], from);
+        keel_roster_clock_text(r, w->part_end[q], to);
         char *msg = anyone ? keel_asprintf("no nurse who may take %s is on from %s to %s",
                                            r->patients[p].id, from, to)
                            : keel_asprintf("no nurse on the roster may take %s", r->patients[p].id);
