@@ -299,7 +299,7 @@ static char *describe_shortage(const keel_roster *r, const keel_workload *w, con
 
 /* With the clock: every part needs a nurse who may take it and is on
  * throughout it; the rest (limits at every moment, nurses kept until they
- * leave) is settled by search (diagnose_rules.c). */
+ * leave) is settled by search (the valid chain of answer.c). */
 static keel_status diagnose_clock(const keel_roster *r, const keel_workload *w, int *nurse_of,
                                   bool *feasible, keel_findings *out)
 {
