@@ -105,6 +105,18 @@ void keelRuleFlags(keel_workload *w)
     }
 }
 
+bool keelRuleBindsBeyond(const keel_workload *w, const keel_rule_id *known, size_t nknown)
+{
+    for (size_t i = 0; i < KEEL_NRULES; i++) {
+        bool listed = false;
+        for (size_t k = 0; k < nknown && !listed; k++)
+            listed = known[k] == (keel_rule_id)i;
+        if (!listed && on(w, (keel_rule_id)i))
+            return true;
+    }
+    return false;
+}
+
 int keelRuleOrder(const keel_workload *w, size_t a, size_t b)
 {
     for (size_t i = 0; i < KEEL_NRULES; i++) {

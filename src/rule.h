@@ -205,6 +205,12 @@ bool keelRuleMinMayGive(const keel_tally *t, size_t n);
  * after a copy is relaxed or cut to a part of the unit. */
 void keelRuleFlags(keel_workload *w);
 
+/* True when a rule binds in w that is not one of known[0..nknown) (the
+ * pair rules, kept through eligibility, never count): for a search that
+ * keeps only the rules it knows, and must leave the others to the chains
+ * that read the whole table. */
+bool keelRuleBindsBeyond(const keel_workload *w, const keel_rule_id *known, size_t nknown);
+
 /* 0 when every rule sees patients a and b alike, else an order. */
 int keelRuleOrder(const keel_workload *w, size_t a, size_t b);
 

@@ -28,6 +28,7 @@
 #include "answer.h"
 #include "budget.h"
 #include "heur.h"
+#include "rule.h"
 #include "bound.h"
 #include "stage.h"
 #include "zone.h"
@@ -178,15 +179,15 @@ static void squares_visit(squares_search *S, size_t i, long long sum)
     }
 }
 
-/* True when the zone's only rules are limits and the cap (see above). */
+/* True when no rule binds in the zone but the ones squares_visit() keeps
+ * itself (the patient limit, the care cap, the fewest patients; the pair
+ * rules through eligibility).  The rule table says which bind, so a new
+ * rule sends the zone to the chains that read the whole table. */
 static bool plain_zone(const keel_workload *sub)
 {
-    if (sub->max_high_acuity != KEEL_ABSENT || sub->isolation_rule)
-        return false;
-    for (size_t p = 0; p < sub->npatients; p++)
-        if (sub->ratio_limit[p] < (int)sub->npatients)
-            return false;
-    return true;
+    static const keel_rule_id kept_here[] = {KEEL_RULE_PATIENT_LIMIT, KEEL_RULE_CAPACITY,
+                                             KEEL_RULE_MIN_PATIENTS};
+    return !keelRuleBindsBeyond(sub, kept_here, sizeof kept_here / sizeof *kept_here);
 }
 
 /* The least sum of squares of a plain zone: fills plan and *proven (the
