@@ -66,7 +66,8 @@ static void write_head(FILE *out, const keel_roster *r)
     if (r->policy.max_patients == KEEL_ABSENT && r->policy.nacuity == 0 && r->policy.nextras == 0 &&
         !roles && !needs && !r->policy.ratio_table && r->policy.high_acuity.level == KEEL_ABSENT &&
         r->policy.isolation_separation && r->policy.max_zones == KEEL_ABSENT &&
-        r->policy.balance_tolerance == KEEL_ABSENT)
+        r->policy.balance_tolerance == KEEL_ABSENT && r->policy.min_patients == KEEL_ABSENT &&
+        r->policy.max_utilisation == KEEL_ABSENT && r->policy.balance == KEEL_BALANCE_PEAK)
         return;
     fputs("policy:\n", out);
     write_key_int(out, "  ", "max_patients", r->policy.max_patients);
@@ -113,6 +114,13 @@ static void write_head(FILE *out, const keel_roster *r)
         fprintf(out, "  balance_tolerance: %d.%06d\n",
                 r->policy.balance_tolerance / KEEL_TOLERANCE_SCALE,
                 r->policy.balance_tolerance % KEEL_TOLERANCE_SCALE);
+    write_key_int(out, "  ", "min_patients", r->policy.min_patients);
+    if (r->policy.max_utilisation != KEEL_ABSENT)
+        fprintf(out, "  max_utilisation: %d.%06d\n",
+                r->policy.max_utilisation / KEEL_TOLERANCE_SCALE,
+                r->policy.max_utilisation % KEEL_TOLERANCE_SCALE);
+    if (r->policy.balance != KEEL_BALANCE_PEAK)
+        fprintf(out, "  balance: %s\n", keel_balance_name(r->policy.balance));
 }
 
 /* `indent key: "HH:MM"` for a time given on the roster. */
@@ -137,6 +145,7 @@ static void write_nurses(FILE *out, const keel_roster *r)
         write_key_string(out, "    ", "name", nu->name);
         write_key_list(out, "    ", "skills", nu->skills, nu->nskills);
         write_key_int(out, "    ", "max_patients", nu->max_patients);
+        write_key_int(out, "    ", "min_patients", nu->min_patients);
         write_key_int(out, "    ", "minutes", nu->minutes);
         write_key_int(out, "    ", "break_minutes", nu->break_minutes);
         write_key_int(out, "    ", "duty_minutes", nu->duty_minutes);

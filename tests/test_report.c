@@ -1,7 +1,7 @@
 /* SPDX-License-Identifier: GPL-3.0-or-later */
 /*
  * test_report.c - the writers: the yaml report reads back as the same
- * roster with every patient's nurse filled in; json and text carry their
+ * roster, every key kept, with every patient's nurse filled in; json and text carry their
  * fields and the caution.
  */
 #include <setjmp.h>
@@ -25,10 +25,10 @@ typedef struct run {
     keel_report rep;
 } run;
 
-static void run_example(run *r, const char *file)
+static void run_roster(run *r, const char *dir, const char *file)
 {
     char path[1024];
-    snprintf(path, sizeof path, "%s/%s", examples, file);
+    snprintf(path, sizeof path, "%s/%s", dir, file);
     keel_solve_options opt = {.method = "greedy"};
     assert_int_equal(keel_roster_load(path, &r->roster, NULL), KEEL_OK);
     assert_int_equal(keel_workload_compute(r->roster, &r->w, NULL), KEEL_OK);
@@ -40,6 +40,11 @@ static void run_example(run *r, const char *file)
                            .nurse_of = r->s->nurse_of,
                            .metrics = r->m,
                            .solution = r->s};
+}
+
+static void run_example(run *r, const char *file)
+{
+    run_roster(r, examples, file);
 }
 
 static void run_fini(run *r)
@@ -79,10 +84,13 @@ static void assert_same_optional(const char *a, const char *b)
 static void test_yaml_report_reads_back_as_the_same_roster_with_nurses(void **state)
 {
     (void)state;
-    const char *files[] = {"medsurg-day.yaml", "icu-night.yaml"};
-    for (size_t f = 0; f < 2; f++) {
+    /* The examples, and a roster that sets every key a plan keeps without
+     * the clock: each must come back as it was. */
+    const char *dirs[] = {examples, examples, data};
+    const char *files[] = {"medsurg-day.yaml", "icu-night.yaml", "every-key.yaml"};
+    for (size_t f = 0; f < 3; f++) {
         run r = {0};
-        run_example(&r, files[f]);
+        run_roster(&r, dirs[f], files[f]);
         char *text = write_to_memory("yaml", &r.rep);
         keel_roster *back = NULL;
         keel_error err;
@@ -103,10 +111,35 @@ static void test_yaml_report_reads_back_as_the_same_roster_with_nurses(void **st
         assert_int_equal(a->policy.max_patients, back->policy.max_patients);
         assert_int_equal(a->policy.nacuity, back->policy.nacuity);
         assert_int_equal(a->policy.nextras, back->policy.nextras);
+        for (size_t i = 0; i < a->policy.nacuity; i++) {
+            assert_int_equal(a->policy.acuity_minutes[i].level,
+                             back->policy.acuity_minutes[i].level);
+            assert_int_equal(a->policy.acuity_minutes[i].minutes,
+                             back->policy.acuity_minutes[i].minutes);
+        }
+        for (size_t i = 0; i < a->policy.nextras; i++) {
+            assert_string_equal(a->policy.extra_minutes[i].name,
+                                back->policy.extra_minutes[i].name);
+            assert_int_equal(a->policy.extra_minutes[i].minutes,
+                             back->policy.extra_minutes[i].minutes);
+        }
         for (size_t i = 0; i < KEEL_NROLES; i++) {
             assert_int_equal(a->policy.roles[i].max_patients, back->policy.roles[i].max_patients);
             assert_int_equal(a->policy.roles[i].duty_minutes, back->policy.roles[i].duty_minutes);
         }
+        assert_ptr_equal(a->policy.ratio_table, back->policy.ratio_table);
+        assert_int_equal(a->policy.high_acuity.level, back->policy.high_acuity.level);
+        assert_int_equal(a->policy.high_acuity.max_per_nurse,
+                         back->policy.high_acuity.max_per_nurse);
+        assert_int_equal(a->policy.isolation_separation, back->policy.isolation_separation);
+        for (size_t i = 0; i < KEEL_NISOLATION; i++)
+            assert_same_strings(a->policy.isolation_needs[i], a->policy.nisolation_needs[i],
+                                back->policy.isolation_needs[i], back->policy.nisolation_needs[i]);
+        assert_int_equal(a->policy.max_zones, back->policy.max_zones);
+        assert_int_equal(a->policy.balance_tolerance, back->policy.balance_tolerance);
+        assert_int_equal(a->policy.min_patients, back->policy.min_patients);
+        assert_int_equal(a->policy.max_utilisation, back->policy.max_utilisation);
+        assert_int_equal(a->policy.balance, back->policy.balance);
         assert_int_equal(a->nnurses, back->nnurses);
         for (size_t n = 0; n < a->nnurses; n++) {
             const keel_nurse *x = &a->nurses[n], *y = &back->nurses[n];
@@ -114,6 +147,7 @@ static void test_yaml_report_reads_back_as_the_same_roster_with_nurses(void **st
             assert_same_optional(x->name, y->name);
             assert_same_strings(x->skills, x->nskills, y->skills, y->nskills);
             assert_int_equal(x->max_patients, y->max_patients);
+            assert_int_equal(x->min_patients, y->min_patients);
             assert_int_equal(x->minutes, y->minutes);
             assert_int_equal(x->break_minutes, y->break_minutes);
             assert_int_equal(x->duty_minutes, y->duty_minutes);
@@ -135,6 +169,12 @@ static void test_yaml_report_reads_back_as_the_same_roster_with_nurses(void **st
             assert_int_equal(x->lock, y->lock);
             assert_int_equal(x->sitter, y->sitter);
             assert_same_strings(x->avoid, x->navoid, y->avoid, y->navoid);
+            assert_int_equal(x->ratio, y->ratio);
+            assert_int_equal(x->isolation, y->isolation);
+            assert_same_optional(x->room, y->room);
+            assert_same_optional(x->zone, y->zone);
+            assert_same_optional(x->previous_nurse, y->previous_nurse);
+            assert_same_strings(x->nas, x->nnas, y->nas, y->nnas);
         }
         keel_roster_free(back);
         free(text);
