@@ -13,9 +13,10 @@
  * Each rule lives in a file of its own, src/rule_<name>.c (skill, lock and
  * avoid, the eligibility rules, share rule_pair.c), that opens with its
  * properties; rule.c holds the table and the functions that walk it.
- * Adding a rule is one file and one line of the table (docs/architecture.md,
- * "A new rule"); test_every_rule_has_every_part (tests/test_rules.c) fails
- * when a rule lacks a part.
+ * A new rule is one file and one line of the table, with its roster key,
+ * its data in the workload and its tests (docs/architecture.md, "A new
+ * rule", names every file); test_every_rule_has_every_part
+ * (tests/test_rules.c) fails when a rule lacks a part.
  *
  * Scopes.  PAIR rules (skill, lock, avoid) remove patient-nurse pairs up
  * front (workload.c's eligibility); MOMENT rules count what a nurse holds at
