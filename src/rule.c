@@ -42,15 +42,15 @@ const keel_rule *keelRuleFind(const char *name)
     return NULL;
 }
 
-/* The rules of one scope that have a test, in table order. */
-static const char *breaks_in(keel_rule_scope scope, const keel_tally *t, size_t p, size_t n,
-                             size_t m)
+_Static_assert(KEEL_NRULES <= KEEL_WORKLOAD_RULES, "keel_workload's rule lists are too short");
+
+/* The tests of one scope that can bind in the tally's workload, in table
+ * order (keelRuleFlags() lists them). */
+static const char *breaks_in(int scope, const keel_tally *t, size_t p, size_t n, size_t m)
 {
-    for (size_t i = 0; i < KEEL_NRULES; i++) {
-        const keel_rule *rule = keel_rules[i];
-        if (rule->scope != scope || !rule->breaks)
-            continue;
-        const char *name = rule->breaks(t, p, n, m);
+    const keel_workload *w = t->w;
+    for (size_t i = 0; i < w->ntests[scope]; i++) {
+        const char *name = w->tests[scope][i]->breaks(t, p, n, m);
         if (name)
             return name;
     }
@@ -62,11 +62,11 @@ const char *keelRuleBreaks(const keel_tally *t, size_t p, size_t n)
     const keel_workload *w = t->w;
     if (!keel_workload_eligible(w, p, n))
         return keel_rules[KEEL_RULE_SKILL]->name; /* the caller names the precise reason */
-    const char *name = breaks_in(KEEL_SCOPE_CLOCK, t, p, n, 0);
+    const char *name = breaks_in(KEEL_WORKLOAD_CLOCK, t, p, n, 0);
     if (!name)
-        name = breaks_in(KEEL_SCOPE_SHIFT, t, p, n, 0);
+        name = breaks_in(KEEL_WORKLOAD_SHIFT, t, p, n, 0);
     for (int m = w->first_moment[p]; !name && m < w->last_moment[p]; m++)
-        name = breaks_in(KEEL_SCOPE_MOMENT, t, p, n, (size_t)m);
+        name = breaks_in(KEEL_WORKLOAD_MOMENT, t, p, n, (size_t)m);
     return name;
 }
 
@@ -103,6 +103,23 @@ void keelRuleFlags(keel_workload *w)
         if (scope == KEEL_SCOPE_MOMENT || scope == KEEL_SCOPE_SHIFT)
             w->joined_rules = w->joined_rules || on(w, (keel_rule_id)i);
     }
+    /* A test is listed unless its rule says it cannot bind here (a rule
+     * without binds, the patient limit, always can). */
+    memset(w->ntests, 0, sizeof w->ntests);
+    w->nheld = 0;
+    for (size_t i = 0; i < KEEL_NRULES; i++) {
+        const keel_rule *rule = keel_rules[i];
+        if (rule->binds && !rule->binds(w))
+            continue;
+        int list = rule->scope == KEEL_SCOPE_CLOCK   ? KEEL_WORKLOAD_CLOCK
+                   : rule->scope == KEEL_SCOPE_SHIFT ? KEEL_WORKLOAD_SHIFT
+                   : rule->scope == KEEL_SCOPE_MOMENT ? KEEL_WORKLOAD_MOMENT
+                                                      : -1;
+        if (list >= 0 && rule->breaks)
+            w->tests[list][w->ntests[list]++] = rule;
+        if (rule->held_alike)
+            w->held[w->nheld++] = rule;
+    }
 }
 
 bool keelRuleBindsBeyond(const keel_workload *w, const keel_rule_id *known, size_t nknown)
@@ -137,8 +154,9 @@ bool keelRuleSameNurses(const keel_workload *w, size_t a, size_t b)
 
 bool keelRuleSameHeld(const keel_tally *t, size_t a, size_t b)
 {
-    for (size_t i = 0; i < KEEL_NRULES; i++)
-        if (keel_rules[i]->held_alike && !keel_rules[i]->held_alike(t, a, b))
+    const keel_workload *w = t->w;
+    for (size_t i = 0; i < w->nheld; i++)
+        if (!w->held[i]->held_alike(t, a, b))
             return false;
     return true;
 }

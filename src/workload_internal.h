@@ -15,6 +15,11 @@
 #include "keel/workload.h"
 #include "roster_internal.h"
 
+/* Room for every rule of the table (rule.c checks KEEL_NRULES against it). */
+#define KEEL_WORKLOAD_RULES 16
+enum { KEEL_WORKLOAD_CLOCK, KEEL_WORKLOAD_SHIFT, KEEL_WORKLOAD_MOMENT };
+struct keel_rule;
+
 struct keel_workload {
     size_t npatients; /* parts: what the solver assigns (without times, the patients) */
     size_t nnurses;
@@ -44,6 +49,15 @@ struct keel_workload {
     long long *max_care;  /* [nnurses]: most care minutes under policy.max_utilisation
                              (LLONG_MAX: no cap) */
     bool bounds_rule;     /* some nurse has min_patients or a care cap */
+    /* The rules whose tests can bind here, in table order, set with the
+     * switches above by keelRuleFlags(): by scope, those with a tally test
+     * (KEEL_WORKLOAD_CLOCK, _SHIFT, _MOMENT), and those that tell when two
+     * nurses' holdings look alike.  The tally's test and the searches'
+     * symmetry walk only these (rule.c). */
+    const struct keel_rule *tests[3][KEEL_WORKLOAD_RULES];
+    unsigned char ntests[3];
+    const struct keel_rule *held[KEEL_WORKLOAD_RULES];
+    unsigned char nheld;
     keel_balance balance; /* what stage 1 balances */
 
     /* The clock.  Arrays over parts are the ones above ([npatients]). */

@@ -14,6 +14,7 @@
 #include <string.h>
 
 #include "keel/keel.h"
+#include "rule.h"
 #include "workload_internal.h"
 
 /* A roster with nurses N1.. and patients P1.., owned by the test. */
@@ -135,6 +136,7 @@ static inline tu_case *tu_case_new(size_t nn, size_t np)
     }
     for (size_t i = 0; i < np * nn; i++)
         c->w.eligible[i] = true;
+    keelRuleFlags(&c->w);
     return c;
 }
 
@@ -152,7 +154,8 @@ static inline void tu_add_need(tu_case *c, size_t p, const char *skill)
     pa->needs[pa->nneeds++] = tu_strdup(skill);
 }
 
-/* Recomputes eligible pairs from skills, needs and limits. */
+/* Recomputes eligible pairs from skills, needs and limits, and the rule
+ * switches (keelRuleFlags()): call it after changing a case's rule data. */
 static inline void tu_refresh(tu_case *c)
 {
     for (size_t p = 0; p < c->w.npatients; p++) {
@@ -169,6 +172,7 @@ static inline void tu_refresh(tu_case *c)
             c->w.eligible[p * c->w.nnurses + n] = ok;
         }
     }
+    keelRuleFlags(&c->w);
 }
 
 static inline void tu_case_free(tu_case *c)
