@@ -33,7 +33,19 @@ keel_status keel_report_write(const char *format, const keel_report *report, FIL
     for (size_t i = 0; i < keel_report_nformats(); i++) {
         if (strcmp(writers[i].name, format) != 0)
             continue;
-        keel_status rc = writers[i].write(report, out);
+        /* Every format says the one verdict, judged here when the caller
+         * gave none. */
+        keel_report judged = *report;
+        keel_verdict *verdict = NULL;
+        if (!judged.verdict && judged.workload) {
+            keel_status rc = keel_verdict_compute(judged.roster, judged.workload,
+                                                  judged.solution, judged.nurse_of, &verdict, err);
+            if (rc)
+                return rc;
+            judged.verdict = verdict;
+        }
+        keel_status rc = writers[i].write(&judged, out);
+        keel_verdict_free(verdict);
         if (rc)
             return keel_error_add(err, rc, NULL, 0, 0, NULL,
                                   "the %s format cannot show this report", format);

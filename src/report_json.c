@@ -339,6 +339,17 @@ keel_status keel_report_json(const keel_report *rep, FILE *out)
     }
     if (rep->kind == KEEL_REPORT_CHECK)
         fprintf(out, "  \"plan\": %s,\n", rep->nurse_of ? "true" : "false");
+    if (rep->verdict) {
+        const keel_verdict *v = rep->verdict;
+        fprintf(out,
+                "  \"verdict\": {\"kind\": \"%s\", \"limits_broken\": %zu, \"rules_broken\": %zu, "
+                "\"breaks\": %zu, \"breaks_uncovered\": %zu, \"overloaded\": %zu, "
+                "\"ward_short\": %d, \"text\": ",
+                keel_verdict_kind_name(v->kind), v->limits_broken, v->rules_broken, v->breaks,
+                v->breaks_uncovered, v->overloaded, v->ward_short);
+        keel_report_out_quoted(out, v->text);
+        fputs("},\n", out);
+    }
     write_nurses(out, rep);
     write_patients(out, rep);
     write_staffing(out, rep);

@@ -403,9 +403,13 @@ static void write_proof(FILE *out, const keel_solution *s, const keel_metrics *m
     fputc('\n', out);
 }
 
-static void write_staffing(FILE *out, const keel_metrics *m, const keel_staffing *st)
+static void write_staffing(FILE *out, const keel_metrics *m, const keel_staffing *st,
+                           const keel_verdict *v)
 {
-    fprintf(out, "Staffing\n  care %ld min + duty %ld min against %ld min of nurse time: %.1f %%\n",
+    fputs("Staffing\n", out);
+    if (v)
+        keel_report_out_wrapped(out, "  ", v->text, 78);
+    fprintf(out, "  care %ld min + duty %ld min against %ld min of nurse time: %.1f %%\n",
             m->care_minutes, m->duty_minutes, m->capacity_minutes, 100.0 * m->unit_utilisation);
     if (!st)
         fprintf(out, "  %.1f nurses needed at full utilisation; %zu on shift take patients\n",
@@ -506,7 +510,7 @@ keel_status keel_report_text(const keel_report *rep, FILE *out)
     }
     if (keel_report_plan_uses_nas(rep->roster))
         fprintf(out, "* %s\n\n", keel_nas_note());
-    write_staffing(out, rep->metrics, rep->staffing);
+    write_staffing(out, rep->metrics, rep->staffing, rep->verdict);
     fprintf(out, "%s\n", KEEL_CAUTION);
     return KEEL_OK;
 }

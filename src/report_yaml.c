@@ -242,6 +242,9 @@ keel_status keel_report_yaml(const keel_report *rep, FILE *out)
     if (s)
         fprintf(out, " (%s, status %s)", s->method, keel_solve_status_name(s->status));
     fprintf(out, "\n# %s\n", KEEL_CAUTION);
+    if (rep->verdict)
+        fprintf(out, "# Staffing verdict (%s): %s\n", keel_verdict_kind_name(rep->verdict->kind),
+                rep->verdict->text);
     if (s && s->best_effort)
         fputs("# BEST-EFFORT PLAN: no valid assignment exists; the nurses below break rules\n"
               "# (see keel assign's report). Tell the house supervisor before using any of it.\n",

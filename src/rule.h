@@ -103,6 +103,8 @@ typedef struct keel_rule {
     const char *name;      /* the design's rule name */
     keel_rule_scope scope; /* see above */
     int severity;          /* best effort: the weight of each unit broken (docs/model.md) */
+    bool staffing;         /* a limit on what a nurse holds: a plan that breaks it is short of
+                              nurses (the staffing verdict, verdict.c) */
 
     /* True when the rule is switched on in w and can bind (NULL: never). */
     bool (*binds)(const keel_workload *w);

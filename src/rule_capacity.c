@@ -96,6 +96,7 @@ static bool nurses_alike(const keel_workload *w, size_t a, size_t b)
 
 const keel_rule keel_rule_capacity = {
     .name = "capacity",
+    .staffing = true,
     .scope = KEEL_SCOPE_SHIFT,
     .severity = CAPACITY_SEVERITY,
     .binds = binds,

@@ -154,6 +154,7 @@ static bool held_alike(const keel_tally *t, size_t a, size_t b)
 
 const keel_rule keel_rule_high_acuity = {
     .name = "high_acuity",
+    .staffing = true,
     .scope = KEEL_SCOPE_MOMENT,
     .severity = HIGH_SEVERITY,
     .binds = binds,

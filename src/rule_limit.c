@@ -88,6 +88,7 @@ static bool nurses_alike(const keel_workload *w, size_t a, size_t b)
 
 const keel_rule keel_rule_patient_limit = {
     .name = "patient_limit",
+    .staffing = true,
     .scope = KEEL_SCOPE_MOMENT,
     .severity = LIMIT_SEVERITY,
     .breaks = breaks,

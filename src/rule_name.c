@@ -11,14 +11,17 @@
 
 const keel_rule keel_rule_law_limit = {
     .name = "law_limit",
+    .staffing = true,
     .scope = KEEL_SCOPE_NAME,
     .severity = 80, /* the patient limit's soft rows weigh a limit the ratio table sets at this */
 };
 const keel_rule keel_rule_moment_limit = {
     .name = "moment_limit",
+    .staffing = true,
     .scope = KEEL_SCOPE_NAME,
 };
 const keel_rule keel_rule_break_cover = {
     .name = "break_cover",
+    .staffing = true,
     .scope = KEEL_SCOPE_NAME,
 };

@@ -179,6 +179,7 @@ static bool held_alike(const keel_tally *t, size_t a, size_t b)
 
 const keel_rule keel_rule_patient_ratio = {
     .name = "patient_ratio",
+    .staffing = true,
     .scope = KEEL_SCOPE_MOMENT,
     .severity = RATIO_SEVERITY,
     .binds = binds,

@@ -356,13 +356,7 @@ static void put_table_verdict(keel_textbuf *k, const keel_staffing *s)
     long counted = (long)s->ncounted;
     if (!s->table || s->table_minimum < 0)
         return;
-    if (s->ncounted >= (size_t)s->table_minimum) {
-        keel_textbuf_put(
-            k,
-            " %ld nurse%s %s enough to keep the limits of %s as encoded on %s for %zu patient%s.",
-            counted, plural(counted), counted == 1 ? "is" : "are", s->table->name,
-            s->table->encoded, s->census, plural((long)s->census));
-    } else {
+    if (s->ncounted < (size_t)s->table_minimum) {
         keel_textbuf_put(k, " %zu patient%s exceed%s what %ld nurse%s may hold ", s->census,
                          plural((long)s->census), verb_s((long)s->census), counted,
                          plural(counted));
@@ -391,14 +385,12 @@ int keel_staffing_format(const keel_staffing *s, char *buf, size_t size)
                          plural((long)s->census), verb_s((long)s->census), s->needed,
                          plural(s->needed));
         put_reason(&k, s);
-        keel_textbuf_put(&k, "; %ld nurse%s take%s patients: ", counted, plural(counted),
+        keel_textbuf_put(&k, "; %ld nurse%s take%s patients", counted, plural(counted),
                          verb_s(counted));
         if (s->slack < 0)
-            keel_textbuf_put(&k, "%d short.", -s->slack);
-        else if (s->slack > 0)
-            keel_textbuf_put(&k, "%d to spare.", s->slack);
+            keel_textbuf_put(&k, ": %d short.", -s->slack);
         else
-            keel_textbuf_put(&k, "none to spare.");
+            keel_textbuf_put(&k, ".");
     }
     put_needs(&k, s);
     put_table_verdict(&k, s);

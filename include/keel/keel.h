@@ -38,6 +38,7 @@
 #include "keel/solve.h"
 #include "keel/staffing.h"
 #include "keel/template.h"
+#include "keel/verdict.h"
 #include "keel/workload.h"
 
 /* The library's version, "MAJOR.MINOR.PATCH". */

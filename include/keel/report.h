@@ -24,6 +24,7 @@
 #include "keel/staffing.h"
 #include "keel/roster.h"
 #include "keel/solve.h"
+#include "keel/verdict.h"
 #include "keel/workload.h"
 
 #ifdef __cplusplus
@@ -52,6 +53,8 @@ typedef struct keel_report {
     const keel_staffing *staffing;   /* the staffing view, or NULL */
     const keel_explanation *explanation; /* why each patient went where, or NULL */
     const keel_course *course;           /* the course of the shift under nurse_of, or NULL */
+    const keel_verdict *verdict; /* the staffing verdict; NULL: keel_report_write() judges
+                                    nurse_of itself (keel/verdict.h) */
 } keel_report;
 
 /* Writes the report in the named format to out.  Statuses: KEEL_OK,

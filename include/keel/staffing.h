@@ -34,8 +34,10 @@
  * included), in hours, over the census, for this one shift.
  *
  * A need never says a roster is lawful or unlawful: a table's figure is "as
- * encoded", and a census either exceeds what the nurses may hold under it or
- * the nurses are enough to keep its limits.
+ * encoded", and a census may exceed what the nurses may hold under it.  A
+ * need is a lower bound: it can show that nurses are short, never that
+ * they are enough; whether a plan's nurses are enough is the verdict's
+ * (keel/verdict.h), judged on the plan itself.
  */
 #ifndef KEEL_STAFFING_H
 #define KEEL_STAFFING_H
@@ -109,7 +111,8 @@ typedef struct keel_staffing {
     /* The verdict. */
     int needed;                 /* the largest need; -1 when blocked */
     keel_staffing_need binding; /* which need that is (LIMITS when blocked) */
-    int slack;                  /* ncounted - needed: below 0 short, above 0 to spare;
+    int slack;                  /* ncounted - needed: below 0 short (above 0 is no verdict:
+                                   needed is a lower bound, keel/verdict.h judges a plan);
                                    0 when blocked; with the clock at most moment_slack */
 
     /* With the clock: the moment where the nurses on (who take patients)
@@ -131,9 +134,9 @@ KEEL_API keel_status keel_staffing_compute(const keel_roster *r, const keel_work
 
 /* Writes the staffing view in plain words into buf, e.g. "28 patients need
  * at least 7 nurses under queensland as encoded on 2026-12-02 (afternoon
- * shift); 6 nurses take patients: 1 short.", then the three needs and the
- * hours per patient, then, with a table, whether the census exceeds what the
- * counted nurses may hold under it.  buf is always NUL-terminated when size
+ * shift); 6 nurses take patients: 1 short." (no count when none are short),
+ * then the three needs and the hours per patient, then, with a table, when
+ * the census exceeds what the counted nurses may hold under it.  buf is always NUL-terminated when size
  * > 0 (buf may be NULL when size is 0).  Returns the length the full text
  * needs, like snprintf. */
 KEEL_API int keel_staffing_format(const keel_staffing *s, char *buf, size_t size);

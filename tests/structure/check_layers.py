@@ -53,6 +53,7 @@ LAYERS = [
     ("solve: zones", ["solve/zone_*"]),
     ("solve: the orchestrator", ["solve/solve.c"]),
     ("after the solve", ["plan.c", "metrics.c", "explain.c", "course.c", "staffing.c"]),
+    ("the verdict", ["verdict.c"]),
     ("report parts", ["report_out.c", "report_plan.c"]),
     ("writers", ["report_*"]),
     ("writer table and template", ["report.c", "template.c"]),
