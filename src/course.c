@@ -348,7 +348,8 @@ static keel_status order_admissions(const keel_workload *w, const int *nurse_of,
         load[best] = best_load;
         room[best]--;
         c->picks[c->npicks++] = (keel_admission_pick){
-            (size_t)best, (int)best_load, (double)best_load / (double)w->capacity_minutes[best]};
+            (size_t)best, (int)best_load, (double)best_load / (double)w->capacity_minutes[best],
+            best_load > w->capacity_minutes[best]};
     }
     free(load);
     free(room);

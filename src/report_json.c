@@ -114,10 +114,11 @@ static void write_course(FILE *out, const keel_report *rep)
     for (size_t i = 0; i < c->npicks; i++) {
         fputs(i ? ", {\"nurse\": " : "{\"nurse\": ", out);
         keel_report_out_quoted(out, r->nurses[c->picks[i].nurse].id);
-        fprintf(out, ", \"load_minutes\": %d, \"utilisation\": %.12g}", c->picks[i].load_minutes,
-                c->picks[i].utilisation);
+        fprintf(out, ", \"load_minutes\": %d, \"utilisation\": %.12g, \"overload\": %s}",
+                c->picks[i].load_minutes, c->picks[i].utilisation,
+                c->picks[i].over ? "true" : "false");
     }
-    fputs("]},\n", out);
+    fprintf(out, "], \"nobody_has_room\": %s},\n", c->npicks == 0 ? "true" : "false");
 }
 
 static void write_nurses(FILE *out, const keel_report *rep)
@@ -156,7 +157,8 @@ static void write_nurses(FILE *out, const keel_report *rep)
         fprintf(out, ", \"duty_minutes\": %d, \"capacity_minutes\": %d", w->duty_minutes[n],
                 w->capacity_minutes[n]);
         if (rep->nurse_of)
-            fprintf(out, ", \"utilisation\": %.12g", m->utilisation);
+            fprintf(out, ", \"utilisation\": %.12g, \"overload\": %s", m->utilisation,
+                    m->counted && m->load_minutes > m->capacity_minutes ? "true" : "false");
         fprintf(out, ", \"max_patients\": %d, \"counted\": %s", w->max_patients[n],
                 keel_workload_counted(w, n) ? "true" : "false");
         if (rep->course)

@@ -225,8 +225,12 @@ static void write_course(FILE *out, const keel_report *rep)
                 "breaks flagged: %zu\n\n",
                 c->relief_needed, c->relief_on_roster, flagged);
     }
-    if (c->npicks == 0)
+    if (c->npicks == 0) {
+        fputs("Next unplanned admissions: nobody can take one. Every nurse who takes patients\n"
+              "  is at her patient limit (or a patient's 1:N) at the end of her time on the unit.\n\n",
+              out);
         return;
+    }
     fprintf(out, "Next unplanned admissions (a typical admission: %d min)\n", c->admission_minutes);
     static const char *const place[] = {"1st", "2nd", "3rd"};
     for (size_t i = 0; i < c->npicks; i++) {
@@ -235,8 +239,9 @@ static void write_course(FILE *out, const keel_report *rep)
             snprintf(nth, sizeof nth, "%s", place[i]);
         else
             snprintf(nth, sizeof nth, "%zuth", i + 1);
-        fprintf(out, "  %s  %s, who would reach %.1f %%\n", nth, r->nurses[c->picks[i].nurse].id,
-                100.0 * c->picks[i].utilisation);
+        fprintf(out, "  %s  %s, who would reach %.1f %%%s\n", nth, r->nurses[c->picks[i].nurse].id,
+                100.0 * c->picks[i].utilisation,
+                c->picks[i].over ? "  OVER HER TIME: nobody with room stays under 100 %" : "");
     }
     fputc('\n', out);
 }
@@ -262,6 +267,8 @@ static void write_nurse_blocks(FILE *out, const keel_report *rep)
                 100.0 * m->utilisation);
         if (w->duty_minutes[n] > 0)
             fprintf(out, "  (incl. %d duty min)", w->duty_minutes[n]);
+        if (rep->nurse_of && m->counted && m->load_minutes > m->capacity_minutes)
+            fprintf(out, "  OVER HER TIME by %d min", m->load_minutes - m->capacity_minutes);
         if (r->nurses[n].role != KEEL_ROLE_STAFF)
             fprintf(out, "  %s", keel_role_name(r->nurses[n].role));
         if (!m->counted)

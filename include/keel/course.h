@@ -58,7 +58,9 @@
  * admission_minutes, over her capacity) after one more admission is
  * lowest, ties to the lower nurse index; she takes it before the next pick,
  * so a nurse may be picked more than once.  Fewer picks than asked means
- * nobody else has room.
+ * nobody else has room (none: the unit is full); a pick that takes a nurse
+ * over her time is marked `over`, never left out, since she may still be
+ * the best there is.
  */
 #ifndef KEEL_COURSE_H
 #define KEEL_COURSE_H
@@ -115,6 +117,7 @@ typedef struct keel_admission_pick {
     size_t nurse;
     int load_minutes;   /* her load after taking this admission */
     double utilisation; /* load_minutes / capacity */
+    bool over;          /* load_minutes is over her capacity: taking it overloads her */
 } keel_admission_pick;
 
 typedef struct keel_course {
