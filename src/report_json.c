@@ -154,8 +154,9 @@ static void write_nurses(FILE *out, const keel_report *rep)
         if (rep->nurse_of)
             fprintf(out, ", \"load_minutes\": %d, \"care_minutes\": %d", m->load_minutes,
                     m->care_minutes);
-        fprintf(out, ", \"duty_minutes\": %d, \"capacity_minutes\": %d", w->duty_minutes[n],
-                w->capacity_minutes[n]);
+        fprintf(out, ", \"duty_minutes\": %d, \"capacity_minutes\": %d, \"break_minutes\": %d",
+                w->duty_minutes[n], w->capacity_minutes[n],
+                keel_workload_on_unit(r, n) - w->capacity_minutes[n]);
         if (rep->nurse_of)
             fprintf(out, ", \"utilisation\": %.12g, \"overload\": %s", m->utilisation,
                     m->counted && m->load_minutes > m->capacity_minutes ? "true" : "false");

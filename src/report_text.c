@@ -267,6 +267,8 @@ static void write_nurse_blocks(FILE *out, const keel_report *rep)
                 100.0 * m->utilisation);
         if (w->duty_minutes[n] > 0)
             fprintf(out, "  (incl. %d duty min)", w->duty_minutes[n]);
+        if (keel_workload_no_break(r, n))
+            fputs("  no break (on under half the shift)", out);
         if (rep->nurse_of && m->counted && m->load_minutes > m->capacity_minutes)
             fprintf(out, "  OVER HER TIME by %d min", m->load_minutes - m->capacity_minutes);
         if (r->nurses[n].role != KEEL_ROLE_STAFF)
@@ -454,9 +456,10 @@ static void write_workload(FILE *out, const keel_report *rep)
         write_patient_line(out, rep, p, -1);
     fputs("\nNurses\n", out);
     for (size_t n = 0; n < r->nnurses; n++)
-        fprintf(out, "  %-6s %-22s capacity %4d min  duty %3d min  limit %d patients\n",
+        fprintf(out, "  %-6s %-22s capacity %4d min  duty %3d min  limit %d patient%s%s\n",
                 r->nurses[n].id, r->nurses[n].name ? r->nurses[n].name : "", w->capacity_minutes[n],
-                w->duty_minutes[n], w->max_patients[n]);
+                w->duty_minutes[n], w->max_patients[n], w->max_patients[n] == 1 ? "" : "s",
+                keel_workload_no_break(r, n) ? "  no break (on under half the shift)" : "");
     fputc('\n', out);
 }
 

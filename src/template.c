@@ -100,7 +100,8 @@ keel_status keel_template_write(const keel_template_options *o, const keel_censu
             "  label: %s\n"
             "  start: \"%s\"\n"
             "  minutes: 720             # the shift's length in minutes\n"
-            "  break_minutes: %s   # each nurse's break, unless a nurse gives one\n\n",
+            "  break_minutes: %s   # each nurse's break, unless a nurse gives one; a nurse on\n"
+            "                           # for under half the shift without her own takes none\n\n",
             label, shift->start, FILL);
     fputs("policy:\n", out);
     if (table) {

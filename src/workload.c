@@ -317,14 +317,27 @@ int keel_workload_on_unit(const keel_roster *r, size_t i)
     return or_default(n->minutes, r->shift.minutes);
 }
 
-static int break_total(const keel_roster *r, const keel_nurse *n)
+bool keel_workload_no_break(const keel_roster *r, size_t i)
 {
+    const keel_nurse *n = &r->nurses[i];
+    return n->nbreaks == 0 && n->break_minutes == KEEL_ABSENT &&
+           or_default(r->shift.break_minutes, 0) > 0 &&
+           2 * (long)keel_workload_on_unit(r, i) < (long)r->shift.minutes;
+}
+
+/* A nurse's own breaks, else her break_minutes, else the shift's break when
+ * she is on for at least half the shift (keel_workload_no_break()). */
+static int break_total(const keel_roster *r, size_t i)
+{
+    const keel_nurse *n = &r->nurses[i];
     if (n->nbreaks > 0) {
         int total = 0;
-        for (size_t i = 0; i < n->nbreaks; i++)
-            total += n->breaks[i].minutes;
+        for (size_t b = 0; b < n->nbreaks; b++)
+            total += n->breaks[b].minutes;
         return total;
     }
+    if (keel_workload_no_break(r, i))
+        return 0;
     return or_default(n->break_minutes, or_default(r->shift.break_minutes, 0));
 }
 
@@ -421,7 +434,7 @@ keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, kee
     for (size_t n = 0; n < nn; n++) {
         const keel_nurse *nurse = &r->nurses[n];
         int minutes = keel_workload_on_unit(r, n);
-        int breaks = break_total(r, nurse);
+        int breaks = break_total(r, n);
         w->capacity_minutes[n] = minutes - breaks;
         w->duty_minutes[n] = or_default(nurse->duty_minutes,
                                         or_default(r->policy.roles[nurse->role].duty_minutes, 0));

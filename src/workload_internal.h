@@ -88,6 +88,12 @@ enum {
  * and competencies of w, the patient's lock and avoid list of r). */
 bool keel_workload_may_take(const keel_roster *r, const keel_workload *w, size_t p, size_t n);
 
+/* True when nurse i gets no break: she gives none of her own (no breaks,
+ * no break_minutes), the shift has one, and she is on the unit for less than
+ * half the shift.  A nurse on for at least half the shift takes the shift's
+ * whole break (docs/roster-format.md, "break_minutes"). */
+bool keel_workload_no_break(const keel_roster *r, size_t i);
+
 /* Minutes nurse n of roster r is on the unit: end - start when she has
  * times, else `minutes`, else the shift's (breaks included). */
 int keel_workload_on_unit(const keel_roster *r, size_t n);

@@ -177,9 +177,13 @@ static long long carried(const spec *s, int p, const chain *c, int n)
     return sum;
 }
 
+/* Time on the unit less the shift's 60-minute break, which a nurse takes
+ * only when she is on for at least half the shift (docs/roster-format.md,
+ * "break_minutes"). */
 static int capacity(const spec *s, int n)
 {
-    return s->nend[n] - s->nstart[n] - 60;
+    int on = s->nend[n] - s->nstart[n];
+    return 2 * on < SHIFT ? on : on - 60;
 }
 
 /* Every counting rule at every minute on the hour grid (all times here

@@ -193,6 +193,36 @@ static void test_diagnosis_names_locks_that_exceed_a_limit(void **state)
 }
 
 /* The clock's arithmetic (docs/model.md, "The clock"), hand-computed. */
+/* The shift's break goes to a nurse on for at least half the shift; one on
+ * for less, without a break of her own, takes none (docs/roster-format.md,
+ * "break_minutes"); her own break_minutes always count. */
+static void test_a_short_stay_takes_no_break_of_the_shift(void **state)
+{
+    (void)state;
+    loaded l = load("unit: {name: \"Test unit\", type: med-surg}\n"
+                    "shift: {start: \"07:00\", minutes: 720, break_minutes: 45}\n"
+                    "nurses:\n"
+                    "  - {id: N1}\n"
+                    "  - {id: N2, end: \"09:30\"}\n"
+                    "  - {id: N3, start: \"13:00\"}\n"
+                    "  - {id: N4, start: \"13:01\"}\n"
+                    "  - {id: N5, end: \"09:30\", break_minutes: 15}\n"
+                    "  - {id: N6, minutes: 240}\n"
+                    "patients:\n"
+                    "  - {id: P1, care_minutes: 60}\n");
+    const keel_workload *w = l.w;
+    assert_int_equal(w->capacity_minutes[0], 720 - 45);
+    assert_int_equal(w->capacity_minutes[1], 150); /* on 150 of 720 min: no break */
+    assert_true(keel_workload_no_break(l.r, 1));
+    assert_int_equal(w->capacity_minutes[2], 360 - 45); /* exactly half: the break */
+    assert_false(keel_workload_no_break(l.r, 2));
+    assert_int_equal(w->capacity_minutes[3], 359); /* a minute under half: none */
+    assert_int_equal(w->capacity_minutes[4], 150 - 15); /* her own break counts */
+    assert_false(keel_workload_no_break(l.r, 4));
+    assert_int_equal(w->capacity_minutes[5], 240); /* a part shift by minutes alone */
+    unload(&l);
+}
+
 static const char *clock_example =
     "unit: {name: \"Test unit\", type: med-surg}\n"
     "shift: {start: \"19:00\", minutes: 720, break_minutes: 60}\n"
@@ -313,6 +343,7 @@ int main(void)
         cmocka_unit_test(test_plan_check_names_every_broken_rule),
         cmocka_unit_test(test_diagnosis_explains_a_lock_that_cannot_hold),
         cmocka_unit_test(test_diagnosis_names_locks_that_exceed_a_limit),
+        cmocka_unit_test(test_a_short_stay_takes_no_break_of_the_shift),
         cmocka_unit_test(test_the_clock_cuts_stays_into_parts_and_moments),
         cmocka_unit_test(test_limits_hold_at_every_moment_not_on_the_total),
         cmocka_unit_test(test_planned_handoffs_follow_the_nurse_who_leaves),

@@ -34,7 +34,8 @@ start; every interval half-open):
                 - ceil(C_present (s - a) / (b - a)); extras in full on the
                 first part
   capacity    (e - s) - break minutes (timed breaks' total, else the
-                nurse's break_minutes, else shift.break_minutes)
+                nurse's break_minutes, else shift.break_minutes when she is on
+                for at least half the shift, else 0)
   stages      1: min U = max over counted nurses of (duty + care) / capacity;
               2: max L = min of the same, with U <= U*
 
@@ -213,7 +214,11 @@ def derive_clock(doc):
         elif n.get("break_minutes") is not None:
             brk = n["break_minutes"]
         else:
+            # The shift's break, for a nurse on for at least half the shift
+            # (docs/roster-format.md, "break_minutes").
             brk = shift.get("break_minutes", 0) or 0
+            if 2 * (e - s) < L:
+                brk = 0
         looser(n.get("max_patients"), "nurse %s max_patients" % nid)
         limits = [v for v in (policy.get("max_patients"), rspec.get("max_patients"),
                               n.get("max_patients")) if v is not None]

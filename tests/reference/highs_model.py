@@ -11,7 +11,8 @@ Roster arithmetic (keel's contract):
   care(p)     = care_minutes if given, else acuity_minutes[acuity];
                 plus extra_minutes[x] for each x in extras
   capacity(n) = minutes (default shift.minutes)
-                - break_minutes (default shift.break_minutes, else 0)
+                - break_minutes (default shift.break_minutes when the nurse is
+                  on for at least half the shift, else 0)
   duty(n)     = duty_minutes or 0
   limit(n)    = min of policy.max_patients and the nurse's max_patients,
                 whichever are given; none given = no limit
@@ -113,9 +114,15 @@ def derive(doc):
     nurses = []
     for n in doc.get("nurses") or []:
         minutes = n.get("minutes", shift.get("minutes"))
-        brk = n.get("break_minutes", shift.get("break_minutes", 0)) or 0
         if minutes is None:
             raise RosterError("nurse %s: no minutes and no shift.minutes" % n.get("id"))
+        brk = n.get("break_minutes")
+        if brk is None:
+            # The shift's break, for a nurse on for at least half the shift
+            # (docs/roster-format.md, "break_minutes").
+            brk = shift.get("break_minutes", 0) or 0
+            if 2 * int(minutes) < int(shift.get("minutes") or 0):
+                brk = 0
         limits = [v for v in (policy_limit, n.get("max_patients")) if v is not None]
         limit = min(limits) if limits else None
         cap = int(minutes) - int(brk)
