@@ -5,7 +5,8 @@
  * Every rule of the table (rule.h) judges the plan where its scope says:
  * each stretch of a patient with a nurse, each nurse at each moment, each
  * nurse's shift, each patient's parts; this file walks the plan and words
- * the time of a broken limit.  A limit set by a ratio table is reported as
+ * the time of a broken limit: every stretch of moments in which it holds,
+ * worded where the nurse holds the most.  A limit set by a ratio table is reported as
  * "exceeds the limit of <table> as encoded on <date>", never as a judgement
  * that the plan is unlawful.
  */
@@ -66,28 +67,64 @@ static keel_status ask(const keel_rule_plan *c, size_t first, size_t end, size_t
     return rc;
 }
 
-/* Moves the findings of one moment into out: each rule once per nurse
- * (the first moment it breaks), with the time said when there is a clock. */
-static keel_status keep_new(const keel_roster *r, const keel_workload *w, size_t m,
-                            keel_findings *found, keel_findings *out, size_t from)
+/* One rule a nurse breaks at one moment, holding k parts then. */
+typedef struct hit {
+    size_t m, k;
+    keel_finding f; /* owned until reported */
+} hit;
+
+static void hit_free(hit *h)
+{
+    free(h->f.patients);
+    free(h->f.nurses);
+    free(h->f.message);
+    h->f = (keel_finding){0};
+}
+
+/* Reports one nurse's hits as stretches: the moments in a row during which
+ * she breaks the same rule make one finding, worded at the moment she holds
+ * the most and timed over the whole stretch; a rule broken again later is a
+ * stretch of its own.  Every hit is freed. */
+static keel_status report_stretches(const keel_roster *r, const keel_workload *w, hit *hits,
+                                    size_t nhits, keel_findings *out)
 {
     keel_status rc = KEEL_OK;
-    for (size_t i = 0; i < found->n && !rc; i++) {
-        const keel_finding *f = &found->items[i];
-        bool seen = false;
-        for (size_t j = from; w->clocked && j < out->n && !seen; j++)
-            seen = strcmp(out->items[j].rule, f->rule) == 0;
-        if (seen)
+    for (size_t i = 0; i < nhits; i++) {
+        if (!hits[i].f.rule)
             continue;
+        size_t m0 = hits[i].m, m1 = m0 + 1, worst = i;
+        for (size_t j = i + 1; j < nhits; j++) {
+            if (!hits[j].f.rule || strcmp(hits[j].f.rule, hits[i].f.rule) != 0)
+                continue;
+            if (hits[j].m > m1)
+                break; /* a gap: the rule is broken again later, a stretch of its own */
+            if (hits[j].m == m1)
+                m1++;
+            if (hits[j].k > hits[worst].k) {
+                if (worst != i)
+                    hit_free(&hits[worst]);
+                worst = j;
+            } else {
+                hit_free(&hits[j]);
+            }
+        }
+        const keel_finding *f = &hits[worst].f;
         char at[KEEL_TIME_SIZE], until[KEEL_TIME_SIZE];
-        keel_roster_clock_text(r, w->moment_start[m], at);
-        keel_roster_clock_text(r, w->moment_start[m + 1], until);
+        keel_roster_clock_text(r, w->moment_start[m0], at);
+        keel_roster_clock_text(r, w->moment_start[m1], until);
         char *msg = w->clocked ? keel_asprintf("from %s to %s, %s", at, until, f->message)
                                : keel_strdup(f->message);
-        rc = keel_findings_add(out, f->rule, f->patients, f->npatients, f->nurses, f->nnurses,
-                               msg);
+        if (!rc)
+            rc = keel_findings_add(out, f->rule, f->patients, f->npatients, f->nurses, f->nnurses,
+                                   msg);
+        else
+            free(msg);
+        if (worst != i)
+            hit_free(&hits[worst]);
+        hit_free(&hits[i]);
     }
-    keel_findings_fini(found);
+    for (size_t i = 0; i < nhits; i++)
+        hit_free(&hits[i]);
     return rc;
 }
 
@@ -104,15 +141,17 @@ static keel_status check_pairs(const keel_rule_plan *c, size_t first, size_t end
     return rc;
 }
 
-/* The rules on what a nurse holds at each moment, each broken rule once per
- * nurse (at its first moment). */
+/* The rules on what a nurse holds at each moment, each broken rule
+ * reported for every stretch of moments in which it holds. */
 static keel_status check_moments(const keel_rule_plan *c, size_t first, size_t end, size_t *mine,
                                  keel_findings *out)
 {
     const keel_workload *w = c->w;
     keel_status rc = KEEL_OK;
+    hit *hits = NULL;
+    size_t cap = 0;
     for (size_t n = 0; n < w->nnurses && !rc; n++) {
-        size_t from = out->n;
+        size_t nhits = 0;
         for (size_t m = 0; m < w->nmoments && !rc; m++) {
             size_t k = 0;
             for (size_t q = 0; q < w->npatients; q++)
@@ -123,12 +162,26 @@ static keel_status check_moments(const keel_rule_plan *c, size_t first, size_t e
                 continue;
             keel_findings found = {0};
             rc = ask(c, first, end, n, m, mine, k, &found);
-            if (rc)
-                keel_findings_fini(&found);
-            else
-                rc = keep_new(c->r, w, m, &found, out, from);
+            for (size_t i = 0; !rc && i < found.n; i++) {
+                if (nhits == cap) {
+                    size_t bigger = cap ? 2 * cap : 16;
+                    hit *grown = keel_reallocarray(hits, bigger, sizeof *hits);
+                    if (!grown) {
+                        rc = KEEL_ERR_NOMEM;
+                        break;
+                    }
+                    hits = grown;
+                    cap = bigger;
+                }
+                hits[nhits++] = (hit){.m = m, .k = k, .f = found.items[i]};
+                found.items[i] = (keel_finding){0};
+            }
+            keel_findings_fini(&found);
         }
+        keel_status done = report_stretches(c->r, w, hits, nhits, out);
+        rc = rc ? rc : done;
     }
+    free(hits);
     return rc;
 }
 

@@ -322,14 +322,45 @@ static void test_planned_handoffs_follow_the_nurse_who_leaves(void **state)
     assert_int_equal(keel_plan_check(l.r, l.w, plan, &found, NULL), KEEL_OK);
     /* N2: P3 leaves at 11:00 and P4 arrives at 11:00, so two at a time under 1:2. */
     assert_int_equal(found.n, 0);
-    /* P1 with N2 all shift: three at a time until 11:00, and the planned
-     * hand-off to N3 no longer happens. */
+    /* P1 with N2 all shift: three at a time all shift (P3 until 11:00, P4
+     * from then), one stretch from 07:00 to 19:00; and the planned hand-off
+     * to N3 no longer happens. */
     plan[0] = plan[1] = 1;
     assert_int_equal(keel_plan_check(l.r, l.w, plan, &found, NULL), KEEL_OK);
     assert_int_equal(found.n, 2);
     assert_string_equal(found.items[0].rule, "moment_limit");
-    assert_non_null(strstr(found.items[0].message, "from 07:00 to 11:00"));
+    assert_non_null(strstr(found.items[0].message, "from 07:00 to 19:00, N2 has 3 patients"));
     assert_string_equal(found.items[1].rule, "hand_off");
+    keel_findings_fini(&found);
+    unload(&l);
+}
+
+/* A limit broken twice, with a stretch kept between, is listed twice, each
+ * stretch whole and worded where the nurse holds the most. */
+static void test_every_stretch_of_a_broken_limit_is_listed(void **state)
+{
+    (void)state;
+    static const char *text = "unit: {name: \"Test unit\", type: med-surg}\n"
+                              "shift: {start: \"07:00\", minutes: 720}\n"
+                              "policy: {max_patients: 2}\n"
+                              "nurses:\n"
+                              "  - {id: N1}\n"
+                              "  - {id: N2}\n"
+                              "patients:\n"
+                              "  - {id: P1, care_minutes: 60, nurse: N1}\n"
+                              "  - {id: P2, care_minutes: 60, nurse: N1}\n"
+                              "  - {id: P3, care_minutes: 60, nurse: N1, leaves_at: \"09:00\"}\n"
+                              "  - {id: P4, care_minutes: 60, nurse: N1, leaves_at: \"10:00\"}\n"
+                              "  - {id: P5, care_minutes: 60, nurse: N1, arrives_at: \"15:00\"}\n";
+    loaded l = load(text);
+    int plan[8];
+    assert_true(keel_plan_from_roster(l.r, l.w, plan));
+    keel_findings found = {0};
+    assert_int_equal(keel_plan_check(l.r, l.w, plan, &found, NULL), KEEL_OK);
+    /* 07:00-09:00 four, 09:00-10:00 three, 10:00-15:00 two, 15:00-19:00 three. */
+    assert_int_equal(found.n, 2);
+    assert_non_null(strstr(found.items[0].message, "from 07:00 to 10:00, N1 has 4 patients"));
+    assert_non_null(strstr(found.items[1].message, "from 15:00 to 19:00, N1 has 3 patients"));
     keel_findings_fini(&found);
     unload(&l);
 }
@@ -347,6 +378,7 @@ int main(void)
         cmocka_unit_test(test_the_clock_cuts_stays_into_parts_and_moments),
         cmocka_unit_test(test_limits_hold_at_every_moment_not_on_the_total),
         cmocka_unit_test(test_planned_handoffs_follow_the_nurse_who_leaves),
+        cmocka_unit_test(test_every_stretch_of_a_broken_limit_is_listed),
     };
     return cmocka_run_group_tests_name("workload", tests, NULL, NULL);
 }

@@ -32,9 +32,11 @@ KEEL_API bool keel_plan_from_roster(const keel_roster *roster, const keel_worklo
  * competency, `patient_limit` for a nurse over the limit, `lock` for a
  * locked patient moved, `avoid` for a patient given to a nurse on its avoid
  * list, and the rules that join patients.  With the clock the rules are
- * checked at every moment (a count limit broken is `moment_limit`, once per
- * nurse and rule, at the first moment it breaks, the message starting
- * "from HH:MM to HH:MM"), and `hand_off` names a patient held by a nurse
+ * checked at every moment (a count limit broken is `moment_limit`): one
+ * finding per nurse, rule and stretch of moments in a row in which she
+ * breaks it, the message starting "from HH:MM to HH:MM" over the whole
+ * stretch and counting what she holds at its worst; a rule broken again
+ * after a break in the stretch is a finding of its own.  `hand_off` names a patient held by a nurse
  * who is not on, or planned hand-offs that do not happen.  Statuses: KEEL_OK,
  * KEEL_ERR_NOMEM.  The caller owns what is appended. */
 KEEL_API keel_status keel_plan_check(const keel_roster *roster, const keel_workload *w, const int *nurse_of,
