@@ -296,14 +296,24 @@ static void write_balance(FILE *out, const keel_metrics *m)
             m->peak_to_mean, m->cv, m->jain, m->gini);
 }
 
-static void write_stage(FILE *out, const keel_stage *st, const char *what, const char *limit)
+/* One balance stage, with this plan's own value first: when the later
+ * stages spent some of the balance tolerance, the stage's best is said
+ * apart, in the same line, with the reason. */
+static void write_stage(FILE *out, const keel_stage *st, double plan, const char *spent_on,
+                        const char *what, const char *limit)
 {
-    fprintf(out, "  %-9s %5.1f %%  ", what, 100.0 * st->value);
+    bool same = plan > st->value - 5e-10 && plan < st->value + 5e-10;
+    fprintf(out, "  %-9s %5.1f %%  ", what, 100.0 * plan);
+    if (!same)
+        fprintf(out, "(tolerance spent on %s; the most even plan: %.1f %%, ", spent_on,
+                100.0 * st->value);
     if (st->status == KEEL_SOLVE_OPTIMAL)
         fputs("proven best possible", out);
     else
         fprintf(out, "not proven: %s %.1f %% (gap %.2f %%)", limit, 100.0 * st->bound,
                 100.0 * st->gap);
+    if (!same)
+        fputc(')', out);
     if (st->solver_calls > 0)
         fprintf(out, "  [%d integer programme%s, %.2f s]", st->solver_calls,
                 st->solver_calls == 1 ? "" : "s", st->seconds);
@@ -343,12 +353,17 @@ static void write_proof(FILE *out, const keel_solution *s, const keel_metrics *m
 {
     fprintf(out, "Status: %s (method %s, %.2f s)\n", keel_solve_status_name(s->status), s->method,
             s->seconds);
+    const char *spent_on = s->continuity.applies && s->proximity.applies ? "continuity and proximity"
+                           : s->continuity.applies                       ? "continuity"
+                                                                         : "proximity";
     for (size_t i = 0; i < s->nstages; i++) {
         const keel_stage *st = &s->stages[i];
         if (strcmp(st->name, "peak") == 0)
-            write_stage(out, st, "heaviest", "the best possible is at least");
+            write_stage(out, st, m->max_utilisation, spent_on, "heaviest",
+                        "the best possible is at least");
         else if (strcmp(st->name, "lift") == 0)
-            write_stage(out, st, "lightest", "the best possible is at most");
+            write_stage(out, st, m->min_utilisation, spent_on, "lightest",
+                        "the best possible is at most");
         else if (strcmp(st->name, "squares") == 0)
             write_squares_stage(out, st);
         else if (st->name[0] == 'c')
