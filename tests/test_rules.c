@@ -489,6 +489,28 @@ static void test_the_bound_is_explained_by_its_reason(void **state)
     keel_solution_free(s);
     tu_case_free(c);
 
+    /* The same three patients, but N2 has chemo too and they are locked to
+     * N1: the lock, not the competency, keeps them on N1, and the words say
+     * so (a wrong reason once named the competency). */
+    c = tu_case_new(3, 4);
+    tu_add_skill(c, 0, "chemo");
+    tu_add_skill(c, 1, "chemo");
+    for (size_t p = 0; p < 3; p++) {
+        c->w.care_minutes[p] = 200;
+        tu_add_need(c, p, "chemo");
+        c->roster.patients[p].lock = true;
+    }
+    c->w.care_minutes[3] = 60;
+    tu_refresh(c);
+    for (size_t p = 0; p < 3; p++)
+        c->w.eligible[p * 3 + 1] = false; /* locked to N1, as workload.c derives */
+    s = solve(c);
+    assert_string_equal(s->bound_reason.kind, "group");
+    assert_null(strstr(s->bound_reason.text, "need chemo"));
+    assert_non_null(strstr(s->bound_reason.text, "the 3 patients locked to N1"));
+    keel_solution_free(s);
+    tu_case_free(c);
+
     /* One 600-minute patient and two of 30 on two nurses: U* = 600/660,
      * the patient alone. */
     c = tu_case_new(2, 3);

@@ -98,6 +98,46 @@ static char *shared_needs(const keel_roster *r, const keel_workload *w, size_t q
     return text;
 }
 
+/* True when the shared competencies explain the group: every nurse who
+ * takes patients and may not take q lacks one of the competencies every
+ * patient inside needs.  Otherwise a lock or an avoid list keeps them from
+ * her, and "who need ..." would be a wrong reason. */
+static bool needs_explain(const keel_roster *r, const keel_workload *w, size_t q,
+                          const bool *inside)
+{
+    const keel_patient *pq = &r->patients[w->patient[q]];
+    for (size_t n = 0; n < w->nnurses; n++) {
+        if (!keel_workload_counted(w, n) || keel_workload_eligible(w, q, n))
+            continue;
+        bool lacks = false;
+        for (size_t i = 0; i < pq->nneeds && !lacks; i++) {
+            bool all = true; /* every patient inside needs it */
+            for (size_t p = 0; p < w->npatients && all; p++) {
+                if (!inside[p])
+                    continue;
+                const keel_patient *pp = &r->patients[w->patient[p]];
+                bool has = false;
+                for (size_t j = 0; j < pp->nneeds && !has; j++)
+                    has = strcmp(pp->needs[j], pq->needs[i]) == 0;
+                all = has;
+            }
+            lacks = all && !keel_nurse_has_skill(&r->nurses[n], pq->needs[i]);
+        }
+        if (!lacks)
+            return false;
+    }
+    return true;
+}
+
+/* True when every patient inside is locked to a nurse. */
+static bool all_locked(const keel_roster *r, const keel_workload *w, const bool *inside)
+{
+    for (size_t p = 0; p < w->npatients; p++)
+        if (inside[p] && !r->patients[w->patient[p]].lock)
+            return false;
+    return true;
+}
+
 static char *describe(const keel_roster *r, const keel_workload *w, const floor_found *f,
                       double bound, bool below, bool *inside)
 {
@@ -135,10 +175,14 @@ static char *describe(const keel_roster *r, const keel_workload *w, const floor_
     }
     char *nurses = group_nurses(r, w, f->who), *needs = shared_needs(r, w, f->who, inside);
     char *text = NULL;
-    if (nurses && needs)
+    if (nurses && needs && needs_explain(r, w, f->who, inside))
         text = keel_asprintf("the %zu patients who need %s (%lld min with the nurses' duty) can "
                              "only go to %s (%lld min): %.1f %%",
                              f->size, needs, f->work, nurses, f->time, pct);
+    else if (nurses && all_locked(r, w, inside))
+        text = keel_asprintf("the %zu patients locked to %s (%lld min with the nurses' duty, of "
+                             "%lld min): %.1f %%",
+                             f->size, nurses, f->work, f->time, pct);
     else if (nurses)
         text = keel_asprintf("%zu patients can only go to %s (competencies, locks, avoid lists): "
                              "%lld min of work over %lld min, %.1f %%",
