@@ -117,9 +117,9 @@ static long high_places(const keel_workload *w, size_t *nnurses)
 static char *conflict(const keel_roster *r, const keel_workload *w, const char *tail,
                       size_t nothers)
 {
-    size_t nhigh = 0;
+    size_t nhigh = 0; /* patients, not parts: a stay cut by the clock counts once */
     for (size_t p = 0; p < w->npatients; p++)
-        nhigh += w->high_acuity[p];
+        nhigh += w->high_acuity[p] && w->first_part[w->patient[p]] == (int)p;
     int level = r->policy.high_acuity.level;
     if (w->max_high_acuity == 0)
         return keel_asprintf("%zu high-acuity patients (acuity %d or more), but "
@@ -128,7 +128,9 @@ static char *conflict(const keel_roster *r, const keel_workload *w, const char *
                              nhigh, level);
     size_t nurses;
     long places = high_places(w, &nurses);
-    if (places < (long)nhigh && !nothers) {
+    /* The places add up only without the clock (with it they hold at each
+     * moment, over the nurses on then). */
+    if (!w->clocked && places < (long)nhigh && !nothers) {
         long per = w->max_high_acuity > 0 ? w->max_high_acuity : 1;
         long more = ((long)nhigh - places + per - 1) / per;
         return keel_asprintf("%zu high-acuity patients (acuity %d or more) and at most %d "

@@ -226,6 +226,8 @@ expect 3 "too few places after a nurse leaves, as json" -- "$keel" assign "$data
 has "$work/out" '"tightest_moment": {"from": "11:00", "to": "19:00", "nurses_on": 1, "limits_need": 2}' "staffing counts the nurses on at each moment"
 expect 3 "nobody on for a patient at night" -- "$keel" assign "$data/clock-night-gap.yaml"
 has "$work/err" "no nurse who may take P1 is on from 03:00 to 07:00" "a stretch with no nurse on is named across midnight"
+expect 3 "high acuity that no nurse may take, with the clock" -- "$keel" assign "$data/clock-high-acuity-none.yaml"
+has "$work/err" "[high_acuity] 2 high-acuity patients (acuity 4 or more)" "the diagnosis counts patients, not the clock's parts"
 
 echo "1..$n"
 [ "$failed" -eq 0 ]
