@@ -7,6 +7,7 @@
 #include <string.h>
 
 #include "keel/law.h"
+#include "textbuf.h"
 
 #define ARRAY_LEN(a) (sizeof(a) / sizeof((a)[0]))
 #define MINUTES_PER_DAY 1440
@@ -39,12 +40,17 @@ static const keel_law_table tables[] = {
      .entries = california_entries},
     {.name = "queensland",
      .citation = "Hospital and Health Boards Regulation 2012 (Qld), Part 6A",
-     .version = "Part 6A as in force from 2016-07-01; the 2012 regulation was later replaced "
-                "(Hospital and Health Boards Regulation 2023), whose text keel has not checked",
+     .version = "Part 6A as in force from 2016-07-01",
      .encoded = "2026-12-02",
      .classes = "morning 07:00-15:00, afternoon 15:00-23:00, night 23:00-07:00 (section 30A)",
      .nentries = ARRAY_LEN(queensland_entries),
-     .entries = queensland_entries},
+     .entries = queensland_entries,
+     /* (from memory) The 2012 regulation was later replaced.  The sources read
+      * name no successor, so the note names none, and no entry was checked
+      * against it. */
+     .note = "This table encodes superseded text: the Hospital and Health Boards Regulation "
+             "2012 (Qld) was replaced by a later text, and keel has not checked the table "
+             "against that successor."},
 };
 
 size_t keel_law_ntables(void)
@@ -55,6 +61,17 @@ size_t keel_law_ntables(void)
 const keel_law_table *keel_law_table_at(size_t i)
 {
     return i < ARRAY_LEN(tables) ? &tables[i] : NULL;
+}
+
+int keel_law_cite(const keel_law_table *t, char *buf, size_t size)
+{
+    keel_textbuf k = {buf, size, 0};
+    if (buf && size > 0)
+        buf[0] = '\0';
+    if (t)
+        keel_textbuf_put(&k, "%s (%s; %s; as encoded by keel on %s)", t->name, t->citation,
+                         t->version, t->encoded);
+    return (int)k.len;
 }
 
 const keel_law_table *keel_law_find(const char *name)
@@ -96,15 +113,35 @@ static int overlap(int start, int len, int from, int to)
     return total;
 }
 
+/* Minutes of the shift that fall in class c of s 30A (the only shift classes
+ * a table has); night runs 23:00-07:00 and is counted as two parts. */
+static int class_minutes(int start, int len, keel_shift_class c)
+{
+    switch (c) {
+    case KEEL_SHIFT_MORNING:
+        return overlap(start, len, 7 * 60, 15 * 60);
+    case KEEL_SHIFT_AFTERNOON:
+        return overlap(start, len, 15 * 60, 23 * 60);
+    case KEEL_SHIFT_NIGHT:
+        return overlap(start, len, 0, 7 * 60) + overlap(start, len, 23 * 60, MINUTES_PER_DAY);
+    case KEEL_SHIFT_ANY:
+        break;
+    }
+    return 0;
+}
+
+static bool has_classes(const keel_law_table *t, int start_minute, int minutes)
+{
+    return t && t->classes && start_minute >= 0 && minutes > 0;
+}
+
 keel_shift_class keel_law_shift_class(const keel_law_table *t, int start_minute, int minutes)
 {
-    if (!t || !t->classes || start_minute < 0 || minutes <= 0)
+    if (!has_classes(t, start_minute, minutes))
         return KEEL_SHIFT_ANY;
-    /* Windows of s 30A; night runs 23:00-07:00 and is counted as two parts. */
-    int morning = overlap(start_minute, minutes, 7 * 60, 15 * 60);
-    int afternoon = overlap(start_minute, minutes, 15 * 60, 23 * 60);
-    int night = overlap(start_minute, minutes, 0, 7 * 60) +
-                overlap(start_minute, minutes, 23 * 60, MINUTES_PER_DAY);
+    int morning = class_minutes(start_minute, minutes, KEEL_SHIFT_MORNING);
+    int afternoon = class_minutes(start_minute, minutes, KEEL_SHIFT_AFTERNOON);
+    int night = class_minutes(start_minute, minutes, KEEL_SHIFT_NIGHT);
     /* s 30A(2): equal morning and afternoon is afternoon, equal afternoon
      * and night is night, equal morning and night is morning. */
     if (night >= afternoon && night > morning)
@@ -112,6 +149,56 @@ keel_shift_class keel_law_shift_class(const keel_law_table *t, int start_minute,
     if (afternoon >= morning)
         return KEEL_SHIFT_AFTERNOON;
     return KEEL_SHIFT_MORNING;
+}
+
+/* The shift's minutes in each class (in[c], c from MORNING to NIGHT); returns
+ * how many classes it touches, 0 for a table without classes. */
+static int split_by_class(const keel_law_table *t, int start_minute, int minutes,
+                          int in[KEEL_SHIFT_NIGHT + 1])
+{
+    int classes = 0;
+    for (int c = KEEL_SHIFT_MORNING; c <= KEEL_SHIFT_NIGHT; c++) {
+        in[c] = has_classes(t, start_minute, minutes)
+                    ? class_minutes(start_minute, minutes, (keel_shift_class)c)
+                    : 0;
+        classes += in[c] > 0;
+    }
+    return classes;
+}
+
+bool keel_law_shift_spans(const keel_law_table *t, int start_minute, int minutes)
+{
+    int in[KEEL_SHIFT_NIGHT + 1];
+    return split_by_class(t, start_minute, minutes, in) > 1;
+}
+
+int keel_law_shift_class_note(const keel_law_table *t, int start_minute, int minutes, char *buf,
+                              size_t size)
+{
+    keel_textbuf k = {buf, size, 0};
+    char cite[KEEL_LAW_CITE_SIZE];
+    int in[KEEL_SHIFT_NIGHT + 1];
+    if (buf && size > 0)
+        buf[0] = '\0';
+    int classes = split_by_class(t, start_minute, minutes, in);
+    if (classes < 2)
+        return 0;
+    keel_law_cite(t, cite, sizeof cite);
+    keel_textbuf_put(&k, "classed as %s under %s (the shift spans ",
+                     keel_shift_class_name(keel_law_shift_class(t, start_minute, minutes)), cite);
+    for (int c = KEEL_SHIFT_MORNING, seen = 0; c <= KEEL_SHIFT_NIGHT; c++) {
+        if (in[c] == 0)
+            continue;
+        seen++;
+        keel_textbuf_put(&k, "%s%d min of %s",
+                         seen == 1         ? ""
+                         : seen == classes ? " and "
+                                           : ", ",
+                         in[c], keel_shift_class_name((keel_shift_class)c));
+    }
+    keel_textbuf_put(&k, "; keel applies the class that holds most of the shift's minutes, a tie "
+                         "settled as section 30A(2) of the text says)");
+    return (int)k.len;
 }
 
 const char *keel_shift_class_name(keel_shift_class c)

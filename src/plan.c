@@ -6,8 +6,10 @@
  * each stretch of a patient with a nurse, each nurse at each moment, each
  * nurse's shift, each patient's parts; this file walks the plan and words
  * the time of a broken limit: every stretch of moments in which it holds,
- * worded where the nurse holds the most.  A limit set by a ratio table is reported as
- * "exceeds the limit of <table> as encoded on <date>", never as a judgement
+ * worded where the nurse holds the most.  A limit set by a ratio table is
+ * reported as "exceeds the limit of 1:N for <unit type> in <table cited>"
+ * (keel_law_cite(): the text, its version and the date keel encoded it),
+ * never as a judgement
  * that the plan is unlawful.
  */
 #include "keel/plan.h"

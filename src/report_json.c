@@ -283,6 +283,33 @@ static void write_stages(FILE *out, const keel_solution *s)
                 s->proximity.rooms);
 }
 
+/* `, "key": "text"`, or `null` for no text. */
+static void write_key_text(FILE *out, const char *key, const char *text)
+{
+    fprintf(out, ", \"%s\": ", key);
+    if (text)
+        keel_report_out_quoted(out, text);
+    else
+        fputs("null", out);
+}
+
+/* The ratio table: its name, what it encodes, its note, the shift's class
+ * and, when the shift spans classes, how keel classed it. */
+static void write_ratio_table(FILE *out, const keel_roster *r, const keel_staffing *st)
+{
+    const keel_law_table *t = st->table;
+    char note[2 * KEEL_LAW_CITE_SIZE];
+    fprintf(out, "{\"name\": \"%s\", \"encoded\": \"%s\", \"shift_class\": \"%s\"", t->name,
+            t->encoded, keel_shift_class_name(st->shift_class));
+    write_key_text(out, "citation", t->citation);
+    write_key_text(out, "version", t->version);
+    write_key_text(out, "note", t->note);
+    bool spans = keel_law_shift_class_note(t, r->shift.start_minute, r->shift.minutes, note,
+                                           sizeof note) > 0;
+    write_key_text(out, "shift_class_note", spans ? note : NULL);
+    fputc('}', out);
+}
+
 static void write_staffing(FILE *out, const keel_report *rep)
 {
     const keel_metrics *m = rep->metrics;
@@ -301,12 +328,10 @@ static void write_staffing(FILE *out, const keel_report *rep)
             "\"nurse_hours_per_patient\": %.12g, \"ratio_table\": ",
             st->by_minutes, st->by_limits, st->ward_minimum, st->needed,
             keel_staffing_need_name(st->binding), st->slack, st->hours_per_patient);
-    if (st->table) {
-        fprintf(out, "{\"name\": \"%s\", \"encoded\": \"%s\", \"shift_class\": \"%s\"}",
-                st->table->name, st->table->encoded, keel_shift_class_name(st->shift_class));
-    } else {
+    if (st->table)
+        write_ratio_table(out, rep->roster, st);
+    else
         fputs("null", out);
-    }
     if (st->clocked && st->moment_need > 0) {
         char from[KEEL_TIME_SIZE], to[KEEL_TIME_SIZE];
         keel_roster_clock_text(rep->roster, st->moment_from, from);

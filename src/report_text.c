@@ -28,6 +28,71 @@ static void write_heading(FILE *out, const keel_report *rep)
     fprintf(out, "%zu patients, %zu nurses\n\n", r->npatients, r->nnurses);
 }
 
+/* text with every full citation of table t (keel_law_cite()) shortened to
+ * "<name> (table cited above)": the report cites the table in full once, at
+ * its head.  A new string, or NULL when out of memory. */
+static char *cited_above(const keel_law_table *t, const char *text)
+{
+    char cite[KEEL_LAW_CITE_SIZE], shortened[KEEL_LAW_CITE_SIZE];
+    keel_law_cite(t, cite, sizeof cite);
+    snprintf(shortened, sizeof shortened, "%s (table cited above)", t ? t->name : "");
+    size_t clen = strlen(cite), slen = strlen(shortened), nhits = 0;
+    for (const char *at = text; t && (at = strstr(at, cite)) != NULL; at += clen)
+        nhits++;
+    char *out = keel_malloc(strlen(text) + nhits * slen + 1);
+    if (!out)
+        return NULL;
+    size_t len = 0;
+    for (const char *at, *from = text;; from = at + clen) {
+        at = t ? strstr(from, cite) : NULL;
+        size_t keep = at ? (size_t)(at - from) : strlen(from);
+        memcpy(out + len, from, keep);
+        len += keep;
+        if (!at)
+            break;
+        memcpy(out + len, shortened, slen);
+        len += slen;
+    }
+    out[len] = '\0';
+    return out;
+}
+
+/* text (which may cite table t), its citation shortened as the head has
+ * cited the table: after prefix on one line, or wrapped under it. */
+static void write_cited(FILE *out, const keel_law_table *t, const char *prefix, const char *text,
+                        bool wrap)
+{
+    char *shown = cited_above(t, text);
+    const char *line = shown ? shown : text;
+    if (wrap)
+        keel_report_out_wrapped(out, prefix, line, 78);
+    else
+        fprintf(out, "%s%s\n", prefix, line);
+    free(shown);
+}
+
+/* The ratio table the roster selects, cited in full once: what it encodes,
+ * its note, and how keel classed a shift that spans its shift classes. */
+static void write_ratio_table(FILE *out, const keel_roster *r)
+{
+    const keel_law_table *t = r->policy.ratio_table;
+    char cite[KEEL_LAW_CITE_SIZE], classed[2 * KEEL_LAW_CITE_SIZE];
+    if (!t)
+        return;
+    keel_law_cite(t, cite, sizeof cite);
+    fputs("Ratio table\n", out);
+    keel_report_out_wrapped(out, "  ", cite, 78);
+    if (t->note)
+        keel_report_out_wrapped(out, "  ", t->note, 78);
+    if (keel_law_shift_class_note(t, r->shift.start_minute, r->shift.minutes, classed,
+                                  sizeof classed) > 0) {
+        char *line = keel_asprintf("This shift is %s.", classed);
+        write_cited(out, t, "  ", line ? line : classed, true);
+        free(line);
+    }
+    fputc('\n', out);
+}
+
 /* With the clock: when the patient is here, and whom nurse n (-1: none)
  * hands the patient to or takes the patient from. */
 static void write_stay(FILE *out, const keel_report *rep, size_t p, int n)
@@ -183,12 +248,11 @@ static void write_one_cover(FILE *out, const keel_report *rep, const keel_break_
     fputc('\n', out);
     if (!b->rule)
         return;
-    const keel_law_table *t = r->policy.ratio_table;
     if (strcmp(b->rule, "law_limit") == 0)
         fprintf(out,
-                "      FLAG law_limit: exceeds the limit of %s (1:%d for %s) as encoded on %s, "
-                "which holds during breaks\n",
-                t->name, b->limit, r->unit.type, t->encoded);
+                "      FLAG law_limit: exceeds the limit of 1:%d for %s in %s (table cited "
+                "above), which holds during breaks\n",
+                b->limit, r->unit.type, r->policy.ratio_table->name);
     else if (strcmp(b->rule, "patient_limit") == 0)
         fprintf(out, "      FLAG patient_limit: over the patient limit of %d\n", b->limit);
     else
@@ -445,20 +509,28 @@ static void write_staffing(FILE *out, const keel_metrics *m, const keel_staffing
                 "someone over 100 %%.\n",
                 work - m->capacity_minutes);
     if (st) {
-        char buf[1024];
-        keel_staffing_format(st, buf, sizeof buf);
-        keel_report_out_wrapped(out, "  ", buf, 78);
+        size_t size = (size_t)keel_staffing_format(st, NULL, 0) + 1;
+        char *buf = keel_malloc(size);
+        if (buf) {
+            keel_staffing_format(st, buf, size);
+            write_cited(out, st->table, "  ", buf, true);
+        }
+        free(buf);
     }
     fputc('\n', out);
 }
 
-static void write_findings(FILE *out, const char *title, const keel_findings *list)
+static void write_findings(FILE *out, const keel_law_table *t, const char *title,
+                           const keel_findings *list)
 {
+    char prefix[64];
     if (!list || list->n == 0)
         return;
     fprintf(out, "%s\n", title);
-    for (size_t i = 0; i < list->n; i++)
-        fprintf(out, "  [%s] %s\n", list->items[i].rule, list->items[i].message);
+    for (size_t i = 0; i < list->n; i++) {
+        snprintf(prefix, sizeof prefix, "  [%s] ", list->items[i].rule);
+        write_cited(out, t, prefix, list->items[i].message, false);
+    }
     fputc('\n', out);
 }
 
@@ -481,12 +553,14 @@ static void write_workload(FILE *out, const keel_report *rep)
 keel_status keel_report_text(const keel_report *rep, FILE *out)
 {
     const keel_solution *s = rep->solution;
+    const keel_law_table *t = rep->roster->policy.ratio_table;
     write_heading(out, rep);
+    write_ratio_table(out, rep->roster);
     if (rep->kind == KEEL_REPORT_CHECK)
         write_workload(out, rep);
     if (s && s->status == KEEL_SOLVE_INFEASIBLE && rep->kind == KEEL_REPORT_ASSIGN) {
         fputs("No valid assignment exists for this roster.\n\n", out);
-        write_findings(out, "Why", &s->diagnoses);
+        write_findings(out, t, "Why", &s->diagnoses);
         if (s->best_effort && rep->nurse_of) {
             fprintf(out,
                     "BEST-EFFORT PLAN - it breaks the rules listed below (severity %ld).\n"
@@ -495,7 +569,7 @@ keel_status keel_report_text(const keel_report *rep, FILE *out)
             write_nurse_blocks(out, rep);
             write_handoffs(out, rep);
             write_balance(out, rep->metrics);
-            write_findings(out, "Rules this best-effort plan breaks", rep->violations);
+            write_findings(out, t, "Rules this best-effort plan breaks", rep->violations);
         }
     } else if (rep->nurse_of) {
         if (rep->kind == KEEL_REPORT_CHECK)
@@ -511,11 +585,11 @@ keel_status keel_report_text(const keel_report *rep, FILE *out)
         write_proof(out, s, rep->metrics);
     if (rep->kind == KEEL_REPORT_CHECK) {
         if (rep->nurse_of)
-            write_findings(out, "Rules the plan breaks", rep->violations);
+            write_findings(out, t, "Rules the plan breaks", rep->violations);
         if (rep->nurse_of && rep->violations && rep->violations->n == 0)
             fputs("The plan keeps every rule keel checks.\n\n", out);
         if (s && s->status == KEEL_SOLVE_INFEASIBLE)
-            write_findings(out, "No valid assignment exists", &s->diagnoses);
+            write_findings(out, t, "No valid assignment exists", &s->diagnoses);
         else if (s && s->nstages > 0 && strcmp(s->stages[0].name, "peak") == 0) {
             fprintf(
                 out, "Best possible heaviest utilisation: %.1f %% (%s)", 100.0 * s->stages[0].value,

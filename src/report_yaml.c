@@ -97,8 +97,14 @@ static void write_head(FILE *out, const keel_roster *r)
         write_key_int(out, "      ", "max_patients", rp->max_patients);
         write_key_int(out, "      ", "duty_minutes", rp->duty_minutes);
     }
-    if (r->policy.ratio_table)
+    if (r->policy.ratio_table) {
+        char cite[KEEL_LAW_CITE_SIZE];
+        keel_law_cite(r->policy.ratio_table, cite, sizeof cite);
+        fprintf(out, "  # %s\n", cite);
+        if (r->policy.ratio_table->note)
+            fprintf(out, "  # %s\n", r->policy.ratio_table->note);
         fprintf(out, "  ratio_table: %s\n", r->policy.ratio_table->name);
+    }
     if (r->policy.high_acuity.level != KEEL_ABSENT)
         fprintf(out, "  high_acuity: {level: %d, max_per_nurse: %d}\n", r->policy.high_acuity.level,
                 r->policy.high_acuity.max_per_nurse);

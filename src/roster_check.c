@@ -411,13 +411,13 @@ static void check_not_looser(loader *ld, const node *at, int value, const char *
     const keel_roster *r = ld->roster;
     const keel_law_table *t = r->policy.ratio_table;
     int law = keel_law_nurse_max(t, r->unit.type);
+    char table[KEEL_LAW_CITE_SIZE];
     if (law < 0 || value == KEEL_ABSENT || value <= law)
         return;
+    keel_law_cite(t, table, sizeof table);
     keel_roster_report_problem(
-        ld, at->mark,
-        "%s%d is looser than the %s table (%s, 1:%d for %s as encoded on %s); expected at "
-        "most %d",
-        what, value, t->name, t->citation, law, r->unit.type, t->encoded, law);
+        ld, at->mark, "%s%d is looser than the limit of 1:%d for %s in %s; expected at most %d",
+        what, value, law, r->unit.type, table, law);
 }
 
 /* policy.ratio_table needs a unit type it covers (and, for a table that
@@ -428,9 +428,10 @@ static void check_ratio_table(loader *ld, const node *root)
     const keel_roster *r = ld->roster;
     const keel_law_table *t = r->policy.ratio_table;
     const node *policy = keel_roster_tree_find(root, "policy");
-    char covered[256] = "";
+    char covered[256] = "", table[KEEL_LAW_CITE_SIZE];
     if (!t)
         return;
+    keel_law_cite(t, table, sizeof table);
     for (size_t i = 0, used = 0; i < t->nentries && used < sizeof covered; i++) {
         if (strstr(covered, t->entries[i].unit_type))
             continue;
@@ -445,24 +446,24 @@ static void check_ratio_table(loader *ld, const node *root)
     if (!r->unit.type) {
         keel_roster_report_problem(
             ld, at->mark,
-            "the %s table needs unit.type to know which entry applies; expected unit.type, "
+            "the table %s needs unit.type to know which entry applies; expected unit.type, "
             "one of %s",
-            t->name, covered);
+            table, covered);
         return;
     }
     if (!keel_law_covers(t, r->unit.type)) {
         keel_roster_report_problem(
             ld, at->mark,
-            "the %s table as encoded on %s has no entry for unit type '%s'; expected a unit "
-            "of type %s, or no ratio_table",
-            t->name, t->encoded, r->unit.type, covered);
+            "the table %s has no entry for unit type '%s'; expected a unit of type %s, or no "
+            "ratio_table",
+            table, r->unit.type, covered);
         return;
     }
     if (t->classes && r->shift.start_minute == KEEL_ABSENT)
         keel_roster_report_problem(
             ld, at->mark,
-            "the %s table differs by shift (%s); expected shift.start to tell which applies",
-            t->name, t->classes);
+            "the table %s differs by shift (%s); expected shift.start to tell which applies", table,
+            t->classes);
     if (r->policy.max_patients != KEEL_ABSENT) {
         keel_roster_report_pop_path(ld, 0);
         keel_roster_report_push_key(ld, "policy");

@@ -48,11 +48,11 @@ static keel_status check(const keel_rule_plan *c, size_t n, size_t m, const size
     if ((long)k <= w->max_patients[n])
         return KEEL_OK;
     const char *id = r->nurses[n].id;
-    const keel_law_table *t = r->policy.ratio_table;
+    char table[KEEL_LAW_CITE_SIZE];
+    keel_law_cite(r->policy.ratio_table, table, sizeof table);
     char *msg = by_law(w, n)
-                    ? keel_asprintf("%s has %zu patients: exceeds the limit of %s (1:%d for %s) "
-                                    "as encoded on %s",
-                                    id, k, t->name, w->law_limit, r->unit.type, t->encoded)
+                    ? keel_asprintf("%s has %zu patients: exceeds the limit of 1:%d for %s in %s",
+                                    id, k, w->law_limit, r->unit.type, table)
                     : keel_asprintf("%s has %zu patients; the patient limit is %d", id, k,
                                     w->max_patients[n]);
     size_t *who = keel_calloc(k, sizeof *who);

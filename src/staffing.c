@@ -269,10 +269,18 @@ static const char *verb_s(long n)
     return n == 1 ? "s" : "";
 }
 
-/* "under <table> as encoded on <date>", with the shift class if it has one. */
+/* The table as keel cites it (keel_law_cite()). */
+static const char *cite(const keel_staffing *s, char buf[KEEL_LAW_CITE_SIZE])
+{
+    keel_law_cite(s->table, buf, KEEL_LAW_CITE_SIZE);
+    return buf;
+}
+
+/* "under <table cited>", with the shift class if it has one. */
 static void put_table(keel_textbuf *k, const keel_staffing *s)
 {
-    keel_textbuf_put(k, "under %s as encoded on %s", s->table->name, s->table->encoded);
+    char table[KEEL_LAW_CITE_SIZE];
+    keel_textbuf_put(k, "under %s", cite(s, table));
     if (s->shift_class != KEEL_SHIFT_ANY)
         keel_textbuf_put(k, " (%s shift)", keel_shift_class_name(s->shift_class));
 }
@@ -280,6 +288,7 @@ static void put_table(keel_textbuf *k, const keel_staffing *s)
 /* What the binding need is, after "need at least K nurses ". */
 static void put_reason(keel_textbuf *k, const keel_staffing *s)
 {
+    char table[KEEL_LAW_CITE_SIZE];
     switch (s->binding) {
     case KEEL_STAFFING_NEED_WARD_MINIMUM:
         put_table(k, s);
@@ -297,9 +306,8 @@ static void put_reason(keel_textbuf *k, const keel_staffing *s)
         else if (s->staff_limit == KEEL_ABSENT)
             keel_textbuf_put(k, "with no limit on patients per nurse");
         else if (s->table && s->table_nurse_max == s->staff_limit)
-            keel_textbuf_put(k, "under %s as encoded on %s (at most %d patient%s per nurse)",
-                             s->table->name, s->table->encoded, s->staff_limit,
-                             plural(s->staff_limit));
+            keel_textbuf_put(k, "under %s (at most %d patient%s per nurse)", cite(s, table),
+                             s->staff_limit, plural(s->staff_limit));
         else
             keel_textbuf_put(k, "under a limit of %d patient%s per nurse", s->staff_limit,
                              plural(s->staff_limit));

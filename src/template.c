@@ -74,10 +74,11 @@ keel_status keel_template_write(const keel_template_options *o, const keel_censu
         return keel_error_add(err, KEEL_ERR_USAGE, NULL, 0, 0, NULL,
                               "unknown ratio table '%s'; expected california or queensland",
                               o->table);
+    char cite[KEEL_LAW_CITE_SIZE];
+    keel_law_cite(table, cite, sizeof cite);
     if (table && !keel_law_covers(table, type))
         return keel_error_add(err, KEEL_ERR_USAGE, NULL, 0, 0, NULL,
-                              "the %s table as encoded on %s has no entry for unit type '%s'",
-                              table->name, table->encoded, type);
+                              "the table %s has no entry for unit type '%s'", cite, type);
 
     fprintf(out, "# A keel roster for a %s unit, %s shift, written by `keel new`.\n", type, label);
     fprintf(out,
@@ -106,9 +107,11 @@ keel_status keel_template_write(const keel_template_options *o, const keel_censu
     fputs("policy:\n", out);
     if (table) {
         int max = keel_law_nurse_max(table, type);
-        fprintf(out, "  # %s, as encoded on %s", table->citation, table->encoded);
+        fprintf(out, "  # %s", cite);
         if (max > 0)
             fprintf(out, ": at most %d patients per nurse", max);
+        if (table->note)
+            fprintf(out, "\n  # %s", table->note);
         fprintf(out, "\n  ratio_table: %s\n", table->name);
     }
     fprintf(out, "  max_patients: %s    # the unit's own limit per nurse%s\n", FILL,

@@ -2,11 +2,12 @@
 /*
  * test_law.c - the built-in ratio tables of src/law.c against the texts
  * they encode: every shipped entry, the entries deliberately left out, the
- * ward-minimum arithmetic and the shift classes.
+ * ward-minimum arithmetic, the shift classes, and how keel cites a table.
  */
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
+#include <stdio.h>
 #include <string.h>
 
 #include <cmocka.h>
@@ -206,6 +207,100 @@ static void test_tables_say_what_they_encode_and_when(void **state)
     }
 }
 
+static void test_cite_words_california_as_its_text_says(void **state)
+{
+    (void)state;
+    char buf[KEEL_LAW_CITE_SIZE];
+    /* Source: California Code of Regulations, Title 22, section 70217(a) (CDPH AFL 08-07,
+     * 2008): medical-surgical 1:5 from 2005-01-01 (sources.md, read).  The date is keel's
+     * own, the day the table was encoded. */
+    const char *want = "california (California Code of Regulations, Title 22, section 70217(a); "
+                       "medical-surgical 1:5 in force from 2005-01-01 (CDPH AFL 08-07, 2008); as "
+                       "encoded by keel on 2026-12-02)";
+    assert_int_equal(keel_law_cite(california(), buf, sizeof buf), strlen(want));
+    assert_string_equal(buf, want);
+    assert_null(california()->note);
+}
+
+static void test_cite_words_queensland_and_its_note(void **state)
+{
+    (void)state;
+    char buf[KEEL_LAW_CITE_SIZE];
+    /* Source: Hospital and Health Boards Regulation 2012 (Qld), Part 6A, in force from
+     * 2016-07-01 (sources.md, read). */
+    const char *want = "queensland (Hospital and Health Boards Regulation 2012 (Qld), Part 6A; "
+                       "Part 6A as in force from 2016-07-01; as encoded by keel on 2026-12-02)";
+    assert_int_equal(keel_law_cite(queensland(), buf, sizeof buf), strlen(want));
+    assert_string_equal(buf, want);
+    assert_non_null(queensland()->note);
+    /* (from memory) The 2012 regulation was later replaced; sources.md names no successor
+     * and keel has not read one, so the note says so and names none. */
+    assert_string_equal(queensland()->note,
+                        "This table encodes superseded text: the Hospital and Health Boards "
+                        "Regulation 2012 (Qld) was replaced by a later text, and keel has not "
+                        "checked the table against that successor.");
+}
+
+static void test_cite_is_snprintf_like(void **state)
+{
+    (void)state;
+    char full[KEEL_LAW_CITE_SIZE], small[12];
+    for (size_t i = 0; i < keel_law_ntables(); i++) {
+        const keel_law_table *t = keel_law_table_at(i);
+        int need = keel_law_cite(t, NULL, 0);
+        /* keel's rule: KEEL_LAW_CITE_SIZE holds every built-in table. */
+        assert_true(need > 0 && need < KEEL_LAW_CITE_SIZE);
+        assert_int_equal(keel_law_cite(t, full, sizeof full), need);
+        assert_int_equal(strlen(full), need);
+        assert_int_equal(keel_law_cite(t, small, sizeof small), need);
+        assert_int_equal(strlen(small), sizeof small - 1);
+        assert_memory_equal(small, full, sizeof small - 1);
+    }
+    assert_int_equal(keel_law_cite(NULL, full, sizeof full), 0);
+    assert_string_equal(full, "");
+}
+
+static void test_a_shift_across_two_classes_says_how_it_is_classed(void **state)
+{
+    (void)state;
+    const keel_law_table *t = queensland();
+    char cite[KEEL_LAW_CITE_SIZE], want[2 * KEEL_LAW_CITE_SIZE], note[2 * KEEL_LAW_CITE_SIZE];
+    keel_law_cite(t, cite, sizeof cite);
+    /* Source: Hospital and Health Boards Regulation 2012 (Qld), s 30A (sources.md, read):
+     * afternoon 15:00-23:00, night 23:00-07:00, so 19:00-07:00 is 4 h afternoon and 8 h
+     * night, a night shift (worked from the definition). */
+    assert_true(keel_law_shift_spans(t, 19 * HOUR, 12 * HOUR));
+    snprintf(want, sizeof want,
+             "classed as night under %s (the shift spans 240 min of afternoon and 480 min of "
+             "night; keel applies the class that holds most of the shift's minutes, a tie "
+             "settled as section 30A(2) of the text says)",
+             cite);
+    int need = keel_law_shift_class_note(t, 19 * HOUR, 12 * HOUR, note, sizeof note);
+    assert_string_equal(note, want);
+    assert_int_equal(need, strlen(want));
+    assert_int_equal(keel_law_shift_class_note(t, 19 * HOUR, 12 * HOUR, NULL, 0), need);
+    /* Source: same, s 30A(2)(b) (see the tie test above): 19:00-03:00 is 4 h afternoon and
+     * 4 h night, a night shift. */
+    keel_law_shift_class_note(t, 19 * HOUR, 8 * HOUR, note, sizeof note);
+    assert_non_null(strstr(note, "classed as night under"));
+    assert_non_null(strstr(note, "(the shift spans 240 min of afternoon and 240 min of night;"));
+    /* Source: same, s 30A: 06:00-16:00 is 1 h night, 8 h morning, 1 h afternoon. */
+    keel_law_shift_class_note(t, 6 * HOUR, 10 * HOUR, note, sizeof note);
+    assert_non_null(strstr(note, "classed as morning under"));
+    assert_non_null(
+        strstr(note, "spans 480 min of morning, 60 min of afternoon and 60 min of night;"));
+    /* Source: same: 07:00-15:00 lies within the morning: nothing to say. */
+    assert_false(keel_law_shift_spans(t, 7 * HOUR, 8 * HOUR));
+    strcpy(note, "stale");
+    assert_int_equal(keel_law_shift_class_note(t, 7 * HOUR, 8 * HOUR, note, sizeof note), 0);
+    assert_string_equal(note, "");
+    /* A table without shift classes, or a shift without a start, spans nothing. */
+    assert_false(keel_law_shift_spans(california(), 19 * HOUR, 12 * HOUR));
+    assert_int_equal(
+        keel_law_shift_class_note(california(), 19 * HOUR, 12 * HOUR, note, sizeof note), 0);
+    assert_false(keel_law_shift_spans(t, -1, 12 * HOUR));
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -217,6 +312,10 @@ int main(void)
         cmocka_unit_test(test_shift_classes_follow_section_30a),
         cmocka_unit_test(test_shift_class_ties_follow_section_30a_2),
         cmocka_unit_test(test_tables_say_what_they_encode_and_when),
+        cmocka_unit_test(test_cite_words_california_as_its_text_says),
+        cmocka_unit_test(test_cite_words_queensland_and_its_note),
+        cmocka_unit_test(test_cite_is_snprintf_like),
+        cmocka_unit_test(test_a_shift_across_two_classes_says_how_it_is_classed),
     };
     return cmocka_run_group_tests_name("law", tests, NULL, NULL);
 }

@@ -114,10 +114,11 @@ static void test_california_23_med_surg_patients_need_5_nurses(void **state)
 {
     (void)state;
     text t;
-    char want[1024];
+    char want[2048], cite[KEEL_LAW_CITE_SIZE];
     california_medsurg(&t, 5, 23);
     loaded l = load(&t);
     const keel_law_table *cal = keel_law_find("california");
+    keel_law_cite(cal, cite, sizeof cite);
     /* Source: CCR Title 22 section 70217(a), medical-surgical 1:5 (sources.md, read), with
      * sources.md "Minimum nurses for a census under a 1:N rule": ceil(23 / 5) = 5. */
     assert_int_equal(l.s.staff_limit, 5);
@@ -139,10 +140,10 @@ static void test_california_23_med_surg_patients_need_5_nurses(void **state)
     assert_int_equal(l.s.slack, 0);
     /* 5 nurses x 12 h = 60 h over 23 patients = 2.6 h. */
     snprintf(want, sizeof want,
-             "23 patients need at least 5 nurses under california as encoded on %s (at most 5 "
+             "23 patients need at least 5 nurses under %s (at most 5 "
              "patients per nurse); 5 nurses take patients. By care minutes 2.1 "
              "nurses (3), by limits 5; 2.6 nurse hours per patient this shift.",
-             cal->encoded);
+             cite);
     /* A need is a lower bound: it never says "enough" (the verdict judges a plan). */
     assert_null(strstr(l.words, "enough"));
     assert_null(strstr(l.words, "spare"));
@@ -154,11 +155,11 @@ static void test_california_23_med_surg_patients_need_5_nurses(void **state)
     assert_int_equal(l.s.needed, 5);
     assert_int_equal(l.s.slack, -1);
     snprintf(want, sizeof want,
-             "23 patients need at least 5 nurses under california as encoded on %s (at most 5 "
+             "23 patients need at least 5 nurses under %s (at most 5 "
              "patients per nurse); 4 nurses take patients: 1 short. By care minutes 2.1 nurses "
              "(3), by limits 5; 2.1 nurse hours per patient this shift. 23 patients exceed what "
-             "4 nurses may hold under california as encoded on %s.",
-             cal->encoded, cal->encoded);
+             "4 nurses may hold under %s.",
+             cite, cite);
     assert_string_equal(l.words, want);
     unload(&l);
 }
@@ -492,7 +493,8 @@ static void test_queensland_ward_minimum_through_a_roster(void **state)
 {
     (void)state;
     const keel_law_table *qld = keel_law_find("queensland");
-    char want[1024];
+    char want[2048], cite[KEEL_LAW_CITE_SIZE];
+    keel_law_cite(qld, cite, sizeof cite);
 
     /* Source: Hospital and Health Boards Regulation 2012 (Qld), Part 6A and s 30A (sources.md,
      * read): 1:4 on an afternoon shift (15:00-23:00); the state's worked example gives 28
@@ -508,12 +510,12 @@ static void test_queensland_ward_minimum_through_a_roster(void **state)
     assert_int_equal(l.s.slack, -1);
     /* By hand: 28 * 60 = 1680 over 450 = 3.73 -> 4; 6 * 8 h = 48 h over 28 = 1.7 h. */
     snprintf(want, sizeof want,
-             "28 patients need at least 7 nurses under queensland as encoded on %s (afternoon "
+             "28 patients need at least 7 nurses under %s (afternoon "
              "shift); 6 nurses take patients: 1 short. By care minutes 3.7 nurses (4), by "
              "limits 1, by the ward minimum 7; 1.7 nurse hours per patient this shift. 28 "
-             "patients exceed what 6 nurses may hold under queensland as encoded on %s "
+             "patients exceed what 6 nurses may hold under %s "
              "(afternoon shift).",
-             qld->encoded, qld->encoded);
+             cite, cite);
     assert_string_equal(l.words, want);
     unload(&l);
 
@@ -533,9 +535,9 @@ static void test_queensland_ward_minimum_through_a_roster(void **state)
     assert_int_equal(l.s.binding, KEEL_STAFFING_NEED_WARD_MINIMUM);
     assert_int_equal(l.s.slack, 2);
     snprintf(want, sizeof want,
-             "28 patients need at least 4 nurses under queensland as encoded on %s (night "
+             "28 patients need at least 4 nurses under %s (night "
              "shift); 6 nurses take patients.",
-             qld->encoded);
+             cite);
     assert_non_null(strstr(l.words, want));
     assert_null(strstr(l.words, "enough"));
     unload(&l);

@@ -133,10 +133,11 @@ KEEL_API keel_status keel_staffing_compute(const keel_roster *r, const keel_work
                                   keel_error *err);
 
 /* Writes the staffing view in plain words into buf, e.g. "28 patients need
- * at least 7 nurses under queensland as encoded on 2026-12-02 (afternoon
- * shift); 6 nurses take patients: 1 short." (no count when none are short),
- * then the three needs and the hours per patient, then, with a table, when
- * the census exceeds what the counted nurses may hold under it.  buf is always NUL-terminated when size
+ * at least 7 nurses under queensland (<the rest of keel_law_cite()>)
+ * (afternoon shift); 6 nurses take patients: 1 short." (no count when none
+ * are short), then the three needs and the hours per patient, then, with a
+ * table, when the census exceeds what the counted nurses may hold under it.
+ * buf is always NUL-terminated when size
  * > 0 (buf may be NULL when size is 0).  Returns the length the full text
  * needs, like snprintf. */
 KEEL_API int keel_staffing_format(const keel_staffing *s, char *buf, size_t size);

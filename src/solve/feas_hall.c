@@ -266,11 +266,13 @@ static char *describe_shortage(const keel_roster *r, const keel_workload *w, con
         }
     char *nurses = join_names(names, nnur);
     char *msg = NULL;
-    char limits[192] = "their patient limits";
-    const keel_law_table *t = r->policy.ratio_table;
-    if (strcmp(s->rule, "law_limit") == 0)
-        snprintf(limits, sizeof limits, "the limit of %s (1:%d for %s) as encoded on %s", t->name,
-                 w->law_limit, r->unit.type, t->encoded);
+    char limits[KEEL_LAW_CITE_SIZE + 64] = "their patient limits";
+    char table[KEEL_LAW_CITE_SIZE];
+    if (strcmp(s->rule, "law_limit") == 0) {
+        keel_law_cite(r->policy.ratio_table, table, sizeof table);
+        snprintf(limits, sizeof limits, "the limit of 1:%d for %s in %s", w->law_limit,
+                 r->unit.type, table);
+    }
     if (who && nurses && nnur == ncounted) {
         msg = keel_asprintf(
             "%zu patients, but the %zu nurses on shift who may take patients "

@@ -32,6 +32,13 @@ has() { # has FILE TEXT NAME
 matches() { # matches FILE REGEX NAME (extended regular expression)
     if grep -qE -- "$2" "$1"; then ok "$3"; else echo "# missing: $2"; not_ok "$3"; fi
 }
+has_joined() { # has_joined FILE TEXT NAME: TEXT in FILE with its wrapped lines joined
+    if tr '\n' ' ' <"$1" | sed 's/  */ /g' | grep -qF -- "$2"; then ok "$3"; else echo "# missing: $2"; not_ok "$3"; fi
+}
+count_is() { # count_is FILE TEXT N NAME: TEXT occurs N times in FILE, lines joined
+    got=$(tr '\n' ' ' <"$1" | sed 's/  */ /g' | grep -oF -- "$2" | wc -l)
+    if [ "$got" -eq "$3" ]; then ok "$4"; else echo "# $got times: $2"; not_ok "$4"; fi
+}
 last_line_is_caution() { # FILE NAME
     if [ "$(tail -n 1 "$1")" = "$caution" ]; then ok "$2"; else not_ok "$2"; fi
 }
@@ -111,7 +118,7 @@ expect 3 "too many high-acuity patients" -- "$keel" assign "$data/high-acuity-sh
 has "$work/out" '"rule": "high_acuity"' "the diagnosis names high_acuity"
 has "$work/out" "1 more nurse who may take them is needed" "the diagnosis says what is short"
 expect 0 "check a plan that breaks the joining rules" -- "$keel" check "$data/plan-breaks-joined-rules.yaml"
-has "$work/out" "[law_limit] A has 6 patients: exceeds the limit of california (1:5 for med-surg) as encoded on 2026-12-02" "check names the table's limit as encoded"
+has "$work/out" "[law_limit] A has 6 patients: exceeds the limit of 1:5 for med-surg in california (table cited above)" "check names the table's limit, the table cited above"
 has "$work/out" "[patient_ratio] p4 is a 1:2 patient" "check names a patient's own ratio"
 has "$work/out" "[high_acuity] A has 2 high-acuity patients" "check names high acuity"
 has "$work/out" "[isolation] A has 1 protective-isolation patient" "check names isolation"
@@ -123,6 +130,39 @@ has "$work/out" "which need n95 (policy.isolation_needs)" "check names a precaut
 expect 0 "a ward short of its minimum still gets an assignment" -- "$keel" assign "$data/ward-minimum.yaml" --format json
 has "$work/out" '"ward_minimum": 7, "needed": 7, "binding": "ward minimum", "slack": -1' "the staffing view names the ward minimum and the shortfall"
 has "$work/out" '"shift_class": "afternoon"' "11:00-19:00 is an afternoon shift"
+
+# Every report cites the table it uses: name, text, version, date of encoding.
+# Source: California Code of Regulations, Title 22, section 70217(a); CDPH AFL
+# 08-07, 2008: medical-surgical 1:5 from 2005-01-01 (sources.md, read).
+california="california (California Code of Regulations, Title 22, section 70217(a); medical-surgical 1:5 in force from 2005-01-01 (CDPH AFL 08-07, 2008); as encoded by keel on 2026-12-02)"
+# Source: Hospital and Health Boards Regulation 2012 (Qld), Part 6A, from
+# 2016-07-01 (sources.md, read); the 2012 regulation was later replaced (from
+# memory), by a text keel has not read.
+queensland="queensland (Hospital and Health Boards Regulation 2012 (Qld), Part 6A; Part 6A as in force from 2016-07-01; as encoded by keel on 2026-12-02)"
+superseded="This table encodes superseded text: the Hospital and Health Boards Regulation 2012 (Qld) was replaced by a later text, and keel has not checked the table against that successor."
+# Source: same, s 30A: afternoon 15:00-23:00, night 23:00-07:00, so 19:00-07:00
+# is 4 h afternoon and 8 h night (worked from the definition).
+spans="(the shift spans 240 min of afternoon and 480 min of night; keel applies the class that holds most of the shift's minutes, a tie settled as section 30A(2) of the text says)"
+for cmd in check assign; do
+    expect 0 "$cmd under queensland, 19:00-07:00, as text" -- "$keel" $cmd "$data/queensland-night.yaml"
+    has_joined "$work/out" "Ratio table $queensland" "$cmd text cites queensland at its head"
+    count_is "$work/out" "as encoded by keel on" 1 "$cmd text cites the table in full once"
+    has_joined "$work/out" "$superseded" "$cmd text says queensland encodes superseded text"
+    has_joined "$work/out" "This shift is classed as night under queensland (table cited above) $spans." "$cmd text says how a shift across two classes is classed"
+    has_joined "$work/out" "under queensland (table cited above) (night shift)" "$cmd text's staffing line refers to the citation above"
+    expect 0 "$cmd under queensland as json" -- "$keel" $cmd "$data/queensland-night.yaml" --format json
+    has "$work/out" '"ratio_table": {"name": "queensland", "encoded": "2026-12-02", "shift_class": "night", "citation": "Hospital and Health Boards Regulation 2012 (Qld), Part 6A", "version": "Part 6A as in force from 2016-07-01", ' "$cmd json cites queensland, old fields first"
+    has "$work/out" "\"note\": \"$superseded\"" "$cmd json carries the superseded note"
+    has "$work/out" "\"shift_class_note\": \"classed as night under $queensland $spans\"" "$cmd json says how the shift is classed"
+done
+expect 0 "a plan under queensland as yaml" -- "$keel" assign "$data/queensland-night.yaml" --format yaml -o "$work/qld.yaml"
+has "$work/qld.yaml" "  # $queensland" "the yaml plan cites the table in a comment"
+has "$work/qld.yaml" "  # $superseded" "the yaml plan carries the superseded note"
+expect 0 "the yaml plan under queensland reads back" -- "$keel" check "$work/qld.yaml"
+has "$work/out" "The plan keeps every rule keel checks." "the written plan keeps every rule"
+expect 0 "a plan under california as json" -- "$keel" check "$data/plan-breaks-joined-rules.yaml" --format json
+has "$work/out" "\"citation\": \"California Code of Regulations, Title 22, section 70217(a)\", \"version\": \"medical-surgical 1:5 in force from 2005-01-01 (CDPH AFL 08-07, 2008)\", \"note\": null, \"shift_class_note\": null}" "json cites california, no note, no class"
+has "$work/out" "exceeds the limit of 1:5 for med-surg in $california" "json findings cite the table in full"
 expect 0 "every stage as json" -- "$keel" assign "$data/../data/every-rule.yaml" --format json
 has "$work/out" '"name": "continuity"' "json has the continuity stage"
 has "$work/out" '"proximity": {"zones": ' "json has the proximity totals"
@@ -132,7 +172,7 @@ has "$work/out" '"staffing_needs": {' "json has the staffing needs"
 # Source: California Code of Regulations, Title 22, section 70217(a):
 # telemetry 1:4, so two nurses may hold 8 telemetry patients (as encoded).
 expect 3 "a census over the table's limit" -- "$keel" assign "$data/law-limit-short.yaml"
-has "$work/err" "[law_limit] 11 patients, but the 2 nurses on shift who may take patients may take 8 in all under the limit of california (1:4 for telemetry) as encoded on 2026-12-02" "the diagnosis names the table as encoded"
+has "$work/err" "[law_limit] 11 patients, but the 2 nurses on shift who may take patients may take 8 in all under the limit of 1:4 for telemetry in $california" "the diagnosis cites the table as encoded"
 
 # --explain gives each patient a reason.
 expect 0 "explain" -- "$keel" assign "$data/../data/every-rule.yaml" --explain
