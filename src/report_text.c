@@ -25,7 +25,8 @@ static void write_heading(FILE *out, const keel_report *rep)
     if (r->shift.start_minute != KEEL_ABSENT)
         fprintf(out, " from %02d:%02d", r->shift.start_minute / 60, r->shift.start_minute % 60);
     fprintf(out, " (%d min)\n", r->shift.minutes);
-    fprintf(out, "%zu patients, %zu nurses\n\n", r->npatients, r->nnurses);
+    fprintf(out, "%zu patient%s, %zu nurse%s\n\n", r->npatients, r->npatients == 1 ? "" : "s",
+            r->nnurses, r->nnurses == 1 ? "" : "s");
 }
 
 /* With the clock: when the patient is here, and whom nurse n (-1: none)
@@ -278,7 +279,8 @@ static void write_nurse_blocks(FILE *out, const keel_report *rep)
 
 static void write_balance(FILE *out, const keel_metrics *m)
 {
-    fprintf(out, "Balance over the %zu nurses who take patients\n", m->ncounted);
+    fprintf(out, "Balance over the %zu nurse%s who take%s patients\n", m->ncounted,
+            m->ncounted == 1 ? "" : "s", m->ncounted == 1 ? "s" : "");
     fprintf(out, "  heaviest %.1f %%, lightest %.1f %%, spread %.1f points\n",
             100.0 * m->max_utilisation, 100.0 * m->min_utilisation, 100.0 * m->spread);
     fprintf(out,
@@ -382,9 +384,11 @@ static void write_proof(FILE *out, const keel_solution *s, const keel_metrics *m
                      s->continuity.zero_proven ? "" : "at least ", s->continuity.kept_at_zero,
                      100.0 * s->continuity.tolerance, s->continuity.zero_proven ? "" : "at most ",
                      s->continuity.kept - s->continuity.kept_at_zero);
-        char *line = keel_asprintf("Continuity: %ld of %ld patients keep their nurse from the "
+        bool one = s->continuity.candidates == 1;
+        char *line = keel_asprintf("Continuity: %ld of %ld patient%s keep%s their nurse from the "
                                    "last shift%s.",
-                                   s->continuity.kept, s->continuity.candidates, zero);
+                                   s->continuity.kept, s->continuity.candidates, one ? "" : "s",
+                                   one ? "s" : "", zero);
         if (line)
             keel_report_out_wrapped(out, "  ", line, 78);
         free(line);
@@ -443,9 +447,9 @@ static void write_workload(FILE *out, const keel_report *rep)
         write_patient_line(out, rep, p, -1);
     fputs("\nNurses\n", out);
     for (size_t n = 0; n < r->nnurses; n++)
-        fprintf(out, "  %-6s %-22s capacity %4d min  duty %3d min  limit %d patients\n",
+        fprintf(out, "  %-6s %-22s capacity %4d min  duty %3d min  limit %d patient%s\n",
                 r->nurses[n].id, r->nurses[n].name ? r->nurses[n].name : "", w->capacity_minutes[n],
-                w->duty_minutes[n], w->max_patients[n]);
+                w->duty_minutes[n], w->max_patients[n], w->max_patients[n] == 1 ? "" : "s");
     fputc('\n', out);
 }
 

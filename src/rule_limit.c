@@ -50,11 +50,12 @@ static keel_status check(const keel_rule_plan *c, size_t n, size_t m, const size
     const char *id = r->nurses[n].id;
     const keel_law_table *t = r->policy.ratio_table;
     char *msg = by_law(w, n)
-                    ? keel_asprintf("%s has %zu patients: exceeds the limit of %s (1:%d for %s) "
+                    ? keel_asprintf("%s has %zu patient%s: exceeds the limit of %s (1:%d for %s) "
                                     "as encoded on %s",
-                                    id, k, t->name, w->law_limit, r->unit.type, t->encoded)
-                    : keel_asprintf("%s has %zu patients; the patient limit is %d", id, k,
-                                    w->max_patients[n]);
+                                    id, k, k == 1 ? "" : "s", t->name, w->law_limit, r->unit.type,
+                                    t->encoded)
+                    : keel_asprintf("%s has %zu patient%s; the patient limit is %d", id, k,
+                                    k == 1 ? "" : "s", w->max_patients[n]);
     size_t *who = keel_calloc(k, sizeof *who);
     if (!who) {
         free(msg);

@@ -107,7 +107,7 @@ keel_status keel_template_write(const keel_template_options *o, const keel_censu
         int max = keel_law_nurse_max(table, type);
         fprintf(out, "  # %s, as encoded on %s", table->citation, table->encoded);
         if (max > 0)
-            fprintf(out, ": at most %d patients per nurse", max);
+            fprintf(out, ": at most %d patient%s per nurse", max, max == 1 ? "" : "s");
         fprintf(out, "\n  ratio_table: %s\n", table->name);
     }
     fprintf(out, "  max_patients: %s    # the unit's own limit per nurse%s\n", FILL,

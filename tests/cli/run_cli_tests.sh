@@ -227,5 +227,25 @@ has "$work/out" '"tightest_moment": {"from": "11:00", "to": "19:00", "nurses_on"
 expect 3 "nobody on for a patient at night" -- "$keel" assign "$data/clock-night-gap.yaml"
 has "$work/err" "no nurse who may take P1 is on from 03:00 to 07:00" "a stretch with no nurse on is named across midnight"
 
+# One of a thing is singular: "limit 1 patient", never "1 patients".
+: > "$work/singular"
+for args in "assign $data/one-of-each.yaml" "check $data/one-of-each.yaml" \
+    "assign $data/one-nurse-short.yaml" "assign $data/one-nurse-two-high.yaml" \
+    "check $data/plan-one-over.yaml" "assign $data/plan-one-over.yaml --best-effort"; do
+    # shellcheck disable=SC2086 # the command and its arguments
+    "$keel" $args >>"$work/singular" 2>&1
+done
+cp "$work/singular" "$work/out"
+has "$work/out" "1 patient, 1 nurse" "the heading counts 1 patient, 1 nurse"
+has "$work/out" "limit 1 patient" "the workload says limit 1 patient"
+has "$work/out" "Continuity: 1 of 1 patient keeps their nurse" "continuity counts 1 patient"
+has "$work/out" "Balance over the 1 nurse who takes patients" "the balance counts 1 nurse"
+has "$work/out" "2 patients, but the 1 nurse on shift who may take patients may take 1 in all" "the limits' diagnosis counts 1 nurse"
+has "$work/out" "the 1 nurse who may take them can hold 1" "the high-acuity diagnosis counts 1 nurse"
+has "$work/out" "[patient_limit] A has 1 patient; the patient limit is 0" "the plan check counts 1 patient"
+has "$work/out" "A has 1 high-acuity patient (acuity 4 or more)" "the high-acuity check counts 1 patient"
+has "$work/out" "1 high-acuity patient (acuity 4 or more), but policy.high_acuity.max_per_nurse is 0, so no nurse may take one" "the high-acuity diagnosis counts 1 patient"
+if grep -nE '(^|[^0-9.])1 ([a-z-]+ )?(patients|nurses)\b' "$work/singular" > "$work/err"; then not_ok "no '1 patients' or '1 nurses' anywhere"; else ok "no '1 patients' or '1 nurses' anywhere"; fi
+
 echo "1..$n"
 [ "$failed" -eq 0 ]
