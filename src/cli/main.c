@@ -518,9 +518,12 @@ static int run_import(const options *opt)
     keel_error_init(&err);
     keel_census *census = NULL;
     keel_roster *base = NULL;
-    keel_status rc = keel_census_load(opt->roster, opt->map, &census, &err);
-    if (!rc && opt->base)
-        rc = keel_roster_load(opt->base, &base, &err);
+    /* The base roster first, so that each census row is checked against its
+     * scales with the row's other problems: all of both files in one run. */
+    keel_status rc_base = opt->base ? keel_roster_load(opt->base, &base, &err) : KEEL_OK;
+    keel_status rc = keel_census_load_for(opt->roster, opt->map, base, &census, &err);
+    if (!rc)
+        rc = rc_base;
     if (!rc && base)
         rc = keel_census_into_roster(census, base, &err);
     int code = 0;

@@ -247,5 +247,23 @@ has "$work/out" "A has 1 high-acuity patient (acuity 4 or more)" "the high-acuit
 has "$work/out" "1 high-acuity patient (acuity 4 or more), but policy.high_acuity.max_per_nurse is 0, so no nurse may take one" "the high-acuity diagnosis counts 1 patient"
 if grep -nE '(^|[^0-9.])1 ([a-z-]+ )?(patients|nurses)\b' "$work/singular" > "$work/err"; then not_ok "no '1 patients' or '1 nurses' anywhere"; else ok "no '1 patients' or '1 nurses' anywhere"; fi
 
+# A census saved with ';' gets a hint; every problem of a census, levels
+# missing from the unit's scale included, comes in one run in file order.
+expect 2 "a census separated by ';'" -- "$keel" import "$data/census-semicolon.csv"
+has "$work/err" "census-semicolon.csv:1:1: the header is one column holding ';': the file seems to use ';' as separator; keel reads commas" "the hint names the separator"
+if [ "$(wc -l < "$work/err")" -eq 1 ]; then ok "the hint comes alone"; else not_ok "the hint comes alone"; fi
+expect 2 "a census with row problems and levels the unit lacks" -- "$keel" import "$data/census-mixed.csv" --roster "$examples/medsurg-day.yaml"
+cat > "$work/mixed.expected" <<EOF
+$data/census-mixed.csv:2:15: acuity: patient P-30101 has acuity 9, which $examples/medsurg-day.yaml's policy.acuity_minutes does not give; expected a level of the unit's scale
+$data/census-mixed.csv:3:18: isolation: unknown precaution 'airbone'; expected contact, droplet, airborne, protective or an empty field
+$data/census-mixed.csv:4:19: extras: patient P-30103 lists extra 'transfer', which $examples/medsurg-day.yaml's policy.extra_minutes does not give
+$data/census-mixed.csv:5:15: acuity: 'seven' is not a whole number from 0 to 99
+EOF
+if cmp -s "$work/mixed.expected" "$work/err"; then ok "every census problem in one run, in file order, with line and column"; else
+    diff "$work/mixed.expected" "$work/err" | sed 's/^/# /'; not_ok "every census problem in one run, in file order, with line and column"; fi
+expect 2 "a bad base roster and a bad census" -- "$keel" import "$data/census-mixed.csv" --roster "$bad/many-problems.yaml"
+has "$work/err" "many-problems.yaml:" "the base roster's problems are named"
+has "$work/err" "census-mixed.csv:3:18: isolation: unknown precaution 'airbone'" "and the census's, in the same run"
+
 echo "1..$n"
 [ "$failed" -eq 0 ]
