@@ -144,7 +144,7 @@ keel_status keel_template_write(const keel_template_options *o, const keel_censu
     } else {
         fprintf(
             out,
-            "patients:                   # or: keel import census.csv --roster this-file\n"
+            "patients:                   # or [] and: keel import census.csv --roster this-file\n"
             "  - {id: %s, bed: %s, acuity: %s, needs: []}\n"
             "  # leaves_at: \"%02d:00\" (a discharge), arrives_at: \"%02d:00\" (a transfer in)\n"
             "\n"

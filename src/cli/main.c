@@ -322,14 +322,40 @@ static void state_fini(state *s)
     keel_error_fini(&s->err);
 }
 
+/* Loads the roster and derives its workload and staffing; a roster without
+ * patients is loaded only (has_patients() says so). */
 static keel_status load(state *s, const options *opt)
 {
     keel_status rc = keel_roster_load(opt->roster, &s->roster, &s->err);
+    if (!rc && s->roster->npatients == 0)
+        return KEEL_OK;
     if (!rc)
         rc = keel_workload_compute(s->roster, &s->workload, &s->err);
     if (!rc)
         rc = keel_staffing_compute(s->roster, s->workload, &s->staffing, &s->err);
     return rc;
+}
+
+static bool to_file(const options *opt)
+{
+    return opt->output && strcmp(opt->output, "-") != 0;
+}
+
+/* A roster without patients is a unit's roster before keel import fills it:
+ * valid, but with nothing to assign or score.  Says so on stderr and
+ * returns false; true when the roster has patients. */
+static bool has_patients(const char *command, const options *opt, const keel_roster *r)
+{
+    if (r->npatients > 0)
+        return true;
+    fprintf(stderr,
+            "keel %s: %s: the roster is valid but has no patients, so there is nothing to %s; "
+            "keel import CENSUS.csv --roster %s adds a census's patients\n",
+            command, opt->roster, strcmp(command, "assign") == 0 ? "assign" : "score",
+            opt->roster);
+    if (to_file(opt))
+        fprintf(stderr, "keel %s: nothing written to %s\n", command, opt->output);
+    return false;
 }
 
 static int write_report(const options *opt, const keel_report *rep)
@@ -374,6 +400,10 @@ static int run_assign(const options *opt)
                              .time_limit_ms = opt->time_limit_ms,
                              .best_effort = opt->best_effort};
     keel_status rc = load(&s, opt);
+    if (!rc && !has_patients("assign", opt, s.roster)) {
+        state_fini(&s);
+        return EXIT_INPUT;
+    }
     if (!rc)
         rc = keel_solve(s.roster, s.workload, &so, &s.solution, &s.err);
     if (!rc)
@@ -428,6 +458,10 @@ static int run_check(const options *opt)
     keel_solve_options so = {.time_limit_ms = opt->time_limit_ms};
     keel_status rc = load(&s, opt);
     bool complete = false, partial = false;
+    if (!rc && !has_patients("check", opt, s.roster)) {
+        state_fini(&s);
+        return 0;
+    }
     if (!rc) {
         s.plan = calloc(keel_workload_nparts(s.workload) ? keel_workload_nparts(s.workload) : 1, sizeof *s.plan);
         if (!s.plan)

@@ -227,6 +227,21 @@ has "$work/out" '"tightest_moment": {"from": "11:00", "to": "19:00", "nurses_on"
 expect 3 "nobody on for a patient at night" -- "$keel" assign "$data/clock-night-gap.yaml"
 has "$work/err" "no nurse who may take P1 is on from 03:00 to 07:00" "a stretch with no nurse on is named across midnight"
 
+# A unit's roster without patients: import fills it; check and assign say
+# there is nothing to do, and write nothing.
+expect 0 "check a roster without patients" -- "$keel" check "$data/unit-no-patients.yaml"
+has "$work/err" "the roster is valid but has no patients, so there is nothing to score" "check says the roster is valid and has no patients"
+if [ -s "$work/out" ]; then not_ok "check writes no report without patients"; else ok "check writes no report without patients"; fi
+expect 2 "assign a roster without patients" -- "$keel" assign "$data/unit-no-patients.yaml" -o "$work/none.txt"
+has "$work/err" "has no patients, so there is nothing to assign; keel import CENSUS.csv --roster" "assign says there is nothing to assign, and how to fill it"
+if [ -e "$work/none.txt" ]; then not_ok "assign writes nothing without patients"; else ok "assign writes nothing without patients"; fi
+grep -v '^patients:' "$data/unit-no-patients.yaml" > "$work/no-key.yaml"
+expect 0 "check a roster with no patients key" -- "$keel" check "$work/no-key.yaml"
+has "$work/err" "has no patients" "no patients key is no patients"
+expect 0 "import into a roster without patients" -- "$keel" import "$data/census-plain.csv" --roster "$work/no-key.yaml" -o "$work/filled.yaml"
+expect 0 "the filled roster assigns" -- "$keel" assign "$work/filled.yaml" --format json
+has "$work/out" '"id": "P-30105"' "the census's patients are in it"
+
 # One of a thing is singular: "limit 1 patient", never "1 patients".
 : > "$work/singular"
 for args in "assign $data/one-of-each.yaml" "check $data/one-of-each.yaml" \
