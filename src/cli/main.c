@@ -116,6 +116,14 @@ static const command commands[] = {
 
 static const size_t ncommands = sizeof commands / sizeof commands[0];
 
+/* keel help's own page: `keel help help`. */
+static const char help_usage[] =
+    "usage: keel help [COMMAND]\n"
+    "\n"
+    "Without a command, lists keel's commands, its exit codes and the caution.  With\n"
+    "one (assign, check, new, import or help), shows that command's usage and every\n"
+    "option; 'keel COMMAND --help' shows the same.\n";
+
 static void print_usage(FILE *out)
 {
     fprintf(out, "usage: keel COMMAND [ARGS]\n\n"
@@ -131,12 +139,35 @@ static void print_usage(FILE *out)
             KEEL_CAUTION);
 }
 
+/* A help page: the usage, then the caution, as every page keel shows ends. */
+static int print_help(const char *usage)
+{
+    printf("%s\n%s\n", usage, KEEL_CAUTION);
+    return fflush(stdout) == 0 && !ferror(stdout) ? 0 : EXIT_INTERNAL;
+}
+
 static const command *find_command(const char *name)
 {
     for (size_t i = 0; i < ncommands; i++)
         if (strcmp(commands[i].name, name) == 0)
             return &commands[i];
     return NULL;
+}
+
+/* Says on stderr that there is no command name, with a "did you mean" when
+ * name looks like a typo of one (help included); true when it suggested one. */
+static bool say_no_command(const char *who, const char *name)
+{
+    const char *names[sizeof commands / sizeof commands[0] + 1];
+    for (size_t i = 0; i < ncommands; i++)
+        names[i] = commands[i].name;
+    names[ncommands] = "help";
+    const char *suggestion = keel_error_suggest(name, names, ncommands + 1);
+    if (suggestion)
+        fprintf(stderr, "%s: no command '%s'; did you mean '%s'?\n", who, name, suggestion);
+    else
+        fprintf(stderr, "%s: no command '%s'\n", who, name);
+    return suggestion != NULL;
 }
 
 static int usage_error(const command *cmd, const char *fmt, const char *arg)
@@ -593,21 +624,26 @@ int main(int argc, char **argv)
         return fflush(stdout) == 0 && !ferror(stdout) ? 0 : EXIT_INTERNAL;
     }
     if (strcmp(name, "help") == 0) {
-        const command *cmd = argc > 2 ? find_command(argv[2]) : NULL;
-        if (argc > 2 && !cmd) {
-            fprintf(stderr, "keel help: no command '%s'\n", argv[2]);
+        const char *topic = argc > 2 ? argv[2] : NULL;
+        if (topic && (strcmp(topic, "help") == 0 || strcmp(topic, "--help") == 0 ||
+                      strcmp(topic, "-h") == 0))
+            return print_help(help_usage);
+        const command *cmd = topic ? find_command(topic) : NULL;
+        if (topic && !cmd) {
+            say_no_command("keel help", topic);
             return EXIT_USAGE;
         }
         if (cmd)
-            fputs(cmd->usage, stdout);
-        else
-            print_usage(stdout);
+            return print_help(cmd->usage);
+        print_usage(stdout);
         return fflush(stdout) == 0 && !ferror(stdout) ? 0 : EXIT_INTERNAL;
     }
     const command *cmd = find_command(name);
     if (!cmd) {
-        fprintf(stderr, "keel: no command '%s'\n", name);
-        print_usage(stderr);
+        if (say_no_command("keel", name))
+            fputs("Try 'keel --help'.\n", stderr);
+        else
+            print_usage(stderr);
         return EXIT_USAGE;
     }
     options opt;
@@ -615,10 +651,8 @@ int main(int argc, char **argv)
     int code = parse_args(cmd, argc - 2, argv + 2, &opt, &help);
     if (code)
         return code;
-    if (help) {
-        fputs(cmd->usage, stdout);
-        return fflush(stdout) == 0 && !ferror(stdout) ? 0 : EXIT_INTERNAL;
-    }
+    if (help)
+        return print_help(cmd->usage);
     if (!known_format(opt.format) || (cmd->run == run_check && strcmp(opt.format, "yaml") == 0))
         return usage_error(cmd, "unknown format '%s'", opt.format);
     if (opt.method && !known_method(opt.method))

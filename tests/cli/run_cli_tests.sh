@@ -227,6 +227,30 @@ has "$work/out" '"tightest_moment": {"from": "11:00", "to": "19:00", "nurses_on"
 expect 3 "nobody on for a patient at night" -- "$keel" assign "$data/clock-night-gap.yaml"
 has "$work/err" "no nurse who may take P1 is on from 03:00 to 07:00" "a stretch with no nurse on is named across midnight"
 
+# Every help page ends with the caution (keel help COMMAND, keel COMMAND
+# --help, keel help help).
+for c in assign check new import help; do
+    expect 0 "keel help $c" -- "$keel" help "$c"
+    last_line_is_caution "$work/out" "keel help $c ends with the caution"
+done
+for c in assign check new import; do
+    expect 0 "keel $c --help" -- "$keel" "$c" --help
+    last_line_is_caution "$work/out" "keel $c --help ends with the caution"
+done
+expect 0 "help on help" -- "$keel" help help
+has "$work/out" "usage: keel help [COMMAND]" "keel help help shows help's own usage"
+has "$work/out" "'keel COMMAND --help' shows the same" "and says where else help is"
+
+# A mistyped command gets a "did you mean"; a made-up one does not.
+expect 1 "a mistyped command" -- "$keel" asign roster.yaml
+has "$work/err" "keel: no command 'asign'; did you mean 'assign'?" "a mistyped command gets a did you mean"
+expect 1 "a mistyped command for help" -- "$keel" help chek
+has "$work/err" "keel help: no command 'chek'; did you mean 'check'?" "keel help: a mistyped command gets a did you mean"
+expect 1 "a mistyped help" -- "$keel" hlep
+has "$work/err" "did you mean 'help'?" "help itself is suggested"
+expect 1 "a made-up command" -- "$keel" rota
+if grep -q "did you mean" "$work/err"; then not_ok "no suggestion for a word far from every command"; else ok "no suggestion for a word far from every command"; fi
+
 # A unit's roster without patients: import fills it; check and assign say
 # there is nothing to do, and write nothing.
 expect 0 "check a roster without patients" -- "$keel" check "$data/unit-no-patients.yaml"
