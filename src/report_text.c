@@ -456,13 +456,18 @@ static void write_workload(FILE *out, const keel_report *rep)
 keel_status keel_report_text(const keel_report *rep, FILE *out)
 {
     const keel_solution *s = rep->solution;
+    bool best_effort = rep->kind == KEEL_REPORT_ASSIGN && s && s->best_effort && rep->nurse_of;
+    if (best_effort) /* on the first line, before anyone reads on */
+        fputs("BEST-EFFORT PLAN, not an assignment: no valid assignment exists and this plan "
+              "breaks rules.\n\n",
+              out);
     write_heading(out, rep);
     if (rep->kind == KEEL_REPORT_CHECK)
         write_workload(out, rep);
     if (s && s->status == KEEL_SOLVE_INFEASIBLE && rep->kind == KEEL_REPORT_ASSIGN) {
         fputs("No valid assignment exists for this roster.\n\n", out);
         write_findings(out, "Why", &s->diagnoses);
-        if (s->best_effort && rep->nurse_of) {
+        if (best_effort) {
             fprintf(out,
                     "BEST-EFFORT PLAN - it breaks the rules listed below (severity %ld).\n"
                     "Escalate: tell the house supervisor before using any of it.\n\n",

@@ -238,14 +238,15 @@ static void write_patients(FILE *out, const keel_report *rep, bool expected)
 keel_status keel_report_yaml(const keel_report *rep, FILE *out)
 {
     const keel_solution *s = rep->solution;
-    fprintf(out, "# Written by keel %s", keel_version());
-    if (s)
-        fprintf(out, " (%s, status %s)", s->method, keel_solve_status_name(s->status));
-    fprintf(out, "\n# %s\n", KEEL_CAUTION);
+    /* A best-effort plan says so on its first line, before anyone reads on. */
     if (s && s->best_effort)
         fputs("# BEST-EFFORT PLAN: no valid assignment exists; the nurses below break rules\n"
               "# (see keel assign's report). Tell the house supervisor before using any of it.\n",
               out);
+    fprintf(out, "# Written by keel %s", keel_version());
+    if (s)
+        fprintf(out, " (%s, status %s)", s->method, keel_solve_status_name(s->status));
+    fprintf(out, "\n# %s\n", KEEL_CAUTION);
     write_head(out, rep->roster);
     write_nurses(out, rep->roster);
     write_patients(out, rep, false);

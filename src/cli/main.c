@@ -68,7 +68,9 @@ static const command commands[] = {
      "      --best-effort      when no valid assignment exists, also show the plan that\n"
      "                         breaks the fewest rules (by severity), labelled as such;\n"
      "                         the exit code stays 3\n"
-     "  -o, --output FILE      write to FILE (replaced atomically; never the roster)\n",
+     "  -o, --output FILE      write to FILE (replaced atomically; never the roster).\n"
+     "                         When no valid assignment exists, nothing is written to\n"
+     "                         FILE unless --best-effort gives a labelled plan\n",
      run_assign},
     {"check", "validate a roster, show its workload, score its own plan",
      "usage: keel check ROSTER [--format text|json] [--time-limit SECONDS] [-o FILE]\n"
@@ -430,6 +432,8 @@ static int run_assign(const options *opt)
     keel_solve_options so = {.method = opt->method,
                              .time_limit_ms = opt->time_limit_ms,
                              .best_effort = opt->best_effort};
+    if (cli_output_clobbers(opt->output, opt->roster))
+        return EXIT_USAGE;
     keel_status rc = load(&s, opt);
     if (!rc && !has_patients("assign", opt, s.roster)) {
         state_fini(&s);
@@ -462,20 +466,32 @@ static int run_assign(const options *opt)
                        .course = s.course,
                        .violations = s.solution->best_effort ? &s.violations : NULL};
     bool infeasible = s.solution->status == KEEL_SOLVE_INFEASIBLE;
+    bool best_effort = infeasible && s.solution->best_effort;
     if (infeasible) {
         fprintf(stderr, "keel assign: %s: no valid assignment exists\n", opt->roster);
         for (size_t i = 0; i < s.solution->diagnoses.n; i++)
             fprintf(stderr, "  [%s] %s\n", s.solution->diagnoses.items[i].rule,
                     s.solution->diagnoses.items[i].message);
-        if (s.solution->best_effort)
-            fprintf(stderr,
-                    "keel assign: the report holds a BEST-EFFORT plan that breaks %zu "
-                    "rule%s; tell the house supervisor before using any of it\n",
-                    s.violations.n, s.violations.n == 1 ? "" : "s");
-        else
+        if (!best_effort)
             rep.nurse_of = NULL;
     }
-    int code = write_report(opt, &rep);
+    /* A file from -o is what gets posted: with no valid assignment it is
+     * only ever a labelled best-effort plan, else nothing (the old file
+     * stays as it was). */
+    int code = 0;
+    if (infeasible && !best_effort && to_file(opt))
+        fprintf(stderr, "keel assign: no plan written to %s: no valid assignment exists\n",
+                opt->output);
+    else
+        code = write_report(opt, &rep);
+    if (best_effort && !code)
+        fprintf(stderr,
+                "keel assign: %s holds a BEST-EFFORT plan, not an assignment: it breaks %zu "
+                "rule%s; tell the house supervisor before using any of it\n",
+                to_file(opt) ? opt->output : "the report", s.violations.n,
+                s.violations.n == 1 ? "" : "s");
+    if (infeasible)
+        fprintf(stderr, "%s\n", KEEL_CAUTION);
     state_fini(&s);
     if (code)
         return code;

@@ -251,6 +251,33 @@ has "$work/err" "did you mean 'help'?" "help itself is suggested"
 expect 1 "a made-up command" -- "$keel" rota
 if grep -q "did you mean" "$work/err"; then not_ok "no suggestion for a word far from every command"; else ok "no suggestion for a word far from every command"; fi
 
+# Exit 3: the reasons on stderr end with the caution, and -o writes no plan:
+# an old file is left as it was.
+expect 3 "no valid assignment, reasons on stderr" -- "$keel" assign "$data/infeasible-chemo.yaml"
+last_line_is_caution "$work/err" "the reasons on exit 3 end with the caution"
+printf 'the plan posted earlier\n' > "$work/posted.txt"
+cp "$work/posted.txt" "$work/posted.before"
+for f in text yaml json; do
+    expect 3 "no valid assignment with -o, as $f" -- "$keel" assign "$data/infeasible-chemo.yaml" --format "$f" -o "$work/posted.txt"
+    if cmp -s "$work/posted.txt" "$work/posted.before"; then ok "$f: the old file is untouched"; else not_ok "$f: the old file is untouched"; fi
+    has "$work/err" "keel assign: no plan written to $work/posted.txt: no valid assignment exists" "$f: stderr says no plan was written"
+    last_line_is_caution "$work/err" "$f: stderr ends with the caution"
+done
+expect 3 "no valid assignment with -o a new file" -- "$keel" assign "$data/infeasible-chemo.yaml" -o "$work/never.txt"
+if [ -e "$work/never.txt" ]; then not_ok "no file is created"; else ok "no file is created"; fi
+if ls "$work"/never.txt.tmp-* "$work"/posted.txt.tmp-* >/dev/null 2>&1; then not_ok "no temporary file is left on exit 3"; else ok "no temporary file is left on exit 3"; fi
+# With --best-effort the file holds the plan, labelled on its first line.
+expect 3 "best effort to a yaml file" -- "$keel" assign "$data/infeasible-chemo.yaml" --best-effort --format yaml -o "$work/be.yaml"
+if head -n 1 "$work/be.yaml" | grep -q "^# BEST-EFFORT PLAN: no valid assignment exists"; then ok "the yaml label is the first line"; else not_ok "the yaml label is the first line"; fi
+has "$work/err" "keel assign: $work/be.yaml holds a BEST-EFFORT plan, not an assignment: it breaks 2 rules" "stderr says the file is a best-effort plan, not an assignment"
+last_line_is_caution "$work/err" "best effort: stderr ends with the caution"
+expect 3 "best effort to a text file" -- "$keel" assign "$data/infeasible-chemo.yaml" --best-effort -o "$work/be.txt"
+if head -n 1 "$work/be.txt" | grep -q "^BEST-EFFORT PLAN, not an assignment"; then ok "the text label is the first line"; else not_ok "the text label is the first line"; fi
+last_line_is_caution "$work/be.txt" "the best-effort text file ends with the caution"
+expect 3 "best effort to a json file" -- "$keel" assign "$data/infeasible-chemo.yaml" --best-effort --format json -o "$work/be.json"
+has "$work/be.json" '"best_effort": true' "the json file says best_effort"
+has "$work/be.json" '"status": "infeasible"' "the json file keeps the status"
+
 # A unit's roster without patients: import fills it; check and assign say
 # there is nothing to do, and write nothing.
 expect 0 "check a roster without patients" -- "$keel" check "$data/unit-no-patients.yaml"
