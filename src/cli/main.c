@@ -64,7 +64,8 @@ static const command commands[] = {
      "  -m, --method NAME      ilp (default: exact search with GLPK) or greedy\n"
      "  -t, --time-limit SECS  limit for the whole solve (default 10); on time-out the\n"
      "                         best plan found is kept and reported as not proven\n"
-     "  -e, --explain          say why each patient went to its nurse\n"
+     "  -e, --explain          say why each patient went to its nurse (text and json;\n"
+     "                         the yaml plan is a roster and has no place for it)\n"
      "      --best-effort      when no valid assignment exists, also show the plan that\n"
      "                         breaks the fewest rules (by severity), labelled as such;\n"
      "                         the exit code stays 3\n"
@@ -671,6 +672,10 @@ int main(int argc, char **argv)
         return print_help(cmd->usage);
     if (!known_format(opt.format) || (cmd->run == run_check && strcmp(opt.format, "yaml") == 0))
         return usage_error(cmd, "unknown format '%s'", opt.format);
+    if (opt.explain && strcmp(opt.format, "yaml") == 0)
+        return usage_error(cmd, "%s",
+                           "--explain does not go with --format yaml: the yaml plan is a roster, "
+                           "with no place for reasons; use --format text or json");
     if (opt.method && !known_method(opt.method))
         return usage_error(cmd, "unknown method '%s'; expected ilp or greedy", opt.method);
     return cmd->run(&opt);

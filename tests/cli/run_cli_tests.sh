@@ -293,6 +293,10 @@ expect 0 "import into a roster without patients" -- "$keel" import "$data/census
 expect 0 "the filled roster assigns" -- "$keel" assign "$work/filled.yaml" --format json
 has "$work/out" '"id": "P-30105"' "the census's patients are in it"
 
+# --explain with yaml is a usage error that names the combination.
+expect 1 "explain with yaml" -- "$keel" assign "$data/../data/every-rule.yaml" --explain --format yaml
+has "$work/err" "--explain does not go with --format yaml" "the refusal names the combination"
+
 # One of a thing is singular: "limit 1 patient", never "1 patients".
 : > "$work/singular"
 for args in "assign $data/one-of-each.yaml" "check $data/one-of-each.yaml" \
