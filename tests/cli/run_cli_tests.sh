@@ -297,6 +297,18 @@ has "$work/out" '"id": "P-30105"' "the census's patients are in it"
 expect 1 "explain with yaml" -- "$keel" assign "$data/../data/every-rule.yaml" --explain --format yaml
 has "$work/err" "--explain does not go with --format yaml" "the refusal names the combination"
 
+# -o follows the umask: a posted plan is readable by the unit's other accounts.
+for mask in 022 027; do
+    rm -f "$work/mode.yaml" "$work/mode-new.yaml"
+    (umask "$mask" && "$keel" assign "$examples/icu-night.yaml" --format yaml -o "$work/mode.yaml" >/dev/null 2>&1 &&
+        "$keel" new --type icu -o "$work/mode-new.yaml" >/dev/null 2>&1)
+    want=$(printf '%o' $((0666 & ~0$mask)))
+    got=$(stat -c %a "$work/mode.yaml" 2>/dev/null)
+    if [ "$got" = "$want" ]; then ok "umask $mask: assign -o writes mode $want"; else echo "# mode $got"; not_ok "umask $mask: assign -o writes mode $want"; fi
+    got=$(stat -c %a "$work/mode-new.yaml" 2>/dev/null)
+    if [ "$got" = "$want" ]; then ok "umask $mask: new -o writes mode $want"; else echo "# mode $got"; not_ok "umask $mask: new -o writes mode $want"; fi
+done
+
 # One of a thing is singular: "limit 1 patient", never "1 patients".
 : > "$work/singular"
 for args in "assign $data/one-of-each.yaml" "check $data/one-of-each.yaml" \
