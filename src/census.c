@@ -4,7 +4,8 @@
  *
  * The reader splits the text into fields (RFC 4180), remembering where each
  * field starts; the header row says which column holds which field; each
- * later row becomes a patient, checked field by field.  Every problem in the
+ * later row becomes a patient, checked field by field and, when the roster
+ * it joins is given, against that roster's scales.  Every problem in the
  * file is reported, in file order.
  */
 #include "keel/census.h"
@@ -80,8 +81,8 @@ static void problem(reader *rd, int line, int column, const char *key, const cha
     vsnprintf(msg, sizeof msg, fmt, ap);
     va_end(ap);
     rd->bad = true;
-    if (keel_error_add(rd->err, KEEL_ERR_INPUT, rd->name, line, column, key, "%s", msg) ==
-        KEEL_ERR_NOMEM)
+    keel_error_add(rd->err, KEEL_ERR_INPUT, rd->name, line, column, key, "%s", msg);
+    if (rd->err && rd->err->status == KEEL_ERR_NOMEM) /* the problem could not be kept */
         rd->nomem = true;
 }
 
@@ -391,6 +392,32 @@ static void read_patient(reader *rd, const row *r, const int *col, keel_patient 
     }
 }
 
+/* Says, through err, what of patient p the unit's scales lack: its acuity
+ * level (reported at line:acuity_column) and each of its extras (at
+ * line:extras_column).  Returns KEEL_OK, KEEL_ERR_INPUT, or KEEL_ERR_NOMEM
+ * when any problem could not be recorded. */
+static keel_status check_scales(const char *file, const keel_patient *p, int line,
+                                int acuity_column, int extras_column, const keel_roster *unit,
+                                keel_error *err)
+{
+    keel_status rc = KEEL_OK;
+    if (p->acuity != KEEL_ABSENT && p->care_minutes == KEEL_ABSENT &&
+        keel_roster_acuity_minutes(unit, p->acuity) == KEEL_ABSENT)
+        rc = keel_error_add(err, KEEL_ERR_INPUT, file, line, acuity_column, "acuity",
+                            "patient %s has acuity %d, which %s's policy.acuity_minutes "
+                            "does not give; expected a level of the unit's scale",
+                            p->id ? p->id : "without an id", p->acuity, unit->path);
+    for (size_t k = 0; k < p->nextras; k++)
+        if (keel_roster_extra_minutes(unit, p->extras[k]) == KEEL_ABSENT)
+            rc = keel_error_add(err, KEEL_ERR_INPUT, file, line, extras_column, "extras",
+                                "patient %s lists extra '%s', which %s's "
+                                "policy.extra_minutes does not give",
+                                p->id ? p->id : "without an id", p->extras[k], unit->path);
+    if (rc && err && err->status == KEEL_ERR_NOMEM) /* a problem could not be kept */
+        rc = KEEL_ERR_NOMEM;
+    return rc;
+}
+
 static keel_census *new_census(const char *name)
 {
     keel_census *c = keel_calloc(1, sizeof *c);
@@ -401,8 +428,20 @@ static keel_census *new_census(const char *name)
     return c;
 }
 
-keel_status keel_census_parse(const char *name, const char *text, size_t len, const char *map,
-                              keel_census **out, keel_error *err)
+/* True, after saying so, when the header is one column that holds ';': a
+ * spreadsheet saved with ';' as its separator, as some locales do. */
+static bool semicolon_separated(reader *rd, const row *header)
+{
+    if (header->ncells != 1 || !strchr(header->cells[0].text, ';'))
+        return false;
+    problem(rd, header->line, 1, NULL,
+            "the header is one column holding ';': the file seems to use ';' as separator; keel "
+            "reads commas (save the sheet as comma-separated CSV)");
+    return true;
+}
+
+keel_status keel_census_parse_for(const char *name, const char *text, size_t len, const char *map,
+                                  const keel_roster *unit, keel_census **out, keel_error *err)
 {
     reader rd = {.name = name, .text = text, .len = len, .line = 1, .column = 1, .err = err};
     char *headers[NFIELDS];
@@ -422,6 +461,8 @@ keel_status keel_census_parse(const char *name, const char *text, size_t len, co
                 "bed,patient,acuity,needs,isolation");
         goto done;
     }
+    if (semicolon_separated(&rd, &rows[0]))
+        goto done;
     int col[NFIELDS];
     for (size_t f = 0; f < NFIELDS; f++) {
         col[f] = -1;
@@ -462,6 +503,18 @@ keel_status keel_census_parse(const char *name, const char *text, size_t len, co
     for (size_t r = 1; r < nrows && !rd.nomem; r++) {
         keel_patient *p = &c->patients[c->npatients++];
         read_patient(&rd, &rows[r], col, p);
+        if (unit) {
+            const cell *acuity = col[F_ACUITY] >= 0 && (size_t)col[F_ACUITY] < rows[r].ncells
+                                     ? &rows[r].cells[col[F_ACUITY]]
+                                     : NULL;
+            const cell *extras = col[F_EXTRAS] >= 0 && (size_t)col[F_EXTRAS] < rows[r].ncells
+                                     ? &rows[r].cells[col[F_EXTRAS]]
+                                     : NULL;
+            keel_status bad = check_scales(name, p, rows[r].line, acuity ? acuity->column : 1,
+                                           extras ? extras->column : 1, unit, err);
+            rd.bad = rd.bad || bad;
+            rd.nomem = rd.nomem || bad == KEEL_ERR_NOMEM;
+        }
         for (size_t q = 0; p->id && q + 1 < c->npatients; q++)
             if (c->patients[q].id && strcmp(c->patients[q].id, p->id) == 0) {
                 problem(&rd, rows[r].line, rows[r].cells[col[F_PATIENT]].column, "patient",
@@ -487,7 +540,14 @@ done:
     return rc;
 }
 
-keel_status keel_census_load(const char *path, const char *map, keel_census **out, keel_error *err)
+keel_status keel_census_parse(const char *name, const char *text, size_t len, const char *map,
+                              keel_census **out, keel_error *err)
+{
+    return keel_census_parse_for(name, text, len, map, NULL, out, err);
+}
+
+keel_status keel_census_load_for(const char *path, const char *map, const keel_roster *unit,
+                                 keel_census **out, keel_error *err)
 {
     char *text = NULL;
     size_t len = 0;
@@ -495,28 +555,23 @@ keel_status keel_census_load(const char *path, const char *map, keel_census **ou
     keel_status rc = keel_roster_read_file(path, &text, &len, err);
     if (rc)
         return rc;
-    rc = keel_census_parse(path, text, len, map, out, err);
+    rc = keel_census_parse_for(path, text, len, map, unit, out, err);
     free(text);
     return rc;
+}
+
+keel_status keel_census_load(const char *path, const char *map, keel_census **out, keel_error *err)
+{
+    return keel_census_load_for(path, map, NULL, out, err);
 }
 
 keel_status keel_census_into_roster(keel_census *c, keel_roster *r, keel_error *err)
 {
     keel_status rc = KEEL_OK;
     for (size_t i = 0; i < c->npatients; i++) {
-        const keel_patient *p = &c->patients[i];
-        if (p->acuity != KEEL_ABSENT && p->care_minutes == KEEL_ABSENT &&
-            keel_roster_acuity_minutes(r, p->acuity) == KEEL_ABSENT)
-            rc = keel_error_add(err, KEEL_ERR_INPUT, c->path, p->mark.line, 1, "acuity",
-                                "patient %s has acuity %d, which %s's policy.acuity_minutes "
-                                "does not give; expected a level of the unit's scale",
-                                p->id, p->acuity, r->path);
-        for (size_t k = 0; k < p->nextras; k++)
-            if (keel_roster_extra_minutes(r, p->extras[k]) == KEEL_ABSENT)
-                rc = keel_error_add(err, KEEL_ERR_INPUT, c->path, p->mark.line, 1, "extras",
-                                    "patient %s lists extra '%s', which %s's "
-                                    "policy.extra_minutes does not give",
-                                    p->id, p->extras[k], r->path);
+        keel_status bad = check_scales(c->path, &c->patients[i], c->patients[i].mark.line, 1, 1,
+                                       r, err);
+        rc = rc ? rc : bad;
     }
     if (rc)
         return rc;

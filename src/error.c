@@ -1,10 +1,12 @@
 /* SPDX-License-Identifier: GPL-3.0-or-later */
 /*
- * error.c - the error value: a status and a list of positioned problems.
+ * error.c - the error value: a status and a list of positioned problems;
+ * and the "did you mean" of a message (keel_error_suggest()).
  */
 #include "keel/error.h"
 
 #include <stdarg.h>
+#include <stdbool.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -95,4 +97,69 @@ const char *keel_status_string(keel_status status)
         return "solver failure";
     }
     return "unknown status";
+}
+
+enum {
+    MAX_SUGGEST = 64, /* longest word that gets a "did you mean" */
+};
+
+/* Optimal string alignment distance of a and b (both at most MAX_SUGGEST). */
+static size_t edit_distance(const char *a, const char *b)
+{
+    size_t la = strlen(a), lb = strlen(b);
+    size_t d[MAX_SUGGEST + 1][MAX_SUGGEST + 1];
+    for (size_t i = 0; i <= la; i++)
+        d[i][0] = i;
+    for (size_t j = 0; j <= lb; j++)
+        d[0][j] = j;
+    for (size_t i = 1; i <= la; i++) {
+        for (size_t j = 1; j <= lb; j++) {
+            size_t best = d[i - 1][j - 1] + (a[i - 1] != b[j - 1]);
+            if (d[i - 1][j] + 1 < best)
+                best = d[i - 1][j] + 1;
+            if (d[i][j - 1] + 1 < best)
+                best = d[i][j - 1] + 1;
+            if (i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1] &&
+                d[i - 2][j - 2] + 1 < best)
+                best = d[i - 2][j - 2] + 1;
+            d[i][j] = best;
+        }
+    }
+    return d[la][lb];
+}
+
+/* True when a and b are the same ASCII text, ignoring case. */
+static bool same_ignoring_case(const char *a, const char *b)
+{
+    for (; *a && *b; a++, b++) {
+        char x = *a >= 'A' && *a <= 'Z' ? (char)(*a - 'A' + 'a') : *a;
+        char y = *b >= 'A' && *b <= 'Z' ? (char)(*b - 'A' + 'a') : *b;
+        if (x != y)
+            return false;
+    }
+    return *a == *b;
+}
+
+const char *keel_error_suggest(const char *word, const char *const *words, size_t nwords)
+{
+    if (!word)
+        return NULL;
+    for (size_t i = 0; i < nwords; i++)
+        if (words[i] && same_ignoring_case(word, words[i]))
+            return words[i];
+    if (strlen(word) > MAX_SUGGEST)
+        return NULL;
+    const char *best = NULL;
+    size_t best_distance = 3;
+    for (size_t i = 0; i < nwords; i++) {
+        if (!words[i] || strlen(words[i]) > MAX_SUGGEST)
+            continue;
+        size_t distance = edit_distance(word, words[i]);
+        size_t longer = strlen(word) > strlen(words[i]) ? strlen(word) : strlen(words[i]);
+        if (distance < best_distance && 3 * distance <= longer) {
+            best = words[i];
+            best_distance = distance;
+        }
+    }
+    return best;
 }

@@ -25,7 +25,8 @@ static void write_heading(FILE *out, const keel_report *rep)
     if (r->shift.start_minute != KEEL_ABSENT)
         fprintf(out, " from %02d:%02d", r->shift.start_minute / 60, r->shift.start_minute % 60);
     fprintf(out, " (%d min)\n", r->shift.minutes);
-    fprintf(out, "%zu patients, %zu nurses\n\n", r->npatients, r->nnurses);
+    fprintf(out, "%zu patient%s, %zu nurse%s\n\n", r->npatients, r->npatients == 1 ? "" : "s",
+            r->nnurses, r->nnurses == 1 ? "" : "s");
 }
 
 /* text with every full citation of table t (keel_law_cite()) shortened to
@@ -351,7 +352,8 @@ static void write_nurse_blocks(FILE *out, const keel_report *rep)
 
 static void write_balance(FILE *out, const keel_metrics *m)
 {
-    fprintf(out, "Balance over the %zu nurses who take patients\n", m->ncounted);
+    fprintf(out, "Balance over the %zu nurse%s who take%s patients\n", m->ncounted,
+            m->ncounted == 1 ? "" : "s", m->ncounted == 1 ? "s" : "");
     fprintf(out, "  heaviest %.1f %%, lightest %.1f %%, spread %.1f points\n",
             100.0 * m->max_utilisation, 100.0 * m->min_utilisation, 100.0 * m->spread);
     fprintf(out,
@@ -470,9 +472,11 @@ static void write_proof(FILE *out, const keel_solution *s, const keel_metrics *m
                      s->continuity.zero_proven ? "" : "at least ", s->continuity.kept_at_zero,
                      100.0 * s->continuity.tolerance, s->continuity.zero_proven ? "" : "at most ",
                      s->continuity.kept - s->continuity.kept_at_zero);
-        char *line = keel_asprintf("Continuity: %ld of %ld patients keep their nurse from the "
+        bool one = s->continuity.candidates == 1;
+        char *line = keel_asprintf("Continuity: %ld of %ld patient%s keep%s their nurse from the "
                                    "last shift%s.",
-                                   s->continuity.kept, s->continuity.candidates, zero);
+                                   s->continuity.kept, s->continuity.candidates, one ? "" : "s",
+                                   one ? "s" : "", zero);
         if (line)
             keel_report_out_wrapped(out, "  ", line, 78);
         free(line);
@@ -554,6 +558,11 @@ keel_status keel_report_text(const keel_report *rep, FILE *out)
 {
     const keel_solution *s = rep->solution;
     const keel_law_table *t = rep->roster->policy.ratio_table;
+    bool best_effort = rep->kind == KEEL_REPORT_ASSIGN && s && s->best_effort && rep->nurse_of;
+    if (best_effort) /* on the first line, before anyone reads on */
+        fputs("BEST-EFFORT PLAN, not an assignment: no valid assignment exists and this plan "
+              "breaks rules.\n\n",
+              out);
     write_heading(out, rep);
     write_ratio_table(out, rep->roster);
     if (rep->kind == KEEL_REPORT_CHECK)
@@ -561,7 +570,7 @@ keel_status keel_report_text(const keel_report *rep, FILE *out)
     if (s && s->status == KEEL_SOLVE_INFEASIBLE && rep->kind == KEEL_REPORT_ASSIGN) {
         fputs("No valid assignment exists for this roster.\n\n", out);
         write_findings(out, t, "Why", &s->diagnoses);
-        if (s->best_effort && rep->nurse_of) {
+        if (best_effort) {
             fprintf(out,
                     "BEST-EFFORT PLAN - it breaks the rules listed below (severity %ld).\n"
                     "Escalate: tell the house supervisor before using any of it.\n\n",

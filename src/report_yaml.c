@@ -244,6 +244,11 @@ static void write_patients(FILE *out, const keel_report *rep, bool expected)
 keel_status keel_report_yaml(const keel_report *rep, FILE *out)
 {
     const keel_solution *s = rep->solution;
+    /* A best-effort plan says so on its first line, before anyone reads on. */
+    if (s && s->best_effort)
+        fputs("# BEST-EFFORT PLAN: no valid assignment exists; the nurses below break rules\n"
+              "# (see keel assign's report). Tell the house supervisor before using any of it.\n",
+              out);
     fprintf(out, "# Written by keel %s", keel_version());
     if (s)
         fprintf(out, " (%s, status %s)", s->method, keel_solve_status_name(s->status));
@@ -251,10 +256,6 @@ keel_status keel_report_yaml(const keel_report *rep, FILE *out)
     if (rep->verdict)
         fprintf(out, "# Staffing verdict (%s): %s\n", keel_verdict_kind_name(rep->verdict->kind),
                 rep->verdict->text);
-    if (s && s->best_effort)
-        fputs("# BEST-EFFORT PLAN: no valid assignment exists; the nurses below break rules\n"
-              "# (see keel assign's report). Tell the house supervisor before using any of it.\n",
-              out);
     write_head(out, rep->roster);
     write_nurses(out, rep->roster);
     write_patients(out, rep, false);

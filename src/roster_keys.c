@@ -657,11 +657,15 @@ static void read_patients(loader *ld, const node *value, const key_rule *keys, s
     }
 }
 
+/* patients: [] is none, as is no key at all: a unit's roster without
+ * patients is what `keel import --roster` fills from a census. */
 static void parse_patients(loader *ld, const node *value, void *target, const key_rule *rule)
 {
     keel_roster *r = target;
     (void)rule;
-    if (check_list(ld, value, "patient"))
+    if (value->kind != NODE_SEQUENCE)
+        keel_roster_tree_report_type(ld, value, "a list of patients ([] for none)");
+    else if (value->nitems > 0)
         read_patients(ld, value, patient_keys, ARRAY_LEN(patient_keys), false, &r->patients,
                       &r->npatients);
 }
@@ -811,7 +815,7 @@ static const key_rule roster_keys[] = {
      .keys = policy_keys,
      .nkeys = ARRAY_LEN(policy_keys)},
     {.name = "nurses", .parse = parse_nurses, .need = "every roster needs a list of nurses"},
-    {.name = "patients", .parse = parse_patients, .need = "every roster needs a list of patients"},
+    {.name = "patients", .parse = parse_patients},
     {.name = "expected_admissions", .parse = parse_expected},
 };
 

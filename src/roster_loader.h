@@ -37,7 +37,6 @@ enum {
     MAX_PATH = 256, /* bytes of a key path in a message; longer ones are cut */
     MAX_SHOWN = 40, /* bytes of a file's text quoted back in a message */
     SHOWN_SIZE = MAX_SHOWN + 4,
-    MAX_SUGGEST = 64,       /* longest word that gets a "did you mean" */
     MINUTES_PER_DAY = 1440, /* the upper bound of every minutes figure */
 };
 
@@ -156,9 +155,6 @@ int keel_roster_words_scan_clock(const char *s);
 /* True when s is YYYY-MM-DD and names a day of the Gregorian calendar. */
 bool keel_roster_words_is_date(const char *s);
 
-/* True when candidate is closer to word than *best_distance and close
- * enough to be a typo of it; then *best_distance becomes its distance. */
-bool keel_roster_words_is_closer(const char *word, const char *candidate, size_t *best_distance);
 /* Reads n, one of words[0..nwords), into *index; what names the word in
  * messages ("role"), of_nurse adds the message for unlicensed staff.
  * Reported and false when n is not one of the words. */

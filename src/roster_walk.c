@@ -18,14 +18,13 @@ enum {
 /* The valid key closest to word, when it is close enough to be a typo. */
 static const char *suggest_key(const char *word, const key_rule *keys, size_t nkeys)
 {
-    const char *best = NULL;
-    size_t best_distance = 3;
-    if (strlen(word) > MAX_SUGGEST)
-        return NULL;
+    const char *names[MAX_KEYS];
+    size_t nnames = 0;
+    assert(nkeys <= MAX_KEYS);
     for (size_t i = 0; i < nkeys; i++)
-        if (!keys[i].refused && keel_roster_words_is_closer(word, keys[i].name, &best_distance))
-            best = keys[i].name;
-    return best;
+        if (!keys[i].refused)
+            names[nnames++] = keys[i].name;
+    return keel_error_suggest(word, names, nnames);
 }
 
 static void report_unknown_key(loader *ld, const node *key, const key_rule *keys, size_t nkeys)

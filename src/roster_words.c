@@ -2,8 +2,8 @@
 /*
  * roster_words.c - the roster's scalar values and words: integers, strings,
  * times of day and dates read from scalar nodes, and a word that must be one
- * of a list, with a "did you mean" for a word that is close to one (edit
- * distance) and its own message for the titles of unlicensed staff.
+ * of a list, with a "did you mean" for a word that is close to one
+ * (keel_error_suggest()) and its own message for the titles of unlicensed staff.
  */
 #include <stdio.h>
 #include <stdlib.h>
@@ -106,43 +106,6 @@ bool keel_roster_words_is_date(const char *s)
     return day <= days[month - 1] + (month == 2 && leap);
 }
 
-/* Optimal string alignment distance of a and b (both at most MAX_SUGGEST). */
-static size_t edit_distance(const char *a, const char *b)
-{
-    size_t la = strlen(a), lb = strlen(b);
-    size_t d[MAX_SUGGEST + 1][MAX_SUGGEST + 1];
-    for (size_t i = 0; i <= la; i++)
-        d[i][0] = i;
-    for (size_t j = 0; j <= lb; j++)
-        d[0][j] = j;
-    for (size_t i = 1; i <= la; i++) {
-        for (size_t j = 1; j <= lb; j++) {
-            size_t best = d[i - 1][j - 1] + (a[i - 1] != b[j - 1]);
-            if (d[i - 1][j] + 1 < best)
-                best = d[i - 1][j] + 1;
-            if (d[i][j - 1] + 1 < best)
-                best = d[i][j - 1] + 1;
-            if (i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1] &&
-                d[i - 2][j - 2] + 1 < best)
-                best = d[i - 2][j - 2] + 1;
-            d[i][j] = best;
-        }
-    }
-    return d[la][lb];
-}
-
-/* True when candidate is closer to word than *best_distance and close
- * enough to be a typo of it; then *best_distance becomes its distance. */
-bool keel_roster_words_is_closer(const char *word, const char *candidate, size_t *best_distance)
-{
-    size_t distance = edit_distance(word, candidate);
-    size_t longer = strlen(word) > strlen(candidate) ? strlen(word) : strlen(candidate);
-    if (distance >= *best_distance || 3 * distance > longer)
-        return false;
-    *best_distance = distance;
-    return true;
-}
-
 /* True when a and b are the same ASCII text, ignoring case. */
 static bool same_ignoring_case(const char *a, const char *b)
 {
@@ -153,23 +116,6 @@ static bool same_ignoring_case(const char *a, const char *b)
             return false;
     }
     return *a == *b;
-}
-
-/* The word of words[0..nwords) closest to word: one that differs only in
- * case, else one close enough to be a typo; NULL when none is. */
-static const char *suggest_word(const char *word, const char *const *words, size_t nwords)
-{
-    const char *best = NULL;
-    size_t best_distance = 3;
-    for (size_t i = 0; i < nwords; i++)
-        if (same_ignoring_case(word, words[i]))
-            return words[i];
-    if (strlen(word) > MAX_SUGGEST)
-        return NULL;
-    for (size_t i = 0; i < nwords; i++)
-        if (keel_roster_words_is_closer(word, words[i], &best_distance))
-            best = words[i];
-    return best;
 }
 
 /* Titles of unlicensed assistive staff, who take no assignment of their own
@@ -237,7 +183,7 @@ bool keel_roster_words_read_word(loader *ld, const node *n, const char *what,
             return true;
         }
     }
-    const char *suggestion = suggest_word(n->text, words, nwords);
+    const char *suggestion = keel_error_suggest(n->text, words, nwords);
     if (of_nurse && names_unlicensed_staff(n->text))
         keel_roster_report_problem(
             ld, n->mark,

@@ -40,10 +40,10 @@ static keel_status check(const keel_rule_plan *c, size_t n, size_t m, const size
         return KEEL_ERR_NOMEM;
     for (size_t i = 0; i < k; i++)
         who[i] = (size_t)w->patient[mine[i]];
-    char *msg = keel_asprintf("%s has %zu high-acuity patients (acuity %d or more); the "
+    char *msg = keel_asprintf("%s has %zu high-acuity patient%s (acuity %d or more); the "
                               "policy allows %d per nurse",
-                              r->nurses[n].id, high, r->policy.high_acuity.level,
-                              w->max_high_acuity);
+                              r->nurses[n].id, high, high == 1 ? "" : "s",
+                              r->policy.high_acuity.level, w->max_high_acuity);
     keel_status rc = keel_findings_add(out, "high_acuity", who, k, &n, 1, msg);
     free(who);
     return rc;
@@ -92,8 +92,9 @@ static void relax(keel_workload *copy, const keel_rule_spare *spare)
 
 static char *say(const keel_roster *r, const keel_workload *w)
 {
-    return keel_asprintf("at most %d high-acuity patients (acuity %d or more) per nurse",
-                         w->max_high_acuity, r->policy.high_acuity.level);
+    return keel_asprintf("at most %d high-acuity patient%s (acuity %d or more) per nurse",
+                         w->max_high_acuity, w->max_high_acuity == 1 ? "" : "s",
+                         r->policy.high_acuity.level);
 }
 
 /* Places for high-acuity patients: each nurse who may take one holds at most
@@ -122,10 +123,9 @@ static char *conflict(const keel_roster *r, const keel_workload *w, const char *
         nhigh += w->high_acuity[p] && w->first_part[w->patient[p]] == (int)p;
     int level = r->policy.high_acuity.level;
     if (w->max_high_acuity == 0)
-        return keel_asprintf("%zu high-acuity patients (acuity %d or more), but "
-                             "policy.high_acuity.max_per_nurse is 0, so no nurse may take "
-                             "them",
-                             nhigh, level);
+        return keel_asprintf("%zu high-acuity patient%s (acuity %d or more), but "
+                             "policy.high_acuity.max_per_nurse is 0, so no nurse may take %s",
+                             nhigh, nhigh == 1 ? "" : "s", level, nhigh == 1 ? "one" : "them");
     size_t nurses;
     long places = high_places(w, &nurses);
     /* The places add up only without the clock (with it they hold at each
@@ -133,15 +133,16 @@ static char *conflict(const keel_roster *r, const keel_workload *w, const char *
     if (!w->clocked && places < (long)nhigh && !nothers) {
         long per = w->max_high_acuity > 0 ? w->max_high_acuity : 1;
         long more = ((long)nhigh - places + per - 1) / per;
-        return keel_asprintf("%zu high-acuity patients (acuity %d or more) and at most %d "
-                             "per nurse: the %zu nurses who may take them can hold %ld; "
+        return keel_asprintf("%zu high-acuity patient%s (acuity %d or more) and at most %d "
+                             "per nurse: the %zu nurse%s who may take them can hold %ld; "
                              "%ld more nurse%s who may take them %s needed",
-                             nhigh, level, w->max_high_acuity, nurses, places, more,
-                             more > 1 ? "s" : "", more > 1 ? "are" : "is");
+                             nhigh, nhigh == 1 ? "" : "s", level, w->max_high_acuity, nurses,
+                             nurses == 1 ? "" : "s", places, more, more > 1 ? "s" : "",
+                             more > 1 ? "are" : "is");
     }
-    return keel_asprintf("no assignment keeps at most %d high-acuity patients (acuity %d or "
+    return keel_asprintf("no assignment keeps at most %d high-acuity patient%s (acuity %d or "
                          "more) per nurse%s; relaxing it makes one possible",
-                         w->max_high_acuity, level, tail);
+                         w->max_high_acuity, w->max_high_acuity == 1 ? "" : "s", level, tail);
 }
 
 static int order(const keel_workload *w, size_t a, size_t b)

@@ -51,10 +51,10 @@ static keel_status check(const keel_rule_plan *c, size_t n, size_t m, const size
     char table[KEEL_LAW_CITE_SIZE];
     keel_law_cite(r->policy.ratio_table, table, sizeof table);
     char *msg = by_law(w, n)
-                    ? keel_asprintf("%s has %zu patients: exceeds the limit of 1:%d for %s in %s",
-                                    id, k, w->law_limit, r->unit.type, table)
-                    : keel_asprintf("%s has %zu patients; the patient limit is %d", id, k,
-                                    w->max_patients[n]);
+                    ? keel_asprintf("%s has %zu patient%s: exceeds the limit of 1:%d for %s in %s",
+                                    id, k, k == 1 ? "" : "s", w->law_limit, r->unit.type, table)
+                    : keel_asprintf("%s has %zu patient%s; the patient limit is %d", id, k,
+                                    k == 1 ? "" : "s", w->max_patients[n]);
     size_t *who = keel_calloc(k, sizeof *who);
     if (!who) {
         free(msg);

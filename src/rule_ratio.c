@@ -158,9 +158,11 @@ static char *conflict(const keel_roster *r, const keel_workload *w, const char *
     }
     long need = nurses_for_ratios(w, staff_limit);
     if (need > (long)counted && !nothers)
-        return keel_asprintf("the patients' own ratios need at least %ld nurses for %zu "
-                             "patients; %zu nurses take patients: %ld short",
-                             need, w->npatients, counted, need - (long)counted);
+        return keel_asprintf("the patients' own ratios need at least %ld nurse%s for %zu "
+                             "patient%s; %zu nurse%s take%s patients: %ld short",
+                             need, need == 1 ? "" : "s", w->npatients,
+                             w->npatients == 1 ? "" : "s", counted, counted == 1 ? "" : "s",
+                             counted == 1 ? "s" : "", need - (long)counted);
     return keel_asprintf("no assignment keeps every patient's own ratio (\"1:N\")%s; "
                          "relaxing it makes one possible",
                          tail);

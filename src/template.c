@@ -109,7 +109,7 @@ keel_status keel_template_write(const keel_template_options *o, const keel_censu
         int max = keel_law_nurse_max(table, type);
         fprintf(out, "  # %s", cite);
         if (max > 0)
-            fprintf(out, ": at most %d patients per nurse", max);
+            fprintf(out, ": at most %d patient%s per nurse", max, max == 1 ? "" : "s");
         if (table->note)
             fprintf(out, "\n  # %s", table->note);
         fprintf(out, "\n  ratio_table: %s\n", table->name);
@@ -148,7 +148,7 @@ keel_status keel_template_write(const keel_template_options *o, const keel_censu
     } else {
         fprintf(
             out,
-            "patients:                   # or: keel import census.csv --roster this-file\n"
+            "patients:                   # or [] and: keel import census.csv --roster this-file\n"
             "  - {id: %s, bed: %s, acuity: %s, needs: []}\n"
             "  # leaves_at: \"%02d:00\" (a discharge), arrives_at: \"%02d:00\" (a transfer in)\n"
             "\n"

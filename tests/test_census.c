@@ -169,6 +169,82 @@ static void test_a_census_joins_a_roster_that_knows_its_levels(void **state)
     keel_error_fini(&err);
 }
 
+/* A spreadsheet saved with ';' between the fields: one hint, not a list of
+ * missing columns. */
+static void test_a_semicolon_separated_census_gets_a_hint(void **state)
+{
+    (void)state;
+    keel_error err;
+    char buf[512];
+    keel_census *c = parse("bed;patient;acuity\n4W-01;P-1;3\n", NULL, KEEL_ERR_INPUT, &err);
+    assert_null(c);
+    assert_int_equal(err.nproblems, 1);
+    assert_string_equal(problem(&err, 0, buf, sizeof buf),
+                        "census.csv:1:1: the header is one column holding ';': the file seems "
+                        "to use ';' as separator; keel reads commas (save the sheet as "
+                        "comma-separated CSV)");
+    keel_error_fini(&err);
+    /* A ';' inside one column of a comma-separated file is only a value. */
+    c = parse("patient,acuity,needs\nP-1,3,tele;chemo\n", NULL, KEEL_OK, &err);
+    assert_int_equal(c->patients[0].nneeds, 2);
+    keel_census_free(c);
+    keel_error_fini(&err);
+}
+
+static const char scale_roster[] = "shift: {minutes: 720}\n"
+                                   "policy: {acuity_minutes: {1: 60, 2: 100}, "
+                                   "extra_minutes: {admission: 60}}\n"
+                                   "nurses: [{id: A}]\n"
+                                   "patients: [{id: old, acuity: 1}]\n";
+
+/* Against the unit's roster, a level or extra the unit's scales lack is a
+ * problem of its row, at its field, in file order with the file's others. */
+static void test_levels_the_unit_lacks_come_with_the_rows_other_problems(void **state)
+{
+    (void)state;
+    keel_error err;
+    keel_roster *r = NULL;
+    keel_census *c = NULL;
+    char buf[512];
+    keel_error_init(&err);
+    assert_int_equal(keel_roster_parse("base.yaml", scale_roster, strlen(scale_roster), &r, &err),
+                     KEEL_OK);
+    static const char text[] = "patient,acuity,isolation,extras\n"
+                               "X1,5,,\n"
+                               "X2,2,airbone,\n"
+                               "X3,1,,transfer\n"
+                               "X4,two,,\n";
+    assert_int_equal(keel_census_parse_for("census.csv", text, strlen(text), NULL, r, &c, &err),
+                     KEEL_ERR_INPUT);
+    assert_null(c);
+    assert_int_equal(err.nproblems, 4);
+    assert_string_equal(problem(&err, 0, buf, sizeof buf),
+                        "census.csv:2:4: acuity: patient X1 has acuity 5, which base.yaml's "
+                        "policy.acuity_minutes does not give; expected a level of the unit's "
+                        "scale");
+    assert_string_equal(problem(&err, 1, buf, sizeof buf),
+                        "census.csv:3:6: isolation: unknown precaution 'airbone'; expected "
+                        "contact, droplet, airborne, protective or an empty field");
+    assert_string_equal(problem(&err, 2, buf, sizeof buf),
+                        "census.csv:4:7: extras: patient X3 lists extra 'transfer', which "
+                        "base.yaml's policy.extra_minutes does not give");
+    assert_string_equal(problem(&err, 3, buf, sizeof buf),
+                        "census.csv:5:4: acuity: 'two' is not a whole number from 0 to 99");
+    keel_error_fini(&err);
+    /* Without the unit only the file's own problems; care minutes need no level. */
+    assert_int_equal(keel_census_parse_for("census.csv", text, strlen(text), NULL, NULL, &c, &err),
+                     KEEL_ERR_INPUT);
+    assert_int_equal(err.nproblems, 2);
+    keel_error_fini(&err);
+    static const char fine[] = "patient,acuity,care_minutes\nX1,9,120\nX2,2,\n";
+    assert_int_equal(keel_census_parse_for("census.csv", fine, strlen(fine), NULL, r, &c, &err),
+                     KEEL_OK);
+    assert_int_equal(c->npatients, 2);
+    keel_census_free(c);
+    keel_roster_free(r);
+    keel_error_fini(&err);
+}
+
 static void test_every_failed_allocation_ends_in_a_clean_error(void **state)
 {
     (void)state;
@@ -190,6 +266,30 @@ static void test_every_failed_allocation_ends_in_a_clean_error(void **state)
         }
         assert_int_equal(rc, KEEL_ERR_NOMEM);
     }
+    /* And against a unit's roster that lacks a level and an extra. */
+    keel_error err;
+    keel_roster *r = NULL;
+    keel_error_init(&err);
+    assert_int_equal(keel_roster_parse("base.yaml", scale_roster, strlen(scale_roster), &r, &err),
+                     KEEL_OK);
+    keel_error_fini(&err);
+    static const char lacking[] = "patient,acuity,extras\nX1,5,transfer\nX2,two,\n";
+    for (long n = 1;; n++) {
+        keel_census *c = NULL;
+        keel_error_init(&err);
+        keel_alloc_fail_at(n);
+        keel_status rc =
+            keel_census_parse_for("c.csv", lacking, strlen(lacking), NULL, r, &c, &err);
+        long made = keel_alloc_fail_at(0);
+        assert_null(c);
+        keel_error_fini(&err);
+        if (made < n) {
+            assert_int_equal(rc, KEEL_ERR_INPUT);
+            break;
+        }
+        assert_int_equal(rc, KEEL_ERR_NOMEM);
+    }
+    keel_roster_free(r);
 }
 
 int main(void)
@@ -200,6 +300,8 @@ int main(void)
         cmocka_unit_test(test_a_mapping_reads_other_headers),
         cmocka_unit_test(test_every_problem_has_its_line_and_column),
         cmocka_unit_test(test_a_census_joins_a_roster_that_knows_its_levels),
+        cmocka_unit_test(test_a_semicolon_separated_census_gets_a_hint),
+        cmocka_unit_test(test_levels_the_unit_lacks_come_with_the_rows_other_problems),
         cmocka_unit_test(test_every_failed_allocation_ends_in_a_clean_error),
     };
     return cmocka_run_group_tests_name("census", tests, NULL, NULL);

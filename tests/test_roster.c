@@ -940,6 +940,38 @@ static void test_roster_appends_expected_admissions_wherever_they_are_listed(voi
                     expected);
 }
 
+/* A unit's roster before keel import fills it: patients: [] or no key at
+ * all is no patients; a patients key without a list is still a problem. */
+static void test_roster_may_have_no_patients(void **state)
+{
+    keel_roster *r = NULL;
+    (void)state;
+    static const char *const rosters[] = {
+        "shift: {minutes: 720}\nnurses: [{id: N1}]\npatients: []\n",
+        "shift: {minutes: 720}\nnurses: [{id: N1}]\n",
+    };
+    for (size_t i = 0; i < sizeof rosters / sizeof rosters[0]; i++) {
+        assert_int_equal(parse(rosters[i], &r, NULL), KEEL_OK);
+        assert_int_equal(r->npatients, 0);
+        assert_null(r->patients);
+        assert_int_equal(r->nnurses, 1);
+        keel_roster_free(r);
+    }
+    /* Expected admissions alone are patients. */
+    assert_int_equal(parse("shift: {start: 07:00, minutes: 720}\nnurses: [{id: N1}]\n"
+                           "expected_admissions: [{id: A1, at: \"10:00\", care_minutes: 30}]\n",
+                           &r, NULL),
+                     KEEL_OK);
+    assert_int_equal(r->npatients, 1);
+    keel_roster_free(r);
+    static const char *const expected[] = {
+        "roster.yaml:3:11: patients: found '7'; expected a list of patients ([] for none)", NULL};
+    assert_problems("shift: {minutes: 720}\n"
+                    "nurses: [{id: N1}]\n"
+                    "patients: 7\n",
+                    expected);
+}
+
 static void test_roster_reports_a_file_that_cannot_be_opened(void **state)
 {
     keel_error err;
@@ -1173,6 +1205,7 @@ int main(int argc, char **argv)
         cmocka_unit_test(test_roster_checks_the_clock_keys),
         cmocka_unit_test(test_roster_reports_clock_problems_with_their_place),
         cmocka_unit_test(test_roster_appends_expected_admissions_wherever_they_are_listed),
+        cmocka_unit_test(test_roster_may_have_no_patients),
         cmocka_unit_test(test_roster_reports_a_file_that_cannot_be_opened),
         cmocka_unit_test(test_roster_free_and_lookups_accept_null),
         cmocka_unit_test(test_roster_matches_the_golden_bad_inputs),

@@ -56,11 +56,26 @@ KEEL_API keel_status keel_census_load(const char *path, const char *map, keel_ce
 KEEL_API keel_status keel_census_parse(const char *name, const char *text, size_t len, const char *map,
                               keel_census **out, keel_error *err);
 
+/* Like keel_census_load() and keel_census_parse(), and checks each row
+ * against unit, the roster the census joins, as it reads the row: an acuity
+ * level must be in unit's policy.acuity_minutes (unless the row gives care
+ * minutes) and each extra in its policy.extra_minutes.  So those problems
+ * come with every other problem of the file, in file order, at their line
+ * and column.  unit is borrowed; NULL checks nothing against a roster, as
+ * keel_census_load() does.  Statuses as for keel_census_load(). */
+KEEL_API keel_status keel_census_load_for(const char *path, const char *map,
+                                          const keel_roster *unit, keel_census **out,
+                                          keel_error *err);
+KEEL_API keel_status keel_census_parse_for(const char *name, const char *text, size_t len,
+                                           const char *map, const keel_roster *unit,
+                                           keel_census **out, keel_error *err);
+
 /* Hands the census's patients to roster r, replacing its patients (r then
  * owns them; the census keeps none).  Checks them against r: acuity levels
  * in policy.acuity_minutes, extras in policy.extra_minutes, nurses named in
  * previous_nurse are not checked (they may be off the roster).  Problems
- * name the census file and row.  Statuses: KEEL_OK, KEEL_ERR_INPUT. */
+ * name the census file and row (keel_census_load_for() finds the same
+ * problems with the file's others, at their column).  Statuses: KEEL_OK, KEEL_ERR_INPUT. */
 KEEL_API keel_status keel_census_into_roster(keel_census *c, keel_roster *r, keel_error *err);
 
 /* NULL-safe. */

@@ -73,6 +73,14 @@ KEEL_API int keel_problem_format(const keel_problem *p, char *buf, size_t size);
 /* A short, static, human-readable name of a status ("bad input", ...). */
 KEEL_API const char *keel_status_string(keel_status status);
 
+/* For a message's "did you mean": the word of words[0..nwords) that word is
+ * most likely a typo of.  One that differs only in ASCII case wins; else the
+ * closest by edit distance (a letter added, dropped, changed, or two
+ * neighbours swapped), when that distance is at most 2 and at most a third
+ * of the longer word's length; the first of equals.  NULL when none is that
+ * close (or word is NULL).  Borrowed: the result is one of words. */
+KEEL_API const char *keel_error_suggest(const char *word, const char *const *words, size_t nwords);
+
 #ifdef __cplusplus
 }
 #endif

@@ -93,7 +93,7 @@ _keel() {
     local cmd=${COMP_WORDS[1]}
     case $cmd in
     help)
-        ((cword == 2)) && _keel_add_words "assign check new import" "$cur"
+        ((cword == 2)) && _keel_add_words "assign check new import help" "$cur"
         return 0
         ;;
     assign | check | new | import) ;;

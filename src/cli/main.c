@@ -64,11 +64,14 @@ static const command commands[] = {
      "  -m, --method NAME      ilp (default: exact search with GLPK) or greedy\n"
      "  -t, --time-limit SECS  limit for the whole solve (default 10); on time-out the\n"
      "                         best plan found is kept and reported as not proven\n"
-     "  -e, --explain          say why each patient went to its nurse\n"
+     "  -e, --explain          say why each patient went to its nurse (text and json;\n"
+     "                         the yaml plan is a roster and has no place for it)\n"
      "      --best-effort      when no valid assignment exists, also show the plan that\n"
      "                         breaks the fewest rules (by severity), labelled as such;\n"
      "                         the exit code stays 3\n"
-     "  -o, --output FILE      write to FILE (replaced atomically; never the roster)\n",
+     "  -o, --output FILE      write to FILE (replaced atomically; never the roster).\n"
+     "                         When no valid assignment exists, nothing is written to\n"
+     "                         FILE unless --best-effort gives a labelled plan\n",
      run_assign},
     {"check", "validate a roster, show its workload, score its own plan",
      "usage: keel check ROSTER [--format text|json] [--time-limit SECONDS] [-o FILE]\n"
@@ -116,6 +119,14 @@ static const command commands[] = {
 
 static const size_t ncommands = sizeof commands / sizeof commands[0];
 
+/* keel help's own page: `keel help help`. */
+static const char help_usage[] =
+    "usage: keel help [COMMAND]\n"
+    "\n"
+    "Without a command, lists keel's commands, its exit codes and the caution.  With\n"
+    "one (assign, check, new, import or help), shows that command's usage and every\n"
+    "option; 'keel COMMAND --help' shows the same.\n";
+
 static void print_usage(FILE *out)
 {
     fprintf(out, "usage: keel COMMAND [ARGS]\n\n"
@@ -131,12 +142,35 @@ static void print_usage(FILE *out)
             KEEL_CAUTION);
 }
 
+/* A help page: the usage, then the caution, as every page keel shows ends. */
+static int print_help(const char *usage)
+{
+    printf("%s\n%s\n", usage, KEEL_CAUTION);
+    return fflush(stdout) == 0 && !ferror(stdout) ? 0 : EXIT_INTERNAL;
+}
+
 static const command *find_command(const char *name)
 {
     for (size_t i = 0; i < ncommands; i++)
         if (strcmp(commands[i].name, name) == 0)
             return &commands[i];
     return NULL;
+}
+
+/* Says on stderr that there is no command name, with a "did you mean" when
+ * name looks like a typo of one (help included); true when it suggested one. */
+static bool say_no_command(const char *who, const char *name)
+{
+    const char *names[sizeof commands / sizeof commands[0] + 1];
+    for (size_t i = 0; i < ncommands; i++)
+        names[i] = commands[i].name;
+    names[ncommands] = "help";
+    const char *suggestion = keel_error_suggest(name, names, ncommands + 1);
+    if (suggestion)
+        fprintf(stderr, "%s: no command '%s'; did you mean '%s'?\n", who, name, suggestion);
+    else
+        fprintf(stderr, "%s: no command '%s'\n", who, name);
+    return suggestion != NULL;
 }
 
 static int usage_error(const command *cmd, const char *fmt, const char *arg)
@@ -322,14 +356,40 @@ static void state_fini(state *s)
     keel_error_fini(&s->err);
 }
 
+/* Loads the roster and derives its workload and staffing; a roster without
+ * patients is loaded only (has_patients() says so). */
 static keel_status load(state *s, const options *opt)
 {
     keel_status rc = keel_roster_load(opt->roster, &s->roster, &s->err);
+    if (!rc && s->roster->npatients == 0)
+        return KEEL_OK;
     if (!rc)
         rc = keel_workload_compute(s->roster, &s->workload, &s->err);
     if (!rc)
         rc = keel_staffing_compute(s->roster, s->workload, &s->staffing, &s->err);
     return rc;
+}
+
+static bool to_file(const options *opt)
+{
+    return opt->output && strcmp(opt->output, "-") != 0;
+}
+
+/* A roster without patients is a unit's roster before keel import fills it:
+ * valid, but with nothing to assign or score.  Says so on stderr and
+ * returns false; true when the roster has patients. */
+static bool has_patients(const char *command, const options *opt, const keel_roster *r)
+{
+    if (r->npatients > 0)
+        return true;
+    fprintf(stderr,
+            "keel %s: %s: the roster is valid but has no patients, so there is nothing to %s; "
+            "keel import CENSUS.csv --roster %s adds a census's patients\n",
+            command, opt->roster, strcmp(command, "assign") == 0 ? "assign" : "score",
+            opt->roster);
+    if (to_file(opt))
+        fprintf(stderr, "keel %s: nothing written to %s\n", command, opt->output);
+    return false;
 }
 
 static int write_report(const options *opt, const keel_report *rep)
@@ -373,7 +433,13 @@ static int run_assign(const options *opt)
     keel_solve_options so = {.method = opt->method,
                              .time_limit_ms = opt->time_limit_ms,
                              .best_effort = opt->best_effort};
+    if (cli_output_clobbers(opt->output, opt->roster))
+        return EXIT_USAGE;
     keel_status rc = load(&s, opt);
+    if (!rc && !has_patients("assign", opt, s.roster)) {
+        state_fini(&s);
+        return EXIT_INPUT;
+    }
     if (!rc)
         rc = keel_solve(s.roster, s.workload, &so, &s.solution, &s.err);
     if (!rc)
@@ -401,20 +467,32 @@ static int run_assign(const options *opt)
                        .course = s.course,
                        .violations = s.solution->best_effort ? &s.violations : NULL};
     bool infeasible = s.solution->status == KEEL_SOLVE_INFEASIBLE;
+    bool best_effort = infeasible && s.solution->best_effort;
     if (infeasible) {
         fprintf(stderr, "keel assign: %s: no valid assignment exists\n", opt->roster);
         for (size_t i = 0; i < s.solution->diagnoses.n; i++)
             fprintf(stderr, "  [%s] %s\n", s.solution->diagnoses.items[i].rule,
                     s.solution->diagnoses.items[i].message);
-        if (s.solution->best_effort)
-            fprintf(stderr,
-                    "keel assign: the report holds a BEST-EFFORT plan that breaks %zu "
-                    "rule%s; tell the house supervisor before using any of it\n",
-                    s.violations.n, s.violations.n == 1 ? "" : "s");
-        else
+        if (!best_effort)
             rep.nurse_of = NULL;
     }
-    int code = write_report(opt, &rep);
+    /* A file from -o is what gets posted: with no valid assignment it is
+     * only ever a labelled best-effort plan, else nothing (the old file
+     * stays as it was). */
+    int code = 0;
+    if (infeasible && !best_effort && to_file(opt))
+        fprintf(stderr, "keel assign: no plan written to %s: no valid assignment exists\n",
+                opt->output);
+    else
+        code = write_report(opt, &rep);
+    if (best_effort && !code)
+        fprintf(stderr,
+                "keel assign: %s holds a BEST-EFFORT plan, not an assignment: it breaks %zu "
+                "rule%s; tell the house supervisor before using any of it\n",
+                to_file(opt) ? opt->output : "the report", s.violations.n,
+                s.violations.n == 1 ? "" : "s");
+    if (infeasible)
+        fprintf(stderr, "%s\n", KEEL_CAUTION);
     state_fini(&s);
     if (code)
         return code;
@@ -428,6 +506,10 @@ static int run_check(const options *opt)
     keel_solve_options so = {.time_limit_ms = opt->time_limit_ms};
     keel_status rc = load(&s, opt);
     bool complete = false, partial = false;
+    if (!rc && !has_patients("check", opt, s.roster)) {
+        state_fini(&s);
+        return 0;
+    }
     if (!rc) {
         s.plan = calloc(keel_workload_nparts(s.workload) ? keel_workload_nparts(s.workload) : 1, sizeof *s.plan);
         if (!s.plan)
@@ -518,9 +600,12 @@ static int run_import(const options *opt)
     keel_error_init(&err);
     keel_census *census = NULL;
     keel_roster *base = NULL;
-    keel_status rc = keel_census_load(opt->roster, opt->map, &census, &err);
-    if (!rc && opt->base)
-        rc = keel_roster_load(opt->base, &base, &err);
+    /* The base roster first, so that each census row is checked against its
+     * scales with the row's other problems: all of both files in one run. */
+    keel_status rc_base = opt->base ? keel_roster_load(opt->base, &base, &err) : KEEL_OK;
+    keel_status rc = keel_census_load_for(opt->roster, opt->map, base, &census, &err);
+    if (!rc)
+        rc = rc_base;
     if (!rc && base)
         rc = keel_census_into_roster(census, base, &err);
     int code = 0;
@@ -556,21 +641,26 @@ int main(int argc, char **argv)
         return fflush(stdout) == 0 && !ferror(stdout) ? 0 : EXIT_INTERNAL;
     }
     if (strcmp(name, "help") == 0) {
-        const command *cmd = argc > 2 ? find_command(argv[2]) : NULL;
-        if (argc > 2 && !cmd) {
-            fprintf(stderr, "keel help: no command '%s'\n", argv[2]);
+        const char *topic = argc > 2 ? argv[2] : NULL;
+        if (topic && (strcmp(topic, "help") == 0 || strcmp(topic, "--help") == 0 ||
+                      strcmp(topic, "-h") == 0))
+            return print_help(help_usage);
+        const command *cmd = topic ? find_command(topic) : NULL;
+        if (topic && !cmd) {
+            say_no_command("keel help", topic);
             return EXIT_USAGE;
         }
         if (cmd)
-            fputs(cmd->usage, stdout);
-        else
-            print_usage(stdout);
+            return print_help(cmd->usage);
+        print_usage(stdout);
         return fflush(stdout) == 0 && !ferror(stdout) ? 0 : EXIT_INTERNAL;
     }
     const command *cmd = find_command(name);
     if (!cmd) {
-        fprintf(stderr, "keel: no command '%s'\n", name);
-        print_usage(stderr);
+        if (say_no_command("keel", name))
+            fputs("Try 'keel --help'.\n", stderr);
+        else
+            print_usage(stderr);
         return EXIT_USAGE;
     }
     options opt;
@@ -578,12 +668,14 @@ int main(int argc, char **argv)
     int code = parse_args(cmd, argc - 2, argv + 2, &opt, &help);
     if (code)
         return code;
-    if (help) {
-        fputs(cmd->usage, stdout);
-        return fflush(stdout) == 0 && !ferror(stdout) ? 0 : EXIT_INTERNAL;
-    }
+    if (help)
+        return print_help(cmd->usage);
     if (!known_format(opt.format) || (cmd->run == run_check && strcmp(opt.format, "yaml") == 0))
         return usage_error(cmd, "unknown format '%s'", opt.format);
+    if (opt.explain && strcmp(opt.format, "yaml") == 0)
+        return usage_error(cmd, "%s",
+                           "--explain does not go with --format yaml: the yaml plan is a roster, "
+                           "with no place for reasons; use --format text or json");
     if (opt.method && !known_method(opt.method))
         return usage_error(cmd, "unknown method '%s'; expected ilp or greedy", opt.method);
     return cmd->run(&opt);

@@ -3,6 +3,7 @@
  * output.c - the CLI's output file: written to a temporary name beside the
  * target and renamed into place, so a reader never sees half a report and a
  * failed run leaves the old file as it was.  Never writes over the input.
+ * The file gets the mode the umask gives a new file, as if opened directly.
  */
 #include "output.h"
 
@@ -57,6 +58,17 @@ int cli_output_open(cli_output *o, const char *path, const char *input)
     if (fd < 0) {
         fprintf(stderr, "keel: %s: cannot create a temporary file beside it: %s\n", path,
                 strerror(errno));
+        goto fail;
+    }
+    /* mkstemp() makes the file readable by its owner only; a posted plan is
+     * for the unit's other accounts too, so it gets the mode any new file
+     * gets: 0666 less the umask. */
+    mode_t mask = umask(0);
+    umask(mask);
+    if (fchmod(fd, 0666 & ~mask) != 0) {
+        fprintf(stderr, "keel: %s: %s\n", o->tmp_path, strerror(errno));
+        close(fd);
+        unlink(o->tmp_path);
         goto fail;
     }
     o->stream = fdopen(fd, "w");

@@ -176,17 +176,18 @@ static char *describe(const keel_roster *r, const keel_workload *w, const floor_
     char *nurses = group_nurses(r, w, f->who), *needs = shared_needs(r, w, f->who, inside);
     char *text = NULL;
     if (nurses && needs && needs_explain(r, w, f->who, inside))
-        text = keel_asprintf("the %zu patients who need %s (%lld min with the nurses' duty) can "
-                             "only go to %s (%lld min): %.1f %%",
-                             f->size, needs, f->work, nurses, f->time, pct);
+        text = keel_asprintf("the %zu patient%s who need%s %s (%lld min with the nurses' duty) "
+                             "can only go to %s (%lld min): %.1f %%",
+                             f->size, f->size == 1 ? "" : "s", f->size == 1 ? "s" : "", needs,
+                             f->work, nurses, f->time, pct);
     else if (nurses && all_locked(r, w, inside))
-        text = keel_asprintf("the %zu patients locked to %s (%lld min with the nurses' duty, of "
+        text = keel_asprintf("the %zu patient%s locked to %s (%lld min with the nurses' duty, of "
                              "%lld min): %.1f %%",
-                             f->size, nurses, f->work, f->time, pct);
+                             f->size, f->size == 1 ? "" : "s", nurses, f->work, f->time, pct);
     else if (nurses)
-        text = keel_asprintf("%zu patients can only go to %s (competencies, locks, avoid lists): "
-                             "%lld min of work over %lld min, %.1f %%",
-                             f->size, nurses, f->work, f->time, pct);
+        text = keel_asprintf("%zu patient%s can only go to %s (competencies, locks, avoid "
+                             "lists): %lld min of work over %lld min, %.1f %%",
+                             f->size, f->size == 1 ? "" : "s", nurses, f->work, f->time, pct);
     free(nurses);
     free(needs);
     return text;

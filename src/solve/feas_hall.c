@@ -275,10 +275,11 @@ static char *describe_shortage(const keel_roster *r, const keel_workload *w, con
     }
     if (who && nurses && nnur == ncounted) {
         msg = keel_asprintf(
-            "%zu patients, but the %zu nurses on shift who may take patients "
+            "%zu patient%s, but the %zu nurse%s on shift who may take patients "
             "may take %ld in all under %s: %zu more place%s needed (another "
             "nurse%s)",
-            r->npatients, nnur, places, limits, s->left_out, s->left_out == 1 ? " is" : "s are",
+            r->npatients, r->npatients == 1 ? "" : "s", nnur, nnur == 1 ? "" : "s", places,
+            limits, s->left_out, s->left_out == 1 ? " is" : "s are",
             strcmp(s->rule, "law_limit") == 0 ? "" : ", or a higher limit where policy allows");
     } else if (who && nurses) {
         size_t ncommon = common_needs(r, s->patients, skills);
@@ -420,9 +421,10 @@ keel_status keel_feas_hall(const keel_roster *r, const keel_workload *w, int *nu
             by_law = w->max_patients[nidx[j]] == w->law_limit;
         if (by_law)
             s->rule = "law_limit";
-        char *msg = all_locked ? keel_asprintf("%zu patients are locked to %s, whose patient "
+        char *msg = all_locked ? keel_asprintf("%zu patient%s locked to %s, whose patient "
                                                "limit is %d",
-                                               kp, r->nurses[nidx[0]].id, w->max_patients[nidx[0]])
+                                               kp, kp == 1 ? " is" : "s are",
+                                               r->nurses[nidx[0]].id, w->max_patients[nidx[0]])
                     : kn > 0   ? describe_shortage(r, w, s, names, skills, ncounted)
                     : strcmp(s->rule, "skill") == 0
                         ? describe_unreachable(r, w, s, names, kp, skills)

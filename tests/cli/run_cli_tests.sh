@@ -269,5 +269,125 @@ has "$work/err" "no nurse who may take P1 is on from 03:00 to 07:00" "a stretch 
 expect 3 "high acuity that no nurse may take, with the clock" -- "$keel" assign "$data/clock-high-acuity-none.yaml"
 has "$work/err" "[high_acuity] 2 high-acuity patients (acuity 4 or more)" "the diagnosis counts patients, not the clock's parts"
 
+# Every help page ends with the caution (keel help COMMAND, keel COMMAND
+# --help, keel help help).
+for c in assign check new import help; do
+    expect 0 "keel help $c" -- "$keel" help "$c"
+    last_line_is_caution "$work/out" "keel help $c ends with the caution"
+done
+for c in assign check new import; do
+    expect 0 "keel $c --help" -- "$keel" "$c" --help
+    last_line_is_caution "$work/out" "keel $c --help ends with the caution"
+done
+expect 0 "help on help" -- "$keel" help help
+has "$work/out" "usage: keel help [COMMAND]" "keel help help shows help's own usage"
+has "$work/out" "'keel COMMAND --help' shows the same" "and says where else help is"
+
+# A mistyped command gets a "did you mean"; a made-up one does not.
+expect 1 "a mistyped command" -- "$keel" asign roster.yaml
+has "$work/err" "keel: no command 'asign'; did you mean 'assign'?" "a mistyped command gets a did you mean"
+expect 1 "a mistyped command for help" -- "$keel" help chek
+has "$work/err" "keel help: no command 'chek'; did you mean 'check'?" "keel help: a mistyped command gets a did you mean"
+expect 1 "a mistyped help" -- "$keel" hlep
+has "$work/err" "did you mean 'help'?" "help itself is suggested"
+expect 1 "a made-up command" -- "$keel" rota
+if grep -q "did you mean" "$work/err"; then not_ok "no suggestion for a word far from every command"; else ok "no suggestion for a word far from every command"; fi
+
+# Exit 3: the reasons on stderr end with the caution, and -o writes no plan:
+# an old file is left as it was.
+expect 3 "no valid assignment, reasons on stderr" -- "$keel" assign "$data/infeasible-chemo.yaml"
+last_line_is_caution "$work/err" "the reasons on exit 3 end with the caution"
+printf 'the plan posted earlier\n' > "$work/posted.txt"
+cp "$work/posted.txt" "$work/posted.before"
+for f in text yaml json; do
+    expect 3 "no valid assignment with -o, as $f" -- "$keel" assign "$data/infeasible-chemo.yaml" --format "$f" -o "$work/posted.txt"
+    if cmp -s "$work/posted.txt" "$work/posted.before"; then ok "$f: the old file is untouched"; else not_ok "$f: the old file is untouched"; fi
+    has "$work/err" "keel assign: no plan written to $work/posted.txt: no valid assignment exists" "$f: stderr says no plan was written"
+    last_line_is_caution "$work/err" "$f: stderr ends with the caution"
+done
+expect 3 "no valid assignment with -o a new file" -- "$keel" assign "$data/infeasible-chemo.yaml" -o "$work/never.txt"
+if [ -e "$work/never.txt" ]; then not_ok "no file is created"; else ok "no file is created"; fi
+if ls "$work"/never.txt.tmp-* "$work"/posted.txt.tmp-* >/dev/null 2>&1; then not_ok "no temporary file is left on exit 3"; else ok "no temporary file is left on exit 3"; fi
+# With --best-effort the file holds the plan, labelled on its first line.
+expect 3 "best effort to a yaml file" -- "$keel" assign "$data/infeasible-chemo.yaml" --best-effort --format yaml -o "$work/be.yaml"
+if head -n 1 "$work/be.yaml" | grep -q "^# BEST-EFFORT PLAN: no valid assignment exists"; then ok "the yaml label is the first line"; else not_ok "the yaml label is the first line"; fi
+has "$work/err" "keel assign: $work/be.yaml holds a BEST-EFFORT plan, not an assignment: it breaks 2 rules" "stderr says the file is a best-effort plan, not an assignment"
+last_line_is_caution "$work/err" "best effort: stderr ends with the caution"
+expect 3 "best effort to a text file" -- "$keel" assign "$data/infeasible-chemo.yaml" --best-effort -o "$work/be.txt"
+if head -n 1 "$work/be.txt" | grep -q "^BEST-EFFORT PLAN, not an assignment"; then ok "the text label is the first line"; else not_ok "the text label is the first line"; fi
+last_line_is_caution "$work/be.txt" "the best-effort text file ends with the caution"
+expect 3 "best effort to a json file" -- "$keel" assign "$data/infeasible-chemo.yaml" --best-effort --format json -o "$work/be.json"
+has "$work/be.json" '"best_effort": true' "the json file says best_effort"
+has "$work/be.json" '"status": "infeasible"' "the json file keeps the status"
+
+# A unit's roster without patients: import fills it; check and assign say
+# there is nothing to do, and write nothing.
+expect 0 "check a roster without patients" -- "$keel" check "$data/unit-no-patients.yaml"
+has "$work/err" "the roster is valid but has no patients, so there is nothing to score" "check says the roster is valid and has no patients"
+if [ -s "$work/out" ]; then not_ok "check writes no report without patients"; else ok "check writes no report without patients"; fi
+expect 2 "assign a roster without patients" -- "$keel" assign "$data/unit-no-patients.yaml" -o "$work/none.txt"
+has "$work/err" "has no patients, so there is nothing to assign; keel import CENSUS.csv --roster" "assign says there is nothing to assign, and how to fill it"
+if [ -e "$work/none.txt" ]; then not_ok "assign writes nothing without patients"; else ok "assign writes nothing without patients"; fi
+grep -v '^patients:' "$data/unit-no-patients.yaml" > "$work/no-key.yaml"
+expect 0 "check a roster with no patients key" -- "$keel" check "$work/no-key.yaml"
+has "$work/err" "has no patients" "no patients key is no patients"
+expect 0 "import into a roster without patients" -- "$keel" import "$data/census-plain.csv" --roster "$work/no-key.yaml" -o "$work/filled.yaml"
+expect 0 "the filled roster assigns" -- "$keel" assign "$work/filled.yaml" --format json
+has "$work/out" '"id": "P-30105"' "the census's patients are in it"
+
+# --explain with yaml is a usage error that names the combination.
+expect 1 "explain with yaml" -- "$keel" assign "$data/../data/every-rule.yaml" --explain --format yaml
+has "$work/err" "--explain does not go with --format yaml" "the refusal names the combination"
+
+# -o follows the umask: a posted plan is readable by the unit's other accounts.
+for mask in 022 027; do
+    rm -f "$work/mode.yaml" "$work/mode-new.yaml"
+    (umask "$mask" && "$keel" assign "$examples/icu-night.yaml" --format yaml -o "$work/mode.yaml" >/dev/null 2>&1 &&
+        "$keel" new --type icu -o "$work/mode-new.yaml" >/dev/null 2>&1)
+    want=$(printf '%o' $((0666 & ~0$mask)))
+    got=$(stat -c %a "$work/mode.yaml" 2>/dev/null)
+    if [ "$got" = "$want" ]; then ok "umask $mask: assign -o writes mode $want"; else echo "# mode $got"; not_ok "umask $mask: assign -o writes mode $want"; fi
+    got=$(stat -c %a "$work/mode-new.yaml" 2>/dev/null)
+    if [ "$got" = "$want" ]; then ok "umask $mask: new -o writes mode $want"; else echo "# mode $got"; not_ok "umask $mask: new -o writes mode $want"; fi
+done
+
+# One of a thing is singular: "limit 1 patient", never "1 patients".
+: > "$work/singular"
+for args in "assign $data/one-of-each.yaml" "check $data/one-of-each.yaml" \
+    "assign $data/one-nurse-short.yaml" "assign $data/one-nurse-two-high.yaml" \
+    "check $data/plan-one-over.yaml" "assign $data/plan-one-over.yaml --best-effort"; do
+    # shellcheck disable=SC2086 # the command and its arguments
+    "$keel" $args >>"$work/singular" 2>&1
+done
+cp "$work/singular" "$work/out"
+has "$work/out" "1 patient, 1 nurse" "the heading counts 1 patient, 1 nurse"
+has "$work/out" "limit 1 patient" "the workload says limit 1 patient"
+has "$work/out" "Continuity: 1 of 1 patient keeps their nurse" "continuity counts 1 patient"
+has "$work/out" "Balance over the 1 nurse who takes patients" "the balance counts 1 nurse"
+has "$work/out" "2 patients, but the 1 nurse on shift who may take patients may take 1 in all" "the limits' diagnosis counts 1 nurse"
+has "$work/out" "the 1 nurse who may take them can hold 1" "the high-acuity diagnosis counts 1 nurse"
+has "$work/out" "[patient_limit] A has 1 patient; the patient limit is 0" "the plan check counts 1 patient"
+has "$work/out" "A has 1 high-acuity patient (acuity 4 or more)" "the high-acuity check counts 1 patient"
+has "$work/out" "1 high-acuity patient (acuity 4 or more), but policy.high_acuity.max_per_nurse is 0, so no nurse may take one" "the high-acuity diagnosis counts 1 patient"
+if grep -nE '(^|[^0-9.])1 ([a-z-]+ )?(patients|nurses)\b' "$work/singular" > "$work/err"; then not_ok "no '1 patients' or '1 nurses' anywhere"; else ok "no '1 patients' or '1 nurses' anywhere"; fi
+
+# A census saved with ';' gets a hint; every problem of a census, levels
+# missing from the unit's scale included, comes in one run in file order.
+expect 2 "a census separated by ';'" -- "$keel" import "$data/census-semicolon.csv"
+has "$work/err" "census-semicolon.csv:1:1: the header is one column holding ';': the file seems to use ';' as separator; keel reads commas" "the hint names the separator"
+if [ "$(wc -l < "$work/err")" -eq 1 ]; then ok "the hint comes alone"; else not_ok "the hint comes alone"; fi
+expect 2 "a census with row problems and levels the unit lacks" -- "$keel" import "$data/census-mixed.csv" --roster "$examples/medsurg-day.yaml"
+cat > "$work/mixed.expected" <<EOF
+$data/census-mixed.csv:2:15: acuity: patient P-30101 has acuity 9, which $examples/medsurg-day.yaml's policy.acuity_minutes does not give; expected a level of the unit's scale
+$data/census-mixed.csv:3:18: isolation: unknown precaution 'airbone'; expected contact, droplet, airborne, protective or an empty field
+$data/census-mixed.csv:4:19: extras: patient P-30103 lists extra 'transfer', which $examples/medsurg-day.yaml's policy.extra_minutes does not give
+$data/census-mixed.csv:5:15: acuity: 'seven' is not a whole number from 0 to 99
+EOF
+if cmp -s "$work/mixed.expected" "$work/err"; then ok "every census problem in one run, in file order, with line and column"; else
+    diff "$work/mixed.expected" "$work/err" | sed 's/^/# /'; not_ok "every census problem in one run, in file order, with line and column"; fi
+expect 2 "a bad base roster and a bad census" -- "$keel" import "$data/census-mixed.csv" --roster "$bad/many-problems.yaml"
+has "$work/err" "many-problems.yaml:" "the base roster's problems are named"
+has "$work/err" "census-mixed.csv:3:18: isolation: unknown precaution 'airbone'" "and the census's, in the same run"
+
 echo "1..$n"
 [ "$failed" -eq 0 ]
