@@ -238,6 +238,20 @@ static char *describe_unreachable(const keel_roster *r, const keel_workload *w, 
                                 "patients has %s",
                                 npat, npat == 1 ? "" : "s", who, npat == 1 ? "s" : "", what,
                                 nmiss == 1 ? "it" : "them");
+    } else if (p0->nneeds == 0) {
+        /* No competency stands in the way: nobody takes patients at all, or
+         * locks and avoid lists leave nobody. */
+        size_t counted = 0;
+        for (size_t n = 0; n < w->nnurses; n++)
+            counted += keel_workload_counted(w, n);
+        if (who)
+            msg = counted == 0
+                      ? keel_asprintf("%zu patient%s (%s) but no nurse on shift takes patients "
+                                      "(every nurse's patient limit is 0)",
+                                      npat, npat == 1 ? "" : "s", who)
+                      : keel_asprintf("%zu patient%s (%s): locks and avoid lists leave no nurse "
+                                      "on shift who may take %s",
+                                      npat, npat == 1 ? "" : "s", who, npat == 1 ? "it" : "them");
     } else {
         what = join_names(p0->needs, p0->nneeds);
         if (who && what)
@@ -430,7 +444,9 @@ keel_status keel_feas_hall(const keel_roster *r, const keel_workload *w, int *nu
                         ? describe_unreachable(r, w, s, names, kp, skills)
                         : describe_restricted(r, w, s, skills);
         bool everyone = kn == ncounted && kn > 0;
-        rc = keel_findings_add(out, s->rule, pidx, everyone ? 0 : kp, nidx, kn, msg);
+        /* Nobody takes patients: the patient limits, not a competency. */
+        const char *rule = ncounted == 0 ? "patient_limit" : s->rule;
+        rc = keel_findings_add(out, rule, pidx, everyone ? 0 : kp, nidx, kn, msg);
     }
 out:
     for (size_t i = 0; i < nshort; i++) {

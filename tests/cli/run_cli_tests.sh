@@ -388,6 +388,8 @@ if cmp -s "$work/mixed.expected" "$work/err"; then ok "every census problem in o
 expect 2 "a bad base roster and a bad census" -- "$keel" import "$data/census-mixed.csv" --roster "$bad/many-problems.yaml"
 has "$work/err" "many-problems.yaml:" "the base roster's problems are named"
 has "$work/err" "census-mixed.csv:3:18: isolation: unknown precaution 'airbone'" "and the census's, in the same run"
+expect 3 "no nurse takes patients" -- "$keel" assign "$data/nobody-takes-patients.yaml"
+has "$work/err" "[patient_limit] 1 patient (P1) but no nurse on shift takes patients" "the diagnosis names the limits, not a competency"
 
 echo "1..$n"
 [ "$failed" -eq 0 ]
