@@ -59,7 +59,8 @@ static void write_head(FILE *out, const keel_roster *r)
     bool roles = false;
     for (size_t i = 0; i < KEEL_NROLES; i++)
         roles = roles || r->policy.roles[i].max_patients != KEEL_ABSENT ||
-                r->policy.roles[i].duty_minutes != KEEL_ABSENT;
+                r->policy.roles[i].duty_minutes != KEEL_ABSENT ||
+                r->policy.roles[i].max_acuity != KEEL_ABSENT;
     bool needs = false;
     for (size_t i = 0; i < KEEL_NISOLATION; i++)
         needs = needs || r->policy.nisolation_needs[i] > 0;
@@ -91,11 +92,13 @@ static void write_head(FILE *out, const keel_roster *r)
         fputs("  roles:\n", out);
     for (size_t i = 0; roles && i < KEEL_NROLES; i++) {
         const keel_role_policy *rp = &r->policy.roles[i];
-        if (rp->max_patients == KEEL_ABSENT && rp->duty_minutes == KEEL_ABSENT)
+        if (rp->max_patients == KEEL_ABSENT && rp->duty_minutes == KEEL_ABSENT &&
+            rp->max_acuity == KEEL_ABSENT)
             continue;
         fprintf(out, "    %s:\n", keel_role_name((keel_role)i));
         write_key_int(out, "      ", "max_patients", rp->max_patients);
         write_key_int(out, "      ", "duty_minutes", rp->duty_minutes);
+        write_key_int(out, "      ", "max_acuity", rp->max_acuity);
     }
     if (r->policy.ratio_table) {
         char cite[KEEL_LAW_CITE_SIZE];

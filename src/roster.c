@@ -30,7 +30,7 @@ static keel_roster *new_roster(const char *name)
     r->shift.break_minutes = KEEL_ABSENT;
     r->policy.max_patients = KEEL_ABSENT;
     for (size_t i = 0; i < KEEL_NROLES; i++)
-        r->policy.roles[i] = (keel_role_policy){KEEL_ABSENT, KEEL_ABSENT};
+        r->policy.roles[i] = (keel_role_policy){KEEL_ABSENT, KEEL_ABSENT, KEEL_ABSENT};
     r->policy.high_acuity.level = KEEL_ABSENT;
     r->policy.high_acuity.max_per_nurse = KEEL_ABSENT;
     r->policy.isolation_separation = true;

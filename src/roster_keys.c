@@ -716,6 +716,11 @@ static const key_rule role_policy_keys[] = {
      .offset = offsetof(keel_role_policy, duty_minutes),
      .min = 0,
      .max = MINUTES_PER_DAY},
+    {.name = "max_acuity",
+     .parse = parse_int,
+     .offset = offsetof(keel_role_policy, max_acuity),
+     .min = 0,
+     .max = MAX_LEVEL},
 };
 
 /* policy.roles: role name -> that role's limits. */

@@ -26,6 +26,7 @@ const keel_rule *const keel_rules[KEEL_NRULES] = {
     [KEEL_RULE_ZONES] = &keel_rule_zones,
     [KEEL_RULE_LOCK] = &keel_rule_lock,
     [KEEL_RULE_AVOID] = &keel_rule_avoid,
+    [KEEL_RULE_ROLE_ACUITY] = &keel_rule_role_acuity,
     [KEEL_RULE_CAPACITY] = &keel_rule_capacity,
     [KEEL_RULE_MIN_PATIENTS] = &keel_rule_min_patients,
     [KEEL_RULE_HAND_OFF] = &keel_rule_hand_off,

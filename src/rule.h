@@ -52,6 +52,7 @@ typedef enum keel_rule_id {
     KEEL_RULE_ZONES,
     KEEL_RULE_LOCK,
     KEEL_RULE_AVOID,
+    KEEL_RULE_ROLE_ACUITY,
     KEEL_RULE_CAPACITY,
     KEEL_RULE_MIN_PATIENTS,
     KEEL_RULE_HAND_OFF,
@@ -163,7 +164,8 @@ typedef struct keel_rule {
 /* The entries, each defined in the file its comment names.  An entry
  * reports under its own name (or, for the limits, under one of the names
  * of rule_name.c); only rule.c reads them through the table. */
-extern const keel_rule keel_rule_skill, keel_rule_lock, keel_rule_avoid; /* rule_pair.c */
+extern const keel_rule keel_rule_skill, keel_rule_lock, keel_rule_avoid,
+    keel_rule_role_acuity; /* rule_pair.c */
 extern const keel_rule keel_rule_patient_limit;                          /* rule_limit.c */
 extern const keel_rule keel_rule_patient_ratio;                          /* rule_ratio.c */
 extern const keel_rule keel_rule_high_acuity;                            /* rule_high.c */
@@ -198,6 +200,12 @@ bool keelRuleAdmitsInstead(keel_tally *t, size_t p, size_t q, size_t n);
  * whole plan (min_patients); the others are kept when every part was
  * admitted in turn. */
 bool keelRuleWhole(const keel_tally *t);
+
+/* rule_pair.c: true when patient p's acuity is above what nurse n's role
+ * takes (policy.roles.<role>.max_acuity; rule role_acuity).  Eligibility
+ * (workload.c) and the diagnosis (feas_hall.c) ask it. */
+bool keel_rule_pair_over_role_acuity(const keel_roster *r, const keel_patient *p,
+                                     const keel_nurse *n);
 
 /* rule_min.c: true when n may give one patient away and keep her fewest
  * patients. */

@@ -2,8 +2,9 @@
 /*
  * rule_pair.c - the rules on one patient-nurse pair: skill (every
  * competency the patient needs, its own and its precaution's), lock (a
- * locked patient stays with its nurse) and avoid (never a nurse on the
- * patient's avoid list).  workload.c removes such pairs up front (its
+ * locked patient stays with its nurse), avoid (never a nurse on the
+ * patient's avoid list) and role_acuity (never a patient above the acuity
+ * the nurse's role takes, policy.roles.<role>.max_acuity).  workload.c removes such pairs up front (its
  * eligibility), so the searches and the integer programmes never see them;
  * these entries say what a plan written by people breaks, and how much the
  * best-effort plan pays for a pair it has to use.
@@ -15,7 +16,7 @@
 #include "rule.h"
 #include "workload_internal.h"
 
-#define PAIR_SEVERITY 100 /* a patient given against a competency, lock or avoid list */
+#define PAIR_SEVERITY 100 /* a patient given against a competency, lock, avoid list or role */
 
 /* The i-th competency patient pat needs: its own needs, then its
  * precaution's (policy.isolation_needs). */
@@ -145,6 +146,45 @@ static keel_status check_avoid(const keel_rule_plan *c, size_t n, size_t m, cons
     }
     return rc;
 }
+
+bool keel_rule_pair_over_role_acuity(const keel_roster *r, const keel_patient *p,
+                                     const keel_nurse *n)
+{
+    int cap = r->policy.roles[n->role].max_acuity;
+    return cap != KEEL_ABSENT && p->acuity != KEEL_ABSENT && p->acuity > cap;
+}
+
+/* True when part p's patient is above the acuity nurse n's role takes. */
+static bool breaks_role_acuity(const keel_roster *r, const keel_workload *w, size_t p, size_t n)
+{
+    return keel_rule_pair_over_role_acuity(r, &r->patients[w->patient[p]], &r->nurses[n]);
+}
+
+static keel_status check_role_acuity(const keel_rule_plan *c, size_t n, size_t m,
+                                     const size_t *mine, size_t k, keel_findings *out)
+{
+    (void)m;
+    (void)k;
+    const keel_roster *r = c->r;
+    if (!breaks_role_acuity(r, c->w, mine[0], n))
+        return KEEL_OK;
+    size_t p = (size_t)c->w->patient[mine[0]];
+    const keel_nurse *nu = &r->nurses[n];
+    const char *role = keel_role_name(nu->role);
+    char *msg = keel_asprintf("%s is acuity %d; %s is a %s nurse, and %s nurses take patients up "
+                              "to acuity %d (policy.roles.%s.max_acuity)",
+                              r->patients[p].id, r->patients[p].acuity, nu->id, role, role,
+                              r->policy.roles[nu->role].max_acuity, role);
+    return keel_findings_add(out, "role_acuity", &p, 1, &n, 1, msg);
+}
+
+const keel_rule keel_rule_role_acuity = {
+    .name = "role_acuity",
+    .scope = KEEL_SCOPE_PAIR,
+    .severity = PAIR_SEVERITY,
+    .check = check_role_acuity,
+    .pair_breaks = breaks_role_acuity,
+};
 
 const keel_rule keel_rule_avoid = {
     .name = "avoid",

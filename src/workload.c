@@ -144,12 +144,13 @@ static bool patient_allows(const keel_patient *p, const keel_nurse *n, bool firs
     return true;
 }
 
-/* Limit, competencies and the patient's own restrictions (a lock binds
- * the first part only). */
+/* Limit, competencies, the role's acuity cap and the patient's own
+ * restrictions (a lock binds the first part only). */
 static bool allowed(const keel_roster *r, const keel_workload *w, size_t p, size_t n, bool first)
 {
     const keel_patient *pt = &r->patients[p];
     return w->max_patients[n] > 0 && has_every_need(r, &r->nurses[n], pt) &&
+           !keel_rule_pair_over_role_acuity(r, pt, &r->nurses[n]) &&
            patient_allows(pt, &r->nurses[n], first);
 }
 

@@ -126,6 +126,7 @@ static void test_yaml_report_reads_back_as_the_same_roster_with_nurses(void **st
         for (size_t i = 0; i < KEEL_NROLES; i++) {
             assert_int_equal(a->policy.roles[i].max_patients, back->policy.roles[i].max_patients);
             assert_int_equal(a->policy.roles[i].duty_minutes, back->policy.roles[i].duty_minutes);
+            assert_int_equal(a->policy.roles[i].max_acuity, back->policy.roles[i].max_acuity);
         }
         assert_ptr_equal(a->policy.ratio_table, back->policy.ratio_table);
         assert_int_equal(a->policy.high_acuity.level, back->policy.high_acuity.level);

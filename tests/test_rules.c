@@ -960,7 +960,7 @@ static void test_every_rule_has_every_part(void **state)
     const char *names[] = {"skill",      "patient_limit", "patient_ratio", "law_limit",
                            "high_acuity", "isolation",    "zones",         "lock",
                            "avoid",       "capacity",     "min_patients",  "moment_limit",
-                           "break_cover", "hand_off"};
+                           "break_cover", "hand_off",     "role_acuity"};
     assert_int_equal(sizeof names / sizeof *names, KEEL_NRULES);
     for (size_t i = 0; i < KEEL_NRULES; i++)
         assert_non_null(keelRuleFind(names[i]));

@@ -56,7 +56,7 @@ static inline tu_case *tu_case_new(size_t nn, size_t np)
     c->roster.shift.break_minutes = 60;
     c->roster.policy.max_patients = KEEL_ABSENT;
     for (size_t i = 0; i < KEEL_NROLES; i++)
-        c->roster.policy.roles[i] = (keel_role_policy){KEEL_ABSENT, KEEL_ABSENT};
+        c->roster.policy.roles[i] = (keel_role_policy){KEEL_ABSENT, KEEL_ABSENT, KEEL_ABSENT};
     c->roster.nnurses = nn;
     c->roster.nurses = calloc(nn ? nn : 1, sizeof *c->roster.nurses);
     c->roster.npatients = np;

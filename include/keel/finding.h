@@ -7,7 +7,7 @@
  *
  * Rule names (one list for the whole product): skill, patient_limit,
  * patient_ratio, law_limit, high_acuity, isolation, zones, lock, avoid,
- * capacity, moment_limit.
+ * capacity, min_patients, moment_limit, hand_off, break_cover, role_acuity.
  */
 #ifndef KEEL_FINDING_H
 #define KEEL_FINDING_H

@@ -162,6 +162,7 @@ typedef struct keel_acuity_level {
 typedef struct keel_role_policy {
     int max_patients; /* KEEL_ABSENT when not given */
     int duty_minutes; /* KEEL_ABSENT when not given */
+    int max_acuity;   /* the highest acuity level the role's nurses take; KEEL_ABSENT: any */
 } keel_role_policy;
 
 typedef struct keel_extra {

@@ -27,7 +27,8 @@
  *
  * A pair (p, n) is eligible when n has every competency p needs (its
  * needs, and policy.isolation_needs of its precaution), limit(n) > 0, n is
- * not on p's avoid list, and, when p is locked, n is the nurse p has.
+ * not on p's avoid list, p's acuity is not above the max_acuity of n's role
+ * (policy.roles), and, when p is locked, n is the nurse p has.
  *
  * The clock (docs/model.md, "The clock").  A patient is present over
  * [arrives_at, leaves_at), a nurse on over [start, end), in minutes after

@@ -19,6 +19,7 @@
 #include "alloc.h"
 #include "finding_list.h"
 #include "feas.h"
+#include "rule.h"
 #include "workload_internal.h"
 
 typedef struct matcher {
@@ -145,25 +146,32 @@ static size_t collect(const bool *marks, size_t n, size_t *idx)
     return k;
 }
 
-/* Why patient p has no eligible nurse at all: its lock, its avoid list, or
- * competencies; the rule name, and a key that groups patients with the same
- * reason (each locked or avoiding patient is its own group). */
+/* Why patient p has no eligible nurse at all: its lock, competencies, its
+ * avoid list, or the acuity the roles take; the rule name, and a key that
+ * groups patients with the same reason (each locked, avoiding or capped
+ * patient is its own group). */
 static const char *unreachable_rule(const keel_roster *r, const keel_workload *w, size_t p,
                                     char **skills)
 {
     const keel_patient *pat = &r->patients[p];
     if (pat->lock)
         return "lock";
-    if (missing_needs(r, w, pat, skills) > 0 || pat->navoid == 0)
+    if (missing_needs(r, w, pat, skills) > 0)
         return "skill";
+    bool avoided = false, capped = false; /* someone could take it but for ... */
     for (size_t n = 0; n < r->nnurses; n++) {
         bool capable = w->max_patients[n] > 0;
         for (size_t i = 0; i < pat->nneeds && capable; i++)
             capable = keel_nurse_has_skill(&r->nurses[n], pat->needs[i]);
-        if (capable)
-            return "avoid"; /* someone could take the patient but for the avoid list */
+        if (!capable)
+            continue;
+        bool on_list = false;
+        for (size_t i = 0; i < pat->navoid && !on_list; i++)
+            on_list = strcmp(pat->avoid[i], r->nurses[n].id) == 0;
+        avoided = avoided || on_list;
+        capped = capped || (!on_list && keel_rule_pair_over_role_acuity(r, pat, &r->nurses[n]));
     }
-    return "skill";
+    return avoided ? "avoid" : capped ? "role_acuity" : "skill";
 }
 
 static char *unreachable_key(const keel_roster *r, const keel_workload *w, size_t p, char **skills,
@@ -199,6 +207,11 @@ static char *describe_restricted(const keel_roster *r, const keel_workload *w, c
         free(what);
         return msg;
     }
+    if (strcmp(s->rule, "role_acuity") == 0)
+        return keel_asprintf("%s is acuity %d; no nurse on shift may take it: each one's role "
+                             "takes patients only up to a lower acuity "
+                             "(policy.roles.<role>.max_acuity)",
+                             pat->id, pat->acuity);
     char *avoided = join_names(pat->avoid, pat->navoid);
     char *msg = NULL;
     if (avoided && pat->nneeds == 0)
