@@ -243,6 +243,12 @@ int keelRulePairSeverity(const keel_roster *r, const keel_workload *w, size_t p,
  * KEEL_SCOPE_CLOCK once per nurse over all her columns. */
 void keelRuleRows(const keel_rows *R, keel_rule_scope scope);
 
+/* rule_finding.c: appends a finding of rule on nurse n holding the parts
+ * mine[0..k) (reported as their roster patients); takes msg (freed on
+ * failure).  Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
+keel_status keel_rule_finding_add(const keel_rule_plan *c, const char *rule, const size_t *mine,
+                                  size_t k, size_t n, char *msg, keel_findings *out);
+
 /* rule_tie.c: a binary x that is 1 whenever some column of R with trait(w, part) == v
  * counts a patient: the row sum of those columns <= big x, and, when x has
  * a cost, each column alone <= min(most, big) x (the same integer points, a

@@ -35,18 +35,11 @@ static keel_status check(const keel_rule_plan *c, size_t n, size_t m, const size
         high += w->high_acuity[mine[i]];
     if (w->max_high_acuity == KEEL_ABSENT || (long)high <= w->max_high_acuity)
         return KEEL_OK;
-    size_t *who = keel_calloc(k, sizeof *who);
-    if (!who)
-        return KEEL_ERR_NOMEM;
-    for (size_t i = 0; i < k; i++)
-        who[i] = (size_t)w->patient[mine[i]];
     char *msg = keel_asprintf("%s has %zu high-acuity patient%s (acuity %d or more); the "
                               "policy allows %d per nurse",
                               r->nurses[n].id, high, high == 1 ? "" : "s",
                               r->policy.high_acuity.level, w->max_high_acuity);
-    keel_status rc = keel_findings_add(out, "high_acuity", who, k, &n, 1, msg);
-    free(who);
-    return rc;
+    return keel_rule_finding_add(c, "high_acuity", mine, k, n, msg, out);
 }
 
 static void rows(const keel_rows *R)

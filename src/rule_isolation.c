@@ -38,20 +38,13 @@ static keel_status check(const keel_rule_plan *c, size_t n, size_t m, const size
         sides[w->side[mine[i]]]++;
     if (!sides[KEEL_SIDE_PROTECTIVE] || !sides[KEEL_SIDE_INFECTIOUS])
         return KEEL_OK;
-    size_t *who = keel_calloc(k, sizeof *who);
-    if (!who)
-        return KEEL_ERR_NOMEM;
-    for (size_t i = 0; i < k; i++)
-        who[i] = (size_t)w->patient[mine[i]];
     char *msg = keel_asprintf("%s has %zu protective-isolation patient%s and %zu on contact, "
                               "droplet or airborne precautions; the unit's policy keeps "
                               "them apart",
                               c->r->nurses[n].id, sides[KEEL_SIDE_PROTECTIVE],
                               sides[KEEL_SIDE_PROTECTIVE] == 1 ? "" : "s",
                               sides[KEEL_SIDE_INFECTIOUS]);
-    keel_status rc = keel_findings_add(out, "isolation", who, k, &n, 1, msg);
-    free(who);
-    return rc;
+    return keel_rule_finding_add(c, "isolation", mine, k, n, msg, out);
 }
 
 static int side_of(const keel_workload *w, size_t p)

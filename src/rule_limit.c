@@ -55,16 +55,7 @@ static keel_status check(const keel_rule_plan *c, size_t n, size_t m, const size
                                     id, k, k == 1 ? "" : "s", w->law_limit, r->unit.type, table)
                     : keel_asprintf("%s has %zu patient%s; the patient limit is %d", id, k,
                                     k == 1 ? "" : "s", w->max_patients[n]);
-    size_t *who = keel_calloc(k, sizeof *who);
-    if (!who) {
-        free(msg);
-        return KEEL_ERR_NOMEM;
-    }
-    for (size_t i = 0; i < k; i++)
-        who[i] = (size_t)w->patient[mine[i]];
-    keel_status rc = keel_findings_add(out, name_for(w, n), who, k, &n, 1, msg);
-    free(who);
-    return rc;
+    return keel_rule_finding_add(c, name_for(w, n), mine, k, n, msg, out);
 }
 
 static void rows(const keel_rows *R)

@@ -41,21 +41,15 @@ static keel_status check(const keel_rule_plan *c, size_t n, size_t m, const size
     (void)m;
     const keel_workload *w = c->w;
     const keel_roster *r = c->r;
-    size_t *who = keel_calloc(k, sizeof *who);
-    if (!who)
-        return KEEL_ERR_NOMEM;
-    for (size_t i = 0; i < k; i++)
-        who[i] = (size_t)w->patient[mine[i]];
     keel_status rc = KEEL_OK;
     for (size_t i = 0; i < k && !rc; i++) {
-        const keel_patient *pat = &r->patients[who[i]];
+        const keel_patient *pat = &r->patients[w->patient[mine[i]]];
         if (pat->ratio == KEEL_ABSENT || (long)k <= pat->ratio)
             continue;
         char *msg = keel_asprintf("%s is a 1:%d patient, but %s has %zu patients", pat->id,
                                   pat->ratio, r->nurses[n].id, k);
-        rc = keel_findings_add(out, name_for(w), who, k, &n, 1, msg);
+        rc = keel_rule_finding_add(c, name_for(w), mine, k, n, msg, out);
     }
-    free(who);
     return rc;
 }
 

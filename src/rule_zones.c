@@ -45,16 +45,9 @@ static keel_status check(const keel_rule_plan *c, size_t n, size_t m, const size
     }
     if (zones <= w->max_zones)
         return KEEL_OK;
-    size_t *who = keel_calloc(k, sizeof *who);
-    if (!who)
-        return KEEL_ERR_NOMEM;
-    for (size_t i = 0; i < k; i++)
-        who[i] = (size_t)w->patient[mine[i]];
     char *msg = keel_asprintf("%s has patients in %ld zones; policy.max_zones is %d",
                               c->r->nurses[n].id, zones, w->max_zones);
-    keel_status rc = keel_findings_add(out, "zones", who, k, &n, 1, msg);
-    free(who);
-    return rc;
+    return keel_rule_finding_add(c, "zones", mine, k, n, msg, out);
 }
 
 static int zone_of(const keel_workload *w, size_t p)

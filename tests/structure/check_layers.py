@@ -41,7 +41,7 @@ LAYERS = [
     ("the roster", ["nas.c", "roster*", "census.c"]),
     ("the model front", ["lp.c"]),
     ("the counts", ["tally.c"]),
-    ("rule parts", ["rule_tie.c", "rule_name.c"]),
+    ("rule parts", ["rule_tie.c", "rule_name.c", "rule_finding.c"]),
     ("rule entries", ["rule_*"]),
     ("the rule table", ["rule.c"]),
     ("the workload", ["workload.c"]),
