@@ -72,19 +72,6 @@ static bool overlaps(int a, int b, int s, int e)
     return a < e && s < b;
 }
 
-/* True when nurse n is on throughout [a, b) and on no break of her own
- * that overlaps it. */
-static bool free_during(const keel_roster *r, const keel_workload *w, size_t n, int a, int b)
-{
-    if (w->nurse_start[n] > a || w->nurse_end[n] < b)
-        return false;
-    const keel_nurse *nu = &r->nurses[n];
-    for (size_t i = 0; i < nu->nbreaks; i++)
-        if (overlaps(a, b, nu->breaks[i].at, nu->breaks[i].at + nu->breaks[i].minutes))
-            return false;
-    return true;
-}
-
 /* The most patients nurses n and cover (or n alone, cover < 0) hold
  * together at one moment of [a, b). */
 static int most_during(const keel_workload *w, const int *held, size_t n, int cover, int a, int b)
@@ -99,26 +86,6 @@ static int most_during(const keel_workload *w, const int *held, size_t n, int co
             most = count;
     }
     return most;
-}
-
-/* The limit that holds at all times for cover c standing in for nurse n:
- * the table's per-nurse maximum, else c's patient limit (a relief nurse's
- * at least n's, since she takes n's place). */
-static int cover_limit(const keel_workload *w, int c, size_t n, bool relief)
-{
-    if (w->law_limit != KEEL_ABSENT)
-        return w->law_limit;
-    if (c < 0)
-        return w->max_patients[n];
-    int limit = w->max_patients[c];
-    if (relief && w->max_patients[n] > limit)
-        limit = w->max_patients[n];
-    return limit;
-}
-
-static const char *limit_rule(const keel_workload *w)
-{
-    return w->law_limit != KEEL_ABSENT ? "law_limit" : "patient_limit";
 }
 
 /* The patients nurse n holds at some moment of [a, b), ascending (parts
@@ -139,86 +106,43 @@ static keel_status handed_over(const keel_workload *w, const int *nurse_of, size
     return KEEL_OK;
 }
 
-/* The first nurse whose `covers` names nurse n and who is free during
- * [a, b), or -1. */
-static int find_buddy(const keel_roster *r, const keel_workload *w, size_t n, int a, int b)
+/* True when no buddy of nurse n can hold her patients within the limit
+ * during [a, b): none is free, or the first free one would go over. */
+static bool needs_relief(const keel_roster *r, const keel_workload *w, const int *held, size_t n,
+                         int a, int b)
 {
-    for (size_t i = 0; i < r->nnurses; i++)
-        if (i != n && r->nurses[i].covers && strcmp(r->nurses[i].covers, r->nurses[n].id) == 0 &&
-            free_during(r, w, i, a, b))
-            return (int)i;
-    return -1;
-}
-
-/* True when relief nurse i already covers one of the breaks given covers
- * so far (order[0..done)) that overlaps [a, b). */
-static bool covering(const keel_course *c, const size_t *order, size_t done, size_t i, int a, int b)
-{
-    for (size_t k = 0; k < done; k++) {
-        const keel_break_cover *o = &c->breaks[order[k]];
-        if (o->relief && o->cover == (int)i && overlaps(a, b, o->at, o->at + o->minutes))
-            return true;
+    for (size_t i = 0; i < r->nnurses; i++) {
+        if (i == n || !r->nurses[i].covers || strcmp(r->nurses[i].covers, r->nurses[n].id) != 0 ||
+            !keel_workload_cover_free(r, w, i, a, b))
+            continue;
+        int limit = w->law_limit != KEEL_ABSENT ? w->law_limit : w->max_patients[i];
+        return most_during(w, held, n, (int)i, a, b) > limit;
     }
-    return false;
+    return true;
 }
 
-/* The first relief nurse free during [a, b) and not covering an
- * overlapping break already, or -1. */
-static int find_relief(const keel_roster *r, const keel_workload *w, const keel_course *c,
-                       const size_t *order, size_t done, int a, int b)
+/* One break of the break plan (w->covers[k]) under the assignment. */
+static keel_status cover_break(const keel_roster *r, const keel_workload *w, const int *nurse_of,
+                               const int *held, size_t k, keel_break_cover *bc)
 {
-    for (size_t i = 0; i < r->nnurses; i++)
-        if (r->nurses[i].role == KEEL_ROLE_RELIEF && free_during(r, w, i, a, b) &&
-            !covering(c, order, done, i, a, b))
-            return (int)i;
-    return -1;
-}
-
-typedef struct timed {
-    int at;
-    size_t index;
-} timed;
-
-static int earlier(const void *x, const void *y)
-{
-    const timed *a = x, *b = y;
-    if (a->at != b->at)
-        return (a->at > b->at) - (a->at < b->at);
-    return (a->index > b->index) - (a->index < b->index);
-}
-
-/* Gives one break its cover (the k-th in time order) and checks the limit. */
-static void cover_break(const keel_roster *r, const keel_workload *w, const int *held,
-                        keel_course *c, const size_t *order, size_t k)
-{
-    keel_break_cover *bc = &c->breaks[order[k]];
-    int a = bc->at, b = bc->at + bc->minutes;
-    size_t n = bc->nurse;
-    bc->cover = -1;
-    bc->most = most_during(w, held, n, -1, a, b);
-    bc->limit = cover_limit(w, -1, n, false);
+    const keel_cover *cv = &w->covers[k];
+    int a = cv->start, b = cv->end;
+    *bc = (keel_break_cover){.nurse = cv->nurse, .brk = cv->brk, .at = a, .minutes = b - a,
+                             .cover = -1, .limit = cv->limit};
+    if (handed_over(w, nurse_of, cv->nurse, a, b, bc))
+        return KEEL_ERR_NOMEM;
+    bc->most = most_during(w, held, cv->nurse, -1, a, b);
     if (bc->npatients == 0)
-        return; /* she holds nobody during the break: nothing to hand over */
-    int buddy = find_buddy(r, w, n, a, b);
-    if (buddy >= 0) {
-        bc->cover = buddy;
-        bc->most = most_during(w, held, n, buddy, a, b);
-        bc->limit = cover_limit(w, buddy, n, false);
-    }
-    bc->needs_relief = buddy < 0 || bc->most > bc->limit;
-    /* A relief nurse takes the break when no buddy can within the limit;
-     * with none free, a buddy over the limit still covers (flagged). */
-    int relief = bc->needs_relief ? find_relief(r, w, c, order, k, a, b) : -1;
-    if (relief >= 0) {
-        bc->cover = relief;
-        bc->relief = true;
-        bc->most = most_during(w, held, n, relief, a, b);
-        bc->limit = cover_limit(w, relief, n, true);
-    }
+        return KEEL_OK; /* she holds nobody during the break: nothing to hand over */
+    bc->cover = cv->cover;
+    bc->relief = cv->relief;
+    bc->most = most_during(w, held, cv->nurse, cv->cover, a, b);
+    bc->needs_relief = needs_relief(r, w, held, cv->nurse, a, b);
     if (bc->cover < 0)
         bc->rule = "no_cover";
     else if (bc->most > bc->limit)
-        bc->rule = limit_rule(w);
+        bc->rule = w->law_limit != KEEL_ABSENT ? "law_limit" : "patient_limit";
+    return KEEL_OK;
 }
 
 /* The most breaks needing a relief nurse at one time: some such break
@@ -243,44 +167,17 @@ static int most_needing_relief(const keel_course *c)
 static keel_status plan_breaks(const keel_roster *r, const keel_workload *w, const int *nurse_of,
                                const int *held, keel_course *c)
 {
-    size_t nb = 0;
-    for (size_t n = 0; n < r->nnurses; n++)
-        nb += r->nurses[n].nbreaks;
     for (size_t n = 0; n < r->nnurses; n++)
         c->relief_on_roster += r->nurses[n].role == KEEL_ROLE_RELIEF;
-    c->breaks = keel_calloc(nb ? nb : 1, sizeof *c->breaks);
-    timed *by_time = keel_calloc(nb ? nb : 1, sizeof *by_time);
-    size_t *order = keel_calloc(nb ? nb : 1, sizeof *order);
-    if (!c->breaks || !by_time || !order) {
-        free(by_time);
-        free(order);
+    c->breaks = keel_calloc(w->ncovers ? w->ncovers : 1, sizeof *c->breaks);
+    if (!c->breaks)
         return KEEL_ERR_NOMEM;
+    for (size_t k = 0; k < w->ncovers; k++) {
+        c->nbreaks++;
+        if (cover_break(r, w, nurse_of, held, k, &c->breaks[k]))
+            return KEEL_ERR_NOMEM;
     }
-    for (size_t n = 0; n < r->nnurses; n++) {
-        for (size_t i = 0; i < r->nurses[n].nbreaks; i++) {
-            keel_break_cover *bc = &c->breaks[c->nbreaks];
-            bc->nurse = n;
-            bc->brk = i;
-            bc->at = r->nurses[n].breaks[i].at;
-            bc->minutes = r->nurses[n].breaks[i].minutes;
-            bc->cover = -1;
-            by_time[c->nbreaks] = (timed){bc->at, c->nbreaks};
-            c->nbreaks++;
-            if (handed_over(w, nurse_of, n, bc->at, bc->at + bc->minutes, bc)) {
-                free(by_time);
-                free(order);
-                return KEEL_ERR_NOMEM;
-            }
-        }
-    }
-    qsort(by_time, nb, sizeof *by_time, earlier);
-    for (size_t k = 0; k < nb; k++)
-        order[k] = by_time[k].index;
-    for (size_t k = 0; k < nb; k++)
-        cover_break(r, w, held, c, order, k);
     c->relief_needed = most_needing_relief(c);
-    free(by_time);
-    free(order);
     return KEEL_OK;
 }
 

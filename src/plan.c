@@ -235,6 +235,7 @@ keel_status keel_plan_check(const keel_roster *r, const keel_workload *w, const 
             rc = check_pairs(&c, first, end, out);
             break;
         case KEEL_SCOPE_MOMENT:
+        case KEEL_SCOPE_UNIT:
             rc = check_moments(&c, first, end, mine, out);
             break;
         case KEEL_SCOPE_SHIFT:

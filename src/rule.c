@@ -6,9 +6,10 @@
  *
  * Table order is the order a plan's findings are listed in (keel check):
  * competencies, then what each nurse holds at each moment, then locks and
- * avoid lists, then each nurse's whole shift, then the clock.  The tally's
- * test asks in another order, cheapest first: eligibility, the clock, the
- * whole shift, then each moment.
+ * avoid lists, then each nurse's whole shift, then the clock, then break
+ * cover.  The tally's test asks in another order, cheapest first:
+ * eligibility, the clock, the whole shift, then each moment (break cover
+ * with the moment's rules).
  */
 #include "rule.h"
 
@@ -101,7 +102,7 @@ void keelRuleFlags(keel_workload *w)
     w->joined_rules = w->clocked;
     for (size_t i = 0; i < KEEL_NRULES; i++) {
         keel_rule_scope scope = keel_rules[i]->scope;
-        if (scope == KEEL_SCOPE_MOMENT || scope == KEEL_SCOPE_SHIFT)
+        if (scope == KEEL_SCOPE_MOMENT || scope == KEEL_SCOPE_SHIFT || scope == KEEL_SCOPE_UNIT)
             w->joined_rules = w->joined_rules || on(w, (keel_rule_id)i);
     }
     /* A test is listed unless its rule says it cannot bind here (a rule
@@ -114,8 +115,9 @@ void keelRuleFlags(keel_workload *w)
             continue;
         int list = rule->scope == KEEL_SCOPE_CLOCK   ? KEEL_WORKLOAD_CLOCK
                    : rule->scope == KEEL_SCOPE_SHIFT ? KEEL_WORKLOAD_SHIFT
-                   : rule->scope == KEEL_SCOPE_MOMENT ? KEEL_WORKLOAD_MOMENT
-                                                      : -1;
+                   : rule->scope == KEEL_SCOPE_MOMENT || rule->scope == KEEL_SCOPE_UNIT
+                       ? KEEL_WORKLOAD_MOMENT
+                       : -1;
         if (list >= 0 && rule->breaks)
             w->tests[list][w->ntests[list]++] = rule;
         if (rule->held_alike)

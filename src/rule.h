@@ -21,10 +21,12 @@
  * Scopes.  PAIR rules (skill, lock, avoid) remove patient-nurse pairs up
  * front (workload.c's eligibility); MOMENT rules count what a nurse holds at
  * each moment of the shift; SHIFT rules judge her whole shift (care, fewest
- * patients); CLOCK rules hold the parts of one patient together.  NAME
+ * patients); CLOCK rules hold the parts of one patient together; UNIT
+ * rules count what two nurses hold together at each moment (break cover:
+ * a nurse on break and the nurse who holds her patients then).  NAME
  * entries are names other entries report under (law_limit and moment_limit
- * are the patient limit's names when the table sets it and under the clock;
- * break_cover is the break plan's).
+ * are the patient limit's names when the table sets it and under the
+ * clock).
  *
  * Layers: below the workload (which asks the table which rules bind) and
  * the solver; above the tally (the counts the tests read) and lp.h (the
@@ -67,6 +69,7 @@ typedef enum keel_rule_scope {
     KEEL_SCOPE_MOMENT, /* what a nurse holds at each moment */
     KEEL_SCOPE_SHIFT,  /* a nurse's whole shift */
     KEEL_SCOPE_CLOCK,  /* the parts of one patient over the shift */
+    KEEL_SCOPE_UNIT,   /* what two nurses hold together at each moment (break cover) */
     KEEL_SCOPE_NAME,   /* a name another entry reports under */
 } keel_rule_scope;
 
@@ -83,6 +86,12 @@ typedef struct keel_rows {
     bool soft;          /* the best-effort model: a row may be broken at the rule's severity */
     double census;      /* the patients of the workload: the big number of soft rows */
     double zone_cost;   /* the objective's price on each zone binary (proximity), else 0 */
+    /* UNIT rules: others(R, nurse) writes that nurse's columns that cover
+     * R's moment to R->ocol and returns how many; each counts patients as
+     * R's columns do.  model is what it reads. */
+    size_t (*others)(const struct keel_rows *R, size_t nurse);
+    int *ocol;
+    const void *model;
 } keel_rows;
 
 /* What a plan check sees: the roster, the workload, the plan. */
@@ -111,15 +120,15 @@ typedef struct keel_rule {
     bool (*binds)(const keel_workload *w);
 
     /* The tally's test: the name of the rule nurse n breaks by taking part p
-     * (for MOMENT rules at moment m), or NULL.  A rule that can only be
+     * (for MOMENT and UNIT rules at moment m), or NULL.  A rule that can only be
      * judged on a whole plan (min_patients) has whole instead: true when the
      * plan the tally holds breaks it. */
     const char *(*breaks)(const keel_tally *t, size_t p, size_t n, size_t m);
     bool (*whole)(const keel_tally *t);
 
     /* The plan check: appends a finding (rule name, patients, nurse, plain
-     * words) for each way nurse n breaks the rule.  MOMENT rules are asked
-     * at each moment m with the parts mine[0..k) she holds then; SHIFT rules
+     * words) for each way nurse n breaks the rule.  MOMENT and UNIT rules
+     * are asked at each moment m with the parts mine[0..k) she holds then; SHIFT rules
      * once (m 0, every part she holds); PAIR rules once per part that
      * starts a stretch with her (mine[0] that part, k 1); CLOCK rules once
      * per patient (mine: its parts in time order; n unused).  Statuses:
@@ -132,7 +141,8 @@ typedef struct keel_rule {
     bool (*pair_breaks)(const keel_roster *r, const keel_workload *w, size_t p, size_t n);
 
     /* The integer-programme rows of the rule for R's nurse: MOMENT rules at
-     * R's moment, SHIFT and CLOCK rules over the whole shift.  Rows keep the
+     * R's moment, UNIT rules at R's moment with the other nurse's columns
+     * (R->others), SHIFT and CLOCK rules over the whole shift.  Rows keep the
      * rule, or, in the best-effort model (R->soft), weigh each unit broken
      * at the rule's severity.  A rule whose data is absent adds nothing. */
     void (*rows)(const keel_rows *R);
@@ -174,8 +184,9 @@ extern const keel_rule keel_rule_zones;                                  /* rule
 extern const keel_rule keel_rule_capacity;                               /* rule_capacity.c */
 extern const keel_rule keel_rule_min_patients;                           /* rule_min.c */
 extern const keel_rule keel_rule_hand_off;                               /* rule_hand_off.c */
-extern const keel_rule keel_rule_law_limit, keel_rule_moment_limit,
-    keel_rule_break_cover; /* rule_name.c: names that other entries report under */
+extern const keel_rule keel_rule_break_cover;                            /* rule_cover.c */
+extern const keel_rule keel_rule_law_limit,
+    keel_rule_moment_limit; /* rule_name.c: names that other entries report under */
 
 /* The table, indexed by keel_rule_id (rule.c). */
 extern const keel_rule *const keel_rules[KEEL_NRULES];

@@ -3,9 +3,7 @@
  * rule_name.c - the rules of the design's list that are names only, with
  * no test and no rows of their own: a patient limit the ratio table sets
  * is reported as law_limit, and any count broken at one moment of the
- * clock as moment_limit (rule_limit.c, rule_ratio.c); break_cover is the
- * name of the cover of a nurse's patients during her break, which the
- * course of the shift reports (course.c).
+ * clock as moment_limit (rule_limit.c, rule_ratio.c).
  */
 #include "rule.h"
 
@@ -17,11 +15,6 @@ const keel_rule keel_rule_law_limit = {
 };
 const keel_rule keel_rule_moment_limit = {
     .name = "moment_limit",
-    .staffing = true,
-    .scope = KEEL_SCOPE_NAME,
-};
-const keel_rule keel_rule_break_cover = {
-    .name = "break_cover",
     .staffing = true,
     .scope = KEEL_SCOPE_NAME,
 };

@@ -47,7 +47,8 @@ static const char *plural(size_t n)
     return n == 1 ? "" : "s";
 }
 
-/* Counts the plan's broken rules, limits apart from the rest. */
+/* Counts the plan's broken rules, limits apart from the rest; a break
+ * without cover is counted once, with the break plan. */
 static keel_status count_findings(const keel_roster *r, const keel_workload *w,
                                   const int *nurse_of, keel_verdict *v, keel_error *err)
 {
@@ -55,6 +56,8 @@ static keel_status count_findings(const keel_roster *r, const keel_workload *w,
     keel_status rc = keel_plan_check(r, w, nurse_of, &found, err);
     for (size_t i = 0; !rc && i < found.n; i++) {
         const keel_rule *rule = keelRuleFind(found.items[i].rule);
+        if (rule == keel_rules[KEEL_RULE_BREAK_COVER])
+            continue; /* the break plan's count (count_course()) */
         if (rule && rule->staffing)
             v->limits_broken++;
         else

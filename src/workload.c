@@ -197,6 +197,8 @@ void keel_workload_free(keel_workload *w)
     free(w->moment_start);
     free(w->first_moment);
     free(w->last_moment);
+    free(w->covers);
+    free(w->covered);
     free(w);
 }
 
@@ -234,14 +236,18 @@ static int leaves(const keel_roster *r, const keel_patient *p)
     return or_default(p->leaves_at, r->shift.minutes);
 }
 
-/* Nurses' times, the moments of the shift and how many parts there are:
- * the first stage of the clock (see keel/workload.h). */
+/* Nurses' times, the times the moments of the shift start at and how many
+ * parts there are: the first stage of the clock (see keel/workload.h).
+ * The times are left unsorted in *bounds_out (room for every break's too);
+ * set_moments() makes the moments of them. */
 static keel_status plan_clock(const keel_roster *r, keel_workload *w, int **ends_out,
-                              size_t *nends_out)
+                              size_t *nends_out, int **bounds_out, size_t *nbounds_out)
 {
-    size_t nn = r->nnurses, np = r->npatients, nparts = 0;
+    size_t nn = r->nnurses, np = r->npatients, nparts = 0, nbreaks = 0;
+    for (size_t n = 0; n < nn; n++)
+        nbreaks += r->nurses[n].nbreaks;
     int *ends = keel_calloc(nn + 1, sizeof *ends);
-    int *bounds = keel_calloc(2 * nn + 2 * np + 2, sizeof *bounds);
+    int *bounds = keel_calloc(2 * nn + 2 * np + 2 * nbreaks + 2, sizeof *bounds);
     w->nurse_start = keel_calloc(nn + 1, sizeof *w->nurse_start);
     w->nurse_end = keel_calloc(nn + 1, sizeof *w->nurse_end);
     if (!ends || !bounds || !w->nurse_start || !w->nurse_end) {
@@ -268,14 +274,24 @@ static keel_status plan_clock(const keel_roster *r, keel_workload *w, int **ends
         for (size_t i = 0; i < nends; i++)
             nparts += ends[i] > a && ends[i] < b;
     }
+    w->npatients = nparts;
+    *ends_out = ends;
+    *nends_out = nends;
+    *bounds_out = bounds;
+    *nbounds_out = nb;
+    return KEEL_OK;
+}
+
+/* The moments of the shift: the times of plan_clock() and the kept
+ * covers' starts and ends, sorted (w takes bounds). */
+static void set_moments(keel_workload *w, int *bounds, size_t nb)
+{
+    keel_workload_cover_times(w, bounds, &nb);
     nb = sort_unique(bounds, nb);
     w->moment_start = bounds;
     w->nmoments = nb - 1;
-    w->npatients = nparts;
-    w->clocked = w->nmoments > 1 || nparts > np;
-    *ends_out = ends;
-    *nends_out = nends;
-    return KEEL_OK;
+    w->clocked = w->nmoments > 1 || w->npatients > w->npeople;
+    keel_workload_cover_moments(w);
 }
 
 /* Cuts each patient's stay into parts at the nurses' end times and shares
@@ -345,7 +361,7 @@ static int break_total(const keel_roster *r, size_t i)
 /* Nurse n's fewest patients and most care (policy.min_patients and
  * max_utilisation); reports a nurse whose fewest is above her limit, and
  * min_patients with times (not supported).  Returns true on a problem. */
-static bool bounds(const keel_roster *r, keel_workload *w, size_t n, keel_error *err)
+static bool bounds_of(const keel_roster *r, keel_workload *w, size_t n, keel_error *err)
 {
     const keel_nurse *nurse = &r->nurses[n];
     bool counted = w->max_patients[n] > 0;
@@ -405,8 +421,8 @@ bool keel_workload_alloc(keel_workload *w)
 keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, keel_error *err)
 {
     keel_status rc = KEEL_OK;
-    size_t nn = r->nnurses, npeople = r->npatients, nends = 0;
-    int *ends = NULL;
+    size_t nn = r->nnurses, npeople = r->npatients, nends = 0, nbounds = 0;
+    int *ends = NULL, *bounds = NULL;
     keel_workload *w = keel_calloc(1, sizeof *w);
     *out = NULL;
     if (!w)
@@ -414,7 +430,7 @@ keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, kee
     w->nnurses = nn;
     w->npeople = npeople;
     w->shift_minutes = r->shift.minutes;
-    if (plan_clock(r, w, &ends, &nends)) {
+    if (plan_clock(r, w, &ends, &nends, &bounds, &nbounds)) {
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }
@@ -423,15 +439,24 @@ keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, kee
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }
+    w->law_limit = keel_law_nurse_max(r->policy.ratio_table, r->unit.type);
+    if (w->law_limit < 0)
+        w->law_limit = KEEL_ABSENT;
+    for (size_t n = 0; n < nn; n++)
+        w->max_patients[n] = nurse_limit(r, &r->nurses[n], w->law_limit);
+    /* The break plan cuts moments at the kept covers' edges. */
+    if (keel_workload_cover_plan(r, w)) {
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+        goto out;
+    }
+    set_moments(w, bounds, nbounds);
+    bounds = NULL;
     cut_parts(r, w, ends, nends);
     if (join_rules(r, w)) {
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }
 
-    w->law_limit = keel_law_nurse_max(r->policy.ratio_table, r->unit.type);
-    if (w->law_limit < 0)
-        w->law_limit = KEEL_ABSENT;
     for (size_t n = 0; n < nn; n++) {
         const keel_nurse *nurse = &r->nurses[n];
         int minutes = keel_workload_on_unit(r, n);
@@ -439,8 +464,7 @@ keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, kee
         w->capacity_minutes[n] = minutes - breaks;
         w->duty_minutes[n] = or_default(nurse->duty_minutes,
                                         or_default(r->policy.roles[nurse->role].duty_minutes, 0));
-        w->max_patients[n] = nurse_limit(r, nurse, w->law_limit);
-        rc = bounds(r, w, n, err) ? KEEL_ERR_INPUT : rc;
+        rc = bounds_of(r, w, n, err) ? KEEL_ERR_INPUT : rc;
         if (w->max_patients[n] > 0 && w->capacity_minutes[n] <= 0)
             rc = keel_error_add(err, KEEL_ERR_INPUT, r->path, nurse->mark.line, nurse->mark.column,
                                 "nurses",
@@ -459,6 +483,7 @@ keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, kee
     keelRuleFlags(w);
 out:
     free(ends);
+    free(bounds);
     if (rc)
         keel_workload_free(w);
     else

@@ -20,6 +20,25 @@
 enum { KEEL_WORKLOAD_CLOCK, KEEL_WORKLOAD_SHIFT, KEEL_WORKLOAD_MOMENT };
 struct keel_rule;
 
+/* Who holds a nurse's patients during one of her timed breaks, chosen from
+ * the roster alone before the solve (workload_cover.c, the order it
+ * follows): the break plan the assignment keeps (rule_cover.c) and the
+ * course of the shift reports (course.c). */
+typedef struct keel_cover {
+    size_t nurse;     /* the nurse on break */
+    size_t brk;       /* index into her breaks */
+    int start, end;   /* minutes after the shift's start */
+    int cover;        /* the covering nurse, or -1: nobody is free to */
+    bool relief;      /* the cover is a relief nurse, not a buddy */
+    int limit;        /* most patients the cover may hold with the nurse's (the table's
+                         per-nurse maximum, else the cover's patient limit; a relief
+                         nurse's at least the breaking nurse's) */
+    bool kept;        /* the assignment keeps it: the roster plans cover (names a buddy
+                         or a relief nurse) and the limit can bind */
+    int first_moment; /* the break's moments: first_moment .. last_moment-1 */
+    int last_moment;
+} keel_cover;
+
 struct keel_workload {
     size_t npatients; /* parts: what the solver assigns (without times, the patients) */
     size_t nnurses;
@@ -75,6 +94,12 @@ struct keel_workload {
     int *last_moment;  /* [npatients] */
     int shift_minutes; /* the shift's length */
     bool clocked;      /* several moments or parts: counts are per moment, parts keep nurses */
+
+    /* The break plan: every timed break, by nurse then break. */
+    size_t ncovers;
+    keel_cover *covers;
+    size_t nkept;   /* covers the assignment keeps (0: the break_cover rule is off) */
+    bool *covered;  /* [nnurses]: the nurse is on break or covers in a kept cover */
 };
 
 /* Which side of the isolation separation a patient is on. */
@@ -112,6 +137,23 @@ keel_status keel_workload_order(const keel_workload *w, size_t *order);
  * limit above zero, avoid list and lock, her times aside. */
 bool keel_workload_may_take_at_all(const keel_roster *r, const keel_workload *w, size_t p,
                                    size_t n);
+
+/* The break plan of roster r (workload_cover.c): w->covers, w->nkept and
+ * w->covered, from the nurses' times and limits (w->nurse_start,
+ * nurse_end, max_patients, law_limit); the moments are set later by
+ * keel_workload_cover_moments().  Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
+keel_status keel_workload_cover_plan(const keel_roster *r, keel_workload *w);
+
+/* True when nurse i is free to cover during [a, b): on throughout it and
+ * on no break of her own that overlaps it. */
+bool keel_workload_cover_free(const keel_roster *r, const keel_workload *w, size_t i, int a, int b);
+
+/* Adds the start and end of every kept cover to times[*n..] (room for
+ * 2 * w->ncovers), for the moments of the clock. */
+void keel_workload_cover_times(const keel_workload *w, int *times, size_t *n);
+
+/* Sets each cover's moments from w->moment_start. */
+void keel_workload_cover_moments(keel_workload *w);
 
 /* Allocates w's arrays for w->npatients parts, w->nnurses nurses and
  * w->npeople patients, zeroed (the clock's nurse times and moments aside);

@@ -385,6 +385,65 @@ static void test_break_holding_no_patients_needs_no_cover(void **state)
 /* Timelines                                                           */
 /* ------------------------------------------------------------------ */
 
+/* The break plan, worked by hand from its two passes (docs/model.md,
+ * "Break cover"): at 11:00 E5 (no buddy) and E1 (buddy E2) both break;
+ * the relief nurse R goes first to E5, who has nobody else, so E2 covers
+ * E1; at 11:30 R is free again and takes E2's break although E2's buddy E1
+ * is back.  Under the table (1:5), with six patients, only E1's cover by
+ * E2 can bind: R takes no patients of her own. */
+static void test_break_plan_gives_the_relief_nurse_to_the_break_without_a_buddy(void **state)
+{
+    (void)state;
+    loaded l = load(CALIFORNIA_HEAD
+                    "nurses:\n"
+                    "  - {id: E1, breaks: [{at: \"11:00\", minutes: 30}], covers: E2}\n"
+                    "  - {id: E2, breaks: [{at: \"11:30\", minutes: 30}], covers: E1}\n"
+                                    "  - {id: E5, breaks: [{at: \"11:00\", minutes: 30}]}\n"
+                                    "  - {id: R, role: relief, start: \"09:00\", end: \"17:00\"}\n"
+                                    "patients:\n"
+                                    "  - {id: P1, acuity: 1, nurse: E1}\n"
+                                    "  - {id: P2, acuity: 1, nurse: E2}\n"
+                                    "  - {id: P3, acuity: 1, nurse: E5}\n"
+                                    "  - {id: P4, acuity: 1, nurse: E1}\n"
+                                    "  - {id: P5, acuity: 1, nurse: E2}\n"
+                                    "  - {id: P6, acuity: 1, nurse: E5}\n",
+                    0);
+    const keel_break_cover *e1 = break_of(&l, "E1"), *e2 = break_of(&l, "E2"),
+                           *e5 = break_of(&l, "E5");
+    assert_int_equal(e5->cover, (int)nurse(&l, "R"));
+    assert_true(e5->relief);
+    assert_int_equal(e1->cover, (int)nurse(&l, "E2"));
+    assert_false(e1->relief);
+    assert_int_equal(e2->cover, (int)nurse(&l, "R"));
+    assert_true(e2->relief);
+    /* Kept: E1's cover by E2 (5 + 5 > 5); not R's (she holds nobody). */
+    assert_int_equal(l.w->nkept, 1);
+    for (size_t k = 0; k < l.w->ncovers; k++)
+        assert_int_equal(l.w->covers[k].kept, l.w->covers[k].nurse == nurse(&l, "E1"));
+    /* The kept break's edges are moments of the clock. */
+    assert_true(l.w->clocked);
+    unload(&l);
+}
+
+/* A roster that names no buddy and no relief nurse plans no cover: its
+ * breaks are read off the plan (flagged), never kept by the assignment. */
+static void test_no_cover_is_kept_when_the_roster_plans_none(void **state)
+{
+    (void)state;
+    loaded l = load(CALIFORNIA_HEAD "nurses:\n"
+                                    "  - {id: N1, breaks: [{at: \"11:00\", minutes: 30}]}\n"
+                                    "  - {id: N2}\n"
+                                    "patients:\n"
+                                    "  - {id: P1, acuity: 1, nurse: N1}\n",
+                    0);
+    assert_int_equal(l.w->nkept, 0);
+    assert_false(l.w->clocked);
+    const keel_break_cover *b = break_of(&l, "N1");
+    assert_int_equal(b->cover, -1);
+    assert_string_equal(b->rule, "no_cover");
+    unload(&l);
+}
+
 static void test_timeline_follows_a_discharge_and_an_admission(void **state)
 {
     (void)state;
@@ -612,6 +671,8 @@ int main(void)
         cmocka_unit_test(test_admission_order_ties_go_to_the_lower_nurse_index),
         cmocka_unit_test(test_admission_room_is_counted_at_the_nurses_last_moment),
         cmocka_unit_test(test_admission_room_keeps_the_ratio_of_patients_held),
+        cmocka_unit_test(test_break_plan_gives_the_relief_nurse_to_the_break_without_a_buddy),
+        cmocka_unit_test(test_no_cover_is_kept_when_the_roster_plans_none),
         cmocka_unit_test(test_course_survives_every_failed_allocation),
     };
     return cmocka_run_group_tests_name("course", tests, NULL, NULL);

@@ -924,7 +924,8 @@ static void test_every_rule_has_every_part(void **state)
         assert_non_null(rule);
         assert_non_null(rule->name);
         assert_ptr_equal(keelRuleFind(rule->name), rule);
-        bool joins = rule->scope == KEEL_SCOPE_MOMENT || rule->scope == KEEL_SCOPE_SHIFT;
+        bool joins = rule->scope == KEEL_SCOPE_MOMENT || rule->scope == KEEL_SCOPE_SHIFT ||
+                     rule->scope == KEEL_SCOPE_UNIT;
         switch (rule->scope) {
         case KEEL_SCOPE_PAIR:
             assert_non_null(rule->check);
@@ -933,6 +934,7 @@ static void test_every_rule_has_every_part(void **state)
             break;
         case KEEL_SCOPE_MOMENT:
         case KEEL_SCOPE_SHIFT:
+        case KEEL_SCOPE_UNIT:
             assert_non_null(rule->check);
             assert_non_null(rule->rows);
             assert_true(rule->breaks || rule->whole); /* the tally's test */

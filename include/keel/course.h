@@ -17,34 +17,33 @@
  * with patients = KEEL_COURSE_OFF.  A nurse on to the shift's end has no
  * "off" entry.
  *
- * Break cover.  Every timed break (nurses[].breaks) during which the nurse
- * holds at least one patient is covered by, in this order:
- *   1. a buddy: the first nurse (by index) whose `covers` names her, who is
- *      on throughout the break and not on a break of her own overlapping it,
- *      when she stays within the limit below;
- *   2. else a relief nurse (role relief, first by index) who is on
- *      throughout the break, not on a break of her own overlapping it, and
- *      not already covering an overlapping break (breaks are given covers in
- *      time order, ties by nurse then break index);
- *   3. else the buddy over the limit (the break is flagged);
- *   4. else nobody: the break is flagged "no_cover".
- * The cover holds her own patients plus the breaking nurse's; `most` is the
- * largest number she holds at one moment of the break.  The limit that
- * applies at all times is the ratio table's per-nurse maximum when the
- * table sets one for the unit (flag "law_limit"), otherwise the cover's
- * patient limit (flag "patient_limit").  Source: California Code of
- * Regulations, Title 22, section 70217(a) (CDPH AFL 08-07, 2008): the
- * ratios hold at all times, breaks included (that breaks are included is
- * from a secondary summary of the text).  A relief nurse stands in
- * for the breaking nurse, so without a table her limit is the larger of her
- * own and the breaking nurse's.
- * A break during which the nurse holds no patients needs no cover
- * (cover -1, not flagged).
+ * Break cover.  Every timed break (nurses[].breaks) has a cover from the
+ * break plan, chosen from the roster before the solve (docs/model.md,
+ * "Break cover"): in time order (ties by nurse, then break), first the
+ * breaks of nurses with no free buddy get the first relief nurse (role
+ * relief) who is on throughout, not on a break of her own and not covering
+ * an overlapping break, else nobody; then the other breaks get such a
+ * relief nurse when one is left, else the first free buddy (a nurse whose
+ * `covers` names the nurse on break).  A break during which the nurse holds
+ * no patients needs no cover (cover -1, not flagged).  The cover holds her
+ * own patients plus the breaking nurse's; `most` is the largest number she
+ * holds at one moment of the break.  The limit that applies at all times
+ * is the ratio table's per-nurse maximum when the table sets one for the
+ * unit (flag "law_limit"), otherwise the cover's patient limit (flag
+ * "patient_limit"); a relief nurse stands in for the breaking nurse, so
+ * without a table her limit is the larger of her own and the breaking
+ * nurse's.  Source: California Code of Regulations, Title 22, section
+ * 70217(a) (CDPH AFL 08-07, 2008): the ratios hold at all times, breaks
+ * included (that breaks are included is from a secondary summary of the
+ * text).  A break without a cover is flagged "no_cover".  When the roster
+ * names a buddy or a relief nurse, keel's own assignments keep every cover
+ * within the limit (rule break_cover), so only a plan typed in or a
+ * best-effort plan is flagged.
  *
  * Relief needed.  A break needs a relief nurse when it needs cover and no
- * buddy can cover it within the limit (no buddy is free, or the buddy would
- * go over).  relief_needed is the most such breaks at one time;
- * relief_on_roster the nurses with role relief.
+ * buddy could cover it within the limit under this plan (no buddy is free,
+ * or the first free buddy would go over).  relief_needed is the most such
+ * breaks at one time; relief_on_roster the nurses with role relief.
  *
  * Admission order.  A typical admission carries admission_minutes =
  * ceil(sum of care over all parts / number of roster patients), expected

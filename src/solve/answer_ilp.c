@@ -12,7 +12,8 @@
  *
  *   lo(n) <= sum_c care(c) y[c, n] <= hi(n)
  *   the rows of every rule (rule_*.c), kept, over n's columns: at each
- *   moment for the rules that count what she holds, once for her shift
+ *   moment for the rules that count what she holds (with her break cover's
+ *   columns for break_cover), once for her shift
  *
  * With the clock a part of a patient cut into several is a class of its
  * own.  Continuity maximises the patients with their previous nurse;
@@ -56,6 +57,7 @@ typedef struct model {
     int *rcol;
     size_t *rpart;
     double *rmost;
+    int *ocol; /* another nurse's columns, for the UNIT rules' rows */
 } model;
 
 /* True when part p is its patient's only part. */
@@ -119,9 +121,10 @@ static void group(model *m)
     }
 }
 
-/* Nurse n's columns of classes covering moment mo (-1: every class), for
- * the rules' rows. */
-static keel_rows nurse_rows(model *m, size_t n, int mo)
+/* Nurse n's columns of classes covering moment mo (-1: every class) into
+ * col (and, when given, a member and the class's size into part and
+ * most); returns how many. */
+static size_t columns(const model *m, size_t n, int mo, int *col, size_t *part, double *most)
 {
     const keel_workload *w = m->w;
     size_t k = 0;
@@ -130,11 +133,27 @@ static keel_rows nurse_rows(model *m, size_t n, int mo)
         size_t p = m->class_first[c];
         if (!j || (mo >= 0 && (w->first_moment[p] > mo || mo >= w->last_moment[p])))
             continue;
-        m->rcol[k] = j;
-        m->rpart[k] = p;
-        m->rmost[k] = (double)m->class_size[c];
+        col[k] = j;
+        if (part) {
+            part[k] = p;
+            most[k] = (double)m->class_size[c];
+        }
         k++;
     }
+    return k;
+}
+
+static size_t other_columns(const keel_rows *R, size_t n)
+{
+    return columns(R->model, n, R->moment, R->ocol, NULL, NULL);
+}
+
+/* Nurse n's columns of classes covering moment mo (-1: every class), for
+ * the rules' rows. */
+static keel_rows nurse_rows(model *m, size_t n, int mo)
+{
+    const keel_workload *w = m->w;
+    size_t k = columns(m, n, mo, m->rcol, m->rpart, m->rmost);
     /* Proximity without the clock: the zones rule's binaries carry the zone
      * price. */
     bool near = m->goal == KEEL_GOAL_NEAR && !w->clocked;
@@ -147,7 +166,10 @@ static keel_rows nurse_rows(model *m, size_t n, int mo)
                        .part = m->rpart,
                        .most = m->rmost,
                        .census = (double)w->npatients,
-                       .zone_cost = near ? (double)w->npatients + 1 : 0.0};
+                       .zone_cost = near ? (double)w->npatients + 1 : 0.0,
+                       .others = other_columns,
+                       .ocol = m->ocol,
+                       .model = m};
 }
 
 static int zone_of(const keel_workload *w, size_t p)
@@ -247,6 +269,7 @@ static void build(model *m)
         for (size_t mo = 0; mo < w->nmoments; mo++) {
             keel_rows R = nurse_rows(m, n, w->clocked ? (int)mo : -1);
             keelRuleRows(&R, KEEL_SCOPE_MOMENT);
+            keelRuleRows(&R, KEEL_SCOPE_UNIT);
             if (m->goal == KEEL_GOAL_NEAR && !w->clocked)
                 add_proximity(&R, false, (double)w->max_patients[n]);
         }
@@ -415,6 +438,7 @@ keel_status keel_answer_ilp_goal(const keel_question *q, keel_goal goal, long lo
     m.rcol = keel_calloc(np ? np : 1, sizeof *m.rcol);
     m.rpart = keel_calloc(np ? np : 1, sizeof *m.rpart);
     m.rmost = keel_calloc(np ? np : 1, sizeof *m.rmost);
+    m.ocol = keel_calloc(np ? np : 1, sizeof *m.ocol);
     bool squares = goal == KEEL_GOAL_SQUARES;
     if (squares) {
         m.seg_first = keel_calloc(nn ? nn : 1, sizeof *m.seg_first);
@@ -422,7 +446,8 @@ keel_status keel_answer_ilp_goal(const keel_question *q, keel_goal goal, long lo
     }
     keel_status rc;
     if (!m.lp || !m.class_of || !m.class_size || !m.class_first || !m.next_twin || !m.col ||
-        !m.left || !m.rcol || !m.rpart || !m.rmost || (squares && (!m.seg_first || !m.seg_count)))
+        !m.left || !m.rcol || !m.rpart || !m.rmost || !m.ocol ||
+        (squares && (!m.seg_first || !m.seg_count)))
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
     else
         rc = solve_model(&m, time_limit_ms, nurse_of, res, err);
@@ -436,6 +461,7 @@ keel_status keel_answer_ilp_goal(const keel_question *q, keel_goal goal, long lo
     free(m.rcol);
     free(m.rpart);
     free(m.rmost);
+    free(m.ocol);
     free(m.seg_first);
     free(m.seg_count);
     return rc;

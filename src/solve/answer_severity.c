@@ -43,6 +43,7 @@ typedef struct best_model {
     int *rcol;     /* [npatients]: one nurse's columns, for the rules' rows */
     size_t *rpart; /* [npatients] */
     double *rmost; /* [npatients]: all 1 */
+    int *ocol;     /* [npatients]: another nurse's columns, for the UNIT rules' rows */
 } best_model;
 
 /* True when nurse n is on throughout part p. */
@@ -51,8 +52,10 @@ static bool on_throughout(const keel_workload *w, size_t p, size_t n)
     return w->nurse_start[n] <= w->part_start[p] && w->nurse_end[n] >= w->part_end[p];
 }
 
-/* Nurse n's columns of parts covering moment mo (-1: every part). */
-static keel_rows nurse_rows(best_model *m, size_t n, int mo)
+/* Nurse n's columns of parts covering moment mo (-1: every part) into
+ * col (and, when given, the parts into part and 1 into most); returns how
+ * many. */
+static size_t columns(const best_model *m, size_t n, int mo, int *col, size_t *part, double *most)
 {
     const keel_workload *w = m->w;
     size_t k = 0;
@@ -60,11 +63,26 @@ static keel_rows nurse_rows(best_model *m, size_t n, int mo)
         int j = m->col[p * w->nnurses + n];
         if (!j || (mo >= 0 && (w->first_moment[p] > mo || mo >= w->last_moment[p])))
             continue;
-        m->rcol[k] = j;
-        m->rpart[k] = p;
-        m->rmost[k] = 1.0;
+        col[k] = j;
+        if (part) {
+            part[k] = p;
+            most[k] = 1.0;
+        }
         k++;
     }
+    return k;
+}
+
+static size_t other_columns(const keel_rows *R, size_t n)
+{
+    return columns(R->model, n, R->moment, R->ocol, NULL, NULL);
+}
+
+/* Nurse n's columns of parts covering moment mo (-1: every part). */
+static keel_rows nurse_rows(best_model *m, size_t n, int mo)
+{
+    const keel_workload *w = m->w;
+    size_t k = columns(m, n, mo, m->rcol, m->rpart, m->rmost);
     return (keel_rows){.lp = m->lp,
                        .w = w,
                        .n = n,
@@ -74,7 +92,10 @@ static keel_rows nurse_rows(best_model *m, size_t n, int mo)
                        .part = m->rpart,
                        .most = m->rmost,
                        .soft = true,
-                       .census = (double)w->npatients};
+                       .census = (double)w->npatients,
+                       .others = other_columns,
+                       .ocol = m->ocol,
+                       .model = m};
 }
 
 /* Builds the model; returns the column of U. */
@@ -105,6 +126,7 @@ static int build(best_model *m)
         for (size_t mo = 0; mo < w->nmoments; mo++) {
             keel_rows R = nurse_rows(m, n, w->clocked ? (int)mo : -1);
             keelRuleRows(&R, KEEL_SCOPE_MOMENT);
+            keelRuleRows(&R, KEEL_SCOPE_UNIT);
         }
         keel_rows all = nurse_rows(m, n, -1);
         keelRuleRows(&all, KEEL_SCOPE_SHIFT);
@@ -140,8 +162,9 @@ keel_status keel_answer_severity_plan(const keel_roster *r, const keel_workload 
     m.rcol = keel_calloc(np, sizeof *m.rcol);
     m.rpart = keel_calloc(np, sizeof *m.rpart);
     m.rmost = keel_calloc(np, sizeof *m.rmost);
+    m.ocol = keel_calloc(np, sizeof *m.ocol);
     keel_status rc = KEEL_OK;
-    if (!m.lp || !m.col || !m.rcol || !m.rpart || !m.rmost) {
+    if (!m.lp || !m.col || !m.rcol || !m.rpart || !m.rmost || !m.ocol) {
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }
@@ -165,6 +188,7 @@ out:
     free(m.rcol);
     free(m.rpart);
     free(m.rmost);
+    free(m.ocol);
     return rc;
 }
 

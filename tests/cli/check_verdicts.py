@@ -82,10 +82,13 @@ def recount(d, violations):
     needs = d.get("staffing_needs") or {}
     ward = needs.get("ward_minimum", -1)
     taking = d["staffing"]["nurses_taking_patients"]
-    limits = [v for v in violations if v["rule"] in STAFFING]
+    # A break without cover is counted once, with the break plan; each
+    # break_cover finding of the plan check is one of the flagged breaks.
+    cover = [v for v in violations if v["rule"] == "break_cover"]
+    limits = [v for v in violations if v["rule"] in STAFFING and v["rule"] != "break_cover"]
     return {
         "limits_broken": len(limits),
-        "rules_broken": len(violations) - len(limits),
+        "rules_broken": len(violations) - len(limits) - len(cover),
         "breaks": len(held),
         "breaks_uncovered": len(flags),
         "overloaded": len(over),
@@ -110,6 +113,11 @@ def judge(name, cmd, d, violations, text_report, yaml_report):
             want["ward_short"]
         expect = "short" if short else "rules_broken" if want["rules_broken"] else "enough"
         ok(v["kind"] == expect, f"{name} {cmd}: verdict '{v['kind']}', the figures say '{expect}'")
+    flagged = {b["nurse"] for b in d.get("break_cover", []) if b.get("flag")}
+    for f in violations:
+        if f["rule"] == "break_cover":
+            ok(set(f["nurses"]) <= flagged,
+               f"{name} {cmd}: the break_cover finding of {f['nurses']} is a flagged break")
     ok(flat(text_verdict(text_report) or "") == flat(v["text"]),
        f"{name} {cmd}: text says the json's words")
     kind, words = yaml_verdict(yaml_report) if yaml_report is not None else (v["kind"], v["text"])

@@ -399,5 +399,25 @@ sed 's/roles: {charge: {max_patients: 2, max_acuity: 2}}/roles: {charge: {max_pa
 expect 3 "no nurse's role takes acuity 4" -- "$keel" assign "$work/role-acuity-none.yaml"
 has "$work/err" "[role_acuity] P1 is acuity 4; no nurse on shift may take it" "the diagnosis names the roles' acuity caps"
 
+# Break cover inside the plan: keel's plan keeps each buddy within the limit
+# during the break; a plan that does not is named; a break nobody can cover
+# is diagnosed before the shift, naming the break.
+expect 0 "assign keeps break cover" -- "$keel" assign "$data/break-cover.yaml" --format yaml -o "$work/break-cover-plan.yaml"
+expect 0 "keel's plan with break cover checks clean" -- "$keel" check "$work/break-cover-plan.yaml"
+has "$work/out" "The plan keeps every rule keel checks." "no break_cover in keel's own plan"
+has "$work/out" "breaks flagged: 0" "no break flagged in keel's own plan"
+expect 0 "check a plan that breaks a buddy's cover" -- "$keel" check "$data/break-cover.yaml"
+has "$work/out" "[break_cover] from 11:00 to 11:30, A is on break and B (buddy) holds 6 patients with hers: exceeds the limit of 1:5" "check names the break and its cover"
+has "$work/out" "Short: this plan leaves 1 break without cover within the limit." "the verdict counts the break once"
+sed 's/, covers: B}/}/' "$data/break-cover.yaml" > "$work/break-no-buddy.yaml"
+expect 3 "a break nobody can cover" -- "$keel" assign "$work/break-no-buddy.yaml"
+has "$work/err" "[break_cover] no buddy or relief nurse is free to cover B's break 13:00-13:30" "the diagnosis names the break without cover"
+last_line_is_caution "$work/err" "the exit-3 reasons end with the caution"
+expect 3 "a break nobody can cover, best effort" -- "$keel" assign "$work/break-no-buddy.yaml" --best-effort
+has "$work/out" "[break_cover] from 13:00 to 13:30, B is on break holding 2 patients and nobody is free to cover her" "the best-effort plan names the break it leaves without cover"
+sed 's/  - {id: p7, acuity: 1, nurse: C}/  - {id: p7, acuity: 1, nurse: C}\n  - {id: p8, acuity: 1, nurse: C}\n  - {id: p9, acuity: 1, nurse: C}\n  - {id: p10, acuity: 1, nurse: C}\n  - {id: p11, acuity: 1, nurse: C}/' "$data/break-cover.yaml" > "$work/break-too-full.yaml"
+expect 3 "breaks that cannot be covered within the limit" -- "$keel" assign "$work/break-too-full.yaml"
+has "$work/err" "cannot be covered within the limit: at 11:00" "the diagnosis names the break the count rules out"
+
 echo "1..$n"
 [ "$failed" -eq 0 ]

@@ -29,6 +29,11 @@ start; every interval half-open):
                 each moment each nurse's parts covering it keep every count
                 rule (patient limit with the table, "1:N", high acuity,
                 isolation separation, max_zones)
+  break cover each timed break gets a cover from the break plan
+                (break_plan below, as docs/model.md states it); during a
+                kept cover the nurse on break and her cover hold at most
+                the limit together at every moment (nobody: she holds none);
+                the moments are also cut at the kept covers' edges
   care        C_present = ceil(C (b - a) / shift.minutes); the part [s, e)
                 of [a, b) carries ceil(C_present (e - a) / (b - a))
                 - ceil(C_present (s - a) / (b - a)); extras in full on the
@@ -240,7 +245,11 @@ def derive_clock(doc):
         index[nid] = len(nurses)
         nurses.append({"id": nid, "role": role, "s": s, "e": e, "capacity": cap,
                        "duty": int(duty), "limit": limit, "counted": counted,
-                       "skills": set(n.get("skills") or [])})
+                       "skills": set(n.get("skills") or []),
+                       "breaks": [(offset(b["at"], what + ".breaks.at", False),
+                                   offset(b["at"], what + ".breaks.at", False) + b["minutes"])
+                                  for b in breaks or []],
+                       "covers": None if n.get("covers") is None else str(n["covers"])})
 
     iso_needs = policy.get("isolation_needs") or {}
     ha = policy.get("high_acuity")
@@ -301,15 +310,19 @@ def derive_clock(doc):
             parts.append({"person": i, "s": s, "e": e, "care": care, "k": k})
     elig = [[j for j in range(len(nurses)) if not part_pair_violations_r(
         nurses, people, parts, q, j)] for q in range(len(parts))]
-    # Moments: the shift cut at every arrival, departure, start and end.
+    covers = break_plan(nurses, table, len(people))
+    # Moments: the shift cut at every arrival, departure, start and end, and
+    # at the edges of every kept break cover.
     points = sorted({0, L} | {x["a"] for x in people} | {x["b"] for x in people}
-                    | {n["s"] for n in nurses} | {n["e"] for n in nurses})
+                    | {n["s"] for n in nurses} | {n["e"] for n in nurses}
+                    | {t for c in covers if c["kept"] for t in (c["a"], c["b"])})
     moments = list(zip(points, points[1:]))
     cover = [[q for q, pt in enumerate(parts) if pt["s"] <= t0 and t1 <= pt["e"]]
              for t0, t1 in moments]
     return {
         "L": L, "start": start, "nurses": nurses, "people": people, "parts": parts,
         "eligible": elig, "moments": moments, "cover": cover, "clock": clock, "table": table,
+        "covers": covers,
         "high_max": None if ha is None else int(ha["max_per_nurse"]),
         "separation": bool(policy.get("isolation_separation", True)),
         "max_zones": policy.get("max_zones"),
@@ -317,6 +330,80 @@ def derive_clock(doc):
         "stage3": any(p.get("previous_nurse") is not None for p, _, _ in listed),
         "stage4": any(x["zone"] is not None or x["room"] is not None for x in people),
     }
+
+
+def break_plan(nurses, table, census):
+    """The break plan, as docs/model.md ("Break cover") states it: every
+    timed break in time order (ties by nurse, then break); first the breaks
+    of nurses with no free buddy get the first free relief nurse not
+    already covering an overlapping break (else nobody), then the others
+    get such a relief nurse, else the first free buddy.  A nurse is free
+    when on throughout the break and on no overlapping break of her own.
+    The limit is the table's, else the cover's patient limit (a relief
+    nurse's at least the breaking nurse's); a cover is kept when the roster
+    names a buddy or a relief nurse, the nurse takes patients, and either
+    nobody covers or the two limits add up to more than a limit below the
+    census.  Returns [{"j", "a", "b", "cover", "relief", "limit", "kept"}]."""
+    def eff(n):
+        return census if n["limit"] is None else min(n["limit"], census)
+
+    def overlap(a, b, s, e):
+        return a < e and s < b
+
+    def free(i, a, b):
+        n = nurses[i]
+        return n["s"] <= a and b <= n["e"] and not any(overlap(a, b, s, e)
+                                                       for s, e in n["breaks"])
+
+    out = [{"j": j, "a": a, "b": b, "cover": None, "relief": False}
+           for j, n in enumerate(nurses) for a, b in n["breaks"]]
+    order = sorted(range(len(out)), key=lambda k: (out[k]["a"], out[k]["j"], k))
+
+    def buddy(c):
+        for i, n in enumerate(nurses):
+            if i != c["j"] and n["covers"] == nurses[c["j"]]["id"] and free(i, c["a"], c["b"]):
+                return i
+        return None
+
+    def relief(c):
+        for i, n in enumerate(nurses):
+            if n["role"] != "relief" or not free(i, c["a"], c["b"]):
+                continue
+            if not any(o["relief"] and o["cover"] == i and overlap(c["a"], c["b"], o["a"], o["b"])
+                       for o in out):
+                return i
+        return None
+
+    for first in (True, False):
+        for k in order:
+            c = out[k]
+            b = buddy(c)
+            if (b is None) != first:
+                continue
+            c["cover"] = relief(c)
+            c["relief"] = c["cover"] is not None
+            if c["cover"] is None:
+                c["cover"] = b
+    planned = any(n["covers"] is not None or n["role"] == "relief" for n in nurses)
+    for c in out:
+        mine = eff(nurses[c["j"]])
+        if table is not None:
+            c["limit"] = table
+        elif c["cover"] is None:
+            c["limit"] = mine
+        else:
+            c["limit"] = eff(nurses[c["cover"]])
+            if c["relief"]:
+                c["limit"] = max(c["limit"], mine)
+        theirs = 0 if c["cover"] is None else eff(nurses[c["cover"]])
+        c["kept"] = planned and mine > 0 and (
+            c["cover"] is None or (mine + theirs > c["limit"] and c["limit"] < census))
+    return out
+
+
+def cover_bound(c):
+    """The most a nurse on break and her cover hold together: 0 without one."""
+    return 0 if c["cover"] is None else c["limit"]
 
 
 def part_care(present, a, b, s, e):
@@ -382,6 +469,15 @@ def violations(r, plan):
             for _, text in highs_model.count_breaks(r, n, [people[i] for i in ps]):
                 out.append(("moment_limit", "nurse %s %s at %s" % (n["id"], text,
                                                                     at_text(r, t0))))
+        for c in r["covers"]:
+            if not (c["kept"] and c["a"] <= t0 and t1 <= c["b"]):
+                continue
+            together = len(held.get(c["j"], [])) + (
+                0 if c["cover"] is None else len(held.get(c["cover"], [])))
+            if together > cover_bound(c):
+                out.append(("break_cover", "nurse %s on break at %s: %d patients with her "
+                            "cover, at most %d" % (nurses[c["j"]]["id"], at_text(r, t0),
+                                                   together, cover_bound(c))))
     return out
 
 
@@ -455,6 +551,20 @@ class ClockModel(highs_model._Milp):
                             for k in ks_z:
                                 self.row([(k, 1.0), (v, -1.0)], hi=0.0)
                         self.row([(v, 1.0) for v in zcols], hi=r["max_zones"])
+
+        # Break cover: the nurse on break and her cover within the limit at
+        # every moment of the break.
+        for c in r["covers"]:
+            if not c["kept"]:
+                continue
+            for m, (t0, t1) in enumerate(r["moments"]):
+                if not (c["a"] <= t0 and t1 <= c["b"]):
+                    continue
+                who = [c["j"]] + ([] if c["cover"] is None else [c["cover"]])
+                terms = [(self.xof[(q, j)], 1.0) for q in r["cover"][m] for j in who
+                         if (q, j) in self.xof]
+                if terms:
+                    self.row(terms, hi=float(cover_bound(c)))
 
     def care_terms(self, j):
         return [(k, float(self.r["parts"][q]["care"])) for (q, jj), k in self.xof.items()
@@ -618,6 +728,16 @@ def _nurses(rng, doc, count):
         if i > 0 and rng.random() < 0.15:
             n["covers"] = "RN%d" % rng.randint(1, i)
         nurses.append(n)
+    if count > 1 and rng.random() < 0.35:
+        # Break cover planned: a timed break for every nurse, staggered by
+        # half an hour, each covering the nurse before her in a ring.
+        for i, n in enumerate(nurses):
+            s = clock_of(n.get("start", doc["shift"]["start"]), "start")
+            s = (s - clock_of(doc["shift"]["start"], "shift.start")) % DAY_MINUTES
+            n["breaks"] = [{"at": _at(doc, s + 150 + 30 * (i % 4)), "minutes": 30}]
+            n.pop("break_minutes", None)
+            n.pop("minutes", None)
+            n["covers"] = nurses[i - 1]["id"]
     return nurses
 
 
@@ -1398,6 +1518,15 @@ def check_one(job):
                       "L": ref["lift"]["value"] if ref["lift"] else None,
                       "proven": bool(ref["feasible"]) and ref["peak"]["status"] == "optimal"
                       and ref["lift"]["status"] == "optimal", "brute": False}
+        kept = [c for c in r["covers"] if c["kept"]]
+        out["ref"]["covers"] = len(kept)
+        if kept:
+            # Does break cover change the answer?  The same roster with
+            # no cover kept, solved again.
+            loose = dict(r, covers=[dict(c, kept=False) for c in r["covers"]])
+            free = solve_clock(loose, highs_seconds, share)
+            out["ref"]["cover_binds"] = (free["feasible"] != ref["feasible"]) or (
+                bool(ref["feasible"]) and free["peak"]["value"] != ref["peak"]["value"])
         if kind is not None and ref["feasible"] is not False:
             out["problems"].append("REFERENCE: made infeasible by %s, HiGHS says %s"
                                    % (kind, ref["feasible"]))
@@ -1522,6 +1651,9 @@ def main(argv=None):
                              sum(1 for x in gen if x["ref"] and x["ref"].get("brute")
                                  and x["ref"]["feasible"]),
                              sum(1 for x in gen if x["ref"] and x["ref"]["feasible"] is False)))
+    print("# break cover: %d rosters keep covers; on %d of them the covers change the "
+          "reference's answer" % (sum(1 for x in gen if x["ref"] and x["ref"].get("covers")),
+                                  sum(1 for x in gen if x["ref"] and x["ref"].get("cover_binds"))))
     if keel is not None:
         print("# keel reported optimal on %d of them"
               % sum(1 for x in gen if x["keel"] and x["keel"]["status"] == "optimal"))
