@@ -107,6 +107,7 @@ typedef struct keel_rule_spare {
     signed char *none; /* [npatients]: no isolation side */
     long long *no_cap; /* [nnurses]: no care cap */
     int *no_min;       /* [nnurses]: no fewest patients */
+    struct keel_cover *covers; /* [ncovers]: the break plan, for dropping covers one by one */
 } keel_rule_spare;
 
 typedef struct keel_rule {
@@ -159,6 +160,15 @@ typedef struct keel_rule {
     char *(*say)(const keel_roster *r, const keel_workload *w);
     char *(*conflict)(const keel_roster *r, const keel_workload *w, const char *tail,
                       size_t nothers);
+
+    /* Pieces: a rule made of separate constraints (break cover: one per
+     * kept cover) can be relaxed one piece at a time, so that the
+     * diagnosis names the pieces in conflict.  pieces gives how many;
+     * keep_piece switches piece i on or off in a copy that borrows
+     * spare's arrays (the first call makes the copy borrow them) and
+     * returns whether it was on. */
+    size_t (*pieces)(const keel_workload *w);
+    bool (*keep_piece)(keel_workload *copy, size_t i, bool keep, const keel_rule_spare *spare);
 
     /* Alikeness.  order: what the rule reads of patients a and b, 0 when
      * they are alike to it, else an order (for sorting twins together);

@@ -12,6 +12,7 @@
  *                   limit the table sets, else 50
  */
 #include <stdlib.h>
+#include <string.h>
 
 #include "alloc.h"
 #include "finding_list.h"
@@ -140,6 +141,26 @@ static void relax(keel_workload *copy, const keel_rule_spare *spare)
     copy->nkept = 0;
 }
 
+static size_t pieces(const keel_workload *w)
+{
+    return w->ncovers;
+}
+
+/* Piece i is cover i: dropping it leaves the break unplanned in the copy. */
+static bool keep_piece(keel_workload *copy, size_t i, bool keep, const keel_rule_spare *spare)
+{
+    if (copy->covers != spare->covers) {
+        memcpy(spare->covers, copy->covers, copy->ncovers * sizeof *copy->covers);
+        copy->covers = spare->covers;
+    }
+    bool was = copy->covers[i].kept;
+    if (was != keep) {
+        copy->covers[i].kept = keep;
+        copy->nkept = keep ? copy->nkept + 1 : copy->nkept - 1;
+    }
+    return was;
+}
+
 static char *say(const keel_roster *r, const keel_workload *w)
 {
     (void)r;
@@ -245,10 +266,10 @@ static char *conflict(const keel_roster *r, const keel_workload *w, const char *
     }
     free(none);
     char *some = list_covers(r, w, false, &n);
-    char *text = some ? keel_asprintf("no assignment keeps the nurses on break and their covers "
-                                      "within the limit during %s%s; relaxing break cover makes "
-                                      "one possible",
-                                      some, tail)
+    char *text = some ? keel_asprintf("no assignment keeps %s on break and her cover within the "
+                                      "limit during %s%s; add a relief nurse or move %s",
+                                      n == 1 ? "the nurse" : "each nurse", some, tail,
+                                      n == 1 ? "the break" : "one of these breaks")
                       : NULL;
     free(some);
     return text;
@@ -277,6 +298,8 @@ const keel_rule keel_rule_break_cover = {
     .relax = relax,
     .say = say,
     .conflict = conflict,
+    .pieces = pieces,
+    .keep_piece = keep_piece,
     .nurses_alike = nurses_alike,
     .held_alike = held_alike,
 };

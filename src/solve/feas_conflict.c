@@ -10,7 +10,9 @@
  * can be relaxed and binds is relaxed one at a time (a deletion filter): a
  * rule whose relaxation still leaves no assignment is dropped for good; the
  * rules left conflict with each other and with the eligibility and limits,
- * and relaxing any one of them makes an assignment possible.  Each is
+ * and relaxing any one of them makes an assignment possible.  A rule made
+ * of pieces (break cover: one per kept cover) is then filtered piece by
+ * piece, so that its words name only the pieces in conflict.  Each is
  * reported in the rule's own plain words (its entry's conflict()), with
  * what is short when the rule can tell.
  */
@@ -119,6 +121,34 @@ static char *words_for(const keel_roster *r, const keel_workload *w, size_t i, c
     return rule->conflict(r, w, tail, nothers);
 }
 
+/* Drops rule i's pieces one at a time from a copy of w with the rules not
+ * in keep relaxed; a piece whose dropping still leaves no assignment stays
+ * dropped.  *out is that copy (its pieces those in conflict). */
+static keel_status filter_pieces(const keel_workload *w, size_t i, const bool *keep,
+                                 const keel_rule_spare *sp, long long deadline_ms, int *trial,
+                                 keel_workload *out, keel_error *err)
+{
+    const keel_rule *rule = keel_rules[i];
+    keel_workload test = relaxed(w, keep, sp);
+    size_t n = rule->pieces(w);
+    for (size_t j = 0; j < n; j++) {
+        if (!rule->keep_piece(&test, j, false, sp))
+            continue; /* not on: nothing to drop */
+        keelRuleFlags(&test);
+        long long until =
+            keel_budget_until(KEEL_SHARE_CONFLICT, keel_budget_now(), deadline_ms, n - j);
+        keel_answer answer;
+        keel_status rc = keel_answer_valid(&test, until, trial, &answer, err);
+        if (rc)
+            return rc;
+        if (answer != KEEL_ANSWER_NO)
+            rule->keep_piece(&test, j, true, sp);
+    }
+    keelRuleFlags(&test);
+    *out = test;
+    return KEEL_OK;
+}
+
 keel_status keel_feas_conflict(const keel_roster *r, const keel_workload *w, long long deadline_ms,
                                keel_findings *out, keel_error *err)
 {
@@ -130,8 +160,9 @@ keel_status keel_feas_conflict(const keel_roster *r, const keel_workload *w, lon
     size_t *nidx = keel_malloc((nn ? nn : 1) * sizeof *nidx);
     keel_status rc = KEEL_OK;
     keel_rule_spare sp = {census, none, keel_malloc((nn ? nn : 1) * sizeof *sp.no_cap),
-                          keel_calloc(nn ? nn : 1, sizeof *sp.no_min)};
-    if (!census || !none || !trial || !pidx || !nidx || !sp.no_cap || !sp.no_min) {
+                          keel_calloc(nn ? nn : 1, sizeof *sp.no_min),
+                          keel_calloc(w->ncovers ? w->ncovers : 1, sizeof *sp.covers)};
+    if (!census || !none || !trial || !pidx || !nidx || !sp.no_cap || !sp.no_min || !sp.covers) {
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }
@@ -162,6 +193,18 @@ keel_status keel_feas_conflict(const keel_roster *r, const keel_workload *w, lon
         keep[i] = answer != KEEL_ANSWER_NO;
         unsure[i] = answer == KEEL_ANSWER_UNKNOWN;
     }
+    /* A rule made of pieces, needed for the conflict: its pieces in turn
+     * (a deletion filter again), so that its words name only the pieces
+     * in conflict. */
+    keel_workload named[KEEL_NRULES];
+    for (size_t i = 0; i < KEEL_NRULES; i++) {
+        named[i] = *w;
+        if (keep[i] && !unsure[i] && keel_rules[i]->pieces) {
+            rc = filter_pieces(w, i, keep, &sp, deadline_ms, trial, &named[i], err);
+            if (rc)
+                goto out;
+        }
+    }
     size_t nkept = 0, k = 0;
     for (size_t i = 0; i < KEEL_NRULES; i++)
         nkept += keep[i];
@@ -171,7 +214,7 @@ keel_status keel_feas_conflict(const keel_roster *r, const keel_workload *w, lon
     for (size_t i = 0; i < KEEL_NRULES && !rc; i++) {
         if (!keep[i])
             continue;
-        char *message = words_for(r, w, i, keep, unsure[i]);
+        char *message = words_for(r, &named[i], i, keep, unsure[i]);
         if (!message) {
             rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
             break;
@@ -187,6 +230,7 @@ out:
     free(none);
     free(sp.no_cap);
     free(sp.no_min);
+    free(sp.covers);
     free(trial);
     free(pidx);
     free(nidx);

@@ -417,7 +417,10 @@ expect 3 "a break nobody can cover, best effort" -- "$keel" assign "$work/break-
 has "$work/out" "[break_cover] from 13:00 to 13:30, B is on break holding 2 patients and nobody is free to cover her" "the best-effort plan names the break it leaves without cover"
 sed 's/  - {id: p7, acuity: 1, nurse: C}/  - {id: p7, acuity: 1, nurse: C}\n  - {id: p8, acuity: 1, nurse: C}\n  - {id: p9, acuity: 1, nurse: C}\n  - {id: p10, acuity: 1, nurse: C}\n  - {id: p11, acuity: 1, nurse: C}/' "$data/break-cover.yaml" > "$work/break-too-full.yaml"
 expect 3 "breaks that cannot be covered within the limit" -- "$keel" assign "$work/break-too-full.yaml"
-has "$work/err" "cannot be covered within the limit: at 11:00" "the diagnosis names the break the count rules out"
+has "$work/err" "C's break 12:00-12:30 cannot be covered within the limit: at 12:00 the other nurses on may hold only so many that C and A (buddy) would hold 6 patients together, limit 5" "the diagnosis names one break the count rules out"
+expect 3 "break covers in conflict" -- "$keel" assign "$data/break-cover-pieces.yaml"
+has "$work/err" "during A's break 11:00-11:30 (buddy B), B's break 13:00-13:30 (buddy C), C's break 12:00-12:30 (buddy A); add a relief nurse or move one of these breaks" "the diagnosis names the breaks in conflict"
+if grep -qF "D's break" "$work/err"; then not_ok "the diagnosis leaves out the break not in conflict"; else ok "the diagnosis leaves out the break not in conflict"; fi
 
 echo "1..$n"
 [ "$failed" -eq 0 ]
