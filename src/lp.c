@@ -23,11 +23,20 @@
 
 #include "alloc.h"
 
-/* GLPK's own memory per solve, in megabytes: far above what a unit's model
+/* GLPK's own memory per solve, in megabytes, unless the solve asks for
+ * another figure (keel_lp_set_memory()): far above what a unit's model
  * needs (a 200-patient floor's largest model uses a few MB), low enough
  * that a runaway search ends as a solver failure instead of exhausting the
  * machine. */
 #define LP_MEM_LIMIT_MB 2048
+
+/* The limit for the solves this thread starts; 0: LP_MEM_LIMIT_MB. */
+static _Thread_local int memory_mb;
+
+void keel_lp_set_memory(int mb)
+{
+    memory_mb = mb > 0 ? mb : 0;
+}
 
 struct keel_lp {
     bool maximise;
@@ -223,6 +232,9 @@ typedef struct job {
     bool start_given;
     int ret;     /* GLPK's return code when it failed, else 0 */
     bool faulty; /* GLPK hit a fatal error */
+    int mem_mb;  /* GLPK's memory limit for this solve */
+    char said[160]; /* the last line GLPK printed (its words on a fatal error) */
+    bool memory;    /* GLPK said it reached its memory limit */
     jmp_buf env;
 } job;
 
@@ -232,11 +244,23 @@ static void on_glpk_error(void *info)
 }
 
 /* GLPK prints on a fatal error even with its terminal output off: nothing
- * of it reaches keel's caller's terminal. */
+ * of it reaches keel's caller's terminal; the last line is kept for keel's
+ * own message. */
 static int swallow(void *info, const char *text)
 {
-    (void)info;
-    (void)text;
+    job *J = info;
+    /* "glp_alloc: memory allocation limit exceeded" (GLPK 5.0) */
+    if (J && text && strstr(text, "memory") && strstr(text, "limit"))
+        J->memory = true;
+    if (J && text) {
+        size_t len = strcspn(text, "\n");
+        if (len > 0) {
+            if (len >= sizeof J->said)
+                len = sizeof J->said - 1;
+            memcpy(J->said, text, len);
+            J->said[len] = '\0';
+        }
+    }
     return 1;
 }
 
@@ -359,11 +383,11 @@ static void run(job *J, bool own_env)
         glp_free_env();
         return;
     }
-    glp_term_hook(swallow, NULL);
+    glp_term_hook(swallow, J);
     glp_term_out(GLP_OFF);
     glp_error_hook(on_glpk_error, J);
     if (own_env)
-        glp_mem_limit(LP_MEM_LIMIT_MB);
+        glp_mem_limit(J->mem_mb);
     glp_prob *P = load(J->lp);
     solve_loaded(J, P);
     glp_delete_prob(P);
@@ -396,7 +420,10 @@ keel_status keel_lp_solve(keel_lp *lp, long time_limit_ms, const double *start,
     lp->x = keel_calloc((size_t)lp->ncols + 1, sizeof *lp->x);
     if (!lp->x)
         return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
-    job J = {.lp = lp, .time_limit_ms = time_limit_ms, .start = start};
+    job J = {.lp = lp,
+             .time_limit_ms = time_limit_ms,
+             .start = start,
+             .mem_mb = memory_mb ? memory_mb : LP_MEM_LIMIT_MB};
     J.res.outcome = KEEL_LP_UNKNOWN;
     if (glp_config("TLS")) {
         pthread_t thread;
@@ -413,9 +440,15 @@ keel_status keel_lp_solve(keel_lp *lp, long time_limit_ms, const double *start,
             glp_term_out(was);
         pthread_mutex_unlock(&shared_env);
     }
+    if (J.faulty && J.memory)
+        return keel_error_add(err, KEEL_ERR_SOLVER, NULL, 0, 0, NULL,
+                              "the integer programming solver (GLPK) reached its memory limit "
+                              "of %d MiB; the roster is too large for one solve at this limit",
+                              J.mem_mb);
     if (J.faulty)
         return keel_error_add(err, KEEL_ERR_SOLVER, NULL, 0, 0, NULL,
-                              "the integer programming solver (GLPK) failed");
+                              "the integer programming solver (GLPK) failed%s%s",
+                              J.said[0] ? ": " : "", J.said);
     if (J.ret)
         return keel_error_add(err, KEEL_ERR_SOLVER, NULL, 0, 0, NULL,
                               "the integer programming solver (GLPK) stopped with code %d", J.ret);

@@ -95,6 +95,11 @@ typedef struct keel_lp_result {
  * at its first heuristic call.  The solution's column values are then read
  * with keel_lp_value().  Statuses: KEEL_OK (see res->outcome),
  * KEEL_ERR_NOMEM, KEEL_ERR_SOLVER (GLPK failed: a message in err). */
+/* GLPK's memory limit, in MiB, for the solves this thread starts from now
+ * on; 0 (or less) restores the default, 2048.  A solve that reaches it
+ * fails with KEEL_ERR_SOLVER and says so. */
+void keel_lp_set_memory(int mb);
+
 keel_status keel_lp_solve(keel_lp *lp, long time_limit_ms, const double *start,
                           keel_lp_result *res, keel_error *err);
 

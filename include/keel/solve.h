@@ -55,6 +55,9 @@ typedef struct keel_solve_options {
     long time_limit_ms; /* whole solve; <= 0 means the default, 10 000 ms */
     bool best_effort;   /* when no valid assignment exists, find the plan that breaks the
                            fewest rules by severity (status stays INFEASIBLE) */
+    int solver_memory_mb; /* the most memory one GLPK solve may use, in MiB; <= 0: the
+                             default, 2048.  Reaching it fails the solve with
+                             KEEL_ERR_SOLVER, saying so */
 } keel_solve_options;
 
 /* What one stage achieved.  For "peak" and "lift" value and bound are

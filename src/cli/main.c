@@ -406,7 +406,7 @@ static int write_report(const options *opt, const keel_report *rep)
     keel_error_fini(&err);
     bool written = cli_output_close(&out, rc == KEEL_OK);
     if (rc)
-        return exit_code(rc);
+        return rc == KEEL_ERR_IO ? EXIT_INTERNAL : exit_code(rc); /* the output, not the input */
     return written ? 0 : EXIT_INTERNAL;
 }
 
@@ -426,13 +426,25 @@ static bool known_method(const char *method)
     return false;
 }
 
+/* KEEL_SOLVER_MEMORY_MB: GLPK's memory limit per solve, in MiB (keel(1),
+ * ENVIRONMENT); 0 (the default, 2048) when unset or not a whole number
+ * above 0. */
+static int solver_memory(void)
+{
+    const char *v = getenv("KEEL_SOLVER_MEMORY_MB");
+    char *end;
+    long mb = v ? strtol(v, &end, 10) : 0;
+    return v && *v && !*end && mb > 0 && mb <= 1048576 ? (int)mb : 0;
+}
+
 static int run_assign(const options *opt)
 {
     state s = {0};
     keel_error_init(&s.err);
     keel_solve_options so = {.method = opt->method,
                              .time_limit_ms = opt->time_limit_ms,
-                             .best_effort = opt->best_effort};
+                             .best_effort = opt->best_effort,
+                             .solver_memory_mb = solver_memory()};
     if (cli_output_clobbers(opt->output, opt->roster))
         return EXIT_USAGE;
     keel_status rc = load(&s, opt);
@@ -503,7 +515,8 @@ static int run_check(const options *opt)
 {
     state s = {0};
     keel_error_init(&s.err);
-    keel_solve_options so = {.time_limit_ms = opt->time_limit_ms};
+    keel_solve_options so = {.time_limit_ms = opt->time_limit_ms,
+                             .solver_memory_mb = solver_memory()};
     keel_status rc = load(&s, opt);
     bool complete = false, partial = false;
     if (!rc && !has_patients("check", opt, s.roster)) {
@@ -571,7 +584,7 @@ static int write_out(const options *opt, const char *input,
     keel_error_fini(&err);
     bool written = cli_output_close(&out, rc == KEEL_OK);
     if (rc)
-        return exit_code(rc);
+        return rc == KEEL_ERR_IO ? EXIT_INTERNAL : exit_code(rc); /* the output, not the input */
     return written ? 0 : EXIT_INTERNAL;
 }
 

@@ -4,6 +4,9 @@
  * target and renamed into place, so a reader never sees half a report and a
  * failed run leaves the old file as it was.  Never writes over the input.
  * The file gets the mode the umask gives a new file, as if opened directly.
+ * A path that names something other than a regular file (a device, a pipe,
+ * a symbolic link such as /dev/stdout) is written straight, through the
+ * link: replacing it would put a file where the device or link was.
  */
 #include "output.h"
 
@@ -45,6 +48,19 @@ int cli_output_open(cli_output *o, const char *path, const char *input)
         return 1;
     }
     size_t len = strlen(path);
+    struct stat st;
+    if (lstat(path, &st) == 0 && !S_ISREG(st.st_mode)) {
+        o->path = malloc(len + 1);
+        o->stream = o->path ? fopen(path, "w") : NULL;
+        if (!o->stream) {
+            fprintf(stderr, "keel: %s: %s\n", path, o->path ? strerror(errno) : "out of memory");
+            free(o->path);
+            *o = (cli_output){0};
+            return 4;
+        }
+        memcpy(o->path, path, len + 1);
+        return 0;
+    }
     o->path = malloc(len + 1);
     o->tmp_path = malloc(len + sizeof ".tmp-XXXXXX");
     if (!o->path || !o->tmp_path) {
@@ -91,12 +107,17 @@ bool cli_output_close(cli_output *o, bool commit)
     bool ok = true;
     if (!o->stream)
         return false;
-    if (fflush(o->stream) != 0 || ferror(o->stream)) {
-        fprintf(stderr, "keel: %s: write failed: %s\n", o->path ? o->tmp_path : "standard output",
+    if (fflush(o->stream) != 0 || ferror(o->stream) ||
+        (o->tmp_path && fsync(fileno(o->stream)) != 0)) {
+        fprintf(stderr, "keel: %s: write failed: %s\n",
+                o->tmp_path ? o->tmp_path : o->path ? o->path : "standard output",
                 strerror(errno));
         ok = false;
     }
-    if (o->path) {
+    if (o->path && !o->tmp_path) {
+        if (fclose(o->stream) != 0)
+            ok = false;
+    } else if (o->path) {
         if (fclose(o->stream) != 0)
             ok = false;
         if (ok && commit && rename(o->tmp_path, o->path) != 0) {

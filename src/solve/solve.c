@@ -23,6 +23,7 @@
 #include "budget.h"
 #include "feas.h"
 #include "heur.h"
+#include "lp.h"
 #include "measure.h"
 #include "stage.h"
 #include "zone.h"
@@ -240,6 +241,7 @@ keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
     keel_solution *s = keel_calloc(1, sizeof *s);
     if (!s)
         return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    keel_lp_set_memory(options ? options->solver_memory_mb : 0);
     s->method = method->name;
     s->npatients = w->npatients;
     s->nurse_of = keel_calloc(w->npatients, sizeof *s->nurse_of);
@@ -313,6 +315,7 @@ infeasible:
                 s->nurse_of[p] = -1;
     }
 out:
+    keel_lp_set_memory(0);
     s->seconds = (double)(keel_budget_now() - started) / 1000.0;
     if (rc)
         keel_solution_free(s);

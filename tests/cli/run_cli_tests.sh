@@ -422,5 +422,37 @@ expect 3 "break covers in conflict" -- "$keel" assign "$data/break-cover-pieces.
 has "$work/err" "during A's break 11:00-11:30 (buddy B), B's break 13:00-13:30 (buddy C), C's break 12:00-12:30 (buddy A); add a relief nurse or move one of these breaks" "the diagnosis names the breaks in conflict"
 if grep -qF "D's break" "$work/err"; then not_ok "the diagnosis leaves out the break not in conflict"; else ok "the diagnosis leaves out the break not in conflict"; fi
 
+# GLPK is bounded: a solve that reaches its memory limit is a clean exit 4
+# that says so.  A 301-patient roster with no valid plan: the best-effort
+# model is an integer programme of 12 000 binaries, far over 1 MiB.
+{
+    printf 'version: 1\nshift: {minutes: 720}\npolicy: {max_patients: 8}\nnurses:\n'
+    for i in $(seq 1 40); do echo "  - {id: N$i}"; done
+    echo "patients:"
+    echo "  - {id: P0, care_minutes: 100, needs: [ecmo]}"
+    for i in $(seq 1 300); do echo "  - {id: P$i, care_minutes: $((30 + i % 370))}"; done
+} > "$work/big.yaml"
+expect 4 "GLPK at its memory limit" -- env KEEL_SOLVER_MEMORY_MB=1 "$keel" assign "$work/big.yaml" --best-effort --time-limit 5
+has "$work/err" "the integer programming solver (GLPK) reached its memory limit of 1 MiB" "the memory limit is named"
+
+# No lost data: a full disk and a closed stdout are errors (exit 4), and a
+# device named by -o is written straight, never replaced by a file.
+if [ -c /dev/full ]; then
+    expect 4 "a report to a full disk" -- "$keel" assign "$examples/medsurg-day.yaml" --time-limit 1 -o /dev/full
+    has "$work/err" "/dev/full: write failed: No space left on device" "the full disk is named"
+    if [ -c /dev/full ]; then ok "the device is still a device"; else not_ok "the device is still a device"; fi
+    "$keel" assign "$examples/medsurg-day.yaml" --time-limit 1 > /dev/full 2> "$work/err"
+    if [ $? -eq 4 ]; then ok "a full standard output is exit 4"; else not_ok "a full standard output is exit 4"; fi
+    has "$work/err" "standard output: write failed" "and says so"
+    expect 4 "a template to a full disk" -- "$keel" new -o /dev/full
+fi
+expect 0 "-o /dev/stdout writes straight to it" -- "$keel" assign "$examples/medsurg-day.yaml" --time-limit 1 -o /dev/stdout
+last_line_is_caution "$work/out" "the report came through the device"
+if [ -L /dev/stdout ] || [ ! -e /dev/stdout ]; then ok "/dev/stdout is still a link"; else not_ok "/dev/stdout is still a link"; fi
+cp "$examples/medsurg-day.yaml" "$work/keep.yaml"
+echo "old plan" > "$work/old-plan.txt"
+"$keel" assign "$work/keep.yaml" --time-limit 1 -o "$work/old-plan.txt" > /dev/full 2>/dev/null
+if [ "$(cat "$work/old-plan.txt")" != "old plan" ]; then ok "a good run replaces the old file"; else not_ok "a good run replaces the old file"; fi
+
 echo "1..$n"
 [ "$failed" -eq 0 ]
