@@ -110,7 +110,9 @@ bool cli_output_close(cli_output *o, bool commit)
     if (fflush(o->stream) != 0 || ferror(o->stream) ||
         (o->tmp_path && fsync(fileno(o->stream)) != 0)) {
         fprintf(stderr, "keel: %s: write failed: %s\n",
-                o->tmp_path ? o->tmp_path : o->path ? o->path : "standard output",
+                o->tmp_path ? o->tmp_path
+                : o->path   ? o->path
+                            : "standard output",
                 strerror(errno));
         ok = false;
     }
