@@ -422,5 +422,19 @@ expect 3 "break covers in conflict" -- "$keel" assign "$data/break-cover-pieces.
 has "$work/err" "during A's break 11:00-11:30 (buddy B), B's break 13:00-13:30 (buddy C), C's break 12:00-12:30 (buddy A); add a relief nurse or move one of these breaks" "the diagnosis names the breaks in conflict"
 if grep -qF "D's break" "$work/err"; then not_ok "the diagnosis leaves out the break not in conflict"; else ok "the diagnosis leaves out the break not in conflict"; fi
 
+# Colour only for a terminal (a pseudo-terminal from script(1), util-linux)
+# and never with NO_COLOR set.
+if command -v script >/dev/null 2>&1; then
+    script -qc "'$keel' assign '$examples/medsurg-day.yaml' --time-limit 1" /dev/null > "$work/tty" 2>&1
+    if grep -q "$(printf '\033')\[" "$work/tty"; then ok "colour on a terminal"; else not_ok "colour on a terminal"; fi
+    NO_COLOR=1 script -qc "'$keel' assign '$examples/medsurg-day.yaml' --time-limit 1" /dev/null > "$work/tty" 2>&1
+    if grep -q "$(printf '\033')\[" "$work/tty"; then not_ok "no colour with NO_COLOR"; else ok "no colour with NO_COLOR"; fi
+    has "$work/tty" "At a glance" "the terminal opens with the glance"
+fi
+expect 0 "an html sheet" -- "$keel" assign "$examples/icu-night.yaml" --format html --time-limit 1
+has "$work/out" "<svg" "the sheet holds its chart"
+has "$work/out" "$caution" "the sheet carries the caution"
+expect 1 "--names and --deidentify together" -- "$keel" assign "$examples/icu-night.yaml" --format html --names --deidentify
+
 echo "1..$n"
 [ "$failed" -eq 0 ]
