@@ -95,8 +95,7 @@ keel_status keel_report_csv(const keel_report *rep, FILE *out)
         clock_field(out, r, pat->arrives_at, false);
         clock_field(out, r, pat->leaves_at, false);
         list(out, pat->needs, pat->nneeds, false);
-        field(out, pat->isolation != KEEL_ISOLATION_NONE ? keel_isolation_name(pat->isolation)
-                                                          : "",
+        field(out, pat->isolation != KEEL_ISOLATION_NONE ? keel_isolation_name(pat->isolation) : "",
               false);
         if (pat->ratio != KEEL_ABSENT) {
             char ratio[24];

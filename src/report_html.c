@@ -495,9 +495,9 @@ keel_status keel_report_html(const keel_report *rep, FILE *out)
         write_nurses(out, rep);
         write_breaks(out, rep);
     }
-    write_findings(out, s && s->best_effort ? "Rules this best-effort plan breaks"
-                                            : "Rules the plan breaks",
-                   rep->violations);
+    write_findings(
+        out, s && s->best_effort ? "Rules this best-effort plan breaks" : "Rules the plan breaks",
+        rep->violations);
     if (rep->kind == KEEL_REPORT_CHECK && plan && rep->violations && rep->violations->n == 0)
         fputs("<p>The plan keeps every rule keel checks.</p>\n", out);
     write_details(out, rep);
