@@ -149,7 +149,8 @@ static void write_verdict(FILE *out, const keel_report *rep)
 
 /* The chart: a bar per nurse who takes patients, its utilisation written
  * beside it; the 100 % line and, when the solve proved one, the bound on
- * the heaviest.  Overload: a hatched bar and the word OVER. */
+ * the heaviest ("no plan below", or for a plan checked, the best possible
+ * heaviest).  Overload: a hatched bar and the word OVER. */
 static void write_chart(FILE *out, const keel_report *rep)
 {
     const keel_roster *r = rep->roster;
@@ -199,8 +200,10 @@ static void write_chart(FILE *out, const keel_report *rep)
         fprintf(out,
                 "<line x1=\"%.1f\" y1=\"0\" x2=\"%.1f\" y2=\"%d\" stroke=\"#000\" "
                 "stroke-dasharray=\"1 2\"/><text x=\"%.1f\" y=\"%d\" text-anchor=\"end\">"
-                "proven floor %.1f %%</text>\n",
-                b, b, y, b - 3, y + 14, 100.0 * s->stages[0].bound);
+                "%s %.1f %%</text>\n",
+                b, b, y, b - 3, y + 14,
+                rep->kind == KEEL_REPORT_CHECK ? "best possible heaviest" : "no plan below",
+                100.0 * s->stages[0].bound);
     }
     fputs("</svg>\n", out);
 }
