@@ -12,12 +12,8 @@
 #include "report_internal.h"
 
 static const keel_writer writers[] = {
-    {"text", keel_report_text},
-    {"yaml", keel_report_yaml},
-    {"json", keel_report_json},
-    {"html", keel_report_html},
-    {"csv", keel_report_csv},
-    {"csv-nurses", keel_report_csv_nurses},
+    {"text", keel_report_text}, {"yaml", keel_report_yaml}, {"json", keel_report_json},
+    {"html", keel_report_html}, {"csv", keel_report_csv},   {"csv-nurses", keel_report_csv_nurses},
 };
 
 size_t keel_report_nformats(void)

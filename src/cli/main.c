@@ -713,8 +713,7 @@ int main(int argc, char **argv)
                            "--explain does not go with --format yaml: the yaml plan is a roster, "
                            "with no place for reasons; use --format text or json");
     if (opt.names && (opt.deidentify || strcmp(opt.format, "html") != 0))
-        return usage_error(cmd, "%s",
-                           "--names is for the html sheet, and not with --deidentify");
+        return usage_error(cmd, "%s", "--names is for the html sheet, and not with --deidentify");
     if (opt.method && !known_method(opt.method))
         return usage_error(cmd, "unknown method '%s'; expected ilp or greedy", opt.method);
     return cmd->run(&opt);
