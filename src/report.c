@@ -12,9 +12,8 @@
 #include "report_internal.h"
 
 static const keel_writer writers[] = {
-    {"text", keel_report_text},
-    {"yaml", keel_report_yaml},
-    {"json", keel_report_json},
+    {"text", keel_report_text}, {"yaml", keel_report_yaml}, {"json", keel_report_json},
+    {"html", keel_report_html}, {"csv", keel_report_csv},   {"csv-nurses", keel_report_csv_nurses},
 };
 
 size_t keel_report_nformats(void)
@@ -54,5 +53,7 @@ keel_status keel_report_write(const char *format, const keel_report *report, FIL
         return KEEL_OK;
     }
     return keel_error_add(err, KEEL_ERR_USAGE, NULL, 0, 0, NULL,
-                          "unknown format '%s'; expected text, yaml or json", format);
+                          "unknown format '%s'; expected text, yaml, json, html, csv or "
+                          "csv-nurses",
+                          format);
 }

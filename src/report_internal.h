@@ -23,6 +23,9 @@ typedef struct keel_writer {
 keel_status keel_report_text(const keel_report *report, FILE *out); /* report_text.c */
 keel_status keel_report_json(const keel_report *report, FILE *out); /* report_json.c */
 keel_status keel_report_yaml(const keel_report *report, FILE *out); /* report_yaml.c */
+keel_status keel_report_html(const keel_report *report, FILE *out); /* report_html.c */
+keel_status keel_report_csv(const keel_report *report, FILE *out);  /* report_csv.c */
+keel_status keel_report_csv_nurses(const keel_report *report, FILE *out); /* report_csv.c */
 
 /* report_yaml.c: writes one patient as an entry of a roster's patients
  * list, with nurse as its `nurse:` (NULL: none).  r gives the shift's start

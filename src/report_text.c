@@ -554,6 +554,47 @@ static void write_workload(FILE *out, const keel_report *rep)
     fputc('\n', out);
 }
 
+/* The first screen: a line per nurse with her load, a bar of her
+ * utilisation (20 marks to 100 %, '>' past it) and her patients by bed;
+ * the details follow.  Colour (ANSI) only when the report asks for it. */
+static void write_glance(FILE *out, const keel_report *rep)
+{
+    const keel_roster *r = rep->roster;
+    const keel_metrics *m = rep->metrics;
+    const char *bar_on = rep->colour ? "\033[36m" : "", *warn_on = rep->colour ? "\033[1;31m" : "",
+               *off = rep->colour ? "\033[0m" : "";
+    fputs("At a glance (bar: 20 marks to 100 % of her time)\n", out);
+    for (size_t n = 0; n < r->nnurses; n++) {
+        const keel_nurse_metrics *nm = &m->nurses[n];
+        fprintf(out, "  %-6s ", r->nurses[n].id);
+        if (!nm->counted) {
+            fprintf(out, "%s, takes no patients\n",
+                    r->nurses[n].role == KEEL_ROLE_ORIENTEE ? "orientee"
+                                                            : keel_role_name(r->nurses[n].role));
+            continue;
+        }
+        int marks = (int)(20.0 * nm->utilisation + 0.5);
+        fprintf(out, "%4d/%-4d %5.1f %% |%s", nm->load_minutes, nm->capacity_minutes,
+                100.0 * nm->utilisation, bar_on);
+        for (int i = 0; i < 20; i++)
+            fputc(i < marks ? '#' : ' ', out);
+        fprintf(out, "%s|", off);
+        bool over = nm->load_minutes > nm->capacity_minutes;
+        if (over) {
+            fputs(warn_on, out);
+            for (int i = 20; i < marks && i < 30; i++)
+                fputc('>', out);
+            fprintf(out, " OVER%s", off);
+        }
+        fputc(' ', out);
+        for (size_t p = 0; p < r->npatients; p++)
+            if (keel_report_plan_holds(rep, p, n))
+                fprintf(out, " %s", r->patients[p].bed ? r->patients[p].bed : r->patients[p].id);
+        fputc('\n', out);
+    }
+    fputc('\n', out);
+}
+
 keel_status keel_report_text(const keel_report *rep, FILE *out)
 {
     const keel_solution *s = rep->solution;
@@ -564,6 +605,8 @@ keel_status keel_report_text(const keel_report *rep, FILE *out)
               "breaks rules.\n\n",
               out);
     write_heading(out, rep);
+    if (rep->nurse_of && rep->metrics)
+        write_glance(out, rep);
     write_ratio_table(out, rep->roster);
     if (rep->kind == KEEL_REPORT_CHECK)
         write_workload(out, rep);

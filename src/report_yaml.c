@@ -238,8 +238,10 @@ static void write_patients(FILE *out, const keel_report *rep, bool expected)
             fputs("expected_admissions:\n", out);
         any = true;
         int n = keel_report_plan_first_nurse(rep, p);
-        keel_report_yaml_patient(out, r, &r->patients[p],
-                                n >= 0 ? r->nurses[n].id : r->patients[p].nurse);
+        keel_patient shown = r->patients[p];
+        if (rep->deidentify)
+            shown.name = NULL;
+        keel_report_yaml_patient(out, r, &shown, n >= 0 ? r->nurses[n].id : shown.nurse);
         write_handoffs(out, rep, p);
     }
 }

@@ -3,9 +3,11 @@
  * keel/report.h - writers that format an assignment or a workload view.
  * Writers are plugins behind one table ({name, write}): "text" for people,
  * "yaml" (the roster again with every patient's nurse filled in, so it can
- * be fed back in), "json" for other tools.  Writers only read: every number
- * comes from keel_metrics.  Every format meant for people ends with the
- * caution (KEEL_CAUTION).
+ * be fed back in), "json" for other tools, "html" (the sheet to post: one
+ * self-contained page, patients by id, bed and room unless `names`), "csv"
+ * (a row per patient) and "csv-nurses" (a row per nurse) for spreadsheets.  Writers only read:
+ * every number comes from keel_metrics.  Every format meant for people ends with the caution
+ * (KEEL_CAUTION).
  */
 #ifndef KEEL_REPORT_H
 #define KEEL_REPORT_H
@@ -55,6 +57,10 @@ typedef struct keel_report {
     const keel_course *course;           /* the course of the shift under nurse_of, or NULL */
     const keel_verdict *verdict; /* the staffing verdict; NULL: keel_report_write() judges
                                     nurse_of itself (keel/verdict.h) */
+    bool names;                  /* html: patients' names on the sheet (one that stays private) */
+    bool deidentify;             /* no patient's name in any format (the yaml plan drops `name`) */
+    bool colour;                 /* text: ANSI colour (the command sets it for a terminal without
+                                    NO_COLOR) */
 } keel_report;
 
 /* Writes the report in the named format to out.  Statuses: KEEL_OK,

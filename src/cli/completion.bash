@@ -14,9 +14,9 @@ _keel_options() {
     case $1 in
     assign)
         echo "-f --format -m --method -t --time-limit -e --explain --best-effort -o --output"
-        echo "-h --help"
+        echo "--names --deidentify -h --help"
         ;;
-    check) echo "-f --format -t --time-limit -o --output -h --help" ;;
+    check) echo "-f --format -t --time-limit --names -o --output -h --help" ;;
     new) echo "--type --table --unit --shift -o --output -h --help" ;;
     import) echo "--roster --map --type --table --unit --shift -o --output -h --help" ;;
     esac
@@ -34,8 +34,8 @@ _keel_takes_value() {
 # The report formats of each command.
 _keel_formats() {
     case $1 in
-    assign) echo "text yaml json" ;;
-    check) echo "text json" ;;
+    assign) echo "text yaml json html csv csv-nurses" ;;
+    check) echo "text json html csv csv-nurses" ;;
     esac
 }
 

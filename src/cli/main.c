@@ -11,6 +11,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 
 #include "keel/keel.h"
 #include "output.h"
@@ -30,6 +31,8 @@ typedef struct options {
     long time_limit_ms;
     bool explain;      /* --explain: a reason per patient */
     bool best_effort;  /* --best-effort: a labelled plan even when no valid one exists */
+    bool names;        /* --names: patients' names on the html sheet (kept private) */
+    bool deidentify;   /* --deidentify: no patient's name in any format */
     const char *type;  /* new, import: --type */
     const char *table; /* new, import: --table */
     const char *unit;  /* new, import: --unit */
@@ -52,15 +55,18 @@ static int run_import(const options *opt);
 
 static const command commands[] = {
     {"assign", "balance the roster's patients across its nurses",
-     "usage: keel assign ROSTER [--format text|yaml|json] [--method ilp|greedy]\n"
-     "                   [--time-limit SECONDS] [--explain] [--best-effort] [-o FILE]\n"
+     "usage: keel assign ROSTER [--format text|yaml|json|html|csv|csv-nurses]\n"
+     "                   [--method ilp|greedy] [--time-limit SECONDS] [--explain]\n"
+     "                   [--best-effort] [--names | --deidentify] [-o FILE]\n"
      "\n"
      "Divides the roster's patients among its nurses so that the heaviest utilisation\n"
      "(load / capacity) is as low as possible, then lifts the lightest one, and reports\n"
      "each nurse's load, the imbalance, the proven bound and the gap.\n"
      "\n"
      "  -f, --format FMT       text (default), yaml (the roster with each patient's\n"
-     "                         nurse filled in) or json\n"
+     "                         nurse filled in), json, html (the sheet to post: one\n"
+     "                         page, patients by id, bed and room), csv (a row per\n"
+     "                         patient) or csv-nurses (a row per nurse)\n"
      "  -m, --method NAME      ilp (default: exact search with GLPK) or greedy\n"
      "  -t, --time-limit SECS  limit for the whole solve (default 10); on time-out the\n"
      "                         best plan found is kept and reported as not proven\n"
@@ -69,20 +75,27 @@ static const command commands[] = {
      "      --best-effort      when no valid assignment exists, also show the plan that\n"
      "                         breaks the fewest rules (by severity), labelled as such;\n"
      "                         the exit code stays 3\n"
+     "      --names            put patients' names on the html sheet (a sheet that\n"
+     "                         stays private; the default shows id, bed and room)\n"
+     "      --deidentify       leave patients' names out of every format (the yaml\n"
+     "                         plan drops `name`)\n"
      "  -o, --output FILE      write to FILE (replaced atomically; never the roster).\n"
      "                         When no valid assignment exists, nothing is written to\n"
      "                         FILE unless --best-effort gives a labelled plan\n",
      run_assign},
     {"check", "validate a roster, show its workload, score its own plan",
-     "usage: keel check ROSTER [--format text|json] [--time-limit SECONDS] [-o FILE]\n"
+     "usage: keel check ROSTER [--format text|json|html|csv|csv-nurses]\n"
+     "                  [--time-limit SECONDS] [--names] [-o FILE]\n"
      "\n"
      "Validates the roster and shows the workload: care minutes per patient, capacity\n"
      "per nurse, totals and nurses needed at full utilisation.  When every patient\n"
      "already has a nurse, scores that plan: loads, imbalance, every rule it breaks,\n"
      "and the best heaviest utilisation that was possible.\n"
      "\n"
-     "  -f, --format FMT       text (default) or json\n"
+     "  -f, --format FMT       text (default), json, html (the plan as a sheet),\n"
+     "                         csv (a row per patient) or csv-nurses (a row per nurse)\n"
      "  -t, --time-limit SECS  limit for finding the best possible (default 10)\n"
+     "      --names            put patients' names on the html sheet (kept private)\n"
      "  -o, --output FILE      write to FILE (replaced atomically; never the roster)\n",
      run_check},
     {"new", "write a commented roster for a unit to fill in",
@@ -307,6 +320,14 @@ static int parse_args(const command *cmd, int argc, char **argv, options *opt, b
             opt->best_effort = true;
             continue;
         }
+        if (solving && strcmp(arg, "--names") == 0) {
+            opt->names = true;
+            continue;
+        }
+        if (cmd->run == run_assign && strcmp(arg, "--deidentify") == 0) {
+            opt->deidentify = true;
+            continue;
+        }
         if (arg[0] == '-' && arg[1] != '\0')
             return usage_error(cmd, "unknown option '%s'", arg);
         if (cmd->run == run_new)
@@ -392,6 +413,13 @@ static bool has_patients(const char *command, const options *opt, const keel_ros
     return false;
 }
 
+/* Colour for a terminal only, and never with NO_COLOR set (any value). */
+static bool colour_wanted(const options *opt)
+{
+    const char *no = getenv("NO_COLOR");
+    return !opt->output && (!no || !*no) && isatty(fileno(stdout));
+}
+
 static int write_report(const options *opt, const keel_report *rep)
 {
     cli_output out;
@@ -407,6 +435,8 @@ static int write_report(const options *opt, const keel_report *rep)
     bool written = cli_output_close(&out, rc == KEEL_OK);
     if (rc)
         return rc == KEEL_ERR_IO ? EXIT_INTERNAL : exit_code(rc); /* the output, not the input */
+    if (written && strncmp(opt->format, "csv", 3) == 0)
+        fprintf(stderr, "%s\n", KEEL_CAUTION); /* a CSV file has no place for it */
     return written ? 0 : EXIT_INTERNAL;
 }
 
@@ -477,7 +507,10 @@ static int run_assign(const options *opt)
                        .staffing = &s.staffing,
                        .explanation = s.explanation,
                        .course = s.course,
-                       .violations = s.solution->best_effort ? &s.violations : NULL};
+                       .violations = s.solution->best_effort ? &s.violations : NULL,
+                       .names = opt->names,
+                       .deidentify = opt->deidentify,
+                       .colour = colour_wanted(opt)};
     bool infeasible = s.solution->status == KEEL_SOLVE_INFEASIBLE;
     bool best_effort = infeasible && s.solution->best_effort;
     if (infeasible) {
@@ -558,7 +591,10 @@ static int run_check(const options *opt)
                        .solution = s.solution,
                        .violations = &s.violations,
                        .course = s.course,
-                       .staffing = &s.staffing};
+                       .staffing = &s.staffing,
+                       .names = opt->names,
+                       .deidentify = opt->deidentify,
+                       .colour = colour_wanted(opt)};
     bool infeasible = s.solution->status == KEEL_SOLVE_INFEASIBLE;
     int code = write_report(opt, &rep);
     state_fini(&s);
@@ -689,6 +725,8 @@ int main(int argc, char **argv)
         return usage_error(cmd, "%s",
                            "--explain does not go with --format yaml: the yaml plan is a roster, "
                            "with no place for reasons; use --format text or json");
+    if (opt.names && (opt.deidentify || strcmp(opt.format, "html") != 0))
+        return usage_error(cmd, "%s", "--names is for the html sheet, and not with --deidentify");
     if (opt.method && !known_method(opt.method))
         return usage_error(cmd, "unknown method '%s'; expected ilp or greedy", opt.method);
     return cmd->run(&opt);

@@ -453,6 +453,19 @@ cp "$examples/medsurg-day.yaml" "$work/keep.yaml"
 echo "old plan" > "$work/old-plan.txt"
 "$keel" assign "$work/keep.yaml" --time-limit 1 -o "$work/old-plan.txt" > /dev/full 2>/dev/null
 if [ "$(cat "$work/old-plan.txt")" != "old plan" ]; then ok "a good run replaces the old file"; else not_ok "a good run replaces the old file"; fi
+# Colour only for a terminal (a pseudo-terminal from script(1), util-linux)
+# and never with NO_COLOR set.
+if command -v script >/dev/null 2>&1; then
+    script -qc "'$keel' assign '$examples/medsurg-day.yaml' --time-limit 1" /dev/null > "$work/tty" 2>&1
+    if grep -q "$(printf '\033')\[" "$work/tty"; then ok "colour on a terminal"; else not_ok "colour on a terminal"; fi
+    NO_COLOR=1 script -qc "'$keel' assign '$examples/medsurg-day.yaml' --time-limit 1" /dev/null > "$work/tty" 2>&1
+    if grep -q "$(printf '\033')\[" "$work/tty"; then not_ok "no colour with NO_COLOR"; else ok "no colour with NO_COLOR"; fi
+    has "$work/tty" "At a glance" "the terminal opens with the glance"
+fi
+expect 0 "an html sheet" -- "$keel" assign "$examples/icu-night.yaml" --format html --time-limit 1
+has "$work/out" "<svg" "the sheet holds its chart"
+has "$work/out" "$caution" "the sheet carries the caution"
+expect 1 "--names and --deidentify together" -- "$keel" assign "$examples/icu-night.yaml" --format html --names --deidentify
 
 echo "1..$n"
 [ "$failed" -eq 0 ]

@@ -109,7 +109,7 @@ accepts "new --table values" "$(complete_words keel new --type med-surg --table 
     "$keel" new --type med-surg --table @
 accepts "new --shift values" "$(complete_words keel new --shift "")" "$keel" new --shift @
 expect "'--format=j' completes after the '='" "json" keel assign "$roster" --format = j
-expect "'--format=' offers every format" "text yaml json" keel assign "$roster" --format =
+expect "'--format=' offers every format" "text yaml json html csv csv-nurses" keel assign "$roster" --format =
 
 # Files, in a scratch directory.
 mkdir "$work/files"

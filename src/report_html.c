@@ -1,0 +1,509 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * report_html.c - the sheet to post: one self-contained HTML file (no
+ * external assets, no script) with a print stylesheet that fits a unit's
+ * assignment on one landscape page.  At the top the figures a charge nurse
+ * uses: the verdict, a chart of utilisation per nurse (text labels, the
+ * 100 % line and the proven bound; overload hatched and labelled, never
+ * colour alone), then per nurse her patients by bed with acuity, care
+ * minutes, needs, isolation, extras and hand-off times; the break cover and
+ * the next-admission order; the caution and the table's citation in the
+ * footer.  The imbalance indices and the stages follow in a section the
+ * print stylesheet leaves out.  Patients appear by id, bed and room; names
+ * only when the report asks for them (a private sheet, --names).
+ */
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "keel/keel.h"
+#include "keel/law.h"
+#include "report_internal.h"
+#include "workload_internal.h"
+
+/* Writes s with &, <, > and " escaped (attributes are double-quoted). */
+static void put(FILE *out, const char *s)
+{
+    for (; s && *s; s++) {
+        switch (*s) {
+        case '&':
+            fputs("&amp;", out);
+            break;
+        case '<':
+            fputs("&lt;", out);
+            break;
+        case '>':
+            fputs("&gt;", out);
+            break;
+        case '"':
+            fputs("&quot;", out);
+            break;
+        default:
+            fputc(*s, out);
+        }
+    }
+}
+
+static const char STYLE[] =
+    "body{font-family:'DejaVu Sans',Arial,sans-serif;color:#1d1d1d;margin:1.2em;"
+    "font-size:10.5pt}\n"
+    "h1{font-size:14pt;margin:0 0 .2em}h2{font-size:11pt;margin:.7em 0 .3em;"
+    "border-bottom:1px solid #888}\n"
+    ".top{display:flex;flex-wrap:wrap;gap:1.5em;align-items:flex-start}"
+    ".top>div{flex:1 1 24em}\n"
+    ".sub{color:#444;margin:0 0 .4em}.verdict{border:2px solid #333;padding:.3em .5em;"
+    "margin:.4em 0;font-weight:bold}\n"
+    ".banner{border:3px double #000;padding:.4em;font-weight:bold;background:#eee}\n"
+    ".nurses{display:flex;flex-wrap:wrap;gap:.4em}\n"
+    ".nurse{border:1px solid #777;padding:.2em .3em;flex:1 1 30%;min-width:17em;"
+    "break-inside:avoid}\n"
+    ".nurse h3{font-size:10pt;margin:0 0 .2em}.nurse h3 span{font-weight:normal}"
+    ".over{font-weight:bold;text-decoration:underline}\n"
+    "table{border-collapse:collapse;width:100%}td,th{text-align:left;padding:0 4px;"
+    "vertical-align:top;font-size:9pt}\n"
+    "th{border-bottom:1px solid #999}.num{text-align:right}\n"
+    "ul.cols{columns:3;margin:0;padding-left:1.2em;font-size:9pt}\n"
+    "svg text{font-size:11px;fill:#1d1d1d}.bar{fill:#9aa5b1;stroke:#333}"
+    ".bar.overload{fill:url(#hatch);stroke:#000;stroke-width:2}\n"
+    "footer{margin-top:.8em;border-top:1px solid #888;font-size:9pt}"
+    "footer p{margin:.2em 0}\n"
+    "@page{size:A4 landscape;margin:7mm}\n"
+    "@media print{body{margin:0;font-size:8pt}td,th,ul.cols{font-size:7pt}"
+    "h1{font-size:12pt}h2{font-size:9pt;margin:.3em 0 .1em}.nurse h3{font-size:8pt}"
+    "footer{font-size:7pt}.details{display:none}}\n";
+
+static void write_head(FILE *out, const keel_report *rep)
+{
+    const keel_roster *r = rep->roster;
+    fputs("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n<title>", out);
+    fputs(rep->kind == KEEL_REPORT_ASSIGN ? "Assignment" : "Check", out);
+    if (r->unit.name) {
+        fputs(": ", out);
+        put(out, r->unit.name);
+    }
+    fprintf(out, "</title>\n<style>\n%s</style>\n</head>\n<body>\n", STYLE);
+}
+
+static void write_heading(FILE *out, const keel_report *rep)
+{
+    const keel_roster *r = rep->roster;
+    fputs("<header>\n<h1>", out);
+    put(out, r->unit.name ? r->unit.name : "Unit");
+    fputs("</h1>\n<p class=\"sub\">", out);
+    fputs(rep->kind == KEEL_REPORT_ASSIGN ? "Assignment" : "Plan check", out);
+    if (r->shift.label) {
+        fputs(", ", out);
+        put(out, r->shift.label);
+        fputs(" shift", out);
+    }
+    if (r->shift.date) {
+        fputc(' ', out);
+        put(out, r->shift.date);
+    }
+    if (r->shift.start_minute != KEEL_ABSENT)
+        fprintf(out, " from %02d:%02d", r->shift.start_minute / 60, r->shift.start_minute % 60);
+    fprintf(out, " (%d min). %zu patient%s, %zu nurse%s.</p>\n", r->shift.minutes, r->npatients,
+            r->npatients == 1 ? "" : "s", r->nnurses, r->nnurses == 1 ? "" : "s");
+    for (size_t n = 0; n < r->nnurses; n++)
+        if (r->nurses[n].role == KEEL_ROLE_CHARGE) {
+            fputs("<p class=\"sub\">Charge nurse: ", out);
+            put(out, r->nurses[n].id);
+            if (r->nurses[n].name) {
+                fputc(' ', out);
+                put(out, r->nurses[n].name);
+            }
+            fputs("</p>\n", out);
+        }
+    fputs("</header>\n", out);
+}
+
+/* The status of the solve in a sentence a nurse acts on. */
+static void write_status(FILE *out, const keel_report *rep)
+{
+    const keel_solution *s = rep->solution;
+    if (rep->kind != KEEL_REPORT_ASSIGN || !s)
+        return;
+    if (s->best_effort)
+        fputs("<p class=\"banner\">BEST-EFFORT PLAN, not an assignment: no valid assignment "
+              "exists and this plan breaks the rules listed below. Tell the house supervisor "
+              "before using any of it.</p>\n",
+              out);
+    else if (s->status == KEEL_SOLVE_INFEASIBLE)
+        fputs("<p class=\"banner\">No valid assignment exists for this roster.</p>\n", out);
+    else if (s->status == KEEL_SOLVE_OPTIMAL)
+        fputs("<p>Balance: proven best possible under the unit's rules.</p>\n", out);
+    else
+        fputs("<p>Balance: this plan keeps every rule; it is not proven the most even "
+              "(details below).</p>\n",
+              out);
+}
+
+static void write_verdict(FILE *out, const keel_report *rep)
+{
+    if (!rep->verdict || !rep->verdict->text)
+        return;
+    fputs("<p class=\"verdict\">", out);
+    put(out, rep->verdict->text);
+    fputs("</p>\n", out);
+}
+
+/* The chart: a bar per nurse who takes patients, its utilisation written
+ * beside it; the 100 % line and, when the solve proved one, the bound on
+ * the heaviest ("no plan below", or for a plan checked, the best possible
+ * heaviest).  Overload: a hatched bar and the word OVER. */
+static void write_chart(FILE *out, const keel_report *rep)
+{
+    const keel_roster *r = rep->roster;
+    const keel_metrics *m = rep->metrics;
+    if (!rep->nurse_of || m->ncounted == 0)
+        return;
+    double top = 1.2;
+    for (size_t n = 0; n < m->nnurses; n++)
+        if (m->nurses[n].counted && m->nurses[n].utilisation + 0.1 > top)
+            top = m->nurses[n].utilisation + 0.1;
+    const int left = 70, width = 420, row = 18;
+    int height = (int)m->ncounted * row + 30;
+    double scale = width / top;
+    fprintf(out,
+            "<svg role=\"img\" aria-label=\"utilisation per nurse\" "
+            "width=\"%d\" height=\"%d\" viewBox=\"0 0 %d %d\">\n",
+            left + width + 110, height, left + width + 110, height);
+    fputs("<defs><pattern id=\"hatch\" width=\"6\" height=\"6\" patternUnits=\"userSpaceOnUse\" "
+          "patternTransform=\"rotate(45)\"><rect width=\"6\" height=\"6\" fill=\"#fff\"/>"
+          "<line x1=\"0\" y1=\"0\" x2=\"0\" y2=\"6\" stroke=\"#000\" stroke-width=\"3\"/>"
+          "</pattern></defs>\n",
+          out);
+    int y = 4;
+    for (size_t n = 0; n < m->nnurses; n++) {
+        const keel_nurse_metrics *nm = &m->nurses[n];
+        if (!nm->counted)
+            continue;
+        bool over = nm->load_minutes > nm->capacity_minutes;
+        fprintf(out, "<text x=\"%d\" y=\"%d\" text-anchor=\"end\">", left - 6, y + 12);
+        put(out, r->nurses[n].id);
+        fprintf(out,
+                "</text><rect class=\"bar%s\" x=\"%d\" y=\"%d\" width=\"%.1f\" height=\"%d\"/>"
+                "<text x=\"%.1f\" y=\"%d\">%.1f %%%s</text>\n",
+                over ? " overload" : "", left, y, nm->utilisation * scale, row - 4,
+                left + nm->utilisation * scale + 4, y + 12, 100.0 * nm->utilisation,
+                over ? " OVER" : "");
+        y += row;
+    }
+    fprintf(out,
+            "<line x1=\"%.1f\" y1=\"0\" x2=\"%.1f\" y2=\"%d\" stroke=\"#000\" "
+            "stroke-dasharray=\"4 3\"/><text x=\"%.1f\" y=\"%d\">100 %%</text>\n",
+            left + scale, left + scale, y, left + scale + 3, y + 14);
+    const keel_solution *s = rep->solution;
+    if (s && s->status != KEEL_SOLVE_INFEASIBLE && s->nstages > 0 &&
+        strcmp(s->stages[0].name, "peak") == 0) {
+        double b = s->stages[0].bound * scale + left;
+        fprintf(out,
+                "<line x1=\"%.1f\" y1=\"0\" x2=\"%.1f\" y2=\"%d\" stroke=\"#000\" "
+                "stroke-dasharray=\"1 2\"/><text x=\"%.1f\" y=\"%d\" text-anchor=\"end\">"
+                "%s %.1f %%</text>\n",
+                b, b, y, b - 3, y + 14,
+                rep->kind == KEEL_REPORT_CHECK ? "best possible heaviest" : "no plan below",
+                100.0 * s->stages[0].bound);
+    }
+    fputs("</svg>\n", out);
+}
+
+static void time_of(const keel_report *rep, int minutes, char *buf)
+{
+    keel_roster_clock_text(rep->roster, minutes, buf);
+}
+
+/* The times of patient p's stay and its hand-offs, as seen by nurse n. */
+static void write_times(FILE *out, const keel_report *rep, size_t p, size_t n)
+{
+    const keel_roster *r = rep->roster;
+    const keel_patient *pat = &r->patients[p];
+    char at[KEEL_TIME_SIZE];
+    if (pat->arrives_at != KEEL_ABSENT) {
+        time_of(rep, pat->arrives_at, at);
+        fprintf(out, "%s %s ", pat->expected ? "expected" : "arrives", at);
+    }
+    if (pat->leaves_at != KEEL_ABSENT) {
+        time_of(rep, pat->leaves_at, at);
+        fprintf(out, "leaves %s ", at);
+    }
+    int q = rep->workload->first_part[p], when, from, to;
+    while (keel_report_plan_next_handoff(rep, p, &q, &when, &from, &to)) {
+        time_of(rep, when, at);
+        if (from == (int)n) {
+            fputs("to ", out);
+            put(out, to >= 0 ? r->nurses[to].id : "nobody");
+            fprintf(out, " at %s ", at);
+        } else if (to == (int)n) {
+            fputs("from ", out);
+            put(out, r->nurses[from].id);
+            fprintf(out, " at %s ", at);
+        }
+    }
+}
+
+/* Writes item after a ", " unless it is the first of its cell. */
+static void item(FILE *out, bool *first, const char *text)
+{
+    fputs(*first ? "" : ", ", out);
+    put(out, text);
+    *first = false;
+}
+
+/* Which optional columns the sheet needs. */
+typedef struct columns {
+    bool room;  /* some patient has a room */
+    bool times; /* the roster has the clock */
+} columns;
+
+static void write_patient_row(FILE *out, const keel_report *rep, const columns *cols, size_t p,
+                              size_t n)
+{
+    const keel_patient *pat = &rep->roster->patients[p];
+    fputs("<tr><td>", out);
+    put(out, pat->bed ? pat->bed : "-");
+    fputs("</td><td>", out);
+    put(out, pat->id);
+    if (rep->names && pat->name) {
+        fputs(" ", out);
+        put(out, pat->name);
+    }
+    if (cols->room) {
+        fputs("</td><td>", out);
+        put(out, pat->room ? pat->room : "");
+    }
+    fputs("</td><td class=\"num\">", out);
+    if (pat->acuity != KEEL_ABSENT)
+        fprintf(out, "%d", pat->acuity);
+    fprintf(out, "</td><td class=\"num\">%ld</td><td>", keel_report_plan_care_held(rep, p, n));
+    bool first = true;
+    char text[64];
+    for (size_t i = 0; i < pat->nneeds; i++)
+        item(out, &first, pat->needs[i]);
+    if (pat->isolation != KEEL_ISOLATION_NONE) {
+        snprintf(text, sizeof text, "%s isolation", keel_isolation_name(pat->isolation));
+        item(out, &first, text);
+    }
+    if (pat->ratio != KEEL_ABSENT) {
+        snprintf(text, sizeof text, "1:%d", pat->ratio);
+        item(out, &first, text);
+    }
+    for (size_t i = 0; i < pat->nextras; i++)
+        item(out, &first, pat->extras[i]);
+    if (pat->sitter)
+        item(out, &first, "sitter");
+    if (pat->lock)
+        item(out, &first, "locked");
+    if (cols->times) {
+        fputs("</td><td>", out);
+        write_times(out, rep, p, n);
+    }
+    fputs("</td></tr>\n", out);
+}
+
+static void write_nurses(FILE *out, const keel_report *rep)
+{
+    const keel_roster *r = rep->roster;
+    const keel_metrics *m = rep->metrics;
+    columns cols = {.times = r->clock};
+    for (size_t p = 0; p < r->npatients; p++)
+        cols.room = cols.room || r->patients[p].room;
+    fputs("<h2>Patients by nurse</h2>\n<div class=\"nurses\">\n", out);
+    for (size_t n = 0; n < r->nnurses; n++) {
+        const keel_nurse_metrics *nm = &m->nurses[n];
+        const keel_nurse *nu = &r->nurses[n];
+        fputs("<section class=\"nurse\"><h3>", out);
+        put(out, nu->id);
+        if (nu->name) {
+            fputc(' ', out);
+            put(out, nu->name);
+        }
+        if (nu->role != KEEL_ROLE_STAFF)
+            fprintf(out, " (%s)", keel_role_name(nu->role));
+        if (nu->role == KEEL_ROLE_ORIENTEE) {
+            fputs(" <span>orientee: shares ", out);
+            put(out, nu->preceptor);
+            fputs("'s assignment</span></h3></section>\n", out);
+            continue;
+        }
+        if (!nm->counted) {
+            fputs(" <span>takes no patients</span></h3></section>\n", out);
+            continue;
+        }
+        fprintf(out, " <span>&mdash; %d patient%s, %d of %d min, %.1f %%</span>", nm->npatients,
+                nm->npatients == 1 ? "" : "s", nm->load_minutes, nm->capacity_minutes,
+                100.0 * nm->utilisation);
+        if (nm->load_minutes > nm->capacity_minutes)
+            fprintf(out, " <span class=\"over\">OVER HER TIME by %d min</span>",
+                    nm->load_minutes - nm->capacity_minutes);
+        fprintf(out,
+                "</h3>\n<table><tr><th>Bed</th><th>Patient</th>%s<th class=\"num\">Acuity</th>"
+                "<th class=\"num\">Min</th><th>Needs</th>%s</tr>\n",
+                cols.room ? "<th>Room</th>" : "", cols.times ? "<th>Times</th>" : "");
+        for (size_t p = 0; p < r->npatients; p++)
+            if (keel_report_plan_holds(rep, p, n))
+                write_patient_row(out, rep, &cols, p, n);
+        fputs("</table></section>\n", out);
+    }
+    fputs("</div>\n", out);
+}
+
+static void write_breaks(FILE *out, const keel_report *rep)
+{
+    const keel_course *c = rep->course;
+    const keel_roster *r = rep->roster;
+    if (!c || c->nbreaks == 0)
+        return;
+    fputs("<h2>Break cover, in time order</h2>\n<ul class=\"cols\">\n", out);
+    /* Time order: the breaks are listed by nurse; pick the next each time. */
+    int last = -1;
+    size_t last_i = 0, done = 0;
+    while (done < c->nbreaks) {
+        size_t next = c->nbreaks;
+        for (size_t i = 0; i < c->nbreaks; i++) {
+            const keel_break_cover *b = &c->breaks[i];
+            bool after = b->at > last || (b->at == last && i > last_i);
+            if (after && (next == c->nbreaks || b->at < c->breaks[next].at))
+                next = i;
+        }
+        const keel_break_cover *b = &c->breaks[next];
+        char from[KEEL_TIME_SIZE], to[KEEL_TIME_SIZE];
+        time_of(rep, b->at, from);
+        time_of(rep, b->at + b->minutes, to);
+        fprintf(out, "<li>%s-%s ", from, to);
+        put(out, r->nurses[b->nurse].id);
+        fputs(": ", out);
+        if (b->npatients == 0) {
+            fputs("nothing to hand over", out);
+        } else if (b->cover < 0) {
+            fputs("<b>nobody covers</b>", out);
+        } else {
+            put(out, r->nurses[b->cover].id);
+            fprintf(out, " (%s), %d of %d", b->relief ? "relief" : "buddy", b->most, b->limit);
+        }
+        if (b->rule)
+            fprintf(out, " <b>FLAG %s</b>", b->rule);
+        fputs("</li>\n", out);
+        last = b->at;
+        last_i = next;
+        done++;
+    }
+    fputs("</ul>\n", out);
+}
+
+static void write_admissions(FILE *out, const keel_report *rep)
+{
+    const keel_course *c = rep->course;
+    const keel_roster *r = rep->roster;
+    if (!c)
+        return;
+    fprintf(out, "<p><b>Next unplanned admissions</b> (a typical admission: %d min): ",
+            c->admission_minutes);
+    if (c->npicks == 0)
+        fputs("nobody can take one; every nurse who takes patients is at a limit.", out);
+    for (size_t i = 0; i < c->npicks; i++) {
+        static const char *const nth[] = {"1st", "2nd", "3rd"};
+        fprintf(out, "%s%s ", i ? "; " : "", i < 3 ? nth[i] : "next");
+        put(out, r->nurses[c->picks[i].nurse].id);
+        fprintf(out, " (%.1f %%%s)", 100.0 * c->picks[i].utilisation,
+                c->picks[i].over ? ", <span class=\"over\">OVER HER TIME</span>" : "");
+    }
+    fputs("</p>\n", out);
+}
+
+static void write_findings(FILE *out, const char *title, const keel_findings *f)
+{
+    if (!f || f->n == 0)
+        return;
+    fputs("<h2>", out);
+    put(out, title);
+    fputs("</h2>\n<ul>\n", out);
+    for (size_t i = 0; i < f->n; i++) {
+        fputs("<li><b>", out);
+        put(out, f->items[i].rule);
+        fputs("</b>: ", out);
+        put(out, f->items[i].message);
+        fputs("</li>\n", out);
+    }
+    fputs("</ul>\n", out);
+}
+
+/* What the sheet leaves to those who want it: the indices and the stages. */
+static void write_details(FILE *out, const keel_report *rep)
+{
+    const keel_metrics *m = rep->metrics;
+    const keel_solution *s = rep->solution;
+    fputs("<section class=\"details\">\n<h2>Details (not printed)</h2>\n", out);
+    if (rep->nurse_of)
+        fprintf(out,
+                "<p>Over the %zu nurse%s who take patients: heaviest %.1f %%, lightest %.1f %%, "
+                "spread %.1f points; peak-to-mean %.3f, coefficient of variation %.3f, "
+                "Jain's index %.3f, Gini %.3f.</p>\n",
+                m->ncounted, m->ncounted == 1 ? "" : "s", 100.0 * m->max_utilisation,
+                100.0 * m->min_utilisation, 100.0 * m->spread, m->peak_to_mean, m->cv, m->jain,
+                m->gini);
+    if (s && s->status != KEEL_SOLVE_INFEASIBLE) {
+        fputs("<table><tr><th>Stage</th><th>Status</th><th>Value</th><th>Bound</th>"
+              "<th>Gap</th></tr>\n",
+              out);
+        for (size_t i = 0; i < s->nstages; i++)
+            fprintf(out,
+                    "<tr><td>%s</td><td>%s</td><td class=\"num\">%.4f</td>"
+                    "<td class=\"num\">%.4f</td><td class=\"num\">%.2f %%</td></tr>\n",
+                    s->stages[i].name, keel_solve_status_name(s->stages[i].status),
+                    s->stages[i].value, s->stages[i].bound, 100.0 * s->stages[i].gap);
+        fputs("</table>\n", out);
+        if (s->bound_reason.text) {
+            fputs("<p>What sets the bound: ", out);
+            put(out, s->bound_reason.text);
+            fputs("</p>\n", out);
+        }
+    }
+    fputs("</section>\n", out);
+}
+
+static void write_footer(FILE *out, const keel_report *rep)
+{
+    fputs("<footer>\n<p><b>", out);
+    put(out, KEEL_CAUTION);
+    fputs("</b></p>\n", out);
+    if (rep->roster->policy.ratio_table) {
+        char cite[KEEL_LAW_CITE_SIZE];
+        keel_law_cite(rep->roster->policy.ratio_table, cite, sizeof cite);
+        fputs("<p>Ratio table: ", out);
+        put(out, cite);
+        fputs("</p>\n", out);
+    }
+    fprintf(out, "<p>Made by keel %s.</p>\n</footer>\n</body>\n</html>\n", keel_version());
+}
+
+keel_status keel_report_html(const keel_report *rep, FILE *out)
+{
+    const keel_solution *s = rep->solution;
+    bool plan = rep->nurse_of != NULL;
+    write_head(out, rep);
+    fputs("<div class=\"top\"><div>\n", out);
+    write_heading(out, rep);
+    write_status(out, rep);
+    write_verdict(out, rep);
+    if (plan && !(s && s->best_effort))
+        write_admissions(out, rep);
+    fputs("</div><div>\n", out);
+    if (plan)
+        write_chart(out, rep);
+    fputs("</div></div>\n", out);
+    if (s && s->status == KEEL_SOLVE_INFEASIBLE && rep->kind == KEEL_REPORT_ASSIGN)
+        write_findings(out, "Why", &s->diagnoses);
+    if (plan) {
+        write_nurses(out, rep);
+        write_breaks(out, rep);
+    }
+    write_findings(
+        out, s && s->best_effort ? "Rules this best-effort plan breaks" : "Rules the plan breaks",
+        rep->violations);
+    if (rep->kind == KEEL_REPORT_CHECK && plan && rep->violations && rep->violations->n == 0)
+        fputs("<p>The plan keeps every rule keel checks.</p>\n", out);
+    write_details(out, rep);
+    write_footer(out, rep);
+    return KEEL_OK;
+}
