@@ -223,6 +223,13 @@ has "$work/err" "census-bad.csv:3:14: isolation: unknown precaution 'airbone'" "
 expect 1 "a bad mapping" -- "$keel" import "$data/census-plain.csv" --map acuity
 expect 1 "import refuses to write over the census" -- "$keel" import "$data/census-plain.csv" -o "$data/census-plain.csv"
 expect 1 "a base roster gives the unit" -- "$keel" import "$data/census-plain.csv" --roster "$examples/medsurg-day.yaml" --type icu
+# A past shift: the census's nurse column is who had whom, scored by keel check.
+expect 0 "import a past shift with its nurses" -- "$keel" import "$data/census-past.csv" --roster "$examples/medsurg-day.yaml" -o "$work/past.yaml"
+has "$work/past.yaml" 'nurse: "N03"' "the census's nurse column comes in as the patients' nurses"
+expect 0 "the past shift is scored as a plan" -- "$keel" check "$work/past.yaml" --format json
+has "$work/out" '"violations"' "keel check scores the imported plan"
+expect 2 "a past shift naming a nurse the unit lacks" -- "$keel" import "$data/census-past-bad.csv" --roster "$examples/medsurg-day.yaml"
+has "$work/err" "census-past-bad.csv:3:17: nurse: patient P-30102 has nurse 'N99', who is not one of" "an unknown nurse is named with file, line and column"
 
 # Source: Miranda et al., Crit Care Med 2003 (NAS weights as in sources.md):
 # 1b 12.1 + 4b 16.5 + 6b 12.4 + 7a 4.0 + 8a 4.2 + 9 1.4 + 12 1.2 + 14 1.7 +
