@@ -85,13 +85,13 @@ static void write_standouts(FILE *out, const keel_audit *a)
                 continue;
             any++;
             fprintf(out,
-                    "  %s: the most %s on %.0f of %zu shifts, %.1f by chance; p = %.3g, adjusted "
+                    "  %s: %s on %.0f of %zu shifts, %.1f by chance; p = %.3g, adjusted "
                     "%.3g\n",
                     a->people[i].id,
-                    m == KEEL_AUDIT_HEAVIEST      ? "utilisation (the heaviest load)"
-                    : m == KEEL_AUDIT_HIGH_ACUITY ? "high-acuity patients"
-                    : m == KEEL_AUDIT_ISOLATION   ? "isolation patients"
-                                                  : "zones",
+                    m == KEEL_AUDIT_HEAVIEST      ? "the heaviest load"
+                    : m == KEEL_AUDIT_HIGH_ACUITY ? "the most high-acuity patients"
+                    : m == KEEL_AUDIT_ISOLATION   ? "the most isolation patients"
+                                                  : "the most zones",
                     t->count, t->at_stake, t->expected, t->p_value, t->p_adjusted);
         }
     if (!any)

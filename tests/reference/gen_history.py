@@ -106,6 +106,9 @@ def make_shift(rng, i, k, bias, plant, clock, care):
         p = patients[j]
         room = [n for n in on if len(held[n]) < MAX and
                 ("needs" not in p or n in CHEMO)]
+        if not room:  # every chemo nurse is full: the patient needs no chemo after all
+            p.pop("needs")
+            room = [n for n in on if len(held[n]) < MAX]
         fewest = min(len(held[n]) - (n == bias) for n in room)
         n = rng.choice([n for n in room if len(held[n]) - (n == bias) == fewest])
         held[n].append(j)
