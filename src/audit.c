@@ -304,6 +304,47 @@ static bool sum_groups(keel_audit *a)
     return true;
 }
 
+static size_t group_index(const keel_audit *a, const char *by, const char *key)
+{
+    for (size_t g = 0; g < a->ngroups; g++)
+        if (strcmp(a->groups[g].by, by) == 0 && strcmp(a->groups[g].key, key) == 0)
+            return g;
+    return a->ngroups; /* not reached: every key has its group */
+}
+
+/* Each nurse's heaviest loads by weekday and by label. */
+static bool sum_people_by_group(keel_audit *a)
+{
+    for (size_t i = 0; i < a->npeople; i++)
+        if (!(a->people[i].by = keel_calloc(a->ngroups ? a->ngroups : 1, sizeof *a->people[i].by)))
+            return false;
+    for (size_t i = 0; i < a->nshifts; i++) {
+        const keel_audit_shift *s = &a->shifts[i];
+        size_t gs[2] = {a->ngroups, a->ngroups};
+        if (s->weekday >= 0)
+            gs[0] = group_index(a, "weekday", keel_audit_stats_weekday_name(s->weekday));
+        if (s->label)
+            gs[1] = group_index(a, "label", s->label);
+        bool stake = at_stake(s, KEEL_AUDIT_HEAVIEST);
+        for (size_t n = 0; n < s->nnurses; n++) {
+            const keel_audit_nurse *an = &s->nurses[n];
+            if (!an->counted)
+                continue;
+            keel_audit_person key = {.id = an->id};
+            keel_audit_person *p = bsearch(&key, a->people, a->npeople, sizeof key, by_id);
+            for (int k = 0; k < 2; k++) {
+                if (gs[k] == a->ngroups)
+                    continue;
+                keel_audit_share *sh = &p->by[gs[k]];
+                sh->shifts++;
+                sh->heaviest += an->share[KEEL_AUDIT_HEAVIEST];
+                sh->expected += stake ? 1.0 / (double)s->ncounted : 0.0;
+            }
+        }
+    }
+    return true;
+}
+
 keel_status keel_audit_summarise(keel_audit_shift *shifts, size_t n, const keel_audit_options *o,
                                  keel_audit **out, keel_error *err)
 {
@@ -320,7 +361,8 @@ keel_status keel_audit_summarise(keel_audit_shift *shifts, size_t n, const keel_
     a->nshifts = n;
     a->min_shifts = o && o->min_shifts ? o->min_shifts : KEEL_AUDIT_MIN_SHIFTS;
     a->alpha = KEEL_AUDIT_ALPHA;
-    bool ok = sum_people(a, &ch) && test_people(a, ch) && sum_groups(a);
+    bool ok = sum_people(a, &ch) && test_people(a, ch) && sum_groups(a) &&
+              sum_people_by_group(a);
     for (size_t i = 0; ch && i < a->npeople * KEEL_AUDIT_MEASURES; i++)
         free(ch[i].p);
     free(ch);
@@ -339,8 +381,10 @@ void keel_audit_free(keel_audit *a)
     for (size_t i = 0; i < a->nshifts; i++)
         keel_audit_shift_fini(&a->shifts[i]);
     free(a->shifts);
-    for (size_t i = 0; i < a->npeople; i++)
+    for (size_t i = 0; i < a->npeople; i++) {
         free(a->people[i].id);
+        free(a->people[i].by);
+    }
     free(a->people);
     for (size_t i = 0; i < a->ngroups; i++)
         free(a->groups[i].key);

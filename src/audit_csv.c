@@ -3,7 +3,7 @@
  * audit_csv.c - the audit as CSV tables (RFC 4180: records end in CRLF; a
  * field holding a comma, a double quote or a line break is quoted, its
  * quotes doubled): one row per shift, per nurse and shift, per nurse and
- * measure, per broken rule.  Unknown figures are empty fields.  A table has
+ * measure, per nurse and group, per broken rule.  Unknown figures are empty fields.  A table has
  * no place for the caution; the command says it on standard error.
  */
 #include <stdio.h>
@@ -130,6 +130,22 @@ keel_status keel_audit_csv_nurses(const keel_audit *a, FILE *out)
             fprintf(out, "%s\r\n", t->stands_out ? "true" : "false");
         }
     }
+    return KEEL_OK;
+}
+
+keel_status keel_audit_csv_nurse_groups(const keel_audit *a, FILE *out)
+{
+    fputs("nurse,by,key,shifts,heaviest,expected_heaviest\r\n", out);
+    for (size_t i = 0; i < a->npeople; i++)
+        for (size_t g = 0; g < a->ngroups; g++) {
+            const keel_audit_share *sh = &a->people[i].by[g];
+            if (!sh->shifts)
+                continue;
+            field(out, a->people[i].id, false);
+            field(out, a->groups[g].by, false);
+            field(out, a->groups[g].key, false);
+            fprintf(out, "%zu,%.12g,%.12g\r\n", sh->shifts, sh->heaviest, sh->expected);
+        }
     return KEEL_OK;
 }
 

@@ -41,18 +41,13 @@ keel_status keel_audit_shift_compute(keel_roster *r, size_t index, size_t docume
                                      const keel_audit_options *o, keel_audit_shift *out,
                                      keel_error *err);
 
-/* What every audit report says beside the caution. */
-#define KEEL_AUDIT_NOTE                                                                            \
-    "These figures describe the assignments each nurse was given, not how she worked; they "     \
-    "judge the plans, never the nurses. For audits kept over time, identify nurses by stable "    \
-    "pseudonymous ids rather than names."
-
 /* The writers. */
 keel_status keel_audit_text(const keel_audit *a, FILE *out);
 keel_status keel_audit_json(const keel_audit *a, FILE *out);
 keel_status keel_audit_csv_shifts(const keel_audit *a, FILE *out);
 keel_status keel_audit_csv_nurse_shifts(const keel_audit *a, FILE *out);
 keel_status keel_audit_csv_nurses(const keel_audit *a, FILE *out);
+keel_status keel_audit_csv_nurse_groups(const keel_audit *a, FILE *out);
 keel_status keel_audit_csv_violations(const keel_audit *a, FILE *out);
 
 #endif

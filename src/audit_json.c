@@ -125,7 +125,7 @@ static void write_tally(FILE *out, const keel_audit_tally *t)
     fprintf(out, ", \"stands_out\": %s}", t->stands_out ? "true" : "false");
 }
 
-static void write_person(FILE *out, const keel_audit_person *p)
+static void write_person(FILE *out, const keel_audit *a, const keel_audit_person *p)
 {
     const keel_audit_tally *h = &p->tally[KEEL_AUDIT_HEAVIEST];
     fputs("    {\"id\": ", out);
@@ -144,7 +144,16 @@ static void write_person(FILE *out, const keel_audit_person *p)
         fprintf(out, "%s\"%s\": ", m ? ", " : "", keel_audit_measure_name((keel_audit_measure)m));
         write_tally(out, &p->tally[m]);
     }
-    fputs("}}", out);
+    fputs("},\n     \"by\": [", out);
+    for (size_t g = 0, k = 0; g < a->ngroups; g++) {
+        if (!p->by[g].shifts)
+            continue;
+        fprintf(out, "%s{\"by\": \"%s\", \"key\": ", k++ ? ", " : "", a->groups[g].by);
+        keel_report_out_quoted(out, a->groups[g].key);
+        fprintf(out, ", \"shifts\": %zu, \"heaviest\": %.12g, \"expected_heaviest\": %.12g}",
+                p->by[g].shifts, p->by[g].heaviest, p->by[g].expected);
+    }
+    fputs("]}", out);
 }
 
 keel_status keel_audit_json(const keel_audit *a, FILE *out)
@@ -165,7 +174,7 @@ keel_status keel_audit_json(const keel_audit *a, FILE *out)
     }
     fputs("  ],\n  \"nurses\": [\n", out);
     for (size_t i = 0; i < a->npeople; i++) {
-        write_person(out, &a->people[i]);
+        write_person(out, a, &a->people[i]);
         fputs(i + 1 < a->npeople ? ",\n" : "\n", out);
     }
     fputs("  ],\n  \"groups\": [\n", out);

@@ -18,6 +18,7 @@ static const audit_writer writers[] = {
     {"csv", keel_audit_csv_shifts},
     {"csv-nurse-shifts", keel_audit_csv_nurse_shifts},
     {"csv-nurses", keel_audit_csv_nurses},
+    {"csv-nurse-groups", keel_audit_csv_nurse_groups},
     {"csv-violations", keel_audit_csv_violations},
 };
 
@@ -37,10 +38,12 @@ keel_status keel_audit_write(const char *format, const keel_audit *audit, FILE *
                              keel_error *err)
 {
     for (size_t i = 0; i < NWRITERS; i++)
-        if (strcmp(writers[i].name, format) == 0)
-            return writers[i].write(audit, out);
+        if (strcmp(writers[i].name, format) == 0) {
+            keel_status rc = writers[i].write(audit, out);
+            return rc ? keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory") : KEEL_OK;
+        }
     return keel_error_add(err, KEEL_ERR_USAGE, NULL, 0, 0, NULL,
                           "unknown audit format '%s'; expected text, json, csv, "
-                          "csv-nurse-shifts, csv-nurses or csv-violations",
+                          "csv-nurse-shifts, csv-nurses, csv-nurse-groups or csv-violations",
                           format);
 }

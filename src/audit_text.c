@@ -43,11 +43,9 @@ static int by_excess(const void *x, const void *y)
     return a->index < b->index ? -1 : a->index > b->index;
 }
 
-static void write_worst(FILE *out, const keel_audit *a)
+/* order: room for a->nshifts pointers. */
+static void write_worst(FILE *out, const keel_audit *a, const keel_audit_shift **order)
 {
-    const keel_audit_shift **order = keel_calloc(a->nshifts ? a->nshifts : 1, sizeof *order);
-    if (!order)
-        return;
     for (size_t i = 0; i < a->nshifts; i++)
         order[i] = &a->shifts[i];
     qsort(order, a->nshifts, sizeof *order, by_excess);
@@ -68,7 +66,6 @@ static void write_worst(FILE *out, const keel_audit *a)
                                                    : "unknown (no valid plan)");
         fprintf(out, "; %zu rule%s broken\n", s->nviolations, s->nviolations == 1 ? "" : "s");
     }
-    free(order);
 }
 
 static void write_standouts(FILE *out, const keel_audit *a)
@@ -173,6 +170,9 @@ static void write_groups(FILE *out, const keel_audit *a)
 
 keel_status keel_audit_text(const keel_audit *a, FILE *out)
 {
+    const keel_audit_shift **order = keel_calloc(a->nshifts ? a->nshifts : 1, sizeof *order);
+    if (!order) /* say nothing rather than half a report */
+        return KEEL_ERR_NOMEM;
     const char *first = NULL, *last = NULL;
     for (size_t i = 0; i < a->nshifts; i++) {
         const char *d = a->shifts[i].date;
@@ -189,7 +189,8 @@ keel_status keel_audit_text(const keel_audit *a, FILE *out)
     fprintf(out, ", %zu nurse%s, %zu rule%s broken\n\n", a->npeople, a->npeople == 1 ? "" : "s",
             a->nviolations, a->nviolations == 1 ? "" : "s");
     keel_report_out_wrapped(out, "", KEEL_AUDIT_NOTE, WIDTH);
-    write_worst(out, a);
+    write_worst(out, a, order);
+    free(order);
     write_standouts(out, a);
     write_breaks(out, a);
     write_people(out, a);

@@ -16,6 +16,7 @@
 
 #include <cmocka.h>
 
+#include "alloc.h"
 #include "audit_internal.h"
 #include "keel/keel.h"
 
@@ -251,6 +252,62 @@ static void test_merged_shards_give_the_single_runs_report(void **state)
     keel_error_fini(&err);
 }
 
+/* Every allocation of the audit failed in turn (one thread, no solve):
+ * each call returns KEEL_ERR_NOMEM cleanly, or everything succeeds. */
+static void test_every_failed_allocation_ends_in_a_clean_error(void **state)
+{
+    (void)state;
+    keel_audit_options o = {.no_best = true, .jobs = 1};
+    for (long n = 1;; n++) {
+        keel_error err;
+        keel_error_init(&err);
+        keel_roster **rs = NULL;
+        size_t nr = 0, docs[2] = {1, 2};
+        keel_audit_shift *shifts = NULL;
+        keel_audit *a = NULL;
+        char *text = NULL;
+        size_t len = 0;
+        keel_alloc_fail_at(n);
+        keel_status rc =
+            keel_roster_parse_stream("h.yaml", two_shifts, strlen(two_shifts), &rs, &nr, &err);
+        if (!rc) {
+            shifts = keel_calloc(nr, sizeof *shifts);
+            rc = shifts ? keel_audit_shifts_compute(rs, docs, nr, &o, shifts, &err)
+                        : KEEL_ERR_NOMEM;
+            for (size_t i = 0; rc && shifts && i < nr; i++)
+                keel_audit_shift_fini(&shifts[i]);
+            if (rc) {
+                free(shifts);
+                shifts = NULL;
+            }
+        }
+        if (!rc) {
+            rc = keel_audit_summarise(shifts, nr, &o, &a, &err);
+            shifts = NULL;
+        }
+        long made = keel_alloc_fail_at(0);
+        if (!rc) { /* the text writer allocates too: it writes nothing then */
+            FILE *f = open_memstream(&text, &len);
+            keel_alloc_fail_at(1);
+            assert_int_equal(keel_audit_write("text", a, f, &err), KEEL_ERR_NOMEM);
+            keel_alloc_fail_at(0);
+            fclose(f);
+            assert_int_equal(len, 0);
+        }
+        free(text);
+        keel_audit_free(a);
+        for (size_t i = 0; i < nr; i++)
+            keel_roster_free(rs[i]);
+        free(rs);
+        keel_error_fini(&err);
+        if (made < n) {
+            assert_int_equal(rc, KEEL_OK);
+            break;
+        }
+        assert_int_equal(rc, KEEL_ERR_NOMEM);
+    }
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -261,6 +318,7 @@ int main(void)
         cmocka_unit_test(test_a_limit_broken_at_one_moment_has_its_interval),
         cmocka_unit_test(test_a_stream_reports_each_documents_problems_at_their_lines),
         cmocka_unit_test(test_merged_shards_give_the_single_runs_report),
+        cmocka_unit_test(test_every_failed_allocation_ends_in_a_clean_error),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

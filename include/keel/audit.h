@@ -142,6 +142,13 @@ typedef struct keel_audit_tally {
     bool stands_out;
 } keel_audit_tally;
 
+/* A nurse's heaviest loads on the shifts of one group (weekday or label). */
+typedef struct keel_audit_share {
+    size_t shifts;   /* shifts of the group she was counted on */
+    double heaviest; /* her shares of the heaviest load on them */
+    double expected; /* her chances on those at stake */
+} keel_audit_share;
+
 typedef struct keel_audit_person {
     char *id;
     size_t shifts;         /* shifts on whose roster she is */
@@ -149,6 +156,7 @@ typedef struct keel_audit_person {
     double mean_utilisation, worst_utilisation; /* over counted shifts */
     size_t violations;     /* violations naming her */
     keel_audit_tally tally[KEEL_AUDIT_MEASURES];
+    keel_audit_share *by; /* [ngroups of the audit], in the order of its groups */
 } keel_audit_person;
 
 /* Shifts grouped by weekday ("Mon" ...) or by shift label. */
@@ -199,10 +207,18 @@ KEEL_API keel_status keel_audit_summarise(keel_audit_shift *shifts, size_t n,
 
 KEEL_API void keel_audit_free(keel_audit *audit);
 
+/* What every audit report says beside the caution (KEEL_CAUTION). */
+#define KEEL_AUDIT_NOTE                                                                            \
+    "These figures describe the assignments each nurse was given, not how she worked; they "     \
+    "judge the plans, never the nurses. For audits kept over time, identify nurses by stable "    \
+    "pseudonymous ids rather than names."
+
 /* Writes the audit in a format: "text", "json", "csv" (one row per shift),
  * "csv-nurse-shifts" (one row per nurse and shift), "csv-nurses" (one row
- * per nurse and measure) or "csv-violations" (one row per broken rule).  CSV follows RFC 4180.  Statuses: KEEL_OK,
- * KEEL_ERR_USAGE (unknown format). */
+ * per nurse and measure), "csv-nurse-groups" (one row per nurse and
+ * weekday or label) or "csv-violations" (one row per broken rule).
+ * CSV follows RFC 4180.  Statuses: KEEL_OK, KEEL_ERR_USAGE (unknown
+ * format), KEEL_ERR_NOMEM (nothing written). */
 KEEL_API keel_status keel_audit_write(const char *format, const keel_audit *audit, FILE *out,
                                       keel_error *err);
 KEEL_API size_t keel_audit_nformats(void);

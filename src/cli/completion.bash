@@ -41,7 +41,7 @@ _keel_formats() {
     case $1 in
     assign) echo "text yaml json" ;;
     check) echo "text json" ;;
-    audit) echo "text json csv csv-nurse-shifts csv-nurses csv-violations" ;;
+    audit) echo "text json csv csv-nurse-shifts csv-nurses csv-nurse-groups csv-violations" ;;
     esac
 }
 

@@ -140,7 +140,8 @@ static const command commands[] = {
      "These figures describe the assignments given, never a nurse's performance.\n"
      "\n"
      "  -f, --format FMT       text (default), json, csv (a row per shift),\n"
-     "                         csv-nurse-shifts, csv-nurses or csv-violations\n"
+     "                         csv-nurse-shifts, csv-nurses, csv-nurse-groups or\n"
+     "                         csv-violations\n"
      "      --no-best          do not solve for the best possible of each shift\n"
      "  -t, --time-limit SECS  limit for each shift's best-possible solve (default 10)\n"
      "  -j, --jobs N           solve N shifts at once (default: the number of cores)\n"
@@ -856,9 +857,7 @@ static int run_audit(const options *opt)
         audit_out a = {.audit = audit};
         code = write_out(opt, NULL, write_audit, &a);
         if (!code && strncmp(opt->format, "csv", 3) == 0)
-            fprintf(stderr, "keel audit: %s; %s\n", KEEL_CAUTION,
-                    "these figures describe the assignments each nurse was given, not how she "
-                    "worked");
+            fprintf(stderr, "keel audit: %s\n%s\n", KEEL_AUDIT_NOTE, KEEL_CAUTION);
         if (!code && audit->nviolations)
             code = EXIT_AUDIT_BROKEN;
     }

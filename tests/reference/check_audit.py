@@ -33,6 +33,7 @@ The last line is "N passed, M failed"; exit 1 if M > 0.
 """
 
 import argparse
+import datetime
 import json
 import math
 import os
@@ -247,6 +248,28 @@ def main():
                     check(people[n]["measures"][m]["p_adjusted"] is None and
                           not people[n]["measures"][m]["stands_out"],
                           "%s %s %s: not tested, not standing out" % (name, n, m))
+        # each nurse's heaviest loads by weekday and by label
+        by = {}
+        for doc in docs:
+            amounts, _ = shift_figures(doc)
+            top = max(v["heaviest"] for v in amounts.values())
+            at_top = [n for n, v in amounts.items() if v["heaviest"] == top]
+            wd = datetime.date.fromisoformat(doc["shift"]["date"]).strftime("%a")
+            for n in amounts:
+                for key in (("weekday", wd), ("label", doc["shift"]["label"])):
+                    e = by.setdefault((n,) + key, [0, Fraction(0), 0.0])
+                    e[0] += 1
+                    e[1] += Fraction(1, len(at_top)) if n in at_top else 0
+                    e[2] += 1.0 / len(amounts)
+        for n, person in people.items():
+            got = {(n, g["by"], g["key"]): g for g in person["by"]}
+            want = {k: v for k, v in by.items() if k[0] == n}
+            ok = set(got) == set(want) and all(
+                got[k]["shifts"] == v[0] and abs(got[k]["heaviest"] - float(v[1])) < TOL
+                and abs(got[k]["expected_heaviest"] - v[2]) < TOL for k, v in want.items())
+            check(ok, "%s %s: heaviest by weekday and label %s against %s" % (
+                name, n, person["by"], sorted(want.items())))
+
         if name in ("vary", "equal"):
             bias = "N03" if name == "vary" else "N06"
             check(people[bias]["measures"]["heaviest"]["stands_out"],
