@@ -4,7 +4,7 @@
  * the merge of every shard's (--merge).  The file is text, one record a
  * line, fields separated by tabs:
  *
- *   keel-audit-partial 1 <I>/<N> <shifts of the whole audit>
+ *   keel-audit-partial 1 <I>/<N> <shifts of the whole audit> <best|no-best> <time limit ms>
  *   S <index> <source> <document> <date> <label> <weekday> ... one shift
  *   N <id> <counted> ...                                 each of its nurses
  *   V <rule> <message> <k> <patient>... <k> <nurse>... <k> <from> <to>...
@@ -105,8 +105,9 @@ keel_status keel_audit_partial_write(const keel_audit_shift *shifts, size_t n,
                                      const keel_audit_options *o, FILE *out, keel_error *err)
 {
     (void)err;
-    fprintf(out, MAGIC " %zu/%zu %zu\n", o->shard ? o->shard : 1, o->nshards ? o->nshards : 1,
-            n);
+    fprintf(out, MAGIC " %zu/%zu %zu %s %ld\n", o->shard ? o->shard : 1,
+            o->nshards ? o->nshards : 1, n, o->no_best ? "no-best" : "best",
+            o->time_limit_ms > 0 ? o->time_limit_ms : 0);
     for (size_t i = 0; i < n; i++)
         if (keel_audit_in_shard(o, i))
             write_shift(out, &shifts[i]);
@@ -321,6 +322,8 @@ typedef struct merge {
     bool *have;
     size_t n, nshards;
     bool *shard_seen;
+    char best[8];  /* "best" or "no-best", as the first partial says */
+    long limit_ms; /* the first partial's time limit (0: the default) */
 } merge;
 
 /* Reads one partial file into the merge. */
@@ -346,13 +349,22 @@ static keel_status read_partial(const char *path, merge *mg, keel_error *err)
         rd.line++;
         if (rd.line == 1) {
             size_t part, whole, n;
-            char tail;
-            if (sscanf(line, MAGIC " %zu/%zu %zu%c", &part, &whole, &n, &tail) != 3 ||
-                part < 1 || part > whole) {
+            char tail, best[8];
+            long limit;
+            if (sscanf(line, MAGIC " %zu/%zu %zu %7s %ld%c", &part, &whole, &n, best, &limit,
+                       &tail) != 5 ||
+                part < 1 || part > whole || (strcmp(best, "best") && strcmp(best, "no-best"))) {
                 bad(&rd, "the first line is not a partial result's");
             } else if (mg->shifts && (whole != mg->nshards || n != mg->n)) {
                 bad(&rd, "this partial is of another audit (another number of shards or shifts)");
+            } else if (mg->shifts && (strcmp(best, mg->best) != 0 || limit != mg->limit_ms)) {
+                bad(&rd, "this partial was run with other options (--no-best or --time-limit) "
+                         "than the first");
             } else {
+                if (!mg->shifts) {
+                    memcpy(mg->best, best, sizeof mg->best);
+                    mg->limit_ms = limit;
+                }
                 if (!mg->shifts) {
                     mg->n = n;
                     mg->nshards = whole;

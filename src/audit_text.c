@@ -113,6 +113,16 @@ static void write_breaks(FILE *out, const keel_audit *a)
     if (listed > LISTED_BREAKS)
         fprintf(out, "  and %zu more (every one is in --format json and csv-violations)\n",
                 listed - LISTED_BREAKS);
+    for (size_t i = 0; i < a->nshifts; i++) {
+        const keel_audit_shift *s = &a->shifts[i];
+        if (!s->nunassigned)
+            continue;
+        fputs("  ", out);
+        shift_name(out, s);
+        fprintf(out, ": %zu patient%s without a nurse in the file; the figures count only the "
+                     "patients with one\n",
+                s->nunassigned, s->nunassigned == 1 ? "" : "s");
+    }
     /* The ratio table's date, once: the note of the first shift it concerns. */
     size_t noted = 0;
     const keel_audit_shift *first = NULL;

@@ -439,6 +439,9 @@ expect 5 "merge the shards" -- "$keel" audit --merge "$work/part-3.txt" "$work/p
 if cmp -s "$work/out" "$work/single.json"; then ok "the merged report is the single run's, byte for byte"; else not_ok "the merged report is the single run's, byte for byte"; fi
 expect 2 "a merge missing a shard" -- "$keel" audit --merge "$work/part-1.txt" "$work/part-2.txt"
 has "$work/err" "shard 3/3 is missing" "the missing shard is named"
+"$keel" audit "$hist" --shard 3/3 --no-best -o "$work/part-3-nobest.txt"
+expect 2 "a merge of shards run with other options" -- "$keel" audit --merge "$work/part-1.txt" "$work/part-2.txt" "$work/part-3-nobest.txt"
+has "$work/err" "part-3-nobest.txt:1:1: this partial was run with other options" "the odd partial is named at its line"
 "$keel" audit "$hist" --jobs 2 --format json > "$work/jobs.json"
 if cmp -s "$work/jobs.json" "$work/single.json"; then ok "two threads give the one thread's report"; else not_ok "two threads give the one thread's report"; fi
 if command -v parallel >/dev/null 2>&1; then
