@@ -361,8 +361,7 @@ keel_status keel_audit_summarise(keel_audit_shift *shifts, size_t n, const keel_
     a->nshifts = n;
     a->min_shifts = o && o->min_shifts ? o->min_shifts : KEEL_AUDIT_MIN_SHIFTS;
     a->alpha = KEEL_AUDIT_ALPHA;
-    bool ok = sum_people(a, &ch) && test_people(a, ch) && sum_groups(a) &&
-              sum_people_by_group(a);
+    bool ok = sum_people(a, &ch) && test_people(a, ch) && sum_groups(a) && sum_people_by_group(a);
     for (size_t i = 0; ch && i < a->npeople * KEEL_AUDIT_MEASURES; i++)
         free(ch[i].p);
     free(ch);

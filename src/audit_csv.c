@@ -54,17 +54,21 @@ keel_status keel_audit_csv_shifts(const keel_audit *a, FILE *out)
         shift_key(out, s);
         field(out, s->weekday >= 0 ? keel_audit_stats_weekday_name(s->weekday) : NULL, false);
         fprintf(out, "%zu,%zu,%zu,", s->npatients, s->nunassigned, s->ncounted);
-        const double figures[] = {s->max_utilisation, s->min_utilisation, s->mean_utilisation,
-                                  s->spread,          s->peak_to_mean,    s->cv,
-                                  s->jain,            s->gini};
+        const double figures[] = {s->max_utilisation,
+                                  s->min_utilisation,
+                                  s->mean_utilisation,
+                                  s->spread,
+                                  s->peak_to_mean,
+                                  s->cv,
+                                  s->jain,
+                                  s->gini};
         for (size_t k = 0; k < sizeof figures / sizeof figures[0]; k++)
             number(out, figures[k], true);
         field(out, s->best_status, false);
         number(out, s->best_max_utilisation, s->best_known);
         number(out, s->best_bound, s->best_known);
         number(out, s->excess, s->best_known);
-        fprintf(out, "%ld,%ld,%zu,", s->continuity_kept, s->continuity_candidates,
-                s->nviolations);
+        fprintf(out, "%ld,%ld,%zu,", s->continuity_kept, s->continuity_candidates, s->nviolations);
         /* The rules broken, each once, in the order first broken. */
         char rules[512] = "";
         for (size_t v = 0; v < s->nviolations; v++) {

@@ -134,8 +134,8 @@ static void write_person(FILE *out, const keel_audit *a, const keel_audit_person
             ", \"shifts\": %zu, \"counted_shifts\": %zu, \"mean_utilisation\": %.12g, "
             "\"worst_utilisation\": %.12g, \"violations\": %zu,\n     \"heaviest\": %.12g, "
             "\"expected_heaviest\": %.12g, \"p_value\": ",
-            p->shifts, p->counted_shifts, p->mean_utilisation, p->worst_utilisation,
-            p->violations, h->count, h->expected);
+            p->shifts, p->counted_shifts, p->mean_utilisation, p->worst_utilisation, p->violations,
+            h->count, h->expected);
     maybe(out, h->p_value);
     fputs(", \"p_adjusted\": ", out);
     maybe(out, h->p_adjusted);
@@ -190,8 +190,7 @@ keel_status keel_audit_json(const keel_audit *a, FILE *out)
             fprintf(out, "%.12g", g->mean_excess);
         else
             fputs("null", out);
-        fprintf(out, ", \"violations\": %zu}%s\n", g->violations,
-                i + 1 < a->ngroups ? "," : "");
+        fprintf(out, ", \"violations\": %zu}%s\n", g->violations, i + 1 < a->ngroups ? "," : "");
     }
     fputs("  ]\n}\n", out);
     return KEEL_OK;

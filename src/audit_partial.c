@@ -219,9 +219,14 @@ static void read_shift(reader *rd, keel_audit_shift *s)
     s->npatients = take_size(rd);
     s->nunassigned = take_size(rd);
     s->ncounted = take_size(rd);
-    double *figures[] = {&s->max_utilisation, &s->min_utilisation, &s->mean_utilisation,
-                         &s->spread,          &s->peak_to_mean,    &s->cv,
-                         &s->jain,            &s->gini};
+    double *figures[] = {&s->max_utilisation,
+                         &s->min_utilisation,
+                         &s->mean_utilisation,
+                         &s->spread,
+                         &s->peak_to_mean,
+                         &s->cv,
+                         &s->jain,
+                         &s->gini};
     for (size_t k = 0; k < sizeof figures / sizeof figures[0]; k++)
         *figures[k] = take_double(rd);
     s->best_known = take_long(rd) != 0;

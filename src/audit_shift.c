@@ -24,8 +24,8 @@
 
 const char *keel_audit_measure_name(keel_audit_measure m)
 {
-    static const char *const names[KEEL_AUDIT_MEASURES] = {"heaviest", "high_acuity",
-                                                           "isolation", "zones"};
+    static const char *const names[KEEL_AUDIT_MEASURES] = {"heaviest", "high_acuity", "isolation",
+                                                           "zones"};
     return m < KEEL_AUDIT_MEASURES ? names[m] : "";
 }
 
@@ -39,8 +39,7 @@ static char *copy_or_null(const char *s, bool *nomem)
 }
 
 /* Copies the ids of the roster's patients (or nurses) listed by index. */
-static char **ids_of(const keel_roster *r, const size_t *idx, size_t n, bool patients,
-                     bool *nomem)
+static char **ids_of(const keel_roster *r, const size_t *idx, size_t n, bool patients, bool *nomem)
 {
     char **ids = keel_calloc(n ? n : 1, sizeof *ids);
     if (!ids) {
@@ -132,15 +131,15 @@ static void take_breaks(const keel_roster *r, const keel_course *c, keel_audit_s
         v->nintervals = 1;
         const char *who = b->cover >= 0 ? r->nurses[b->cover].id : NULL;
         if (strcmp(b->rule, "no_cover") == 0)
-            v->message = keel_asprintf("from %s to %s, %s's break has nobody to hold her %d "
-                                       "patient%s",
-                                       at, until, r->nurses[b->nurse].id, b->most,
-                                       b->most == 1 ? "" : "s");
+            v->message =
+                keel_asprintf("from %s to %s, %s's break has nobody to hold her %d "
+                              "patient%s",
+                              at, until, r->nurses[b->nurse].id, b->most, b->most == 1 ? "" : "s");
         else
-            v->message = keel_asprintf("from %s to %s, %s holds %d patients while covering %s's "
-                                       "break, over the limit of %d (%s)",
-                                       at, until, who, b->most, r->nurses[b->nurse].id, b->limit,
-                                       b->rule);
+            v->message =
+                keel_asprintf("from %s to %s, %s holds %d patients while covering %s's "
+                              "break, over the limit of %d (%s)",
+                              at, until, who, b->most, r->nurses[b->nurse].id, b->limit, b->rule);
         *nomem = *nomem || !v->message;
     }
 }
@@ -166,8 +165,7 @@ static void count_amounts(const keel_roster *r, const keel_workload *w, const in
             if (!seen[p]) {
                 seen[p] = 1;
                 an->amount[KEEL_AUDIT_HIGH_ACUITY] += w->high_acuity[q];
-                an->amount[KEEL_AUDIT_ISOLATION] +=
-                    r->patients[p].isolation != KEEL_ISOLATION_NONE;
+                an->amount[KEEL_AUDIT_ISOLATION] += r->patients[p].isolation != KEEL_ISOLATION_NONE;
             }
             if (w->zone[q] >= 0 && !seen[r->npatients + (size_t)w->zone[q]]) {
                 seen[r->npatients + (size_t)w->zone[q]] = 1;
@@ -195,11 +193,10 @@ static void share_the_most(keel_audit_shift *s)
             const keel_audit_nurse *an = &s->nurses[n];
             if (!an->counted)
                 continue;
-            int c = top == SIZE_MAX ? 1
-                    : m == KEEL_AUDIT_HEAVIEST
-                        ? compare_use(an, &s->nurses[top])
-                        : (an->amount[m] > s->nurses[top].amount[m]) -
-                              (an->amount[m] < s->nurses[top].amount[m]);
+            int c = top == SIZE_MAX            ? 1
+                    : m == KEEL_AUDIT_HEAVIEST ? compare_use(an, &s->nurses[top])
+                                               : (an->amount[m] > s->nurses[top].amount[m]) -
+                                                     (an->amount[m] < s->nurses[top].amount[m]);
             if (c > 0) {
                 top = n;
                 ties = 1;
@@ -214,9 +211,9 @@ static void share_the_most(keel_audit_shift *s)
             continue; /* nothing to be the most of: not at stake */
         for (size_t n = 0; n < s->nnurses; n++) {
             keel_audit_nurse *an = &s->nurses[n];
-            int c = m == KEEL_AUDIT_HEAVIEST ? compare_use(an, t)
-                                             : (an->amount[m] > t->amount[m]) -
-                                                   (an->amount[m] < t->amount[m]);
+            int c = m == KEEL_AUDIT_HEAVIEST
+                        ? compare_use(an, t)
+                        : (an->amount[m] > t->amount[m]) - (an->amount[m] < t->amount[m]);
             if (an->counted && c == 0)
                 an->share[m] = 1.0 / (double)ties;
         }

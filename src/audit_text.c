@@ -16,8 +16,8 @@
 
 enum {
     WIDTH = 78,
-    WORST_SHIFTS = 5,     /* shifts listed as furthest from the best possible */
-    LISTED_BREAKS = 20,   /* broken rules listed one by one */
+    WORST_SHIFTS = 5,   /* shifts listed as furthest from the best possible */
+    LISTED_BREAKS = 20, /* broken rules listed one by one */
 };
 
 static void shift_name(FILE *out, const keel_audit_shift *s)
@@ -57,13 +57,13 @@ static void write_worst(FILE *out, const keel_audit *a, const keel_audit_shift *
         shift_name(out, s);
         fprintf(out, ": heaviest %.1f %%", 100 * s->max_utilisation);
         if (s->best_known)
-            fprintf(out, ", best possible %.1f %%%s, excess %.1f points", 100 * s->best_max_utilisation,
-                    strcmp(s->best_status, "optimal") == 0 ? "" : " (not proven)",
-                    100 * s->excess);
+            fprintf(out, ", best possible %.1f %%%s, excess %.1f points",
+                    100 * s->best_max_utilisation,
+                    strcmp(s->best_status, "optimal") == 0 ? "" : " (not proven)", 100 * s->excess);
         else
-            fprintf(out, ", best possible %s", strcmp(s->best_status, "skipped") == 0
-                                                   ? "not sought"
-                                                   : "unknown (no valid plan)");
+            fprintf(out, ", best possible %s",
+                    strcmp(s->best_status, "skipped") == 0 ? "not sought"
+                                                           : "unknown (no valid plan)");
         fprintf(out, "; %zu rule%s broken\n", s->nviolations, s->nviolations == 1 ? "" : "s");
     }
 }
@@ -119,8 +119,9 @@ static void write_breaks(FILE *out, const keel_audit *a)
             continue;
         fputs("  ", out);
         shift_name(out, s);
-        fprintf(out, ": %zu patient%s without a nurse in the file; the figures count only the "
-                     "patients with one\n",
+        fprintf(out,
+                ": %zu patient%s without a nurse in the file; the figures count only the "
+                "patients with one\n",
                 s->nunassigned, s->nunassigned == 1 ? "" : "s");
     }
     /* The ratio table's date, once: the note of the first shift it concerns. */

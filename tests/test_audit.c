@@ -272,8 +272,8 @@ static void test_every_failed_allocation_ends_in_a_clean_error(void **state)
             keel_roster_parse_stream("h.yaml", two_shifts, strlen(two_shifts), &rs, &nr, &err);
         if (!rc) {
             shifts = keel_calloc(nr, sizeof *shifts);
-            rc = shifts ? keel_audit_shifts_compute(rs, docs, nr, &o, shifts, &err)
-                        : KEEL_ERR_NOMEM;
+            rc =
+                shifts ? keel_audit_shifts_compute(rs, docs, nr, &o, shifts, &err) : KEEL_ERR_NOMEM;
             for (size_t i = 0; rc && shifts && i < nr; i++)
                 keel_audit_shift_fini(&shifts[i]);
             if (rc) {

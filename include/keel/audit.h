@@ -84,7 +84,7 @@ typedef struct keel_audit_nurse {
     int load_minutes;
     int capacity_minutes;
     double utilisation;
-    int amount[KEEL_AUDIT_MEASURES]; /* high-acuity and isolation patients, zones ([0] unused) */
+    int amount[KEEL_AUDIT_MEASURES];   /* high-acuity and isolation patients, zones ([0] unused) */
     double share[KEEL_AUDIT_MEASURES]; /* her share of the most: 1/t, or 0 */
 } keel_audit_nurse;
 
@@ -133,11 +133,11 @@ typedef struct keel_audit_shift {
 
 /* A nurse's count of one measure over the period. */
 typedef struct keel_audit_tally {
-    double count;     /* sum of her shares */
-    double expected;  /* sum of her chances */
-    size_t at_stake;  /* shifts at stake for the measure on which she was counted */
-    bool whole;       /* no tied shift: count is whole and p_value exact */
-    double p_value;   /* P(X >= count); negative when not whole */
+    double count;      /* sum of her shares */
+    double expected;   /* sum of her chances */
+    size_t at_stake;   /* shifts at stake for the measure on which she was counted */
+    bool whole;        /* no tied shift: count is whole and p_value exact */
+    double p_value;    /* P(X >= count); negative when not whole */
     double p_adjusted; /* Holm; negative when not tested */
     bool stands_out;
 } keel_audit_tally;
@@ -151,10 +151,10 @@ typedef struct keel_audit_share {
 
 typedef struct keel_audit_person {
     char *id;
-    size_t shifts;         /* shifts on whose roster she is */
-    size_t counted_shifts; /* of them, counted */
+    size_t shifts;                              /* shifts on whose roster she is */
+    size_t counted_shifts;                      /* of them, counted */
     double mean_utilisation, worst_utilisation; /* over counted shifts */
-    size_t violations;     /* violations naming her */
+    size_t violations;                          /* violations naming her */
     keel_audit_tally tally[KEEL_AUDIT_MEASURES];
     keel_audit_share *by; /* [ngroups of the audit], in the order of its groups */
 } keel_audit_person;
@@ -209,8 +209,8 @@ KEEL_API void keel_audit_free(keel_audit *audit);
 
 /* What every audit report says beside the caution (KEEL_CAUTION). */
 #define KEEL_AUDIT_NOTE                                                                            \
-    "These figures describe the assignments each nurse was given, not how she worked; they "     \
-    "judge the plans, never the nurses. For audits kept over time, identify nurses by stable "    \
+    "These figures describe the assignments each nurse was given, not how she worked; they "       \
+    "judge the plans, never the nurses. For audits kept over time, identify nurses by stable "     \
     "pseudonymous ids rather than names."
 
 /* Writes the audit in a format: "text", "json", "csv" (one row per shift),
@@ -237,8 +237,7 @@ KEEL_API keel_status keel_audit_partial_write(const keel_audit_shift *shifts, si
  * each shard once.  Statuses: KEEL_OK, KEEL_ERR_IO, KEEL_ERR_INPUT (naming
  * the file and line), KEEL_ERR_NOMEM. */
 KEEL_API keel_status keel_audit_partial_read(const char *const *paths, size_t npaths,
-                                             keel_audit_shift **shifts, size_t *n,
-                                             keel_error *err);
+                                             keel_audit_shift **shifts, size_t *n, keel_error *err);
 
 #ifdef __cplusplus
 }
