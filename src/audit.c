@@ -23,7 +23,7 @@ typedef struct pool {
     pthread_mutex_t lock;
     keel_roster *const *rosters;
     const size_t *documents;
-    size_t n, next;
+    size_t n, next, first;
     const keel_audit_options *o;
     keel_audit_shift *shifts;
     keel_status *status; /* [n] */
@@ -36,24 +36,29 @@ static void *work(void *arg)
     for (;;) {
         pthread_mutex_lock(&pl->lock);
         size_t i = pl->next;
-        while (i < pl->n && !keel_audit_in_shard(pl->o, i))
+        while (i < pl->n && !keel_audit_in_shard(pl->o, pl->first + i))
             i++;
         pl->next = i + 1;
         pthread_mutex_unlock(&pl->lock);
         if (i >= pl->n)
             return NULL;
-        pl->status[i] = keel_audit_shift_compute(pl->rosters[i], i, pl->documents[i], pl->o,
-                                                 &pl->shifts[i], &pl->errors[i]);
+        pl->status[i] = keel_audit_shift_compute(pl->rosters[i], pl->first + i, pl->documents[i],
+                                                 pl->o, &pl->shifts[i], &pl->errors[i]);
     }
 }
 
 keel_status keel_audit_shifts_compute(keel_roster *const *rosters, const size_t *documents,
-                                      size_t n, const keel_audit_options *o,
+                                      size_t n, size_t first, const keel_audit_options *o,
                                       keel_audit_shift *shifts, keel_error *err)
 {
-    pool pl = {.rosters = rosters, .documents = documents, .n = n, .o = o, .shifts = shifts};
+    pool pl = {.rosters = rosters,
+               .documents = documents,
+               .n = n,
+               .first = first,
+               .o = o,
+               .shifts = shifts};
     for (size_t i = 0; i < n; i++)
-        shifts[i] = (keel_audit_shift){.index = i};
+        shifts[i] = (keel_audit_shift){.index = first + i};
     pl.status = keel_calloc(n ? n : 1, sizeof *pl.status);
     pl.errors = keel_calloc(n ? n : 1, sizeof *pl.errors);
     size_t jobs = o->jobs > 1 ? o->jobs : 1;

@@ -94,7 +94,7 @@ static void compute(const char *text, keel_audit **out, const keel_audit_options
         docs[i] = i + 1;
     keel_audit_shift *shifts = calloc(n, sizeof *shifts);
     assert_non_null(shifts);
-    assert_int_equal(keel_audit_shifts_compute(rs, docs, n, o, shifts, &err), KEEL_OK);
+    assert_int_equal(keel_audit_shifts_compute(rs, docs, n, 0, o, shifts, &err), KEEL_OK);
     for (size_t i = 0; i < n; i++)
         keel_roster_free(rs[i]);
     free(rs);
@@ -217,7 +217,7 @@ static void test_merged_shards_give_the_single_runs_report(void **state)
             keel_roster_parse_stream("h.yaml", two_shifts, strlen(two_shifts), &rs, &n, &err),
             KEEL_OK);
         keel_audit_shift shifts[2];
-        assert_int_equal(keel_audit_shifts_compute(rs, docs, n, &o, shifts, &err), KEEL_OK);
+        assert_int_equal(keel_audit_shifts_compute(rs, docs, n, 0, &o, shifts, &err), KEEL_OK);
         snprintf(paths[k - 1], sizeof paths[k - 1], "test-audit-partial-%zu.txt", k);
         list[k - 1] = paths[k - 1];
         FILE *pf = fopen(paths[k - 1], "w");
@@ -273,7 +273,7 @@ static void test_every_failed_allocation_ends_in_a_clean_error(void **state)
         if (!rc) {
             shifts = keel_calloc(nr, sizeof *shifts);
             rc =
-                shifts ? keel_audit_shifts_compute(rs, docs, nr, &o, shifts, &err) : KEEL_ERR_NOMEM;
+                shifts ? keel_audit_shifts_compute(rs, docs, nr, 0, &o, shifts, &err) : KEEL_ERR_NOMEM;
             for (size_t i = 0; rc && shifts && i < nr; i++)
                 keel_audit_shift_fini(&shifts[i]);
             if (rc) {

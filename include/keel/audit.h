@@ -183,14 +183,17 @@ typedef struct keel_audit {
     double alpha;
 } keel_audit;
 
-/* Computes shifts[i] for the rosters the options' shard holds (all of them
- * without a shard), in up to options->jobs threads; the others are left
- * zeroed, with index set.  rosters[i] was document documents[i] of its file.
- * The caller owns shifts[0 .. n) (keel_audit_shift_fini() each).  Statuses:
- * KEEL_OK, KEEL_ERR_INPUT (a roster whose workload cannot be derived),
- * KEEL_ERR_NOMEM, KEEL_ERR_SOLVER. */
+/* Computes shifts[i] for rosters[i], the shift numbered first + i of the
+ * audit (so that many rosters may be audited a batch at a time), when the
+ * options' shard holds that number (every one without a shard), in up to
+ * options->jobs threads; the others are left zeroed, with index set.
+ * rosters[i] was document documents[i] of its file.  The caller owns
+ * shifts[0 .. n) (keel_audit_shift_fini() each).  Statuses: KEEL_OK,
+ * KEEL_ERR_INPUT (a roster whose workload cannot be derived), KEEL_ERR_NOMEM,
+ * KEEL_ERR_SOLVER. */
 KEEL_API keel_status keel_audit_shifts_compute(keel_roster *const *rosters, const size_t *documents,
-                                               size_t n, const keel_audit_options *options,
+                                               size_t n, size_t first,
+                                               const keel_audit_options *options,
                                                keel_audit_shift *shifts, keel_error *err);
 
 /* True when shift i belongs to the options' shard. */

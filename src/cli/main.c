@@ -764,9 +764,36 @@ static void audit_input_fini(audit_input *in)
     free(in->documents);
 }
 
-/* Loads every file, reporting the problems of all of them. */
-static keel_status load_shifts(const options *opt, audit_input *in, keel_error *err)
+/* Shifts audited a batch at a time, so that only a batch of rosters (and
+ * the file being read) is in memory with the results: enough for every
+ * thread to have work. */
+enum { BATCH_PER_JOB = 64 };
+
+/* Audits the batch in `in` into *shifts (grown), then frees its rosters. */
+static keel_status audit_batch(audit_input *in, const keel_audit_options *ao,
+                               keel_audit_shift **shifts, size_t *n, keel_error *err)
 {
+    keel_audit_shift *grown = realloc(*shifts, (*n + in->n + 1) * sizeof *grown);
+    keel_status rc = grown ? KEEL_OK
+                           : keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL,
+                                            "out of memory");
+    if (grown) {
+        *shifts = grown;
+        rc = keel_audit_shifts_compute(in->rosters, in->documents, in->n, *n, ao, *shifts + *n,
+                                       err);
+        *n += in->n;
+    }
+    audit_input_fini(in);
+    *in = (audit_input){0};
+    return rc;
+}
+
+/* Loads every file and audits its shifts, a batch at a time; after a
+ * problem, loads the rest only to report theirs too. */
+static keel_status audit_files(const options *opt, const keel_audit_options *ao,
+                               keel_audit_shift **shifts, size_t *n, keel_error *err)
+{
+    audit_input in = {0};
     keel_status rc = KEEL_OK;
     for (size_t f = 0; f < opt->nfiles; f++) {
         keel_roster **rs = NULL;
@@ -776,24 +803,34 @@ static keel_status load_shifts(const options *opt, audit_input *in, keel_error *
             rc = rc == KEEL_ERR_NOMEM ? rc : one;
             continue;
         }
-        keel_roster **grown = realloc(in->rosters, (in->n + k) * sizeof *grown);
-        size_t *docs = grown ? realloc(in->documents, (in->n + k) * sizeof *docs) : NULL;
+        keel_roster **grown = realloc(in.rosters, (in.n + k) * sizeof *grown);
+        size_t *docs = grown ? realloc(in.documents, (in.n + k) * sizeof *docs) : NULL;
         if (grown)
-            in->rosters = grown;
+            in.rosters = grown;
         if (docs)
-            in->documents = docs;
+            in.documents = docs;
         if (!grown || !docs) {
             for (size_t i = 0; i < k; i++)
                 keel_roster_free(rs[i]);
             free(rs);
+            audit_input_fini(&in);
             return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
         }
         for (size_t i = 0; i < k; i++) {
-            in->rosters[in->n] = rs[i];
-            in->documents[in->n++] = i + 1;
+            in.rosters[in.n] = rs[i];
+            in.documents[in.n++] = i + 1;
         }
         free(rs);
+        if (rc) {
+            audit_input_fini(&in);
+            in = (audit_input){0};
+        } else if (in.n >= BATCH_PER_JOB * ao->jobs) {
+            rc = audit_batch(&in, ao, shifts, n, err);
+        }
     }
+    if (!rc && in.n)
+        rc = audit_batch(&in, ao, shifts, n, err);
+    audit_input_fini(&in);
     return rc;
 }
 
@@ -816,7 +853,6 @@ static int run_audit(const options *opt)
 {
     keel_error err;
     keel_error_init(&err);
-    audit_input in = {0};
     keel_audit_shift *shifts = NULL;
     keel_audit *audit = NULL;
     size_t n = 0;
@@ -834,13 +870,7 @@ static int run_audit(const options *opt)
     if (opt->merge) {
         rc = keel_audit_partial_read((const char *const *)opt->files, opt->nfiles, &shifts, &n, &err);
     } else {
-        rc = load_shifts(opt, &in, &err);
-        n = in.n;
-        if (!rc && !(shifts = calloc(n ? n : 1, sizeof *shifts)))
-            rc = keel_error_add(&err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
-        if (!rc)
-            rc = keel_audit_shifts_compute(in.rosters, in.documents, n, &ao, shifts, &err);
-        audit_input_fini(&in);
+        rc = audit_files(opt, &ao, &shifts, &n, &err);
     }
     int code = 0;
     if (!rc && opt->shard) {

@@ -10,6 +10,8 @@ a year of one unit (730 shifts) and 10 000 shifts, and times
   * the same with --no-best;
   * 4 shards run one after another and their merge (the merge's report
     must equal the single run's byte for byte);
+  * the same shifts written as 100 files, --jobs 2 (memory: keel audits
+    files a batch of rosters at a time);
 
 each once, wall time and peak memory from /usr/bin/time.  Writes a
 Markdown table to --out (default: print it).
@@ -76,6 +78,16 @@ def main():
         same = filecmp.cmp(merged, single, shallow=False)
         rows.append((n, "best", "4 shards, one after another (sum)", total, peak))
         rows.append((n, "merge", "identical to one run: %s" % ("yes" if same else "NO"), secs, kb))
+        # The same shifts in 100 files: rosters are audited a batch at a time.
+        stem = os.path.join(work, "s%d" % n)
+        subprocess.run([sys.executable, GEN, "--shifts", str(n), "--seed", "7", "--vary",
+                        "--plant-rate", "0.05", "--care", "--out", stem + ".yaml", "--split",
+                        "100"], check=True)
+        files = sorted(os.path.join(work, f) for f in os.listdir(work)
+                       if f.startswith("s%d-" % n))
+        secs, kb = timed([a.keel, "audit"] + files + ["--format", "json", "--jobs", "2",
+                                                       "-o", os.path.join(work, "f.json")])
+        rows.append((n, "best", "--jobs 2, the shifts in 100 files", secs, kb))
     rev = subprocess.run(["git", "-C", HERE, "rev-parse", "--short", "HEAD"],
                          capture_output=True, text=True).stdout.strip()
     lines = ["<!-- SPDX-License-Identifier: GPL-3.0-or-later -->",
