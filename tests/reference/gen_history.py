@@ -26,7 +26,7 @@ Usage: gen_history.py --shifts N --seed S [--nurses-per-shift K | --vary]
                       [--bias N03] [--plant-rate R] [--clock] [--care]
                       --out HISTORY.yaml [--truth TRUTH.json] [--split K]
 --split K writes K files HISTORY-1.yaml ... instead of one (shifts dealt in
-order, a stream each).
+order, as evenly as they go, a stream each; K at most N).
 """
 
 import argparse
@@ -201,11 +201,11 @@ def main():
         with open(a.out, "w") as f:
             f.write(header + "---\n".join(to_yaml(d) for d in docs))
     else:
-        per = (len(docs) + a.split - 1) // a.split
         stem = a.out[:-5] if a.out.endswith(".yaml") else a.out
         for s in range(a.split):
+            part = docs[s * len(docs) // a.split:(s + 1) * len(docs) // a.split]
             with open("%s-%d.yaml" % (stem, s + 1), "w") as f:
-                f.write(header + "---\n".join(to_yaml(d) for d in docs[s * per:(s + 1) * per]))
+                f.write(header + "---\n".join(to_yaml(d) for d in part))
     if a.truth:
         with open(a.truth, "w") as f:
             json.dump({"docs": docs, "planted": truth}, f)
