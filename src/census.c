@@ -39,12 +39,13 @@ enum field {
     F_ZONE,
     F_PREVIOUS,
     F_NAME,
+    F_NURSE,
     NFIELDS
 };
 
 static const char *const field_names[NFIELDS] = {
     "patient", "bed",   "acuity", "care_minutes", "needs",          "isolation",
-    "extras",  "ratio", "room",   "zone",         "previous_nurse", "name"};
+    "extras",  "ratio", "room",   "zone",         "previous_nurse", "name", "nurse"};
 
 typedef struct cell {
     char *text;
@@ -264,7 +265,7 @@ static keel_status parse_map(const char *map, char **headers, keel_error *err)
             return keel_error_add(err, KEEL_ERR_USAGE, NULL, 0, 0, NULL,
                                   "--map: '%.*s' is not field=Header with a field of keel's "
                                   "(patient, bed, acuity, care_minutes, needs, isolation, extras, "
-                                  "ratio, room, zone, previous_nurse, name)",
+                                  "ratio, room, zone, previous_nurse, name, nurse)",
                                   (int)len, p);
         free(headers[f]);
         headers[f] = keel_strndup(eq + 1, (size_t)(p + len - eq - 1));
@@ -353,6 +354,8 @@ static void read_patient(reader *rd, const row *r, const int *col, keel_patient 
         p->zone = copy_text(rd, at[F_ZONE]);
     if (at[F_PREVIOUS])
         p->previous_nurse = copy_text(rd, at[F_PREVIOUS]);
+    if (at[F_NURSE])
+        p->nurse = copy_text(rd, at[F_NURSE]);
     bool has_acuity = at[F_ACUITY] && *trim(at[F_ACUITY]->text);
     bool has_care = at[F_CARE] && *trim(at[F_CARE]->text);
     if (has_acuity)
@@ -392,15 +395,21 @@ static void read_patient(reader *rd, const row *r, const int *col, keel_patient 
     }
 }
 
-/* Says, through err, what of patient p the unit's scales lack: its acuity
- * level (reported at line:acuity_column) and each of its extras (at
- * line:extras_column).  Returns KEEL_OK, KEEL_ERR_INPUT, or KEEL_ERR_NOMEM
- * when any problem could not be recorded. */
-static keel_status check_scales(const char *file, const keel_patient *p, int line,
-                                int acuity_column, int extras_column, const keel_roster *unit,
-                                keel_error *err)
+/* The columns where a row's checked fields start (1 when absent). */
+typedef struct columns {
+    int acuity, extras, nurse;
+} columns;
+
+/* Says, through err, what of patient p the unit lacks: its acuity level
+ * (reported at line:at.acuity), each of its extras (at line:at.extras) and
+ * the nurse who had it (at line:at.nurse), who must be one of the unit's
+ * nurses.  Returns KEEL_OK, KEEL_ERR_INPUT, or KEEL_ERR_NOMEM when any
+ * problem could not be recorded. */
+static keel_status check_scales(const char *file, const keel_patient *p, int line, columns at,
+                                const keel_roster *unit, keel_error *err)
 {
     keel_status rc = KEEL_OK;
+    int acuity_column = at.acuity, extras_column = at.extras;
     if (p->acuity != KEEL_ABSENT && p->care_minutes == KEEL_ABSENT &&
         keel_roster_acuity_minutes(unit, p->acuity) == KEEL_ABSENT)
         rc = keel_error_add(err, KEEL_ERR_INPUT, file, line, acuity_column, "acuity",
@@ -413,6 +422,11 @@ static keel_status check_scales(const char *file, const keel_patient *p, int lin
                                 "patient %s lists extra '%s', which %s's "
                                 "policy.extra_minutes does not give",
                                 p->id ? p->id : "without an id", p->extras[k], unit->path);
+    if (p->nurse && keel_roster_find_nurse(unit, p->nurse) < 0)
+        rc = keel_error_add(err, KEEL_ERR_INPUT, file, line, at.nurse, "nurse",
+                            "patient %s has nurse '%s', who is not one of %s's nurses; "
+                            "expected the id of a nurse on that roster",
+                            p->id ? p->id : "without an id", p->nurse, unit->path);
     if (rc && err && err->status == KEEL_ERR_NOMEM) /* a problem could not be kept */
         rc = KEEL_ERR_NOMEM;
     return rc;
@@ -426,6 +440,13 @@ static keel_census *new_census(const char *name)
         c = NULL;
     }
     return c;
+}
+
+/* The column where row r's field in column index i starts; 1 when the row
+ * has no such field. */
+static int column_of(const row *r, int i)
+{
+    return i >= 0 && (size_t)i < r->ncells ? r->cells[i].column : 1;
 }
 
 /* True, after saying so, when the header is one column that holds ';': a
@@ -504,14 +525,9 @@ keel_status keel_census_parse_for(const char *name, const char *text, size_t len
         keel_patient *p = &c->patients[c->npatients++];
         read_patient(&rd, &rows[r], col, p);
         if (unit) {
-            const cell *acuity = col[F_ACUITY] >= 0 && (size_t)col[F_ACUITY] < rows[r].ncells
-                                     ? &rows[r].cells[col[F_ACUITY]]
-                                     : NULL;
-            const cell *extras = col[F_EXTRAS] >= 0 && (size_t)col[F_EXTRAS] < rows[r].ncells
-                                     ? &rows[r].cells[col[F_EXTRAS]]
-                                     : NULL;
-            keel_status bad = check_scales(name, p, rows[r].line, acuity ? acuity->column : 1,
-                                           extras ? extras->column : 1, unit, err);
+            columns at = {column_of(&rows[r], col[F_ACUITY]), column_of(&rows[r], col[F_EXTRAS]),
+                          column_of(&rows[r], col[F_NURSE])};
+            keel_status bad = check_scales(name, p, rows[r].line, at, unit, err);
             rd.bad = rd.bad || bad;
             rd.nomem = rd.nomem || bad == KEEL_ERR_NOMEM;
         }
@@ -569,8 +585,8 @@ keel_status keel_census_into_roster(keel_census *c, keel_roster *r, keel_error *
 {
     keel_status rc = KEEL_OK;
     for (size_t i = 0; i < c->npatients; i++) {
-        keel_status bad = check_scales(c->path, &c->patients[i], c->patients[i].mark.line, 1, 1,
-                                       r, err);
+        keel_status bad = check_scales(c->path, &c->patients[i], c->patients[i].mark.line,
+                                       (columns){1, 1, 1}, r, err);
         rc = rc ? rc : bad;
     }
     if (rc)

@@ -108,6 +108,87 @@ keel_status keel_roster_parse(const char *name, const char *text, size_t len, ke
     return finish(&ld, ld.roster, out);
 }
 
+/* Walks one document's tree into a new roster: *out, or problems. */
+static keel_status parse_document(loader *base, const node *root, keel_roster **out)
+{
+    loader ld = {.file = base->file,
+                 .text = base->text,
+                 .len = base->len,
+                 .err = base->err,
+                 .first_problem = base->err ? base->err->nproblems : 0};
+    *out = NULL;
+    ld.roster = new_roster(base->file);
+    if (!ld.roster) {
+        ld.nomem = true;
+        return finish(&ld, ld.roster, out);
+    }
+    keel_roster_keys_read(&ld, root);
+    keel_roster_check_file(&ld, root);
+    return finish(&ld, ld.roster, out);
+}
+
+keel_status keel_roster_parse_stream(const char *name, const char *text, size_t len,
+                                     keel_roster ***out, size_t *nout, keel_error *err)
+{
+    if (!out || !nout || !name || (!text && len))
+        return keel_error_add(err, KEEL_ERR_USAGE, NULL, 0, 0, NULL,
+                              "keel_roster_parse_stream: out, nout, name and text are required");
+    loader ld = {.file = name,
+                 .text = text,
+                 .len = len,
+                 .err = err,
+                 .first_problem = err ? err->nproblems : 0};
+    node **roots = NULL;
+    size_t nroots = 0;
+    *out = NULL;
+    *nout = 0;
+    if (!keel_roster_tree_read_stream(&ld, &roots, &nroots)) {
+        if (ld.nomem)
+            return keel_error_add(err, KEEL_ERR_NOMEM, name, 0, 0, NULL, "out of memory");
+        sort_problems(&ld);
+        return KEEL_ERR_INPUT;
+    }
+    keel_roster **rosters = keel_calloc(nroots, sizeof *rosters);
+    keel_status rc = rosters ? KEEL_OK
+                             : keel_error_add(err, KEEL_ERR_NOMEM, name, 0, 0, NULL,
+                                              "out of memory");
+    for (size_t i = 0; rosters && i < nroots && rc != KEEL_ERR_NOMEM; i++) {
+        keel_status one = parse_document(&ld, roots[i], &rosters[i]);
+        rc = rc ? rc : one;
+        rc = one == KEEL_ERR_NOMEM ? one : rc;
+    }
+    for (size_t i = 0; i < nroots; i++)
+        keel_roster_tree_free(roots[i]);
+    free(roots);
+    if (rc) {
+        for (size_t i = 0; rosters && i < nroots; i++)
+            keel_roster_free(rosters[i]);
+        free(rosters);
+        return rc;
+    }
+    *out = rosters;
+    *nout = nroots;
+    return KEEL_OK;
+}
+
+keel_status keel_roster_load_stream(const char *path, keel_roster ***out, size_t *nout,
+                                    keel_error *err)
+{
+    char *text = NULL;
+    size_t len = 0;
+    if (!out || !nout || !path)
+        return keel_error_add(err, KEEL_ERR_USAGE, NULL, 0, 0, NULL,
+                              "keel_roster_load_stream: out, nout and path are required");
+    *out = NULL;
+    *nout = 0;
+    keel_status rc = keel_roster_read_file(path, &text, &len, err);
+    if (rc)
+        return rc;
+    rc = keel_roster_parse_stream(path, text, len, out, nout, err);
+    free(text);
+    return rc;
+}
+
 /* Reads the whole file at path into a new buffer. */
 keel_status keel_roster_read_file(const char *path, char **text, size_t *len, keel_error *err)
 {

@@ -126,6 +126,12 @@ void keel_roster_report_set_path(loader *ld, const char *list, size_t index, con
  * the problem is reported and *root is NULL.  Free the tree with
  * keel_roster_tree_free(). */
 bool keel_roster_tree_read(loader *ld, node **root);
+/* Reads every document of ld->text into (*roots)[0 .. *nroots), each
+ * checked as keel_roster_tree_read() checks its one.  False when there is
+ * nothing to walk (an empty stream, a syntax error, no memory): then the
+ * problem is reported and *roots is NULL.  Free each tree with
+ * keel_roster_tree_free() and the array with free(). */
+bool keel_roster_tree_read_stream(loader *ld, node ***roots, size_t *nroots);
 void keel_roster_tree_free(node *n);
 
 /* The value of key in mapping map (the first, if given twice), or NULL. */

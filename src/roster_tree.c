@@ -308,6 +308,38 @@ fail:
     return false;
 }
 
+/* Reads the documents of a stream, after its start event, into a new array. */
+static bool read_documents(loader *ld, yaml_parser_t *parser, node ***roots, size_t *nroots)
+{
+    yaml_event_t event;
+    size_t cap = 0;
+    for (;;) {
+        if (!next_event(ld, parser, &event))
+            return false;
+        if (event.type == YAML_STREAM_END_EVENT) {
+            yaml_event_delete(&event);
+            return true;
+        }
+        yaml_event_delete(&event); /* document start */
+        if (*nroots == cap) {
+            cap = cap ? 2 * cap : 8;
+            node **grown = keel_reallocarray(*roots, cap, sizeof *grown);
+            if (!grown) {
+                ld->nomem = true;
+                return false;
+            }
+            *roots = grown;
+        }
+        node *root = NULL;
+        if (!next_event(ld, parser, &event) || !read_node(ld, parser, &event, 1, &root))
+            return false;
+        (*roots)[(*nroots)++] = root;
+        if (!next_event(ld, parser, &event)) /* document end */
+            return false;
+        yaml_event_delete(&event);
+    }
+}
+
 /* Reports every anchor, alias and tag in the tree, the placeholder of keel new
  * and text that holds a NUL: keel reads plain YAML only, so that each value
  * is written where it applies. */
@@ -360,5 +392,41 @@ bool keel_roster_tree_read(loader *ld, node **root)
     yaml_parser_delete(&parser);
     if (ok)
         check_plain_yaml(ld, *root);
+    return ok;
+}
+
+bool keel_roster_tree_read_stream(loader *ld, node ***roots, size_t *nroots)
+{
+    yaml_parser_t parser;
+    yaml_event_t event;
+    *roots = NULL;
+    *nroots = 0;
+    if (!yaml_parser_initialize(&parser)) {
+        ld->nomem = true;
+        return false;
+    }
+    yaml_parser_set_input_string(&parser, (const unsigned char *)(ld->text ? ld->text : ""),
+                                 ld->len);
+    bool ok = next_event(ld, &parser, &event); /* stream start */
+    if (ok) {
+        yaml_event_delete(&event);
+        ok = read_documents(ld, &parser, roots, nroots);
+    }
+    yaml_parser_delete(&parser);
+    if (ok && *nroots == 0) {
+        keel_roster_report_problem(ld, (keel_mark){1, 1},
+                                   "the file is empty or only comments; expected one roster "
+                                   "or more, as YAML documents");
+        ok = false;
+    }
+    for (size_t i = 0; ok && i < *nroots; i++)
+        check_plain_yaml(ld, (*roots)[i]);
+    if (!ok) {
+        for (size_t i = 0; i < *nroots; i++)
+            keel_roster_tree_free((*roots)[i]);
+        free(*roots);
+        *roots = NULL;
+        *nroots = 0;
+    }
     return ok;
 }

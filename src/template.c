@@ -144,7 +144,7 @@ keel_status keel_template_write(const keel_template_options *o, const keel_censu
         fprintf(out, "# Patients from the census %s.\n", census->path);
         fputs("patients:\n", out);
         for (size_t p = 0; p < census->npatients; p++)
-            keel_report_yaml_patient(out, NULL, &census->patients[p], NULL);
+            keel_report_yaml_patient(out, NULL, &census->patients[p], census->patients[p].nurse);
     } else {
         fprintf(
             out,

@@ -245,6 +245,43 @@ static void test_levels_the_unit_lacks_come_with_the_rows_other_problems(void **
     keel_error_fini(&err);
 }
 
+/* A past shift's census names each patient's nurse: the nurse comes in as
+ * the patient's `nurse`, and one the unit does not have is named at its
+ * line and column. */
+static void test_a_nurse_column_brings_a_past_assignment_in(void **state)
+{
+    (void)state;
+    static const char roster[] = "shift: {minutes: 720}\n"
+                                 "policy: {acuity_minutes: {1: 60, 2: 100}}\n"
+                                 "nurses: [{id: A}, {id: B}]\n"
+                                 "patients: []\n";
+    keel_error err;
+    keel_roster *r = NULL;
+    keel_census *c = NULL;
+    char buf[512];
+    keel_error_init(&err);
+    assert_int_equal(keel_roster_parse("base.yaml", roster, strlen(roster), &r, &err), KEEL_OK);
+    static const char text[] = "patient,acuity,nurse\nX1,2,A\nX2,1, C \nX3,1,\n";
+    assert_int_equal(keel_census_parse_for("past.csv", text, strlen(text), NULL, r, &c, &err),
+                     KEEL_ERR_INPUT);
+    assert_int_equal(err.nproblems, 1);
+    assert_string_equal(problem(&err, 0, buf, sizeof buf),
+                        "past.csv:3:6: nurse: patient X2 has nurse 'C', who is not one of "
+                        "base.yaml's nurses; expected the id of a nurse on that roster");
+    keel_error_fini(&err);
+    static const char fine[] = "patient,acuity,nurse\nX1,2,A\nX2,1,B\nX3,1,\n";
+    assert_int_equal(keel_census_parse_for("past.csv", fine, strlen(fine), NULL, r, &c, &err),
+                     KEEL_OK);
+    assert_string_equal(c->patients[0].nurse, "A");
+    assert_string_equal(c->patients[1].nurse, "B");
+    assert_null(c->patients[2].nurse); /* an empty field: nobody yet */
+    assert_int_equal(keel_census_into_roster(c, r, &err), KEEL_OK);
+    assert_string_equal(r->patients[1].nurse, "B");
+    keel_census_free(c);
+    keel_roster_free(r);
+    keel_error_fini(&err);
+}
+
 static void test_every_failed_allocation_ends_in_a_clean_error(void **state)
 {
     (void)state;
@@ -302,6 +339,7 @@ int main(void)
         cmocka_unit_test(test_a_census_joins_a_roster_that_knows_its_levels),
         cmocka_unit_test(test_a_semicolon_separated_census_gets_a_hint),
         cmocka_unit_test(test_levels_the_unit_lacks_come_with_the_rows_other_problems),
+        cmocka_unit_test(test_a_nurse_column_brings_a_past_assignment_in),
         cmocka_unit_test(test_every_failed_allocation_ends_in_a_clean_error),
     };
     return cmocka_run_group_tests_name("census", tests, NULL, NULL);

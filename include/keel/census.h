@@ -15,6 +15,8 @@
  *   extras    names of policy.extra_minutes, separated by ';' or spaces
  *   ratio     "1:N"
  *   room, zone, previous_nurse, name
+ *   nurse     the nurse who had the patient (a past assignment, for keel
+ *             audit); with a roster to join, one of its nurses' ids
  *
  * Column names are matched ignoring case and surrounding spaces; other
  * columns are ignored.  A header mapping "field=Header,field=Header" reads a
@@ -59,7 +61,8 @@ KEEL_API keel_status keel_census_parse(const char *name, const char *text, size_
 /* Like keel_census_load() and keel_census_parse(), and checks each row
  * against unit, the roster the census joins, as it reads the row: an acuity
  * level must be in unit's policy.acuity_minutes (unless the row gives care
- * minutes) and each extra in its policy.extra_minutes.  So those problems
+ * minutes), each extra in its policy.extra_minutes and the nurse one of its
+ * nurses.  So those problems
  * come with every other problem of the file, in file order, at their line
  * and column.  unit is borrowed; NULL checks nothing against a roster, as
  * keel_census_load() does.  Statuses as for keel_census_load(). */
@@ -72,8 +75,8 @@ KEEL_API keel_status keel_census_parse_for(const char *name, const char *text, s
 
 /* Hands the census's patients to roster r, replacing its patients (r then
  * owns them; the census keeps none).  Checks them against r: acuity levels
- * in policy.acuity_minutes, extras in policy.extra_minutes, nurses named in
- * previous_nurse are not checked (they may be off the roster).  Problems
+ * in policy.acuity_minutes, extras in policy.extra_minutes, the nurse of a
+ * `nurse` column among r's nurses; nurses named in previous_nurse are not checked (they may be off the roster).  Problems
  * name the census file and row (keel_census_load_for() finds the same
  * problems with the file's others, at their column).  Statuses: KEEL_OK, KEEL_ERR_INPUT. */
 KEEL_API keel_status keel_census_into_roster(keel_census *c, keel_roster *r, keel_error *err);

@@ -24,6 +24,7 @@
 
 #include "keel/api.h"
 
+#include "keel/audit.h"
 #include "keel/census.h"
 #include "keel/course.h"
 #include "keel/error.h"

@@ -227,6 +227,21 @@ KEEL_API keel_status keel_roster_load(const char *path, keel_roster **out, keel_
 KEEL_API keel_status keel_roster_parse(const char *name, const char *text, size_t len, keel_roster **out,
                               keel_error *err);
 
+/* Reads a file that holds one roster or several, as a YAML stream of
+ * documents (separated by `---`), each a roster of its own (a unit's
+ * shifts kept in one file, for keel audit).  On success *out is a new array
+ * of *nout rosters in file order, each named path in messages: the caller
+ * owns them; free each with keel_roster_free() and the array with free().
+ * Every problem of every document is reported, each at its line and column
+ * in the file.  Statuses as for keel_roster_load(); on failure *out is NULL
+ * and *nout 0. */
+KEEL_API keel_status keel_roster_load_stream(const char *path, keel_roster ***out, size_t *nout,
+                                             keel_error *err);
+
+/* Like keel_roster_load_stream() but reads len bytes of YAML from text. */
+KEEL_API keel_status keel_roster_parse_stream(const char *name, const char *text, size_t len,
+                                              keel_roster ***out, size_t *nout, keel_error *err);
+
 /* Frees the roster and everything it owns.  NULL-safe. */
 KEEL_API void keel_roster_free(keel_roster *roster);
 

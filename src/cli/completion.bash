@@ -19,6 +19,10 @@ _keel_options() {
     check) echo "-f --format -t --time-limit --names -o --output -h --help" ;;
     new) echo "--type --table --unit --shift -o --output -h --help" ;;
     import) echo "--roster --map --type --table --unit --shift -o --output -h --help" ;;
+    audit)
+        echo "-f --format --no-best -t --time-limit -j --jobs --min-shifts --shard --merge"
+        echo "-o --output -h --help"
+        ;;
     esac
 }
 
@@ -27,6 +31,7 @@ _keel_takes_value() {
     case $1 in
     -f | --format | -m | --method | -t | --time-limit | -o | --output) return 0 ;;
     --type | --table | --unit | --shift | --roster | --map) return 0 ;;
+    -j | --jobs | --min-shifts | --shard) return 0 ;;
     esac
     return 1
 }
@@ -36,6 +41,7 @@ _keel_formats() {
     case $1 in
     assign) echo "text yaml json html csv csv-nurses" ;;
     check) echo "text json html csv csv-nurses" ;;
+    audit) echo "text json csv csv-nurse-shifts csv-nurses csv-nurse-groups csv-violations" ;;
     esac
 }
 
@@ -85,7 +91,7 @@ _keel() {
         if [[ $cur == -* ]]; then
             _keel_add_words "-h --help --version" "$cur"
         else
-            _keel_add_words "assign check new import help" "$cur"
+            _keel_add_words "assign check new import audit help" "$cur"
         fi
         return 0
     fi
@@ -93,10 +99,10 @@ _keel() {
     local cmd=${COMP_WORDS[1]}
     case $cmd in
     help)
-        ((cword == 2)) && _keel_add_words "assign check new import help" "$cur"
+        ((cword == 2)) && _keel_add_words "assign check new import audit help" "$cur"
         return 0
         ;;
-    assign | check | new | import) ;;
+    assign | check | new | import | audit) ;;
     *) return 0 ;;
     esac
 
@@ -109,8 +115,8 @@ _keel() {
         [[ $cmd == assign ]] && _keel_add_words "ilp greedy" "$cur"
         return 0
         ;;
-    -t | --time-limit | --unit | --map)
-        return 0 # a number of seconds, a name, field=Header pairs
+    -t | --time-limit | --unit | --map | -j | --jobs | --min-shifts | --shard)
+        return 0 # a number of seconds, a name, field=Header pairs, a count, I/N
         ;;
     --type)
         _keel_add_words "icu step-down telemetry med-surg pediatrics emergency oncology \
@@ -141,8 +147,13 @@ _keel() {
         return 0
     fi
 
-    # One file per command (new takes none): offer files only until it is given.
+    # One file per command (new takes none; audit takes many): offer files
+    # only until it is given.
     [[ $cmd == new ]] && return 0
+    if [[ $cmd == audit ]]; then
+        _keel_add_files "$cur" yaml yml txt
+        return 0
+    fi
     local i word files=0
     for ((i = 2; i < cword; i++)); do
         word=${COMP_WORDS[i]}

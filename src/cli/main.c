@@ -5,10 +5,12 @@
  * was written.
  *
  * Exit codes: 0 success; 1 usage error; 2 bad input; 3 no valid assignment
- * exists; 4 internal or solver failure (including a failed write).
+ * exists; 4 internal or solver failure (including a failed write); 5 keel
+ * audit wrote its report and some shift broke a rule.
  */
 #include <errno.h>
 #include <stdio.h>
+#include <unistd.h>
 #include <stdlib.h>
 #include <string.h>
 #include <unistd.h>
@@ -21,6 +23,7 @@ enum {
     EXIT_INPUT = 2,
     EXIT_INFEASIBLE = 3,
     EXIT_INTERNAL = 4,
+    EXIT_AUDIT_BROKEN = 5, /* keel audit: the report was written and some shift broke a rule */
 };
 
 typedef struct options {
@@ -39,6 +42,13 @@ typedef struct options {
     const char *shift; /* new, import: --shift */
     const char *base;  /* import: --roster, the roster the census joins */
     const char *map;   /* import: --map field=Header,... */
+    const char **files; /* audit: every file named (owned by main) */
+    size_t nfiles;
+    bool no_best;       /* audit: --no-best */
+    bool merge;         /* audit: --merge, the files are partial results */
+    long jobs;          /* audit: --jobs; 0: the number of cores */
+    long min_shifts;    /* audit: --min-shifts; 0: the default */
+    size_t shard, nshards; /* audit: --shard I/N; 0: no shard */
 } options;
 
 typedef struct command {
@@ -52,6 +62,7 @@ static int run_assign(const options *opt);
 static int run_check(const options *opt);
 static int run_new(const options *opt);
 static int run_import(const options *opt);
+static int run_audit(const options *opt);
 
 static const command commands[] = {
     {"assign", "balance the roster's patients across its nurses",
@@ -128,6 +139,36 @@ static const command commands[] = {
      "  --type, --table, --unit, --shift   as for keel new (without --roster)\n"
      "  -o, --output FILE      write to FILE (replaced atomically; never an input)\n",
      run_import},
+    {"audit", "look back at past shifts: rules broken, balance, who got the heaviest loads",
+     "usage: keel audit FILE... [--format FMT] [--no-best] [--time-limit SECONDS]\n"
+     "                  [--jobs N] [--min-shifts N] [--shard I/N] [-o FILE]\n"
+     "       keel audit --merge PARTIAL... [--format FMT] [--min-shifts N] [-o FILE]\n"
+     "\n"
+     "Reads past shifts: rosters with each patient's nurse filled in, one or more per\n"
+     "file (a YAML stream of documents).  Per shift: loads, utilisation, the imbalance,\n"
+     "every rule broken, and the best heaviest utilisation the same rules allowed.  Per\n"
+     "nurse over the period: shifts, mean and worst utilisation, and how often she had\n"
+     "the heaviest load (and the most high-acuity patients, isolation patients, zones)\n"
+     "against chance, with exact tail probabilities adjusted by Holm's procedure.\n"
+     "These figures describe the assignments given, never a nurse's performance.\n"
+     "\n"
+     "  -f, --format FMT       text (default), json, csv (a row per shift),\n"
+     "                         csv-nurse-shifts, csv-nurses, csv-nurse-groups or\n"
+     "                         csv-violations\n"
+     "      --no-best          do not solve for the best possible of each shift\n"
+     "  -t, --time-limit SECS  limit for each shift's best-possible solve (default 10)\n"
+     "  -j, --jobs N           solve N shifts at once (default: the number of cores)\n"
+     "      --min-shifts N     shifts at stake before a nurse may be said to stand out\n"
+     "                         (default 20)\n"
+     "      --shard I/N        audit only shifts I, I+N, I+2N, ... (1 <= I <= N) and\n"
+     "                         write a partial result for --merge\n"
+     "      --merge            the files are the partial results of every shard: write\n"
+     "                         the report a single run gives, byte for byte\n"
+     "  -o, --output FILE      write to FILE (replaced atomically; never an input)\n"
+     "\n"
+     "Exit 0 when the report is written and no shift broke a rule, 5 when it is written\n"
+     "and some shift broke one.\n",
+     run_audit},
 };
 
 static const size_t ncommands = sizeof commands / sizeof commands[0];
@@ -137,7 +178,7 @@ static const char help_usage[] =
     "usage: keel help [COMMAND]\n"
     "\n"
     "Without a command, lists keel's commands, its exit codes and the caution.  With\n"
-    "one (assign, check, new, import or help), shows that command's usage and every\n"
+    "one (assign, check, new, import, audit or help), shows that command's usage and every\n"
     "option; 'keel COMMAND --help' shows the same.\n";
 
 static void print_usage(FILE *out)
@@ -151,7 +192,7 @@ static void print_usage(FILE *out)
     fprintf(out,
             "\nOptions: --help, --version\n"
             "Exit codes: 0 success, 1 usage error, 2 bad input, 3 no valid assignment "
-            "exists,\n4 internal or solver failure.\n\n%s\n",
+            "exists,\n4 internal or solver failure, 5 keel audit found rules broken.\n\n%s\n",
             KEEL_CAUTION);
 }
 
@@ -263,9 +304,61 @@ static int parse_time_limit(const command *cmd, const char *text, long *ms)
     return 0;
 }
 
+/* A whole number from 1 to max, or 0 after saying why. */
+static long parse_count(const command *cmd, const char *name, const char *text, long max)
+{
+    char *end;
+    errno = 0;
+    long v = strtol(text, &end, 10);
+    if (errno || end == text || *end || v < 1 || v > max) {
+        fprintf(stderr, "keel %s: %s: '%s' is not a whole number from 1 to %ld\nTry 'keel help %s'.\n",
+                cmd->name, name, text, max, cmd->name);
+        return 0;
+    }
+    return v;
+}
+
+/* keel audit's own options at argv[*i]: 0 when taken, an exit code on a
+ * usage error, -1 when the argument is not one of them. */
+static int parse_audit_option(const command *cmd, int argc, char **argv, int *i, options *opt)
+{
+    const char *arg = argv[*i], *value;
+    size_t len;
+    if (strcmp(arg, "--no-best") == 0) {
+        opt->no_best = true;
+        return 0;
+    }
+    if (strcmp(arg, "--merge") == 0) {
+        opt->merge = true;
+        return 0;
+    }
+    bool jobs = matches(arg, "-j", "--jobs", &len);
+    bool min = !jobs && matches(arg, "--min-shifts", "--min-shifts", &len);
+    bool shard = !jobs && !min && matches(arg, "--shard", "--shard", &len);
+    if (!jobs && !min && !shard)
+        return -1;
+    value = option_value(argc, argv, i, arg, len);
+    if (!value)
+        return usage_error(cmd, "%s needs a value", arg);
+    if (jobs)
+        return (opt->jobs = parse_count(cmd, "--jobs", value, 1024)) ? 0 : EXIT_USAGE;
+    if (min)
+        return (opt->min_shifts = parse_count(cmd, "--min-shifts", value, 1000000)) ? 0
+                                                                                    : EXIT_USAGE;
+    unsigned long part, whole;
+    char tail;
+    if (sscanf(value, "%lu/%lu%c", &part, &whole, &tail) != 2 || part < 1 || whole < 1 ||
+        part > whole || whole > 100000)
+        return usage_error(cmd, "--shard: '%s' is not I/N with 1 <= I <= N (e.g. 2/8)", value);
+    opt->shard = part;
+    opt->nshards = whole;
+    return 0;
+}
+
 static int parse_args(const command *cmd, int argc, char **argv, options *opt, bool *help)
 {
-    *opt = (options){.format = "text"};
+    const char **files = opt->files;
+    *opt = (options){.format = "text", .files = files};
     for (int i = 0; i < argc; i++) {
         const char *arg = argv[i], *value;
         size_t len;
@@ -273,7 +366,7 @@ static int parse_args(const command *cmd, int argc, char **argv, options *opt, b
             *help = true;
             return 0;
         }
-        bool solving = cmd->run == run_assign || cmd->run == run_check;
+        bool solving = cmd->run == run_assign || cmd->run == run_check || cmd->run == run_audit;
         bool writing = cmd->run == run_new || cmd->run == run_import;
         if (matches(arg, "-o", "--output", &len) ||
             (solving &&
@@ -328,14 +421,37 @@ static int parse_args(const command *cmd, int argc, char **argv, options *opt, b
             opt->deidentify = true;
             continue;
         }
+        if (cmd->run == run_audit) {
+            int code = parse_audit_option(cmd, argc, argv, &i, opt);
+            if (code < 0)
+                goto file;
+            if (code)
+                return code;
+            continue;
+        }
+    file:
         if (arg[0] == '-' && arg[1] != '\0')
             return usage_error(cmd, "unknown option '%s'", arg);
+        if (cmd->run == run_audit) {
+            opt->files[opt->nfiles++] = arg;
+            continue;
+        }
         if (cmd->run == run_new)
             return usage_error(cmd, "takes no file; '%s' is one too many", arg);
         if (opt->roster)
             return usage_error(cmd, "one file at a time; '%s' is one too many", arg);
         opt->roster = arg;
     }
+    if (cmd->run == run_audit && opt->nfiles == 0)
+        return usage_error(cmd, "%s",
+                           opt->merge ? "which partial results? Give the file of every shard"
+                                      : "which shifts? Give one roster file or more");
+    if (cmd->run == run_audit && opt->merge && (opt->shard || opt->no_best || opt->jobs))
+        return usage_error(cmd, "%s",
+                           "--merge takes the shards' partial results as they are; --shard, "
+                           "--no-best and --jobs belong to the runs that wrote them");
+    if (cmd->run == run_audit)
+        return 0;
     if (!opt->roster && cmd->run == run_import)
         return usage_error(cmd, "%s", "which census? Give the census CSV file");
     if (!opt->roster && cmd->run != run_new)
@@ -674,6 +790,183 @@ static int run_import(const options *opt)
     return code;
 }
 
+static bool known_audit_format(const char *format)
+{
+    for (size_t i = 0; i < keel_audit_nformats(); i++)
+        if (strcmp(keel_audit_format_name(i), format) == 0)
+            return true;
+    return false;
+}
+
+/* The shifts an audit reads: every document of every file, in order. */
+typedef struct audit_input {
+    keel_roster **rosters;
+    size_t *documents;
+    size_t n;
+} audit_input;
+
+static void audit_input_fini(audit_input *in)
+{
+    for (size_t i = 0; i < in->n; i++)
+        keel_roster_free(in->rosters[i]);
+    free(in->rosters);
+    free(in->documents);
+}
+
+/* Shifts audited a batch at a time, so that only a batch of rosters (and
+ * the file being read) is in memory with the results: enough for every
+ * thread to have work. */
+enum { BATCH_PER_JOB = 64 };
+
+/* Audits the batch in `in` into *shifts (grown), then frees its rosters. */
+static keel_status audit_batch(audit_input *in, const keel_audit_options *ao,
+                               keel_audit_shift **shifts, size_t *n, keel_error *err)
+{
+    keel_audit_shift *grown = realloc(*shifts, (*n + in->n + 1) * sizeof *grown);
+    keel_status rc = grown ? KEEL_OK
+                           : keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL,
+                                            "out of memory");
+    if (grown) {
+        *shifts = grown;
+        rc = keel_audit_shifts_compute(in->rosters, in->documents, in->n, *n, ao, *shifts + *n,
+                                       err);
+        *n += in->n;
+    }
+    audit_input_fini(in);
+    *in = (audit_input){0};
+    return rc;
+}
+
+/* Loads every file and audits its shifts, a batch at a time; after a
+ * problem, loads the rest only to report theirs too. */
+static keel_status audit_files(const options *opt, const keel_audit_options *ao,
+                               keel_audit_shift **shifts, size_t *n, keel_error *err)
+{
+    audit_input in = {0};
+    keel_status rc = KEEL_OK;
+    for (size_t f = 0; f < opt->nfiles; f++) {
+        keel_roster **rs = NULL;
+        size_t k = 0;
+        keel_status one = keel_roster_load_stream(opt->files[f], &rs, &k, err);
+        if (one) {
+            rc = rc == KEEL_ERR_NOMEM ? rc : one;
+            continue;
+        }
+        keel_roster **grown = realloc(in.rosters, (in.n + k) * sizeof *grown);
+        size_t *docs = grown ? realloc(in.documents, (in.n + k) * sizeof *docs) : NULL;
+        if (grown)
+            in.rosters = grown;
+        if (docs)
+            in.documents = docs;
+        if (!grown || !docs) {
+            for (size_t i = 0; i < k; i++)
+                keel_roster_free(rs[i]);
+            free(rs);
+            audit_input_fini(&in);
+            return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+        }
+        for (size_t i = 0; i < k; i++) {
+            in.rosters[in.n] = rs[i];
+            in.documents[in.n++] = i + 1;
+        }
+        free(rs);
+        if (rc) {
+            audit_input_fini(&in);
+            in = (audit_input){0};
+        } else if (in.n >= BATCH_PER_JOB * ao->jobs) {
+            rc = audit_batch(&in, ao, shifts, n, err);
+        }
+    }
+    if (!rc && in.n)
+        rc = audit_batch(&in, ao, shifts, n, err);
+    audit_input_fini(&in);
+    return rc;
+}
+
+typedef struct audit_out {
+    const keel_audit *audit;          /* the report, or */
+    const keel_audit_shift *shifts;   /* a shard's partial result */
+    size_t nshifts;
+    const keel_audit_options *options;
+} audit_out;
+
+static keel_status write_audit(const options *opt, void *ctx, FILE *out, keel_error *err)
+{
+    const audit_out *a = ctx;
+    if (a->audit)
+        return keel_audit_write(opt->format, a->audit, out, err);
+    return keel_audit_partial_write(a->shifts, a->nshifts, a->options, out, err);
+}
+
+static int run_audit(const options *opt)
+{
+    keel_error err;
+    keel_error_init(&err);
+    keel_audit_shift *shifts = NULL;
+    keel_audit *audit = NULL;
+    size_t n = 0;
+    long cores = sysconf(_SC_NPROCESSORS_ONLN);
+    keel_audit_options ao = {.no_best = opt->no_best,
+                             .time_limit_ms = opt->time_limit_ms,
+                             .jobs = (size_t)(opt->jobs ? opt->jobs : cores > 0 ? cores : 1),
+                             .shard = opt->shard,
+                             .nshards = opt->nshards,
+                             .min_shifts = (size_t)opt->min_shifts};
+    for (size_t f = 0; f < opt->nfiles; f++)
+        if (cli_output_clobbers(opt->output, opt->files[f]))
+            return EXIT_USAGE;
+    keel_status rc;
+    if (opt->merge) {
+        rc = keel_audit_partial_read((const char *const *)opt->files, opt->nfiles, &shifts, &n, &err);
+    } else {
+        rc = audit_files(opt, &ao, &shifts, &n, &err);
+    }
+    int code = 0;
+    if (!rc && opt->shard) {
+        audit_out a = {.shifts = shifts, .nshifts = n, .options = &ao};
+        code = write_out(opt, NULL, write_audit, &a);
+    } else if (!rc) {
+        rc = keel_audit_summarise(shifts, n, &ao, &audit, &err);
+        shifts = NULL; /* the audit owns them now */
+    }
+    if (rc) {
+        print_problems(&err);
+        code = exit_code(rc);
+    } else if (audit) {
+        audit_out a = {.audit = audit};
+        code = write_out(opt, NULL, write_audit, &a);
+        if (!code && strncmp(opt->format, "csv", 3) == 0)
+            fprintf(stderr, "keel audit: %s\n%s\n", KEEL_AUDIT_NOTE, KEEL_CAUTION);
+        if (!code && audit->nviolations)
+            code = EXIT_AUDIT_BROKEN;
+    }
+    for (size_t i = 0; shifts && i < n; i++)
+        keel_audit_shift_fini(&shifts[i]);
+    free(shifts);
+    keel_audit_free(audit);
+    keel_error_fini(&err);
+    return code;
+}
+
+/* Checks the options that depend on each other, then runs the command. */
+static int run_command(const command *cmd, const options *opt)
+{
+    bool audit = cmd->run == run_audit;
+    if (audit ? !known_audit_format(opt->format)
+              : !known_format(opt->format) ||
+                    (cmd->run == run_check && strcmp(opt->format, "yaml") == 0))
+        return usage_error(cmd, "unknown format '%s'", opt->format);
+    if (opt->explain && strcmp(opt->format, "yaml") == 0)
+        return usage_error(cmd, "%s",
+                           "--explain does not go with --format yaml: the yaml plan is a roster, "
+                           "with no place for reasons; use --format text or json");
+    if (opt->names && (opt->deidentify || strcmp(opt->format, "html") != 0))
+        return usage_error(cmd, "%s", "--names is for the html sheet, and not with --deidentify");
+    if (opt->method && !known_method(opt->method))
+        return usage_error(cmd, "unknown method '%s'; expected ilp or greedy", opt->method);
+    return cmd->run(opt);
+}
+
 int main(int argc, char **argv)
 {
     if (argc < 2) {
@@ -712,22 +1005,17 @@ int main(int argc, char **argv)
             print_usage(stderr);
         return EXIT_USAGE;
     }
-    options opt;
+    options opt = {.files = calloc((size_t)argc, sizeof *opt.files)};
     bool help = false;
+    if (!opt.files) {
+        fputs("keel: out of memory\n", stderr);
+        return EXIT_INTERNAL;
+    }
     int code = parse_args(cmd, argc - 2, argv + 2, &opt, &help);
-    if (code)
-        return code;
-    if (help)
-        return print_help(cmd->usage);
-    if (!known_format(opt.format) || (cmd->run == run_check && strcmp(opt.format, "yaml") == 0))
-        return usage_error(cmd, "unknown format '%s'", opt.format);
-    if (opt.explain && strcmp(opt.format, "yaml") == 0)
-        return usage_error(cmd, "%s",
-                           "--explain does not go with --format yaml: the yaml plan is a roster, "
-                           "with no place for reasons; use --format text or json");
-    if (opt.names && (opt.deidentify || strcmp(opt.format, "html") != 0))
-        return usage_error(cmd, "%s", "--names is for the html sheet, and not with --deidentify");
-    if (opt.method && !known_method(opt.method))
-        return usage_error(cmd, "unknown method '%s'; expected ilp or greedy", opt.method);
-    return cmd->run(&opt);
+    if (!code && !help)
+        code = run_command(cmd, &opt);
+    else if (!code)
+        code = print_help(cmd->usage);
+    free(opt.files);
+    return code;
 }

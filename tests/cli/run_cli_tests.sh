@@ -223,6 +223,13 @@ has "$work/err" "census-bad.csv:3:14: isolation: unknown precaution 'airbone'" "
 expect 1 "a bad mapping" -- "$keel" import "$data/census-plain.csv" --map acuity
 expect 1 "import refuses to write over the census" -- "$keel" import "$data/census-plain.csv" -o "$data/census-plain.csv"
 expect 1 "a base roster gives the unit" -- "$keel" import "$data/census-plain.csv" --roster "$examples/medsurg-day.yaml" --type icu
+# A past shift: the census's nurse column is who had whom, scored by keel check.
+expect 0 "import a past shift with its nurses" -- "$keel" import "$data/census-past.csv" --roster "$examples/medsurg-day.yaml" -o "$work/past.yaml"
+has "$work/past.yaml" 'nurse: "N03"' "the census's nurse column comes in as the patients' nurses"
+expect 0 "the past shift is scored as a plan" -- "$keel" check "$work/past.yaml" --format json
+has "$work/out" '"violations"' "keel check scores the imported plan"
+expect 2 "a past shift naming a nurse the unit lacks" -- "$keel" import "$data/census-past-bad.csv" --roster "$examples/medsurg-day.yaml"
+has "$work/err" "census-past-bad.csv:3:17: nurse: patient P-30102 has nurse 'N99', who is not one of" "an unknown nurse is named with file, line and column"
 
 # Source: Miranda et al., Crit Care Med 2003 (NAS weights as in sources.md):
 # 1b 12.1 + 4b 16.5 + 6b 12.4 + 7a 4.0 + 8a 4.2 + 9 1.4 + 12 1.2 + 14 1.7 +
@@ -466,6 +473,51 @@ expect 0 "an html sheet" -- "$keel" assign "$examples/icu-night.yaml" --format h
 has "$work/out" "<svg" "the sheet holds its chart"
 has "$work/out" "$caution" "the sheet carries the caution"
 expect 1 "--names and --deidentify together" -- "$keel" assign "$examples/icu-night.yaml" --format html --names --deidentify
+# keel audit: past shifts, one stream of rosters (tests/reference/gen_history.py
+# wrote both files; audit-history.yaml has four planted breaks).
+hist="$data/audit-history.yaml"
+expect 5 "an audit that finds rules broken" -- "$keel" audit "$hist"
+has "$work/out" "keel audit: 6 shifts from 2026-01-05 to 2026-01-07, 8 nurses, 4 rules broken" "the first line sums the period up"
+has_joined "$work/out" "not how she worked" "the report says the figures describe assignments, not performance"
+has_joined "$work/out" "stable pseudonymous ids" "and recommends pseudonymous ids"
+has "$work/out" "[patient_limit]" "a planted break is listed with its rule"
+last_line_is_caution "$work/out" "the audit ends with the caution"
+expect 0 "an audit of clean shifts" -- "$keel" audit "$data/audit-clean.yaml" --no-best --format json
+has "$work/out" '"best_status": "skipped"' "--no-best skips the best possible"
+has "$work/out" '"caution": ' "the json carries the caution"
+expect 5 "the audit as CSV" -- "$keel" audit "$hist" --format csv
+if head -n 1 "$work/out" | grep -q "^source,document,date,label,weekday,.*table_note$(printf '\r')\$"; then ok "CSV records end in CRLF (RFC 4180)"; else not_ok "CSV records end in CRLF (RFC 4180)"; fi
+if [ "$(wc -l < "$work/out")" -eq 7 ]; then ok "one CSV row per shift"; else not_ok "one CSV row per shift"; fi
+has "$work/err" "$caution" "CSV output says the caution on standard error"
+expect 5 "one CSV row per nurse and shift" -- "$keel" audit "$hist" --format csv-nurse-shifts --no-best
+has "$work/out" "source,document,date,label,nurse,counted," "the nurse-shift table has its header"
+expect 1 "audit without files" -- "$keel" audit
+expect 1 "a shard out of range" -- "$keel" audit "$hist" --shard 3/2
+expect 1 "merge takes partials only" -- "$keel" audit --merge "$hist" --shard 1/2
+expect 1 "audit refuses to write over a history" -- "$keel" audit "$hist" -o "$hist"
+printf 'shift: {minutes: 600}\nnurses: [{id: A}]\npatients: []\n---\nshift: {minutes: -1}\nnurses: [{id: A}]\npatients: []\n' > "$work/bad-stream.yaml"
+expect 2 "a bad document in a stream" -- "$keel" audit "$work/bad-stream.yaml"
+has "$work/err" "bad-stream.yaml:5:" "its problem is named at its line in the file"
+# Shards merged give the single run's report, byte for byte; the same with
+# GNU parallel running the shards, when it is installed.
+"$keel" audit "$hist" --format json --jobs 1 > "$work/single.json"
+for i in 1 2 3; do "$keel" audit "$hist" --shard $i/3 -o "$work/part-$i.txt"; done
+expect 5 "merge the shards" -- "$keel" audit --merge "$work/part-3.txt" "$work/part-1.txt" "$work/part-2.txt" --format json
+if cmp -s "$work/out" "$work/single.json"; then ok "the merged report is the single run's, byte for byte"; else not_ok "the merged report is the single run's, byte for byte"; fi
+expect 2 "a merge missing a shard" -- "$keel" audit --merge "$work/part-1.txt" "$work/part-2.txt"
+has "$work/err" "shard 3/3 is missing" "the missing shard is named"
+"$keel" audit "$hist" --shard 3/3 --no-best -o "$work/part-3-nobest.txt"
+expect 2 "a merge of shards run with other options" -- "$keel" audit --merge "$work/part-1.txt" "$work/part-2.txt" "$work/part-3-nobest.txt"
+has "$work/err" "part-3-nobest.txt:1:1: this partial was run with other options" "the odd partial is named at its line"
+"$keel" audit "$hist" --jobs 2 --format json > "$work/jobs.json"
+if cmp -s "$work/jobs.json" "$work/single.json"; then ok "two threads give the one thread's report"; else not_ok "two threads give the one thread's report"; fi
+if command -v parallel >/dev/null 2>&1; then
+    parallel --will-cite "$keel" audit "$hist" --shard {}/4 -o "$work/par-{}.txt" ::: 1 2 3 4
+    "$keel" audit --merge "$work"/par-*.txt --format json > "$work/par.json"
+    if cmp -s "$work/par.json" "$work/single.json"; then ok "GNU parallel's shards merge to the single run"; else not_ok "GNU parallel's shards merge to the single run"; fi
+else
+    ok "GNU parallel's shards merge to the single run # SKIP parallel is not installed"
+fi
 
 echo "1..$n"
 [ "$failed" -eq 0 ]

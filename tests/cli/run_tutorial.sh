@@ -33,10 +33,10 @@ while [ -f "$work/$i.cmd" ]; do
     n=$((n + 1))
     normalise < "$work/$i.expected" > "$work/$i.expected.n"
     if normalise < "$work/$i.out" | diff -u "$work/$i.expected.n" - > "$work/$i.diff"; then
-        echo "ok $n - tutorial: $cmd"
+        printf 'ok %s - tutorial: %s\n' "$n" "$cmd"
     else
         failed=$((failed + 1))
-        echo "not ok $n - tutorial: $cmd"
+        printf 'not ok %s - tutorial: %s\n' "$n" "$cmd"
         sed 's/^/# /' "$work/$i.diff"
     fi
     i=$((i + 1))

@@ -62,7 +62,8 @@ options() { grep -oE -- '(^|[][ ,(|])--?[a-z][a-z-]*' "$1" | sed 's/^[][ ,(|]//'
 "$keel" --help >"$work/help"
 commands=$(awk '/^Commands:/ { on = 1; next } on && /^$/ { exit } on { print $1 }' "$work/help")
 expect "'keel ' offers every command keel lists" "$commands" keel ""
-expect "'keel a' offers assign" "assign" keel a
+expect "'keel a' offers assign and audit" "assign audit" keel a
+expect "'keel au' offers audit" "audit" keel au
 expect "'keel -' offers keel's own options" "-h --help --version" keel -
 expect "'keel help ' offers every command, help too (keel help help)" "$commands" keel help ""
 

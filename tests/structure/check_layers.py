@@ -57,6 +57,7 @@ LAYERS = [
     ("report parts", ["report_out.c", "report_plan.c"]),
     ("writers", ["report_*"]),
     ("writer table and template", ["report.c", "template.c"]),
+    ("the audit", ["audit*"]),
     ("the command", ["cli/*"]),
 ]
 
