@@ -17,6 +17,10 @@ _keel_options() {
         echo "-h --help"
         ;;
     check) echo "-f --format -t --time-limit -o --output -h --help" ;;
+    rebalance)
+        echo "-f --format --max-handoffs --handoffs --min-gain -t --time-limit -o --output"
+        echo "-h --help"
+        ;;
     new) echo "--type --table --unit --shift -o --output -h --help" ;;
     import) echo "--roster --map --type --table --unit --shift -o --output -h --help" ;;
     esac
@@ -27,6 +31,7 @@ _keel_takes_value() {
     case $1 in
     -f | --format | -m | --method | -t | --time-limit | -o | --output) return 0 ;;
     --type | --table | --unit | --shift | --roster | --map) return 0 ;;
+    --max-handoffs | --handoffs | --min-gain) return 0 ;;
     esac
     return 1
 }
@@ -34,7 +39,7 @@ _keel_takes_value() {
 # The report formats of each command.
 _keel_formats() {
     case $1 in
-    assign) echo "text yaml json" ;;
+    assign | rebalance) echo "text yaml json" ;;
     check) echo "text json" ;;
     esac
 }
@@ -85,7 +90,7 @@ _keel() {
         if [[ $cur == -* ]]; then
             _keel_add_words "-h --help --version" "$cur"
         else
-            _keel_add_words "assign check new import help" "$cur"
+            _keel_add_words "assign check rebalance new import help" "$cur"
         fi
         return 0
     fi
@@ -93,10 +98,10 @@ _keel() {
     local cmd=${COMP_WORDS[1]}
     case $cmd in
     help)
-        ((cword == 2)) && _keel_add_words "assign check new import help" "$cur"
+        ((cword == 2)) && _keel_add_words "assign check rebalance new import help" "$cur"
         return 0
         ;;
-    assign | check | new | import) ;;
+    assign | check | rebalance | new | import) ;;
     *) return 0 ;;
     esac
 
@@ -109,8 +114,8 @@ _keel() {
         [[ $cmd == assign ]] && _keel_add_words "ilp greedy" "$cur"
         return 0
         ;;
-    -t | --time-limit | --unit | --map)
-        return 0 # a number of seconds, a name, field=Header pairs
+    -t | --time-limit | --unit | --map | --max-handoffs | --handoffs | --min-gain)
+        return 0 # a number of seconds, a name, field=Header pairs, a number
         ;;
     --type)
         _keel_add_words "icu step-down telemetry med-surg pediatrics emergency oncology \

@@ -36,6 +36,9 @@ typedef struct options {
     const char *shift; /* new, import: --shift */
     const char *base;  /* import: --roster, the roster the census joins */
     const char *map;   /* import: --map field=Header,... */
+    int max_handoffs;  /* rebalance: --max-handoffs; -1: the default */
+    int handoffs;      /* rebalance: --handoffs, the option to write; -1: the recommended */
+    double min_gain;   /* rebalance: --min-gain; -1: the default */
 } options;
 
 typedef struct command {
@@ -49,6 +52,7 @@ static int run_assign(const options *opt);
 static int run_check(const options *opt);
 static int run_new(const options *opt);
 static int run_import(const options *opt);
+static int run_rebalance(const options *opt);
 
 static const command commands[] = {
     {"assign", "balance the roster's patients across its nurses",
@@ -85,6 +89,32 @@ static const command commands[] = {
      "  -t, --time-limit SECS  limit for finding the best possible (default 10)\n"
      "  -o, --output FILE      write to FILE (replaced atomically; never the roster)\n",
      run_check},
+    {"rebalance", "fold in what changed mid-shift with the fewest hand-offs",
+     "usage: keel rebalance ROSTER [--format text|yaml|json] [--max-handoffs N]\n"
+     "                      [--handoffs K] [--min-gain POINTS] [--time-limit SECONDS]\n"
+     "                      [-o FILE]\n"
+     "\n"
+     "The roster is the current state: a patient with a nurse is with that nurse now,\n"
+     "a patient without one is new.  For k = 0, 1, ... up to --max-handoffs, finds the\n"
+     "best plan that moves at most k patients to another nurse (a swap counts two;\n"
+     "placing a new patient is not a hand-off; a patient whose nurse is gone or may no\n"
+     "longer keep the patient is a forced move, listed apart and not counted; locked\n"
+     "patients never move), and recommends the fewest hand-offs whose heaviest\n"
+     "utilisation is within --min-gain of the best option's.  The roster's figures are\n"
+     "taken as the work that remains.\n"
+     "\n"
+     "  -f, --format FMT       text (default: the frontier, the moves, the recommendation),\n"
+     "                         json (every option) or yaml (the chosen option as the\n"
+     "                         updated roster, which keel rebalance and keel check read)\n"
+     "      --max-handoffs N   the largest k of the frontier (default 3)\n"
+     "      --handoffs K       the option to write and detail (default: the recommended)\n"
+     "      --min-gain POINTS  the least drop of the heaviest utilisation worth a hand-off\n"
+     "                         (default 0.03)\n"
+     "  -t, --time-limit SECS  limit for the whole frontier (default 10), shared equally by\n"
+     "                         the options still to solve\n"
+     "  -o, --output FILE      write to FILE (replaced atomically; never the roster).\n"
+     "                         When the option has no plan, nothing is written to FILE\n",
+     run_rebalance},
     {"new", "write a commented roster for a unit to fill in",
      "usage: keel new [--type UNIT-TYPE] [--table NAME] [--unit NAME] [--shift day|evening|night]\n"
      "                [-o FILE]\n"
@@ -124,8 +154,8 @@ static const char help_usage[] =
     "usage: keel help [COMMAND]\n"
     "\n"
     "Without a command, lists keel's commands, its exit codes and the caution.  With\n"
-    "one (assign, check, new, import or help), shows that command's usage and every\n"
-    "option; 'keel COMMAND --help' shows the same.\n";
+    "one (assign, check, rebalance, new, import or help), shows that command's usage\n"
+    "and every option; 'keel COMMAND --help' shows the same.\n";
 
 static void print_usage(FILE *out)
 {
@@ -133,8 +163,8 @@ static void print_usage(FILE *out)
                  "keel balances patient-to-nurse assignments on a hospital unit.\n\n"
                  "Commands:\n");
     for (size_t i = 0; i < ncommands; i++)
-        fprintf(out, "  %-8s %s\n", commands[i].name, commands[i].summary);
-    fprintf(out, "  %-8s %s\n", "help", "show help for a command");
+        fprintf(out, "  %-9s %s\n", commands[i].name, commands[i].summary);
+    fprintf(out, "  %-9s %s\n", "help", "show help for a command");
     fprintf(out,
             "\nOptions: --help, --version\n"
             "Exit codes: 0 success, 1 usage error, 2 bad input, 3 no valid assignment "
@@ -250,9 +280,40 @@ static int parse_time_limit(const command *cmd, const char *text, long *ms)
     return 0;
 }
 
+/* --max-handoffs and --handoffs: a whole number 0..MOST_HANDOFFS; --min-gain:
+ * utilisation points 0..1. */
+#define MOST_HANDOFFS 20
+
+static int parse_rebalance_number(const command *cmd, const char *arg, const char *text,
+                                  options *opt)
+{
+    char *end;
+    errno = 0;
+    if (strncmp(arg, "--min-gain", 10) == 0) {
+        double gain = strtod(text, &end);
+        if (errno || end == text || *end || !(gain >= 0) || gain > 1)
+            return usage_error(cmd, "--min-gain: '%s' is not a number of utilisation points "
+                                    "between 0 and 1", text);
+        opt->min_gain = gain;
+        return 0;
+    }
+    long k = strtol(text, &end, 10);
+    if (errno || end == text || *end || k < 0 || k > MOST_HANDOFFS)
+        return usage_error(cmd,
+                           strncmp(arg, "--max-handoffs", 14) == 0
+                               ? "--max-handoffs: '%s' is not a whole number from 0 to 20"
+                               : "--handoffs: '%s' is not a whole number from 0 to 20",
+                           text);
+    if (strncmp(arg, "--max-handoffs", 14) == 0)
+        opt->max_handoffs = (int)k;
+    else
+        opt->handoffs = (int)k;
+    return 0;
+}
+
 static int parse_args(const command *cmd, int argc, char **argv, options *opt, bool *help)
 {
-    *opt = (options){.format = "text"};
+    *opt = (options){.format = "text", .max_handoffs = -1, .handoffs = -1, .min_gain = -1.0};
     for (int i = 0; i < argc; i++) {
         const char *arg = argv[i], *value;
         size_t len;
@@ -260,7 +321,7 @@ static int parse_args(const command *cmd, int argc, char **argv, options *opt, b
             *help = true;
             return 0;
         }
-        bool solving = cmd->run == run_assign || cmd->run == run_check;
+        bool solving = cmd->run == run_assign || cmd->run == run_check || cmd->run == run_rebalance;
         bool writing = cmd->run == run_new || cmd->run == run_import;
         if (matches(arg, "-o", "--output", &len) ||
             (solving &&
@@ -297,6 +358,17 @@ static int parse_args(const command *cmd, int argc, char **argv, options *opt, b
             *slot = option_value(argc, argv, &i, arg, len);
             if (!*slot)
                 return usage_error(cmd, "%s needs a value", arg);
+            continue;
+        }
+        if (cmd->run == run_rebalance &&
+            (matches(arg, "--max-handoffs", "--max-handoffs", &len) ||
+             matches(arg, "--handoffs", "--handoffs", &len) ||
+             matches(arg, "--min-gain", "--min-gain", &len))) {
+            value = option_value(argc, argv, &i, arg, len);
+            if (!value)
+                return usage_error(cmd, "%s needs a value", arg);
+            if (parse_rebalance_number(cmd, arg, value, opt))
+                return EXIT_USAGE;
             continue;
         }
         if (cmd->run == run_assign && (strcmp(arg, "-e") == 0 || strcmp(arg, "--explain") == 0)) {
@@ -552,6 +624,89 @@ static int run_check(const options *opt)
     if (code)
         return code;
     return infeasible ? EXIT_INFEASIBLE : 0;
+}
+
+/* The rebalance's report: each option's figures, the option to show. */
+typedef struct rebalance_out {
+    const keel_rebalance *rb;
+    keel_metrics **metrics; /* [noptions] */
+    size_t chosen;
+    const keel_roster *roster;
+} rebalance_out;
+
+static keel_status write_rebalance(const options *opt, void *ctx, FILE *out, keel_error *err)
+{
+    const rebalance_out *ro = ctx;
+    keel_rebalance_report rep = {.roster = ro->roster,
+                                 .rebalance = ro->rb,
+                                 .metrics = (const keel_metrics *const *)ro->metrics,
+                                 .chosen = ro->chosen};
+    return keel_report_rebalance_write(opt->format, &rep, out, err);
+}
+
+static int write_out(const options *opt, const char *input,
+                     keel_status (*fn)(const options *opt, void *ctx, FILE *out, keel_error *err),
+                     void *ctx);
+
+static int run_rebalance(const options *opt)
+{
+    keel_error err;
+    keel_error_init(&err);
+    keel_roster *roster = NULL;
+    keel_rebalance *rb = NULL;
+    keel_metrics **metrics = NULL;
+    int most = opt->max_handoffs >= 0 ? opt->max_handoffs : KEEL_REBALANCE_MAX_HANDOFFS;
+    if (opt->handoffs > most)
+        most = opt->handoffs; /* the frontier reaches the option asked for */
+    keel_rebalance_options ro = {
+        .time_limit_ms = opt->time_limit_ms, .max_handoffs = most, .min_gain = opt->min_gain};
+    if (cli_output_clobbers(opt->output, opt->roster))
+        return EXIT_USAGE;
+    keel_status rc = keel_roster_load(opt->roster, &roster, &err);
+    if (!rc && !has_patients("rebalance", opt, roster)) {
+        keel_roster_free(roster);
+        keel_error_fini(&err);
+        return EXIT_INPUT;
+    }
+    if (!rc)
+        rc = keel_rebalance_run(roster, &ro, &rb, &err);
+    if (!rc && !(metrics = calloc(rb->noptions, sizeof *metrics)))
+        rc = keel_error_add(&err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    for (size_t k = 0; !rc && k < rb->noptions; k++)
+        if (rb->options[k].found)
+            rc = keel_metrics_compute(rb->workload, rb->options[k].solution->nurse_of,
+                                      &metrics[k], &err);
+    int code = 0;
+    if (rc) {
+        print_problems(&err);
+        code = exit_code(rc);
+        goto out;
+    }
+    size_t chosen = opt->handoffs >= 0 ? (size_t)opt->handoffs
+                    : rb->recommended >= 0 ? (size_t)rb->recommended
+                                           : 0;
+    bool planless = !rb->options[chosen].found;
+    if (planless)
+        fprintf(stderr, "keel rebalance: %s: %s\n", opt->roster,
+                rb->recommended < 0 ? "no plan keeps every rule, whatever the hand-offs"
+                                    : "the chosen option has no plan that keeps every rule");
+    rebalance_out out_ctx = {.rb = rb, .metrics = metrics, .chosen = chosen, .roster = roster};
+    if (planless && (to_file(opt) || strcmp(opt->format, "yaml") == 0))
+        fprintf(stderr, "keel rebalance: no plan written\n");
+    else
+        code = write_out(opt, opt->roster, write_rebalance, &out_ctx);
+    if (planless)
+        fprintf(stderr, "%s\n", KEEL_CAUTION);
+    if (!code && planless)
+        code = EXIT_INFEASIBLE;
+out:
+    for (size_t k = 0; metrics && k < rb->noptions; k++)
+        keel_metrics_free(metrics[k]);
+    free(metrics);
+    keel_rebalance_free(rb);
+    keel_roster_free(roster);
+    keel_error_fini(&err);
+    return code;
 }
 
 /* Writes through fn to -o or stdout, atomically; never over input. */

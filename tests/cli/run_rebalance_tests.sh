@@ -1,0 +1,90 @@
+#!/bin/sh
+# SPDX-License-Identifier: GPL-3.0-or-later
+#
+# CLI tests of keel rebalance: exit codes, the text, json and yaml reports
+# and the round trip of the yaml plan through keel rebalance and keel
+# check, as a TAP stream for meson.  Usage: run_rebalance_tests.sh KEEL
+# CLI_DATA_DIR
+set -u
+keel=$(cd "$(dirname "$1")" && pwd)/$(basename "$1")
+data=$(cd "$2" && pwd)
+work=$(mktemp -d)
+trap 'rm -rf "$work"' EXIT
+n=0
+failed=0
+caution="Decision support only: the charge nurse's judgement, facility policy and the staffing law that applies locally govern every assignment."
+
+ok() { n=$((n + 1)); echo "ok $n - $1"; }
+not_ok() { n=$((n + 1)); failed=$((failed + 1)); echo "not ok $n - $1"; sed 's/^/# /' "$work/out" "$work/err" 2>/dev/null | head -40; }
+expect() { # expect CODE NAME -- COMMAND...
+    code=$1 name=$2
+    shift 3
+    "$@" >"$work/out" 2>"$work/err"
+    got=$?
+    if [ "$got" -eq "$code" ]; then ok "$name (exit $code)"; else echo "# exit $got, wanted $code"; not_ok "$name"; fi
+}
+has() { # has FILE TEXT NAME
+    if grep -qF -- "$2" "$1"; then ok "$3"; else echo "# missing: $2"; not_ok "$3"; fi
+}
+hasnt() { # hasnt FILE TEXT NAME
+    if grep -qF -- "$2" "$1"; then echo "# present: $2"; not_ok "$3"; else ok "$3"; fi
+}
+last_line_is_caution() { # FILE NAME
+    if [ "$(tail -n 1 "$1")" = "$caution" ]; then ok "$2"; else not_ok "$2"; fi
+}
+json() { # json FILE EXPRESSION NAME: the python expression on the parsed report j is true
+    if /usr/bin/python3 -c "import json,sys; j=json.load(open(sys.argv[1])); sys.exit(0 if ($2) else 1)" "$1"; then
+        ok "$3"; else echo "# false: $2"; not_ok "$3"; fi
+}
+
+roster=$data/rebalance-midshift.yaml
+expect 0 "help for rebalance" -- "$keel" help rebalance
+has "$work/out" "--max-handoffs" "rebalance help names its options"
+last_line_is_caution "$work/out" "rebalance help ends with the caution"
+expect 1 "a budget that is not a number" -- "$keel" rebalance "$roster" --max-handoffs many
+has "$work/err" "--max-handoffs: 'many' is not a whole number from 0 to 20" "the bad budget is named"
+expect 1 "a gain above 1" -- "$keel" rebalance "$roster" --min-gain 2
+expect 1 "a negative option" -- "$keel" rebalance "$roster" --handoffs -1
+expect 1 "rebalance over its own roster" -- "$keel" rebalance "$roster" -o "$roster"
+
+expect 0 "rebalance a mid-shift roster" -- "$keel" rebalance "$roster"
+has "$work/out" "Hand-off frontier" "the frontier is shown"
+has "$work/out" "  1  optimal     0.58      0.50      0.08    0.58    0.0     1   recommended" "option 1 is proven and recommended"
+has "$work/out" "P3 (bed 103A): N1 → N2" "the hand-off is named with its bed"
+has "$work/out" "P7 (bed 107A): N4 → N2" "the forced move is listed"
+has "$work/out" "P9 (bed 109A): → N3" "the new patient is placed"
+last_line_is_caution "$work/out" "the text ends with the caution"
+
+expect 0 "json" -- "$keel" rebalance "$roster" --format json
+cp "$work/out" "$work/r.json"
+json "$work/r.json" "j['status'] == 'optimal' and j['recommended_handoffs'] == 1 and j['at'] is None" "json: status, recommendation, at"
+json "$work/r.json" "[o['handoffs'] for o in j['options']] == [0, 1, 2, 3]" "json: one option per budget"
+json "$work/r.json" "all(len(o['moves']) <= o['handoffs'] for o in j['options'])" "json: no option moves more than its budget"
+json "$work/r.json" "all(a['max_utilisation'] >= b['max_utilisation'] for a, b in zip(j['options'], j['options'][1:]))" "json: the frontier never worsens"
+json "$work/r.json" "j['forced_moves'] == [{'patient': 'P7', 'bed': '107A', 'from': 'N4', 'to': 'N2'}]" "json: the forced move"
+json "$work/r.json" "all(set(o) >= {'status', 'max_utilisation', 'min_utilisation', 'spread', 'bound', 'gap', 'moves', 'nurses'} for o in j['options'])" "json: every option's fields"
+json "$work/r.json" "all(any(p == 'P1' for nu in o['nurses'] if nu['id'] == 'N1' for p in nu['patients']) for o in j['options'])" "json: the locked patient never moves"
+json "$work/r.json" "j['caution'].startswith('Decision support only')" "json: the caution"
+
+expect 0 "yaml of the recommended option" -- "$keel" rebalance "$roster" --format yaml -o "$work/next.yaml"
+expect 0 "check the updated roster" -- "$keel" check "$work/next.yaml"
+has "$work/out" "The plan keeps every rule keel checks." "the updated roster keeps every rule"
+expect 0 "rebalance the updated roster" -- "$keel" rebalance "$work/next.yaml" --format json
+cp "$work/out" "$work/again.json"
+json "$work/again.json" "j['recommended_handoffs'] == 0 and j['forced_moves'] == [] and j['new'] == 0" "the updated roster needs no hand-off"
+expect 0 "yaml of option 0" -- "$keel" rebalance "$roster" --handoffs 0 --format yaml -o "$work/zero.yaml"
+has "$work/zero.yaml" "$caution" "the yaml carries the caution"
+expect 0 "the text details the chosen option" -- "$keel" rebalance "$roster" --handoffs 0
+has "$work/out" "Option 0 (chosen with --handoffs):" "the chosen option is named"
+has "$work/out" "No hand-offs: every patient with a nurse keeps her." "option 0 hands nothing off"
+
+# A second nurse may not take P5 (chemo): with N3 gone too, P5's only
+# nurse is N2 and nobody may take more than one patient: no plan.
+sed -e 's/max_patients: 4/max_patients: 1/' "$roster" >"$work/short.yaml"
+expect 3 "no option has a plan" -- "$keel" rebalance "$work/short.yaml" -o "$work/short-out.yaml"
+has "$work/err" "no plan keeps every rule, whatever the hand-offs" "stderr says why"
+last_line_is_caution "$work/err" "stderr ends with the caution"
+if [ -e "$work/short-out.yaml" ]; then not_ok "no file is written without a plan"; else ok "no file is written without a plan"; fi
+
+echo "1..$n"
+[ "$failed" -eq 0 ]
