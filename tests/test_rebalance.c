@@ -1,0 +1,199 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * test_rebalance.c - the hand-off frontier (keel/rebalance.h) against
+ * exhaustive enumeration: on small random mid-shift rosters (a nurse who
+ * has gone, patients locked, new patients, competencies, a high-acuity
+ * limit) every option k must be the best plan with at most k hand-offs,
+ * peak first and lift second, exactly; never move a locked patient; never
+ * make more than k hand-offs besides the forced moves; and the frontier
+ * must never worsen as k grows.  The recommendation follows its rule.
+ */
+#include <setjmp.h>
+#include <stdarg.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include <cmocka.h>
+
+#include "keel/keel.h"
+#include "solve/measure.h"
+#include "testutil.h"
+#include "workload_internal.h"
+
+#define MAX_K 3
+
+/* A random mid-shift roster as YAML: 2-4 nurses (the last one sometimes
+ * gone: max_patients 0), 3-7 patients with or without a nurse now, some
+ * locked, some needing a competency, a high-acuity limit sometimes. */
+static size_t random_roster(uint64_t *seed, char *text, size_t size)
+{
+    int nn = tu_range(seed, 2, 4), np = tu_range(seed, 3, 7);
+    bool gone = tu_range(seed, 0, 2) == 0;
+    bool high = tu_range(seed, 0, 2) == 0;
+    size_t len = 0;
+    len += (size_t)snprintf(text + len, size - len,
+                            "version: 1\nshift: {minutes: 480}\npolicy:\n"
+                            "  acuity_minutes: {1: 40, 2: 70, 3: 100, 4: 150}\n"
+                            "  max_patients: %d\n",
+                            tu_range(seed, 2, 4));
+    if (high)
+        len += (size_t)snprintf(text + len, size - len,
+                                "  high_acuity: {level: 4, max_per_nurse: 1}\n");
+    len += (size_t)snprintf(text + len, size - len, "nurses:\n");
+    for (int n = 0; n < nn; n++)
+        len += (size_t)snprintf(text + len, size - len, "  - {id: N%d%s%s}\n", n,
+                                n % 2 == 0 ? ", skills: [chemo]" : "",
+                                gone && n == nn - 1 ? ", max_patients: 0" : "");
+    len += (size_t)snprintf(text + len, size - len, "patients:\n");
+    for (int p = 0; p < np; p++) {
+        int acuity = tu_range(seed, 1, 4), kind = tu_range(seed, 0, 9);
+        bool chemo = tu_range(seed, 0, 5) == 0;
+        int nurse = tu_range(seed, 0, nn - 1);
+        len += (size_t)snprintf(text + len, size - len, "  - {id: P%d, acuity: %d%s", p, acuity,
+                                chemo ? ", needs: [chemo]" : "");
+        /* kind 0-1: new; 2: locked (to a nurse who may take the patient); else present. */
+        if (kind == 2 && !(gone && nurse == nn - 1) && (!chemo || nurse % 2 == 0))
+            len += (size_t)snprintf(text + len, size - len, ", nurse: N%d, lock: true", nurse);
+        else if (kind >= 2)
+            len += (size_t)snprintf(text + len, size - len, ", nurse: N%d", nurse);
+        len += (size_t)snprintf(text + len, size - len, "}\n");
+    }
+    return len;
+}
+
+/* The best of every valid plan with at most k hand-offs, for each k. */
+typedef struct best {
+    bool found[MAX_K + 1];
+    keel_ratio peak[MAX_K + 1];
+    keel_ratio lift[MAX_K + 1]; /* the best lift among plans at the best peak */
+} best;
+
+static int handoffs(const keel_roster *r, const keel_workload *w, const int *nurse_of)
+{
+    int h = 0;
+    for (size_t p = 0; p < r->npatients; p++) {
+        const keel_patient *pt = &r->patients[p];
+        if (!pt->nurse)
+            continue;
+        int now = keel_roster_find_nurse(r, pt->nurse);
+        size_t q = (size_t)w->first_part[p];
+        if (!keel_workload_eligible(w, q, (size_t)now))
+            continue; /* forced */
+        h += nurse_of[q] != now;
+    }
+    return h;
+}
+
+static void enumerate(const keel_roster *r, const keel_workload *w, int *plan, size_t p, best *b)
+{
+    if (p == w->npatients) {
+        bool valid = false;
+        assert_int_equal(keel_measure_validate(w, plan, &valid), KEEL_OK);
+        if (!valid)
+            return;
+        int h = handoffs(r, w, plan);
+        keel_ratio peak = keel_measure_peak(w, plan), lift = keel_measure_lift(w, plan);
+        for (int k = h; k <= MAX_K; k++) {
+            int c = b->found[k] ? keel_ratio_cmp(peak, b->peak[k]) : -1;
+            if (c < 0 || (c == 0 && keel_ratio_cmp(lift, b->lift[k]) > 0)) {
+                b->found[k] = true;
+                b->peak[k] = peak;
+                b->lift[k] = lift;
+            }
+        }
+        return;
+    }
+    for (size_t n = 0; n < w->nnurses; n++) {
+        if (!keel_workload_eligible(w, p, n))
+            continue;
+        plan[p] = (int)n;
+        enumerate(r, w, plan, p + 1, b);
+    }
+}
+
+static void test_every_option_matches_exhaustive_enumeration(void **state)
+{
+    (void)state;
+    uint64_t seed = 1616;
+    int planned = 0, moved = 0, forced = 0, placed = 0, locked = 0, none = 0;
+    for (int round = 0; round < 1000; round++) {
+        char text[4096];
+        size_t len = random_roster(&seed, text, sizeof text);
+        keel_error err;
+        keel_error_init(&err);
+        keel_roster *r = NULL;
+        keel_rebalance *rb = NULL;
+        assert_int_equal(keel_roster_parse("random.yaml", text, len, &r, &err), KEEL_OK);
+        keel_rebalance_options o = {.max_handoffs = MAX_K, .min_gain = 0.03};
+        assert_int_equal(keel_rebalance_run(r, &o, &rb, &err), KEEL_OK);
+        const keel_workload *w = rb->workload;
+        int *plan = calloc(w->npatients + 1, sizeof *plan);
+        best b = {0};
+        enumerate(r, w, plan, 0, &b);
+        assert_int_equal(rb->noptions, MAX_K + 1);
+        for (int k = 0; k <= MAX_K; k++) {
+            const keel_rebalance_option *op = &rb->options[k];
+            assert_int_equal(op->handoffs, k);
+            assert_int_equal(op->found, b.found[k]);
+            if (!op->found) {
+                assert_int_equal(op->solution->status, KEEL_SOLVE_INFEASIBLE);
+                none++;
+                continue;
+            }
+            const int *nurse_of = op->solution->nurse_of;
+            bool valid = false;
+            assert_int_equal(keel_measure_validate(w, nurse_of, &valid), KEEL_OK);
+            assert_true(valid);
+            assert_int_equal(op->solution->status, KEEL_SOLVE_OPTIMAL);
+            assert_int_equal(keel_ratio_cmp(keel_measure_peak(w, nurse_of), b.peak[k]), 0);
+            assert_int_equal(keel_ratio_cmp(keel_measure_lift(w, nurse_of), b.lift[k]), 0);
+            assert_true(op->bound == keel_ratio_value(b.peak[k]) && op->gap == 0.0);
+            int h = handoffs(r, w, nurse_of);
+            assert_true(h <= k);
+            assert_int_equal((int)op->nmoves, h);
+            for (size_t p = 0; p < r->npatients; p++)
+                if (r->patients[p].lock)
+                    assert_int_equal(keel_rebalance_nurse(rb, op, p),
+                                     keel_roster_find_nurse(r, r->patients[p].nurse));
+            if (k > 0 && rb->options[k - 1].found)
+                assert_true(op->max_utilisation <= rb->options[k - 1].max_utilisation);
+            planned++;
+            moved += op->nmoves > 0;
+            forced += op->nforced > 0;
+            placed += op->nplaced > 0;
+        }
+        for (size_t p = 0; p < r->npatients; p++)
+            locked += r->patients[p].lock;
+        /* The recommendation: the smallest k within min_gain of the best. */
+        double lowest = 2.0;
+        for (int k = 0; k <= MAX_K; k++)
+            if (b.found[k] && keel_ratio_value(b.peak[k]) < lowest)
+                lowest = keel_ratio_value(b.peak[k]);
+        int want = -1;
+        for (int k = MAX_K; k >= 0; k--)
+            if (b.found[k] && keel_ratio_value(b.peak[k]) <= lowest + 0.03 + 1e-9)
+                want = k;
+        assert_int_equal(rb->recommended, want);
+        assert_int_equal(rb->status, want < 0 ? KEEL_SOLVE_INFEASIBLE : KEEL_SOLVE_OPTIMAL);
+        free(plan);
+        keel_rebalance_free(rb);
+        keel_roster_free(r);
+        keel_error_fini(&err);
+    }
+    print_message("# %d options with a plan (%d with hand-offs, %d with forced moves, %d placing "
+                  "new patients), %d without; %d locked patients\n",
+                  planned, moved, forced, placed, none, locked);
+    /* The generator must exercise every part of the model. */
+    assert_true(moved > 200 && forced > 200 && placed > 200 && none > 50 && locked > 100);
+}
+
+int main(void)
+{
+    const struct CMUnitTest tests[] = {
+        cmocka_unit_test(test_every_option_matches_exhaustive_enumeration),
+    };
+    return cmocka_run_group_tests(tests, NULL, NULL);
+}
