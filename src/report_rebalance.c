@@ -83,6 +83,10 @@ static void text_nurses(FILE *out, const keel_rebalance_report *rep)
     fputs("Nurses:\n", out);
     for (size_t n = 0; n < r->nnurses; n++) {
         const keel_nurse_metrics *nm = &m->nurses[n];
+        if (!nm->counted) {
+            fprintf(out, "  %-8s takes no patients\n", r->nurses[n].id);
+            continue;
+        }
         fprintf(out, "  %-8s %2d patient%s  load %4d of %4d min  utilisation %.2f ", r->nurses[n].id,
                 nm->npatients, nm->npatients == 1 ? " " : "s", nm->load_minutes,
                 nm->capacity_minutes, nm->utilisation);
