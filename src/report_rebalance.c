@@ -80,6 +80,10 @@ static void text_nurses(FILE *out, const keel_rebalance_report *rep)
     const keel_rebalance *rb = rep->rebalance;
     const keel_rebalance_option *o = &rb->options[rep->chosen];
     const keel_metrics *m = rep->metrics[rep->chosen];
+    keel_report plan = {.kind = KEEL_REPORT_ASSIGN,
+                        .roster = r,
+                        .workload = rb->workload,
+                        .nurse_of = o->solution->nurse_of};
     fputs("Nurses:\n", out);
     for (size_t n = 0; n < r->nnurses; n++) {
         const keel_nurse_metrics *nm = &m->nurses[n];
@@ -90,12 +94,15 @@ static void text_nurses(FILE *out, const keel_rebalance_report *rep)
         fprintf(out, "  %-8s %2d patient%s  load %4d of %4d min  utilisation %.2f ", r->nurses[n].id,
                 nm->npatients, nm->npatients == 1 ? " " : "s", nm->load_minutes,
                 nm->capacity_minutes, nm->utilisation);
+        /* With the clock, the patients she takes over later too, marked. */
         const char *sep = " ";
-        for (size_t p = 0; p < r->npatients; p++)
-            if (keel_rebalance_nurse(rb, o, p) == (int)n) {
-                fprintf(out, "%s%s", sep, r->patients[p].id);
-                sep = ", ";
-            }
+        for (size_t p = 0; p < r->npatients; p++) {
+            if (!keel_report_plan_holds(&plan, p, n))
+                continue;
+            fprintf(out, "%s%s%s", sep, r->patients[p].id,
+                    keel_rebalance_nurse(rb, o, p) == (int)n ? "" : " (later)");
+            sep = ", ";
+        }
         fputc('\n', out);
     }
 }
@@ -110,6 +117,13 @@ static keel_status write_text(const keel_rebalance_report *rep, FILE *out)
     if (r->shift.date)
         fprintf(out, " %s", r->shift.date);
     fputc('\n', out);
+    if (rb->at_minute >= 0)
+        fprintf(out,
+                "At %02d:%02d: the rest of the shift, %d min; care and capacity from then on; "
+                "discharged before then: %zu\n",
+                rb->at_minute / 60, rb->at_minute % 60, r->shift.minutes, rb->discharged);
+    else
+        fputs("The roster's figures are taken as the work that remains.\n", out);
     fprintf(out, "Now: %zu patient%s with a nurse, %zu new; status %s (%.1f s)\n\n", rb->npresent,
             rb->npresent == 1 ? "" : "s", rb->nnew, keel_solve_status_name(rb->status),
             rb->seconds);
@@ -226,8 +240,12 @@ static keel_status write_json(const keel_rebalance_report *rep, FILE *out)
 {
     const keel_rebalance *rb = rep->rebalance;
     const keel_rebalance_option *o = &rb->options[rep->chosen];
-    fprintf(out, "{\n  \"status\": \"%s\",\n  \"at\": null,\n  \"recommended_handoffs\": ",
-            keel_solve_status_name(rb->status));
+    fprintf(out, "{\n  \"status\": \"%s\",\n  \"at\": ", keel_solve_status_name(rb->status));
+    if (rb->at_minute >= 0)
+        fprintf(out, "\"%02d:%02d\"", rb->at_minute / 60, rb->at_minute % 60);
+    else
+        fputs("null", out);
+    fprintf(out, ",\n  \"discharged\": %zu,\n  \"recommended_handoffs\": ", rb->discharged);
     if (rb->recommended >= 0)
         fprintf(out, "%d", rb->recommended);
     else

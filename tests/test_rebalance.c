@@ -190,10 +190,143 @@ static void test_every_option_matches_exhaustive_enumeration(void **state)
     assert_true(moved > 200 && forced > 200 && placed > 200 && none > 50 && locked > 100);
 }
 
+/* ---- --at: the rest of the shift, against figures computed by hand ---- */
+
+static keel_rebalance *rebalance_at(const char *text, int at_minute)
+{
+    keel_error err;
+    keel_error_init(&err);
+    keel_roster *r = NULL;
+    keel_rebalance *rb = NULL;
+    assert_int_equal(keel_roster_parse("at.yaml", text, strlen(text), &r, &err), KEEL_OK);
+    keel_rebalance_options o = {.max_handoffs = 1, .min_gain = 0.03, .at = true,
+                                .at_minute = at_minute};
+    assert_int_equal(keel_rebalance_run(r, &o, &rb, &err), KEEL_OK);
+    keel_error_fini(&err);
+    /* The frontier owns the rest of the shift; the input may go. */
+    keel_roster_free(r);
+    return rb;
+}
+
+static const keel_patient *patient(const keel_roster *r, const char *id)
+{
+    for (size_t p = 0; p < r->npatients; p++)
+        if (strcmp(r->patients[p].id, id) == 0)
+            return &r->patients[p];
+    return NULL;
+}
+
+static long long care_of(const keel_rebalance *rb, const char *id)
+{
+    const keel_patient *p = patient(rb->roster, id);
+    return keel_workload_patient_care(rb->workload, (size_t)(p - rb->roster->patients));
+}
+
+/* The worked example of docs/model.md ("The time of the rebalance"):
+ * 07:00-19:00 (L = 720, break 60), --at 09:30 (t = 150, L' = 570). */
+static void test_at_takes_care_and_capacity_from_then_on(void **state)
+{
+    (void)state;
+    static const char text[] =
+        "version: 1\n"
+        "shift: {start: \"07:00\", minutes: 720, break_minutes: 60}\n"
+        "policy:\n"
+        "  acuity_minutes: {1: 60, 2: 120, 3: 240}\n"
+        "  extra_minutes: {admission: 60}\n"
+        "  max_patients: 4\n"
+        "nurses:\n"
+        "  - {id: N1}\n"
+        "  - {id: N2, end: \"09:30\"}\n"
+        "  - {id: N3, end: \"15:00\"}\n"
+        "  - {id: N4, start: \"11:00\"}\n"
+        "patients:\n"
+        "  - {id: P1, acuity: 3, nurse: N1}\n"
+        "  - {id: P2, acuity: 2, extras: [admission], nurse: N2}\n"
+        "  - {id: P3, acuity: 2, leaves_at: \"09:00\", nurse: N1}\n"
+        "  - {id: P4, acuity: 2, extras: [admission], arrives_at: \"10:30\"}\n"
+        "  - {id: P5, acuity: 1, nurse: N3}\n"
+        "  - {id: P6, acuity: 2, nurse: N1}\n";
+    keel_rebalance *rb = rebalance_at(text, 9 * 60 + 30);
+    const keel_roster *r = rb->roster;
+    const keel_workload *w = rb->workload;
+    assert_int_equal(r->shift.start_minute, 9 * 60 + 30);
+    assert_int_equal(r->shift.minutes, 570);
+    assert_int_equal(r->shift.break_minutes, 48); /* ceil(60 * 570 / 720) */
+    /* N1: break ceil(60 * 570 / 720) = 48; N2 has gone; N3 (to 15:00, 480 min
+     * on, 330 left): break ceil(60 * 330 / 480) = 42; N4 comes at 11:00. */
+    assert_int_equal(w->capacity_minutes[0], 570 - 48);
+    assert_int_equal(w->max_patients[1], 0);
+    assert_int_equal(w->capacity_minutes[2], 330 - 42);
+    assert_int_equal(r->nurses[2].end, 330);
+    assert_int_equal(r->nurses[3].start, 90);
+    assert_int_equal(w->capacity_minutes[3], 480 - 60);
+    /* P3 left at 09:00: discharged.  P1: 240 - ceil(240 * 150 / 720) = 190.
+     * P2: 120 - 25 = 95, her admission done.  P4 comes at 10:30: her care
+     * over 10:30-19:00, ceil(120 * 510 / 720) = 85, and her admission in
+     * full.  P5: 60 - ceil(60 * 150 / 720) = 47. */
+    assert_int_equal(rb->discharged, 1);
+    assert_null(patient(r, "P3"));
+    assert_int_equal(care_of(rb, "P1"), 190);
+    assert_int_equal(care_of(rb, "P2"), 95);
+    assert_int_equal(patient(r, "P2")->nextras, 0);
+    assert_int_equal(care_of(rb, "P4"), 85 + 60);
+    assert_int_equal(patient(r, "P4")->arrives_at, 60);
+    assert_int_equal(care_of(rb, "P5"), 47);
+    assert_int_equal(care_of(rb, "P6"), 95);
+    /* P2's nurse has gone: a forced move in every option. */
+    assert_int_equal(rb->options[0].nforced, 1);
+    assert_string_equal(r->patients[rb->options[0].forced[0].patient].id, "P2");
+    keel_rebalance_free(rb);
+}
+
+/* A night shift, 19:00-07:00 (L = 720, no break), --at 01:00 (t = 360). */
+static void test_at_crosses_midnight(void **state)
+{
+    (void)state;
+    static const char text[] =
+        "version: 1\n"
+        "shift: {start: \"19:00\", minutes: 720}\n"
+        "policy:\n"
+        "  acuity_minutes: {1: 60, 2: 120}\n"
+        "  extra_minutes: {admission: 60}\n"
+        "nurses:\n"
+        "  - {id: N1}\n"
+        "  - {id: N2, end: \"23:00\"}\n"
+        "  - {id: N3, start: \"03:00\"}\n"
+        "patients:\n"
+        "  - {id: P1, acuity: 2, leaves_at: \"02:00\", nurse: N1}\n"
+        "  - {id: P2, acuity: 1, nurse: N1}\n"
+        "  - {id: P3, acuity: 1, nurse: N2, handoffs: [N1]}\n"
+        "expected_admissions:\n"
+        "  - {id: A1, acuity: 2, extras: [admission], at: \"03:30\"}\n";
+    keel_rebalance *rb = rebalance_at(text, 1 * 60);
+    const keel_roster *r = rb->roster;
+    assert_int_equal(r->shift.start_minute, 60);
+    assert_int_equal(r->shift.minutes, 360);
+    assert_int_equal(rb->workload->max_patients[1], 0); /* N2 left at 23:00 */
+    assert_int_equal(r->nurses[2].start, 120);          /* N3 at 03:00 */
+    /* P1 over 19:00-02:00: ceil(120 * 420 / 720) = 70, of which
+     * 70 - ceil(70 * 360 / 420) = 10 are left, to 02:00. */
+    assert_int_equal(care_of(rb, "P1"), 10);
+    assert_int_equal(patient(r, "P1")->leaves_at, 60);
+    assert_int_equal(care_of(rb, "P2"), 30);
+    /* P3's planned hand-off at 23:00 has happened: N1 has her now. */
+    assert_string_equal(patient(r, "P3")->nurse, "N1");
+    assert_int_equal(patient(r, "P3")->nhandoffs, 0);
+    assert_int_equal(rb->options[0].nforced, 0);
+    /* A1 at 03:30: ceil(120 * 210 / 720) = 35 and her admission. */
+    assert_true(patient(r, "A1")->expected);
+    assert_int_equal(patient(r, "A1")->arrives_at, 150);
+    assert_int_equal(care_of(rb, "A1"), 35 + 60);
+    keel_rebalance_free(rb);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_every_option_matches_exhaustive_enumeration),
+        cmocka_unit_test(test_at_takes_care_and_capacity_from_then_on),
+        cmocka_unit_test(test_at_crosses_midnight),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

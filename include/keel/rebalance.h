@@ -31,9 +31,12 @@
  * The recommendation is the smallest k whose heaviest utilisation is
  * within min_gain of the lowest heaviest utilisation of all options.
  *
- * Without the time of the rebalance (this version) the roster's figures
- * are the work that remains: no time arithmetic.  With the clock, a
- * patient's current nurse is the nurse of its first part.
+ * Without the time of the rebalance (at_minute) the roster's figures are
+ * the work that remains: no time arithmetic.  With it, the frontier is
+ * over the roster of the rest of the shift (docs/model.md, "The time of
+ * the rebalance"): what happened before is fixed, care and capacity count
+ * from then on.  With the clock, a patient's current nurse is the nurse of
+ * its first part.
  *
  * policy.balance: squares is not supported (KEEL_ERR_USAGE).
  */
@@ -63,6 +66,10 @@ typedef struct keel_rebalance_options {
     long time_limit_ms; /* the whole frontier; <= 0: the default, 10 000 ms */
     int max_handoffs;   /* the largest k; < 0: KEEL_REBALANCE_MAX_HANDOFFS */
     double min_gain;    /* < 0: KEEL_REBALANCE_MIN_GAIN */
+    bool at;            /* a time of the rebalance is given: at_minute; else the roster's
+                           figures are the work that remains */
+    int at_minute;      /* the time of the rebalance, minutes after midnight (0-1439), inside
+                           the shift, which must have a start */
 } keel_rebalance_options;
 
 /* A patient who changes nurse. */
@@ -90,6 +97,11 @@ typedef struct keel_rebalance_option {
 } keel_rebalance_option;
 
 typedef struct keel_rebalance {
+    const keel_roster *roster; /* the roster the plans are over: the input, or with --at the
+                                  rest of the shift (owned by the frontier) */
+    keel_roster *rest;         /* with --at: the rest of the shift (owned), else NULL */
+    int at_minute;             /* the time of the rebalance, or -1 */
+    size_t discharged;         /* with --at: patients who left before it (not in roster) */
     keel_workload *workload; /* owned: the roster's workload, each patient's previous nurse
                                 replaced by the current one; the options' plans index it */
     keel_solve_status status; /* OPTIMAL: every option proven (a plan, or none within its
@@ -106,7 +118,8 @@ typedef struct keel_rebalance {
 /* Computes the hand-off frontier of roster (a valid roster with
  * patients).  The caller owns *out; free it with keel_rebalance_free().
  * Statuses: KEEL_OK (*out's status may be INFEASIBLE), KEEL_ERR_USAGE
- * (policy.balance: squares), KEEL_ERR_INPUT (as keel_workload_compute()),
+ * (policy.balance: squares; at_minute without a shift start or outside
+ * the shift), KEEL_ERR_INPUT (as keel_workload_compute()),
  * KEEL_ERR_NOMEM, KEEL_ERR_SOLVER.  Borrowed: roster must outlive *out. */
 KEEL_API keel_status keel_rebalance_run(const keel_roster *roster,
                                         const keel_rebalance_options *options,

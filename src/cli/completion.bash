@@ -18,7 +18,7 @@ _keel_options() {
         ;;
     check) echo "-f --format -t --time-limit -o --output -h --help" ;;
     rebalance)
-        echo "-f --format --max-handoffs --handoffs --min-gain -t --time-limit -o --output"
+        echo "-f --format --at --max-handoffs --handoffs --min-gain -t --time-limit -o --output"
         echo "-h --help"
         ;;
     new) echo "--type --table --unit --shift -o --output -h --help" ;;
@@ -31,7 +31,7 @@ _keel_takes_value() {
     case $1 in
     -f | --format | -m | --method | -t | --time-limit | -o | --output) return 0 ;;
     --type | --table | --unit | --shift | --roster | --map) return 0 ;;
-    --max-handoffs | --handoffs | --min-gain) return 0 ;;
+    --at | --max-handoffs | --handoffs | --min-gain) return 0 ;;
     esac
     return 1
 }
@@ -114,7 +114,7 @@ _keel() {
         [[ $cmd == assign ]] && _keel_add_words "ilp greedy" "$cur"
         return 0
         ;;
-    -t | --time-limit | --unit | --map | --max-handoffs | --handoffs | --min-gain)
+    -t | --time-limit | --unit | --map | --at | --max-handoffs | --handoffs | --min-gain)
         return 0 # a number of seconds, a name, field=Header pairs, a number
         ;;
     --type)

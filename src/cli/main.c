@@ -39,6 +39,7 @@ typedef struct options {
     int max_handoffs;  /* rebalance: --max-handoffs; -1: the default */
     int handoffs;      /* rebalance: --handoffs, the option to write; -1: the recommended */
     double min_gain;   /* rebalance: --min-gain; -1: the default */
+    int at_minute;     /* rebalance: --at HH:MM, minutes after midnight; -1: none */
 } options;
 
 typedef struct command {
@@ -90,9 +91,9 @@ static const command commands[] = {
      "  -o, --output FILE      write to FILE (replaced atomically; never the roster)\n",
      run_check},
     {"rebalance", "fold in what changed mid-shift with the fewest hand-offs",
-     "usage: keel rebalance ROSTER [--format text|yaml|json] [--max-handoffs N]\n"
-     "                      [--handoffs K] [--min-gain POINTS] [--time-limit SECONDS]\n"
-     "                      [-o FILE]\n"
+     "usage: keel rebalance ROSTER [--format text|yaml|json] [--at HH:MM]\n"
+     "                      [--max-handoffs N] [--handoffs K] [--min-gain POINTS]\n"
+     "                      [--time-limit SECONDS] [-o FILE]\n"
      "\n"
      "The roster is the current state: a patient with a nurse is with that nurse now,\n"
      "a patient without one is new.  For k = 0, 1, ... up to --max-handoffs, finds the\n"
@@ -100,12 +101,15 @@ static const command commands[] = {
      "placing a new patient is not a hand-off; a patient whose nurse is gone or may no\n"
      "longer keep the patient is a forced move, listed apart and not counted; locked\n"
      "patients never move), and recommends the fewest hand-offs whose heaviest\n"
-     "utilisation is within --min-gain of the best option's.  The roster's figures are\n"
-     "taken as the work that remains.\n"
+     "utilisation is within --min-gain of the best option's.  Without --at, the\n"
+     "roster's figures are taken as the work that remains.\n"
      "\n"
      "  -f, --format FMT       text (default: the frontier, the moves, the recommendation),\n"
      "                         json (every option) or yaml (the chosen option as the\n"
      "                         updated roster, which keel rebalance and keel check read)\n"
+     "      --at HH:MM         the time of the rebalance: what happened before is fixed,\n"
+     "                         care and capacity count from then on (the shift needs a\n"
+     "                         start); the yaml output is the rest of the shift\n"
      "      --max-handoffs N   the largest k of the frontier (default 3)\n"
      "      --handoffs K       the option to write and detail (default: the recommended)\n"
      "      --min-gain POINTS  the least drop of the heaviest utilisation worth a hand-off\n"
@@ -281,7 +285,7 @@ static int parse_time_limit(const command *cmd, const char *text, long *ms)
 }
 
 /* --max-handoffs and --handoffs: a whole number 0..MOST_HANDOFFS; --min-gain:
- * utilisation points 0..1. */
+ * utilisation points 0..1; --at: a time of day HH:MM. */
 #define MOST_HANDOFFS 20
 
 static int parse_rebalance_number(const command *cmd, const char *arg, const char *text,
@@ -289,6 +293,15 @@ static int parse_rebalance_number(const command *cmd, const char *arg, const cha
 {
     char *end;
     errno = 0;
+    if (strncmp(arg, "--at", 4) == 0) {
+        int h = -1, mi = -1;
+        char tail;
+        if (strlen(text) != 5 || sscanf(text, "%2d:%2d%c", &h, &mi, &tail) != 2 || h < 0 ||
+            h > 23 || mi < 0 || mi > 59)
+            return usage_error(cmd, "--at: '%s' is not a time of day HH:MM", text);
+        opt->at_minute = h * 60 + mi;
+        return 0;
+    }
     if (strncmp(arg, "--min-gain", 10) == 0) {
         double gain = strtod(text, &end);
         if (errno || end == text || *end || !(gain >= 0) || gain > 1)
@@ -313,7 +326,8 @@ static int parse_rebalance_number(const command *cmd, const char *arg, const cha
 
 static int parse_args(const command *cmd, int argc, char **argv, options *opt, bool *help)
 {
-    *opt = (options){.format = "text", .max_handoffs = -1, .handoffs = -1, .min_gain = -1.0};
+    *opt = (options){
+        .format = "text", .max_handoffs = -1, .handoffs = -1, .min_gain = -1.0, .at_minute = -1};
     for (int i = 0; i < argc; i++) {
         const char *arg = argv[i], *value;
         size_t len;
@@ -363,7 +377,8 @@ static int parse_args(const command *cmd, int argc, char **argv, options *opt, b
         if (cmd->run == run_rebalance &&
             (matches(arg, "--max-handoffs", "--max-handoffs", &len) ||
              matches(arg, "--handoffs", "--handoffs", &len) ||
-             matches(arg, "--min-gain", "--min-gain", &len))) {
+             matches(arg, "--min-gain", "--min-gain", &len) ||
+             matches(arg, "--at", "--at", &len))) {
             value = option_value(argc, argv, &i, arg, len);
             if (!value)
                 return usage_error(cmd, "%s needs a value", arg);
@@ -659,7 +674,11 @@ static int run_rebalance(const options *opt)
     if (opt->handoffs > most)
         most = opt->handoffs; /* the frontier reaches the option asked for */
     keel_rebalance_options ro = {
-        .time_limit_ms = opt->time_limit_ms, .max_handoffs = most, .min_gain = opt->min_gain};
+        .time_limit_ms = opt->time_limit_ms,
+        .max_handoffs = most,
+        .min_gain = opt->min_gain,
+        .at = opt->at_minute >= 0,
+        .at_minute = opt->at_minute};
     if (cli_output_clobbers(opt->output, opt->roster))
         return EXIT_USAGE;
     keel_status rc = keel_roster_load(opt->roster, &roster, &err);
@@ -690,7 +709,7 @@ static int run_rebalance(const options *opt)
         fprintf(stderr, "keel rebalance: %s: %s\n", opt->roster,
                 rb->recommended < 0 ? "no plan keeps every rule, whatever the hand-offs"
                                     : "the chosen option has no plan that keeps every rule");
-    rebalance_out out_ctx = {.rb = rb, .metrics = metrics, .chosen = chosen, .roster = roster};
+    rebalance_out out_ctx = {.rb = rb, .metrics = metrics, .chosen = chosen, .roster = rb->roster};
     if (planless && (to_file(opt) || strcmp(opt->format, "yaml") == 0))
         fprintf(stderr, "keel rebalance: no plan written\n");
     else

@@ -20,6 +20,7 @@
 #include "answer.h"
 #include "budget.h"
 #include "measure.h"
+#include "rebalance_at.h"
 #include "stage.h"
 #include "stage_search.h"
 #include "workload_internal.h"
@@ -37,6 +38,7 @@ void keel_rebalance_free(keel_rebalance *rb)
     }
     free(rb->options);
     keel_workload_free(rb->workload);
+    keel_roster_free(rb->rest);
     free(rb);
 }
 
@@ -254,6 +256,33 @@ static keel_status solve_option(const keel_roster *r, keel_rebalance *rb, size_t
     return rc;
 }
 
+/* With --at: the roster of the rest of the shift becomes the frontier's. */
+static keel_status rest_of_shift(const keel_roster *r, keel_rebalance *rb, keel_error *err)
+{
+    int day = 24 * 60;
+    if (r->shift.start_minute == KEEL_ABSENT)
+        return keel_error_add(err, KEEL_ERR_USAGE, NULL, 0, 0, NULL,
+                              "--at needs the shift's start (shift.start in the roster)");
+    int t = ((rb->at_minute - r->shift.start_minute) % day + day) % day;
+    if (t <= 0 || t >= r->shift.minutes) {
+        int end = (r->shift.start_minute + r->shift.minutes) % day;
+        return keel_error_add(err, KEEL_ERR_USAGE, NULL, 0, 0, NULL,
+                              "--at %02d:%02d is not inside the shift, which runs from %02d:%02d "
+                              "to %02d:%02d",
+                              rb->at_minute / 60, rb->at_minute % 60,
+                              r->shift.start_minute / 60, r->shift.start_minute % 60, end / 60,
+                              end % 60);
+    }
+    keel_workload *w = NULL;
+    keel_status rc = keel_workload_compute(r, &w, err);
+    if (!rc)
+        rc = keel_rebalance_at(r, w, t, &rb->rest, &rb->discharged, err);
+    keel_workload_free(w);
+    if (!rc)
+        rb->roster = rb->rest;
+    return rc;
+}
+
 /* The smallest k within min_gain of the lowest heaviest utilisation. */
 static int recommend(const keel_rebalance *rb)
 {
@@ -297,8 +326,14 @@ keel_status keel_rebalance_run(const keel_roster *roster, const keel_rebalance_o
         return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
     rb->min_gain = options && options->min_gain >= 0 ? options->min_gain : KEEL_REBALANCE_MIN_GAIN;
     rb->noptions = (size_t)most + 1;
+    rb->at_minute = options && options->at ? options->at_minute : -1;
+    rb->roster = roster;
+    keel_status rc = rb->at_minute >= 0 ? rest_of_shift(roster, rb, err) : KEEL_OK;
+    if (rc)
+        goto out;
+    roster = rb->roster;
     long long keepable = 0;
-    keel_status rc = derive(roster, rb, &keepable, err);
+    rc = derive(roster, rb, &keepable, err);
     if (rc)
         goto out;
     rb->options = keel_calloc(rb->noptions, sizeof *rb->options);

@@ -86,5 +86,31 @@ has "$work/err" "no plan keeps every rule, whatever the hand-offs" "stderr says 
 last_line_is_caution "$work/err" "stderr ends with the caution"
 if [ -e "$work/short-out.yaml" ]; then not_ok "no file is written without a plan"; else ok "no file is written without a plan"; fi
 
+# --at: the rest of the shift (the worked example of docs/model.md).
+at=$data/rebalance-at.yaml
+expect 1 "--at that is not a time" -- "$keel" rebalance "$at" --at 25:00
+has "$work/err" "--at: '25:00' is not a time of day HH:MM" "the bad time is named"
+expect 1 "--at outside the shift" -- "$keel" rebalance "$at" --at 06:00
+has "$work/err" "--at 06:00 is not inside the shift, which runs from 07:00 to 19:00" "the shift's times are given"
+expect 1 "--at without a shift start" -- "$keel" rebalance "$roster" --at 09:00
+has "$work/err" "--at needs the shift's start" "the missing start is named"
+expect 0 "rebalance at 09:30" -- "$keel" rebalance "$at" --at 09:30
+has "$work/out" "At 09:30: the rest of the shift, 570 min; care and capacity from then on; discharged before then: 1" "the rest of the shift is named"
+has "$work/out" "P2 (bed 2A): N2 → N3" "the patient of the nurse who left is a forced move"
+has "$work/out" "P4 (bed 4A): → N1" "the admission is placed"
+has "$work/out" "N4        2 patients  load  120 of  420 min  utilisation 0.29  P1 (later), P2 (later)" "the patients a nurse takes over later are marked"
+last_line_is_caution "$work/out" "the text at 09:30 ends with the caution"
+expect 0 "json at 09:30" -- "$keel" rebalance "$at" --at 09:30 --format json
+cp "$work/out" "$work/at.json"
+json "$work/at.json" "j['at'] == '09:30' and j['discharged'] == 1 and j['recommended_handoffs'] == 2" "json: at, discharged, recommendation"
+expect 0 "yaml at 09:30" -- "$keel" rebalance "$at" --at 09:30 --format yaml -o "$work/rest.yaml"
+has "$work/rest.yaml" 'start: "09:30"' "the rest of the shift starts at 09:30"
+has "$work/rest.yaml" "care_minutes: 190" "P1's care left"
+expect 0 "check the rest of the shift" -- "$keel" check "$work/rest.yaml"
+has "$work/out" "The plan keeps every rule keel checks." "the rest of the shift keeps every rule"
+expect 0 "rebalance the rest of the shift again at 12:00" -- "$keel" rebalance "$work/rest.yaml" --at 12:00 --format json
+cp "$work/out" "$work/again-at.json"
+json "$work/again-at.json" "j['at'] == '12:00' and j['forced_moves'] == [] and j['new'] == 0" "the next rebalance starts from the written roster"
+
 echo "1..$n"
 [ "$failed" -eq 0 ]

@@ -51,7 +51,7 @@ LAYERS = [
     ("solve: the answer chain", ["solve/answer.c"]),
     ("solve: feasibility and stages", ["solve/feas_*", "solve/stage_*"]),
     ("solve: zones", ["solve/zone_*"]),
-    ("solve: the orchestrators", ["solve/solve.c", "solve/rebalance.c"]),
+    ("solve: the orchestrators", ["solve/solve.c", "solve/rebalance_at.c", "solve/rebalance.c"]),
     ("after the solve", ["plan.c", "metrics.c", "explain.c", "course.c", "staffing.c"]),
     ("the verdict", ["verdict.c"]),
     ("report parts", ["report_out.c", "report_plan.c"]),
