@@ -290,7 +290,7 @@ static void test_at_crosses_midnight(void **state)
         "  acuity_minutes: {1: 60, 2: 120}\n"
         "  extra_minutes: {admission: 60}\n"
         "nurses:\n"
-        "  - {id: N1}\n"
+        "  - {id: N1, duty_minutes: 90}\n"
         "  - {id: N2, end: \"23:00\"}\n"
         "  - {id: N3, start: \"03:00\"}\n"
         "patients:\n"
@@ -304,6 +304,7 @@ static void test_at_crosses_midnight(void **state)
     assert_int_equal(r->shift.start_minute, 60);
     assert_int_equal(r->shift.minutes, 360);
     assert_int_equal(rb->workload->max_patients[1], 0); /* N2 left at 23:00 */
+    assert_int_equal(rb->workload->duty_minutes[0], 45); /* ceil(90 * 360 / 720) */
     assert_int_equal(r->nurses[2].start, 120);          /* N3 at 03:00 */
     /* P1 over 19:00-02:00: ceil(120 * 420 / 720) = 70, of which
      * 70 - ceil(70 * 360 / 420) = 10 are left, to 02:00. */

@@ -11,8 +11,9 @@
  *             no patients; timed breaks that ended by t are taken, one
  *             under way is cut at t; an untimed break counts in proportion
  *             to her time left, rounded up, and so does her `minutes`
- *             (rounded down) when she has no times; a nurse left without
- *             time for patients takes none
+ *             (rounded down) when she has no times; her duty minutes count
+ *             in proportion to her time left, rounded up; a nurse left
+ *             without time for patients takes none
  *   patient   present over [a, b): one who left at or before t was
  *             discharged and is left out; with present = her care without
  *             extras over [a, b) (the clock's own figure), the care left is
@@ -103,6 +104,9 @@ static void nurse_at(const keel_roster *r, size_t i, int t, keel_nurse *n)
         breaks = whole > 0 && on > 0 ? ceil_div((long long)whole * left, on) : 0;
         n->break_minutes = (int)breaks;
     }
+    int duty = or_default(o->duty_minutes, or_default(r->policy.roles[o->role].duty_minutes, 0));
+    if (duty > 0)
+        n->duty_minutes = on > 0 ? (int)ceil_div((long long)duty * left, on) : 0;
     if (left - breaks <= 0)
         n->max_patients = 0; /* no time left for patients */
 }
