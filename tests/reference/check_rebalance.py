@@ -22,6 +22,12 @@ admissions (no nurse), one patient's acuity goes up, sometimes one
 patient is locked to its nurse, and patients are discharged until some plan
 keeps every rule (most often one is found at once).
 
+Every other roster is checked at a time of the shift (`--at HH:MM`): the
+reference then solves the roster of the rest of the shift, computed here
+from the documented arithmetic (care left, breaks and duty in proportion to
+the time left, present patients' extras done), so keel's figures are
+checked against it too.
+
 For every roster and every k = 0..3 (keel rebalance --format json):
   * keel's plan for option k keeps every hard rule (highs_model.violations)
     and makes at most k hand-offs, recomputed from the roster; locked
@@ -127,6 +133,48 @@ def mid_shift(rng, name):
     raise RuntimeError("no mid-shift roster made for %s" % name)
 
 
+def ceil_div(a, b):
+    return -(-a // b)
+
+
+def rest_of_shift(doc, t):
+    """The roster of the rest of doc's shift from t minutes after its start,
+    by the arithmetic of docs/model.md ("The time of the rebalance"), for
+    the generated rosters (no times of nurses or patients)."""
+    d = copy.deepcopy(doc)
+    shift, policy = d["shift"], d.get("policy") or {}
+    L = int(shift["minutes"])
+    rest = L - t
+    sb = shift.get("break_minutes")
+    if sb is not None:
+        shift["break_minutes"] = ceil_div(int(sb) * rest, L)
+    shift["minutes"] = rest
+    hh, mm = (int(x) for x in str(shift["start"]).split(":"))
+    start = (hh * 60 + mm + t) % (24 * 60)
+    shift["start"] = "%02d:%02d" % (start // 60, start % 60)
+    roles = policy.get("roles") or {}
+    for n in d["nurses"]:
+        on = int(n.get("minutes", L))
+        left = on * rest // L
+        own = n.get("break_minutes")
+        whole = int(own) if own is not None else (int(sb or 0) if 2 * on >= L else 0)
+        brk = ceil_div(whole * left, on) if whole else 0
+        n["minutes"], n["break_minutes"] = left, brk
+        duty = n.get("duty_minutes", (roles.get(n.get("role", "staff")) or {}).get("duty_minutes"))
+        if duty:
+            n["duty_minutes"] = ceil_div(int(duty) * left, on)
+        if left - brk <= 0:
+            n["max_patients"] = 0
+    acuity = policy.get("acuity_minutes") or {}
+    for p in d["patients"]:
+        care = int(p["care_minutes"]) if p.get("care_minutes") is not None \
+            else int(highs_model._level_minutes(acuity, p.get("acuity")))
+        p["care_minutes"] = care - ceil_div(care * t, L)
+        if p.get("nurse"):
+            p.pop("extras", None)    # a present patient's extras are done
+    return d
+
+
 # ----------------------------------------------------------- the reference
 
 def current_of(r, doc):
@@ -174,9 +222,11 @@ def reference(r, cur, forced, seconds):
 
 # ------------------------------------------------------------------ keel
 
-def run_rebalance(keel, path, seconds):
+def run_rebalance(keel, path, seconds, at):
     cmd = [keel, "rebalance", path, "-f", "json", "--time-limit", "%g" % seconds,
            "--max-handoffs", str(MAX_K), "--min-gain", str(MIN_GAIN)]
+    if at:
+        cmd += ["--at", at]
     try:
         proc = subprocess.run(cmd, capture_output=True, text=True, timeout=seconds * 2 + 10)
     except subprocess.TimeoutExpired:
@@ -202,20 +252,26 @@ def option_plan(r, option, problems):
 
 
 def check_one(job):
-    path, keel, keel_seconds, highs_seconds = job
+    path, keel, keel_seconds, highs_seconds, t = job
     name = os.path.basename(path)
     problems, notes = [], []
     with open(path, encoding="utf-8") as f:
         doc = yaml.safe_load(f)
+    at = None
+    if t is not None:
+        doc = rest_of_shift(doc, t)
+        at = doc["shift"]["start"]
     r = highs_model.derive_rules(doc)
     cur, forced = current_of(r, doc)
     ref = reference(r, cur, forced, highs_seconds)
-    rc, out, err = run_rebalance(keel, path, keel_seconds)
-    res = {"name": name, "kind": None, "problems": problems, "notes": notes, "ref": ref,
-           "keel": out}
+    rc, out, err = run_rebalance(keel, path, keel_seconds, at)
+    res = {"name": name + (" --at " + at if at else ""), "kind": None, "problems": problems,
+           "notes": notes, "ref": ref, "keel": out}
     if out is None:
         problems.append("keel exit %r, no json: %s" % (rc, keel_run.stderr_head(err)))
         return res
+    if out.get("at") != at:
+        problems.append("at %r, expected %r" % (out.get("at"), at))
     options = out["options"]
     if [o["handoffs"] for o in options] != list(range(MAX_K + 1)):
         problems.append("options are not k = 0..%d" % MAX_K)
@@ -281,7 +337,7 @@ def check_one(job):
 
 
 def line(res):
-    parts = keel_run.line_head(res, 14)
+    parts = keel_run.line_head(res, 26)
     for k, h in enumerate(res["ref"]):
         parts.append("k%d %s" % (k, "-" if h["U"] is None else "%.4f" % float(h["U"])))
     return keel_run.line_end(parts, res)
@@ -307,7 +363,11 @@ def main(argv=None):
         path = os.path.join(out_dir, name + ".yaml")
         with open(path, "w", encoding="utf-8") as f:
             f.write(gen_rosters.to_yaml_rules(doc))
-        jobs.append((path, keel, args.keel_seconds, args.highs_seconds))
+        # Every other roster at a time of the shift (--at), its rest
+        # computed here from the documented arithmetic.
+        minutes = int(doc["shift"]["minutes"])
+        t = 5 * rng.randint(12, (minutes - 60) // 5) if i % 2 else None
+        jobs.append((path, keel, args.keel_seconds, args.highs_seconds, t))
     print("# %d mid-shift rosters (seed %d) in %s; HiGHS %g s per stage and budget, keel "
           "--time-limit %g, %d at once"
           % (len(jobs), args.seed, out_dir, args.highs_seconds, args.keel_seconds, args.jobs),
