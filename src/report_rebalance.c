@@ -40,7 +40,8 @@ static void text_moves(FILE *out, const keel_roster *r, const char *title,
     for (size_t i = 0; i < n; i++) {
         fputs("  ", out);
         write_patient(out, r, moves[i].patient);
-        if (moves[i].from >= 0 || r->patients[moves[i].patient].nurse)
+        const keel_patient *pt = &r->patients[moves[i].patient];
+        if (moves[i].from >= 0 || (pt->nurse && !pt->expected))
             fprintf(out, ": %s \u2192 %s\n",
                     moves[i].from >= 0 ? r->nurses[moves[i].from].id
                                        : r->patients[moves[i].patient].nurse,
@@ -107,6 +108,33 @@ static void text_nurses(FILE *out, const keel_rebalance_report *rep)
     }
 }
 
+/* Each expected admission without a nurse: who could take it with no
+ * hand-off, lightest first, and the rule against each other nurse. */
+static void text_preview(FILE *out, const keel_rebalance_report *rep)
+{
+    const keel_roster *r = rep->roster;
+    if (!rep->preview || rep->preview->nadmissions == 0)
+        return;
+    fputs("Expected admissions (who could take each with no hand-off):\n", out);
+    for (size_t i = 0; i < rep->preview->nadmissions; i++) {
+        const keel_preview_admission *a = &rep->preview->admissions[i];
+        fputs("  ", out);
+        write_patient(out, r, a->patient);
+        fputs(":", out);
+        const char *sep = " ";
+        for (size_t k = 0; k < a->nnurses; k++) {
+            const keel_preview_nurse *pn = &a->nurses[k];
+            if (pn->allowed)
+                fprintf(out, "%s%s %.2f%s", sep, r->nurses[pn->nurse].id, pn->utilisation,
+                        pn->overload ? " OVERLOAD" : "");
+            else
+                fprintf(out, "%s%s ruled out [%s]", sep, r->nurses[pn->nurse].id, pn->rule);
+            sep = "; ";
+        }
+        fputc('\n', out);
+    }
+}
+
 static keel_status write_text(const keel_rebalance_report *rep, FILE *out)
 {
     const keel_roster *r = rep->roster;
@@ -157,6 +185,7 @@ static keel_status write_text(const keel_rebalance_report *rep, FILE *out)
                o->forced, o->nforced);
     text_moves(out, r, "New patients", o->placed, o->nplaced);
     text_nurses(out, rep);
+    text_preview(out, rep);
     fprintf(out, "\n%s\n", KEEL_CAUTION);
     return KEEL_OK;
 }
@@ -260,7 +289,27 @@ static keel_status write_json(const keel_rebalance_report *rep, FILE *out)
         json_option(out, rep, k);
         fputs(k + 1 < rb->noptions ? ",\n" : "\n", out);
     }
-    fputs("  ],\n  \"caution\": ", out);
+    fputs("  ],\n  \"incoming\": [", out);
+    for (size_t i = 0; rep->preview && i < rep->preview->nadmissions; i++) {
+        const keel_preview_admission *a = &rep->preview->admissions[i];
+        fputs(i ? ",\n    {\"patient\": " : "\n    {\"patient\": ", out);
+        keel_report_out_quoted(out, rep->roster->patients[a->patient].id);
+        fputs(", \"nurses\": [", out);
+        for (size_t k = 0; k < a->nnurses; k++) {
+            const keel_preview_nurse *pn = &a->nurses[k];
+            fputs(k ? ", {\"id\": " : "{\"id\": ", out);
+            keel_report_out_quoted(out, rep->roster->nurses[pn->nurse].id);
+            if (pn->allowed)
+                fprintf(out, ", \"allowed\": true, \"utilisation\": %.12g, \"overload\": %s}",
+                        pn->utilisation, pn->overload ? "true" : "false");
+            else
+                fprintf(out, ", \"allowed\": false, \"rule\": \"%s\"}", pn->rule);
+        }
+        fputs("]}", out);
+    }
+    fputs(rep->preview && rep->preview->nadmissions ? "\n  ],\n  \"caution\": "
+                                                    : "],\n  \"caution\": ",
+          out);
     keel_report_out_quoted(out, KEEL_CAUTION);
     fputs("\n}\n", out);
     return KEEL_OK;

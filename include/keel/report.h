@@ -21,6 +21,7 @@
 #include "keel/finding.h"
 #include "keel/explain.h"
 #include "keel/metrics.h"
+#include "keel/preview.h"
 #include "keel/rebalance.h"
 #include "keel/staffing.h"
 #include "keel/roster.h"
@@ -71,6 +72,7 @@ typedef struct keel_rebalance_report {
     const keel_metrics *const *metrics; /* [noptions]: each option's plan's, NULL without one */
     size_t chosen; /* the option the yaml writes and the text details (the recommended one
                       unless the caller picks another) */
+    const keel_preview *preview; /* the expected admissions under the chosen option, or NULL */
 } keel_rebalance_report;
 
 /* Writes a rebalance in format "text" (the frontier, the chosen option's

@@ -647,6 +647,7 @@ typedef struct rebalance_out {
     keel_metrics **metrics; /* [noptions] */
     size_t chosen;
     const keel_roster *roster;
+    const keel_preview *preview;
 } rebalance_out;
 
 static keel_status write_rebalance(const options *opt, void *ctx, FILE *out, keel_error *err)
@@ -655,7 +656,8 @@ static keel_status write_rebalance(const options *opt, void *ctx, FILE *out, kee
     keel_rebalance_report rep = {.roster = ro->roster,
                                  .rebalance = ro->rb,
                                  .metrics = (const keel_metrics *const *)ro->metrics,
-                                 .chosen = ro->chosen};
+                                 .chosen = ro->chosen,
+                                 .preview = ro->preview};
     return keel_report_rebalance_write(opt->format, &rep, out, err);
 }
 
@@ -670,6 +672,7 @@ static int run_rebalance(const options *opt)
     keel_roster *roster = NULL;
     keel_rebalance *rb = NULL;
     keel_metrics **metrics = NULL;
+    keel_preview *preview = NULL;
     int most = opt->max_handoffs >= 0 ? opt->max_handoffs : KEEL_REBALANCE_MAX_HANDOFFS;
     if (opt->handoffs > most)
         most = opt->handoffs; /* the frontier reaches the option asked for */
@@ -705,11 +708,19 @@ static int run_rebalance(const options *opt)
                     : rb->recommended >= 0 ? (size_t)rb->recommended
                                            : 0;
     bool planless = !rb->options[chosen].found;
+    if (!planless &&
+        (rc = keel_preview_compute(rb->roster, rb->workload, rb->options[chosen].solution->nurse_of,
+                                   &preview, &err))) {
+        print_problems(&err);
+        code = exit_code(rc);
+        goto out;
+    }
     if (planless)
         fprintf(stderr, "keel rebalance: %s: %s\n", opt->roster,
                 rb->recommended < 0 ? "no plan keeps every rule, whatever the hand-offs"
                                     : "the chosen option has no plan that keeps every rule");
-    rebalance_out out_ctx = {.rb = rb, .metrics = metrics, .chosen = chosen, .roster = rb->roster};
+    rebalance_out out_ctx = {
+        .rb = rb, .metrics = metrics, .chosen = chosen, .roster = rb->roster, .preview = preview};
     if (planless && (to_file(opt) || strcmp(opt->format, "yaml") == 0))
         fprintf(stderr, "keel rebalance: no plan written\n");
     else
@@ -722,6 +733,7 @@ out:
     for (size_t k = 0; metrics && k < rb->noptions; k++)
         keel_metrics_free(metrics[k]);
     free(metrics);
+    keel_preview_free(preview);
     keel_rebalance_free(rb);
     keel_roster_free(roster);
     keel_error_fini(&err);

@@ -112,5 +112,16 @@ expect 0 "rebalance the rest of the shift again at 12:00" -- "$keel" rebalance "
 cp "$work/out" "$work/again-at.json"
 json "$work/again-at.json" "j['at'] == '12:00' and j['forced_moves'] == [] and j['new'] == 0" "the next rebalance starts from the written roster"
 
+# The incoming patient preview.
+incoming=$data/rebalance-incoming.yaml
+expect 0 "rebalance with an expected admission" -- "$keel" rebalance "$incoming"
+has "$work/out" "A1 (bed 6A): N2 0.42; N1 ruled out [moment_limit]; N3 ruled out [skill]" "the preview ranks the nurses and names the rules"
+last_line_is_caution "$work/out" "the preview's report ends with the caution"
+expect 0 "json with an expected admission" -- "$keel" rebalance "$incoming" --format json
+cp "$work/out" "$work/incoming.json"
+json "$work/incoming.json" "[a['patient'] for a in j['incoming']] == ['A1'] and j['incoming'][0]['nurses'][1:] == [{'id': 'N1', 'allowed': False, 'rule': 'moment_limit'}, {'id': 'N3', 'allowed': False, 'rule': 'skill'}]" "json: the nurses ruled out, and why"
+json "$work/incoming.json" "(lambda n: n['id'] == 'N2' and n['allowed'] and abs(n['utilisation'] - 300 / 720) < 1e-9 and not n['overload'])(j['incoming'][0]['nurses'][0])" "json: N2 could take A1, reaching (240 + 60) / 720"
+json "$work/r.json" "j['incoming'] == []" "json: no expected admission, no preview"
+
 echo "1..$n"
 [ "$failed" -eq 0 ]
