@@ -73,6 +73,7 @@ static bool copy_policy(keel_roster *to, const keel_roster *from)
     size_t na = from->policy.nacuity, ne = from->policy.nextras;
     to->policy.acuity_minutes = NULL;
     to->policy.extra_minutes = NULL;
+    to->policy.nextras = 0; /* until the array is there, for the roster's own freeing */
     for (size_t i = 0; i < KEEL_NISOLATION; i++)
         to->policy.isolation_needs[i] = NULL;
     if (na && !(to->policy.acuity_minutes = keel_calloc(na, sizeof *to->policy.acuity_minutes)))
@@ -80,7 +81,6 @@ static bool copy_policy(keel_roster *to, const keel_roster *from)
     if (na)
         memcpy(to->policy.acuity_minutes, from->policy.acuity_minutes,
                na * sizeof *to->policy.acuity_minutes);
-    to->policy.nextras = 0; /* until the array is there, for the roster's own freeing */
     if (ne && !(to->policy.extra_minutes = keel_calloc(ne, sizeof *to->policy.extra_minutes)))
         return false;
     to->policy.nextras = ne;

@@ -18,6 +18,7 @@
 
 #include <cmocka.h>
 
+#include "alloc.h"
 #include "keel/keel.h"
 #include "solve/measure.h"
 #include "testutil.h"
@@ -322,12 +323,74 @@ static void test_at_crosses_midnight(void **state)
     keel_rebalance_free(rb);
 }
 
+/* ---- Failure paths ------------------------------------------------------ */
+
+/* A small mid-shift roster at a time of the shift, with an expected
+ * admission: the frontier, the rest of the shift and the preview. */
+static keel_status run_small(const keel_roster *r)
+{
+    keel_error err;
+    keel_error_init(&err);
+    keel_rebalance *rb = NULL;
+    keel_preview *pv = NULL;
+    keel_rebalance_options o = {.max_handoffs = 1, .at = true, .at_minute = 9 * 60};
+    keel_status rc = keel_rebalance_run(r, &o, &rb, &err);
+    if (!rc && rb->options[0].found)
+        rc = keel_preview_compute(rb->roster, rb->workload, rb->options[0].solution->nurse_of,
+                                  &pv, &err);
+    keel_preview_free(pv);
+    keel_rebalance_free(rb);
+    keel_error_fini(&err);
+    return rc;
+}
+
+static void test_every_failed_allocation_ends_in_a_clean_error(void **state)
+{
+    (void)state;
+    static const char text[] =
+        "version: 1\n"
+        "shift: {start: \"07:00\", minutes: 720, break_minutes: 60}\n"
+        "policy:\n"
+        "  acuity_minutes: {1: 60, 2: 120}\n"
+        "  extra_minutes: {admission: 60}\n"
+        "  max_patients: 3\n"
+        "nurses:\n"
+        "  - {id: N1, skills: [chemo]}\n"
+        "  - {id: N2, end: \"08:00\", break_minutes: 0}\n"
+        "  - {id: N3, breaks: [{at: \"12:00\", minutes: 30}]}\n"
+        "patients:\n"
+        "  - {id: P1, acuity: 2, nurse: N1, extras: [admission]}\n"
+        "  - {id: P2, acuity: 1, nurse: N2, handoffs: [N3]}\n"
+        "  - {id: P3, acuity: 2, leaves_at: \"08:30\", nurse: N1}\n"
+        "  - {id: P4, acuity: 1}\n"
+        "expected_admissions:\n"
+        "  - {id: A1, acuity: 2, needs: [chemo], at: \"13:00\"}\n";
+    keel_error err;
+    keel_error_init(&err);
+    keel_roster *r = NULL;
+    assert_int_equal(keel_roster_parse("small.yaml", text, strlen(text), &r, &err), KEEL_OK);
+    assert_int_equal(run_small(r), KEEL_OK);
+    for (long n = 1;; n++) {
+        keel_alloc_fail_at(n);
+        keel_status rc = run_small(r);
+        long made = keel_alloc_fail_at(0);
+        if (made < n) {
+            assert_int_equal(rc, KEEL_OK); /* no failure was injected */
+            break;
+        }
+        assert_int_equal(rc, KEEL_ERR_NOMEM);
+    }
+    keel_roster_free(r);
+    keel_error_fini(&err);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_every_option_matches_exhaustive_enumeration),
         cmocka_unit_test(test_at_takes_care_and_capacity_from_then_on),
         cmocka_unit_test(test_at_crosses_midnight),
+        cmocka_unit_test(test_every_failed_allocation_ends_in_a_clean_error),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
