@@ -57,7 +57,7 @@ static void text_frontier(FILE *out, const keel_rebalance_report *rep)
     fputs("Hand-off frontier (option k: the best plan with at most k hand-offs; forced moves "
           "and new patients apart):\n",
           out);
-    fputs("  k  status      heaviest  lightest  spread  bound   gap     hand-offs\n", out);
+    fputs("  k  status      heaviest  lightest  spread  bound   gap %   hand-offs\n", out);
     for (size_t k = 0; k < rb->noptions; k++) {
         const keel_rebalance_option *o = &rb->options[k];
         const char *status = keel_solve_status_name(o->solution->status);
