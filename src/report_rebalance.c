@@ -158,9 +158,10 @@ static keel_status write_text(const keel_rebalance_report *rep, FILE *out)
     text_frontier(out, rep);
     fputc('\n', out);
     if (rb->recommended < 0) {
-        fputs("No option has a plan that keeps every rule: the unit needs another nurse or a "
-              "changed rule (keel check shows the workload).\n\n",
-              out);
+        fprintf(out,
+                "No option has a plan that keeps every rule with at most %zu hand-off%s "
+                "(standard error says why).\n\n",
+                rb->noptions - 1, rb->noptions == 2 ? "" : "s");
         fprintf(out, "%s\n", KEEL_CAUTION);
         return KEEL_OK;
     }

@@ -665,6 +665,34 @@ static int write_out(const options *opt, const char *input,
                      keel_status (*fn)(const options *opt, void *ctx, FILE *out, keel_error *err),
                      void *ctx);
 
+/* No option of the frontier has a plan: says why on stderr.  Without a
+ * budget (keel assign's solve of the same roster), either no assignment
+ * keeps the rules (its diagnosis), or one does with more hand-offs. */
+static keel_status why_no_plan(const options *opt, const keel_rebalance *rb, keel_error *err)
+{
+    keel_workload *w = NULL;
+    keel_solution *s = NULL;
+    keel_solve_options so = {.time_limit_ms = opt->time_limit_ms};
+    keel_status rc = keel_workload_compute(rb->roster, &w, err);
+    if (!rc)
+        rc = keel_solve(rb->roster, w, &so, &s, err);
+    if (!rc && s->status == KEEL_SOLVE_INFEASIBLE) {
+        fprintf(stderr, "keel rebalance: %s: no valid assignment exists, whatever the hand-offs\n",
+                opt->roster);
+        for (size_t i = 0; i < s->diagnoses.n; i++)
+            fprintf(stderr, "  [%s] %s\n", s->diagnoses.items[i].rule,
+                    s->diagnoses.items[i].message);
+    } else if (!rc) {
+        fprintf(stderr,
+                "keel rebalance: %s: no plan keeps every rule with at most %zu hand-off%s; "
+                "one with more exists (try a larger --max-handoffs)\n",
+                opt->roster, rb->noptions - 1, rb->noptions == 2 ? "" : "s");
+    }
+    keel_solution_free(s);
+    keel_workload_free(w);
+    return rc;
+}
+
 static int run_rebalance(const options *opt)
 {
     keel_error err;
@@ -708,6 +736,11 @@ static int run_rebalance(const options *opt)
                     : rb->recommended >= 0 ? (size_t)rb->recommended
                                            : 0;
     bool planless = !rb->options[chosen].found;
+    if (rb->recommended < 0 && (rc = why_no_plan(opt, rb, &err))) {
+        print_problems(&err);
+        code = exit_code(rc);
+        goto out;
+    }
     if (!planless &&
         (rc = keel_preview_compute(rb->roster, rb->workload, rb->options[chosen].solution->nurse_of,
                                    &preview, &err))) {
@@ -715,10 +748,9 @@ static int run_rebalance(const options *opt)
         code = exit_code(rc);
         goto out;
     }
-    if (planless)
-        fprintf(stderr, "keel rebalance: %s: %s\n", opt->roster,
-                rb->recommended < 0 ? "no plan keeps every rule, whatever the hand-offs"
-                                    : "the chosen option has no plan that keeps every rule");
+    if (planless && rb->recommended >= 0)
+        fprintf(stderr, "keel rebalance: %s: option %zu has no plan that keeps every rule\n",
+                opt->roster, chosen);
     rebalance_out out_ctx = {
         .rb = rb, .metrics = metrics, .chosen = chosen, .roster = rb->roster, .preview = preview};
     if (planless && (to_file(opt) || strcmp(opt->format, "yaml") == 0))

@@ -82,9 +82,33 @@ has "$work/out" "No hand-offs: every patient with a nurse keeps her." "option 0 
 # nurse is N2 and nobody may take more than one patient: no plan.
 sed -e 's/max_patients: 4/max_patients: 1/' "$roster" >"$work/short.yaml"
 expect 3 "no option has a plan" -- "$keel" rebalance "$work/short.yaml" -o "$work/short-out.yaml"
-has "$work/err" "no plan keeps every rule, whatever the hand-offs" "stderr says why"
+has "$work/err" "no valid assignment exists, whatever the hand-offs" "stderr says that no budget would do"
+has "$work/err" "[patient_limit] 9 patients, but the 3 nurses on shift who may take patients may take 3 in all" "stderr gives the diagnosis"
 last_line_is_caution "$work/err" "stderr ends with the caution"
 if [ -e "$work/short-out.yaml" ]; then not_ok "no file is written without a plan"; else ok "no file is written without a plan"; fi
+
+# A new chemo patient only N1 may take, and N1 full: one hand-off is needed.
+cat >"$work/one-needed.yaml" <<'EOF'
+version: 1
+shift: {minutes: 480}
+policy: {acuity_minutes: {1: 60}, max_patients: 2}
+nurses:
+  - {id: N1, skills: [chemo]}
+  - {id: N2}
+  - {id: N3}
+patients:
+  - {id: P1, acuity: 1, nurse: N1}
+  - {id: P2, acuity: 1, nurse: N1}
+  - {id: P3, acuity: 1, nurse: N2}
+  - {id: P4, acuity: 1, nurse: N2}
+  - {id: P5, acuity: 1, nurse: N3}
+  - {id: P6, acuity: 1, needs: [chemo]}
+EOF
+expect 3 "no plan within a budget of 0" -- "$keel" rebalance "$work/one-needed.yaml" --max-handoffs 0
+has "$work/err" "no plan keeps every rule with at most 0 hand-offs; one with more exists (try a larger --max-handoffs)" "stderr says that more hand-offs would do"
+has "$work/out" "No option has a plan that keeps every rule with at most 0 hand-offs (standard error says why)." "the report says so too"
+expect 0 "one hand-off makes room" -- "$keel" rebalance "$work/one-needed.yaml" --max-handoffs 1
+has "$work/out" "Recommended: 1 hand-off" "the one hand-off is recommended"
 
 # --at: the rest of the shift (the worked example of docs/model.md).
 at=$data/rebalance-at.yaml
