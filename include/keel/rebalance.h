@@ -23,8 +23,9 @@
  * proximity run at zero balance tolerance: the budget itself is the trade
  * between balance and hand-offs, and a tolerance would let continuity undo
  * the moves the budget bought.  Option k starts from option k - 1's plan
- * (within k hand-offs too); option 0 from GLPK's first plan that keeps
- * every present patient.  The time limit covers the whole frontier: each
+ * (within k hand-offs too); option 0 from the greedy start (every present
+ * patient kept, the others placed heaviest first) when it keeps every
+ * rule, else from GLPK's first plan within the budget.  The time limit covers the whole frontier: each
  * option still to solve gets an equal share of the time left (budget.c's
  * "frontier" row), then shares it among its stages as keel_solve() does.
  *

@@ -21,6 +21,8 @@
 #include "budget.h"
 #include "measure.h"
 #include "rebalance_at.h"
+#include "rule.h"
+#include "tally.h"
 #include "stage.h"
 #include "stage_search.h"
 #include "workload_internal.h"
@@ -101,8 +103,63 @@ static keel_status derive(const keel_roster *r, keel_rebalance *rb, long long *k
     return KEEL_OK;
 }
 
-/* The first plan within the budget: GLPK on the bare question with the
- * budget's row.  *answer says whether there is one. */
+/* The greedy start: every patient who keeps her nurse with her (each later
+ * part too while that nurse is on), then the others heaviest first, each to
+ * the eligible nurse the rules admit whose utilisation after is lowest.
+ * *placed is false when one found no nurse.  Statuses: KEEL_OK,
+ * KEEL_ERR_NOMEM. */
+static keel_status greedy_start(const keel_workload *w, int *nurse_of, bool *placed)
+{
+    size_t np = w->npatients, nn = w->nnurses;
+    size_t *order = keel_malloc((np ? np : 1) * sizeof *order);
+    keel_tally t;
+    keel_status rc = keel_tally_init(&t, w);
+    *placed = false;
+    if (!rc && (!order || keel_workload_order(w, order)))
+        rc = KEEL_ERR_NOMEM;
+    if (rc)
+        goto out;
+    for (size_t q = 0; q < np; q++) {
+        int v = w->previous[q];
+        bool first = w->first_part[w->patient[q]] == (int)q;
+        nurse_of[q] = first ? (v >= 0 && keel_workload_eligible(w, q, (size_t)v) ? v : -1)
+                      : keel_workload_keeps(w, q, nurse_of[q - 1]) ? nurse_of[q - 1]
+                                                                  : -1;
+    }
+    keel_tally_fill(&t, nurse_of);
+    *placed = true;
+    for (size_t i = 0; i < np && *placed; i++) {
+        size_t q = order[i];
+        if (nurse_of[q] >= 0)
+            continue;
+        int best = -1;
+        keel_ratio lowest = {0, 1};
+        for (size_t n = 0; n < nn; n++) {
+            if (!keel_workload_counted(w, n) || !keel_workload_eligible(w, q, n) ||
+                !keelRuleAdmits(&t, q, n))
+                continue;
+            keel_ratio u = {w->duty_minutes[n] + t.care[n] + w->care_minutes[q],
+                            w->capacity_minutes[n]};
+            if (best < 0 || keel_ratio_cmp(u, lowest) < 0) {
+                best = (int)n;
+                lowest = u;
+            }
+        }
+        *placed = best >= 0;
+        if (best >= 0) {
+            nurse_of[q] = best;
+            keel_tally_add(&t, q, (size_t)best);
+        }
+    }
+out:
+    keel_tally_free(&t);
+    free(order);
+    return rc;
+}
+
+/* The first plan within the budget: the greedy start when it places
+ * everyone within every rule and the budget, else GLPK on the bare question
+ * with the budget's row.  *answer says whether there is one. */
 static keel_status first_plan(const keel_workload *w, long long min_kept, long long deadline_ms,
                               int *nurse_of, keel_answer *answer, keel_error *err)
 {
@@ -119,6 +176,16 @@ static keel_status first_plan(const keel_workload *w, long long min_kept, long l
         total += w->care_minutes[p];
     for (size_t n = 0; n < nn; n++)
         hi[n] = total;
+    bool placed = false, valid = false;
+    if ((rc = greedy_start(w, nurse_of, &placed)) ||
+        (placed && (rc = keel_measure_validate(w, nurse_of, &valid)))) {
+        rc = keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
+        goto out;
+    }
+    if (valid && keel_measure_kept(w, nurse_of) >= min_kept) {
+        *answer = KEEL_ANSWER_YES;
+        goto out;
+    }
     keel_question q = {.w = w, .lo = lo, .hi = hi, .min_kept = min_kept};
     rc = keel_answer_ilp(&q, deadline_ms, nurse_of, answer, err);
 out:
