@@ -34,6 +34,8 @@
 #include "keel/metrics.h"
 #include "keel/nas.h"
 #include "keel/plan.h"
+#include "keel/preview.h"
+#include "keel/rebalance.h"
 #include "keel/report.h"
 #include "keel/roster.h"
 #include "keel/solve.h"

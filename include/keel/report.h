@@ -23,6 +23,8 @@
 #include "keel/finding.h"
 #include "keel/explain.h"
 #include "keel/metrics.h"
+#include "keel/preview.h"
+#include "keel/rebalance.h"
 #include "keel/staffing.h"
 #include "keel/roster.h"
 #include "keel/solve.h"
@@ -68,6 +70,24 @@ typedef struct keel_report {
  * KEEL_ERR_IO (a write failed). */
 KEEL_API keel_status keel_report_write(const char *format, const keel_report *report, FILE *out,
                               keel_error *err);
+
+/* A rebalance to show.  All borrowed. */
+typedef struct keel_rebalance_report {
+    const keel_roster *roster;
+    const keel_rebalance *rebalance;
+    const keel_metrics *const *metrics; /* [noptions]: each option's plan's, NULL without one */
+    size_t chosen; /* the option the yaml writes and the text details (the recommended one
+                      unless the caller picks another) */
+    const keel_preview *preview; /* the expected admissions under the chosen option, or NULL */
+} keel_rebalance_report;
+
+/* Writes a rebalance in format "text" (the frontier, the chosen option's
+ * moves, the caution), "json" (every option) or "yaml" (the chosen option's
+ * plan as the updated roster).  Statuses: KEEL_OK, KEEL_ERR_USAGE (unknown
+ * format; yaml of an option without a plan), KEEL_ERR_IO. */
+KEEL_API keel_status keel_report_rebalance_write(const char *format,
+                                                 const keel_rebalance_report *report, FILE *out,
+                                                 keel_error *err);
 
 /* Number of formats and their names, for help texts. */
 KEEL_API size_t keel_report_nformats(void);

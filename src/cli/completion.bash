@@ -17,6 +17,10 @@ _keel_options() {
         echo "--names --deidentify -h --help"
         ;;
     check) echo "-f --format -t --time-limit --names -o --output -h --help" ;;
+    rebalance)
+        echo "-f --format --at --max-handoffs --handoffs --min-gain -t --time-limit -o --output"
+        echo "-h --help"
+        ;;
     new) echo "--type --table --unit --shift -o --output -h --help" ;;
     import) echo "--roster --map --type --table --unit --shift -o --output -h --help" ;;
     audit)
@@ -32,6 +36,7 @@ _keel_takes_value() {
     -f | --format | -m | --method | -t | --time-limit | -o | --output) return 0 ;;
     --type | --table | --unit | --shift | --roster | --map) return 0 ;;
     -j | --jobs | --min-shifts | --shard) return 0 ;;
+    --at | --max-handoffs | --handoffs | --min-gain) return 0 ;;
     esac
     return 1
 }
@@ -40,6 +45,7 @@ _keel_takes_value() {
 _keel_formats() {
     case $1 in
     assign) echo "text yaml json html csv csv-nurses" ;;
+    rebalance) echo "text yaml json" ;;
     check) echo "text json html csv csv-nurses" ;;
     audit) echo "text json csv csv-nurse-shifts csv-nurses csv-nurse-groups csv-violations" ;;
     esac
@@ -91,7 +97,7 @@ _keel() {
         if [[ $cur == -* ]]; then
             _keel_add_words "-h --help --version" "$cur"
         else
-            _keel_add_words "assign check new import audit help" "$cur"
+            _keel_add_words "assign check rebalance new import audit help" "$cur"
         fi
         return 0
     fi
@@ -99,10 +105,10 @@ _keel() {
     local cmd=${COMP_WORDS[1]}
     case $cmd in
     help)
-        ((cword == 2)) && _keel_add_words "assign check new import audit help" "$cur"
+        ((cword == 2)) && _keel_add_words "assign check rebalance new import audit help" "$cur"
         return 0
         ;;
-    assign | check | new | import | audit) ;;
+    assign | check | rebalance | new | import | audit) ;;
     *) return 0 ;;
     esac
 
@@ -115,8 +121,8 @@ _keel() {
         [[ $cmd == assign ]] && _keel_add_words "ilp greedy" "$cur"
         return 0
         ;;
-    -t | --time-limit | --unit | --map | -j | --jobs | --min-shifts | --shard)
-        return 0 # a number of seconds, a name, field=Header pairs, a count, I/N
+    -t | --time-limit | --unit | --map | -j | --jobs | --min-shifts | --shard | --at | --max-handoffs | --handoffs | --min-gain)
+        return 0 # a number of seconds, a name, field=Header pairs, a count, I/N, a number
         ;;
     --type)
         _keel_add_words "icu step-down telemetry med-surg pediatrics emergency oncology \

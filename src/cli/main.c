@@ -49,6 +49,10 @@ typedef struct options {
     long jobs;          /* audit: --jobs; 0: the number of cores */
     long min_shifts;    /* audit: --min-shifts; 0: the default */
     size_t shard, nshards; /* audit: --shard I/N; 0: no shard */
+    int max_handoffs;  /* rebalance: --max-handoffs; -1: the default */
+    int handoffs;      /* rebalance: --handoffs, the option to write; -1: the recommended */
+    double min_gain;   /* rebalance: --min-gain; -1: the default */
+    int at_minute;     /* rebalance: --at HH:MM, minutes after midnight; -1: none */
 } options;
 
 typedef struct command {
@@ -63,6 +67,7 @@ static int run_check(const options *opt);
 static int run_new(const options *opt);
 static int run_import(const options *opt);
 static int run_audit(const options *opt);
+static int run_rebalance(const options *opt);
 
 static const command commands[] = {
     {"assign", "balance the roster's patients across its nurses",
@@ -109,6 +114,35 @@ static const command commands[] = {
      "      --names            put patients' names on the html sheet (kept private)\n"
      "  -o, --output FILE      write to FILE (replaced atomically; never the roster)\n",
      run_check},
+    {"rebalance", "fold in what changed mid-shift with the fewest hand-offs",
+     "usage: keel rebalance ROSTER [--format text|yaml|json] [--at HH:MM]\n"
+     "                      [--max-handoffs N] [--handoffs K] [--min-gain POINTS]\n"
+     "                      [--time-limit SECONDS] [-o FILE]\n"
+     "\n"
+     "The roster is the current state: a patient with a nurse is with that nurse now,\n"
+     "a patient without one is new.  For k = 0, 1, ... up to --max-handoffs, finds the\n"
+     "best plan that moves at most k patients to another nurse (a swap counts two;\n"
+     "placing a new patient is not a hand-off; a patient whose nurse is gone or may no\n"
+     "longer keep the patient is a forced move, listed apart and not counted; locked\n"
+     "patients never move), and recommends the fewest hand-offs whose heaviest\n"
+     "utilisation is within --min-gain of the best option's.  Without --at, the\n"
+     "roster's figures are taken as the work that remains.\n"
+     "\n"
+     "  -f, --format FMT       text (default: the frontier, the moves, the recommendation),\n"
+     "                         json (every option) or yaml (the chosen option as the\n"
+     "                         updated roster, which keel rebalance and keel check read)\n"
+     "      --at HH:MM         the time of the rebalance: what happened before is fixed,\n"
+     "                         care and capacity count from then on (the shift needs a\n"
+     "                         start); the yaml output is the rest of the shift\n"
+     "      --max-handoffs N   the largest k of the frontier (default 3)\n"
+     "      --handoffs K       the option to write and detail (default: the recommended)\n"
+     "      --min-gain POINTS  the least drop of the heaviest utilisation worth a hand-off\n"
+     "                         (default 0.03)\n"
+     "  -t, --time-limit SECS  limit for the whole frontier (default 10), shared equally by\n"
+     "                         the options still to solve\n"
+     "  -o, --output FILE      write to FILE (replaced atomically; never the roster).\n"
+     "                         When the option has no plan, nothing is written to FILE\n",
+     run_rebalance},
     {"new", "write a commented roster for a unit to fill in",
      "usage: keel new [--type UNIT-TYPE] [--table NAME] [--unit NAME] [--shift day|evening|night]\n"
      "                [-o FILE]\n"
@@ -178,8 +212,8 @@ static const char help_usage[] =
     "usage: keel help [COMMAND]\n"
     "\n"
     "Without a command, lists keel's commands, its exit codes and the caution.  With\n"
-    "one (assign, check, new, import, audit or help), shows that command's usage and every\n"
-    "option; 'keel COMMAND --help' shows the same.\n";
+    "one (assign, check, rebalance, new, import, audit or help), shows that command's\n"
+    "usage and every option; 'keel COMMAND --help' shows the same.\n";
 
 static void print_usage(FILE *out)
 {
@@ -187,8 +221,8 @@ static void print_usage(FILE *out)
                  "keel balances patient-to-nurse assignments on a hospital unit.\n\n"
                  "Commands:\n");
     for (size_t i = 0; i < ncommands; i++)
-        fprintf(out, "  %-8s %s\n", commands[i].name, commands[i].summary);
-    fprintf(out, "  %-8s %s\n", "help", "show help for a command");
+        fprintf(out, "  %-9s %s\n", commands[i].name, commands[i].summary);
+    fprintf(out, "  %-9s %s\n", "help", "show help for a command");
     fprintf(out,
             "\nOptions: --help, --version\n"
             "Exit codes: 0 success, 1 usage error, 2 bad input, 3 no valid assignment "
@@ -355,10 +389,55 @@ static int parse_audit_option(const command *cmd, int argc, char **argv, int *i,
     return 0;
 }
 
+/* --max-handoffs and --handoffs: a whole number 0..MOST_HANDOFFS; --min-gain:
+ * utilisation points 0..1; --at: a time of day HH:MM. */
+#define MOST_HANDOFFS 20
+
+static int parse_rebalance_number(const command *cmd, const char *arg, const char *text,
+                                  options *opt)
+{
+    char *end;
+    errno = 0;
+    if (strncmp(arg, "--at", 4) == 0) {
+        int h = -1, mi = -1;
+        char tail;
+        if (strlen(text) != 5 || sscanf(text, "%2d:%2d%c", &h, &mi, &tail) != 2 || h < 0 ||
+            h > 23 || mi < 0 || mi > 59)
+            return usage_error(cmd, "--at: '%s' is not a time of day HH:MM", text);
+        opt->at_minute = h * 60 + mi;
+        return 0;
+    }
+    if (strncmp(arg, "--min-gain", 10) == 0) {
+        double gain = strtod(text, &end);
+        if (errno || end == text || *end || !(gain >= 0) || gain > 1)
+            return usage_error(cmd, "--min-gain: '%s' is not a number of utilisation points "
+                                    "between 0 and 1", text);
+        opt->min_gain = gain;
+        return 0;
+    }
+    long k = strtol(text, &end, 10);
+    if (errno || end == text || *end || k < 0 || k > MOST_HANDOFFS)
+        return usage_error(cmd,
+                           strncmp(arg, "--max-handoffs", 14) == 0
+                               ? "--max-handoffs: '%s' is not a whole number from 0 to 20"
+                               : "--handoffs: '%s' is not a whole number from 0 to 20",
+                           text);
+    if (strncmp(arg, "--max-handoffs", 14) == 0)
+        opt->max_handoffs = (int)k;
+    else
+        opt->handoffs = (int)k;
+    return 0;
+}
+
 static int parse_args(const command *cmd, int argc, char **argv, options *opt, bool *help)
 {
     const char **files = opt->files;
-    *opt = (options){.format = "text", .files = files};
+    *opt = (options){.format = "text",
+                     .files = files,
+                     .max_handoffs = -1,
+                     .handoffs = -1,
+                     .min_gain = -1.0,
+                     .at_minute = -1};
     for (int i = 0; i < argc; i++) {
         const char *arg = argv[i], *value;
         size_t len;
@@ -366,7 +445,8 @@ static int parse_args(const command *cmd, int argc, char **argv, options *opt, b
             *help = true;
             return 0;
         }
-        bool solving = cmd->run == run_assign || cmd->run == run_check || cmd->run == run_audit;
+        bool solving = cmd->run == run_assign || cmd->run == run_check || cmd->run == run_audit ||
+                       cmd->run == run_rebalance;
         bool writing = cmd->run == run_new || cmd->run == run_import;
         if (matches(arg, "-o", "--output", &len) ||
             (solving &&
@@ -403,6 +483,18 @@ static int parse_args(const command *cmd, int argc, char **argv, options *opt, b
             *slot = option_value(argc, argv, &i, arg, len);
             if (!*slot)
                 return usage_error(cmd, "%s needs a value", arg);
+            continue;
+        }
+        if (cmd->run == run_rebalance &&
+            (matches(arg, "--max-handoffs", "--max-handoffs", &len) ||
+             matches(arg, "--handoffs", "--handoffs", &len) ||
+             matches(arg, "--min-gain", "--min-gain", &len) ||
+             matches(arg, "--at", "--at", &len))) {
+            value = option_value(argc, argv, &i, arg, len);
+            if (!value)
+                return usage_error(cmd, "%s needs a value", arg);
+            if (parse_rebalance_number(cmd, arg, value, opt))
+                return EXIT_USAGE;
             continue;
         }
         if (cmd->run == run_assign && (strcmp(arg, "-e") == 0 || strcmp(arg, "--explain") == 0)) {
@@ -717,6 +809,137 @@ static int run_check(const options *opt)
     if (code)
         return code;
     return infeasible ? EXIT_INFEASIBLE : 0;
+}
+
+/* The rebalance's report: each option's figures, the option to show. */
+typedef struct rebalance_out {
+    const keel_rebalance *rb;
+    keel_metrics **metrics; /* [noptions] */
+    size_t chosen;
+    const keel_roster *roster;
+    const keel_preview *preview;
+} rebalance_out;
+
+static keel_status write_rebalance(const options *opt, void *ctx, FILE *out, keel_error *err)
+{
+    const rebalance_out *ro = ctx;
+    keel_rebalance_report rep = {.roster = ro->roster,
+                                 .rebalance = ro->rb,
+                                 .metrics = (const keel_metrics *const *)ro->metrics,
+                                 .chosen = ro->chosen,
+                                 .preview = ro->preview};
+    return keel_report_rebalance_write(opt->format, &rep, out, err);
+}
+
+static int write_out(const options *opt, const char *input,
+                     keel_status (*fn)(const options *opt, void *ctx, FILE *out, keel_error *err),
+                     void *ctx);
+
+/* No option of the frontier has a plan: says why on stderr.  Without a
+ * budget (keel assign's solve of the same roster), either no assignment
+ * keeps the rules (its diagnosis), or one does with more hand-offs. */
+static keel_status why_no_plan(const options *opt, const keel_rebalance *rb, keel_error *err)
+{
+    keel_workload *w = NULL;
+    keel_solution *s = NULL;
+    keel_solve_options so = {.time_limit_ms = opt->time_limit_ms};
+    keel_status rc = keel_workload_compute(rb->roster, &w, err);
+    if (!rc)
+        rc = keel_solve(rb->roster, w, &so, &s, err);
+    if (!rc && s->status == KEEL_SOLVE_INFEASIBLE) {
+        fprintf(stderr, "keel rebalance: %s: no valid assignment exists, whatever the hand-offs\n",
+                opt->roster);
+        for (size_t i = 0; i < s->diagnoses.n; i++)
+            fprintf(stderr, "  [%s] %s\n", s->diagnoses.items[i].rule,
+                    s->diagnoses.items[i].message);
+    } else if (!rc) {
+        fprintf(stderr,
+                "keel rebalance: %s: no plan keeps every rule with at most %zu hand-off%s; "
+                "one with more exists (try a larger --max-handoffs)\n",
+                opt->roster, rb->noptions - 1, rb->noptions == 2 ? "" : "s");
+    }
+    keel_solution_free(s);
+    keel_workload_free(w);
+    return rc;
+}
+
+static int run_rebalance(const options *opt)
+{
+    keel_error err;
+    keel_error_init(&err);
+    keel_roster *roster = NULL;
+    keel_rebalance *rb = NULL;
+    keel_metrics **metrics = NULL;
+    keel_preview *preview = NULL;
+    int most = opt->max_handoffs >= 0 ? opt->max_handoffs : KEEL_REBALANCE_MAX_HANDOFFS;
+    if (opt->handoffs > most)
+        most = opt->handoffs; /* the frontier reaches the option asked for */
+    keel_rebalance_options ro = {
+        .time_limit_ms = opt->time_limit_ms,
+        .max_handoffs = most,
+        .min_gain = opt->min_gain,
+        .at = opt->at_minute >= 0,
+        .at_minute = opt->at_minute};
+    if (cli_output_clobbers(opt->output, opt->roster))
+        return EXIT_USAGE;
+    keel_status rc = keel_roster_load(opt->roster, &roster, &err);
+    if (!rc && !has_patients("rebalance", opt, roster)) {
+        keel_roster_free(roster);
+        keel_error_fini(&err);
+        return EXIT_INPUT;
+    }
+    if (!rc)
+        rc = keel_rebalance_run(roster, &ro, &rb, &err);
+    if (!rc && !(metrics = calloc(rb->noptions, sizeof *metrics)))
+        rc = keel_error_add(&err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    for (size_t k = 0; !rc && k < rb->noptions; k++)
+        if (rb->options[k].found)
+            rc = keel_metrics_compute(rb->workload, rb->options[k].solution->nurse_of,
+                                      &metrics[k], &err);
+    int code = 0;
+    if (rc) {
+        print_problems(&err);
+        code = exit_code(rc);
+        goto out;
+    }
+    size_t chosen = opt->handoffs >= 0 ? (size_t)opt->handoffs
+                    : rb->recommended >= 0 ? (size_t)rb->recommended
+                                           : 0;
+    bool planless = !rb->options[chosen].found;
+    if (rb->recommended < 0 && (rc = why_no_plan(opt, rb, &err))) {
+        print_problems(&err);
+        code = exit_code(rc);
+        goto out;
+    }
+    if (!planless &&
+        (rc = keel_preview_compute(rb->roster, rb->workload, rb->options[chosen].solution->nurse_of,
+                                   &preview, &err))) {
+        print_problems(&err);
+        code = exit_code(rc);
+        goto out;
+    }
+    if (planless && rb->recommended >= 0)
+        fprintf(stderr, "keel rebalance: %s: option %zu has no plan that keeps every rule\n",
+                opt->roster, chosen);
+    rebalance_out out_ctx = {
+        .rb = rb, .metrics = metrics, .chosen = chosen, .roster = rb->roster, .preview = preview};
+    if (planless && (to_file(opt) || strcmp(opt->format, "yaml") == 0))
+        fprintf(stderr, "keel rebalance: no plan written\n");
+    else
+        code = write_out(opt, opt->roster, write_rebalance, &out_ctx);
+    if (planless)
+        fprintf(stderr, "%s\n", KEEL_CAUTION);
+    if (!code && planless)
+        code = EXIT_INFEASIBLE;
+out:
+    for (size_t k = 0; metrics && k < rb->noptions; k++)
+        keel_metrics_free(metrics[k]);
+    free(metrics);
+    keel_preview_free(preview);
+    keel_rebalance_free(rb);
+    keel_roster_free(roster);
+    keel_error_fini(&err);
+    return code;
 }
 
 /* Writes through fn to -o or stdout, atomically; never over input. */

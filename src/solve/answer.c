@@ -148,6 +148,9 @@ keel_status keel_answer_ask(keel_chain chain, const keel_question *q, long long 
         keel_status rc = links[i].ask(&asked, until, nurse_of, answer, err);
         if (rc)
             return rc;
+        /* A yes that spends more hand-offs than the budget answers nothing. */
+        if (*answer == KEEL_ANSWER_YES && keel_measure_kept(q->w, nurse_of) < q->min_kept)
+            *answer = KEEL_ANSWER_UNKNOWN;
     }
     return KEEL_OK;
 }

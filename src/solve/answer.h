@@ -19,6 +19,10 @@
  * and keel_answer_ask() tries them in one chain, each with its share of the
  * question's time from budget.c's table, until one answers.  A YES comes
  * with an assignment that keeps every rule and the windows; a NO is proven.
+ * A question with a hand-off budget (min_kept) is the same question with
+ * one more row: only GLPK models that row; a NO of any answerer holds for
+ * it (the question without the row has no answer), and the chain takes a
+ * YES only when its assignment keeps the budget.
  */
 #ifndef KEEL_SOLVE_ANSWER_H
 #define KEEL_SOLVE_ANSWER_H
@@ -43,6 +47,8 @@ typedef struct keel_question {
     const int *start;    /* a valid assignment to start from (the incumbent), or NULL */
     long nodes;          /* the dedicated search's node budget (set by the chain) */
     int *calls;          /* when not NULL, counts the integer programmes GLPK solved */
+    long long min_kept;  /* a rebalance's hand-off budget: at least this many patients kept
+                            with their previous (there: current) nurse; 0: no budget */
 } keel_question;
 
 /* An answerer: answers q by deadline_ms (on keel_budget_now()).  On YES,

@@ -16,7 +16,10 @@
  *   columns for break_cover), once for her shift
  *
  * With the clock a part of a patient cut into several is a class of its
- * own.  Continuity maximises the patients with their previous nurse;
+ * own.  A hand-off budget (the question's min_kept, a rebalance's) is one
+ * row: at least min_kept patients with their previous nurse; classes then
+ * also share the previous nurse, and nurses are not interchangeable.
+ * Continuity maximises the patients with their previous nurse;
  * proximity minimises (census + 1) sum z + sum g over zone and room
  * binaries, which puts zones before rooms (without the clock the zones
  * rule's own binaries carry the zone price).  Counted nurses that are
@@ -73,7 +76,7 @@ static bool same_patients(const model *m, size_t a, size_t b)
     keel_goal goal = m->goal;
     return w->care_minutes[a] == w->care_minutes[b] && keelRuleOrder(w, a, b) == 0 &&
            (goal != KEEL_GOAL_NEAR || (w->zone[a] == w->zone[b] && w->room[a] == w->room[b])) &&
-           (goal == KEEL_GOAL_FIT || w->previous[a] == w->previous[b]) &&
+           ((goal == KEEL_GOAL_FIT && m->min_kept <= 0) || w->previous[a] == w->previous[b]) &&
            (!w->clocked ||
             (alone(w, a) && alone(w, b) && w->first_moment[a] == w->first_moment[b] &&
              w->last_moment[a] == w->last_moment[b])) &&
@@ -109,8 +112,9 @@ static void group(model *m)
     }
     for (size_t n = 0; n < w->nnurses; n++) {
         m->next_twin[n] = -1;
+        /* A hand-off budget tells nurses apart by whom they keep. */
         if (!keel_workload_counted(w, n) ||
-            (m->goal != KEEL_GOAL_FIT && m->goal != KEEL_GOAL_SQUARES))
+            (m->goal != KEEL_GOAL_FIT && m->goal != KEEL_GOAL_SQUARES) || m->min_kept > 0)
             continue;
         for (size_t k = n + 1; k < w->nnurses; k++) {
             if (keel_workload_counted(w, k) && same_nurses(m, n, k)) {
@@ -294,7 +298,7 @@ static void build(model *m)
             keel_lp_put(lp, order, m->col[c * nn + t], -care);
         }
     }
-    if (m->goal != KEEL_GOAL_FIT && m->min_kept > 0) {
+    if (m->min_kept > 0) {
         int row = keel_lp_row(lp, KEEL_LP_LO, (double)m->min_kept, 0.0);
         for (size_t c = 0; c < m->nclasses; c++) {
             int prev = w->previous[m->class_first[c]];
@@ -370,7 +374,7 @@ static bool fits(const model *m, const int *nurse_of)
         if (keel_workload_counted(w, n) && (care < m->q->lo[n] || care > m->q->hi[n]))
             return false;
     }
-    return m->goal == KEEL_GOAL_FIT || keel_measure_kept(w, nurse_of) >= m->min_kept;
+    return m->min_kept <= 0 || keel_measure_kept(w, nurse_of) >= m->min_kept;
 }
 
 static keel_status solve_model(model *m, long time_limit_ms, int *nurse_of, keel_goal_result *res,
@@ -427,7 +431,8 @@ keel_status keel_answer_ilp_goal(const keel_question *q, keel_goal goal, long lo
     *res = (keel_goal_result){.answer = KEEL_ANSWER_UNKNOWN};
     if (time_limit_ms <= 0)
         return KEEL_OK;
-    model m = {.w = w, .q = q, .goal = goal, .min_kept = min_kept};
+    model m = {.w = w, .q = q, .goal = goal,
+               .min_kept = min_kept > q->min_kept ? min_kept : q->min_kept};
     m.lp = keel_lp_new(goal == KEEL_GOAL_KEEP);
     m.class_of = keel_calloc(np ? np : 1, sizeof *m.class_of);
     m.class_size = keel_calloc(np ? np : 1, sizeof *m.class_size);

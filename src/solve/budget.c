@@ -56,6 +56,10 @@ const keel_share keel_budget_shares[KEEL_NSHARES] = {
     [KEEL_SHARE_TRADE] = {"trade", 0, 0, 0, 0,
                           "a zone trade solves its two zones exactly: the first a quarter of the "
                           "time left (k = 4), the second a third (k = 3)"},
+    [KEEL_SHARE_FRONTIER] = {"frontier", 0, 0, 0, 0,
+                             "a rebalance: each option of the hand-off frontier still to solve "
+                             "gets an equal share of the time left (what a quickly proven option "
+                             "leaves goes to the later ones)"},
 };
 
 long long keel_budget_now(void)

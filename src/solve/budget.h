@@ -35,6 +35,7 @@ typedef enum keel_share_id {
     KEEL_SHARE_ZONE_LIFT,   /* by zone: one zone with k nurses, its lift */
     KEEL_SHARE_ZONE_EACH,   /* zone polish: each zone in turn, equally */
     KEEL_SHARE_TRADE,       /* zone trades: the first zone of a trade (the second: EACH) */
+    KEEL_SHARE_FRONTIER,    /* a rebalance: each option of the hand-off frontier left, equally */
     KEEL_NSHARES
 } keel_share_id;
 

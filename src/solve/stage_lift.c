@@ -39,7 +39,7 @@ static keel_status exact_lift(keel_search *S, long long deadline_ms, int *best, 
     static const keel_direction up = {lift_windows, lift_position, false};
     const keel_workload *w = S->w;
     long long started = keel_budget_now();
-    if (keel_heur_greedy_lift(w, S->peak_hi, best))
+    if (S->min_kept == 0 && keel_heur_greedy_lift(w, S->peak_hi, best))
         return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
     keel_ratio incumbent = keel_measure_lift(w, best), ceiling = keel_bound_simple_lift(w);
     if (keel_stage_search_candidates(S, S->peak_hi, incumbent, ceiling))

@@ -191,12 +191,12 @@ keel_status keel_stage_search_descend(keel_search *S, const keel_direction *d, s
         keel_answer answer;
         d->set_windows(S, q);
         keel_question question = {.w = w, .lo = S->lo, .hi = S->hi, .start = S->incumbent,
-                                  .calls = &S->calls};
+                                  .calls = &S->calls, .min_kept = S->min_kept};
         rc = keel_answer_ask(KEEL_CHAIN_WINDOW, &question, limit, S->trial, &answer, err);
         if (rc)
             break;
         if (answer == KEEL_ANSWER_YES) {
-            if (d->improve) {
+            if (d->improve && S->min_kept == 0) {
                 rc = keel_heur_greedy_improve(w, S->trial);
                 if (rc) {
                     keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");

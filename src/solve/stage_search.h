@@ -32,6 +32,8 @@ struct keel_search {
     keel_ratio *cand;     /* candidate utilisations, sorted, unique */
     size_t ncand;
     int calls; /* questions GLPK answered in this stage */
+    long long min_kept; /* a rebalance's hand-off budget, asked with every question (answer.h);
+                           0: none.  With a budget the greedy steps that ignore it are off. */
 };
 
 /* One direction of search.  Position i (0 = most wanted) maps to a

@@ -1,0 +1,22 @@
+/* SPDX-License-Identifier: GPL-3.0-or-later */
+/*
+ * rebalance_at.h - the rest of a shift from the time of a rebalance
+ * (internal to src/solve/rebalance*.c; see rebalance_at.c).
+ */
+#ifndef KEEL_SOLVE_REBALANCE_AT_H
+#define KEEL_SOLVE_REBALANCE_AT_H
+
+#include <stddef.h>
+
+#include "keel/error.h"
+#include "keel/roster.h"
+#include "keel/workload.h"
+
+/* The roster of the rest of r's shift from t minutes after its start
+ * (0 < t < shift.minutes), w being r's workload: *out is new (free it with
+ * keel_roster_free()); *discharged counts the patients who left before t
+ * and are not in it.  Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
+keel_status keel_rebalance_at(const keel_roster *r, const keel_workload *w, int t,
+                              keel_roster **out, size_t *discharged, keel_error *err);
+
+#endif
