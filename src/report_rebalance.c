@@ -57,7 +57,8 @@ static void text_frontier(FILE *out, const keel_rebalance_report *rep)
     fputs("Hand-off frontier (option k: the best plan with at most k hand-offs; forced moves "
           "and new patients apart):\n",
           out);
-    fputs("  k  status      heaviest  lightest  spread  bound   gap %   hand-offs\n", out);
+    fputs("  k  status       heaviest   lightest     spread  no plan below      gap  hand-offs\n",
+          out);
     for (size_t k = 0; k < rb->noptions; k++) {
         const keel_rebalance_option *o = &rb->options[k];
         const char *status = keel_solve_status_name(o->solution->status);
@@ -69,9 +70,10 @@ static void text_frontier(FILE *out, const keel_rebalance_report *rep)
             continue;
         }
         const keel_metrics *m = rep->metrics[k];
-        fprintf(out, "  %-2d %-11s %-9.2f %-9.2f %-7.2f %-7.2f %-7.1f %zu%s\n", o->handoffs,
-                status, m->max_utilisation, m->min_utilisation, m->spread, o->bound,
-                100.0 * o->gap, o->nmoves, (int)k == rb->recommended ? "   recommended" : "");
+        fprintf(out, "  %-2d %-11s %7.1f %%  %7.1f %%  %5.1f pts  %11.1f %%  %5.1f %%  %9zu%s\n",
+                o->handoffs, status, 100.0 * m->max_utilisation, 100.0 * m->min_utilisation,
+                100.0 * m->spread, 100.0 * o->bound, 100.0 * o->gap, o->nmoves,
+                (int)k == rb->recommended ? "   recommended" : "");
     }
 }
 
@@ -92,9 +94,10 @@ static void text_nurses(FILE *out, const keel_rebalance_report *rep)
             fprintf(out, "  %-8s takes no patients\n", r->nurses[n].id);
             continue;
         }
-        fprintf(out, "  %-8s %2d patient%s  load %4d of %4d min  utilisation %.2f ", r->nurses[n].id,
+        fprintf(out, "  %-8s %2d patient%s  load %4d of %4d min  %5.1f %%%s ", r->nurses[n].id,
                 nm->npatients, nm->npatients == 1 ? " " : "s", nm->load_minutes,
-                nm->capacity_minutes, nm->utilisation);
+                nm->capacity_minutes, 100.0 * nm->utilisation,
+                nm->load_minutes > nm->capacity_minutes ? "  OVER HER TIME" : "");
         /* With the clock, the patients she takes over later too, marked. */
         const char *sep = " ";
         for (size_t p = 0; p < r->npatients; p++) {
@@ -125,8 +128,8 @@ static void text_preview(FILE *out, const keel_rebalance_report *rep)
         for (size_t k = 0; k < a->nnurses; k++) {
             const keel_preview_nurse *pn = &a->nurses[k];
             if (pn->allowed)
-                fprintf(out, "%s%s %.2f%s", sep, r->nurses[pn->nurse].id, pn->utilisation,
-                        pn->overload ? " OVERLOAD" : "");
+                fprintf(out, "%s%s %.1f %%%s", sep, r->nurses[pn->nurse].id,
+                        100.0 * pn->utilisation, pn->overload ? " OVER HER TIME" : "");
             else
                 fprintf(out, "%s%s ruled out [%s]", sep, r->nurses[pn->nurse].id, pn->rule);
             sep = "; ";
@@ -167,10 +170,10 @@ static keel_status write_text(const keel_rebalance_report *rep, FILE *out)
     }
     const keel_rebalance_option *best = &rb->options[rb->recommended];
     fprintf(out,
-            "Recommended: %d hand-off%s (the fewest whose heaviest utilisation, %.2f, is within "
-            "%.2f of the best option's)\n",
-            best->handoffs, best->handoffs == 1 ? "" : "s", rep->metrics[rb->recommended]->max_utilisation,
-            rb->min_gain);
+            "Recommended: %d hand-off%s (the fewest whose heaviest utilisation, %.1f %%, is "
+            "within %.1f points of the best option's)\n",
+            best->handoffs, best->handoffs == 1 ? "" : "s",
+            100.0 * rep->metrics[rb->recommended]->max_utilisation, 100.0 * rb->min_gain);
     const keel_rebalance_option *o = &rb->options[rep->chosen];
     fprintf(out, "\nOption %d%s:\n", o->handoffs,
             (int)rep->chosen == rb->recommended ? " (recommended)" : " (chosen with --handoffs)");

@@ -49,7 +49,7 @@ expect 1 "rebalance over its own roster" -- "$keel" rebalance "$roster" -o "$ros
 
 expect 0 "rebalance a mid-shift roster" -- "$keel" rebalance "$roster"
 has "$work/out" "Hand-off frontier" "the frontier is shown"
-has "$work/out" "  1  optimal     0.58      0.50      0.08    0.58    0.0     1   recommended" "option 1 is proven and recommended"
+has "$work/out" "  1  optimal        58.3 %     50.0 %    8.3 pts         58.3 %    0.0 %          1   recommended" "option 1 is proven and recommended"
 has "$work/out" "P3 (bed 103A): N1 → N2" "the hand-off is named with its bed"
 has "$work/out" "P7 (bed 107A): N4 → N2" "the forced move is listed"
 has "$work/out" "P9 (bed 109A): → N3" "the new patient is placed"
@@ -122,7 +122,7 @@ expect 0 "rebalance at 09:30" -- "$keel" rebalance "$at" --at 09:30
 has "$work/out" "At 09:30: the rest of the shift, 570 min; care and capacity from then on; discharged before then: 1" "the rest of the shift is named"
 has "$work/out" "P2 (bed 2A): N2 → N3" "the patient of the nurse who left is a forced move"
 has "$work/out" "P4 (bed 4A): → N1" "the admission is placed"
-has "$work/out" "N4        2 patients  load  120 of  420 min  utilisation 0.29  P1 (later), P2 (later)" "the patients a nurse takes over later are marked"
+has "$work/out" "N4        2 patients  load  120 of  420 min   28.6 %  P1 (later), P2 (later)" "the patients a nurse takes over later are marked"
 last_line_is_caution "$work/out" "the text at 09:30 ends with the caution"
 expect 0 "json at 09:30" -- "$keel" rebalance "$at" --at 09:30 --format json
 cp "$work/out" "$work/at.json"
@@ -139,7 +139,7 @@ json "$work/again-at.json" "j['at'] == '12:00' and j['forced_moves'] == [] and j
 # The incoming patient preview.
 incoming=$data/rebalance-incoming.yaml
 expect 0 "rebalance with an expected admission" -- "$keel" rebalance "$incoming"
-has "$work/out" "A1 (bed 6A): N2 0.42; N1 ruled out [moment_limit]; N3 ruled out [skill]" "the preview ranks the nurses and names the rules"
+has "$work/out" "A1 (bed 6A): N2 41.7 %; N1 ruled out [moment_limit]; N3 ruled out [skill]" "the preview ranks the nurses and names the rules"
 last_line_is_caution "$work/out" "the preview's report ends with the caution"
 expect 0 "json with an expected admission" -- "$keel" rebalance "$incoming" --format json
 cp "$work/out" "$work/incoming.json"
