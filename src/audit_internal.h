@@ -7,7 +7,7 @@
  *   audit_shift.c    one shift: figures, violations, the best possible
  *   audit.c          many shifts in threads, shards, the period summed up
  *   audit_partial.c  a shard's partial result written and read back exactly
- *   audit_text.c, audit_json.c, audit_csv.c   the writers
+ *   audit_text.c, audit_json.c, audit_csv.c, audit_html.c   the writers
  *   audit_report.c   the writers' table
  */
 #ifndef KEEL_AUDIT_INTERNAL_H
@@ -43,6 +43,7 @@ keel_status keel_audit_shift_compute(keel_roster *r, size_t index, size_t docume
 
 /* The writers. */
 keel_status keel_audit_text(const keel_audit *a, FILE *out);
+keel_status keel_audit_html(const keel_audit *a, FILE *out);
 keel_status keel_audit_json(const keel_audit *a, FILE *out);
 keel_status keel_audit_csv_shifts(const keel_audit *a, FILE *out);
 keel_status keel_audit_csv_nurse_shifts(const keel_audit *a, FILE *out);

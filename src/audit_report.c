@@ -15,6 +15,7 @@ typedef struct audit_writer {
 static const audit_writer writers[] = {
     {"text", keel_audit_text},
     {"json", keel_audit_json},
+    {"html", keel_audit_html},
     {"csv", keel_audit_csv_shifts},
     {"csv-nurse-shifts", keel_audit_csv_nurse_shifts},
     {"csv-nurses", keel_audit_csv_nurses},
@@ -43,7 +44,7 @@ keel_status keel_audit_write(const char *format, const keel_audit *audit, FILE *
             return rc ? keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory") : KEEL_OK;
         }
     return keel_error_add(err, KEEL_ERR_USAGE, NULL, 0, 0, NULL,
-                          "unknown audit format '%s'; expected text, json, csv, "
+                          "unknown audit format '%s'; expected text, json, html, csv, "
                           "csv-nurse-shifts, csv-nurses, csv-nurse-groups or csv-violations",
                           format);
 }

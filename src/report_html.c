@@ -16,89 +16,36 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "alloc.h"
 #include "keel/keel.h"
 #include "keel/law.h"
 #include "report_internal.h"
 #include "workload_internal.h"
 
-/* Writes s with &, <, > and " escaped (attributes are double-quoted). */
-static void put(FILE *out, const char *s)
-{
-    for (; s && *s; s++) {
-        switch (*s) {
-        case '&':
-            fputs("&amp;", out);
-            break;
-        case '<':
-            fputs("&lt;", out);
-            break;
-        case '>':
-            fputs("&gt;", out);
-            break;
-        case '"':
-            fputs("&quot;", out);
-            break;
-        default:
-            fputc(*s, out);
-        }
-    }
-}
-
-static const char STYLE[] =
-    "body{font-family:'DejaVu Sans',Arial,sans-serif;color:#1d1d1d;margin:1.2em;"
-    "font-size:10.5pt}\n"
-    "h1{font-size:14pt;margin:0 0 .2em}h2{font-size:11pt;margin:.7em 0 .3em;"
-    "border-bottom:1px solid #888}\n"
-    ".top{display:flex;flex-wrap:wrap;gap:1.5em;align-items:flex-start}"
-    ".top>div{flex:1 1 24em}\n"
-    ".sub{color:#444;margin:0 0 .4em}.verdict{border:2px solid #333;padding:.3em .5em;"
-    "margin:.4em 0;font-weight:bold}\n"
-    ".banner{border:3px double #000;padding:.4em;font-weight:bold;background:#eee}\n"
-    ".nurses{display:flex;flex-wrap:wrap;gap:.4em}\n"
-    ".nurse{border:1px solid #777;padding:.2em .3em;flex:1 1 30%;min-width:17em;"
-    "break-inside:avoid}\n"
-    ".nurse h3{font-size:10pt;margin:0 0 .2em}.nurse h3 span{font-weight:normal}"
-    ".over{font-weight:bold;text-decoration:underline}\n"
-    "table{border-collapse:collapse;width:100%}td,th{text-align:left;padding:0 4px;"
-    "vertical-align:top;font-size:9pt}\n"
-    "th{border-bottom:1px solid #999}.num{text-align:right}\n"
-    "ul.cols{columns:3;margin:0;padding-left:1.2em;font-size:9pt}\n"
-    "svg text{font-size:11px;fill:#1d1d1d}.bar{fill:#9aa5b1;stroke:#333}"
-    ".bar.overload{fill:url(#hatch);stroke:#000;stroke-width:2}\n"
-    "footer{margin-top:.8em;border-top:1px solid #888;font-size:9pt}"
-    "footer p{margin:.2em 0}\n"
-    "@page{size:A4 landscape;margin:7mm}\n"
-    "@media print{body{margin:0;font-size:8pt}td,th,ul.cols{font-size:7pt}"
-    "h1{font-size:12pt}h2{font-size:9pt;margin:.3em 0 .1em}.nurse h3{font-size:8pt}"
-    "footer{font-size:7pt}.details{display:none}}\n";
-
 static void write_head(FILE *out, const keel_report *rep)
 {
     const keel_roster *r = rep->roster;
-    fputs("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n<title>", out);
-    fputs(rep->kind == KEEL_REPORT_ASSIGN ? "Assignment" : "Check", out);
-    if (r->unit.name) {
-        fputs(": ", out);
-        put(out, r->unit.name);
-    }
-    fprintf(out, "</title>\n<style>\n%s</style>\n</head>\n<body>\n", STYLE);
+    char title[256];
+    snprintf(title, sizeof title, "%s: %s", rep->kind == KEEL_REPORT_ASSIGN ? "Assignment" : "Check",
+             r->unit.name ? r->unit.name : "unit");
+    keel_report_out_html_head(out, title);
 }
 
 static void write_heading(FILE *out, const keel_report *rep)
 {
     const keel_roster *r = rep->roster;
     fputs("<header>\n<h1>", out);
-    put(out, r->unit.name ? r->unit.name : "Unit");
+    keel_report_out_html(out, r->unit.name ? r->unit.name : "Unit");
     fputs("</h1>\n<p class=\"sub\">", out);
     fputs(rep->kind == KEEL_REPORT_ASSIGN ? "Assignment" : "Plan check", out);
     if (r->shift.label) {
         fputs(", ", out);
-        put(out, r->shift.label);
+        keel_report_out_html(out, r->shift.label);
         fputs(" shift", out);
     }
     if (r->shift.date) {
         fputc(' ', out);
-        put(out, r->shift.date);
+        keel_report_out_html(out, r->shift.date);
     }
     if (r->shift.start_minute != KEEL_ABSENT)
         fprintf(out, " from %02d:%02d", r->shift.start_minute / 60, r->shift.start_minute % 60);
@@ -107,10 +54,10 @@ static void write_heading(FILE *out, const keel_report *rep)
     for (size_t n = 0; n < r->nnurses; n++)
         if (r->nurses[n].role == KEEL_ROLE_CHARGE) {
             fputs("<p class=\"sub\">Charge nurse: ", out);
-            put(out, r->nurses[n].id);
+            keel_report_out_html(out, r->nurses[n].id);
             if (r->nurses[n].name) {
                 fputc(' ', out);
-                put(out, r->nurses[n].name);
+                keel_report_out_html(out, r->nurses[n].name);
             }
             fputs("</p>\n", out);
         }
@@ -143,7 +90,7 @@ static void write_verdict(FILE *out, const keel_report *rep)
     if (!rep->verdict || !rep->verdict->text)
         return;
     fputs("<p class=\"verdict\">", out);
-    put(out, rep->verdict->text);
+    keel_report_out_html(out, rep->verdict->text);
     fputs("</p>\n", out);
 }
 
@@ -157,55 +104,37 @@ static void write_chart(FILE *out, const keel_report *rep)
     const keel_metrics *m = rep->metrics;
     if (!rep->nurse_of || m->ncounted == 0)
         return;
+    keel_html_bar *bars = keel_calloc(m->nnurses, sizeof *bars);
+    if (!bars)
+        return; /* the sheet without its chart; the tables below say the same */
+    size_t k = 0;
     double top = 1.2;
-    for (size_t n = 0; n < m->nnurses; n++)
-        if (m->nurses[n].counted && m->nurses[n].utilisation + 0.1 > top)
-            top = m->nurses[n].utilisation + 0.1;
-    const int left = 70, width = 420, row = 18;
-    int height = (int)m->ncounted * row + 30;
-    double scale = width / top;
-    fprintf(out,
-            "<svg role=\"img\" aria-label=\"utilisation per nurse\" "
-            "width=\"%d\" height=\"%d\" viewBox=\"0 0 %d %d\">\n",
-            left + width + 110, height, left + width + 110, height);
-    fputs("<defs><pattern id=\"hatch\" width=\"6\" height=\"6\" patternUnits=\"userSpaceOnUse\" "
-          "patternTransform=\"rotate(45)\"><rect width=\"6\" height=\"6\" fill=\"#fff\"/>"
-          "<line x1=\"0\" y1=\"0\" x2=\"0\" y2=\"6\" stroke=\"#000\" stroke-width=\"3\"/>"
-          "</pattern></defs>\n",
-          out);
-    int y = 4;
     for (size_t n = 0; n < m->nnurses; n++) {
         const keel_nurse_metrics *nm = &m->nurses[n];
         if (!nm->counted)
             continue;
         bool over = nm->load_minutes > nm->capacity_minutes;
-        fprintf(out, "<text x=\"%d\" y=\"%d\" text-anchor=\"end\">", left - 6, y + 12);
-        put(out, r->nurses[n].id);
-        fprintf(out,
-                "</text><rect class=\"bar%s\" x=\"%d\" y=\"%d\" width=\"%.1f\" height=\"%d\"/>"
-                "<text x=\"%.1f\" y=\"%d\">%.1f %%%s</text>\n",
-                over ? " overload" : "", left, y, nm->utilisation * scale, row - 4,
-                left + nm->utilisation * scale + 4, y + 12, 100.0 * nm->utilisation,
-                over ? " OVER" : "");
-        y += row;
+        bars[k] = (keel_html_bar){.label = r->nurses[n].id, .value = nm->utilisation,
+                                  .mark = -1, .hatched = over};
+        snprintf(bars[k].text, sizeof bars[k].text, "%.1f %%%s", 100.0 * nm->utilisation,
+                 over ? " OVER" : "");
+        if (nm->utilisation + 0.1 > top)
+            top = nm->utilisation + 0.1;
+        k++;
     }
-    fprintf(out,
-            "<line x1=\"%.1f\" y1=\"0\" x2=\"%.1f\" y2=\"%d\" stroke=\"#000\" "
-            "stroke-dasharray=\"4 3\"/><text x=\"%.1f\" y=\"%d\">100 %%</text>\n",
-            left + scale, left + scale, y, left + scale + 3, y + 14);
+    keel_html_line lines[2] = {{.at = 1.0, .label = "100 %"}};
+    size_t nlines = 1;
     const keel_solution *s = rep->solution;
     if (s && s->status != KEEL_SOLVE_INFEASIBLE && s->nstages > 0 &&
         strcmp(s->stages[0].name, "peak") == 0) {
-        double b = s->stages[0].bound * scale + left;
-        fprintf(out,
-                "<line x1=\"%.1f\" y1=\"0\" x2=\"%.1f\" y2=\"%d\" stroke=\"#000\" "
-                "stroke-dasharray=\"1 2\"/><text x=\"%.1f\" y=\"%d\" text-anchor=\"end\">"
-                "%s %.1f %%</text>\n",
-                b, b, y, b - 3, y + 14,
-                rep->kind == KEEL_REPORT_CHECK ? "best possible heaviest" : "no plan below",
-                100.0 * s->stages[0].bound);
+        lines[1] = (keel_html_line){.at = s->stages[0].bound, .dotted = true};
+        snprintf(lines[1].label, sizeof lines[1].label, "%s %.1f %%",
+                 rep->kind == KEEL_REPORT_CHECK ? "best possible heaviest" : "no plan below",
+                 100.0 * s->stages[0].bound);
+        nlines = 2;
     }
-    fputs("</svg>\n", out);
+    keel_report_out_html_chart(out, "utilisation per nurse", bars, k, lines, nlines, top);
+    free(bars);
 }
 
 static void time_of(const keel_report *rep, int minutes, char *buf)
@@ -232,11 +161,11 @@ static void write_times(FILE *out, const keel_report *rep, size_t p, size_t n)
         time_of(rep, when, at);
         if (from == (int)n) {
             fputs("to ", out);
-            put(out, to >= 0 ? r->nurses[to].id : "nobody");
+            keel_report_out_html(out, to >= 0 ? r->nurses[to].id : "nobody");
             fprintf(out, " at %s ", at);
         } else if (to == (int)n) {
             fputs("from ", out);
-            put(out, r->nurses[from].id);
+            keel_report_out_html(out, r->nurses[from].id);
             fprintf(out, " at %s ", at);
         }
     }
@@ -246,7 +175,7 @@ static void write_times(FILE *out, const keel_report *rep, size_t p, size_t n)
 static void item(FILE *out, bool *first, const char *text)
 {
     fputs(*first ? "" : ", ", out);
-    put(out, text);
+    keel_report_out_html(out, text);
     *first = false;
 }
 
@@ -261,16 +190,16 @@ static void write_patient_row(FILE *out, const keel_report *rep, const columns *
 {
     const keel_patient *pat = &rep->roster->patients[p];
     fputs("<tr><td>", out);
-    put(out, pat->bed ? pat->bed : "-");
+    keel_report_out_html(out, pat->bed ? pat->bed : "-");
     fputs("</td><td>", out);
-    put(out, pat->id);
+    keel_report_out_html(out, pat->id);
     if (rep->names && pat->name) {
         fputs(" ", out);
-        put(out, pat->name);
+        keel_report_out_html(out, pat->name);
     }
     if (cols->room) {
         fputs("</td><td>", out);
-        put(out, pat->room ? pat->room : "");
+        keel_report_out_html(out, pat->room ? pat->room : "");
     }
     fputs("</td><td class=\"num\">", out);
     if (pat->acuity != KEEL_ABSENT)
@@ -313,16 +242,16 @@ static void write_nurses(FILE *out, const keel_report *rep)
         const keel_nurse_metrics *nm = &m->nurses[n];
         const keel_nurse *nu = &r->nurses[n];
         fputs("<section class=\"nurse\"><h3>", out);
-        put(out, nu->id);
+        keel_report_out_html(out, nu->id);
         if (nu->name) {
             fputc(' ', out);
-            put(out, nu->name);
+            keel_report_out_html(out, nu->name);
         }
         if (nu->role != KEEL_ROLE_STAFF)
             fprintf(out, " (%s)", keel_role_name(nu->role));
         if (nu->role == KEEL_ROLE_ORIENTEE) {
             fputs(" <span>orientee: shares ", out);
-            put(out, nu->preceptor);
+            keel_report_out_html(out, nu->preceptor);
             fputs("'s assignment</span></h3></section>\n", out);
             continue;
         }
@@ -371,14 +300,14 @@ static void write_breaks(FILE *out, const keel_report *rep)
         time_of(rep, b->at, from);
         time_of(rep, b->at + b->minutes, to);
         fprintf(out, "<li>%s-%s ", from, to);
-        put(out, r->nurses[b->nurse].id);
+        keel_report_out_html(out, r->nurses[b->nurse].id);
         fputs(": ", out);
         if (b->npatients == 0) {
             fputs("nothing to hand over", out);
         } else if (b->cover < 0) {
             fputs("<b>nobody covers</b>", out);
         } else {
-            put(out, r->nurses[b->cover].id);
+            keel_report_out_html(out, r->nurses[b->cover].id);
             fprintf(out, " (%s), %d of %d", b->relief ? "relief" : "buddy", b->most, b->limit);
         }
         if (b->rule)
@@ -404,7 +333,7 @@ static void write_admissions(FILE *out, const keel_report *rep)
     for (size_t i = 0; i < c->npicks; i++) {
         static const char *const nth[] = {"1st", "2nd", "3rd"};
         fprintf(out, "%s%s ", i ? "; " : "", i < 3 ? nth[i] : "next");
-        put(out, r->nurses[c->picks[i].nurse].id);
+        keel_report_out_html(out, r->nurses[c->picks[i].nurse].id);
         fprintf(out, " (%.1f %%%s)", 100.0 * c->picks[i].utilisation,
                 c->picks[i].over ? ", <span class=\"over\">OVER HER TIME</span>" : "");
     }
@@ -416,13 +345,13 @@ static void write_findings(FILE *out, const char *title, const keel_findings *f)
     if (!f || f->n == 0)
         return;
     fputs("<h2>", out);
-    put(out, title);
+    keel_report_out_html(out, title);
     fputs("</h2>\n<ul>\n", out);
     for (size_t i = 0; i < f->n; i++) {
         fputs("<li><b>", out);
-        put(out, f->items[i].rule);
+        keel_report_out_html(out, f->items[i].rule);
         fputs("</b>: ", out);
-        put(out, f->items[i].message);
+        keel_report_out_html(out, f->items[i].message);
         fputs("</li>\n", out);
     }
     fputs("</ul>\n", out);
@@ -455,26 +384,18 @@ static void write_details(FILE *out, const keel_report *rep)
         fputs("</table>\n", out);
         if (s->bound_reason.text) {
             fputs("<p>What sets the bound: ", out);
-            put(out, s->bound_reason.text);
+            keel_report_out_html(out, s->bound_reason.text);
             fputs("</p>\n", out);
         }
     }
     fputs("</section>\n", out);
 }
 
-static void write_footer(FILE *out, const keel_report *rep)
+void keel_report_html_sheet(const keel_report *rep, FILE *out)
 {
-    fputs("<footer>\n<p><b>", out);
-    put(out, KEEL_CAUTION);
-    fputs("</b></p>\n", out);
-    if (rep->roster->policy.ratio_table) {
-        char cite[KEEL_LAW_CITE_SIZE];
-        keel_law_cite(rep->roster->policy.ratio_table, cite, sizeof cite);
-        fputs("<p>Ratio table: ", out);
-        put(out, cite);
-        fputs("</p>\n", out);
-    }
-    fprintf(out, "<p>Made by keel %s.</p>\n</footer>\n</body>\n</html>\n", keel_version());
+    write_nurses(out, rep);
+    write_breaks(out, rep);
+    write_admissions(out, rep);
 }
 
 keel_status keel_report_html(const keel_report *rep, FILE *out)
@@ -504,6 +425,6 @@ keel_status keel_report_html(const keel_report *rep, FILE *out)
     if (rep->kind == KEEL_REPORT_CHECK && plan && rep->violations && rep->violations->n == 0)
         fputs("<p>The plan keeps every rule keel checks.</p>\n", out);
     write_details(out, rep);
-    write_footer(out, rep);
+    keel_report_out_html_foot(out, rep->roster->policy.ratio_table);
     return KEEL_OK;
 }

@@ -9,6 +9,7 @@
 
 #include <stdio.h>
 
+#include "keel/law.h"
 #include "keel/report.h"
 #include "workload_internal.h"
 
@@ -24,6 +25,9 @@ keel_status keel_report_text(const keel_report *report, FILE *out); /* report_te
 keel_status keel_report_json(const keel_report *report, FILE *out); /* report_json.c */
 keel_status keel_report_yaml(const keel_report *report, FILE *out); /* report_yaml.c */
 keel_status keel_report_html(const keel_report *report, FILE *out); /* report_html.c */
+/* report_html.c: the sheet's patients by nurse, break cover and next
+ * admissions, for a page of another writer (the rebalance's). */
+void keel_report_html_sheet(const keel_report *report, FILE *out);
 keel_status keel_report_csv(const keel_report *report, FILE *out);  /* report_csv.c */
 keel_status keel_report_csv_nurses(const keel_report *report, FILE *out); /* report_csv.c */
 
@@ -59,6 +63,42 @@ bool keel_report_plan_next_handoff(const keel_report *rep, size_t p, int *q, int
 
 /* Writes s as a double-quoted string with JSON escapes (valid YAML too). */
 void keel_report_out_quoted(FILE *out, const char *s);
+
+/* HTML: s with &, <, > and " escaped (attributes are double-quoted). */
+void keel_report_out_html(FILE *out, const char *s);
+
+/* HTML: the page's head (doctype, title, keel's one stylesheet with its
+ * print rules) and <body>. */
+void keel_report_out_html_head(FILE *out, const char *title);
+
+/* HTML: the footer (the caution, table t's citation when t is not NULL,
+ * keel's version) and the end of the page. */
+void keel_report_out_html_foot(FILE *out, const keel_law_table *t);
+
+/* One bar of an HTML chart: a label, a value (the bar's length), the text
+ * written after it, a tick at `mark` (< 0: none) and a hatched bar (never
+ * colour alone: the text says why too). */
+typedef struct keel_html_bar {
+    const char *label;
+    double value;
+    char text[64];
+    double mark;
+    bool hatched;
+} keel_html_bar;
+
+/* One vertical line across an HTML chart at `at`, dashed or dotted, with
+ * its label under the chart. */
+typedef struct keel_html_line {
+    double at;
+    bool dotted;
+    char label[64];
+} keel_html_line;
+
+/* An inline SVG chart of horizontal bars (class "bar", "bar overload" when
+ * hatched), scaled so that `top` fills it. */
+void keel_report_out_html_chart(FILE *out, const char *title, const keel_html_bar *bars,
+                                size_t nbars, const keel_html_line *lines, size_t nlines,
+                                double top);
 
 /* Writes text as lines of at most width columns (words longer than a line
  * stand alone), each starting with indent. */

@@ -5,8 +5,9 @@
  * new patients, the recommendation, the caution), "json" (every option in
  * full) and "yaml" (the chosen option as the updated roster, through the
  * assignment's yaml writer, so that it feeds back into keel rebalance and
- * keel check).  Writers only read: each plan's figures come from its
- * keel_metrics.
+ * keel check) and "html" (the frontier as a chart, the moves, and the
+ * chosen option's sheet as the assignment's).  Writers only read: each
+ * plan's figures come from its keel_metrics.
  */
 #include "keel/report.h"
 
@@ -319,6 +320,131 @@ static keel_status write_json(const keel_rebalance_report *rep, FILE *out)
     return KEEL_OK;
 }
 
+/* ---- html ------------------------------------------------------------ */
+
+static void html_moves(FILE *out, const keel_roster *r, const char *title,
+                       const keel_rebalance_move *moves, size_t n)
+{
+    if (n == 0)
+        return;
+    fputs("<h2>", out);
+    keel_report_out_html(out, title);
+    fputs("</h2>\n<ul class=\"cols\">\n", out);
+    for (size_t i = 0; i < n; i++) {
+        const keel_patient *pt = &r->patients[moves[i].patient];
+        fputs("<li>", out);
+        keel_report_out_html(out, pt->id);
+        if (pt->bed) {
+            fputs(" (bed ", out);
+            keel_report_out_html(out, pt->bed);
+            fputc(')', out);
+        }
+        fputs(": ", out);
+        if (moves[i].from >= 0 || (pt->nurse && !pt->expected)) {
+            keel_report_out_html(out,
+                                 moves[i].from >= 0 ? r->nurses[moves[i].from].id : pt->nurse);
+            fputc(' ', out);
+        }
+        fputs("&rarr; ", out);
+        keel_report_out_html(out, nurse_id(r, moves[i].to));
+        fputs("</li>\n", out);
+    }
+    fputs("</ul>\n", out);
+}
+
+/* The page: the frontier as a chart (heaviest utilisation per number of
+ * hand-offs), the recommendation, the chosen option's moves, then its
+ * sheet as the assignment's (patients by nurse, break cover, next
+ * admissions), the caution. */
+static keel_status write_html(const keel_rebalance_report *rep, FILE *out)
+{
+    const keel_roster *r = rep->roster;
+    const keel_rebalance *rb = rep->rebalance;
+    char title[256];
+    snprintf(title, sizeof title, "Rebalance: %s", r->unit.name ? r->unit.name : "unit");
+    keel_report_out_html_head(out, title);
+    fputs("<h1>", out);
+    keel_report_out_html(out, r->unit.name ? r->unit.name : "Unit");
+    fputs("</h1>\n<p class=\"sub\">Rebalance", out);
+    if (r->shift.label) {
+        fputs(", ", out);
+        keel_report_out_html(out, r->shift.label);
+        fputs(" shift", out);
+    }
+    if (rb->at_minute >= 0)
+        fprintf(out, " at %02d:%02d (the rest of the shift)", rb->at_minute / 60,
+                rb->at_minute % 60);
+    fprintf(out, ". %zu patient%s with a nurse, %zu new.</p>\n", rb->npresent,
+            rb->npresent == 1 ? "" : "s", rb->nnew);
+    keel_html_bar bars[32];
+    char labels[32][24];
+    size_t nbars = 0;
+    double top = 1.2;
+    for (size_t k = 0; k < rb->noptions && nbars < 32; k++) {
+        const keel_rebalance_option *o = &rb->options[k];
+        keel_html_bar *b = &bars[nbars++];
+        snprintf(labels[k], sizeof labels[k], "%d hand-off%s", o->handoffs,
+                 o->handoffs == 1 ? "" : "s");
+        *b = (keel_html_bar){.label = labels[k], .mark = -1};
+        if (!o->found) {
+            snprintf(b->text, sizeof b->text, "no plan");
+            continue;
+        }
+        double u = rep->metrics[k]->max_utilisation;
+        b->value = u;
+        b->hatched = u > 1.0;
+        snprintf(b->text, sizeof b->text, "heaviest %.1f %%%s%s", 100.0 * u,
+                 o->solution->status == KEEL_SOLVE_OPTIMAL ? "" : " (not proven)",
+                 (int)k == rb->recommended ? " RECOMMENDED" : "");
+        if (u + 0.1 > top)
+            top = u + 0.1;
+    }
+    keel_html_line line = {.at = 1.0, .label = "100 %"};
+    fputs("<h2>The best plan for each number of hand-offs</h2>\n", out);
+    keel_report_out_html_chart(out, "heaviest utilisation against hand-offs", bars, nbars, &line,
+                               1, top);
+    if (rb->recommended < 0) {
+        fputs("<p class=\"banner\">No option has a plan that keeps every rule.</p>\n", out);
+        keel_report_out_html_foot(out, r->policy.ratio_table);
+        return KEEL_OK;
+    }
+    const keel_rebalance_option *o = &rb->options[rep->chosen];
+    fprintf(out,
+            "<p class=\"verdict\">Recommended: %d hand-off%s (the fewest whose heaviest "
+            "utilisation is within %.1f points of the best option's).</p>\n",
+            rb->options[rb->recommended].handoffs,
+            rb->options[rb->recommended].handoffs == 1 ? "" : "s", 100.0 * rb->min_gain);
+    if (!o->found) {
+        fprintf(out, "<p>Option %d has no plan.</p>\n", o->handoffs);
+        keel_report_out_html_foot(out, r->policy.ratio_table);
+        return KEEL_OK;
+    }
+    if (o->nmoves == 0)
+        fputs("<p>No hand-offs: every patient with a nurse keeps her.</p>\n", out);
+    html_moves(out, r, "Hand-offs", o->moves, o->nmoves);
+    html_moves(out, r, "Forced moves (the nurse is gone or may not keep the patient)", o->forced,
+               o->nforced);
+    html_moves(out, r, "New patients", o->placed, o->nplaced);
+    keel_course *course = NULL;
+    keel_error err;
+    keel_error_init(&err);
+    keel_status rc = keel_course_compute(r, rb->workload, o->solution->nurse_of, 3, &course, &err);
+    keel_error_fini(&err);
+    if (rc)
+        return rc;
+    keel_report sheet = {.kind = KEEL_REPORT_ASSIGN,
+                         .roster = r,
+                         .workload = rb->workload,
+                         .nurse_of = o->solution->nurse_of,
+                         .metrics = rep->metrics[rep->chosen],
+                         .solution = o->solution,
+                         .course = course};
+    keel_report_html_sheet(&sheet, out);
+    keel_course_free(course);
+    keel_report_out_html_foot(out, r->policy.ratio_table);
+    return KEEL_OK;
+}
+
 /* ---- yaml ------------------------------------------------------------ */
 
 static keel_status write_yaml(const keel_rebalance_report *rep, FILE *out)
@@ -342,6 +468,7 @@ static const writer writers[] = {
     {"text", write_text},
     {"json", write_json},
     {"yaml", write_yaml},
+    {"html", write_html},
 };
 
 keel_status keel_report_rebalance_write(const char *format, const keel_rebalance_report *rep,
@@ -361,5 +488,5 @@ keel_status keel_report_rebalance_write(const char *format, const keel_rebalance
         return rc;
     }
     return keel_error_add(err, KEEL_ERR_USAGE, NULL, 0, 0, NULL,
-                          "unknown format '%s'; expected text, json or yaml", format);
+                          "unknown format '%s'; expected text, json, yaml or html", format);
 }

@@ -45,9 +45,9 @@ _keel_takes_value() {
 _keel_formats() {
     case $1 in
     assign) echo "text yaml json html csv csv-nurses" ;;
-    rebalance) echo "text yaml json" ;;
+    rebalance) echo "text yaml json html" ;;
     check) echo "text json html csv csv-nurses" ;;
-    audit) echo "text json csv csv-nurse-shifts csv-nurses csv-nurse-groups csv-violations" ;;
+    audit) echo "text json html csv csv-nurse-shifts csv-nurses csv-nurse-groups csv-violations" ;;
     esac
 }
 

@@ -115,7 +115,7 @@ static const command commands[] = {
      "  -o, --output FILE      write to FILE (replaced atomically; never the roster)\n",
      run_check},
     {"rebalance", "fold in what changed mid-shift with the fewest hand-offs",
-     "usage: keel rebalance ROSTER [--format text|yaml|json] [--at HH:MM]\n"
+     "usage: keel rebalance ROSTER [--format text|yaml|json|html] [--at HH:MM]\n"
      "                      [--max-handoffs N] [--handoffs K] [--min-gain POINTS]\n"
      "                      [--time-limit SECONDS] [-o FILE]\n"
      "\n"
@@ -129,8 +129,10 @@ static const command commands[] = {
      "roster's figures are taken as the work that remains.\n"
      "\n"
      "  -f, --format FMT       text (default: the frontier, the moves, the recommendation),\n"
-     "                         json (every option) or yaml (the chosen option as the\n"
+     "                         json (every option), yaml (the chosen option as the\n"
      "                         updated roster, which keel rebalance and keel check read)\n"
+     "                         or html (the frontier as a chart, the moves and the\n"
+     "                         chosen option's sheet to post)\n"
      "      --at HH:MM         the time of the rebalance: what happened before is fixed,\n"
      "                         care and capacity count from then on (the shift needs a\n"
      "                         start); the yaml output is the rest of the shift\n"
@@ -186,7 +188,9 @@ static const command commands[] = {
      "against chance, with exact tail probabilities adjusted by Holm's procedure.\n"
      "These figures describe the assignments given, never a nurse's performance.\n"
      "\n"
-     "  -f, --format FMT       text (default), json, csv (a row per shift),\n"
+     "  -f, --format FMT       text (default), json, html (a document with a chart of\n"
+     "                         each nurse's heaviest loads against chance), csv (a row\n"
+     "                         per shift),\n"
      "                         csv-nurse-shifts, csv-nurses, csv-nurse-groups or\n"
      "                         csv-violations\n"
      "      --no-best          do not solve for the best possible of each shift\n"
@@ -1175,9 +1179,12 @@ static int run_audit(const options *opt)
 static int run_command(const command *cmd, const options *opt)
 {
     bool audit = cmd->run == run_audit;
-    if (audit ? !known_audit_format(opt->format)
-              : !known_format(opt->format) ||
-                    (cmd->run == run_check && strcmp(opt->format, "yaml") == 0))
+    bool rebalance_format = strcmp(opt->format, "text") == 0 || strcmp(opt->format, "json") == 0 ||
+                            strcmp(opt->format, "yaml") == 0 || strcmp(opt->format, "html") == 0;
+    if (audit                           ? !known_audit_format(opt->format)
+        : cmd->run == run_rebalance ? !rebalance_format
+                                    : !known_format(opt->format) ||
+                                          (cmd->run == run_check && strcmp(opt->format, "yaml") == 0))
         return usage_error(cmd, "unknown format '%s'", opt->format);
     if (opt->explain && strcmp(opt->format, "yaml") == 0)
         return usage_error(cmd, "%s",

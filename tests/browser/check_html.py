@@ -21,7 +21,11 @@ Checks, on each roster given, as a TAP stream:
   * the rendered DOM (chromium --dump-dom) holds one SVG bar per nurse who
     takes patients, as keel's json counts them.
 
-Usage: check_html.py KEEL ROSTER...
+Also the rebalance's page (rebalance:ROSTER: one printed page, a bar per
+option of the frontier) and the audit's document (audit:HISTORY: a bar per
+nurse, hatched exactly for those who stand out).
+
+Usage: check_html.py KEEL ROSTER... [rebalance:ROSTER] [audit:HISTORY]
 A TAP skip ("1..0 # SKIP") when chromium or Pillow is missing.
 """
 
@@ -176,11 +180,79 @@ def check(keel, roster, work, command, names):
        "%s: %d bars in the rendered chart for %d nurses who take patients" % (name, bars, want))
 
 
+def page_checks(name, page, work, one_page):
+    """Well-formed, self-contained, the caution, one printed page when asked,
+    not blank; returns the rendered DOM."""
+    text = open(page, encoding="utf-8").read()
+    p = Checker()
+    p.feed(text)
+    p.close()
+    ok(not p.problems and not p.stack, "%s: well-formed" % name)
+    ok(not p.external, "%s: self-contained" % name)
+    ok(CAUTION in " ".join(" ".join(p.text).split()), "%s: carries the caution" % name)
+    url = "file://" + page
+    pdf = os.path.join(work, "page.pdf")
+    png = os.path.join(work, "page.png")
+    for f in (pdf, png):
+        if os.path.exists(f):
+            os.remove(f)
+    if one_page:
+        chromium("--print-to-pdf=" + pdf, "--no-pdf-header-footer", url)
+        ok(os.path.exists(pdf) and pdf_pages(pdf) == 1, "%s: prints on one page" % name)
+    chromium("--screenshot=" + png, "--window-size=1400,1000", url)
+    ok(os.path.exists(png) and not_blank(png), "%s: the screenshot is not blank" % name)
+    return chromium("--dump-dom", url).stdout.decode("utf-8", "replace")
+
+
+def check_rebalance(keel, roster, work):
+    """The rebalance's page: the frontier as a chart, a bar per option."""
+    name = os.path.basename(roster) + " rebalance"
+    page = os.path.join(work, "rebalance.html")
+    subprocess.run([keel, "rebalance", roster, "--format", "html", "-o", page], timeout=300,
+                   capture_output=True)
+    ok(os.path.exists(page), "%s: keel writes the page" % name)
+    if not os.path.exists(page):
+        return
+    dom = page_checks(name, page, work, True)
+    d = json.loads(subprocess.run([keel, "rebalance", roster, "--format", "json"],
+                                  capture_output=True, text=True, timeout=300).stdout)
+    bars = len(re.findall(r'<rect class="bar', dom))
+    ok(bars == len(d["options"]), "%s: %d bars for %d options of the frontier"
+       % (name, bars, len(d["options"])))
+
+
+def check_audit(keel, history, work):
+    """The audit's document: a bar per nurse against chance."""
+    name = os.path.basename(history) + " audit"
+    page = os.path.join(work, "audit.html")
+    subprocess.run([keel, "audit", history, "--format", "html", "-o", page], timeout=600,
+                   capture_output=True)
+    ok(os.path.exists(page), "%s: keel writes the page" % name)
+    if not os.path.exists(page):
+        return
+    dom = page_checks(name, page, work, False)
+    d = json.loads(subprocess.run([keel, "audit", history, "--format", "json"],
+                                  capture_output=True, text=True, timeout=600).stdout)
+    bars = len(re.findall(r'<rect class="bar', dom))
+    ok(bars == len(d["nurses"]), "%s: %d bars for %d nurses" % (name, bars, len(d["nurses"])))
+    marked = len(re.findall(r'<rect class="bar overload"', dom))
+    ok(marked == sum(1 for x in d["nurses"] if x["measures"]["heaviest"]["stands_out"]),
+       "%s: the nurses who stand out, and only they, are hatched (%d)" % (name, marked))
+
+
 def main():
-    keel, rosters = os.path.abspath(sys.argv[1]), sys.argv[2:]
+    keel, args = os.path.abspath(sys.argv[1]), sys.argv[2:]
     with tempfile.TemporaryDirectory() as work:
-        for roster in rosters:
-            roster = os.path.abspath(roster)
+        for arg in args:
+            kind, _, path = arg.rpartition(":") if arg.startswith(("rebalance:", "audit:")) \
+                else ("", "", arg)
+            roster = os.path.abspath(path)
+            if kind == "rebalance":
+                check_rebalance(keel, roster, work)
+                continue
+            if kind == "audit":
+                check_audit(keel, roster, work)
+                continue
             check(keel, roster, work, "assign", False)
             check(keel, roster, work, "assign", True)
             check(keel, roster, work, "check", False)

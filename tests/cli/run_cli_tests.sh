@@ -519,5 +519,14 @@ else
     ok "GNU parallel's shards merge to the single run # SKIP parallel is not installed"
 fi
 
+# The rebalance's page and the audit's document (the browser suite renders
+# them; here they are written under the sanitizers).
+expect 0 "a rebalance as html" -- "$keel" rebalance "$data/rebalance-midshift.yaml" --format html
+has "$work/out" "heaviest utilisation against hand-offs" "the frontier is a chart"
+has "$work/out" "$caution" "the rebalance's page carries the caution"
+expect 5 "an audit as html" -- "$keel" audit "$examples/tutorial/history.yaml" --format html --no-best
+has "$work/out" "heaviest loads per nurse against chance" "the audit's chart"
+has "$work/out" "$caution" "the audit's page carries the caution"
+
 echo "1..$n"
 [ "$failed" -eq 0 ]
