@@ -336,7 +336,7 @@ static keel_status read_partial(const char *path, merge *mg, keel_error *err)
 {
     char *data = NULL;
     size_t len = 0;
-    keel_status rc = keel_roster_read_file(path, &data, &len, err);
+    keel_status rc = keel_roster_read_file(path, KEEL_MAX_STREAM_BYTES, &data, &len, err);
     if (rc)
         return rc;
     reader rd = {.path = path, .err = err};

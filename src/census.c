@@ -141,6 +141,16 @@ static bool read_cell(reader *rd, cell *out, bool *end_of_row)
             *end_of_row = true;
             break;
         }
+        if (n == KEEL_MAX_TEXT) {
+            problem(rd, out->line, out->column, NULL,
+                    "a field longer than %d bytes, the most keel reads (docs/census-format.md)",
+                    KEEL_MAX_TEXT);
+            n++; /* said once; the rest of the field is skipped */
+        }
+        if (n > KEEL_MAX_TEXT) {
+            advance(rd);
+            continue;
+        }
         if (n + 2 > cap) {
             char *grown = keel_realloc(buf, cap *= 2);
             if (!grown) {
@@ -152,7 +162,7 @@ static bool read_cell(reader *rd, cell *out, bool *end_of_row)
         buf[n++] = rd->text[rd->pos];
         advance(rd);
     }
-    buf[n] = '\0';
+    buf[n > KEEL_MAX_TEXT ? KEEL_MAX_TEXT : n] = '\0';
     out->text = buf;
     return true;
 }
@@ -191,6 +201,14 @@ static row *read_rows(reader *rd, size_t *nrows)
         size_t cap = 0;
         bool end = false;
         while (!end) {
+            if (r.ncells == KEEL_MAX_ITEMS) {
+                problem(rd, r.line, 1, NULL, "more than %d fields in one row; keel reads at most %d",
+                        KEEL_MAX_ITEMS, KEEL_MAX_ITEMS);
+                free_row(&r);
+                free_rows(rows, *nrows);
+                *nrows = 0;
+                return NULL;
+            }
             if (r.ncells == cap) {
                 cap = cap ? 2 * cap : 8;
                 cell *grown = keel_reallocarray(r.cells, cap, sizeof *grown);
@@ -213,6 +231,15 @@ static row *read_rows(reader *rd, size_t *nrows)
         }
         rows = grown;
         rows[(*nrows)++] = r;
+        if (*nrows > KEEL_MAX_ITEMS) { /* the header and KEEL_MAX_ITEMS patients */
+            problem(rd, r.line, 1, NULL,
+                    "more than %d patients; keel reads a census of at most %d rows "
+                    "(docs/census-format.md)",
+                    KEEL_MAX_ITEMS, KEEL_MAX_ITEMS);
+            free_rows(rows, *nrows);
+            *nrows = 0;
+            return NULL;
+        }
         continue;
     nomem:
         free_row(&r);
@@ -474,7 +501,7 @@ keel_status keel_census_parse_for(const char *name, const char *text, size_t len
     if (rc)
         goto done;
     rows = read_rows(&rd, &nrows);
-    if (rd.nomem)
+    if (rd.nomem || (rd.bad && !rows)) /* out of memory, or past a limit (said) */
         goto done;
     if (nrows == 0) {
         problem(&rd, 1, 1, NULL,
@@ -568,7 +595,7 @@ keel_status keel_census_load_for(const char *path, const char *map, const keel_r
     char *text = NULL;
     size_t len = 0;
     *out = NULL;
-    keel_status rc = keel_roster_read_file(path, &text, &len, err);
+    keel_status rc = keel_roster_read_file(path, KEEL_MAX_FILE_BYTES, &text, &len, err);
     if (rc)
         return rc;
     rc = keel_census_parse_for(path, text, len, map, unit, out, err);

@@ -15,6 +15,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
 
 #include "alloc.h"
 #include "roster_internal.h"
@@ -95,6 +96,11 @@ keel_status keel_roster_parse(const char *name, const char *text, size_t len, ke
         return keel_error_add(err, KEEL_ERR_USAGE, NULL, 0, 0, NULL,
                               "keel_roster_parse: out, name and text are required");
     *out = NULL;
+    if (len > (size_t)KEEL_MAX_FILE_BYTES)
+        return keel_error_add(err, KEEL_ERR_INPUT, name, 1, 1, NULL,
+                              "the roster is larger than %ld MiB, the most keel reads "
+                              "(docs/roster-format.md, \"Limits\")",
+                              KEEL_MAX_FILE_BYTES / (1024 * 1024));
     ld.roster = new_roster(name);
     if (!ld.roster) {
         ld.nomem = true;
@@ -181,7 +187,7 @@ keel_status keel_roster_load_stream(const char *path, keel_roster ***out, size_t
                               "keel_roster_load_stream: out, nout and path are required");
     *out = NULL;
     *nout = 0;
-    keel_status rc = keel_roster_read_file(path, &text, &len, err);
+    keel_status rc = keel_roster_read_file(path, KEEL_MAX_STREAM_BYTES, &text, &len, err);
     if (rc)
         return rc;
     rc = keel_roster_parse_stream(path, text, len, out, nout, err);
@@ -190,7 +196,19 @@ keel_status keel_roster_load_stream(const char *path, keel_roster ***out, size_t
 }
 
 /* Reads the whole file at path into a new buffer. */
-keel_status keel_roster_read_file(const char *path, char **text, size_t *len, keel_error *err)
+/* "the file is larger than 16 MiB ..." at file:1:1. */
+static keel_status too_large(const char *path, long max, FILE *f, char *buf, keel_error *err)
+{
+    free(buf);
+    fclose(f);
+    return keel_error_add(err, KEEL_ERR_INPUT, path, 1, 1, NULL,
+                          "the file is larger than %ld MiB, the most keel reads (docs/"
+                          "roster-format.md, \"Limits\"); expected one unit's roster or census",
+                          max / (1024 * 1024));
+}
+
+keel_status keel_roster_read_file(const char *path, long max, char **text, size_t *len,
+                                  keel_error *err)
 {
     size_t capacity = 0, used = 0;
     char *buf = NULL;
@@ -198,7 +216,13 @@ keel_status keel_roster_read_file(const char *path, char **text, size_t *len, ke
     if (!f)
         return keel_error_add(err, KEEL_ERR_IO, path, 0, 0, NULL, "cannot open: %s",
                               strerror(errno));
+    /* A regular file's size says it at once; a pipe is counted as it comes. */
+    struct stat st;
+    if (fstat(fileno(f), &st) == 0 && S_ISREG(st.st_mode) && st.st_size > max)
+        return too_large(path, max, f, buf, err);
     for (size_t got = 1; got > 0; used += got) {
+        if (used > (size_t)max)
+            return too_large(path, max, f, buf, err);
         char *grown = used < capacity ? buf : keel_realloc(buf, capacity = 2 * capacity + 4096);
         if (!grown) {
             free(buf);
@@ -229,7 +253,7 @@ keel_status keel_roster_load(const char *path, keel_roster **out, keel_error *er
         return keel_error_add(err, KEEL_ERR_USAGE, NULL, 0, 0, NULL,
                               "keel_roster_load: out and path are required");
     *out = NULL;
-    keel_status rc = keel_roster_read_file(path, &text, &len, err);
+    keel_status rc = keel_roster_read_file(path, KEEL_MAX_FILE_BYTES, &text, &len, err);
     if (rc)
         return rc;
     rc = keel_roster_parse(path, text, len, out, err);

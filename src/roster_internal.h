@@ -13,7 +13,8 @@
 /* roster.c: reads the whole file at path into a new buffer *text of *len
  * bytes.  Statuses: KEEL_OK, KEEL_ERR_IO (one problem naming the file),
  * KEEL_ERR_NOMEM. */
-keel_status keel_roster_read_file(const char *path, char **text, size_t *len, keel_error *err);
+keel_status keel_roster_read_file(const char *path, long max, char **text, size_t *len,
+                                  keel_error *err);
 
 /* roster_clock.c: writes the clock time `offset` minutes after the shift's
  * start as "HH:MM" (or "+N min" when the shift has no start) into buf. */

@@ -20,9 +20,6 @@
 #include "alloc.h"
 #include "roster_loader.h"
 
-enum {
-    MAX_DEPTH = 64, /* nesting accepted; a roster needs 5 levels */
-};
 
 void keel_roster_tree_free(node *n)
 {
@@ -179,6 +176,12 @@ static bool fill_scalar(loader *ld, node *n, const yaml_event_t *event)
 {
     const char *value = (const char *)event->data.scalar.value;
     size_t length = event->data.scalar.length;
+    if (length > KEEL_MAX_TEXT) {
+        keel_roster_report_problem(ld, n->mark,
+                                   "a value of %zu bytes; keel reads values of at most %d bytes",
+                                   length, KEEL_MAX_TEXT);
+        return false;
+    }
     n->kind = NODE_SCALAR;
     n->quoted = event->data.scalar.style != YAML_PLAIN_SCALAR_STYLE;
     n->text = keel_strndup(value, length);
@@ -210,9 +213,10 @@ static bool read_node(loader *ld, yaml_parser_t *parser, yaml_event_t *event, in
 /* Reads the children of a sequence or mapping up to its end event. */
 static bool read_children(loader *ld, yaml_parser_t *parser, node *n, int depth)
 {
-    if (depth >= MAX_DEPTH) {
-        keel_roster_report_problem(
-            ld, n->mark, "nesting deeper than %d levels; a roster needs at most 5", MAX_DEPTH);
+    if (depth >= KEEL_MAX_DEPTH) {
+        keel_roster_report_problem(ld, n->mark,
+                                   "nesting deeper than %d levels; a roster needs at most 5",
+                                   KEEL_MAX_DEPTH);
         return false;
     }
     for (;;) {
@@ -224,7 +228,28 @@ static bool read_children(loader *ld, yaml_parser_t *parser, node *n, int depth)
             yaml_event_delete(&event);
             return true;
         }
-        if (!read_node(ld, parser, &event, depth + 1, &child))
+        /* A list's entries, or a mapping's keys and values. */
+        size_t most = n->kind == NODE_MAPPING ? 2 * (size_t)KEEL_MAX_ITEMS : KEEL_MAX_ITEMS;
+        if (n->nitems >= most) {
+            keel_roster_report_problem(ld, mark_of(event.start_mark),
+                                       "more than %d entries in one %s; keel reads at most %d "
+                                       "(patients, nurses, keys) per list or mapping",
+                                       KEEL_MAX_ITEMS,
+                                       n->kind == NODE_MAPPING ? "mapping" : "list",
+                                       KEEL_MAX_ITEMS);
+            yaml_event_delete(&event);
+            return false;
+        }
+        /* The key path of what is read, for the problems of the limits: a
+         * mapping's value under its key, a list's entry at its index. */
+        size_t old = ld->pathlen;
+        if (n->kind == NODE_SEQUENCE)
+            keel_roster_report_push_index(ld, n->nitems);
+        else if (n->nitems % 2 == 1 && n->items[n->nitems - 1]->kind == NODE_SCALAR)
+            keel_roster_report_push_key(ld, n->items[n->nitems - 1]->text);
+        bool ok = read_node(ld, parser, &event, depth + 1, &child);
+        keel_roster_report_pop_path(ld, old);
+        if (!ok)
             return false;
         if (!add_child(ld, n, child)) {
             keel_roster_tree_free(child);

@@ -37,6 +37,15 @@ KEEL_API const char *keel_unit_type(size_t i);
 /* Value of an optional integer field that the roster does not give. */
 #define KEEL_ABSENT (-1)
 
+/* Limits on what keel reads (docs/roster-format.md, "Limits"), each
+ * refused early with a problem at file:line:column: a whole house's census
+ * is a few thousand patients, a year of one unit's shifts some 25 MB. */
+#define KEEL_MAX_FILE_BYTES (16L * 1024 * 1024)    /* a roster or census file */
+#define KEEL_MAX_STREAM_BYTES (256L * 1024 * 1024) /* a file of many shifts (keel audit) */
+#define KEEL_MAX_ITEMS 5000 /* entries of one list: patients, nurses, census rows, ... */
+#define KEEL_MAX_TEXT 1000  /* bytes of one value */
+#define KEEL_MAX_DEPTH 16   /* nesting of lists and mappings (a roster needs 5) */
+
 /* A 1-based position in the roster file; line 0 means "not from a file". */
 typedef struct keel_mark {
     int line;
