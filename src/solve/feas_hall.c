@@ -34,6 +34,17 @@ static bool augment(matcher *m, size_t p)
 {
     const keel_workload *w = m->w;
     m->seen_patient[p] = true;
+    /* A nurse with room first: no path to search (and on a roomy unit, no
+     * search at all). */
+    for (size_t n = 0; n < w->nnurses; n++) {
+        if (keel_workload_eligible(w, p, n) && !m->seen_nurse[n] &&
+            m->count[n] < w->max_patients[n]) {
+            m->seen_nurse[n] = true;
+            m->count[n]++;
+            m->nurse_of[p] = (int)n;
+            return true;
+        }
+    }
     for (size_t n = 0; n < w->nnurses; n++) {
         if (!keel_workload_eligible(w, p, n) || m->seen_nurse[n])
             continue;
