@@ -694,7 +694,7 @@ static void test_zone_polish_reaches_the_best_plan_with_the_zones_kept_or_better
         placed += placed_all;
         if (placed_all) {
             assert_true(keeps_rules(w, plan));
-            assert_int_equal(keel_heur_greedy_improve(w, plan), KEEL_OK);
+            assert_int_equal(keel_heur_greedy_improve(w, plan, LLONG_MAX), KEEL_OK);
             keel_ratio before = keel_measure_peak(w, plan);
             int home[4] = {-1, -1, -1, -1};
             for (size_t p = 0; p < np; p++)

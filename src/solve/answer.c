@@ -35,7 +35,6 @@ static keel_status answer_sums(const keel_question *q, long long deadline_ms, in
 {
     (void)deadline_ms;
     (void)nurse_of;
-    (void)err;
     const keel_workload *w = q->w;
     size_t np = w->npatients, nn = w->nnurses;
     long long low = 0, high = 0, total = 0;
@@ -52,23 +51,27 @@ static keel_status answer_sums(const keel_question *q, long long deadline_ms, in
         total += w->care_minutes[p];
     if (total < low || total > high)
         return KEEL_OK;
-    for (size_t g = 0; g < np; g++) {
-        const bool *set = &w->eligible[g * nn];
+    /* The groups: patients alike by eligibility form one class each. */
+    keel_classes cl;
+    if (!keel_measure_classes(w, &cl)) {
+        keel_measure_classes_free(&cl);
+        return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    }
+    bool fits = true;
+    for (size_t g = 0; g < cl.k && fits; g++) {
+        const bool *set = &w->eligible[cl.first[g] * nn];
         long long room = 0, need = 0;
         for (size_t n = 0; n < nn; n++)
             if (set[n])
                 room += q->hi[n];
-        for (size_t p = 0; p < np; p++) {
-            bool inside = true;
-            for (size_t n = 0; n < nn && inside; n++)
-                inside = !w->eligible[p * nn + n] || set[n];
-            if (inside)
-                need += w->care_minutes[p];
-        }
-        if (need > room)
-            return KEEL_OK;
+        for (size_t a = 0; a < cl.k; a++)
+            if (cl.within[a * cl.k + g])
+                need += cl.care[a];
+        fits = need <= room;
     }
-    *answer = KEEL_ANSWER_UNKNOWN;
+    keel_measure_classes_free(&cl);
+    if (fits)
+        *answer = KEEL_ANSWER_UNKNOWN;
     return KEEL_OK;
 }
 

@@ -193,70 +193,15 @@ static char *describe(const keel_roster *r, const keel_workload *w, const floor_
     return text;
 }
 
-/* Patients by eligibility: class_of[p], the class's first member, care and
- * size; within[a * k + b] says class a's nurses are all class b's.  A
- * unit has few classes (by needs, locks and avoid lists), so the group
- * floors below cost classes squared, not patients squared. */
-typedef struct classes {
-    size_t k;
-    size_t *class_of, *first, *size;
-    long long *care;
-    bool *within;
-} classes;
-
-static void classes_free(classes *c)
-{
-    free(c->class_of);
-    free(c->first);
-    free(c->size);
-    free(c->care);
-    free(c->within);
-}
-
-static bool classes_make(const keel_workload *w, classes *c)
-{
-    size_t np = w->npatients, nn = w->nnurses;
-    *c = (classes){0};
-    c->class_of = keel_calloc(np ? np : 1, sizeof *c->class_of);
-    c->first = keel_calloc(np ? np : 1, sizeof *c->first);
-    c->size = keel_calloc(np ? np : 1, sizeof *c->size);
-    c->care = keel_calloc(np ? np : 1, sizeof *c->care);
-    if (!c->class_of || !c->first || !c->size || !c->care)
-        return false;
-    for (size_t p = 0; p < np; p++) {
-        size_t a = 0;
-        while (a < c->k && memcmp(&w->eligible[p * nn], &w->eligible[c->first[a] * nn],
-                                  nn * sizeof *w->eligible) != 0)
-            a++;
-        if (a == c->k)
-            c->first[c->k++] = p;
-        c->class_of[p] = a;
-        c->size[a]++;
-        c->care[a] += w->care_minutes[p];
-    }
-    c->within = keel_calloc(c->k > 0 ? c->k * c->k : 1, sizeof *c->within);
-    if (!c->within)
-        return false;
-    for (size_t a = 0; a < c->k; a++)
-        for (size_t b = 0; b < c->k; b++) {
-            bool inside = true;
-            for (size_t n = 0; n < nn && inside; n++)
-                inside = !keel_workload_eligible(w, c->first[a], n) ||
-                         keel_workload_eligible(w, c->first[b], n);
-            c->within[a * c->k + b] = inside;
-        }
-    return true;
-}
-
 keel_status keel_bound_words(const keel_roster *r, const keel_workload *w, double bound,
                                      keel_solution *sol)
 {
     size_t np = w->npatients, nn = w->nnurses;
     floor_found best = {.kind = NULL};
     long long work = 0, time = 0;
-    classes cl;
-    if (!classes_make(w, &cl)) {
-        classes_free(&cl);
+    keel_classes cl;
+    if (!keel_measure_classes(w, &cl)) {
+        keel_measure_classes_free(&cl);
         return KEEL_ERR_NOMEM;
     }
     for (size_t p = 0; p < np; p++)
@@ -300,7 +245,7 @@ keel_status keel_bound_words(const keel_roster *r, const keel_workload *w, doubl
         if (set_time < time) /* the whole unit is the average */
             consider(&best, (keel_ratio){set_work, set_time}, "group", q, set_work, set_time, size);
     }
-    classes_free(&cl);
+    keel_measure_classes_free(&cl);
     if (!best.kind)
         return KEEL_OK;
     bool *inside = keel_calloc(np ? np : 1, sizeof *inside);

@@ -24,9 +24,10 @@
 keel_status keel_heur_greedy_place(const keel_workload *w, int *nurse_of, bool *placed_all);
 
 /* heur_greedy.c: improving moves and swaps between pairs of nurses until
- * none lowers the heavier utilisation of the pair.  Keeps every rule.
+ * none lowers the heavier utilisation of the pair, or the deadline
+ * (keel_budget_now()'s clock; LLONG_MAX: none) passes.  Keeps every rule.
  * Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
-keel_status keel_heur_greedy_improve(const keel_workload *w, int *nurse_of);
+keel_status keel_heur_greedy_improve(const keel_workload *w, int *nurse_of, long long deadline_ms);
 
 /* heur_greedy.c: raises the lightest counted nurse by moves and swaps that
  * keep every nurse's care within hi[] and every rule.  Statuses: KEEL_OK,

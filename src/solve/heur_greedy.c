@@ -241,7 +241,7 @@ static bool try_swap(const keel_workload *w, int *nurse_of, long long *load, kee
     return false;
 }
 
-keel_status keel_heur_greedy_improve(const keel_workload *w, int *nurse_of)
+keel_status keel_heur_greedy_improve(const keel_workload *w, int *nurse_of, long long deadline_ms)
 {
     size_t nn = w->nnurses;
     long long *load = keel_calloc(nn, sizeof *load);
@@ -258,6 +258,10 @@ keel_status keel_heur_greedy_improve(const keel_workload *w, int *nurse_of)
         for (size_t a = 0; a < nn; a++) {
             if (!keel_workload_counted(w, a))
                 continue;
+            if (keel_budget_now() >= deadline_ms) {
+                improved = false; /* out of time: the plan so far keeps every rule */
+                break;
+            }
             for (size_t b = 0; b < nn; b++) {
                 if (a == b || !keel_workload_counted(w, b))
                     continue;

@@ -5,6 +5,10 @@
  */
 #include "measure.h"
 
+#include <stdlib.h>
+#include <string.h>
+
+#include "alloc.h"
 #include "rule.h"
 #include "tally.h"
 
@@ -148,4 +152,48 @@ void keel_measure_windows(const keel_workload *w, keel_ratio peak, keel_ratio li
         if (lo[n] < 0)
             lo[n] = 0;
     }
+}
+
+void keel_measure_classes_free(keel_classes *c)
+{
+    free(c->class_of);
+    free(c->first);
+    free(c->size);
+    free(c->care);
+    free(c->within);
+}
+
+bool keel_measure_classes(const keel_workload *w, keel_classes *c)
+{
+    size_t np = w->npatients, nn = w->nnurses;
+    *c = (keel_classes){0};
+    c->class_of = keel_calloc(np ? np : 1, sizeof *c->class_of);
+    c->first = keel_calloc(np ? np : 1, sizeof *c->first);
+    c->size = keel_calloc(np ? np : 1, sizeof *c->size);
+    c->care = keel_calloc(np ? np : 1, sizeof *c->care);
+    if (!c->class_of || !c->first || !c->size || !c->care)
+        return false;
+    for (size_t p = 0; p < np; p++) {
+        size_t a = 0;
+        while (a < c->k && memcmp(&w->eligible[p * nn], &w->eligible[c->first[a] * nn],
+                                  nn * sizeof *w->eligible) != 0)
+            a++;
+        if (a == c->k)
+            c->first[c->k++] = p;
+        c->class_of[p] = a;
+        c->size[a]++;
+        c->care[a] += w->care_minutes[p];
+    }
+    c->within = keel_calloc(c->k > 0 ? c->k * c->k : 1, sizeof *c->within);
+    if (!c->within)
+        return false;
+    for (size_t a = 0; a < c->k; a++)
+        for (size_t b = 0; b < c->k; b++) {
+            bool inside = true;
+            for (size_t n = 0; n < nn && inside; n++)
+                inside = !keel_workload_eligible(w, c->first[a], n) ||
+                         keel_workload_eligible(w, c->first[b], n);
+            c->within[a * c->k + b] = inside;
+        }
+    return true;
 }

@@ -109,6 +109,22 @@ static inline long long keel_measure_window_off(const keel_workload *w, const lo
     return c > hi[n] ? c - hi[n] : c < lo[n] ? lo[n] - c : 0;
 }
 
+/* Patients by eligibility: class_of[p], each class's first member, care
+ * and size; within[a * k + b] says class a's nurses are all class b's.  A
+ * unit has few classes (by needs, locks and avoid lists), so the group
+ * floors of the bound's words and of the sums answerer cost classes
+ * squared, not patients squared. */
+typedef struct keel_classes {
+    size_t k;
+    size_t *class_of, *first, *size;
+    long long *care;
+    bool *within;
+} keel_classes;
+
+/* Fills *c for w; false when memory ran out (free it either way). */
+bool keel_measure_classes(const keel_workload *w, keel_classes *c);
+void keel_measure_classes_free(keel_classes *c);
+
 /* The fixed-seed coin of the local searches (xorshift64): the next value
  * of *state, which must not be zero. */
 static inline unsigned long long keel_measure_coin(unsigned long long *state)

@@ -123,7 +123,7 @@ static keel_status second_start(const keel_workload *w, long long deadline_ms, i
     keel_question q = {.w = w, .lo = lo, .hi = hi, .nodes = KEEL_NODES_SECOND_START};
     keel_answer answer = KEEL_ANSWER_UNKNOWN;
     rc = keel_answer_fit(&q, deadline_ms, other, &answer, err);
-    if (!rc && answer == KEEL_ANSWER_YES && keel_heur_greedy_improve(w, other))
+    if (!rc && answer == KEEL_ANSWER_YES && keel_heur_greedy_improve(w, other, deadline_ms))
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
     if (!rc && answer == KEEL_ANSWER_YES &&
         keel_ratio_cmp(keel_measure_peak(w, other), keel_measure_peak(w, nurse_of)) < 0)
@@ -207,7 +207,7 @@ static keel_status balance(const keel_workload *w, const keel_method *method,
                            long long balance_deadline, long long deadline, keel_solution *s,
                            keel_error *err)
 {
-    keel_status rc = keel_heur_greedy_improve(w, s->nurse_of);
+    keel_status rc = keel_heur_greedy_improve(w, s->nurse_of, balance_deadline);
     if (rc)
         return keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
     if (method->second_start && w->joined_rules &&

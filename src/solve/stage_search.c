@@ -67,6 +67,15 @@ void keel_stage_search_free(keel_search *S)
     free(S);
 }
 
+/* True when nurses a and b may take the same patients. */
+static bool same_column(const keel_workload *w, size_t a, size_t b)
+{
+    for (size_t p = 0; p < w->npatients; p++)
+        if (keel_workload_eligible(w, p, a) != keel_workload_eligible(w, p, b))
+            return false;
+    return true;
+}
+
 keel_status keel_stage_search_sums(keel_search *S, size_t n, long long smax)
 {
     const keel_workload *w = S->w;
@@ -77,6 +86,28 @@ keel_status keel_stage_search_sums(keel_search *S, size_t n, long long smax)
     out->smax = smax;
     size_t size = (size_t)(smax + 1) + 1;
     out->reach = keel_calloc(size, sizeof *out->reach);
+    /* With the clock the limit holds per moment, not on the parts over the
+     * shift: any number of parts may add up. */
+    int most = w->clocked ? INT_MAX - 1 : w->max_patients[n];
+    unsigned long hash = 5381;
+    for (size_t p = 0; p < w->npatients; p++)
+        hash = hash * 33 + keel_workload_eligible(w, p, n);
+    out->hash = hash;
+    out->most = most;
+    if (!out->reach)
+        return KEEL_ERR_NOMEM;
+    /* A nurse alike (the same patients, the same limit) with sums at least
+     * as far: the sums up to smax are hers (each sum's fewest patients
+     * depends only on the smaller sums).  A unit has few kinds of nurse. */
+    for (size_t m = 0; m < n; m++) {
+        const keel_sums *o = &S->sums[m];
+        if (o->reach && o->hash == hash && o->most == most && o->smax >= smax &&
+            same_column(w, m, n)) {
+            if (smax >= 0)
+                memcpy(out->reach, o->reach, (size_t)(smax + 1) * sizeof *out->reach);
+            return KEEL_OK;
+        }
+    }
     int *fewest = keel_malloc(size * sizeof *fewest);
     if (!out->reach || !fewest) {
         free(fewest);
@@ -92,9 +123,6 @@ keel_status keel_stage_search_sums(keel_search *S, size_t n, long long smax)
             if (fewest[s - c] != INT_MAX && fewest[s - c] + 1 < fewest[s])
                 fewest[s] = fewest[s - c] + 1;
     }
-    /* With the clock the limit holds per moment, not on the parts over the
-     * shift: any number of parts may add up. */
-    int most = w->clocked ? INT_MAX - 1 : w->max_patients[n];
     for (long long s = 0; s <= smax; s++)
         out->reach[s] = fewest[s] <= most;
     free(fewest);
@@ -197,7 +225,7 @@ keel_status keel_stage_search_descend(keel_search *S, const keel_direction *d, s
             break;
         if (answer == KEEL_ANSWER_YES) {
             if (d->improve && S->min_kept == 0) {
-                rc = keel_heur_greedy_improve(w, S->trial);
+                rc = keel_heur_greedy_improve(w, S->trial, deadline_ms);
                 if (rc) {
                     keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
                     break;

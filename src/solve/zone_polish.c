@@ -8,6 +8,7 @@
  * the time left, and its plan kept when it is no worse.  In the time left
  * after that, the zones trade nurses (trade_zones).
  */
+#include <limits.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -64,7 +65,7 @@ static keel_status greedy_part(const keel_workload *w, const size_t *members, si
         return KEEL_ERR_NOMEM;
     keel_status rc = keel_heur_greedy_place(sub, plan, placed);
     if (!rc && *placed)
-        rc = keel_heur_greedy_improve(sub, plan);
+        rc = keel_heur_greedy_improve(sub, plan, LLONG_MAX); /* one zone: small */
     if (!rc && *placed)
         rc = keel_measure_validate(sub, plan, placed);
     *peak = keel_measure_peak(sub, plan);

@@ -266,7 +266,7 @@ static keel_status solve_zone(zones *Z, size_t z, size_t k, long long deadline_m
         return KEEL_OK;
     }
     rc = keel_answer_valid(sub, deadline_ms, t->plan, &answer, err);
-    if (!rc && answer == KEEL_ANSWER_YES && keel_heur_greedy_improve(sub, t->plan))
+    if (!rc && answer == KEEL_ANSWER_YES && keel_heur_greedy_improve(sub, t->plan, deadline_ms))
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
     if (!rc && answer == KEEL_ANSWER_YES) {
         keel_solution s = {.npatients = np, .nurse_of = t->plan};
