@@ -432,14 +432,30 @@ static keel_status write_html(const keel_rebalance_report *rep, FILE *out)
     keel_error_fini(&err);
     if (rc)
         return rc;
+    keel_verdict *verdict = NULL;
+    keel_error_init(&err);
+    rc = keel_verdict_compute(r, rb->workload, o->solution, o->solution->nurse_of, &verdict,
+                              &err);
+    keel_error_fini(&err);
+    if (rc) {
+        keel_course_free(course);
+        return rc;
+    }
+    if (verdict->text) {
+        fputs("<p class=\"verdict\">", out);
+        keel_report_out_html(out, verdict->text);
+        fputs("</p>\n", out);
+    }
     keel_report sheet = {.kind = KEEL_REPORT_ASSIGN,
                          .roster = r,
                          .workload = rb->workload,
                          .nurse_of = o->solution->nurse_of,
                          .metrics = rep->metrics[rep->chosen],
                          .solution = o->solution,
-                         .course = course};
+                         .course = course,
+                         .verdict = verdict};
     keel_report_html_sheet(&sheet, out);
+    keel_verdict_free(verdict);
     keel_course_free(course);
     keel_report_out_html_foot(out, r->policy.ratio_table);
     return KEEL_OK;
