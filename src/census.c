@@ -231,7 +231,7 @@ static row *read_rows(reader *rd, size_t *nrows)
         }
         rows = grown;
         rows[(*nrows)++] = r;
-        if (*nrows > KEEL_MAX_ITEMS) { /* the header and KEEL_MAX_ITEMS patients */
+        if (*nrows > KEEL_MAX_ITEMS + 1) { /* the header and KEEL_MAX_ITEMS patients */
             problem(rd, r.line, 1, NULL,
                     "more than %d patients; keel reads a census of at most %d rows "
                     "(docs/census-format.md)",

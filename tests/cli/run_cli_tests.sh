@@ -528,5 +528,19 @@ expect 5 "an audit as html" -- "$keel" audit "$examples/tutorial/history.yaml" -
 has "$work/out" "heaviest loads per nurse against chance" "the audit's chart"
 has "$work/out" "$caution" "the audit's page carries the caution"
 
+# The golden bad censuses: each its exact problems, exit 2.
+for csv in "$data/../data/bad-census"/*.csv; do
+    case_name=$(basename "$csv" .csv)
+    (cd "$data/../data/bad-census" && "$keel" import "$case_name.csv" --roster unit.yaml >/dev/null 2>"$work/err")
+    got=$?
+    grep -v "^Decision support only\|^Try 'keel" "$work/err" > "$work/err.problems"
+    if [ "$got" -eq 2 ] && cmp -s "$work/err.problems" "$data/../data/bad-census/$case_name.expected"; then
+        ok "bad census $case_name"
+    else
+        echo "# exit $got"; diff "$data/../data/bad-census/$case_name.expected" "$work/err.problems" | sed 's/^/# /' | head -10
+        not_ok "bad census $case_name"
+    fi
+done
+
 echo "1..$n"
 [ "$failed" -eq 0 ]
