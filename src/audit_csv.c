@@ -10,21 +10,11 @@
 #include <string.h>
 
 #include "audit_internal.h"
+#include "report_internal.h"
 
 static void field(FILE *out, const char *s, bool last)
 {
-    if (s && strpbrk(s, ",\"\r\n")) {
-        fputc('"', out);
-        for (; *s; s++) {
-            if (*s == '"')
-                fputc('"', out);
-            fputc(*s, out);
-        }
-        fputc('"', out);
-    } else if (s) {
-        fputs(s, out);
-    }
-    fputs(last ? "\r\n" : ",", out);
+    keel_report_out_csv(out, s, last);
 }
 
 static void number(FILE *out, double v, bool known)

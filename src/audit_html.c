@@ -26,20 +26,6 @@ static void shift_name(FILE *out, const keel_audit_shift *s)
     keel_report_out_html(out, s->label ? s->label : "shift");
 }
 
-/* Shifts by excess, largest first (unknown last), then input order. */
-static int by_excess(const void *x, const void *y)
-{
-    const keel_audit_shift *a = *(const keel_audit_shift *const *)x;
-    const keel_audit_shift *b = *(const keel_audit_shift *const *)y;
-    if (a->best_known != b->best_known)
-        return a->best_known ? -1 : 1;
-    double ea = a->best_known ? a->excess : a->max_utilisation;
-    double eb = b->best_known ? b->excess : b->max_utilisation;
-    if (ea != eb)
-        return ea > eb ? -1 : 1;
-    return a->index < b->index ? -1 : a->index > b->index;
-}
-
 static void write_chart(FILE *out, const keel_audit *a)
 {
     if (a->npeople == 0)
@@ -82,7 +68,7 @@ static void write_worst(FILE *out, const keel_audit *a)
         return;
     for (size_t i = 0; i < a->nshifts; i++)
         order[i] = &a->shifts[i];
-    qsort(order, a->nshifts, sizeof *order, by_excess);
+    qsort(order, a->nshifts, sizeof *order, keel_audit_text_by_excess);
     fputs("<h2>Shifts furthest from the best balance the rules allowed</h2>\n<table><tr>"
           "<th>Shift</th><th class=\"num\">Heaviest</th><th class=\"num\">Best possible</th>"
           "<th class=\"num\">Excess</th><th class=\"num\">Rules broken</th></tr>\n",

@@ -43,6 +43,9 @@ keel_status keel_audit_shift_compute(keel_roster *r, size_t index, size_t docume
 
 /* The writers. */
 keel_status keel_audit_text(const keel_audit *a, FILE *out);
+/* audit_text.c: qsort order of pointers to shifts: the largest excess over
+ * the best possible first (shifts without one last), then input order. */
+int keel_audit_text_by_excess(const void *x, const void *y);
 keel_status keel_audit_html(const keel_audit *a, FILE *out);
 keel_status keel_audit_json(const keel_audit *a, FILE *out);
 keel_status keel_audit_csv_shifts(const keel_audit *a, FILE *out);

@@ -29,8 +29,7 @@ static void shift_name(FILE *out, const keel_audit_shift *s)
     fputc(')', out);
 }
 
-/* Shifts by excess, largest first (unknown last), then input order. */
-static int by_excess(const void *x, const void *y)
+int keel_audit_text_by_excess(const void *x, const void *y)
 {
     const keel_audit_shift *a = *(const keel_audit_shift *const *)x;
     const keel_audit_shift *b = *(const keel_audit_shift *const *)y;
@@ -48,7 +47,7 @@ static void write_worst(FILE *out, const keel_audit *a, const keel_audit_shift *
 {
     for (size_t i = 0; i < a->nshifts; i++)
         order[i] = &a->shifts[i];
-    qsort(order, a->nshifts, sizeof *order, by_excess);
+    qsort(order, a->nshifts, sizeof *order, keel_audit_text_by_excess);
     fputs("\nShifts furthest from the best balance the rules allowed:\n", out);
     size_t shown = 0;
     for (size_t i = 0; i < a->nshifts && shown < WORST_SHIFTS; i++, shown++) {

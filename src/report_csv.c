@@ -14,22 +14,9 @@
 #include "report_internal.h"
 #include "workload_internal.h"
 
-/* One field, quoted when it must be (RFC 4180, section 2). */
 static void field(FILE *out, const char *s, bool last)
 {
-    s = s ? s : "";
-    if (strpbrk(s, ",\"\r\n")) {
-        fputc('"', out);
-        for (; *s; s++) {
-            if (*s == '"')
-                fputc('"', out);
-            fputc(*s, out);
-        }
-        fputc('"', out);
-    } else {
-        fputs(s, out);
-    }
-    fputs(last ? "\r\n" : ",", out);
+    keel_report_out_csv(out, s, last);
 }
 
 static void number(FILE *out, long v, bool last)

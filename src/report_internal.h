@@ -64,6 +64,11 @@ bool keel_report_plan_next_handoff(const keel_report *rep, size_t p, int *q, int
 /* Writes s as a double-quoted string with JSON escapes (valid YAML too). */
 void keel_report_out_quoted(FILE *out, const char *s);
 
+/* CSV (RFC 4180, section 2): one field, in double quotes with its quotes
+ * doubled when it holds a comma, a quote or a line end (NULL: empty),
+ * then "," or, for the last field of a record, CRLF. */
+void keel_report_out_csv(FILE *out, const char *s, bool last);
+
 /* HTML: s with &, <, > and " escaped (attributes are double-quoted). */
 void keel_report_out_html(FILE *out, const char *s);
 

@@ -65,6 +65,22 @@ void keel_report_out_wrapped(FILE *out, const char *indent, const char *text, si
     }
 }
 
+void keel_report_out_csv(FILE *out, const char *s, bool last)
+{
+    if (s && strpbrk(s, ",\"\r\n")) {
+        fputc('"', out);
+        for (; *s; s++) {
+            if (*s == '"')
+                fputc('"', out);
+            fputc(*s, out);
+        }
+        fputc('"', out);
+    } else if (s) {
+        fputs(s, out);
+    }
+    fputs(last ? "\r\n" : ",", out);
+}
+
 void keel_report_out_html(FILE *out, const char *s)
 {
     for (; s && *s; s++) {
