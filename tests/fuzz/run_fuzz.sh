@@ -33,7 +33,7 @@ for h in $harnesses; do
     echo "== $h: $seconds s"
     UBSAN_OPTIONS=halt_on_error=1:print_stacktrace=1 \
     ASAN_OPTIONS=detect_leaks=1 \
-        "build-fuzz/tests/fuzz/$h" "$corpus" -max_total_time="$seconds" -timeout=10 -rss_limit_mb=2048 \
+        "build-fuzz/tests/fuzz/$h" "$corpus" -max_total_time="$seconds" -timeout=30 -rss_limit_mb=2048 \
         -max_len=65536 -artifact_prefix="build-fuzz/findings/$h-" -print_final_stats=1 \
         2>&1 | grep -E "^(#[0-9]+ *DONE|stat::number_of_executed_units|stat::peak_rss_mb|==[0-9]+==ERROR|SUMMARY|artifact_prefix|Test unit written)" || true
     if ls build-fuzz/findings/"$h"-* >/dev/null 2>&1; then
