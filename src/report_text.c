@@ -415,23 +415,45 @@ static void write_squares_stage(FILE *out, const keel_stage *st)
     fputc('\n', out);
 }
 
+/* Stage 5 (fairness forward): the sum of weight x utilisation. */
+static void write_history_stage(FILE *out, const keel_stage *st)
+{
+    fprintf(out, "  history %.4f (weight by past load x utilisation, summed)  ", st->value);
+    if (st->status == KEEL_SOLVE_OPTIMAL)
+        fputs("proven best possible", out);
+    else
+        fprintf(out, "not proven: the best possible is at least %.4f", st->bound);
+    fputc('\n', out);
+}
+
+/* What the stages after the balance may spend the tolerance on. */
+static const char *spent_on(const keel_solution *s)
+{
+    bool keep = s->continuity.applies, near = s->proximity.applies;
+    if (s->nstages > 0 && strcmp(s->stages[s->nstages - 1].name, "history") == 0)
+        return keep && near ? "continuity, proximity and fairness forward"
+               : keep       ? "continuity and fairness forward"
+               : near       ? "proximity and fairness forward"
+                            : "fairness forward";
+    return keep && near ? "continuity and proximity" : keep ? "continuity" : "proximity";
+}
+
 static void write_proof(FILE *out, const keel_solution *s, const keel_metrics *m)
 {
     fprintf(out, "Status: %s (method %s, %.2f s)\n", keel_solve_status_name(s->status), s->method,
             s->seconds);
-    const char *spent_on = s->continuity.applies && s->proximity.applies ? "continuity and proximity"
-                           : s->continuity.applies                       ? "continuity"
-                                                                         : "proximity";
     for (size_t i = 0; i < s->nstages; i++) {
         const keel_stage *st = &s->stages[i];
         if (strcmp(st->name, "peak") == 0)
-            write_stage(out, st, m->max_utilisation, spent_on, "heaviest",
+            write_stage(out, st, m->max_utilisation, spent_on(s), "heaviest",
                         "the best possible is at least");
         else if (strcmp(st->name, "lift") == 0)
-            write_stage(out, st, m->min_utilisation, spent_on, "lightest",
+            write_stage(out, st, m->min_utilisation, spent_on(s), "lightest",
                         "the best possible is at most");
         else if (strcmp(st->name, "squares") == 0)
             write_squares_stage(out, st);
+        else if (strcmp(st->name, "history") == 0)
+            write_history_stage(out, st);
         else if (st->name[0] == 'c')
             write_count_stage(out, st, "continuity", "kept", "the best possible is at most");
         else
@@ -444,12 +466,8 @@ static void write_proof(FILE *out, const keel_solution *s, const keel_metrics *m
         char *line = keel_asprintf(
             "This plan spends some of the balance tolerance (%.1f points) on %s: heaviest "
             "%.1f %% and lightest %.1f %%, against %.1f %% and %.1f %% %s.",
-            100.0 * s->continuity.tolerance,
-            s->continuity.applies && s->proximity.applies ? "continuity and proximity"
-            : s->continuity.applies                       ? "continuity"
-                                                          : "proximity",
-            100.0 * m->max_utilisation, 100.0 * m->min_utilisation, 100.0 * s->stages[0].value,
-            100.0 * s->stages[1].value,
+            100.0 * s->continuity.tolerance, spent_on(s), 100.0 * m->max_utilisation,
+            100.0 * m->min_utilisation, 100.0 * s->stages[0].value, 100.0 * s->stages[1].value,
             s->stages[0].status == KEEL_SOLVE_OPTIMAL && s->stages[1].status == KEEL_SOLVE_OPTIMAL
                 ? "at best"
                 : "in the most even plan found");

@@ -86,6 +86,8 @@ typedef struct keel_rows {
     bool soft;          /* the best-effort model: a row may be broken at the rule's severity */
     double census;      /* the patients of the workload: the big number of soft rows */
     double zone_cost;   /* the objective's price on each zone binary (proximity), else 0 */
+    int near_row;       /* > 0: proximity's binaries go into this row at their price (held,
+                           not minimised) instead of the objective */
     /* UNIT rules: others(R, nurse) writes that nurse's columns that cover
      * R's moment to R->ocol and returns how many; each counts patients as
      * R's columns do.  model is what it reads. */
@@ -273,7 +275,8 @@ keel_status keel_rule_finding_add(const keel_rule_plan *c, const char *rule, con
 /* rule_tie.c: a binary x that is 1 whenever some column of R with trait(w, part) == v
  * counts a patient: the row sum of those columns <= big x, and, when x has
  * a cost, each column alone <= min(most, big) x (the same integer points, a
- * far tighter relaxation).  Returns x, or 0 when no column has the value. */
+ * far tighter relaxation).  With R->near_row the cost goes into that row
+ * instead of the objective.  Returns x, or 0 when no column has the value. */
 int keelRuleTie(const keel_rows *R, int (*trait)(const keel_workload *w, size_t part), int v,
                 double big, double cost);
 

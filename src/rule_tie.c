@@ -21,7 +21,9 @@ int keelRuleTie(const keel_rows *R, int (*trait)(const keel_workload *w, size_t 
     }
     if (!row)
         return 0;
-    int x = keel_lp_indicator(R->lp, row, big, cost);
+    int x = keel_lp_indicator(R->lp, row, big, R->near_row > 0 ? 0.0 : cost);
+    if (R->near_row > 0 && cost > 0)
+        keel_lp_put(R->lp, R->near_row, x, cost);
     for (size_t i = 0; i < R->ncols && cost > 0; i++) {
         if (trait(R->w, R->part[i]) != v)
             continue;

@@ -68,7 +68,7 @@ static bool keeps_rules(const keel_workload *w, const int *a)
 
 /* ---- Exhaustive enumeration of the four stages ------------------------------- */
 
-enum pass { PASS_BALANCE, PASS_KEEP, PASS_NEAR };
+enum pass { PASS_BALANCE, PASS_KEEP, PASS_NEAR, PASS_HISTORY };
 
 typedef struct best {
     const keel_workload *w;
@@ -80,6 +80,9 @@ typedef struct best {
     long long kept;     /* best kept (KEEP); required kept (NEAR) */
     long long zones, rooms;
     bool near_found;
+    const double *weight; /* HISTORY: the weights; zones, rooms and kept are held */
+    double history;       /* HISTORY: the least weighted sum found */
+    bool history_found;
 } best;
 
 static bool inside(const best *b)
@@ -123,6 +126,16 @@ static void leaf(best *b)
     }
     long long zones, rooms;
     keel_measure_spread(w, b->a, &zones, &rooms);
+    if (b->pass == PASS_HISTORY) {
+        long long price = (long long)w->npatients + 1;
+        double h = keel_measure_history(w, b->a, b->weight);
+        if (kept >= b->kept && price * zones + rooms <= price * b->zones + b->rooms &&
+            (!b->history_found || h < b->history)) {
+            b->history = h;
+            b->history_found = true;
+        }
+        return;
+    }
     if (kept >= b->kept &&
         (!b->near_found || zones < b->zones || (zones == b->zones && rooms < b->rooms))) {
         b->zones = zones;
@@ -317,6 +330,72 @@ static void test_every_stage_matches_exhaustive_enumeration(void **state)
     /* The generator must exercise both outcomes. */
     assert_true(feasible > 300);
     assert_true(infeasible > 30);
+}
+
+/* Stage 5 (fairness forward) against every assignment: with random
+ * weights, stages 1-4 reach what the enumeration says, and the history
+ * value is the least among the plans that keep every rule, the windows of
+ * the tolerance, stage 3's count and stage 4's (census + 1) zones + rooms. */
+static void test_history_stage_matches_exhaustive_enumeration(void **state)
+{
+    (void)state;
+    /* Source: exhaustive enumeration of every assignment, as above. */
+    uint64_t seed = 1979;
+    int checked = 0;
+    for (int round = 0; round < 300; round++) {
+        tu_case *c = random_rules_case(&seed);
+        keel_workload *w = &c->w;
+        size_t nn = w->nnurses;
+        double *weight = calloc(nn, sizeof *weight);
+        for (size_t n = 0; n < nn; n++)
+            weight[n] = tu_range(&seed, 30, 110) / 100.0;
+        best b = {.w = w, .pass = PASS_BALANCE, .weight = weight};
+        b.a = calloc(w->npatients + 1, sizeof *b.a);
+        b.lo = calloc(nn, sizeof *b.lo);
+        b.hi = calloc(nn, sizeof *b.hi);
+        visit(&b, 0);
+        if (b.found) {
+            windows(&b, w->tolerance);
+            b.pass = PASS_KEEP;
+            visit(&b, 0);
+            b.pass = PASS_NEAR;
+            visit(&b, 0);
+            b.pass = PASS_HISTORY;
+            visit(&b, 0);
+            assert_true(b.history_found);
+            keel_solution *s = NULL;
+            keel_error err;
+            keel_error_init(&err);
+            keel_solve_options opt = {.method = "ilp", .time_limit_ms = 60000, .history = weight};
+            assert_int_equal(keel_solve(&c->roster, w, &opt, &s, &err), KEEL_OK);
+            keel_error_fini(&err);
+            assert_int_equal(s->status, KEEL_SOLVE_OPTIMAL);
+            assert_true(keeps_rules(w, s->nurse_of));
+            assert_true(stage(s, "peak")->value == keel_ratio_value(b.peak));
+            assert_true(stage(s, "lift")->value == keel_ratio_value(b.lift));
+            if (w->ncontinuity > 0)
+                assert_true(stage(s, "continuity")->value == (double)b.kept);
+            assert_true(stage(s, "proximity")->value == (double)b.zones);
+            assert_true(fabs(stage(s, "history")->value - b.history) < 1e-9);
+            /* The final plan holds everything the stages before proved. */
+            long long zones, rooms, price = (long long)w->npatients + 1;
+            keel_measure_spread(w, s->nurse_of, &zones, &rooms);
+            assert_true(price * zones + rooms <= price * b.zones + b.rooms);
+            assert_true(keel_measure_kept(w, s->nurse_of) >= b.kept);
+            memcpy(b.a, s->nurse_of, w->npatients * sizeof *b.a);
+            assert_true(inside(&b));
+            assert_true(fabs(keel_measure_history(w, s->nurse_of, weight) - b.history) < 1e-9);
+            checked++;
+            keel_solution_free(s);
+        }
+        free(weight);
+        free(b.a);
+        free(b.lo);
+        free(b.hi);
+        tu_case_free(c);
+    }
+    print_message("# %d of 300 small rosters checked for stage 5\n", checked);
+    assert_true(checked > 90);
 }
 
 /* Rosters that split by zone (max_zones 1, every patient in a zone, the
@@ -1067,6 +1146,7 @@ int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_every_stage_matches_exhaustive_enumeration),
+        cmocka_unit_test(test_history_stage_matches_exhaustive_enumeration),
         cmocka_unit_test(test_zone_by_zone_matches_exhaustive_enumeration),
         cmocka_unit_test(test_squares_match_exhaustive_enumeration),
         cmocka_unit_test(test_the_bound_is_explained_by_its_reason),

@@ -4,6 +4,7 @@
  * worst case for LPT, and exhaustive enumeration of every assignment on
  * small random rosters.
  */
+#include <math.h>
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
@@ -114,11 +115,39 @@ typedef struct enumeration {
     bool found;
     keel_ratio best_peak;
     keel_ratio best_lift;
+    /* Fairness forward: with weight, the least history value among the
+     * plans whose counted nurses keep the windows lo..hi of care. */
+    const double *weight;
+    const long long *lo, *hi;
+    bool in_windows;
+    double best_history;
 } enumeration;
+
+/* A complete plan, for stage 5: inside the windows, its weighted sum. */
+static void visit_history(enumeration *e)
+{
+    const keel_workload *w = e->w;
+    double sum = 0;
+    for (size_t n = 0; n < w->nnurses; n++) {
+        if (!keel_workload_counted(w, n))
+            continue;
+        long long care = e->load[n] - w->duty_minutes[n];
+        if (care < e->lo[n] || care > e->hi[n])
+            return;
+        sum += e->weight[n] * (double)e->load[n] / w->capacity_minutes[n];
+    }
+    if (!e->in_windows || sum < e->best_history)
+        e->best_history = sum;
+    e->in_windows = true;
+}
 
 static void visit(enumeration *e, size_t p)
 {
     const keel_workload *w = e->w;
+    if (p == w->npatients && e->weight) {
+        visit_history(e);
+        return;
+    }
     if (p == w->npatients) {
         keel_ratio peak = {0, 1}, lift = {0, 1};
         bool any = false;
@@ -396,6 +425,67 @@ static void test_unknown_method_is_a_usage_error(void **state)
     tu_case_free(c);
 }
 
+/* Stage 5 (fairness forward) against every plan: stages 1-2 as without a
+ * history, and the history value the least among the plans inside the
+ * windows of the balance tolerance around the enumerated U* and L*. */
+static void test_history_stage_matches_exhaustive_enumeration(void **state)
+{
+    (void)state;
+    uint64_t seed = 4711;
+    int checked = 0;
+    for (int round = 0; round < 400; round++) {
+        tu_case *c = random_small_case(&seed);
+        size_t nn = c->w.nnurses;
+        double *weight = calloc(nn, sizeof *weight);
+        for (size_t n = 0; n < nn; n++)
+            weight[n] = tu_range(&seed, 30, 110) / 100.0;
+        enumeration e = {.w = &c->w};
+        e.count = calloc(nn, sizeof *e.count);
+        e.load = calloc(nn, sizeof *e.load);
+        for (size_t n = 0; n < nn; n++)
+            e.load[n] = c->w.duty_minutes[n];
+        visit(&e, 0);
+        if (!e.found) {
+            free(weight);
+            free(e.count);
+            free(e.load);
+            tu_case_free(c);
+            continue;
+        }
+        long long *lo = calloc(nn, sizeof *lo), *hi = calloc(nn, sizeof *hi);
+        keel_measure_windows(&c->w, e.best_peak, e.best_lift, c->w.tolerance, lo, hi);
+        e.weight = weight;
+        e.lo = lo;
+        e.hi = hi;
+        visit(&e, 0);
+        assert_true(e.in_windows); /* the balance optimum itself is inside */
+        keel_solve_options opt = {.method = "ilp", .time_limit_ms = 20000, .history = weight};
+        keel_solution *s = NULL;
+        keel_error err;
+        keel_error_init(&err);
+        assert_int_equal(keel_solve(&c->roster, &c->w, &opt, &s, &err), KEEL_OK);
+        keel_error_fini(&err);
+        assert_int_equal(s->status, KEEL_SOLVE_OPTIMAL);
+        assert_int_equal(s->nstages, 3);
+        assert_true(s->stages[0].value == keel_ratio_value(e.best_peak));
+        assert_true(s->stages[1].value == keel_ratio_value(e.best_lift));
+        assert_string_equal(s->stages[2].name, "history");
+        assert_true(fabs(s->stages[2].value - e.best_history) < 1e-9);
+        assert_true(fabs(keel_measure_history(&c->w, s->nurse_of, weight) - e.best_history) < 1e-9);
+        assert_fits(&c->w, s->nurse_of, lo, hi);
+        checked++;
+        keel_solution_free(s);
+        free(lo);
+        free(hi);
+        free(weight);
+        free(e.count);
+        free(e.load);
+        tu_case_free(c);
+    }
+    print_message("# %d of 400 small rosters checked for stage 5\n", checked);
+    assert_true(checked >= 200);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -403,6 +493,7 @@ int main(void)
         cmocka_unit_test(test_ilp_reaches_grahams_optimum),
         cmocka_unit_test(test_greedy_is_never_worse_than_the_lpt_bound),
         cmocka_unit_test(test_ilp_matches_exhaustive_enumeration_on_small_rosters),
+        cmocka_unit_test(test_history_stage_matches_exhaustive_enumeration),
         cmocka_unit_test(test_glpk_and_the_dedicated_search_agree_on_every_question),
         cmocka_unit_test(test_diagnosis_names_a_skill_nobody_has),
         cmocka_unit_test(test_diagnosis_counts_the_places_a_skill_group_lacks),

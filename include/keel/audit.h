@@ -210,6 +210,15 @@ KEEL_API keel_status keel_audit_summarise(keel_audit_shift *shifts, size_t n,
 
 KEEL_API void keel_audit_free(keel_audit *audit);
 
+/* Fairness forward (keel assign --history): weight[i], for each nurse i of
+ * roster, is her mean utilisation over the counted shifts of the audit
+ * (nurses matched by id); a nurse the audit does not count gets the unit's
+ * mean, the mean utilisation over every counted nurse and shift of the
+ * audit (1 when it counts none).  weight has roster->nnurses entries;
+ * audit and roster are borrowed for the call. */
+KEEL_API void keel_audit_history_weights(const keel_audit *audit, const keel_roster *roster,
+                                         double *weight);
+
 /* What every audit report says beside the caution (KEEL_CAUTION). */
 #define KEEL_AUDIT_NOTE                                                                            \
     "These figures describe the assignments each nurse was given, not how she worked; they "       \

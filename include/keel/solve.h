@@ -58,30 +58,37 @@ typedef struct keel_solve_options {
     int solver_memory_mb; /* the most memory one GLPK solve may use, in MiB; <= 0: the
                              default, 2048.  Reaching it fails the solve with
                              KEEL_ERR_SOLVER, saying so */
+    const double *history; /* [nnurses of the roster]: each nurse's weight for stage 5,
+                              fairness forward (keel_audit_history_weights()); NULL: no
+                              stage 5.  Borrowed for the call */
 } keel_solve_options;
 
 /* What one stage achieved.  For "peak" and "lift" value and bound are
  * utilisations: for "peak" the bound is a proven lower limit on U, for
  * "lift" a proven upper limit on L.  For "continuity" they count patients
  * (bound: a proven upper limit on those kept), for "proximity" zones (bound:
- * a proven lower limit on the zones of all nurses together).
+ * a proven lower limit on the zones of all nurses together), for "history"
+ * the sum over counted nurses of weight x utilisation (bound: a proven lower
+ * limit).
  * gap = |value - bound| / max(|value|, |bound|): 0 when proven, the usual
  * relative MIP gap. */
 /* Every stage a solve may run, in the order they run.  A solution lists
  * the stages that ran, in this order: "peak" and "lift" under policy.balance
  * peak or "squares" under squares, then "continuity" and "proximity" when
- * they apply. */
+ * they apply, then "history" with keel_solve_options.history. */
 typedef enum keel_stage_kind {
     KEEL_STAGE_PEAK,
     KEEL_STAGE_LIFT,
     KEEL_STAGE_SQUARES,
     KEEL_STAGE_CONTINUITY,
     KEEL_STAGE_PROXIMITY,
+    KEEL_STAGE_HISTORY,
     KEEL_STAGE_KINDS /* the number of kinds: no solve runs more stages */
 } keel_stage_kind;
 
 typedef struct keel_stage {
-    const char *name;         /* "peak", "lift", "squares", "continuity" or "proximity" */
+    const char *name;         /* "peak", "lift", "squares", "continuity", "proximity" or
+                                 "history" */
     keel_solve_status status; /* OPTIMAL, TIME_LIMIT or HEURISTIC */
     double value;
     double bound;

@@ -14,7 +14,7 @@ _keel_options() {
     case $1 in
     assign)
         echo "-f --format -m --method -t --time-limit -e --explain --best-effort -o --output"
-        echo "--names --deidentify -h --help"
+        echo "--history --names --deidentify -h --help"
         ;;
     check) echo "-f --format -t --time-limit --names -o --output -h --help" ;;
     rebalance)

@@ -42,7 +42,7 @@ typedef struct options {
     const char *shift; /* new, import: --shift */
     const char *base;  /* import: --roster, the roster the census joins */
     const char *map;   /* import: --map field=Header,... */
-    const char **files; /* audit: every file named (owned by main) */
+    const char **files; /* audit: every file named; assign: --history's (owned by main) */
     size_t nfiles;
     bool no_best;       /* audit: --no-best */
     bool merge;         /* audit: --merge, the files are partial results */
@@ -74,6 +74,7 @@ static const command commands[] = {
      "usage: keel assign ROSTER [--format text|yaml|json|html|csv|csv-nurses]\n"
      "                   [--method ilp|greedy] [--time-limit SECONDS] [--explain]\n"
      "                   [--best-effort] [--names | --deidentify] [-o FILE]\n"
+     "                   [--history FILE...]\n"
      "\n"
      "Divides the roster's patients among its nurses so that the heaviest utilisation\n"
      "(load / capacity) is as low as possible, then lifts the lightest one, and reports\n"
@@ -91,6 +92,10 @@ static const command commands[] = {
      "      --best-effort      when no valid assignment exists, also show the plan that\n"
      "                         breaks the fewest rules (by severity), labelled as such;\n"
      "                         the exit code stays 3\n"
+     "      --history FILE...  past shifts (rosters with nurse: filled, as keel audit\n"
+     "                         reads them; every file up to the next option): within\n"
+     "                         the balance tolerance, heavier loads go to the nurses\n"
+     "                         whose past utilisation was lower (docs/model.md)\n"
      "      --names            put patients' names on the html sheet (a sheet that\n"
      "                         stays private; the default shows id, bed and room)\n"
      "      --deidentify       leave patients' names out of every format (the yaml\n"
@@ -505,6 +510,15 @@ static int parse_args(const command *cmd, int argc, char **argv, options *opt, b
             opt->explain = true;
             continue;
         }
+        if (cmd->run == run_assign && strcmp(arg, "--history") == 0) {
+            /* Every file up to the next option. */
+            size_t before = opt->nfiles;
+            while (i + 1 < argc && !(argv[i + 1][0] == '-' && argv[i + 1][1] != '\0'))
+                opt->files[opt->nfiles++] = argv[++i];
+            if (opt->nfiles == before)
+                return usage_error(cmd, "%s needs a file or more", arg);
+            continue;
+        }
         if (cmd->run == run_assign && strcmp(arg, "--best-effort") == 0) {
             opt->best_effort = true;
             continue;
@@ -679,9 +693,13 @@ static int solver_memory(void)
     return v && *v && !*end && mb > 0 && mb <= 1048576 ? (int)mb : 0;
 }
 
+static keel_status history_weights(const options *opt, const keel_roster *r, double **weight,
+                                   keel_error *err);
+
 static int run_assign(const options *opt)
 {
     state s = {0};
+    double *weight = NULL;
     keel_error_init(&s.err);
     keel_solve_options so = {.method = opt->method,
                              .time_limit_ms = opt->time_limit_ms,
@@ -689,13 +707,20 @@ static int run_assign(const options *opt)
                              .solver_memory_mb = solver_memory()};
     if (cli_output_clobbers(opt->output, opt->roster))
         return EXIT_USAGE;
+    for (size_t f = 0; f < opt->nfiles; f++)
+        if (cli_output_clobbers(opt->output, opt->files[f]))
+            return EXIT_USAGE;
     keel_status rc = load(&s, opt);
     if (!rc && !has_patients("assign", opt, s.roster)) {
         state_fini(&s);
         return EXIT_INPUT;
     }
+    if (!rc && opt->nfiles > 0)
+        rc = history_weights(opt, s.roster, &weight, &s.err);
+    so.history = weight;
     if (!rc)
         rc = keel_solve(s.roster, s.workload, &so, &s.solution, &s.err);
+    free(weight);
     if (!rc)
         rc = keel_metrics_compute(s.workload, s.solution->nurse_of, &s.metrics, &s.err);
     if (!rc && opt->explain && s.solution->status != KEEL_SOLVE_INFEASIBLE)
@@ -1107,6 +1132,33 @@ static keel_status audit_files(const options *opt, const keel_audit_options *ao,
     if (!rc && in.n)
         rc = audit_batch(&in, ao, shifts, n, err);
     audit_input_fini(&in);
+    return rc;
+}
+
+/* keel assign --history: audits the history files (no best-possible solve)
+ * and gives each nurse of r her weight for fairness forward.  *weight is
+ * the caller's to free. */
+static keel_status history_weights(const options *opt, const keel_roster *r, double **weight,
+                                   keel_error *err)
+{
+    keel_audit_options ao = {.no_best = true, .jobs = 1};
+    keel_audit_shift *shifts = NULL;
+    keel_audit *audit = NULL;
+    size_t n = 0;
+    keel_status rc = audit_files(opt, &ao, &shifts, &n, err);
+    if (!rc) {
+        rc = keel_audit_summarise(shifts, n, &ao, &audit, err);
+        shifts = NULL; /* the audit owns them now */
+    }
+    for (size_t i = 0; shifts && i < n; i++)
+        keel_audit_shift_fini(&shifts[i]);
+    free(shifts);
+    *weight = rc ? NULL : calloc(r->nnurses ? r->nnurses : 1, sizeof **weight);
+    if (!rc && !*weight)
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    if (!rc)
+        keel_audit_history_weights(audit, r, *weight);
+    keel_audit_free(audit);
     return rc;
 }
 

@@ -49,6 +49,8 @@ typedef struct keel_question {
     int *calls;          /* when not NULL, counts the integer programmes GLPK solved */
     long long min_kept;  /* a rebalance's hand-off budget: at least this many patients kept
                             with their previous (there: current) nurse; 0: no budget */
+    const double *weight; /* HISTORY: [nnurses] each nurse's weight; else NULL */
+    long long most_near;  /* HISTORY: (census + 1) zones + rooms at most; < 0: not held */
 } keel_question;
 
 /* An answerer: answers q by deadline_ms (on keel_budget_now()).  On YES,
@@ -93,6 +95,8 @@ typedef enum keel_goal {
     KEEL_GOAL_KEEP,    /* the most patients kept with their previous nurse */
     KEEL_GOAL_NEAR,    /* the fewest zones per nurse in all, then the fewest rooms */
     KEEL_GOAL_SQUARES, /* the least sum of load^2 / capacity over counted nurses */
+    KEEL_GOAL_HISTORY, /* the least sum of weight x load / capacity over counted nurses,
+                          proximity held at most most_near */
 } keel_goal;
 
 typedef struct keel_goal_result {
@@ -102,6 +106,7 @@ typedef struct keel_goal_result {
     long long bound;      /* proven limit on value: upper for KEEP, lower for NEAR */
     bool proven;          /* GLPK proved the answer optimal for the goal */
     double squares_bound; /* SQUARES: proven lower limit on the sum of load^2 / capacity */
+    double history_bound; /* HISTORY: proven lower limit on the weighted sum */
 } keel_goal_result;
 
 /* Solves q (its windows, start and min_kept patients kept with their

@@ -22,7 +22,10 @@
  * Continuity maximises the patients with their previous nurse;
  * proximity minimises (census + 1) sum z + sum g over zone and room
  * binaries, which puts zones before rooms (without the clock the zones
- * rule's own binaries carry the zone price).  Counted nurses that are
+ * rule's own binaries carry the zone price).  Fairness forward (HISTORY)
+ * minimises sum_n weight(n) care(c) y[c, n] / capacity(n) over counted
+ * nurses (plus the constant of their duty) and holds proximity's sum, at
+ * its prices, in one row instead.  Counted nurses that are
  * interchangeable (same capacity, duty, rules and window) are asked, in the
  * feasibility and squares questions, for loads in non-increasing order,
  * which removes their symmetric copies.
@@ -56,6 +59,8 @@ typedef struct model {
     int *seg_first;      /* [nnurses]: SQUARES: first column of n's unit segments, or 0 */
     int *seg_count;      /* [nnurses]: how many */
     double squares_zero; /* SQUARES: sum of duty^2 / capacity, the objective's constant */
+    double history_zero; /* HISTORY: sum of weight x duty / capacity, the objective's constant */
+    int near_row;        /* HISTORY with proximity held: its row, else 0 */
     /* The columns of one nurse, for the rules' rows (keel_rows). */
     int *rcol;
     size_t *rpart;
@@ -70,12 +75,19 @@ static bool alone(const keel_workload *w, size_t p)
     return w->first_part[pt + 1] - w->first_part[pt] == 1;
 }
 
+/* True when the model counts proximity: the NEAR goal minimises it, the
+ * HISTORY goal holds it. */
+static bool near_counted(const model *m)
+{
+    return m->goal == KEEL_GOAL_NEAR || (m->goal == KEEL_GOAL_HISTORY && m->q->most_near >= 0);
+}
+
 static bool same_patients(const model *m, size_t a, size_t b)
 {
     const keel_workload *w = m->w;
     keel_goal goal = m->goal;
     return w->care_minutes[a] == w->care_minutes[b] && keelRuleOrder(w, a, b) == 0 &&
-           (goal != KEEL_GOAL_NEAR || (w->zone[a] == w->zone[b] && w->room[a] == w->room[b])) &&
+           (!near_counted(m) || (w->zone[a] == w->zone[b] && w->room[a] == w->room[b])) &&
            ((goal == KEEL_GOAL_FIT && m->min_kept <= 0) || w->previous[a] == w->previous[b]) &&
            (!w->clocked ||
             (alone(w, a) && alone(w, b) && w->first_moment[a] == w->first_moment[b] &&
@@ -160,7 +172,7 @@ static keel_rows nurse_rows(model *m, size_t n, int mo)
     size_t k = columns(m, n, mo, m->rcol, m->rpart, m->rmost);
     /* Proximity without the clock: the zones rule's binaries carry the zone
      * price. */
-    bool near = m->goal == KEEL_GOAL_NEAR && !w->clocked;
+    bool near = near_counted(m) && !w->clocked;
     return (keel_rows){.lp = m->lp,
                        .w = w,
                        .n = n,
@@ -171,6 +183,7 @@ static keel_rows nurse_rows(model *m, size_t n, int mo)
                        .most = m->rmost,
                        .census = (double)w->npatients,
                        .zone_cost = near ? (double)w->npatients + 1 : 0.0,
+                       .near_row = m->near_row,
                        .others = other_columns,
                        .ocol = m->ocol,
                        .model = m};
@@ -250,11 +263,18 @@ static void build(model *m)
             if ((size_t)w->max_patients[n] < most)
                 most = (size_t)w->max_patients[n];
             double cost = m->goal == KEEL_GOAL_KEEP && w->previous[p] == (int)n ? 1.0 : 0.0;
+            if (m->goal == KEEL_GOAL_HISTORY && keel_workload_counted(w, n))
+                cost = q->weight[n] * (double)w->care_minutes[p] / w->capacity_minutes[n];
             int j = keel_lp_col(lp, KEEL_LP_INTEGER, 0.0, (double)most, cost);
             m->col[c * nn + n] = j;
             m->ny = j;
         }
     }
+    if (m->goal == KEEL_GOAL_HISTORY && q->most_near >= 0)
+        m->near_row = keel_lp_row(lp, KEEL_LP_UP, 0.0, (double)q->most_near);
+    for (size_t n = 0; m->goal == KEEL_GOAL_HISTORY && n < nn; n++)
+        if (keel_workload_counted(w, n))
+            m->history_zero += q->weight[n] * (double)w->duty_minutes[n] / w->capacity_minutes[n];
     for (size_t c = 0; c < m->nclasses; c++) {
         double size = (double)m->class_size[c];
         int row = keel_lp_row(lp, KEEL_LP_FX, size, size);
@@ -274,13 +294,13 @@ static void build(model *m)
             keel_rows R = nurse_rows(m, n, w->clocked ? (int)mo : -1);
             keelRuleRows(&R, KEEL_SCOPE_MOMENT);
             keelRuleRows(&R, KEEL_SCOPE_UNIT);
-            if (m->goal == KEEL_GOAL_NEAR && !w->clocked)
+            if (near_counted(m) && !w->clocked)
                 add_proximity(&R, false, (double)w->max_patients[n]);
         }
         keel_rows all = nurse_rows(m, n, -1);
         keelRuleRows(&all, KEEL_SCOPE_SHIFT);
         keelRuleRows(&all, KEEL_SCOPE_CLOCK);
-        if (m->goal == KEEL_GOAL_NEAR && w->clocked)
+        if (near_counted(m) && w->clocked)
             add_proximity(&all, true, (double)w->npatients);
     }
     for (size_t n = 0; m->goal == KEEL_GOAL_SQUARES && n < nn; n++)
@@ -413,6 +433,7 @@ static keel_status solve_model(model *m, long time_limit_ms, int *nurse_of, keel
     res->bound = m->goal == KEEL_GOAL_KEEP ? (long long)floor(bound + 1e-6)
                                            : (long long)ceil(bound - 1e-6);
     res->squares_bound = m->squares_zero + bound;
+    res->history_bound = m->history_zero + bound;
     if (m->goal == KEEL_GOAL_KEEP)
         res->value = keel_measure_kept(w, nurse_of);
     if (m->goal == KEEL_GOAL_NEAR) {

@@ -45,6 +45,10 @@ const keel_share keel_budget_shares[KEEL_NSHARES] = {
                               "of the continuity stage"},
     [KEEL_SHARE_NEAR_LOCAL] = {"near.local", 1, 5, 0, 0,
                                "proximity's local search: a fifth of the stage; GLPK the rest"},
+    [KEEL_SHARE_NEAR] = {"near", 1, 2, 0, 0,
+                         "with --history, continuity and proximity get half of the time after "
+                         "the balance and fairness forward the rest: each is one GLPK model "
+                         "from a good start"},
     [KEEL_SHARE_ZONE_TRY] = {"zone.try", 0, 0, 5, 0,
                              "by zone, stage 1 of one zone with k nurses: an equal share of the "
                              "tries left, at most a fifth (most are proven at once)"},

@@ -31,6 +31,7 @@ typedef enum keel_share_id {
     KEEL_SHARE_KEEP,        /* stage continuity, of the time after the balance */
     KEEL_SHARE_KEEP_ZERO,   /* continuity at zero tolerance, of stage continuity */
     KEEL_SHARE_NEAR_LOCAL,  /* stage proximity: its local search first */
+    KEEL_SHARE_NEAR,        /* stages 3-4 of the time after the balance when stage 5 follows */
     KEEL_SHARE_ZONE_TRY,    /* by zone: one zone with k nurses, stage 1 */
     KEEL_SHARE_ZONE_LIFT,   /* by zone: one zone with k nurses, its lift */
     KEEL_SHARE_ZONE_EACH,   /* zone polish: each zone in turn, equally */

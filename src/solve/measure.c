@@ -71,6 +71,20 @@ double keel_measure_squares(const keel_workload *w, const int *nurse_of)
     return sum;
 }
 
+double keel_measure_history(const keel_workload *w, const int *nurse_of, const double *weight)
+{
+    double sum = 0;
+    for (size_t n = 0; n < w->nnurses; n++) {
+        if (!keel_workload_counted(w, n))
+            continue;
+        long long load = w->duty_minutes[n];
+        for (size_t p = 0; p < w->npatients; p++)
+            load += nurse_of[p] == (int)n ? w->care_minutes[p] : 0;
+        sum += weight[n] * (double)load / w->capacity_minutes[n];
+    }
+    return sum;
+}
+
 keel_status keel_measure_validate(const keel_workload *w, const int *nurse_of, bool *valid)
 {
     keel_tally t;

@@ -70,6 +70,10 @@ keel_ratio keel_measure_lift(const keel_workload *w, const int *nurse_of);
  * patient placed, every nurse at her duty, which is a floor). */
 double keel_measure_squares(const keel_workload *w, const int *nurse_of);
 
+/* Stage 6's sum over the counted nurses of weight[n] x load(n) / capacity(n)
+ * under nurse_of. */
+double keel_measure_history(const keel_workload *w, const int *nurse_of, const double *weight);
+
 /* Sets *valid when nurse_of keeps every hard rule of w (every patient
  * placed), by the tally.  Statuses: KEEL_OK, KEEL_ERR_NOMEM. */
 keel_status keel_measure_validate(const keel_workload *w, const int *nurse_of, bool *valid);

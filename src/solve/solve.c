@@ -161,9 +161,9 @@ static keel_status incumbent(const keel_workload *w, long long deadline_ms, int 
 /* Stages 3 (continuity) and 4 (proximity) after the balance stages, within
  * the balance tolerance: continuity gets its share of the time (all of it
  * when proximity does not follow), proximity the rest and keeps
- * continuity's count. */
-static keel_status follow(const keel_workload *w, bool exact, long long deadline_ms,
-                          keel_solution *sol, keel_error *err)
+ * continuity's count.  deadline_ms is theirs: stage 5 follows them. */
+static keel_status follow_near(const keel_workload *w, bool exact, long long deadline_ms,
+                               keel_solution *sol, keel_error *err)
 {
     bool keep = w->ncontinuity > 0, near = w->nzones > 0 || w->nrooms > 0;
     if (!keep && !near)
@@ -199,6 +199,33 @@ static keel_status follow(const keel_workload *w, bool exact, long long deadline
         st->status = now_kept == (long long)st->bound ? KEEL_SOLVE_OPTIMAL : st->status;
     }
     return KEEL_OK;
+}
+
+/* Stages 3 and 4 (follow_near()), then with history weights stage 5,
+ * fairness forward, holding the windows of the balance stages, the count
+ * kept and the proximity reached; stages 3-4 get their share of the time
+ * first when it follows. */
+static keel_status follow(const keel_workload *w, const double *history, bool exact,
+                          long long deadline_ms, keel_solution *sol, keel_error *err)
+{
+    if (!history)
+        return follow_near(w, exact, deadline_ms, sol, err);
+    sol->continuity.tolerance = (double)w->tolerance / KEEL_TOLERANCE_SCALE;
+    keel_ratio peak = keel_measure_peak(w, sol->nurse_of),
+               lift = keel_measure_lift(w, sol->nurse_of);
+    long long near_deadline = keel_budget_until(KEEL_SHARE_NEAR, keel_budget_now(), deadline_ms, 0);
+    keel_status rc = follow_near(w, exact, near_deadline, sol, err);
+    if (rc)
+        return rc;
+    long long kept = w->ncontinuity > 0 ? keel_measure_kept(w, sol->nurse_of) : 0;
+    long long most_near = -1;
+    if (w->nzones > 0 || w->nrooms > 0) {
+        long long zones, rooms;
+        keel_measure_spread(w, sol->nurse_of, &zones, &rooms);
+        most_near = ((long long)w->npatients + 1) * zones + rooms;
+    }
+    return keel_stage_history(w, history, exact, peak, lift, kept, most_near, deadline_ms,
+                              sol->nurse_of, &sol->stages[sol->nstages++], err);
 }
 
 /* Stages 1 and 2 from a valid incumbent in s->nurse_of: a second starting
@@ -260,7 +287,8 @@ keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
     if (!feasible)
         goto infeasible;
     /* The later stages, when they apply, get the last part of the time. */
-    bool follows = w->ncontinuity > 0 || w->nzones > 0 || w->nrooms > 0;
+    const double *history = options ? options->history : NULL;
+    bool follows = w->ncontinuity > 0 || w->nzones > 0 || w->nrooms > 0 || history;
     long long balance_deadline =
         follows ? keel_budget_until(KEEL_SHARE_BALANCE, started, deadline, 0) : deadline;
     bool by_zone = false;
@@ -295,7 +323,7 @@ keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }
-    rc = follow(w, method->exact, deadline, s, err);
+    rc = follow(w, history, method->exact, deadline, s, err);
     if (rc)
         goto out;
     s->status = overall_status(s);

@@ -82,4 +82,14 @@ keel_status keel_stage_near(const keel_workload *w, bool exact, keel_ratio peak,
                             long long min_kept, long long deadline_ms, int *nurse_of,
                             keel_stage *st, keel_solution *sol, keel_error *err);
 
+/* stage_history.c: stage 5, fairness forward: the least sum over counted
+ * nurses of weight[n] x load(n) / capacity(n), within the balance
+ * tolerance, keeping min_kept patients with their previous nurse and
+ * (most_near >= 0) (census + 1) zones + rooms at most most_near, from
+ * nurse_of; exact: GLPK.  Fills st.  Statuses: as keel_stage_peak(). */
+keel_status keel_stage_history(const keel_workload *w, const double *weight, bool exact,
+                               keel_ratio peak, keel_ratio lift, long long min_kept,
+                               long long most_near, long long deadline_ms, int *nurse_of,
+                               keel_stage *st, keel_error *err);
+
 #endif
