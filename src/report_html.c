@@ -284,17 +284,7 @@ static void write_breaks(FILE *out, const keel_report *rep)
     if (!c || c->nbreaks == 0)
         return;
     fputs("<h2>Break cover, in time order</h2>\n<ul class=\"cols\">\n", out);
-    /* Time order: the breaks are listed by nurse; pick the next each time. */
-    int last = -1;
-    size_t last_i = 0, done = 0;
-    while (done < c->nbreaks) {
-        size_t next = c->nbreaks;
-        for (size_t i = 0; i < c->nbreaks; i++) {
-            const keel_break_cover *b = &c->breaks[i];
-            bool after = b->at > last || (b->at == last && i > last_i);
-            if (after && (next == c->nbreaks || b->at < c->breaks[next].at))
-                next = i;
-        }
+    for (size_t next = c->nbreaks; keel_report_plan_next_break(c, &next);) {
         const keel_break_cover *b = &c->breaks[next];
         char from[KEEL_TIME_SIZE], to[KEEL_TIME_SIZE];
         time_of(rep, b->at, from);
@@ -313,9 +303,6 @@ static void write_breaks(FILE *out, const keel_report *rep)
         if (b->rule)
             fprintf(out, " <b>FLAG %s</b>", b->rule);
         fputs("</li>\n", out);
-        last = b->at;
-        last_i = next;
-        done++;
     }
     fputs("</ul>\n", out);
 }

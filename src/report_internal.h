@@ -56,6 +56,12 @@ long keel_report_plan_care_held(const keel_report *rep, size_t p, size_t n);
 /* Next planned hand-off of patient p after part *q (start with *q at the
  * patient's first part): true and fills *at (minutes after the shift's
  * start), *from and *to, moving *q on; false when there are no more. */
+/* The break after the one at index *i (start with *i == c->nbreaks) in
+ * time order, ties in the course's own order: true and *i set to it;
+ * false after the last.  The course lists breaks by nurse; a unit has few,
+ * so each step is a scan. */
+bool keel_report_plan_next_break(const keel_course *c, size_t *i);
+
 bool keel_report_plan_next_handoff(const keel_report *rep, size_t p, int *q, int *at, int *from,
                                    int *to);
 

@@ -55,3 +55,18 @@ bool keel_report_plan_next_handoff(const keel_report *rep, size_t p, int *q, int
     }
     return false;
 }
+
+bool keel_report_plan_next_break(const keel_course *c, size_t *i)
+{
+    bool first = *i >= c->nbreaks;
+    int last = first ? 0 : c->breaks[*i].at;
+    size_t next = c->nbreaks;
+    for (size_t k = 0; k < c->nbreaks; k++) {
+        int at = c->breaks[k].at;
+        bool after = first || at > last || (at == last && k > *i);
+        if (after && (next == c->nbreaks || at < c->breaks[next].at))
+            next = k;
+    }
+    *i = next;
+    return next < c->nbreaks;
+}

@@ -267,23 +267,10 @@ static void write_course(FILE *out, const keel_report *rep)
     const keel_roster *r = rep->roster;
     if (c->nbreaks > 0) {
         fputs("Break cover, in time order\n", out);
-        /* Breaks by start time, then as the course lists them (few: a
-         * selection each time). */
         size_t flagged = 0;
-        long last_at = -1;
-        size_t last_i = 0;
-        for (size_t k = 0; k < c->nbreaks; k++) {
-            size_t best = c->nbreaks;
-            for (size_t i = 0; i < c->nbreaks; i++) {
-                long at = c->breaks[i].at;
-                bool after = at > last_at || (at == last_at && i > last_i);
-                if (after && (best == c->nbreaks || at < c->breaks[best].at))
-                    best = i;
-            }
-            write_one_cover(out, rep, &c->breaks[best]);
-            flagged += c->breaks[best].rule != NULL;
-            last_at = c->breaks[best].at;
-            last_i = best;
+        for (size_t i = c->nbreaks; keel_report_plan_next_break(c, &i);) {
+            write_one_cover(out, rep, &c->breaks[i]);
+            flagged += c->breaks[i].rule != NULL;
         }
         fprintf(out,
                 "  Relief nurses the break plan needs at one time: %d (on the roster: %d); "
