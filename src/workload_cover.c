@@ -86,15 +86,15 @@ static int free_relief(const keel_roster *r, const keel_workload *w, const keel_
     return -1;
 }
 
-static int limit_of(const keel_workload *w, const keel_cover *c)
+int keel_workload_cover_limit(const keel_workload *w, size_t nurse, int cover, bool relief)
 {
     if (w->law_limit != KEEL_ABSENT)
         return w->law_limit;
-    if (c->cover < 0)
-        return w->max_patients[c->nurse];
-    int limit = w->max_patients[c->cover];
-    if (c->relief && w->max_patients[c->nurse] > limit)
-        limit = w->max_patients[c->nurse];
+    if (cover < 0)
+        return w->max_patients[nurse];
+    int limit = w->max_patients[cover];
+    if (relief && w->max_patients[nurse] > limit)
+        limit = w->max_patients[nurse];
     return limit;
 }
 
@@ -152,7 +152,7 @@ keel_status keel_workload_cover_plan(const keel_roster *r, keel_workload *w)
     bool planned = plans_cover(r);
     for (size_t k = 0; k < nb; k++) {
         keel_cover *c = &w->covers[k];
-        c->limit = limit_of(w, c);
+        c->limit = keel_workload_cover_limit(w, c->nurse, c->cover, c->relief);
         int mine = w->max_patients[c->nurse];
         int theirs = c->cover >= 0 ? w->max_patients[c->cover] : 0;
         c->kept = planned && mine > 0 &&

@@ -148,6 +148,11 @@ keel_status keel_workload_cover_plan(const keel_roster *r, keel_workload *w);
  * on no break of her own that overlaps it. */
 bool keel_workload_cover_free(const keel_roster *r, const keel_workload *w, size_t i, int a, int b);
 
+/* The limit during a break of nurse `nurse` covered by `cover` (-1:
+ * nobody; relief: a relief nurse): the table's per-nurse maximum, else the
+ * cover's patient limit, a relief nurse's at least the nurse's own. */
+int keel_workload_cover_limit(const keel_workload *w, size_t nurse, int cover, bool relief);
+
 /* Adds the start and end of every kept cover to times[*n..] (room for
  * 2 * w->ncovers), for the moments of the clock. */
 void keel_workload_cover_times(const keel_workload *w, int *times, size_t *n);
