@@ -115,7 +115,8 @@ static bool needs_relief(const keel_roster *r, const keel_workload *w, const int
         if (i == n || !r->nurses[i].covers || strcmp(r->nurses[i].covers, r->nurses[n].id) != 0 ||
             !keel_workload_cover_free(r, w, i, a, b))
             continue;
-        return most_during(w, held, n, (int)i, a, b) > keel_workload_cover_limit(w, n, (int)i, false);
+        return most_during(w, held, n, (int)i, a, b) >
+               keel_workload_cover_limit(w, n, (int)i, false);
     }
     return true;
 }
