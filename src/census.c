@@ -50,6 +50,7 @@ static const char *const field_names[NFIELDS] = {
 typedef struct cell {
     char *text;
     int line, column;
+    bool too_long; /* cut at KEEL_MAX_TEXT bytes; said once the header is known */
 } cell;
 
 typedef struct row {
@@ -142,10 +143,9 @@ static bool read_cell(reader *rd, cell *out, bool *end_of_row)
             break;
         }
         if (n == KEEL_MAX_TEXT) {
-            problem(rd, out->line, out->column, NULL,
-                    "a field longer than %d bytes, the most keel reads (docs/census-format.md)",
-                    KEEL_MAX_TEXT);
-            n++; /* said once; the rest of the field is skipped */
+            out->too_long = true;
+            rd->bad = true;
+            n++; /* the rest of the field is skipped */
         }
         if (n > KEEL_MAX_TEXT) {
             advance(rd);
@@ -260,6 +260,23 @@ static char *trim(char *s)
     while (n > 0 && (s[n - 1] == ' ' || s[n - 1] == '\t'))
         s[--n] = '\0';
     return s;
+}
+
+/* Says each field cut at KEEL_MAX_TEXT bytes, under its column's header. */
+static void say_long_fields(reader *rd, row *rows, size_t nrows)
+{
+    for (size_t r = 0; r < nrows; r++)
+        for (size_t i = 0; i < rows[r].ncells; i++) {
+            const cell *c = &rows[r].cells[i];
+            if (!c->too_long)
+                continue;
+            const char *header = r > 0 && i < rows[0].ncells && !rows[0].cells[i].too_long
+                                     ? trim(rows[0].cells[i].text)
+                                     : NULL;
+            problem(rd, c->line, c->column, header && *header ? header : NULL,
+                    "a field longer than %d bytes, the most keel reads (docs/census-format.md)",
+                    KEEL_MAX_TEXT);
+        }
 }
 
 static bool same_ignoring_case(const char *a, const char *b)
@@ -501,6 +518,7 @@ keel_status keel_census_parse_for(const char *name, const char *text, size_t len
     if (rc)
         goto done;
     rows = read_rows(&rd, &nrows);
+    say_long_fields(&rd, rows, nrows);
     if (rd.nomem || (rd.bad && !rows)) /* out of memory, or past a limit (said) */
         goto done;
     if (nrows == 0) {
