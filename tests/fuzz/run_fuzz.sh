@@ -26,7 +26,7 @@ for h in $harnesses; do
     corpus=build-fuzz/corpus/$h
     mkdir -p "$corpus"
     case $h in
-    fuzz_census) cp tests/cli/*.csv examples/tutorial/*.csv "$corpus"/ 2>/dev/null || true ;;
+    fuzz_census) cp tests/cli/*.csv tests/data/bad-census/*.csv examples/tutorial/*.csv "$corpus"/ 2>/dev/null || true ;;
     *) cp tests/data/bad/*.yaml tests/data/*.yaml tests/cli/*.yaml examples/*.yaml \
            examples/tutorial/*.yaml "$corpus"/ 2>/dev/null || true ;;
     esac
