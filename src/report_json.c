@@ -244,7 +244,24 @@ static void write_imbalance(FILE *out, const keel_metrics *m)
             m->cv, m->jain, m->gini, m->ncounted);
 }
 
-static void write_stages(FILE *out, const keel_solution *s)
+/* Stage "ranks": each rank held, heaviest first. */
+static void write_ranks(FILE *out, const keel_roster *r, const keel_solution *s)
+{
+    fputs("  \"ranks\": [", out);
+    for (size_t k = 0; k < s->nranks; k++) {
+        const keel_rank *rk = &s->ranks[k];
+        fprintf(out, "%s{\"rank\": %zu, \"nurse\": ", k ? ",\n    " : "\n    ", k + 1);
+        if (rk->nurse >= 0)
+            keel_report_out_quoted(out, r->nurses[rk->nurse].id);
+        else
+            fputs("null", out);
+        fprintf(out, ", \"utilisation\": %.12g, \"pinned\": %s, \"status\": \"%s\"}",
+                rk->utilisation, rk->pinned ? "true" : "false", keel_solve_status_name(rk->status));
+    }
+    fputs("\n  ],\n", out);
+}
+
+static void write_stages(FILE *out, const keel_roster *r, const keel_solution *s)
 {
     if (s->nstages > 0 && strcmp(s->stages[0].name, "peak") == 0) {
         fprintf(out, "  \"bound\": {\"max_utilisation\": %.12g, \"gap\": %.12g", s->stages[0].bound,
@@ -266,6 +283,8 @@ static void write_stages(FILE *out, const keel_solution *s)
                 st->bound, st->gap, st->solver_calls, st->seconds);
     }
     fputs(s->nstages ? "\n  ],\n" : "],\n", out);
+    if (s->nranks > 0)
+        write_ranks(out, r, s);
     if (s->continuity.applies) {
         fprintf(
             out,
@@ -398,7 +417,7 @@ keel_status keel_report_json(const keel_report *rep, FILE *out)
                     s->stages[0].bound);
     }
     if (s && s->status != KEEL_SOLVE_INFEASIBLE)
-        write_stages(out, s);
+        write_stages(out, r, s);
     if (s)
         write_findings(out, r, "diagnosis", &s->diagnoses);
     if (keel_report_plan_uses_nas(r)) {

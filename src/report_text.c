@@ -413,6 +413,15 @@ static void write_history_stage(FILE *out, const keel_stage *st)
     fputc('\n', out);
 }
 
+/* The stage of s with this name, or NULL. */
+static const keel_stage *stage_named(const keel_solution *s, const char *name)
+{
+    for (size_t i = 0; i < s->nstages; i++)
+        if (strcmp(s->stages[i].name, name) == 0)
+            return &s->stages[i];
+    return NULL;
+}
+
 /* What the stages after the balance may spend the tolerance on. */
 static const char *spent_on(const keel_solution *s)
 {
@@ -425,7 +434,34 @@ static const char *spent_on(const keel_solution *s)
     return keep && near ? "continuity and proximity" : keep ? "continuity" : "proximity";
 }
 
-static void write_proof(FILE *out, const keel_solution *s, const keel_metrics *m)
+/* Stage "ranks": the nurses pinned at their level (at the peak first), then
+ * the heaviest of the others with its proof. */
+static void write_ranks_stage(FILE *out, const keel_roster *r, const keel_solution *s,
+                              const keel_stage *st, const keel_metrics *m)
+{
+    double plan = 0; /* this plan's heaviest of the nurses not pinned */
+    for (size_t n = 0; n < m->nnurses; n++) {
+        bool pinned = false;
+        for (size_t k = 0; k < s->nranks; k++) {
+            const keel_rank *rk = &s->ranks[k];
+            pinned = pinned || (rk->pinned && rk->nurse == (int)n);
+        }
+        if (m->nurses[n].counted && !pinned && m->nurses[n].utilisation > plan)
+            plan = m->nurses[n].utilisation;
+    }
+    for (size_t k = 0; k < s->nranks; k++) {
+        const keel_rank *rk = &s->ranks[k];
+        if (rk->pinned)
+            fprintf(out, "  pinned    %s at %.1f %%: no valid plan %shas her lower\n",
+                    r->nurses[rk->nurse].id, 100.0 * rk->utilisation,
+                    rk->utilisation == s->stages[0].value ? "" : "that keeps the nurses above ");
+        else
+            write_stage(out, st, plan, spent_on(s), "the rest", "the best possible is at least");
+    }
+}
+
+static void write_proof(FILE *out, const keel_roster *r, const keel_solution *s,
+                        const keel_metrics *m)
 {
     fprintf(out, "Status: %s (method %s, %.2f s)\n", keel_solve_status_name(s->status), s->method,
             s->seconds);
@@ -434,6 +470,8 @@ static void write_proof(FILE *out, const keel_solution *s, const keel_metrics *m
         if (strcmp(st->name, "peak") == 0)
             write_stage(out, st, m->max_utilisation, spent_on(s), "heaviest",
                         "the best possible is at least");
+        else if (strcmp(st->name, "ranks") == 0)
+            write_ranks_stage(out, r, s, st, m);
         else if (strcmp(st->name, "lift") == 0)
             write_stage(out, st, m->min_utilisation, spent_on(s), "lightest",
                         "the best possible is at most");
@@ -447,15 +485,17 @@ static void write_proof(FILE *out, const keel_solution *s, const keel_metrics *m
             write_count_stage(out, st, "proximity", "zones", "the best possible is at least");
     }
     /* Stages 3 and 4 may have spent some of the balance tolerance. */
-    if (s->nstages > 2 && strcmp(s->stages[0].name, "peak") == 0 && s->stages[0].value > 0 &&
+    const keel_stage *lift = stage_named(s, "lift");
+    if (lift && s->nstages > 2 && strcmp(s->stages[0].name, "peak") == 0 &&
+        s->stages[0].value > 0 &&
         (m->max_utilisation > s->stages[0].value + 5e-10 ||
-         m->min_utilisation < s->stages[1].value - 5e-10)) {
+         m->min_utilisation < lift->value - 5e-10)) {
         char *line = keel_asprintf(
             "This plan spends some of the balance tolerance (%.1f points) on %s: heaviest "
             "%.1f %% and lightest %.1f %%, against %.1f %% and %.1f %% %s.",
             100.0 * s->continuity.tolerance, spent_on(s), 100.0 * m->max_utilisation,
-            100.0 * m->min_utilisation, 100.0 * s->stages[0].value, 100.0 * s->stages[1].value,
-            s->stages[0].status == KEEL_SOLVE_OPTIMAL && s->stages[1].status == KEEL_SOLVE_OPTIMAL
+            100.0 * m->min_utilisation, 100.0 * s->stages[0].value, 100.0 * lift->value,
+            s->stages[0].status == KEEL_SOLVE_OPTIMAL && lift->status == KEEL_SOLVE_OPTIMAL
                 ? "at best"
                 : "in the most even plan found");
         if (line)
@@ -639,7 +679,7 @@ keel_status keel_report_text(const keel_report *rep, FILE *out)
             write_course(out, rep);
     }
     if (rep->kind == KEEL_REPORT_ASSIGN && s && s->status != KEEL_SOLVE_INFEASIBLE)
-        write_proof(out, s, rep->metrics);
+        write_proof(out, rep->roster, s, rep->metrics);
     if (rep->kind == KEEL_REPORT_CHECK) {
         if (rep->nurse_of)
             write_findings(out, t, "Rules the plan breaks", rep->violations);

@@ -21,6 +21,7 @@
 
 #include "keel/keel.h"
 #include "workload_internal.h"
+#include "tu_ranks.h"
 
 #define MAXN 3
 #define MAXP 5
@@ -131,8 +132,7 @@ typedef struct search {
     int pick[MAXP];
     bool found;
     long long bu_num, bu_den; /* best heaviest utilisation */
-    long long lift_num, lift_den;
-    bool lift_pass;
+    tu_plans plans;           /* every valid plan's loads, for the ranks and the lift */
 } search;
 
 static bool may_take(const spec *s, int p, int n)
@@ -224,7 +224,7 @@ static void visit(search *S, int p)
     }
     if (!keeps_rules(S))
         return;
-    long long hi_num = -1, hi_den = 1, lo_num = -1, lo_den = 1;
+    long long hi_num = -1, hi_den = 1, loads[TU_RANKS_MAX];
     for (int n = 0; n < s->nn; n++) {
         long long load = 0;
         for (int q = 0; q < s->np; q++)
@@ -232,19 +232,13 @@ static void visit(search *S, int p)
         long long cap = capacity(s, n);
         if (hi_num < 0 || load * hi_den > hi_num * cap)
             hi_num = load, hi_den = cap;
-        if (lo_num < 0 || load * lo_den < lo_num * cap)
-            lo_num = load, lo_den = cap;
+        loads[n] = load;
     }
-    if (!S->lift_pass) {
-        if (!S->found || hi_num * S->bu_den < S->bu_num * hi_den)
-            S->bu_num = hi_num, S->bu_den = hi_den;
-        S->found = true;
-        return;
-    }
-    if (hi_num * S->bu_den > S->bu_num * hi_den)
-        return;
-    if (S->lift_num < 0 || lo_num * S->lift_den > S->lift_num * lo_den)
-        S->lift_num = lo_num, S->lift_den = lo_den;
+    if (!S->found || hi_num * S->bu_den < S->bu_num * hi_den)
+        S->bu_num = hi_num, S->bu_den = hi_den;
+    S->found = true;
+    S->plans.nnurses = (size_t)s->nn;
+    tu_plans_add(&S->plans, loads);
 }
 
 /* ---- keel against the enumeration ------------------------------------------- */
@@ -269,7 +263,7 @@ static chain chain_of(const keel_workload *w, const int *nurse_of, int p)
 /* What the rosters covered, so that a change that stops exercising the
  * clock shows: rosters without any plan, with planned hand-offs, and with
  * arrivals or departures inside the shift. */
-static int ninfeasible, nhandoffs, nchurn;
+static int ninfeasible, nhandoffs, nchurn, nranked;
 
 static void check_one(void)
 {
@@ -293,7 +287,6 @@ static void check_one(void)
 
     search *S = calloc(1, sizeof *S);
     S->s = &s;
-    S->lift_num = -1;
     for (int p = 0; p < s.np; p++)
         chains_from(S, p, (chain){0}, s.arrive[p]);
     visit(S, 0);
@@ -303,19 +296,26 @@ static void check_one(void)
             print_message("%s\n", text);
         assert_int_equal(sol->status, KEEL_SOLVE_INFEASIBLE);
     } else {
-        S->lift_pass = true;
-        visit(S, 0);
         if (sol->status != KEEL_SOLVE_OPTIMAL)
             print_message("%s\nstatus %s\n", text, keel_solve_status_name(sol->status));
         assert_int_equal(sol->status, KEEL_SOLVE_OPTIMAL);
+        /* The ranks and the lift over the enumerated plans (tu_ranks.h). */
+        int cap[TU_RANKS_MAX];
+        bool counted[TU_RANKS_MAX];
+        for (int n = 0; n < s.nn; n++) {
+            cap[n] = capacity(&s, n);
+            counted[n] = keel_workload_counted(w, (size_t)n);
+        }
+        tu_ranks ranks;
+        tu_ranks_compute(&S->plans, cap, counted, &ranks);
+        nranked += ranks.nranks > 0;
         double u = (double)S->bu_num / (double)S->bu_den;
-        double l = (double)S->lift_num / (double)S->lift_den;
-        if (sol->stages[0].value > u + 1e-9 || sol->stages[0].value < u - 1e-9 ||
-            sol->stages[1].value > l + 1e-9 || sol->stages[1].value < l - 1e-9)
-            print_message("%s\nkeel U %.9f L %.9f, enumeration U %.9f L %.9f\n", text,
-                          sol->stages[0].value, sol->stages[1].value, u, l);
+        bool same = tu_ranks_match(&ranks, sol);
+        if (sol->stages[0].value > u + 1e-9 || sol->stages[0].value < u - 1e-9 || !same)
+            print_message("%s\nkeel U %.9f, enumeration U %.9f L %.9f, %zu ranks\n", text,
+                          sol->stages[0].value, u, keel_ratio_value(ranks.lift), ranks.nranks);
         assert_true(sol->stages[0].value <= u + 1e-9 && sol->stages[0].value >= u - 1e-9);
-        assert_true(sol->stages[1].value <= l + 1e-9 && sol->stages[1].value >= l - 1e-9);
+        assert_true(same);
         /* keel's plan is one of the enumerated chains and keeps every rule;
          * the loads keel reports follow the documented arithmetic. */
         keel_metrics *m = NULL;
@@ -344,6 +344,7 @@ static void check_one(void)
         }
         keel_metrics_free(m);
     }
+    free(S->plans.load);
     free(S);
     keel_solution_free(sol);
     keel_workload_free(w);
@@ -363,10 +364,10 @@ static void test_the_clock_matches_exhaustive_enumeration(void **state)
     for (int i = 0; i < rosters; i++)
         check_one();
     print_message("# %d rosters: %d without a valid plan, %d with parts cut at a nurse's end, "
-                  "%d with more than one moment\n",
-                  rosters, ninfeasible, nhandoffs, nchurn);
+                  "%d with more than one moment, %d with ranks\n",
+                  rosters, ninfeasible, nhandoffs, nchurn, nranked);
     assert_true(ninfeasible > 0 && ninfeasible < rosters / 2);
-    assert_true(nhandoffs > rosters / 4 && nchurn > rosters / 2);
+    assert_true(nhandoffs > rosters / 4 && nchurn > rosters / 2 && nranked > rosters / 10);
 }
 
 int main(void)

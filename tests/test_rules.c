@@ -26,6 +26,7 @@
 #include "lp.h"
 #include "rule.h"
 #include "testutil.h"
+#include "tu_ranks.h"
 #include "workload_internal.h"
 
 /* ---- The rules by their definitions ----------------------------------------- */
@@ -83,6 +84,8 @@ typedef struct best {
     const double *weight; /* HISTORY: the weights; zones, rooms and kept are held */
     double history;       /* HISTORY: the least weighted sum found */
     bool history_found;
+    tu_plans plans; /* BALANCE: every valid plan's loads, for the ranks */
+    tu_ranks ranks; /* the ranks over them (ranks_of()); the windows' levels */
 } best;
 
 static bool inside(const best *b)
@@ -107,6 +110,13 @@ static void leaf(best *b)
     if (!keeps_rules(w, b->a))
         return;
     if (b->pass == PASS_BALANCE) {
+        long long load[TU_RANKS_MAX];
+        for (size_t n = 0; n < w->nnurses; n++)
+            load[n] = w->duty_minutes[n];
+        for (size_t p = 0; p < w->npatients; p++)
+            load[b->a[p]] += w->care_minutes[p];
+        b->plans.nnurses = w->nnurses;
+        tu_plans_add(&b->plans, load);
         keel_ratio peak = keel_measure_peak(w, b->a), lift = keel_measure_lift(w, b->a);
         int by_peak = b->found ? keel_ratio_cmp(peak, b->peak) : -1;
         if (by_peak < 0 || (by_peak == 0 && keel_ratio_cmp(lift, b->lift) > 0)) {
@@ -162,13 +172,26 @@ static long long fdiv(long long x, long long d)
     return x >= 0 ? x / d : -((-x + d - 1) / d);
 }
 
+/* The ranks over the plans PASS_BALANCE found (tu_ranks.h); the lift
+ * becomes the one with the ranks held. */
+static void ranks_of(best *b)
+{
+    bool counted[TU_RANKS_MAX];
+    for (size_t n = 0; n < b->w->nnurses; n++)
+        counted[n] = keel_workload_counted(b->w, n);
+    tu_ranks_compute(&b->plans, b->w->capacity_minutes, counted, &b->ranks);
+    b->lift = b->ranks.lift;
+}
+
+/* The windows of stages 3-5 around each nurse's level and the lift. */
 static void windows(best *b, long long t)
 {
     const keel_workload *w = b->w;
     const long long S = KEEL_TOLERANCE_SCALE;
     for (size_t n = 0; n < w->nnurses; n++) {
         long long cap = w->capacity_minutes[n], duty = w->duty_minutes[n];
-        b->hi[n] = fdiv((b->peak.num * S + t * b->peak.den) * cap, b->peak.den * S) - duty;
+        keel_ratio level = b->ranks.level[n];
+        b->hi[n] = fdiv((level.num * S + t * level.den) * cap, level.den * S) - duty;
         b->lo[n] = -fdiv(-((b->lift.num * S - t * b->lift.den) * cap), b->lift.den * S) - duty;
     }
 }
@@ -257,7 +280,7 @@ static void test_every_stage_matches_exhaustive_enumeration(void **state)
     /* Source: exhaustive enumeration of every assignment (all nurses for each
      * patient), each checked against the rules' definitions above. */
     uint64_t seed = 1969;
-    int feasible = 0, infeasible = 0;
+    int feasible = 0, infeasible = 0, ranked = 0;
     for (int round = 0; round < 1000; round++) {
         tu_case *c = random_rules_case(&seed);
         keel_workload *w = &c->w;
@@ -282,7 +305,9 @@ static void test_every_stage_matches_exhaustive_enumeration(void **state)
             assert_int_equal(s->diagnoses.n, 0);
             assert_true(keeps_rules(w, s->nurse_of));
             assert_true(stage(s, "peak")->value == keel_ratio_value(b.peak));
-            assert_true(stage(s, "lift")->value == keel_ratio_value(b.lift));
+            ranks_of(&b);
+            assert_true(tu_ranks_match(&b.ranks, s));
+            ranked += s->nranks > 0;
             windows(&b, w->tolerance);
             b.a[0] = 0;
             b.pass = PASS_KEEP;
@@ -325,9 +350,12 @@ static void test_every_stage_matches_exhaustive_enumeration(void **state)
         free(b.a);
         free(b.lo);
         free(b.hi);
+        free(b.plans.load);
         tu_case_free(c);
     }
-    /* The generator must exercise both outcomes. */
+    /* The generator must exercise both outcomes, and the ranks. */
+    print_message("# every stage: %d feasible, %d with ranks\n", feasible, ranked);
+    assert_true(ranked > 20);
     assert_true(feasible > 300);
     assert_true(infeasible > 30);
 }
@@ -355,6 +383,7 @@ static void test_history_stage_matches_exhaustive_enumeration(void **state)
         b.hi = calloc(nn, sizeof *b.hi);
         visit(&b, 0);
         if (b.found) {
+            ranks_of(&b);
             windows(&b, w->tolerance);
             b.pass = PASS_KEEP;
             visit(&b, 0);
@@ -372,7 +401,7 @@ static void test_history_stage_matches_exhaustive_enumeration(void **state)
             assert_int_equal(s->status, KEEL_SOLVE_OPTIMAL);
             assert_true(keeps_rules(w, s->nurse_of));
             assert_true(stage(s, "peak")->value == keel_ratio_value(b.peak));
-            assert_true(stage(s, "lift")->value == keel_ratio_value(b.lift));
+            assert_true(tu_ranks_match(&b.ranks, s));
             if (w->ncontinuity > 0)
                 assert_true(stage(s, "continuity")->value == (double)b.kept);
             assert_true(stage(s, "proximity")->value == (double)b.zones);
@@ -392,6 +421,7 @@ static void test_history_stage_matches_exhaustive_enumeration(void **state)
         free(b.a);
         free(b.lo);
         free(b.hi);
+        free(b.plans.load);
         tu_case_free(c);
     }
     print_message("# %d of 300 small rosters checked for stage 5\n", checked);
@@ -453,6 +483,7 @@ static void test_zone_by_zone_matches_exhaustive_enumeration(void **state)
         }
         keel_solution_free(s);
         free(b.a);
+        free(b.plans.load);
         free(b.lo);
         free(b.hi);
         tu_case_free(c);
@@ -878,6 +909,7 @@ static void test_local_search_answers_only_with_a_plan_that_fits(void **state)
         free(start);
         free(out);
         free(b.a);
+        free(b.plans.load);
         free(b.lo);
         free(b.hi);
         tu_case_free(c);
@@ -939,6 +971,7 @@ static void test_proximity_search_keeps_the_rules_and_reaches_the_best(void **st
         }
         free(plan);
         free(b.a);
+        free(b.plans.load);
         free(b.lo);
         free(b.hi);
         tu_case_free(c);

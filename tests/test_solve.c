@@ -2,7 +2,8 @@
 /*
  * test_solve.c - the solver against things no one here wrote: Graham's
  * worst case for LPT, and exhaustive enumeration of every assignment on
- * small random rosters.
+ * small random rosters (the peak, the ranks beyond it, the lift, fairness
+ * forward).
  */
 #include <math.h>
 #include <setjmp.h>
@@ -17,6 +18,7 @@
 #include "solve/heur.h"
 #include "solve/measure.h"
 #include "testutil.h"
+#include "tu_ranks.h"
 
 static keel_solution *solve(tu_case *c, const char *method)
 {
@@ -114,7 +116,9 @@ typedef struct enumeration {
     long long *load;
     bool found;
     keel_ratio best_peak;
-    keel_ratio best_lift;
+    keel_ratio best_lift; /* with the ranks held (ranks_by_enumeration()) */
+    tu_plans plans;       /* every valid plan's loads, for the ranks */
+    tu_ranks ranks;
     /* Fairness forward: with weight, the least history value among the
      * plans whose counted nurses keep the windows lo..hi of care. */
     const double *weight;
@@ -149,23 +153,8 @@ static void visit(enumeration *e, size_t p)
         return;
     }
     if (p == w->npatients) {
-        keel_ratio peak = {0, 1}, lift = {0, 1};
-        bool any = false;
-        for (size_t n = 0; n < w->nnurses; n++) {
-            if (w->max_patients[n] <= 0)
-                continue;
-            keel_ratio u = {e->load[n], w->capacity_minutes[n]};
-            if (!any || keel_ratio_cmp(u, peak) > 0)
-                peak = u;
-            if (!any || keel_ratio_cmp(u, lift) < 0)
-                lift = u;
-            any = true;
-        }
-        int by_peak = e->found ? keel_ratio_cmp(peak, e->best_peak) : -1;
-        if (by_peak < 0 || (by_peak == 0 && keel_ratio_cmp(lift, e->best_lift) > 0)) {
-            e->best_peak = peak;
-            e->best_lift = lift;
-        }
+        e->plans.nnurses = w->nnurses;
+        tu_plans_add(&e->plans, e->load);
         e->found = true;
         return;
     }
@@ -178,6 +167,18 @@ static void visit(enumeration *e, size_t p)
         e->count[n]--;
         e->load[n] -= w->care_minutes[p];
     }
+}
+
+/* The ranks over the enumerated plans (tu_ranks.h). */
+static void ranks_by_enumeration(enumeration *e)
+{
+    const keel_workload *w = e->w;
+    bool counted[TU_RANKS_MAX];
+    for (size_t n = 0; n < w->nnurses; n++)
+        counted[n] = keel_workload_counted(w, n);
+    tu_ranks_compute(&e->plans, w->capacity_minutes, counted, &e->ranks);
+    e->best_peak = e->ranks.peak;
+    e->best_lift = e->ranks.lift;
 }
 
 static tu_case *random_small_case(uint64_t *seed)
@@ -209,7 +210,7 @@ static void test_ilp_matches_exhaustive_enumeration_on_small_rosters(void **stat
 {
     (void)state;
     uint64_t seed = 2026;
-    int feasible = 0;
+    int feasible = 0, ranked = 0;
     for (int round = 0; round < 1000; round++) {
         tu_case *c = random_small_case(&seed);
         enumeration e = {.w = &c->w};
@@ -218,6 +219,8 @@ static void test_ilp_matches_exhaustive_enumeration_on_small_rosters(void **stat
         for (size_t n = 0; n < c->w.nnurses; n++)
             e.load[n] = c->w.duty_minutes[n];
         visit(&e, 0);
+        if (e.found)
+            ranks_by_enumeration(&e);
         keel_solution *s = solve(c, "ilp");
         if (!e.found) {
             assert_int_equal(s->status, KEEL_SOLVE_INFEASIBLE);
@@ -230,7 +233,13 @@ static void test_ilp_matches_exhaustive_enumeration_on_small_rosters(void **stat
             assert_int_equal(keel_ratio_cmp(keel_measure_lift(&c->w, s->nurse_of), e.best_lift), 0);
             assert_true(s->stages[0].value == keel_ratio_value(e.best_peak));
             assert_true(s->stages[0].bound == s->stages[0].value);
-            assert_true(s->stages[1].value == keel_ratio_value(e.best_lift));
+            assert_true(tu_ranks_match(&e.ranks, s));
+            ranked += s->nranks > 0;
+            /* No later stage: the plan keeps every nurse's level. */
+            for (size_t n = 0; n < c->w.nnurses; n++)
+                if (keel_workload_counted(&c->w, n))
+                    assert_true(keel_ratio_cmp(keel_measure_utilisation(&c->w, s->nurse_of, n),
+                                               e.ranks.level[n]) <= 0);
             /* Every patient once, eligible, limits kept. */
             int *count = calloc(c->w.nnurses, sizeof *count);
             for (size_t p = 0; p < c->w.npatients; p++) {
@@ -245,10 +254,13 @@ static void test_ilp_matches_exhaustive_enumeration_on_small_rosters(void **stat
         keel_solution_free(s);
         free(e.count);
         free(e.load);
+        free(e.plans.load);
         tu_case_free(c);
     }
-    /* The generator must exercise both outcomes, mostly feasible ones. */
-    print_message("# %d of 1000 small rosters feasible\n", feasible);
+    /* The generator must exercise both outcomes, mostly feasible ones, and
+     * the ranks. */
+    print_message("# %d of 1000 small rosters feasible, %d with ranks\n", feasible, ranked);
+    assert_true(ranked >= 20);
     assert_true(feasible >= 600);
     assert_true(feasible < 1000);
 }
@@ -425,9 +437,10 @@ static void test_unknown_method_is_a_usage_error(void **state)
     tu_case_free(c);
 }
 
-/* Stage 5 (fairness forward) against every plan: stages 1-2 as without a
- * history, and the history value the least among the plans inside the
- * windows of the balance tolerance around the enumerated U* and L*. */
+/* Stage 5 (fairness forward) against every plan: stages 1-2 and the ranks
+ * as without a history, and the history value the least among the plans
+ * inside the windows of the balance tolerance around the enumerated
+ * levels (the peak, or each nurse's rank) and L*. */
 static void test_history_stage_matches_exhaustive_enumeration(void **state)
 {
     (void)state;
@@ -452,8 +465,9 @@ static void test_history_stage_matches_exhaustive_enumeration(void **state)
             tu_case_free(c);
             continue;
         }
+        ranks_by_enumeration(&e);
         long long *lo = calloc(nn, sizeof *lo), *hi = calloc(nn, sizeof *hi);
-        keel_measure_windows(&c->w, e.best_peak, e.best_lift, c->w.tolerance, lo, hi);
+        keel_measure_windows(&c->w, e.ranks.level, e.best_lift, c->w.tolerance, lo, hi);
         e.weight = weight;
         e.lo = lo;
         e.hi = hi;
@@ -466,11 +480,11 @@ static void test_history_stage_matches_exhaustive_enumeration(void **state)
         assert_int_equal(keel_solve(&c->roster, &c->w, &opt, &s, &err), KEEL_OK);
         keel_error_fini(&err);
         assert_int_equal(s->status, KEEL_SOLVE_OPTIMAL);
-        assert_int_equal(s->nstages, 3);
+        assert_int_equal(s->nstages, 3 + (e.ranks.nranks > 0));
         assert_true(s->stages[0].value == keel_ratio_value(e.best_peak));
-        assert_true(s->stages[1].value == keel_ratio_value(e.best_lift));
-        assert_string_equal(s->stages[2].name, "history");
-        assert_true(fabs(s->stages[2].value - e.best_history) < 1e-9);
+        assert_true(tu_ranks_match(&e.ranks, s));
+        assert_string_equal(s->stages[s->nstages - 1].name, "history");
+        assert_true(fabs(s->stages[s->nstages - 1].value - e.best_history) < 1e-9);
         assert_true(fabs(keel_measure_history(&c->w, s->nurse_of, weight) - e.best_history) < 1e-9);
         assert_fits(&c->w, s->nurse_of, lo, hi);
         checked++;
@@ -480,6 +494,7 @@ static void test_history_stage_matches_exhaustive_enumeration(void **state)
         free(weight);
         free(e.count);
         free(e.load);
+        free(e.plans.load);
         tu_case_free(c);
     }
     print_message("# %d of 400 small rosters checked for stage 5\n", checked);

@@ -63,9 +63,10 @@ typedef struct keel_solve_options {
                               stage 5.  Borrowed for the call */
 } keel_solve_options;
 
-/* What one stage achieved.  For "peak" and "lift" value and bound are
- * utilisations: for "peak" the bound is a proven lower limit on U, for
- * "lift" a proven upper limit on L.  For "continuity" they count patients
+/* What one stage achieved.  For "peak", "ranks" and "lift" value and bound
+ * are utilisations: for "peak" the bound is a proven lower limit on U, for
+ * "ranks" on the heaviest of the nurses not pinned, for "lift" a proven
+ * upper limit on L.  For "continuity" they count patients
  * (bound: a proven upper limit on those kept), for "proximity" zones (bound:
  * a proven lower limit on the zones of all nurses together), for "history"
  * the sum over counted nurses of weight x utilisation (bound: a proven lower
@@ -73,11 +74,13 @@ typedef struct keel_solve_options {
  * gap = |value - bound| / max(|value|, |bound|): 0 when proven, the usual
  * relative MIP gap. */
 /* Every stage a solve may run, in the order they run.  A solution lists
- * the stages that ran, in this order: "peak" and "lift" under policy.balance
- * peak or "squares" under squares, then "continuity" and "proximity" when
- * they apply, then "history" with keel_solve_options.history. */
+ * the stages that ran, in this order: "peak", "ranks" (when a nurse is
+ * pinned at a proven peak) and "lift" under policy.balance peak or
+ * "squares" under squares, then "continuity" and "proximity" when they
+ * apply, then "history" with keel_solve_options.history. */
 typedef enum keel_stage_kind {
     KEEL_STAGE_PEAK,
+    KEEL_STAGE_RANKS,
     KEEL_STAGE_LIFT,
     KEEL_STAGE_SQUARES,
     KEEL_STAGE_CONTINUITY,
@@ -87,8 +90,8 @@ typedef enum keel_stage_kind {
 } keel_stage_kind;
 
 typedef struct keel_stage {
-    const char *name;         /* "peak", "lift", "squares", "continuity", "proximity" or
-                                 "history" */
+    const char *name;         /* "peak", "ranks", "lift", "squares", "continuity",
+                                 "proximity" or "history" */
     keel_solve_status status; /* OPTIMAL, TIME_LIMIT or HEURISTIC */
     double value;
     double bound;
@@ -97,6 +100,18 @@ typedef struct keel_stage {
     double seconds;   /* wall time spent in this stage */
 } keel_stage;
 
+/* One rank of the sorted utilisations that stage "ranks" holds: a nurse
+ * pinned at her level (every valid plan that keeps the ranks above has her
+ * there), or, last, the heaviest of the nurses not pinned (the least that
+ * heaviest can be, with the ranks above held). */
+typedef struct keel_rank {
+    int nurse;                /* index on the roster; -1 for the last rank (not pinned: which
+                                 of the others carries it is a choice) */
+    double utilisation;       /* her level */
+    bool pinned;              /* pinned there; false for the last rank */
+    keel_solve_status status; /* OPTIMAL when proven, else TIME_LIMIT (last rank only) */
+} keel_rank;
+
 typedef struct keel_solution {
     keel_solve_status status;
     const char *method; /* the method that ran */
@@ -104,6 +119,8 @@ typedef struct keel_solution {
     int *nurse_of; /* [npatients]: nurse index, -1 when infeasible */
     size_t nstages;
     keel_stage stages[KEEL_STAGE_KINDS];
+    size_t nranks;
+    keel_rank *ranks; /* stage "ranks", heaviest first; NULL when it did not run */
     struct {
         bool applies;      /* some patient's previous nurse is on the roster */
         long kept;         /* patients kept with their previous nurse */

@@ -18,6 +18,9 @@ const keel_share keel_budget_shares[KEEL_NSHARES] = {
                            "the stages: half of the balance time"},
     [KEEL_SHARE_PEAK] = {"peak", 7, 10, 0, 0,
                          "stage 1 may use 70 % of the balance time; the lift gets the rest"},
+    [KEEL_SHARE_RANKS] = {"ranks", 1, 2, 0, 0,
+                          "the ranks beyond a pinned peak: half of the balance time the peak "
+                          "leaves; the lift gets the rest"},
     [KEEL_SHARE_DESCENT] = {"descent", 1, 6, 0, 0,
                             "the greedy method's local descent: a sixth of the balance time "
                             "(1 s of the default limit with stages 3-4)"},

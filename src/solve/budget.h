@@ -22,6 +22,7 @@ typedef enum keel_share_id {
     KEEL_SHARE_BALANCE,     /* stages 1-3 of the limit when later stages follow */
     KEEL_SHARE_POLISH,      /* large pooled units: the zone polish before the stages */
     KEEL_SHARE_PEAK,        /* stage 1 (peak) of the balance time */
+    KEEL_SHARE_RANKS,       /* stage ranks, of the balance time the peak leaves */
     KEEL_SHARE_DESCENT,     /* the greedy method's local descent, of the balance time */
     KEEL_SHARE_QUESTION,    /* one question while the bisection narrows its range */
     KEEL_SHARE_CHAIN_LOCAL, /* window chain: the local search, of the question's time */

@@ -151,8 +151,8 @@ bool keel_measure_one_zone_each(const keel_workload *w)
     return true;
 }
 
-void keel_measure_windows(const keel_workload *w, keel_ratio peak, keel_ratio lift, long long t,
-                          long long *lo, long long *hi)
+void keel_measure_windows(const keel_workload *w, const keel_ratio *level, keel_ratio lift,
+                          long long t, long long *lo, long long *hi)
 {
     const long long S = KEEL_TOLERANCE_SCALE;
     for (size_t n = 0; n < w->nnurses; n++) {
@@ -160,6 +160,7 @@ void keel_measure_windows(const keel_workload *w, keel_ratio peak, keel_ratio li
         hi[n] = -1;
         if (!keel_workload_counted(w, n))
             continue;
+        keel_ratio peak = level[n];
         long long cap = w->capacity_minutes[n], duty = w->duty_minutes[n];
         hi[n] = keel_floor_div((peak.num * S + t * peak.den) * cap, peak.den * S) - duty;
         lo[n] = keel_ceil_div((lift.num * S - t * lift.den) * cap, lift.den * S) - duty;

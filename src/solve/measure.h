@@ -95,13 +95,14 @@ bool keel_measure_alike(const keel_workload *w, size_t a, size_t b);
 bool keel_measure_one_zone_each(const keel_workload *w);
 
 /* The care windows of every counted nurse around a balance (docs/model.md,
- * "The order of objectives"): with peak U* and lightest L* and tolerance t
- * (in 1/KEEL_TOLERANCE_SCALE),
- *   hi[n] = floor((U* + t) capacity(n)) - duty(n)
+ * "The order of objectives"): with level[n] nurse n's ceiling (the peak U*,
+ * or her level from stage "ranks"), lightest L* and tolerance t (in
+ * 1/KEEL_TOLERANCE_SCALE),
+ *   hi[n] = floor((level[n] + t) capacity(n)) - duty(n)
  *   lo[n] = max(0, ceil((L* - t) capacity(n)) - duty(n));
  * nurses who are not counted get lo 0, hi -1. */
-void keel_measure_windows(const keel_workload *w, keel_ratio peak, keel_ratio lift, long long t,
-                          long long *lo, long long *hi);
+void keel_measure_windows(const keel_workload *w, const keel_ratio *level, keel_ratio lift,
+                          long long t, long long *lo, long long *hi);
 
 /* How far care c is from counted nurse n's window lo[n]..hi[n], in
  * minutes (0 for a nurse who is not counted): the local searches' excess. */

@@ -194,27 +194,35 @@ out:
     return rc;
 }
 
-/* Continuity with the current nurse, then proximity, at zero tolerance:
- * continuity gets its share of the time when proximity follows. */
+/* Continuity with the current nurse, then proximity, at zero tolerance
+ * around the option's peak (an option has no stage "ranks"): continuity
+ * gets its share of the time when proximity follows. */
 static keel_status follow(const keel_workload *w, long long deadline_ms, keel_solution *s,
                           keel_error *err)
 {
     bool near = w->nzones > 0 || w->nrooms > 0;
-    keel_ratio peak = keel_measure_peak(w, s->nurse_of), lift = keel_measure_lift(w, s->nurse_of);
+    keel_ratio lift = keel_measure_lift(w, s->nurse_of);
+    keel_ratio *level = keel_calloc(w->nnurses ? w->nnurses : 1, sizeof *level);
+    if (!level)
+        return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    keel_ratio peak = keel_measure_peak(w, s->nurse_of);
+    for (size_t n = 0; n < w->nnurses; n++)
+        level[n] = peak;
     long long kept = keel_measure_kept(w, s->nurse_of);
     keel_status rc = KEEL_OK;
     if (w->ncontinuity > 0) {
         long long until = near ? keel_budget_until(KEEL_SHARE_KEEP, keel_budget_now(),
                                                    deadline_ms, 0)
                                : deadline_ms;
-        rc = keel_stage_keep(w, true, peak, lift, until, s->nurse_of, &s->stages[s->nstages++],
-                             s, &kept, err);
+        rc = keel_stage_keep(w, true, level, lift, until, s->nurse_of, &s->stages[s->nstages++], s,
+                             &kept, err);
     }
     if (!rc && near)
-        rc = keel_stage_near(w, true, peak, lift, kept, deadline_ms, s->nurse_of,
+        rc = keel_stage_near(w, true, level, lift, kept, deadline_ms, s->nurse_of,
                              &s->stages[s->nstages++], s, err);
     if (!rc && w->ncontinuity > 0)
         s->continuity.kept = (long)keel_measure_kept(w, s->nurse_of);
+    free(level);
     return rc;
 }
 

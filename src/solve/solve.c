@@ -77,6 +77,7 @@ void keel_solution_free(keel_solution *s)
     if (!s)
         return;
     free(s->nurse_of);
+    free(s->ranks);
     free(s->bound_reason.text);
     keel_findings_fini(&s->diagnoses);
     free(s);
@@ -162,25 +163,25 @@ static keel_status incumbent(const keel_workload *w, long long deadline_ms, int 
  * the balance tolerance: continuity gets its share of the time (all of it
  * when proximity does not follow), proximity the rest and keeps
  * continuity's count.  deadline_ms is theirs: stage 5 follows them. */
-static keel_status follow_near(const keel_workload *w, bool exact, long long deadline_ms,
-                               keel_solution *sol, keel_error *err)
+static keel_status follow_near(const keel_workload *w, bool exact, const keel_ratio *level,
+                               long long deadline_ms, keel_solution *sol, keel_error *err)
 {
     bool keep = w->ncontinuity > 0, near = w->nzones > 0 || w->nrooms > 0;
     if (!keep && !near)
         return KEEL_OK;
     sol->continuity.tolerance = (double)w->tolerance / KEEL_TOLERANCE_SCALE;
-    keel_ratio peak = keel_measure_peak(w, sol->nurse_of), lift = keel_measure_lift(w, sol->nurse_of);
+    keel_ratio lift = keel_measure_lift(w, sol->nurse_of);
     long long kept = 0;
     keel_status rc = KEEL_OK;
     if (keep) {
         long long now = keel_budget_now();
         long long until = near ? keel_budget_until(KEEL_SHARE_KEEP, now, deadline_ms, 0) : deadline_ms;
-        rc = keel_stage_keep(w, exact, peak, lift, until, sol->nurse_of,
+        rc = keel_stage_keep(w, exact, level, lift, until, sol->nurse_of,
                              &sol->stages[sol->nstages++], sol, &kept, err);
     }
     if (rc || !near)
         return rc;
-    rc = keel_stage_near(w, exact, peak, lift, kept, deadline_ms, sol->nurse_of,
+    rc = keel_stage_near(w, exact, level, lift, kept, deadline_ms, sol->nurse_of,
                          &sol->stages[sol->nstages++], sol, err);
     if (rc || !keep)
         return rc;
@@ -202,19 +203,19 @@ static keel_status follow_near(const keel_workload *w, bool exact, long long dea
 }
 
 /* Stages 3 and 4 (follow_near()), then with history weights stage 5,
- * fairness forward, holding the windows of the balance stages, the count
- * kept and the proximity reached; stages 3-4 get their share of the time
- * first when it follows. */
+ * fairness forward, holding the windows of the balance stages (each
+ * nurse's ceiling level[n]), the count kept and the proximity reached;
+ * stages 3-4 get their share of the time first when it follows. */
 static keel_status follow(const keel_workload *w, const double *history, bool exact,
-                          long long deadline_ms, keel_solution *sol, keel_error *err)
+                          const keel_ratio *level, long long deadline_ms, keel_solution *sol,
+                          keel_error *err)
 {
     if (!history)
-        return follow_near(w, exact, deadline_ms, sol, err);
+        return follow_near(w, exact, level, deadline_ms, sol, err);
     sol->continuity.tolerance = (double)w->tolerance / KEEL_TOLERANCE_SCALE;
-    keel_ratio peak = keel_measure_peak(w, sol->nurse_of),
-               lift = keel_measure_lift(w, sol->nurse_of);
+    keel_ratio lift = keel_measure_lift(w, sol->nurse_of);
     long long near_deadline = keel_budget_until(KEEL_SHARE_NEAR, keel_budget_now(), deadline_ms, 0);
-    keel_status rc = follow_near(w, exact, near_deadline, sol, err);
+    keel_status rc = follow_near(w, exact, level, near_deadline, sol, err);
     if (rc)
         return rc;
     long long kept = w->ncontinuity > 0 ? keel_measure_kept(w, sol->nurse_of) : 0;
@@ -224,7 +225,7 @@ static keel_status follow(const keel_workload *w, const double *history, bool ex
         keel_measure_spread(w, sol->nurse_of, &zones, &rooms);
         most_near = ((long long)w->npatients + 1) * zones + rooms;
     }
-    return keel_stage_history(w, history, exact, peak, lift, kept, most_near, deadline_ms,
+    return keel_stage_history(w, history, exact, level, lift, kept, most_near, deadline_ms,
                               sol->nurse_of, &sol->stages[sol->nstages++], err);
 }
 
@@ -232,7 +233,7 @@ static keel_status follow(const keel_workload *w, const double *history, bool ex
  * plan and the zone polish first, when the method has them. */
 static keel_status balance(const keel_workload *w, const keel_method *method,
                            long long balance_deadline, long long deadline, keel_solution *s,
-                           keel_error *err)
+                           keel_ratio *level, keel_error *err)
 {
     keel_status rc = keel_heur_greedy_improve(w, s->nurse_of, balance_deadline);
     if (rc)
@@ -248,13 +249,14 @@ static keel_status balance(const keel_workload *w, const keel_method *method,
         if (rc)
             return rc;
     }
-    return keel_stage_balance(w, method->exact, balance_deadline, s, err);
+    return keel_stage_balance(w, method->exact, balance_deadline, s, level, err);
 }
 
 keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
                        const keel_solve_options *options, keel_solution **out, keel_error *err)
 {
     keel_status rc = KEEL_OK;
+    keel_ratio *level = NULL; /* each counted nurse's ceiling after the balance stages */
     long long started = keel_budget_now();
     const char *name = options && options->method ? options->method : "ilp";
     long limit =
@@ -272,7 +274,8 @@ keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
     s->method = method->name;
     s->npatients = w->npatients;
     s->nurse_of = keel_calloc(w->npatients, sizeof *s->nurse_of);
-    if (!s->nurse_of) {
+    level = keel_calloc(w->nnurses ? w->nnurses : 1, sizeof *level);
+    if (!s->nurse_of || !level) {
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }
@@ -315,15 +318,19 @@ keel_status keel_solve(const keel_roster *roster, const keel_workload *w,
                                 "--time-limit");
             goto out;
         }
-        rc = balance(w, method, balance_deadline, deadline, s, err);
+        rc = balance(w, method, balance_deadline, deadline, s, level, err);
         if (rc)
             goto out;
+    } else {
+        keel_ratio peak = keel_measure_peak(w, s->nurse_of);
+        for (size_t n = 0; n < w->nnurses; n++)
+            level[n] = peak;
     }
     if (w->balance == KEEL_BALANCE_PEAK && keel_bound_words(roster, w, s->stages[0].bound, s)) {
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }
-    rc = follow(w, history, method->exact, deadline, s, err);
+    rc = follow(w, history, method->exact, level, deadline, s, err);
     if (rc)
         goto out;
     s->status = overall_status(s);
@@ -343,6 +350,7 @@ infeasible:
                 s->nurse_of[p] = -1;
     }
 out:
+    free(level);
     keel_lp_set_memory(0);
     s->seconds = (double)(keel_budget_now() - started) / 1000.0;
     if (rc)

@@ -6,7 +6,9 @@
  *   stage_search.c   the bisection over candidate utilisations that the
  *                    exact peak and lift share (the window questions)
  *   stage_peak.c     stage 1 "peak": the heaviest utilisation
- *   stage_lift.c     stage 2 "lift": the lightest, the peak held
+ *   stage_ranks.c    stage "ranks": the nurses pinned at the peak held there,
+ *                    the heaviest of the rest as low as it goes, and so on
+ *   stage_lift.c     stage 2 "lift": the lightest, the peak and ranks held
  *   stage_squares.c  stage 1 "squares" (policy.balance: squares)
  *   stage_balance.c  the balance stages in order, for the orchestrator and
  *                    the zone methods
@@ -41,6 +43,16 @@ void keel_stage_search_free(keel_search *S);
 keel_status keel_stage_peak(keel_search *S, bool exact, long long deadline_ms, int *nurse_of,
                             keel_stage *st, keel_error *err);
 
+/* stage_ranks.c: after a proven peak (S as stage 1 left it, nurse_of its
+ * plan), the ranks (see stage_ranks.c): level[nnurses] becomes each counted
+ * nurse's ceiling (her rank's level when pinned, else the heaviest of the
+ * rest's) and S's budgets with them; sol->ranks and st are filled when some
+ * nurse is pinned at the peak, else sol->ranks stays NULL and the levels
+ * are the peak.  Statuses: as keel_stage_peak(). */
+keel_status keel_stage_ranks(keel_search *S, keel_ratio peak, long long deadline_ms, int *nurse_of,
+                             keel_ratio *level, keel_stage *st, keel_solution *sol,
+                             keel_error *err);
+
 /* stage_lift.c: stage 2, the lightest utilisation with stage 1 held:
  * exact, by the bisection on S's budgets; else what nurse_of has, with the
  * simple ceiling as bound.  Statuses: as keel_stage_peak(). */
@@ -60,27 +72,29 @@ keel_status keel_stage_squares(const keel_workload *w, bool exact, long long dea
                                int *nurse_of, keel_stage *st, keel_error *err);
 
 /* stage_balance.c: the balance stages in order on sol->nurse_of (a valid
- * assignment): peak then lift, or squares; fills sol's first stages.
- * Statuses: as keel_stage_peak(). */
+ * assignment): peak, ranks (exact, with level given) and lift, or squares;
+ * fills sol's first stages and, when given, level[nnurses]: each counted
+ * nurse's ceiling for the later stages (the plan's peak when no ranks
+ * ran).  Statuses: as keel_stage_peak(). */
 keel_status keel_stage_balance(const keel_workload *w, bool exact, long long deadline_ms,
-                               keel_solution *sol, keel_error *err);
+                               keel_solution *sol, keel_ratio *level, keel_error *err);
 
 /* stage_keep.c: stage 3, continuity: the most patients kept with their
  * previous nurse, every counted nurse within the balance tolerance of
  * peak and lift (docs/model.md), from nurse_of; exact: also GLPK.  Fills st
  * and sol->continuity; *kept is the count stage 4 must keep.  Statuses: as
  * keel_stage_peak(). */
-keel_status keel_stage_keep(const keel_workload *w, bool exact, keel_ratio peak, keel_ratio lift,
-                            long long deadline_ms, int *nurse_of, keel_stage *st,
+keel_status keel_stage_keep(const keel_workload *w, bool exact, const keel_ratio *level,
+                            keel_ratio lift, long long deadline_ms, int *nurse_of, keel_stage *st,
                             keel_solution *sol, long long *kept, keel_error *err);
 
 /* stage_near.c: stage 4, proximity: the fewest zones per nurse in all, then
  * rooms, within the balance tolerance and keeping min_kept patients with
  * their previous nurse, from nurse_of; exact: also GLPK.  Fills st and
  * sol->proximity.  Statuses: as keel_stage_peak(). */
-keel_status keel_stage_near(const keel_workload *w, bool exact, keel_ratio peak, keel_ratio lift,
-                            long long min_kept, long long deadline_ms, int *nurse_of,
-                            keel_stage *st, keel_solution *sol, keel_error *err);
+keel_status keel_stage_near(const keel_workload *w, bool exact, const keel_ratio *level,
+                            keel_ratio lift, long long min_kept, long long deadline_ms,
+                            int *nurse_of, keel_stage *st, keel_solution *sol, keel_error *err);
 
 /* stage_history.c: stage 5, fairness forward: the least sum over counted
  * nurses of weight[n] x load(n) / capacity(n), within the balance
@@ -88,7 +102,7 @@ keel_status keel_stage_near(const keel_workload *w, bool exact, keel_ratio peak,
  * (most_near >= 0) (census + 1) zones + rooms at most most_near, from
  * nurse_of; exact: GLPK.  Fills st.  Statuses: as keel_stage_peak(). */
 keel_status keel_stage_history(const keel_workload *w, const double *weight, bool exact,
-                               keel_ratio peak, keel_ratio lift, long long min_kept,
+                               const keel_ratio *level, keel_ratio lift, long long min_kept,
                                long long most_near, long long deadline_ms, int *nurse_of,
                                keel_stage *st, keel_error *err);
 

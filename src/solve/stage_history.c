@@ -36,7 +36,7 @@ static double floor_of(const keel_workload *w, const double *weight, const long 
 }
 
 keel_status keel_stage_history(const keel_workload *w, const double *weight, bool exact,
-                               keel_ratio peak, keel_ratio lift, long long min_kept,
+                               const keel_ratio *level, keel_ratio lift, long long min_kept,
                                long long most_near, long long deadline_ms, int *nurse_of,
                                keel_stage *st, keel_error *err)
 {
@@ -50,7 +50,7 @@ keel_status keel_stage_history(const keel_workload *w, const double *weight, boo
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }
-    keel_measure_windows(w, peak, lift, w->tolerance, lo, hi);
+    keel_measure_windows(w, level, lift, w->tolerance, lo, hi);
     double value = keel_measure_history(w, nurse_of, weight);
     double bound = floor_of(w, weight, lo);
     bool proven = value <= bound + 1e-9;

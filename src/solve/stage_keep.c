@@ -107,8 +107,8 @@ static keel_status ask_glpk(const keel_workload *w, const long long *lo, const l
     return KEEL_OK;
 }
 
-keel_status keel_stage_keep(const keel_workload *w, bool exact, keel_ratio peak, keel_ratio lift,
-                            long long deadline_ms, int *nurse_of, keel_stage *st,
+keel_status keel_stage_keep(const keel_workload *w, bool exact, const keel_ratio *level,
+                            keel_ratio lift, long long deadline_ms, int *nurse_of, keel_stage *st,
                             keel_solution *sol, long long *kept, keel_error *err)
 {
     size_t nn = w->nnurses, np = w->npatients;
@@ -129,7 +129,7 @@ keel_status keel_stage_keep(const keel_workload *w, bool exact, keel_ratio peak,
     sol->continuity.candidates = (long)w->ncontinuity;
     sol->continuity.kept_at_zero = -1;
     /* At zero tolerance first, from the balanced assignment. */
-    keel_measure_windows(w, peak, lift, 0, lo, hi);
+    keel_measure_windows(w, level, lift, 0, lo, hi);
     long long zero_bound = bound;
     if (w->tolerance > 0 && exact) {
         long long mid = keel_budget_until(KEEL_SHARE_KEEP_ZERO, started, deadline_ms, 0);
@@ -139,7 +139,7 @@ keel_status keel_stage_keep(const keel_workload *w, bool exact, keel_ratio peak,
         sol->continuity.kept_at_zero = (long)keel_measure_kept(w, balanced);
         sol->continuity.zero_proven = sol->continuity.kept_at_zero == zero_bound;
     }
-    keel_measure_windows(w, peak, lift, w->tolerance, lo, hi);
+    keel_measure_windows(w, level, lift, w->tolerance, lo, hi);
     if (w->tolerance > 0 && exact)
         memcpy(nurse_of, balanced, np * sizeof *balanced);
     if ((rc = greedy_keep(w, lo, hi, nurse_of, err)))

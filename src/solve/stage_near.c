@@ -39,9 +39,9 @@ static long long distinct(const keel_workload *w, const int *key, size_t nkeys, 
     return everyone && working > n ? working : n;
 }
 
-keel_status keel_stage_near(const keel_workload *w, bool exact, keel_ratio peak, keel_ratio lift,
-                            long long min_kept, long long deadline_ms, int *nurse_of,
-                            keel_stage *st, keel_solution *sol, keel_error *err)
+keel_status keel_stage_near(const keel_workload *w, bool exact, const keel_ratio *level,
+                            keel_ratio lift, long long min_kept, long long deadline_ms,
+                            int *nurse_of, keel_stage *st, keel_solution *sol, keel_error *err)
 {
     size_t nn = w->nnurses, np = w->npatients;
     long long started = keel_budget_now();
@@ -55,7 +55,7 @@ keel_status keel_stage_near(const keel_workload *w, bool exact, keel_ratio peak,
     }
     long long zones, rooms;
     int calls = 0;
-    keel_measure_windows(w, peak, lift, w->tolerance, lo, hi);
+    keel_measure_windows(w, level, lift, w->tolerance, lo, hi);
     long long bound = distinct(w, w->zone, w->nzones, lo);
     long long room_bound = distinct(w, w->room, w->nrooms, lo);
     long long weight = (long long)np + 1;

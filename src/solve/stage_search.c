@@ -44,8 +44,9 @@ keel_search *keel_stage_search_new(const keel_workload *w)
     S->lo = keel_calloc(nn ? nn : 1, sizeof *S->lo);
     S->hi = keel_calloc(nn ? nn : 1, sizeof *S->hi);
     S->peak_hi = keel_calloc(nn ? nn : 1, sizeof *S->peak_hi);
+    S->held = keel_calloc(nn ? nn : 1, sizeof *S->held);
     S->trial = keel_calloc(w->npatients ? w->npatients : 1, sizeof *S->trial);
-    if (!S->sums || !S->lo || !S->hi || !S->peak_hi || !S->trial) {
+    if (!S->sums || !S->lo || !S->hi || !S->peak_hi || !S->held || !S->trial) {
         keel_stage_search_free(S);
         return NULL;
     }
@@ -62,6 +63,7 @@ void keel_stage_search_free(keel_search *S)
     free(S->lo);
     free(S->hi);
     free(S->peak_hi);
+    free(S->held);
     free(S->trial);
     free(S->cand);
     free(S);

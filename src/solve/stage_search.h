@@ -28,7 +28,9 @@ struct keel_search {
     keel_sums *sums;      /* [nnurses] */
     long long *lo;        /* windows of care minutes asked about */
     long long *hi;
-    long long *peak_hi;   /* stage 1's budgets, held in stage 2 */
+    long long *peak_hi;   /* stage 1's budgets (after the ranks, each nurse's level's), held in
+                             stage 2 */
+    bool *held;           /* [nnurses]: the ranks: held at her level (peak_hi) for good */
     int *trial;           /* the assignment an answer "yes" comes with */
     const int *incumbent; /* the best assignment so far: where the local search starts */
     keel_ratio *cand;     /* candidate utilisations, sorted, unique */

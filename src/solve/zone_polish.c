@@ -46,7 +46,7 @@ static keel_status solve_part(const keel_workload *w, const size_t *members, siz
     if (!sub)
         return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
     keel_solution s = {.npatients = m, .nurse_of = plan};
-    keel_status rc = keel_stage_balance(sub, true, deadline_ms, &s, err);
+    keel_status rc = keel_stage_balance(sub, true, deadline_ms, &s, NULL, err);
     if (!rc && keel_measure_validate(sub, plan, valid))
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
     keel_workload_free(sub);
@@ -254,7 +254,7 @@ keel_status keel_zone_polish(const keel_workload *w, long long deadline_ms, int 
         rc = keel_stage_balance(
             sub, true,
             keel_budget_until(KEEL_SHARE_ZONE_EACH, keel_budget_now(), deadline_ms, w->nzones - z),
-            &s, err);
+            &s, NULL, err);
         bool valid = false;
         if (!rc && keel_measure_validate(sub, plan, &valid))
             rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");

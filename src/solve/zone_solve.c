@@ -270,7 +270,7 @@ static keel_status solve_zone(zones *Z, size_t z, size_t k, long long deadline_m
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
     if (!rc && answer == KEEL_ANSWER_YES) {
         keel_solution s = {.npatients = np, .nurse_of = t->plan};
-        rc = keel_stage_balance(sub, true, deadline_ms, &s, err);
+        rc = keel_stage_balance(sub, true, deadline_ms, &s, NULL, err);
         t->feasible = true;
         t->peak = keel_measure_peak(sub, t->plan);
         t->peak_proven = s.stages[0].status == KEEL_SOLVE_OPTIMAL;
