@@ -154,17 +154,6 @@ static bool allowed(const keel_roster *r, const keel_workload *w, size_t p, size
            patient_allows(pt, &r->nurses[n], first);
 }
 
-int keel_workload_first_open(const keel_roster *r, const keel_workload *w, size_t p)
-{
-    const keel_patient *pt = &r->patients[p];
-    int q = w->first_part[p];
-    if (pt->nrecord == 0)
-        return q;
-    while (q < w->first_part[p + 1] && w->part_start[q] < pt->record[pt->nrecord - 1].to)
-        q++;
-    return q;
-}
-
 bool keel_workload_may_take_at_all(const keel_roster *r, const keel_workload *w, size_t p, size_t n)
 {
     return allowed(r, w, p, n, true);

@@ -180,7 +180,15 @@ keel_workload *keelWorkloadSubset(const keel_workload *w, const size_t *members,
  * (patients[].record): her first part without one, first_part[p + 1] when
  * the record covers her whole stay.  The parts before it are history:
  * `nurse`, `handoffs` and `lock` bind from it on. */
-int keel_workload_first_open(const keel_roster *r, const keel_workload *w, size_t p);
+static inline int keel_workload_first_open(const keel_roster *r, const keel_workload *w, size_t p)
+{
+    const keel_patient *pt = &r->patients[p];
+    int q = w->first_part[p];
+    while (pt->nrecord && q < w->first_part[p + 1] &&
+           w->part_start[q] < pt->record[pt->nrecord - 1].to)
+        q++;
+    return q;
+}
 
 /* True when pair (patient p, nurse n) is eligible. */
 static inline bool keel_workload_eligible(const keel_workload *w, size_t p, size_t n)
