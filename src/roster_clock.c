@@ -320,47 +320,33 @@ void keel_roster_clock_check_record(loader *ld, size_t i, const node *item)
         clock_text(r, st->to, to);
         int before = k ? p->record[k - 1].to : arrives;
         clock_text(r, before, edge);
-        if (st->from >= st->to) {
-            keel_roster_report_problem(
-                ld, stretch_at(ld, i, item, k, "to"),
-                "%s is not after the stretch's start at %s; expected a stretch that "
-                "ends after it starts",
-                to, from);
-            return;
-        }
-        if (k == 0 && st->from != arrives) {
-            keel_roster_report_problem(
-                ld, stretch_at(ld, i, item, k, "from"),
-                "the record starts at %s, but the patient is here from %s; expected "
-                "the first stretch from her arrival",
-                from, edge);
-            return;
-        }
-        if (st->from < before) {
-            keel_roster_report_problem(
-                ld, stretch_at(ld, i, item, k, "from"),
-                "%s is before %s, when record[%zu] ends; expected stretches in time "
-                "order that do not overlap",
-                from, edge, k - 1);
-            return;
-        }
-        if (st->from > before) {
-            keel_roster_report_problem(
-                ld, stretch_at(ld, i, item, k, "from"),
-                "%s leaves a gap after %s, when record[%zu] ends; expected each "
-                "stretch to start when the one before it ends",
-                from, edge, k - 1);
-            return;
-        }
-        if (st->to > leaves) {
-            clock_text(r, leaves, edge);
-            keel_roster_report_problem(
-                ld, stretch_at(ld, i, item, k, "to"),
-                "%s is after the patient leaves at %s; expected a stretch that ends "
-                "by her departure",
-                to, edge);
-            return;
-        }
+        if (st->from >= st->to)
+            keel_roster_report_problem(ld, stretch_at(ld, i, item, k, "to"),
+                                       "%s is not after the stretch's start at %s; expected a "
+                                       "stretch that ends after it starts",
+                                       to, from);
+        else if (k == 0 && st->from != arrives)
+            keel_roster_report_problem(ld, stretch_at(ld, i, item, k, "from"),
+                                       "the record starts at %s, but the patient is here from "
+                                       "%s; expected the first stretch from her arrival",
+                                       from, edge);
+        else if (st->from != before)
+            keel_roster_report_problem(ld, stretch_at(ld, i, item, k, "from"),
+                                       st->from < before
+                                           ? "%s is before %s, when record[%zu] ends; expected "
+                                             "stretches in time order that do not overlap"
+                                           : "%s leaves a gap after %s, when record[%zu] ends; "
+                                             "expected each stretch to start when the one "
+                                             "before it ends",
+                                       from, edge, k - 1);
+        else if (st->to > leaves)
+            keel_roster_report_problem(ld, stretch_at(ld, i, item, k, "to"),
+                                       "%s is after the patient leaves at %s; expected a "
+                                       "stretch that ends by her departure",
+                                       to, clock_text(r, leaves, edge));
+        else
+            continue;
+        return; /* the stretches after a problem cannot be judged */
     }
 }
 
