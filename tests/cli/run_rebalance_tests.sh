@@ -167,6 +167,7 @@ expect 0 "rebalance it at 13:00" -- "$keel" rebalance "$work/m0930.yaml" --at 13
 has "$work/m1300.yaml" '      - {nurse: "N2", from: "07:00", to: "09:30"}' "N2's morning is on the record"
 expect 0 "check sees the morning" -- "$keel" check "$work/m1300.yaml"
 has "$work/out" "[moment_limit] from 07:00 to 09:30, N2 has 3 patients; the patient limit is 2" "check reports the limit broken in the morning"
+has "$work/out" "  09:30  P1: N2 → N5" "check lists the hand-offs on the record"
 expect 5 "audit sees the morning" -- "$keel" audit "$work/m1300.yaml"
 has "$work/out" "from 07:00 to 09:30, N2 has 3 patients; the patient limit is 2" "the audit lists it"
 
