@@ -28,15 +28,29 @@ static bool on_for(const keel_workload *w, size_t q, int n)
     return n >= 0 && w->nurse_start[n] <= w->part_start[q] && w->nurse_end[n] >= w->part_end[q];
 }
 
+/* The nurse of the stretch of patient pat's record that part q lies in. */
+static int recorded(const keel_roster *r, const keel_workload *w, const keel_patient *pat, size_t q)
+{
+    size_t k = 0;
+    while (k + 1 < pat->nrecord && pat->record[k].to <= w->part_start[q])
+        k++;
+    return keel_roster_find_nurse(r, pat->record[k].nurse);
+}
+
 bool keel_plan_from_roster(const keel_roster *r, const keel_workload *w, int *nurse_of)
 {
     bool complete = true;
     for (size_t p = 0; p < r->npatients; p++) {
         const keel_patient *pat = &r->patients[p];
         size_t next = 0; /* the next planned hand-off */
+        int open = keel_workload_first_open(r, w, p);
         int n = pat->nurse ? keel_roster_find_nurse(r, pat->nurse) : -1;
-        for (int q = w->first_part[p]; q < w->first_part[p + 1]; q++) {
-            if (q > w->first_part[p] && n >= 0 && !on_for(w, (size_t)q, n))
+        for (int q = w->first_part[p]; q < open; q++) {
+            nurse_of[q] = recorded(r, w, pat, (size_t)q);
+            complete = complete && nurse_of[q] >= 0;
+        }
+        for (int q = open; q < w->first_part[p + 1]; q++) {
+            if (q > open && n >= 0 && !on_for(w, (size_t)q, n))
                 n = next < pat->nhandoffs ? keel_roster_find_nurse(r, pat->handoffs[next++]) : -1;
             nurse_of[q] = n;
             complete = complete && n >= 0;

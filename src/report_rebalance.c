@@ -3,9 +3,10 @@
  * report_rebalance.c - the writers of a rebalance (keel rebalance): "text"
  * (the frontier as a table, the chosen option's hand-offs, forced moves and
  * new patients, the recommendation, the caution), "json" (every option in
- * full) and "yaml" (the chosen option as the updated roster, through the
- * assignment's yaml writer, so that it feeds back into keel rebalance and
- * keel check) and "html" (the frontier as a chart, the moves, and the
+ * full) and "yaml" (the whole shift after the chosen option, with each
+ * patient's record, keel_rebalance_shift(), through the assignment's yaml
+ * writer, so that it feeds back into keel rebalance, keel check and keel
+ * audit) and "html" (the frontier as a chart, the moves, and the
  * chosen option's sheet as the assignment's).  Writers only read: each
  * plan's figures come from its keel_metrics.
  */
@@ -463,16 +464,21 @@ static keel_status write_html(const keel_rebalance_report *rep, FILE *out)
 
 /* ---- yaml ------------------------------------------------------------ */
 
+/* The whole shift after the chosen option (keel_rebalance_shift()). */
 static keel_status write_yaml(const keel_rebalance_report *rep, FILE *out)
 {
     const keel_rebalance_option *o = &rep->rebalance->options[rep->chosen];
-    keel_report r = {.kind = KEEL_REPORT_ASSIGN,
-                     .roster = rep->roster,
-                     .workload = rep->rebalance->workload,
-                     .nurse_of = o->solution->nurse_of,
-                     .metrics = rep->metrics[rep->chosen],
-                     .solution = o->solution};
-    return keel_report_yaml(&r, out);
+    keel_roster *shift = NULL;
+    keel_error err;
+    keel_error_init(&err);
+    keel_status rc = keel_rebalance_shift(rep->rebalance, rep->chosen, &shift, &err);
+    keel_error_fini(&err);
+    if (rc)
+        return rc;
+    keel_report r = {.kind = KEEL_REPORT_ASSIGN, .roster = shift, .solution = o->solution};
+    rc = keel_report_yaml(&r, out);
+    keel_roster_free(shift);
+    return rc;
 }
 
 typedef struct writer {
@@ -499,6 +505,8 @@ keel_status keel_report_rebalance_write(const char *format, const keel_rebalance
             return keel_error_add(err, KEEL_ERR_USAGE, NULL, 0, 0, NULL,
                                   "the chosen option has no plan to write");
         keel_status rc = writers[i].write(rep, out);
+        if (rc == KEEL_ERR_NOMEM)
+            rc = keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");
         if (!rc && ferror(out))
             rc = keel_error_add(err, KEEL_ERR_IO, NULL, 0, 0, NULL, "write failed");
         return rc;

@@ -175,18 +175,44 @@ static void write_timeline(FILE *out, const keel_report *rep, size_t n)
     fputc('\n', out);
 }
 
-/* The planned hand-offs, by the nurse who leaves. */
+/* The hand-offs on patients' records (up to the last rebalance), in
+ * time order within each patient. */
+static void write_recorded(FILE *out, const keel_report *rep)
+{
+    const keel_roster *r = rep->roster;
+    bool any = false;
+    char at[KEEL_TIME_SIZE];
+    for (size_t p = 0; p < r->npatients; p++) {
+        int q = rep->workload->first_part[p], when, from, to;
+        int open = keel_workload_first_open(r, rep->workload, p);
+        while (keel_report_plan_next_handoff(rep, p, &q, &when, &from, &to) && q <= open) {
+            if (!any)
+                fputs("Hand-offs on the record (up to the last rebalance)\n", out);
+            any = true;
+            keel_roster_clock_text(r, when, at);
+            fprintf(out, "  %s  %s: %s \u2192 %s\n", at, r->patients[p].id,
+                    from >= 0 ? r->nurses[from].id : "nobody",
+                    to >= 0 ? r->nurses[to].id : "nobody");
+        }
+    }
+    if (any)
+        fputc('\n', out);
+}
+
+/* The planned hand-offs after the records, by the nurse who leaves. */
 static void write_handoffs(FILE *out, const keel_report *rep)
 {
     const keel_roster *r = rep->roster;
     bool any = false;
     char at[KEEL_TIME_SIZE];
+    write_recorded(out, rep);
     for (size_t n = 0; n < r->nnurses; n++) {
         size_t k = 0;
         for (size_t p = 0; p < r->npatients; p++) {
             int q = rep->workload->first_part[p], when, from, to;
+            int open = keel_workload_first_open(r, rep->workload, p);
             while (keel_report_plan_next_handoff(rep, p, &q, &when, &from, &to)) {
-                if (from != (int)n)
+                if (from != (int)n || q <= open)
                     continue;
                 if (!any)
                     fputs("Planned hand-offs (a nurse leaves; not balance moves)\n", out);

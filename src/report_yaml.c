@@ -203,6 +203,16 @@ void keel_report_yaml_patient(FILE *out, const keel_roster *r, const keel_patien
     write_key_list(out, "    ", "nas", pa->nas, pa->nnas);
     write_key_time(out, r, "    ", pa->expected ? "at" : "arrives_at", pa->arrives_at);
     write_key_time(out, r, "    ", "leaves_at", pa->leaves_at);
+    if (pa->nrecord)
+        fputs("    record:\n", out);
+    for (size_t i = 0; i < pa->nrecord; i++) {
+        char from[KEEL_TIME_SIZE], to[KEEL_TIME_SIZE];
+        keel_roster_clock_text(r, pa->record[i].from, from);
+        keel_roster_clock_text(r, pa->record[i].to, to);
+        fputs("      - {nurse: ", out);
+        keel_report_out_quoted(out, pa->record[i].nurse);
+        fprintf(out, ", from: \"%s\", to: \"%s\"}\n", from, to);
+    }
 }
 
 /* The planned hand-offs of patient p under the report's assignment, or as

@@ -91,6 +91,39 @@ static void check_handoffs(loader *ld, size_t i, const node *item)
     }
 }
 
+/* A record names nurses of the roster (who may have left since), and the
+ * patient has a nurse from the end of it. */
+static void check_record(loader *ld, size_t i, const node *item)
+{
+    const keel_roster *r = ld->roster;
+    const keel_patient *p = &r->patients[i];
+    const node *list = keel_roster_tree_find(item, "record");
+    char shown[SHOWN_SIZE];
+    if (p->nrecord == 0)
+        return;
+    if (!keel_roster_tree_find(item, "nurse")) {
+        keel_roster_keys_patient_path(ld, i, "record");
+        keel_roster_report_problem(
+            ld, list->mark,
+            "a record without a nurse; expected nurse: the id of the nurse who has the "
+            "patient from the end of the record");
+    }
+    for (size_t k = 0; k < p->nrecord; k++) {
+        const char *id = p->record[k].nurse;
+        if (!id || r->nnurses == 0 || keel_roster_find_nurse(r, id) >= 0)
+            continue;
+        keel_roster_keys_patient_path(ld, i, "record");
+        keel_roster_report_push_index(ld, k);
+        keel_roster_report_push_key(ld, "nurse");
+        keel_roster_report_problem(
+            ld, keel_roster_tree_find(list->items[k], "nurse")->mark,
+            "no nurse '%s' on this roster; expected a nurse of the shift (one who has left "
+            "stays on the roster with her end)",
+            keel_roster_report_show(shown, id));
+    }
+    keel_roster_clock_check_record(ld, i, item);
+}
+
 /* The id of list item i must differ from those before it.  what names the
  * list's entries ("nurse"). */
 static void check_unique_id(loader *ld, const node *list, size_t i, const char *what)
@@ -374,6 +407,7 @@ static void check_patients(loader *ld)
             check_avoid(ld, i, item);
         keel_roster_clock_check_patient(ld, i, item);
         check_handoffs(ld, i, item);
+        check_record(ld, i, item);
     }
 }
 

@@ -92,6 +92,18 @@ void keel_roster_clock_convert(loader *ld, const node *root)
         convert_time(ld, shift, keel_roster_tree_find(item, arrival), false, &p->arrives_at);
         keel_roster_keys_patient_path(ld, i, "leaves_at");
         convert_time(ld, shift, keel_roster_tree_find(item, "leaves_at"), true, &p->leaves_at);
+        const node *record = keel_roster_tree_find(item, "record");
+        for (size_t k = 0; k < p->nrecord; k++) {
+            keel_stretch *st = &p->record[k];
+            keel_roster_keys_patient_path(ld, i, "record");
+            size_t old = keel_roster_report_push_index(ld, k);
+            keel_roster_report_push_key(ld, "from");
+            convert_time(ld, shift, keel_roster_tree_find(record->items[k], "from"), false,
+                         &st->from);
+            keel_roster_report_pop_path(ld, old);
+            keel_roster_report_push_key(ld, "to");
+            convert_time(ld, shift, keel_roster_tree_find(record->items[k], "to"), true, &st->to);
+        }
     }
 }
 
@@ -272,6 +284,69 @@ void keel_roster_clock_check_patient(loader *ld, size_t i, const node *item)
         keel_roster_report_problem(ld, keel_roster_tree_find(item, "leaves_at")->mark,
                                    "%s is when the shift starts; expected a departure after %s", to,
                                    from);
+    }
+}
+
+/* Sets the path to patients[i].record[k].key and returns where key is. */
+static keel_mark stretch_at(loader *ld, size_t i, const node *item, size_t k, const char *key)
+{
+    const node *entry = keel_roster_tree_find(item, "record")->items[k];
+    keel_roster_keys_patient_path(ld, i, "record");
+    keel_roster_report_push_index(ld, k);
+    keel_roster_report_push_key(ld, key);
+    return keel_roster_tree_find(entry, key)->mark;
+}
+
+/* A patient's record covers her stay from her arrival without gaps: each
+ * stretch ends after it starts, the first starts when she arrives, each
+ * next one when the one before it ends, and none ends after she leaves. */
+void keel_roster_clock_check_record(loader *ld, size_t i, const node *item)
+{
+    const keel_roster *r = ld->roster;
+    const keel_patient *p = &r->patients[i];
+    const char *arrival = p->expected ? "at" : "arrives_at";
+    char from[CLOCK_SIZE], to[CLOCK_SIZE], edge[CLOCK_SIZE];
+    if (p->nrecord == 0 || r->shift.minutes == KEEL_ABSENT ||
+        r->shift.start_minute == KEEL_ABSENT || !time_read(item, arrival, p->arrives_at) ||
+        !time_read(item, "leaves_at", p->leaves_at))
+        return;
+    int arrives = p->arrives_at == KEEL_ABSENT ? 0 : p->arrives_at;
+    int leaves = p->leaves_at == KEEL_ABSENT ? r->shift.minutes : p->leaves_at;
+    for (size_t k = 0; k < p->nrecord; k++) {
+        const keel_stretch *st = &p->record[k];
+        if (st->from == KEEL_ABSENT || st->to == KEEL_ABSENT)
+            return; /* reported already; the rest cannot be judged */
+        clock_text(r, st->from, from);
+        clock_text(r, st->to, to);
+        int before = k ? p->record[k - 1].to : arrives;
+        clock_text(r, before, edge);
+        if (st->from >= st->to)
+            keel_roster_report_problem(ld, stretch_at(ld, i, item, k, "to"),
+                                       "%s is not after the stretch's start at %s; expected a "
+                                       "stretch that ends after it starts",
+                                       to, from);
+        else if (k == 0 && st->from != arrives)
+            keel_roster_report_problem(ld, stretch_at(ld, i, item, k, "from"),
+                                       "the record starts at %s, but the patient is here from "
+                                       "%s; expected the first stretch from her arrival",
+                                       from, edge);
+        else if (st->from != before)
+            keel_roster_report_problem(ld, stretch_at(ld, i, item, k, "from"),
+                                       st->from < before
+                                           ? "%s is before %s, when record[%zu] ends; expected "
+                                             "stretches in time order that do not overlap"
+                                           : "%s leaves a gap after %s, when record[%zu] ends; "
+                                             "expected each stretch to start when the one "
+                                             "before it ends",
+                                       from, edge, k - 1);
+        else if (st->to > leaves)
+            keel_roster_report_problem(ld, stretch_at(ld, i, item, k, "to"),
+                                       "%s is after the patient leaves at %s; expected a "
+                                       "stretch that ends by her departure",
+                                       to, clock_text(r, leaves, edge));
+        else
+            continue;
+        return; /* the stretches after a problem cannot be judged */
     }
 }
 

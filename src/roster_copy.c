@@ -53,14 +53,34 @@ static bool copy_nurse(keel_nurse *to, const keel_nurse *from)
            dup_names(&to->skills, from->skills, from->nskills);
 }
 
+/* to->record = a copy of from's record; false when memory ran out (the
+ * stretches not copied hold no nurse, for the patient's own freeing). */
+static bool copy_record(keel_patient *to, const keel_patient *from)
+{
+    if (from->nrecord == 0)
+        return true;
+    if (!(to->record = keel_calloc(from->nrecord, sizeof *to->record)))
+        return false;
+    to->nrecord = from->nrecord;
+    for (size_t i = 0; i < from->nrecord; i++) {
+        to->record[i] = from->record[i];
+        if (!dup(&to->record[i].nurse, from->record[i].nurse))
+            return false;
+    }
+    return true;
+}
+
 bool keel_roster_copy_patient(keel_patient *to, const keel_patient *from)
 {
     *to = *from;
     to->id = to->bed = to->name = to->nurse = to->room = to->zone = to->previous_nurse = NULL;
     to->extras = to->needs = to->avoid = to->nas = to->handoffs = NULL;
-    return dup(&to->id, from->id) && dup(&to->bed, from->bed) && dup(&to->name, from->name) &&
-           dup(&to->nurse, from->nurse) && dup(&to->room, from->room) &&
-           dup(&to->zone, from->zone) && dup(&to->previous_nurse, from->previous_nurse) &&
+    to->record = NULL;
+    to->nrecord = 0;
+    return copy_record(to, from) && dup(&to->id, from->id) && dup(&to->bed, from->bed) &&
+           dup(&to->name, from->name) && dup(&to->nurse, from->nurse) &&
+           dup(&to->room, from->room) && dup(&to->zone, from->zone) &&
+           dup(&to->previous_nurse, from->previous_nurse) &&
            dup_names(&to->extras, from->extras, from->nextras) &&
            dup_names(&to->needs, from->needs, from->nneeds) &&
            dup_names(&to->avoid, from->avoid, from->navoid) &&

@@ -32,6 +32,9 @@ void keel_roster_data_patient_fini(keel_patient *p)
     free(p->previous_nurse);
     free_names(p->nas, p->nnas);
     free_names(p->handoffs, p->nhandoffs);
+    for (size_t i = 0; p->record && i < p->nrecord; i++)
+        free(p->record[i].nurse);
+    free(p->record);
 }
 
 void keel_roster_free(keel_roster *roster)

@@ -482,6 +482,54 @@ static void parse_breaks(loader *ld, const node *value, void *target, const key_
     }
 }
 
+static const key_rule stretch_keys[] = {
+    {.name = "nurse",
+     .parse = parse_string,
+     .offset = offsetof(keel_stretch, nurse),
+     .need = "every stretch of a record needs nurse: the id of the nurse who held the patient"},
+    {.name = "from",
+     .parse = parse_time,
+     .offset = offsetof(keel_stretch, from),
+     .need = "every stretch of a record needs from: the time it starts"},
+    {.name = "to",
+     .parse = parse_time,
+     .offset = offsetof(keel_stretch, to),
+     .need = "every stretch of a record needs to: the time it ends"},
+};
+
+/* patients[].record: who held the patient, each {nurse, from, to}; checked
+ * against the patient's stay by check_record() in roster_clock.c. */
+static void parse_record(loader *ld, const node *value, void *target, const key_rule *rule)
+{
+    keel_patient *p = target;
+    (void)rule;
+    ld->roster->clock = true;
+    if (value->kind != NODE_SEQUENCE) {
+        keel_roster_tree_report_type(
+            ld, value, "a list of stretches such as [{nurse: N1, from: \"07:00\", to: \"09:30\"}]");
+        return;
+    }
+    if (value->nitems == 0) {
+        keel_roster_report_problem(
+            ld, value->mark, "found an empty list; expected at least one stretch, or no record");
+        return;
+    }
+    p->record = keel_calloc(value->nitems, sizeof *p->record);
+    if (!p->record) {
+        ld->nomem = true;
+        return;
+    }
+    p->nrecord = value->nitems;
+    for (size_t i = 0; i < value->nitems; i++) {
+        p->record[i] =
+            (keel_stretch){.from = KEEL_ABSENT, .to = KEEL_ABSENT, .mark = value->items[i]->mark};
+        size_t old = keel_roster_report_push_index(ld, i);
+        keel_roster_walk_mapping(ld, value->items[i], stretch_keys, ARRAY_LEN(stretch_keys),
+                                 &p->record[i]);
+        keel_roster_report_pop_path(ld, old);
+    }
+}
+
 static const key_rule nurse_keys[] = {
     {.name = "id",
      .parse = parse_string,
@@ -583,6 +631,7 @@ static const key_rule patient_keys[] = {
      .parse = parse_handoffs,
      .offset = offsetof(keel_patient, handoffs),
      .count_offset = offsetof(keel_patient, nhandoffs)},
+    {.name = "record", .parse = parse_record},
 };
 
 static const key_rule expected_keys[] = {

@@ -198,6 +198,9 @@ void keel_roster_clock_convert(loader *ld, const node *root);
  * patients[i]'s arrival and departure. */
 void keel_roster_clock_check_nurse(loader *ld, size_t i, const node *item);
 void keel_roster_clock_check_patient(loader *ld, size_t i, const node *item);
+/* Checks patients[i]'s record against her stay: contiguous from her
+ * arrival, in time order, each stretch inside her stay. */
+void keel_roster_clock_check_record(loader *ld, size_t i, const node *item);
 
 /* roster_check.c */
 

@@ -57,11 +57,12 @@ static keel_status check(const keel_rule_plan *c, size_t n, size_t m, const size
     size_t p = (size_t)w->patient[mine[0]];
     const keel_patient *pat = &r->patients[p];
     keel_status rc = KEEL_OK;
-    size_t used = 0;
+    size_t used = 0; /* hand-offs after the record, where `handoffs` applies */
+    int open = keel_workload_first_open(r, w, p);
     for (size_t i = 0; i < k && !rc; i++) {
         size_t q = mine[i];
         int nurse = c->nurse_of[q];
-        used += i > 0 && nurse >= 0 && nurse != c->nurse_of[mine[i - 1]];
+        used += (int)q > open && nurse >= 0 && nurse != c->nurse_of[mine[i - 1]];
         if (nurse < 0 || on_for(w, q, nurse))
             continue;
         char from[KEEL_TIME_SIZE], to[KEEL_TIME_SIZE];

@@ -89,7 +89,7 @@ const keel_rule keel_rule_skill = {
 static bool breaks_lock(const keel_roster *r, const keel_workload *w, size_t p, size_t n)
 {
     const keel_patient *pat = &r->patients[w->patient[p]];
-    bool first = w->first_part[w->patient[p]] == (int)p;
+    bool first = keel_workload_first_open(r, w, (size_t)w->patient[p]) == (int)p;
     return first && pat->lock && pat->nurse && strcmp(pat->nurse, r->nurses[n].id) != 0;
 }
 

@@ -162,7 +162,7 @@ bool keel_workload_may_take_at_all(const keel_roster *r, const keel_workload *w,
 bool keel_workload_may_take(const keel_roster *r, const keel_workload *w, size_t q, size_t n)
 {
     size_t p = (size_t)w->patient[q];
-    return allowed(r, w, p, n, w->first_part[p] == (int)q) &&
+    return allowed(r, w, p, n, keel_workload_first_open(r, w, p) == (int)q) &&
            w->nurse_start[n] <= w->part_start[q] && w->nurse_end[n] >= w->part_end[q];
 }
 
@@ -236,6 +236,24 @@ static int leaves(const keel_roster *r, const keel_patient *p)
     return or_default(p->leaves_at, r->shift.minutes);
 }
 
+/* The times inside the patient's stay (a, b) at which her stay is cut into
+ * parts, sorted into cuts[] (room for nends + her stretches): the nurses'
+ * end times ends[0..nends) (sorted) and the ends of her record's
+ * stretches.  Returns how many. */
+static size_t patient_cuts(const keel_roster *r, const keel_patient *p, const int *ends,
+                           size_t nends, int *cuts)
+{
+    int a = arrives(p), b = leaves(r, p);
+    size_t n = 0;
+    for (size_t i = 0; i < nends; i++)
+        if (ends[i] > a && ends[i] < b)
+            cuts[n++] = ends[i];
+    for (size_t k = 0; k < p->nrecord; k++)
+        if (p->record[k].to > a && p->record[k].to < b)
+            cuts[n++] = p->record[k].to;
+    return sort_unique(cuts, n);
+}
+
 /* Nurses' times, the times the moments of the shift start at and how many
  * parts there are: the first stage of the clock (see keel/workload.h).
  * The times are left unsorted in *bounds_out (room for every break's too);
@@ -243,16 +261,22 @@ static int leaves(const keel_roster *r, const keel_patient *p)
 static keel_status plan_clock(const keel_roster *r, keel_workload *w, int **ends_out,
                               size_t *nends_out, int **bounds_out, size_t *nbounds_out)
 {
-    size_t nn = r->nnurses, np = r->npatients, nparts = 0, nbreaks = 0;
+    size_t nn = r->nnurses, np = r->npatients, nparts = 0, nbreaks = 0, nstretches = 0, most = 0;
     for (size_t n = 0; n < nn; n++)
         nbreaks += r->nurses[n].nbreaks;
+    for (size_t p = 0; p < np; p++) {
+        nstretches += r->patients[p].nrecord;
+        most = r->patients[p].nrecord > most ? r->patients[p].nrecord : most;
+    }
     int *ends = keel_calloc(nn + 1, sizeof *ends);
-    int *bounds = keel_calloc(2 * nn + 2 * np + 2 * nbreaks + 2, sizeof *bounds);
+    int *bounds = keel_calloc(2 * nn + 2 * np + 2 * nbreaks + nstretches + 2, sizeof *bounds);
+    int *cuts = keel_calloc(nn + most + 1, sizeof *cuts);
     w->nurse_start = keel_calloc(nn + 1, sizeof *w->nurse_start);
     w->nurse_end = keel_calloc(nn + 1, sizeof *w->nurse_end);
-    if (!ends || !bounds || !w->nurse_start || !w->nurse_end) {
+    if (!ends || !bounds || !cuts || !w->nurse_start || !w->nurse_end) {
         free(ends);
         free(bounds);
+        free(cuts);
         return KEEL_ERR_NOMEM;
     }
     size_t nb = 0;
@@ -267,13 +291,14 @@ static keel_status plan_clock(const keel_roster *r, keel_workload *w, int **ends
     }
     size_t nends = sort_unique(ends, nn);
     for (size_t p = 0; p < np; p++) {
-        int a = arrives(&r->patients[p]), b = leaves(r, &r->patients[p]);
-        bounds[nb++] = a;
-        bounds[nb++] = b;
-        nparts++;
-        for (size_t i = 0; i < nends; i++)
-            nparts += ends[i] > a && ends[i] < b;
+        const keel_patient *pt = &r->patients[p];
+        bounds[nb++] = arrives(pt);
+        bounds[nb++] = leaves(r, pt);
+        for (size_t k = 0; k < pt->nrecord; k++)
+            bounds[nb++] = pt->record[k].to;
+        nparts += 1 + patient_cuts(r, pt, ends, nends, cuts);
     }
+    free(cuts);
     w->npatients = nparts;
     *ends_out = ends;
     *nends_out = nends;
@@ -294,22 +319,27 @@ static void set_moments(keel_workload *w, int *bounds, size_t nb)
     keel_workload_cover_moments(w);
 }
 
-/* Cuts each patient's stay into parts at the nurses' end times and shares
- * its care among them (see keel/workload.h). */
-static void cut_parts(const keel_roster *r, keel_workload *w, const int *ends, size_t nends)
+/* Cuts each patient's stay into parts at the nurses' end times and at her
+ * record's stretch ends, and shares its care among them (see
+ * keel/workload.h).  False when memory ran out. */
+static bool cut_parts(const keel_roster *r, keel_workload *w, const int *ends, size_t nends)
 {
-    size_t q = 0;
+    size_t q = 0, most = 0;
+    for (size_t p = 0; p < r->npatients; p++)
+        most = r->patients[p].nrecord > most ? r->patients[p].nrecord : most;
+    int *cuts = keel_calloc(nends + most + 1, sizeof *cuts);
+    if (!cuts)
+        return false;
     long long shift = r->shift.minutes;
     for (size_t p = 0; p < r->npatients; p++) {
         const keel_patient *pt = &r->patients[p];
         long long a = arrives(pt), b = leaves(r, pt);
         long long present = ceil_share(base_care(r, pt), b - a, shift);
+        size_t ncuts = patient_cuts(r, pt, ends, nends, cuts);
         w->first_part[p] = (int)q;
         long long s = a;
-        for (size_t i = 0; i <= nends; i++) {
-            long long e = i < nends ? ends[i] : b;
-            if (e <= s || (i < nends && e >= b))
-                continue;
+        for (size_t i = 0; i <= ncuts; i++) {
+            long long e = i < ncuts ? cuts[i] : b;
             w->patient[q] = (int)p;
             w->part_start[q] = (int)s;
             w->part_end[q] = (int)e;
@@ -324,6 +354,8 @@ static void cut_parts(const keel_roster *r, keel_workload *w, const int *ends, s
         }
     }
     w->first_part[r->npatients] = (int)q;
+    free(cuts);
+    return true;
 }
 
 int keel_workload_on_unit(const keel_roster *r, size_t i)
@@ -451,8 +483,7 @@ keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, kee
     }
     set_moments(w, bounds, nbounds);
     bounds = NULL;
-    cut_parts(r, w, ends, nends);
-    if (join_rules(r, w)) {
+    if (!cut_parts(r, w, ends, nends) || join_rules(r, w)) {
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }

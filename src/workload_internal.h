@@ -176,6 +176,20 @@ bool keel_workload_alloc(keel_workload *w);
 keel_workload *keelWorkloadSubset(const keel_workload *w, const size_t *members, size_t np,
                                   const size_t *nurses, size_t n0, size_t k);
 
+/* Index of roster patient p's first part after her record
+ * (patients[].record): her first part without one, first_part[p + 1] when
+ * the record covers her whole stay.  The parts before it are history:
+ * `nurse`, `handoffs` and `lock` bind from it on. */
+static inline int keel_workload_first_open(const keel_roster *r, const keel_workload *w, size_t p)
+{
+    const keel_patient *pt = &r->patients[p];
+    int q = w->first_part[p];
+    while (pt->nrecord && q < w->first_part[p + 1] &&
+           w->part_start[q] < pt->record[pt->nrecord - 1].to)
+        q++;
+    return q;
+}
+
 /* True when pair (patient p, nurse n) is eligible. */
 static inline bool keel_workload_eligible(const keel_workload *w, size_t p, size_t n)
 {

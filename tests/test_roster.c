@@ -27,6 +27,7 @@
 
 #include "alloc.h"
 #include "keel/roster.h"
+#include "roster_internal.h"
 #include "workload_internal.h"
 
 static const char *data_dir = "tests/data";
@@ -1142,6 +1143,61 @@ static void run_with_failing_allocations(keel_status (*load)(keel_roster **, kee
     assert_true(n > 20);
 }
 
+static const char record_example[] = "shift: {label: night, start: \"19:00\", minutes: 720}\n"
+                                     "policy: {acuity_minutes: {1: 60}}\n"
+                                     "nurses: [{id: N1}, {id: N2, end: \"01:00\"}]\n"
+                                     "patients:\n"
+                                     "  - id: P1\n"
+                                     "    acuity: 1\n"
+                                     "    nurse: N1\n"
+                                     "    record:\n"
+                                     "      - {nurse: N2, from: \"19:00\", to: \"01:00\"}\n"
+                                     "      - {nurse: N1, from: \"01:00\", to: \"02:30\"}\n"
+                                     "  - id: P2\n"
+                                     "    acuity: 1\n"
+                                     "    nurse: N2\n"
+                                     "    arrives_at: \"20:00\"\n"
+                                     "    leaves_at: \"23:00\"\n"
+                                     "    record: [{nurse: N2, from: \"20:00\", to: \"23:00\"}]\n";
+
+static keel_status load_record_example(keel_roster **out, keel_error *err)
+{
+    return keel_roster_parse("roster.yaml", record_example, strlen(record_example), out, err);
+}
+
+/* A record's times are read on the shift's clock, across midnight, and
+ * the copy carries them. */
+static void test_roster_reads_a_record_on_the_shift_clock(void **state)
+{
+    (void)state;
+    keel_error err;
+    keel_roster *r = NULL;
+    keel_error_init(&err);
+    assert_int_equal(load_record_example(&r, &err), KEEL_OK);
+    assert_true(r->clock);
+    const keel_patient *p = &r->patients[0];
+    assert_int_equal(p->nrecord, 2);
+    assert_string_equal(p->record[0].nurse, "N2");
+    assert_int_equal(p->record[0].from, 0);
+    assert_int_equal(p->record[0].to, 360);
+    assert_string_equal(p->record[1].nurse, "N1");
+    assert_int_equal(p->record[1].from, 360);
+    assert_int_equal(p->record[1].to, 450);
+    assert_int_equal(p->record[1].mark.line, 10);
+    /* A record may cover the whole stay of a patient who has left. */
+    assert_int_equal(r->patients[1].nrecord, 1);
+    assert_int_equal(r->patients[1].record[0].to, 240);
+    keel_roster *c = keel_roster_copy(r);
+    assert_non_null(c);
+    assert_int_equal(c->patients[0].nrecord, 2);
+    assert_string_equal(c->patients[0].record[1].nurse, "N1");
+    assert_ptr_not_equal(c->patients[0].record[1].nurse, p->record[1].nurse);
+    assert_int_equal(c->patients[0].record[1].to, 450);
+    keel_roster_free(c);
+    keel_roster_free(r);
+    keel_error_fini(&err);
+}
+
 static keel_status load_issue_example(keel_roster **out, keel_error *err)
 {
     return keel_roster_parse("roster.yaml", issue_example, strlen(issue_example), out, err);
@@ -1171,6 +1227,7 @@ static void test_roster_fails_cleanly_when_any_allocation_fails(void **state)
     (void)state;
     run_with_failing_allocations(load_issue_example, KEEL_OK);
     run_with_failing_allocations(load_night_example, KEEL_OK);
+    run_with_failing_allocations(load_record_example, KEEL_OK);
     run_with_failing_allocations(load_medsurg_example, KEEL_OK);
     run_with_failing_allocations(load_many_problems, KEEL_ERR_INPUT);
 }
@@ -1211,6 +1268,7 @@ int main(int argc, char **argv)
         cmocka_unit_test(test_roster_matches_the_golden_bad_inputs),
         cmocka_unit_test(test_roster_loads_the_example_rosters),
         cmocka_unit_test(test_roster_fails_cleanly_when_any_allocation_fails),
+        cmocka_unit_test(test_roster_reads_a_record_on_the_shift_clock),
     };
     return cmocka_run_group_tests_name("roster", tests, NULL, NULL);
 }

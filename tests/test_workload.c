@@ -365,6 +365,58 @@ static void test_every_stretch_of_a_broken_limit_is_listed(void **state)
     unload(&l);
 }
 
+/* A record cuts the stay at its stretch ends; each recorded part is held by
+ * its stretch's nurse, then nurse and handoffs follow; a limit broken only
+ * in the recorded morning is found there, and a lock binds after it. */
+static void test_a_record_holds_the_parts_before_the_rebalance(void **state)
+{
+    (void)state;
+    static const char *text = "shift: {start: \"07:00\", minutes: 720}\n"
+                              "policy: {max_patients: 1}\n"
+                              "nurses:\n"
+                              "  - {id: N1}\n"
+                              "  - {id: N2, end: \"09:30\"}\n"
+                              "  - {id: N3, end: \"15:00\"}\n"
+                              "  - {id: N4, start: \"15:00\"}\n"
+                              "patients:\n"
+                              "  - id: P1\n"
+                              "    care_minutes: 120\n"
+                              "    nurse: N3\n"
+                              "    lock: true\n"
+                              "    handoffs: [N4]\n"
+                              "    record:\n"
+                              "      - {nurse: N2, from: \"07:00\", to: \"08:00\"}\n"
+                              "      - {nurse: N1, from: \"08:00\", to: \"09:00\"}\n"
+                              "  - id: P2\n"
+                              "    care_minutes: 120\n"
+                              "    nurse: N1\n"
+                              "    record: [{nurse: N2, from: \"07:00\", to: \"09:30\"}]\n";
+    loaded l = load(text);
+    /* P1: 07-08 N2, 08-09 N1, then N3 (cut at 09:30 when N2 leaves) until
+     * 15:00, then N4; P2: 07-09:30 N2, then N1. */
+    assert_int_equal(l.w->first_part[1] - l.w->first_part[0], 5);
+    assert_int_equal(l.w->part_end[0], 60);
+    assert_int_equal(l.w->part_end[1], 120);
+    assert_int_equal(l.w->part_end[2], 150);
+    assert_int_equal(l.w->part_end[3], 480);
+    int plan[8];
+    assert_true(keel_plan_from_roster(l.r, l.w, plan));
+    int want[] = {1, 0, 2, 2, 3};
+    for (int q = 0; q < 5; q++)
+        assert_int_equal(plan[q], want[q]);
+    assert_int_equal(plan[l.w->first_part[1]], 1);
+    assert_int_equal(plan[l.w->first_part[2] - 1], 0);
+    assert_int_equal(keel_workload_first_open(l.r, l.w, 0), 2);
+    keel_findings found = {0};
+    assert_int_equal(keel_plan_check(l.r, l.w, plan, &found, NULL), KEEL_OK);
+    /* N2 held both from 07:00 to 08:00, over her limit of 1; nothing else. */
+    assert_int_equal(found.n, 1);
+    assert_string_equal(found.items[0].rule, "moment_limit");
+    assert_non_null(strstr(found.items[0].message, "from 07:00 to 08:00, N2 has 2 patients"));
+    keel_findings_fini(&found);
+    unload(&l);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -379,6 +431,7 @@ int main(void)
         cmocka_unit_test(test_limits_hold_at_every_moment_not_on_the_total),
         cmocka_unit_test(test_planned_handoffs_follow_the_nurse_who_leaves),
         cmocka_unit_test(test_every_stretch_of_a_broken_limit_is_listed),
+        cmocka_unit_test(test_a_record_holds_the_parts_before_the_rebalance),
     };
     return cmocka_run_group_tests_name("workload", tests, NULL, NULL);
 }

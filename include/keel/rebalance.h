@@ -25,9 +25,9 @@
  * the moves the budget bought.  Option k starts from option k - 1's plan
  * (within k hand-offs too); option 0 from the greedy start (every present
  * patient kept, the others placed heaviest first) when it keeps every
- * rule, else from GLPK's first plan within the budget.  The time limit covers the whole frontier: each
- * option still to solve gets an equal share of the time left (budget.c's
- * "frontier" row), then shares it among its stages as keel_solve() does.
+ * rule, else from GLPK's first plan within the budget.  The time limit covers the whole frontier:
+ * each option still to solve gets an equal share of the time left (budget.c's "frontier" row), then
+ * shares it among its stages as keel_solve() does.
  *
  * The recommendation is the smallest k whose heaviest utilisation is
  * within min_gain of the lowest heaviest utilisation of all options.
@@ -37,7 +37,9 @@
  * over the roster of the rest of the shift (docs/model.md, "The time of
  * the rebalance"): what happened before is fixed, care and capacity count
  * from then on.  With the clock, a patient's current nurse is the nurse of
- * its first part.
+ * its first part.  A patient's record (patients[].record) is history: the
+ * time of the rebalance may not be before its end, and the frontier is
+ * over the roster without it.
  *
  * policy.balance: squares is not supported (KEEL_ERR_USAGE).
  */
@@ -99,10 +101,15 @@ typedef struct keel_rebalance_option {
 
 typedef struct keel_rebalance {
     const keel_roster *roster; /* the roster the plans are over: the input, or with --at the
-                                  rest of the shift (owned by the frontier) */
-    keel_roster *rest;         /* with --at: the rest of the shift (owned), else NULL */
+                                  rest of the shift, or the input without its records
+                                  (owned by the frontier) */
+    keel_roster *rest;         /* that roster when it is not the input (owned), else NULL */
+    const keel_roster *shift;  /* the input roster, the whole shift (borrowed) */
+    int *index;                /* [shift->npatients]: each patient's index in roster, or -1
+                                  when she is not in it (she has left) */
     int at_minute;             /* the time of the rebalance, or -1 */
-    size_t discharged;         /* with --at: patients who left before it (not in roster) */
+    int at_offset;             /* the same in minutes after the shift's start, or -1 */
+    size_t discharged;         /* patients who left before it (not in roster) */
     keel_workload *workload; /* owned: the roster's workload, each patient's previous nurse
                                 replaced by the current one; the options' plans index it */
     keel_solve_status status; /* OPTIMAL: every option proven (a plan, or none within its
@@ -125,6 +132,22 @@ typedef struct keel_rebalance {
 KEEL_API keel_status keel_rebalance_run(const keel_roster *roster,
                                         const keel_rebalance_options *options,
                                         keel_rebalance **out, keel_error *err);
+
+/* The whole shift after option k (keel rebalance --format yaml): the
+ * input roster with each present patient's nurse from the time of the
+ * rebalance on and her planned hand-offs after it as the option's plan
+ * has them.  With a time t, each patient's record is who held her up to
+ * t as the input has it (its record, then its nurse and planned
+ * hand-offs, as keel_plan_from_roster() reads them; where the input names
+ * nobody the nurse before goes on), adjacent stretches of one nurse
+ * joined; patients who left before t stay, with their record; a new
+ * patient (no nurse) who arrived before t, or has no arrival, arrives at
+ * t; an expected admission who arrived before t is a patient.  Without a
+ * time the records are kept as they are.  The caller owns *out; free it
+ * with keel_roster_free().  Statuses: KEEL_OK, KEEL_ERR_USAGE (option k
+ * has no plan), KEEL_ERR_NOMEM. */
+KEEL_API keel_status keel_rebalance_shift(const keel_rebalance *rb, size_t k, keel_roster **out,
+                                          keel_error *err);
 
 /* Frees the frontier.  NULL-safe. */
 KEEL_API void keel_rebalance_free(keel_rebalance *rb);

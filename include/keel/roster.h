@@ -131,6 +131,15 @@ typedef struct keel_nurse {
     keel_mark mark;     /* where the nurse's mapping starts */
 } keel_nurse;
 
+/* One stretch of a patient's record (patients[].record[]): who held her
+ * over [from, to), in minutes after the shift's start. */
+typedef struct keel_stretch {
+    char *nurse;    /* id of a nurse of the roster (who may have left since) */
+    int from;       /* minutes after the shift's start */
+    int to;         /* > from */
+    keel_mark mark; /* where the stretch's mapping starts */
+} keel_stretch;
+
 typedef struct keel_patient {
     char *id;         /* required, unique: the patient, not the bed */
     char *bed;        /* NULL when absent */
@@ -159,7 +168,11 @@ typedef struct keel_patient {
     size_t nhandoffs;
     char **handoffs; /* ids of the nurses who take the patient over, in order, each when
                         the nurse before leaves (a planned hand-off) */
-    keel_mark mark;  /* where the patient's mapping starts */
+    size_t nrecord;
+    keel_stretch *record; /* who held her before the last rebalance, in time order, without
+                             gaps from her arrival; `nurse` and `handoffs` hold from the
+                             end of the last stretch on */
+    keel_mark mark;       /* where the patient's mapping starts */
 } keel_patient;
 
 typedef struct keel_acuity_level {

@@ -696,6 +696,26 @@ static int solver_memory(void)
 static keel_status history_weights(const options *opt, const keel_roster *r, double **weight,
                                    keel_error *err);
 
+/* keel assign plans the whole shift, so it would re-plan the past that a
+ * record (patients[].record, written by keel rebalance --at) fixes: a
+ * roster with one is refused, at the first record. */
+static keel_status refuse_record(const keel_roster *r, keel_error *err)
+{
+    for (size_t p = 0; p < r->npatients; p++) {
+        const keel_patient *pt = &r->patients[p];
+        char key[64];
+        if (pt->nrecord == 0)
+            continue;
+        snprintf(key, sizeof key, "patients[%zu].record", p);
+        return keel_error_add(err, KEEL_ERR_INPUT, r->path, pt->record[0].mark.line,
+                              pt->record[0].mark.column, key,
+                              "keel assign plans the whole shift and would re-plan what the "
+                              "record says happened; expected keel rebalance --at HH:MM for the "
+                              "rest of the shift, or a roster without record");
+    }
+    return KEEL_OK;
+}
+
 static int run_assign(const options *opt)
 {
     state s = {0};
@@ -715,6 +735,8 @@ static int run_assign(const options *opt)
         state_fini(&s);
         return EXIT_INPUT;
     }
+    if (!rc)
+        rc = refuse_record(s.roster, &s.err);
     if (!rc && opt->nfiles > 0)
         rc = history_weights(opt, s.roster, &weight, &s.err);
     so.history = weight;

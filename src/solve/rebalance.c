@@ -41,6 +41,7 @@ void keel_rebalance_free(keel_rebalance *rb)
     free(rb->options);
     keel_workload_free(rb->workload);
     keel_roster_free(rb->rest);
+    free(rb->index);
     free(rb);
 }
 
@@ -348,14 +349,38 @@ static keel_status rest_of_shift(const keel_roster *r, keel_rebalance *rb, keel_
                               r->shift.start_minute / 60, r->shift.start_minute % 60, end / 60,
                               end % 60);
     }
+    for (size_t p = 0; p < r->npatients; p++) {
+        const keel_patient *pt = &r->patients[p];
+        int end = pt->nrecord ? pt->record[pt->nrecord - 1].to : 0;
+        if (end <= t)
+            continue;
+        int clock = (r->shift.start_minute + end) % day;
+        return keel_error_add(err, KEEL_ERR_USAGE, NULL, 0, 0, NULL,
+                              "--at %02d:%02d is before %02d:%02d, where the record of %s ends "
+                              "(the time of the last rebalance); expected a time from then on",
+                              rb->at_minute / 60, rb->at_minute % 60, clock / 60, clock % 60,
+                              pt->id);
+    }
+    rb->at_offset = t;
     keel_workload *w = NULL;
     keel_status rc = keel_workload_compute(r, &w, err);
     if (!rc)
-        rc = keel_rebalance_at(r, w, t, &rb->rest, &rb->discharged, err);
+        rc = keel_rebalance_at(r, w, t, &rb->rest, &rb->discharged, rb->index, err);
     keel_workload_free(w);
-    if (!rc)
-        rb->roster = rb->rest;
     return rc;
+}
+
+/* Without a time: the roster as given, or without its records. */
+static keel_status as_given(const keel_roster *r, keel_rebalance *rb, keel_error *err)
+{
+    bool recorded = false;
+    for (size_t p = 0; p < r->npatients; p++) {
+        rb->index[p] = (int)p;
+        recorded = recorded || r->patients[p].nrecord > 0;
+    }
+    if (!recorded)
+        return KEEL_OK;
+    return keel_rebalance_at_unrecorded(r, &rb->rest, &rb->discharged, rb->index, err);
 }
 
 /* The smallest k within min_gain of the lowest heaviest utilisation. */
@@ -402,10 +427,16 @@ keel_status keel_rebalance_run(const keel_roster *roster, const keel_rebalance_o
     rb->min_gain = options && options->min_gain >= 0 ? options->min_gain : KEEL_REBALANCE_MIN_GAIN;
     rb->noptions = (size_t)most + 1;
     rb->at_minute = options && options->at ? options->at_minute : -1;
-    rb->roster = roster;
-    keel_status rc = rb->at_minute >= 0 ? rest_of_shift(roster, rb, err) : KEEL_OK;
+    rb->at_offset = -1;
+    rb->shift = roster;
+    keel_status rc = KEEL_OK;
+    if (!(rb->index = keel_calloc(roster->npatients ? roster->npatients : 1, sizeof *rb->index)))
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    else
+        rc = rb->at_minute >= 0 ? rest_of_shift(roster, rb, err) : as_given(roster, rb, err);
     if (rc)
         goto out;
+    rb->roster = rb->rest ? rb->rest : roster;
     roster = rb->roster;
     long long keepable = 0;
     rc = derive(roster, rb, &keepable, err);

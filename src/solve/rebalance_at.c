@@ -141,6 +141,16 @@ static bool current_at(const keel_roster *r, keel_patient *p, int t)
     return true;
 }
 
+/* The record is history: the rest of the shift starts after it. */
+static void drop_record(keel_patient *p)
+{
+    for (size_t k = 0; k < p->nrecord; k++)
+        free(p->record[k].nurse);
+    free(p->record);
+    p->record = NULL;
+    p->nrecord = 0;
+}
+
 /* Patient i of the copy, from the original, for the rest from t on. */
 static bool patient_at(const keel_roster *r, const keel_workload *w, size_t i, int t,
                        keel_patient *p)
@@ -169,6 +179,7 @@ static bool patient_at(const keel_roster *r, const keel_workload *w, size_t i, i
     free_names(p->nas, p->nnas);
     p->nas = NULL;
     p->nnas = 0;
+    drop_record(p);
     return true;
 }
 
@@ -185,8 +196,54 @@ static bool clocked(const keel_roster *r)
     return false;
 }
 
+/* Keeps the patients of c for whom gone() is false, in order, each passed
+ * to keep() (false when memory ran out); index as for keel_rebalance_at(). */
+static bool keep_patients(const keel_roster *r, keel_roster *c, size_t *discharged, int *index,
+                          bool (*gone)(const keel_roster *r, size_t p, const void *ctx),
+                          bool (*keep)(size_t p, keel_patient *mine, const void *ctx),
+                          const void *ctx)
+{
+    size_t k = 0;
+    bool ok = true;
+    *discharged = 0;
+    for (size_t p = 0; p < r->npatients; p++) {
+        keel_patient mine = c->patients[p];
+        index[p] = -1;
+        if (gone(r, p, ctx)) {
+            keel_roster_data_patient_fini(&mine);
+            (*discharged)++;
+            continue;
+        }
+        /* Whatever happens, the patient is kept (the roster frees it). */
+        ok = keep(p, &mine, ctx) && ok;
+        index[p] = (int)k;
+        c->patients[k++] = mine;
+    }
+    c->npatients = k;
+    return ok;
+}
+
+/* The context of keel_rebalance_at()'s walk of the patients. */
+typedef struct at_ctx {
+    const keel_roster *r;
+    const keel_workload *w;
+    int t;
+} at_ctx;
+
+static bool left_before(const keel_roster *r, size_t p, const void *ctx)
+{
+    const at_ctx *a = ctx;
+    return or_default(r->patients[p].leaves_at, r->shift.minutes) <= a->t;
+}
+
+static bool keep_at(size_t p, keel_patient *mine, const void *ctx)
+{
+    const at_ctx *a = ctx;
+    return patient_at(a->r, a->w, p, a->t, mine);
+}
+
 keel_status keel_rebalance_at(const keel_roster *r, const keel_workload *w, int t,
-                              keel_roster **out, size_t *discharged, keel_error *err)
+                              keel_roster **out, size_t *discharged, int *index, keel_error *err)
 {
     int L = r->shift.minutes;
     *out = NULL;
@@ -200,25 +257,40 @@ keel_status keel_rebalance_at(const keel_roster *r, const keel_workload *w, int 
         c->shift.break_minutes = (int)ceil_div((long long)r->shift.break_minutes * (L - t), L);
     for (size_t n = 0; n < r->nnurses; n++)
         nurse_at(r, n, t, &c->nurses[n]);
-    size_t k = 0;
-    bool ok = true;
-    for (size_t p = 0; p < r->npatients; p++) {
-        keel_patient mine = c->patients[p];
-        if (or_default(r->patients[p].leaves_at, L) <= t) { /* discharged */
-            keel_roster_data_patient_fini(&mine);
-            (*discharged)++;
-            continue;
-        }
-        /* Whatever happens, the patient is kept (the roster frees it). */
-        ok = patient_at(r, w, p, t, &mine) && ok;
-        c->patients[k++] = mine;
-    }
-    c->npatients = k;
+    at_ctx ctx = {r, w, t};
+    bool ok = keep_patients(r, c, discharged, index, left_before, keep_at, &ctx);
     c->clock = clocked(c);
     if (!ok) {
         keel_roster_free(c);
         return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
     }
     *out = c;
+    return KEEL_OK;
+}
+
+/* True when patient p's record covers her whole stay: she has left. */
+static bool recorded_out(const keel_roster *r, size_t p, const void *ctx)
+{
+    const keel_patient *pt = &r->patients[p];
+    (void)ctx;
+    return pt->nrecord > 0 &&
+           pt->record[pt->nrecord - 1].to >= or_default(pt->leaves_at, r->shift.minutes);
+}
+
+static bool keep_unrecorded(size_t p, keel_patient *mine, const void *ctx)
+{
+    (void)p;
+    (void)ctx;
+    drop_record(mine);
+    return true;
+}
+
+keel_status keel_rebalance_at_unrecorded(const keel_roster *r, keel_roster **out,
+                                         size_t *discharged, int *index, keel_error *err)
+{
+    *out = keel_roster_copy(r);
+    if (!*out)
+        return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    keep_patients(r, *out, discharged, index, recorded_out, keep_unrecorded, NULL);
     return KEEL_OK;
 }

@@ -128,13 +128,48 @@ expect 0 "json at 09:30" -- "$keel" rebalance "$at" --at 09:30 --format json
 cp "$work/out" "$work/at.json"
 json "$work/at.json" "j['at'] == '09:30' and j['discharged'] == 1 and j['recommended_handoffs'] == 2" "json: at, discharged, recommendation"
 expect 0 "yaml at 09:30" -- "$keel" rebalance "$at" --at 09:30 --format yaml -o "$work/rest.yaml"
-has "$work/rest.yaml" 'start: "09:30"' "the rest of the shift starts at 09:30"
-has "$work/rest.yaml" "care_minutes: 190" "P1's care left"
-expect 0 "check the rest of the shift" -- "$keel" check "$work/rest.yaml"
-has "$work/out" "The plan keeps every rule keel checks." "the rest of the shift keeps every rule"
-expect 0 "rebalance the rest of the shift again at 12:00" -- "$keel" rebalance "$work/rest.yaml" --at 12:00 --format json
+has "$work/rest.yaml" 'start: "07:00"' "the yaml is the whole shift, from 07:00"
+has "$work/rest.yaml" '      - {nurse: "N2", from: "07:00", to: "09:30"}' "P2's record: N2 until she left"
+has "$work/rest.yaml" '    leaves_at: "09:00"' "the patient discharged before 09:30 stays on the roster"
+has "$work/rest.yaml" '      - {nurse: "N1", from: "07:00", to: "09:00"}' "with her record"
+hasnt "$work/rest.yaml" "care_minutes" "the care is the whole shift's, not the rest's"
+expect 0 "check the whole shift" -- "$keel" check "$work/rest.yaml"
+has "$work/out" "The plan keeps every rule keel checks." "the whole shift keeps every rule"
+expect 0 "rebalance the written roster again at 12:00" -- "$keel" rebalance "$work/rest.yaml" --at 12:00 --format json
 cp "$work/out" "$work/again-at.json"
-json "$work/again-at.json" "j['at'] == '12:00' and j['forced_moves'] == [] and j['new'] == 0" "the next rebalance starts from the written roster"
+json "$work/again-at.json" "j['at'] == '12:00' and j['forced_moves'] == [] and j['new'] == 0 and j['discharged'] == 1" "the next rebalance starts from the written roster"
+expect 1 "a rebalance before the end of the record" -- "$keel" rebalance "$work/rest.yaml" --at 09:00
+has "$work/err" "--at 09:00 is before 09:30, where the record of P1 ends (the time of the last rebalance); expected a time from then on" "the time of the last rebalance is named"
+expect 2 "assign refuses a roster with a record" -- "$keel" assign "$work/rest.yaml"
+has "$work/err" "rest.yaml:29:9: patients[0].record: keel assign plans the whole shift and would re-plan what the record says happened; expected keel rebalance --at HH:MM for the rest of the shift, or a roster without record" "assign says why, at the record"
+expect 0 "without --at the record is carried through" -- "$keel" rebalance "$work/rest.yaml" --format yaml -o "$work/plain.yaml"
+if diff "$work/rest.yaml" "$work/plain.yaml" | grep -q '^[<>] *- {nurse'; then not_ok "the record is unchanged"; else ok "the record is unchanged"; fi
+
+# The whole shift from an assignment: assign, rebalance at 09:30 and at
+# 13:00 on its output, then check and audit the whole shift.
+sed -e 's/, nurse: N[0-9]//' "$at" >"$work/fresh.yaml"
+expect 0 "assign the fresh shift" -- "$keel" assign "$work/fresh.yaml" --format yaml -o "$work/posted.yaml"
+expect 0 "rebalance the posted plan at 09:30" -- "$keel" rebalance "$work/posted.yaml" --at 09:30 --format yaml -o "$work/s0930.yaml"
+expect 0 "rebalance its output at 13:00" -- "$keel" rebalance "$work/s0930.yaml" --at 13:00 --format yaml -o "$work/s1300.yaml"
+expect 0 "check the whole shift after two rebalances" -- "$keel" check "$work/s1300.yaml"
+has "$work/out" "The plan keeps every rule keel checks." "the whole shift keeps every rule"
+expect 0 "audit the whole shift" -- "$keel" audit "$work/s1300.yaml"
+/usr/bin/python3 "$data/../reference/check_record.py" "$work/posted.yaml" 09:30 "$work/s0930.yaml" >"$work/out" 2>"$work/err" && ok "the record at 09:30 is the posted plan" || not_ok "the record at 09:30 is the posted plan"
+/usr/bin/python3 "$data/../reference/check_record.py" "$work/s0930.yaml" 13:00 "$work/s1300.yaml" >"$work/out" 2>"$work/err" && ok "the record at 13:00 extends the one at 09:30" || not_ok "the record at 13:00 extends the one at 09:30"
+
+# A limit broken only in the recorded morning: as posted, N2 held three
+# patients under a limit of two until she left at 09:30; an admission
+# comes in then.
+morning=$data/rebalance-record.yaml
+expect 0 "rebalance the morning at 09:30" -- "$keel" rebalance "$morning" --at 09:30 --format yaml -o "$work/m0930.yaml"
+has "$work/m0930.yaml" '    arrives_at: "09:30"' "the admission arrives at the time of the rebalance"
+expect 0 "rebalance it at 13:00" -- "$keel" rebalance "$work/m0930.yaml" --at 13:00 --format yaml -o "$work/m1300.yaml"
+has "$work/m1300.yaml" '      - {nurse: "N2", from: "07:00", to: "09:30"}' "N2's morning is on the record"
+expect 0 "check sees the morning" -- "$keel" check "$work/m1300.yaml"
+has "$work/out" "[moment_limit] from 07:00 to 09:30, N2 has 3 patients; the patient limit is 2" "check reports the limit broken in the morning"
+has "$work/out" "  09:30  P1: N2 → N5" "check lists the hand-offs on the record"
+expect 5 "audit sees the morning" -- "$keel" audit "$work/m1300.yaml"
+has "$work/out" "from 07:00 to 09:30, N2 has 3 patients; the patient limit is 2" "the audit lists it"
 
 # The incoming patient preview.
 incoming=$data/rebalance-incoming.yaml

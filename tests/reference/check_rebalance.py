@@ -36,6 +36,8 @@ For every roster and every k = 0..3 (keel rebalance --format json):
     heaviest held): when both prove them, keel's and HiGHS's agree within
     1e-6; keel's heaviest is never below HiGHS's proven optimum, and a
     proven keel value is never above HiGHS's best plan;
+  * at a time of the shift, the record of the yaml written (the whole
+    shift) is who held each patient up to then as posted (check_record.py);
   * an option HiGHS proves to have no plan is `infeasible` in keel, and
     keel says `infeasible` only when HiGHS proves it;
   * the frontier never worsens as k grows; the recommendation is the
@@ -64,6 +66,7 @@ requirements.require_modules()
 
 import yaml  # noqa: E402
 
+import check_record  # noqa: E402
 import gen_rosters  # noqa: E402
 import highs_model  # noqa: E402
 import keel_run  # noqa: E402
@@ -238,6 +241,26 @@ def run_rebalance(keel, path, seconds, at):
     return proc.returncode, doc, proc.stderr
 
 
+def record_problems(keel, path, at):
+    """The record of the whole shift keel writes at `at` against the one
+    check_record.py reads from the roster as posted (the record does not
+    depend on the option, so option 0 in a short time will do)."""
+    written = path[:-len(".yaml")] + "-at.yaml"
+    proc = subprocess.run([keel, "rebalance", path, "-f", "yaml", "--at", at, "--max-handoffs",
+                           "0", "--time-limit", "2", "-o", written],
+                          capture_output=True, text=True, timeout=60)
+    if proc.returncode == 3:
+        return []  # no plan within 0 hand-offs: nothing written
+    if proc.returncode != 0:
+        return ["yaml at %s: exit %d: %s" % (at, proc.returncode,
+                                             keel_run.stderr_head(proc.stderr))]
+    with open(path, encoding="utf-8") as f:
+        before = yaml.safe_load(f)
+    with open(written, encoding="utf-8") as f:
+        after = yaml.safe_load(f)
+    return ["record: " + line for line in check_record.problems(before, at, after)]
+
+
 def option_plan(r, option, problems):
     index = {p["id"]: i for i, p in enumerate(r["patients"])}
     nurse = {n["id"]: j for j, n in enumerate(r["nurses"])}
@@ -272,6 +295,8 @@ def check_one(job):
         return res
     if out.get("at") != at:
         problems.append("at %r, expected %r" % (out.get("at"), at))
+    if at:
+        problems.extend(record_problems(keel, path, at))
     options = out["options"]
     if [o["handoffs"] for o in options] != list(range(MAX_K + 1)):
         problems.append("options are not k = 0..%d" % MAX_K)

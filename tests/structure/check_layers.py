@@ -53,7 +53,7 @@ LAYERS = [
     ("solve: zones", ["solve/zone_*"]),
     ("solve: the orchestrators", ["solve/solve.c", "solve/rebalance_at.c", "solve/rebalance.c"]),
     ("after the solve", ["plan.c", "metrics.c", "explain.c", "course.c", "staffing.c",
-                         "preview.c"]),
+                         "preview.c", "rebalance_shift.c"]),
     ("the verdict", ["verdict.c"]),
     ("report parts", ["report_out.c", "report_plan.c"]),
     ("writers", ["report_*"]),
