@@ -369,6 +369,22 @@ static void write_details(FILE *out, const keel_report *rep)
                     s->stages[i].name, keel_solve_status_name(s->stages[i].status),
                     s->stages[i].value, s->stages[i].bound, 100.0 * s->stages[i].gap);
         fputs("</table>\n", out);
+        for (size_t k = 0; k < s->nranks; k++) {
+            const keel_rank *rk = &s->ranks[k];
+            fputs("<p>", out);
+            if (rk->pinned) {
+                keel_report_out_html(out, rep->roster->nurses[rk->nurse].id);
+                fprintf(out, " is pinned at %.1f %%: no valid plan %shas her lower.</p>\n",
+                        100.0 * rk->utilisation,
+                        rk->utilisation == s->stages[0].value ? ""
+                                                              : "that keeps the nurses above ");
+            } else {
+                fprintf(out,
+                        "The heaviest of the others in the most even plan: %.1f %% (%s).</p>\n",
+                        100.0 * rk->utilisation,
+                        rk->status == KEEL_SOLVE_OPTIMAL ? "proven best possible" : "not proven");
+            }
+        }
         if (s->bound_reason.text) {
             fputs("<p>What sets the bound: ", out);
             keel_report_out_html(out, s->bound_reason.text);

@@ -566,6 +566,27 @@ expect 5 "an audit as html" -- "$keel" audit "$examples/tutorial/history.yaml" -
 has "$work/out" "heaviest loads per nurse against chance" "the audit's chart"
 has "$work/out" "$caution" "the audit's page carries the caution"
 
+# Stage ranks: a nurse pinned at the peak is named, the rest balanced
+# below her (the exhaustive suites check the values).
+expect 0 "a nurse pinned at the peak" -- "$keel" assign "$data/ranks-pinned.yaml"
+has "$work/out" "pinned    N1 at 166.7 %: no valid plan has her lower" "the pinned nurse is named"
+matches "$work/out" "^  the rest +[0-9.]+ %  .*81.9 %, proven best possible" "the rest's level is proven"
+has_joined "$work/out" "P01 alone needs 300 min of care" "what sets the bound says why"
+expect 0 "the ranks as json" -- "$keel" assign "$data/ranks-pinned.yaml" --format json
+if /usr/bin/env python3 - "$work/out" <<'PY'
+import json, sys
+d = json.load(open(sys.argv[1]))
+r = d["ranks"]
+ok = (r[0] == {"rank": 1, "nurse": "N1", "utilisation": r[0]["utilisation"], "pinned": True,
+               "status": "optimal"} and abs(r[0]["utilisation"] - 300 / 180) < 1e-9
+      and r[-1]["nurse"] is None and not r[-1]["pinned"] and abs(r[-1]["utilisation"] - 590 / 720) < 1e-9
+      and [s["name"] for s in d["stages"]][:3] == ["peak", "ranks", "lift"]
+      and all(n["utilisation"] <= 590 / 720 + d["continuity"]["tolerance"] + 1e-9
+              for n in d["nurses"] if n["id"] != "N1"))
+sys.exit(0 if ok else 1)
+PY
+then ok "ranks in json: N1 pinned, the rest at 81.9 %, the others within it and the tolerance"; else not_ok "ranks in json"; fi
+
 # The golden bad censuses: each its exact problems, exit 2.
 for csv in "$data/../data/bad-census"/*.csv; do
     case_name=$(basename "$csv" .csv)
