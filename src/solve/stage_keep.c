@@ -14,6 +14,7 @@
  * bought is measured too: the continuity optimum at zero tolerance, from the
  * balanced assignment, first.
  */
+#include <limits.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -76,13 +77,33 @@ static keel_status greedy_keep(const keel_workload *w, const long long *lo, cons
     return KEEL_OK;
 }
 
-/* Patients whose previous nurse may take them: a simple upper limit. */
-static long long keep_ceiling(const keel_workload *w)
+static int by_care(const void *a, const void *b)
 {
-    long long n = 0;
-    for (size_t p = 0; p < w->npatients; p++)
-        n += w->previous[p] >= 0 && keel_workload_eligible(w, p, (size_t)w->previous[p]);
-    return n;
+    long long x = *(const long long *)a, y = *(const long long *)b;
+    return (x > y) - (x < y);
+}
+
+/* A simple upper limit on the patients kept: per previous nurse v, her
+ * patients she may take, the lightest first, as many as fit her window
+ * hi[v] and (without the clock) her patient limit; cares has room for
+ * every patient. */
+static long long keep_ceiling(const keel_workload *w, const long long *hi, long long *cares)
+{
+    long long total = 0;
+    for (size_t v = 0; v < w->nnurses; v++) {
+        size_t k = 0;
+        for (size_t p = 0; p < w->npatients; p++)
+            if (w->previous[p] == (int)v && keel_workload_eligible(w, p, v))
+                cares[k++] = w->care_minutes[p];
+        qsort(cares, k, sizeof *cares, by_care);
+        long long sum = 0, most = keel_workload_counted(w, v) ? hi[v] : LLONG_MAX;
+        size_t fit = 0;
+        while (fit < k && sum + cares[fit] <= most &&
+               (w->clocked || fit < (size_t)w->max_patients[v]))
+            sum += cares[fit++];
+        total += (long long)fit;
+    }
+    return total;
 }
 
 /* Asks GLPK for the most patients kept inside the windows, from best;
@@ -117,20 +138,20 @@ keel_status keel_stage_keep(const keel_workload *w, bool exact, const keel_ratio
     long long *hi = keel_calloc(nn ? nn : 1, sizeof *hi);
     int *trial = keel_calloc(np ? np : 1, sizeof *trial);
     int *balanced = keel_calloc(np ? np : 1, sizeof *balanced);
+    long long *cares = keel_calloc(np ? np : 1, sizeof *cares);
     keel_status rc = KEEL_OK;
-    if (!lo || !hi || !trial || !balanced) {
+    if (!lo || !hi || !trial || !balanced || !cares) {
         rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
         goto out;
     }
     memcpy(balanced, nurse_of, np * sizeof *balanced);
-    long long bound = keep_ceiling(w);
     int calls = 0;
     sol->continuity.applies = true;
     sol->continuity.candidates = (long)w->ncontinuity;
     sol->continuity.kept_at_zero = -1;
     /* At zero tolerance first, from the balanced assignment. */
     keel_measure_windows(w, level, lift, 0, lo, hi);
-    long long zero_bound = bound;
+    long long zero_bound = keep_ceiling(w, hi, cares);
     if (w->tolerance > 0 && exact) {
         long long mid = keel_budget_until(KEEL_SHARE_KEEP_ZERO, started, deadline_ms, 0);
         if ((rc = greedy_keep(w, lo, hi, balanced, err)) ||
@@ -140,6 +161,7 @@ keel_status keel_stage_keep(const keel_workload *w, bool exact, const keel_ratio
         sol->continuity.zero_proven = sol->continuity.kept_at_zero == zero_bound;
     }
     keel_measure_windows(w, level, lift, w->tolerance, lo, hi);
+    long long bound = keep_ceiling(w, hi, cares);
     if (w->tolerance > 0 && exact)
         memcpy(nurse_of, balanced, np * sizeof *balanced);
     if ((rc = greedy_keep(w, lo, hi, nurse_of, err)))
@@ -166,5 +188,6 @@ out:
     free(hi);
     free(trial);
     free(balanced);
+    free(cares);
     return rc;
 }
