@@ -348,9 +348,9 @@ static void test_every_stage_matches_exhaustive_enumeration(void **state)
         }
         keel_solution_free(s);
         free(b.a);
+        free(b.plans.load);
         free(b.lo);
         free(b.hi);
-        free(b.plans.load);
         tu_case_free(c);
     }
     /* The generator must exercise both outcomes, and the ranks. */
@@ -419,9 +419,9 @@ static void test_history_stage_matches_exhaustive_enumeration(void **state)
         }
         free(weight);
         free(b.a);
+        free(b.plans.load);
         free(b.lo);
         free(b.hi);
-        free(b.plans.load);
         tu_case_free(c);
     }
     print_message("# %d of 300 small rosters checked for stage 5\n", checked);
@@ -833,10 +833,12 @@ static void test_zone_polish_reaches_the_best_plan_with_the_zones_kept_or_better
             assert_true(keel_ratio_cmp(after, whole.peak) >= 0);
             traded += keel_ratio_cmp(after, held.peak) < 0;
             free(held.a);
+            free(held.plans.load);
             free(kept);
         }
         free(plan);
         free(whole.a);
+        free(whole.plans.load);
         tu_case_free(c);
     }
     print_message("# zone polish: %d of %d feasible rosters placed by the greedy; trades beat "
@@ -1016,6 +1018,7 @@ static void test_zone_split_floor_never_passes_the_optimum(void **state)
             keel_solution_free(s);
         }
         free(whole.a);
+        free(whole.plans.load);
         tu_case_free(c);
     }
     print_message("# zone split: rules out the simple floor on %d of %d feasible rosters\n", bites,
