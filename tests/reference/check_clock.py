@@ -42,7 +42,10 @@ start; every interval half-open):
                 nurse's break_minutes, else shift.break_minutes when she is on
                 for at least half the shift, else 0)
   stages      1: min U = max over counted nurses of (duty + care) / capacity;
-              2: max L = min of the same, with U <= U*
+              ranks: the nurses pinned at U* held there, the heaviest of
+              the others as low as it goes, and so on while nurses are
+              pinned (docs/model.md, "Stage ranks"; highs_model.ranks);
+              2: max L = min of the same, with every u(n) <= her level
 
 Three kinds of check, one line each:
   * edge: fixed rosters under data/clock/ with hand-computed figures (the
@@ -67,7 +70,14 @@ only where the patient's presence is cut; loads, capacities,
 utilisations, each patient's care minutes (its parts' total), each
 nurse's start, end and timeline (the count at every change, "off" when she
 leaves) recomputed here; the stage values equal to the reference's when
-both prove them, and never better than a proven optimum.
+both prove them, and never better than a proven optimum; keel's "ranks"
+(the nurses pinned at the peak, their levels, the last rank) equal to the
+reference's when both prove them, the lift compared only when both hold
+the same levels, and the windows of the later stages taken from keel's
+levels.  Every fourth feasible generated roster gets a nurse pinned at the
+peak (pin_nurse: a heavy patient locked to her, here only while she is
+on); the rosters with a pinned nurse are counted and must reach
+--min-pinned of them.
 
 Generated rosters: day (07:00) and night (19:00, crossing midnight) shifts
 of 720 minutes, 2-5 nurses (at least one on the whole shift; others
@@ -97,6 +107,7 @@ import argparse
 import copy
 import itertools
 import os
+import random
 import re
 import sys
 import time
@@ -593,15 +604,20 @@ def solve_clock(r, time_limit=None, model_share=0.0):
     HiGHS's "infeasible" verdict on a feasibility problem proves a stage;
     every incumbent is checked exactly by violations()).  Returns
     {"feasible": True / False / None, "peak", "lift": stage dicts (status,
-    value as a Fraction), "plan"}.
+    value as a Fraction), "ranks" (highs_model.ranks; None unless the peak
+    is proven), "levels" (each counted nurse's ceiling), "plan"}.
 
     model_share: the part of each stage's time for the textbook model (min U
     with a continuous U column; max L) before the descent.  The descent alone
     (0, the default) proved these rosters fastest: measured on 60 generated
     rosters, 18 s in all against 27 s with 0.1."""
-    feasible, peak, lift, plan = highs_model.run_balance(
+    feasible, peak, rk, lift, plan = highs_model.run_balance_ranks(
         r, ClockModel, "parts", time_limit, model_share, lambda p: violations(r, p))
-    return {"feasible": feasible, "peak": peak, "lift": lift, "plan": plan}
+    levels = None if rk is None else rk["levels"]
+    if levels is None and peak is not None and peak.get("value") is not None:
+        levels = {j: peak["value"] for j, n in enumerate(r["nurses"]) if n["counted"]}
+    return {"feasible": feasible, "peak": peak, "ranks": rk, "levels": levels, "lift": lift,
+            "plan": plan}
 
 
 def feasible(r, time_limit=15.0):
@@ -636,9 +652,11 @@ def person_options(r, i):
     return out
 
 
-def brute_force(r, max_combinations):
-    """(U*, L*) as Fractions by enumeration, None when no plan keeps the
-    rules; raises ValueError when there are too many plans."""
+def brute_force(r, max_combinations, full=False):
+    """(U*, L*) as Fractions by enumeration (L* with every nurse within
+    her level, highs_model.ranks_by_enumeration), or with full the whole
+    ranks_by_enumeration() result; None when no plan keeps the rules;
+    raises ValueError when there are too many plans."""
     options = [person_options(r, i) for i in range(len(r["people"]))]
     total = 1
     for o in options:
@@ -652,11 +670,12 @@ def brute_force(r, max_combinations):
             for q, j in zip(r["people"][i]["parts"], seq):
                 plan[q] = j
         if not violations(r, plan):
-            feas.append(peak_lift(r, plan))
+            feas.append(loads_of(r, plan))
     if not feas:
         return None
-    U = min(u for u, _ in feas)
-    return U, max(lo for u, lo in feas if u <= U)
+    rk = highs_model.ranks_by_enumeration(feas, [n["capacity"] for n in r["nurses"]],
+                                          [n["counted"] for n in r["nurses"]])
+    return rk if full else (rk["U"], rk["L"])
 
 
 def plan_count(r):
@@ -1012,11 +1031,49 @@ def to_yaml(doc):
     return "\n".join(out) + "\n"
 
 
-def write_rosters(out_dir, seed, count, infeasible_every=5):
+def pin_nurse(rng, doc):
+    """A nurse pinned at the peak (keel's stage ranks): a nurse on for part
+    of the shift (or the whole of it) gets one more patient, present only
+    while she is on (one part) and locked to her, whose care is 1.3-1.6
+    times her capacity.  Invented figures.  None when no plan would keep
+    the rules (the roster stays as it was)."""
+    trial = copy.deepcopy(doc)
+    r = derive_clock(trial)
+    spans = _spans_of(trial)
+    ok = [j for j, n in enumerate(r["nurses"]) if j > 0 and n["counted"]
+          and (n["limit"] is None or n["limit"] >= 1) and trial["nurses"][j].get("role") is None]
+    if not ok:
+        return None
+    j = rng.choice(ok)
+    s, e = spans[j]
+    cap = r["nurses"][j]["capacity"]
+    # care C present over [s, e) of the 720-minute shift: ceil(C (e - s) / 720)
+    present = 5 * round(cap * rng.uniform(1.3, 1.6) / 5)
+    p = {"id": "P-9%03d" % rng.randint(0, 999), "care_minutes": -(-present * 720 // (e - s)),
+         "nurse": trial["nurses"][j]["id"], "lock": True}
+    if s:
+        p["arrives_at"] = _at(trial, s)
+    if e != 720:
+        p["leaves_at"] = _at(trial, e)
+    trial["patients"].append(p)
+    try:
+        return trial if feasible(derive_clock(trial)) else None
+    except RosterError:
+        return None
+
+
+def write_rosters(out_dir, seed, count, infeasible_every=5, pinned_every=0):
     """Write `count` clock rosters clock-SEED-K.yaml; every
-    infeasible_every-th is infeasible, the kinds in turn."""
+    infeasible_every-th is infeasible, the kinds in turn; with pinned_every
+    K, every K-th feasible one gets a pinned nurse (pin_nurse, its own
+    random stream)."""
+    def make(rng, name, kind):
+        doc = generate(rng, name, kind)
+        if kind is None and pinned_every and int(name.rsplit("-", 1)[1]) % pinned_every == 0:
+            doc = pin_nurse(random.Random("pin-" + name), doc) or doc
+        return doc
     return gen_rosters.write_kinds(out_dir, seed, count, "clock", INFEASIBLE_KINDS,
-                                   infeasible_every, generate, to_yaml)
+                                   infeasible_every, make, to_yaml)
 
 
 # ================================================================ keel's report
@@ -1252,24 +1309,36 @@ def check_report(r, doc):
     if got is None:
         return problems, None
     st, proven, status, kU, kL = got
+    kr = keel_run.read_ranks(r, doc, kU, problems)
+    if kr is None:
+        return problems, None
     if r["stage3"] or r["stage4"]:
-        # Later stages hold every load in the windows keel's own U and L give.
+        # Later stages hold every load in the windows keel's own levels and
+        # L give (docs/model.md).
         tol = r["tol"]
-        for j, (lo, hi) in highs_model.windows(r, kU, kL, tol).items():
+        for j, (lo, hi) in highs_model.windows(r, kU, kL, tol, kr["levels"]).items():
             if not lo <= loads[j] <= hi:
                 problems.append("nurse %s: load %d outside the window [%d, %d] of keel's "
-                                "peak %s, lift %s, tolerance %s"
-                                % (r["nurses"][j]["id"], loads[j], lo, hi, kU, kL, tol))
-    elif fL != kL or fU > kU or (proven["peak"] and fU != kU):
-        problems.append("the plan's utilisation runs %s..%s, the stages give peak %s, lift %s"
-                        % (fL, fU, kU, kL))
+                                "level %s, lift %s, tolerance %s"
+                                % (r["nurses"][j]["id"], loads[j], lo, hi, kr["levels"][j],
+                                   kL, tol))
+    else:
+        if fL != kL or fU > kU or (proven["peak"] and fU != kU):
+            problems.append("the plan's utilisation runs %s..%s, the stages give peak %s, "
+                            "lift %s" % (fL, fU, kU, kL))
+        for j, load, top in keel_run.loads_within(r, loads, kr["levels"]):
+            problems.append("nurse %s: load %d above her level's %d"
+                            % (r["nurses"][j]["id"], load, top))
     return problems, {"plan": plan, "U": kU, "L": kL, "proven": proven, "status": status,
+                      "ranks": kr,
                       "peak_bound": st["peak"].get("bound"),
                       "lift_bound": st["lift"].get("bound")}
 
 
-def compare(k, ref):
-    """keel's stage values against the reference's (exact fractions)."""
+def compare(r, k, ref, bf_ranks=None):
+    """keel's stage values against the reference's (exact fractions);
+    bf_ranks: brute force's ranks when enumerated (they then stand for the
+    reference's)."""
     out = []
     U, L = ref["peak"], ref["lift"]
     # Source (every check below): the optimum of HiGHS through Debian's
@@ -1290,6 +1359,13 @@ def compare(k, ref):
                    % (k["peak_bound"], U["value"]))
     if k["U"] != U["value"] or L is None:
         return out
+    # Stage ranks (docs/model.md), on the same U*.
+    ref_rk = ref["ranks"] if bf_ranks is None else bf_ranks
+    out += keel_run.compare_ranks(r, k["ranks"], ref_rk,
+                                  U["status"] == "optimal" and k["proven"]["peak"])[0]
+    levels = ref["levels"] if bf_ranks is None else bf_ranks["levels"]
+    if k["ranks"]["levels"] != levels:
+        return out          # the lift holds other levels
     if L["status"] == "optimal":
         if k["L"] > L["value"]:
             out.append("lift: keel's L %s above the proven optimum %s" % (k["L"], L["value"]))
@@ -1517,7 +1593,10 @@ def check_one(job):
                       "U": ref["peak"]["value"] if ref["peak"] else None,
                       "L": ref["lift"]["value"] if ref["lift"] else None,
                       "proven": bool(ref["feasible"]) and ref["peak"]["status"] == "optimal"
-                      and ref["lift"]["status"] == "optimal", "brute": False}
+                      and ref["lift"]["status"] == "optimal"
+                      and ref["ranks"]["status"] == "optimal", "brute": False,
+                      "pinned": len(ref["ranks"]["pinned"]) if ref["ranks"]
+                      and ref["ranks"]["status"] == "optimal" else None}
         kept = [c for c in r["covers"] if c["kept"]]
         out["ref"]["covers"] = len(kept)
         if kept:
@@ -1530,16 +1609,27 @@ def check_one(job):
         if kind is not None and ref["feasible"] is not False:
             out["problems"].append("REFERENCE: made infeasible by %s, HiGHS says %s"
                                    % (kind, ref["feasible"]))
+        bf_ranks = None
         if plan_count(r) <= brute_max:
-            bf = brute_force(r, brute_max)
+            bfr = brute_force(r, brute_max, full=True)
+            bf = None if bfr is None else (bfr["U"], bfr["L"])
             out["ref"]["brute"] = True
             if (bf is None) != (ref["feasible"] is False):
                 out["problems"].append("REFERENCE: brute force %s, HiGHS feasible %s"
                                        % (bf, ref["feasible"]))
-            elif bf is not None and out["ref"]["proven"] \
-                    and bf != (ref["peak"]["value"], ref["lift"]["value"]):
-                out["problems"].append("REFERENCE: brute force (U, L) %s, HiGHS %s"
-                                       % (bf, (ref["peak"]["value"], ref["lift"]["value"])))
+            elif bf is not None:
+                bf_ranks = bfr
+                out["ref"]["pinned"] = len(bfr["pinned"])
+                rk = ref["ranks"]
+                got = None if rk is None else (sorted(rk["pinned"]), rk["rest"], rk["levels"])
+                if out["ref"]["proven"] and (bf != (ref["peak"]["value"], ref["lift"]["value"])
+                                             or got != (sorted(bfr["pinned"]), bfr["rest"],
+                                                        bfr["levels"])):
+                    out["problems"].append("REFERENCE: brute force (U, L) %s ranks %s, HiGHS "
+                                           "%s ranks %s"
+                                           % (bf, (sorted(bfr["pinned"]), bfr["rest"]),
+                                              (ref["peak"]["value"], ref["lift"]["value"]),
+                                              got[:2]))
         if keel is None:
             # Reference only: the textbook model first, then the descent,
             # must prove the same optimum.
@@ -1582,8 +1672,9 @@ def check_one(job):
         facts = keel_run.report_facts(out, doc, lambda d: check_report(r, d))
         if facts is None:
             return out
-        out["keel"].update(status=facts["status"], U=facts["U"], L=facts["L"])
-        out["problems"] += compare(facts, ref)
+        out["keel"].update(status=facts["status"], U=facts["U"], L=facts["L"],
+                           pinned=len(facts["ranks"]["pinned"]))
+        out["problems"] += compare(r, facts, ref, bf_ranks)
     except Exception as e:  # a broken roster or reference is a failure, not a crash
         out["problems"].append("check crashed: %s: %s" % (type(e).__name__, e))
     return out
@@ -1621,6 +1712,11 @@ def main(argv=None):
                     help="HiGHS seconds per stage (default 10)")
     ap.add_argument("--brute-max", type=int, default=20000,
                     help="enumerate rosters with at most this many plans (default 20000)")
+    ap.add_argument("--pinned-every", type=int, default=4,
+                    help="every K-th feasible roster gets a nurse pinned at the peak (default 4)")
+    ap.add_argument("--min-pinned", type=float, default=0.15,
+                    help="the least share of the generated rosters with a pinned nurse (by the "
+                         "reference) for a pass (default 0.15)")
     ap.add_argument("--model-share", type=float, default=0.0,
                     help="part of each stage's HiGHS time for the textbook model before the "
                          "descent (default 0: descent only)")
@@ -1628,7 +1724,7 @@ def main(argv=None):
     keel = keel_run.keel_of(ap, args)
     t0 = time.monotonic()
     out_dir, tmp = keel_run.work_dir(args.keep, "keel-clock-")
-    rosters = write_rosters(out_dir, args.seed, args.count)
+    rosters = write_rosters(out_dir, args.seed, args.count, pinned_every=args.pinned_every)
     print("# %d edge cases, %d regression rosters, %d generated rosters (seed %d, made in "
           "%.0f s) in %s; keel --time-limit %g, HiGHS %g s a stage, %d at once"
           % (len(EDGE_CASES), sum(1 for f in os.listdir(EDGE_DIR) if f.startswith("regress_")),
@@ -1657,7 +1753,12 @@ def main(argv=None):
     if keel is not None:
         print("# keel reported optimal on %d of them"
               % sum(1 for x in gen if x["keel"] and x["keel"]["status"] == "optimal"))
-    return keel_run.finish(results, t0, tmp)
+        print("# keel reported ranks (a nurse pinned at the peak) on %d rosters"
+              % sum(1 for x in results if x["keel"] and x["keel"].get("pinned")))
+    short = keel_run.count_pinned(results, [("generated", lambda x: x["name"].startswith(
+        "clock-"), len(rosters))], lambda x: x["ref"] and x["ref"].get("pinned"),
+        args.min_pinned)
+    return keel_run.finish(results, t0, tmp, short)
 
 
 if __name__ == "__main__":

@@ -37,9 +37,18 @@ each rule's infeasibility at least once).  For each roster keel runs as
     compared too when Z is the same.  kept_at_zero_tolerance never beats
     the reference's optimum with tol = 0, and equals it when keel calls it
     proven (its kept_at_zero_tolerance_proven, else status "optimal").
+  * stage ranks (docs/model.md, "Stage ranks"): keel's "ranks" list and
+    stage checked against each other (keel_run.read_ranks); the windows
+    and stage 2's ceilings come from each nurse's level; when both prove
+    U* and the ranks, the same nurses pinned at the same levels and the
+    same last rank; the later stages are compared only when keel and the
+    reference hold the same levels.
 The references check themselves: HiGHS must agree with brute force on the
-tiny rosters, and a roster the generator made infeasible on purpose must
-stay infeasible for HiGHS.
+tiny rosters (the ranks too), and a roster the generator made infeasible on
+purpose must stay infeasible for HiGHS.  Every third feasible roster gets
+a nurse pinned at the peak (gen_rosters.pin_nurses: a short shift and a
+heavy patient locked to her); the rosters with a pinned nurse are counted
+and must reach --min-pinned of each kind.
 
 Usage: check_rules.py KEEL_EXE [--count 30] [--tiny-count 200] [--seed S]
                       [--keel-seconds 10] [--highs-seconds 8] [--jobs 2]
@@ -183,20 +192,29 @@ def check_report(r, doc):
     if got is None:
         return problems, None
     st, proven, status, kU, kL = got
+    kr = keel_run.read_ranks(r, doc, kU, problems)
+    if kr is None:
+        return problems, None
     tol = r["tol"]
     kept, (Z, R) = highs_model.kept_of(r, assign), highs_model.proximity_of(r, assign)
     if r["stage3"] or r["stage4"]:
-        # Stages 3 and 4 hold the windows from keel's own U and L (spec).
-        for j, (lo, hi) in highs_model.windows(r, kU, kL, tol).items():
+        # Stages 3 and 4 hold the windows from keel's own levels and L
+        # (docs/model.md: floor((level(n) + t) cap(n)), ceil((L* - t) cap(n))).
+        for j, (lo, hi) in highs_model.windows(r, kU, kL, tol, kr["levels"]).items():
             if not lo <= loads[j] <= hi:
                 problems.append("nurse %s: load %d outside the window [%d, %d] that keel's "
-                                "own peak %s and lift %s give with tolerance %s"
-                                % (r["nurses"][j]["id"], loads[j], lo, hi, kU, kL, tol))
+                                "own level %s and lift %s give with tolerance %s"
+                                % (r["nurses"][j]["id"], loads[j], lo, hi, kr["levels"][j],
+                                   kL, tol))
     else:
-        # Stage 2's assignment is the answer: its lightest is L, heaviest <= U.
+        # Stage 2's assignment is the answer: its lightest is L, heaviest <= U,
+        # every nurse within her level.
         if fL != kL or fU > kU or (proven["peak"] and fU != kU):
             problems.append("assignment's utilisation %s..%s, stages give peak %s, lift %s"
                             % (fL, fU, kU, kL))
+        for j, load, top in keel_run.loads_within(r, loads, kr["levels"]):
+            problems.append("nurse %s: load %d above her level's %d"
+                            % (r["nurses"][j]["id"], load, top))
     cont = doc.get("continuity")
     if r["stage3"]:
         cst = st.get("continuity", {})
@@ -247,6 +265,7 @@ def check_report(r, doc):
         problems.append("proximity object %r, but no patient has a zone or a room" % (prox,))
     facts = {
         "assign": assign, "status": status, "proven": proven, "U": kU, "L": kL,
+        "ranks": kr,
         "fU": fU, "fL": fL, "kept": kept, "Z": Z, "R": R,
         "peak_bound": st["peak"].get("bound"), "lift_bound": st["lift"].get("bound"),
         "cont_value": st.get("continuity", {}).get("value"),
@@ -276,7 +295,10 @@ def reference(r, tiny, highs_seconds):
     h = highs_model.solve_rules(r, highs_seconds)
     s = h["stages"]
     problems = []
-    ref = {"feasible": h["feasible"], "highs": h}
+    ref = {"feasible": h["feasible"], "highs": h, "ranks": h["ranks"], "levels": h["levels"]}
+    if h["levels"] is None and h["U"] is not None:
+        # No ranks (the peak unproven): U for everyone, as keel without ranks.
+        ref["levels"] = {j: h["U"] for j, n in enumerate(r["nurses"]) if n["counted"]}
     for key, name in (("U", "peak"), ("L", "lift"), ("kept", "continuity"),
                       ("kept0", "continuity0"), ("Z", "proximity"), ("R", "rooms")):
         x = s[name]
@@ -297,9 +319,16 @@ def reference(r, tiny, highs_seconds):
                                     % (key, None if hv is None else
                                        "%s (%s)" % (hv["value"], "proven" if hv["proven"]
                                                     else "unproven"), bf[key]))
+            rk, want = h["ranks"], bf["ranks"]
+            got = None if rk is None else (rk["status"], sorted(rk["pinned"]), rk["rest"],
+                                           rk["levels"])
+            if got != ("optimal", sorted(want["pinned"]), want["rest"], want["levels"]):
+                problems.append("REFERENCE: ranks: HiGHS %s, brute force %s"
+                                % (got, (sorted(want["pinned"]), want["rest"])))
             for key in ("U", "L", "kept", "kept0", "Z", "R"):
                 ref[key] = None if bf[key] is None else {"value": bf[key], "proven": True,
                                                         "bound": bf[key]}
+            ref["ranks"], ref["levels"] = want, want["levels"]
     return ref, problems
 
 
@@ -331,7 +360,12 @@ def compare(r, k, ref):
                    % (k["peak_bound"], U["value"]))
     if k["U"] != U["value"]:
         return out
-    # Stage 2 (lift), the same U held.
+    # Stage ranks (docs/model.md), on the same U*.
+    out += keel_run.compare_ranks(r, k["ranks"], ref["ranks"],
+                                  U["proven"] and k["proven"]["peak"])[0]
+    if ref["levels"] is None or k["ranks"]["levels"] != ref["levels"]:
+        return out          # the lift and the windows hold other levels
+    # Stage 2 (lift), the same levels held.
     if L["bound"] is not None and float(k["L"]) > float(L["bound"]) + TOL:
         out.append("lift: keel's L %.9f above the reference's proven bound %.9f"
                    % (k["L"], L["bound"]))
@@ -446,7 +480,10 @@ def check_one(job):
         t0 = time.monotonic()
         ref, ref_problems = reference(r, tiny, highs_seconds)
         out["ref"] = {"seconds": time.monotonic() - t0, "feasible": ref["feasible"],
-                      **{k: ref[k] for k in ("U", "L", "kept", "Z", "R")}}
+                      **{k: ref[k] for k in ("U", "L", "kept", "Z", "R")},
+                      "pinned": None if ref["ranks"] is None
+                      or ref["ranks"].get("status", "optimal") != "optimal"
+                      else len(ref["ranks"]["pinned"])}
         out["problems"] += ref_problems
         if kind is not None and ref["feasible"] is not False:
             out["problems"].append("REFERENCE: made infeasible by %s, HiGHS says %s"
@@ -484,6 +521,7 @@ def check_one(job):
         if facts is None:
             return out
         kk.update(status=facts["status"], U=facts["U"], L=facts["L"],
+                  pinned=len(facts["ranks"]["pinned"]),
                   kept=facts["kept"] if r["stage3"] else None,
                   Z=facts["Z"] if r["stage4"] else None, R=facts["R"] if r["stage4"] else None)
         if ref["U"] is not None:
@@ -514,7 +552,9 @@ def reference_one(job):
         for share in (1.0, 0.5, 0.0):
             h = highs_model.solve_rules(r, None if tiny else highs_seconds, share)
             ways[share] = h
-        out["ref"] = {"seconds": time.monotonic() - t0, "feasible": ways[0.5]["feasible"]}
+        rk = ways[0.5]["ranks"]
+        out["ref"] = {"seconds": time.monotonic() - t0, "feasible": ways[0.5]["feasible"],
+                      "pinned": len(rk["pinned"]) if rk and rk["status"] == "optimal" else None}
         for key in ("U", "L", "kept", "Z", "R"):
             s = ways[0.5]["stages"][{"U": "peak", "L": "lift", "kept": "continuity",
                                      "Z": "proximity", "R": "rooms"}[key]]
@@ -542,6 +582,13 @@ def reference_one(job):
                     continue
                 if bf is None:
                     continue
+                rk, want = h["ranks"], bf["ranks"]
+                got = None if rk is None else (rk["status"], sorted(rk["pinned"]), rk["rest"],
+                                               rk["levels"])
+                if got != ("optimal", sorted(want["pinned"]), want["rest"], want["levels"]):
+                    out["problems"].append("share %g: ranks HiGHS %s, brute force %s"
+                                           % (share, got, (sorted(want["pinned"]),
+                                                           want["rest"])))
                 for nm, bk in zip(names, bkeys):
                     s = h["stages"][nm]
                     got = None if s is None else (s["status"], s["value"])
@@ -555,8 +602,11 @@ def reference_one(job):
                     out["problems"].append("share %g: feasible %s, share 0.5: %s"
                                            % (share, h["feasible"], base["feasible"]))
                     continue
-                # Later stages compare only while the earlier ones agree.
+                # Later stages compare only while the earlier ones agree (after
+                # the peak, the lift and the windows hold the ranks' levels).
                 for nm in names:
+                    if nm != "peak" and h["levels"] != base["levels"]:
+                        break
                     a, b = h["stages"][nm], base["stages"][nm]
                     if a is None or b is None:
                         continue
@@ -600,6 +650,8 @@ def line(res):
             parts.append("ref U=%s L=%s kept=%s Z=%s R=%s (%.1fs)"
                          % (_fmt(h["U"]), _fmt(h["L"]), _fmt(h["kept"]), _fmt(h["Z"]),
                             _fmt(h["R"]), h["seconds"]))
+            if h.get("pinned"):
+                parts.append("pinned %d" % h["pinned"])
         else:
             parts.append("ref %s (%.1fs)" % ("infeasible" if h["feasible"] is False
                                             else "undecided", h["seconds"]))
@@ -621,6 +673,11 @@ def main(argv=None):
                     help="keel --time-limit per roster (default 10)")
     ap.add_argument("--highs-seconds", type=float, default=8.0,
                     help="HiGHS seconds per stage on unit-size rosters (default 8)")
+    ap.add_argument("--pinned-every", type=int, default=3,
+                    help="every K-th feasible roster gets a nurse pinned at the peak (default 3)")
+    ap.add_argument("--min-pinned", type=float, default=0.2,
+                    help="the least share of each kind's rosters with a pinned nurse (by the "
+                         "reference) for a pass (default 0.2)")
     args = ap.parse_args(argv)
     keel = keel_run.keel_of(ap, args)
     if args.count is None:
@@ -635,11 +692,12 @@ def main(argv=None):
     # once and a third of them again); every fourth tiny one.
     unit = gen_rosters.write_rules_rosters(out_dir, args.seed, args.count,
                                            pre["rules"]["patients"], pre["rules"]["nurses"],
-                                           infeasible_every=3, prefix="rules")
+                                           infeasible_every=3, prefix="rules",
+                                           pinned_every=args.pinned_every)
     tiny = gen_rosters.write_rules_rosters(out_dir, args.seed, args.tiny_count,
                                            pre["rules_tiny"]["patients"],
                                            pre["rules_tiny"]["nurses"], infeasible_every=4,
-                                           prefix="rtiny")
+                                           prefix="rtiny", pinned_every=args.pinned_every)
     gen_secs = time.monotonic() - t0
     jobs = [(p, kind, False, keel, args.keel_seconds, args.highs_seconds) for p, kind in unit]
     jobs += [(p, kind, True, keel, args.keel_seconds, args.highs_seconds) for p, kind in tiny]
@@ -669,7 +727,14 @@ def main(argv=None):
         if rejected:
             print("# keel rejected %d of %d rosters as bad input (exit 2): does this keel "
                   "know the roster rules?" % (rejected, len(results)))
-    return keel_run.finish(results, t0, tmp)
+    if keel is not None:
+        print("# keel reported ranks (a nurse pinned at the peak) on %d rosters"
+              % sum(1 for x in results if x["keel"] and x["keel"].get("pinned")))
+    short = keel_run.count_pinned(
+        results, [("unit-size", lambda x: not x["tiny"], len(unit)),
+                  ("tiny", lambda x: x["tiny"], len(tiny))],
+        lambda x: x["ref"] and x["ref"].get("pinned"), args.min_pinned)
+    return keel_run.finish(results, t0, tmp, short)
 
 
 if __name__ == "__main__":

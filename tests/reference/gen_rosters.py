@@ -796,29 +796,100 @@ def write_kinds(out_dir, seed, count, prefix, kinds, infeasible_every, make, ren
 
 
 def write_rules_rosters(out_dir, seed, count, patients_range, nurses_range,
-                        infeasible_every=4, prefix="rules"):
-    """Write `count` rules rosters (write_kinds, the kinds INFEASIBLE_KINDS)."""
+                        infeasible_every=4, prefix="rules", pinned_every=0):
+    """Write `count` rules rosters (write_kinds, the kinds INFEASIBLE_KINDS);
+    with pinned_every K, every K-th feasible one gets a nurse pinned at the
+    peak (pin_nurses, its own random stream)."""
+    def make(rng, name, kind):
+        doc = generate_rules(rng, name, patients_range, nurses_range, kind)
+        index = int(name.rsplit("-", 1)[1])
+        if kind is None and pinned_every and index % pinned_every == 0:
+            doc = pin_nurses(random.Random("pin-" + name), doc, rules=True) or doc
+        return doc
     return write_kinds(out_dir, seed, count, prefix, INFEASIBLE_KINDS, infeasible_every,
-                       lambda rng, name, kind: generate_rules(rng, name, patients_range,
-                                                              nurses_range, kind),
-                       to_yaml_rules)
+                       make, to_yaml_rules)
 
 
 def write_rosters(out_dir, seed, count, patients_range, nurses_range,
-                  infeasible_rate=0.0, prefix="roster"):
-    """Write `count` rosters into out_dir; return their paths in order."""
+                  infeasible_rate=0.0, prefix="roster", pinned_every=0):
+    """Write `count` rosters into out_dir; return their paths in order.
+    With pinned_every K, every K-th feasible roster gets a nurse pinned at
+    the peak (pin_nurses, its own random stream: the others stay as they
+    were)."""
     os.makedirs(out_dir, exist_ok=True)
     rng = random.Random(seed)
     paths = []
     for k in range(count):
         name = "%s-%d-%03d" % (prefix, seed, k)
         doc = generate(rng, name, patients_range, nurses_range, infeasible_rate)
+        if pinned_every and k % pinned_every == 0 \
+                and highs_model.assignment_feasible(highs_model.derive(doc)):
+            doc = pin_nurses(random.Random("pin-" + name), doc) or doc
         text = to_yaml(doc)
         path = os.path.join(out_dir, name + ".yaml")
         with open(path, "w", encoding="utf-8") as f:
             f.write(text)
         paths.append(path)
     return paths
+
+
+# ------------------------------------------------------------ pinned nurses
+
+# A skill no generated nurse holds (SKILLS does not name it): a patient who
+# needs it can go only to the nurse given it here.
+PIN_SKILL = "ecmo"
+
+
+def _pin_targets(rng, doc, r, how_many):
+    """Up to how_many counted nurses (indices) who may take a patient, the
+    first (charge) nurse and orientees left out."""
+    ok = [j for j, n in enumerate(r["nurses"])
+          if j > 0 and n["counted"] and (n["limit"] is None or n["limit"] >= 1)
+          and doc["nurses"][j].get("role") in (None, "float")]
+    return rng.sample(ok, min(len(ok), how_many))
+
+
+def pin_nurses(rng, doc, rules=False):
+    """Shape doc so that a nurse is pinned at the peak (keel's stage ranks,
+    docs/model.md): one nurse (two, now and then, at different levels)
+    works a few hours with no break and alone may take one more patient
+    whose care is 1.0-1.6 times her capacity; a skill only she holds
+    (PIN_SKILL) on the plain rosters, a lock to her on the rules rosters
+    (rules=True).  Every figure is invented.  Returns the changed document,
+    or None when the change would leave no valid assignment (the caller
+    keeps the roster as it was)."""
+    trial = copy.deepcopy(doc)
+    derive = highs_model.derive_rules if rules else highs_model.derive
+    r = derive(trial)
+    short = trial["shift"]["minutes"] <= 480
+    targets = _pin_targets(rng, trial, r, 2 if rng.random() < 0.3 else 1)
+    if not targets:
+        return None
+    for k, j in enumerate(targets):
+        nurse = trial["nurses"][j]
+        nurse["minutes"] = rng.choice([120, 180, 240] if short else [180, 240, 300])
+        nurse["break_minutes"] = 0
+        nurse.pop("duty_minutes", None)
+        # The second nurse a step lower than the first.
+        care = 5 * round(nurse["minutes"] * rng.uniform(1.3, 1.6) / (1.0 + 0.25 * k) / 5)
+        p = {"id": "P-9%03d" % (100 * k + rng.randint(0, 99)), "care_minutes": care}
+        if rules:
+            p["nurse"], p["lock"] = nurse["id"], True
+        else:
+            skill = PIN_SKILL + ("" if k == 0 else str(k + 1))
+            for other in trial["nurses"]:
+                if skill in other.get("skills", []):
+                    other["skills"].remove(skill)
+            nurse["skills"] = list(nurse.get("skills", [])) + [skill]
+            p["needs"] = [skill]
+        trial["patients"].append(p)
+    if rules:
+        try:
+            highs_model.derive_rules(trial)
+        except highs_model.RosterError:
+            return None
+        return trial if _feasible(trial) else None
+    return trial if highs_model.assignment_feasible(highs_model.derive(trial)) else None
 
 
 def main(argv=None):

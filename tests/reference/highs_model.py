@@ -25,8 +25,14 @@ continuous U;  minimise U  s.t.  sum_n x[p,n] = 1 for every patient,
 sum_p x[p,n] <= limit(n), duty(n) + sum_p care(p) x[p,n] <= capacity(n) U
 for every counted nurse.
 Stage 2 ("lift"): the same assignment rows, each counted nurse's load held
-to U* (the stage-1 value, 1e-9 tolerance), maximise L with
+to her level (U*, or her rank's level: floor(level * capacity) minutes),
+maximise L with
 L capacity(n) <= duty(n) + sum_p care(p) x[p,n] for every counted nurse.
+Stage ranks (between them, only on a proven peak; see ranks() below,
+written from docs/model.md "Stage ranks"): the nurses pinned at U* are
+held there, the heaviest of the others goes as low as it can, and so on;
+stage 2 then holds each counted nurse within her level instead of U*, and
+the windows of stages 3 and 4 start from the levels.
 
 When the textbook model stops at its time share unproven, each stage goes
 on with a descent over whole-minute loads (see _stage1, _stage2): the same
@@ -423,18 +429,19 @@ def _stage1(m, time_limit, model_share):
     return st, assign
 
 
-def _stage2(m, U, start, time_limit, model_share):
-    """Stage 2 (lift) with every counted load held to U (1e-9 tolerance;
-    loads are whole minutes, so the ceiling is a floor).  The textbook model
-    maximises L; unproven, a descent asks for every load > L * capacity
-    (load >= floor(L * capacity) + 1) until HiGHS says infeasible."""
+def _stage2(m, U, start, time_limit, model_share, levels=None):
+    """Stage 2 (lift) with every counted load held to its level: U for
+    everyone, or levels[j] after the ranks (loads are whole minutes, so the
+    ceiling is floor(level * capacity)).  The textbook model maximises L;
+    unproven, a descent asks for every load > L * capacity (load >=
+    floor(L * capacity) + 1) until HiGHS says infeasible."""
     r = m.r
     t0 = time.monotonic()
     deadline = None if time_limit is None else t0 + time_limit
     hi = [None] * len(r["nurses"])
     for j in m.counted:
         cap = r["nurses"][j]["capacity"]
-        hi[j] = math.floor(U * cap + Fraction(1, 10**9) * cap)
+        hi[j] = math.floor((U if levels is None else levels[j]) * cap)
     st = {"status": "time_limit", "value": None, "value_fraction": None, "bound": None,
           "proof": None, "steps": 0}
     assign = start
@@ -455,6 +462,8 @@ def _stage2(m, U, start, time_limit, model_share):
             # Infeasible cannot happen: the stage-1 incumbent meets every row.
             st["status"] = "error"
         if found is not None:
+            if any(x > h for x, h in zip(loads_of(r, found), hi) if h is not None):
+                raise AssertionError("reference stage 2 incumbent breaks a level")
             if peak_lift(r, found)[1] >= peak_lift(r, assign)[1]:
                 assign = found
         db = _dual_bound(res)
@@ -473,17 +482,17 @@ def _stage2(m, U, start, time_limit, model_share):
         if status == "infeasible":
             st["status"], st["proof"] = "optimal", "descent"
         elif better is not None:
-            U2, L2 = peak_lift(r, better)
-            if L2 <= L or U2 > U:
+            _, L2 = peak_lift(r, better)
+            if L2 <= L or any(x > h for x, h in zip(loads_of(r, better), hi) if h is not None):
                 raise AssertionError("HiGHS returned a descent step that is not better")
             assign = better
         else:
             if status != "time_limit":
                 st["status"] = "error"
             break
-    U2, L = peak_lift(r, assign)
-    if U2 > U:
-        raise AssertionError("reference stage 2 raised the peak")
+    _, L = peak_lift(r, assign)
+    if any(x > h for x, h in zip(loads_of(r, assign), hi) if h is not None):
+        raise AssertionError("reference stage 2 broke a level")
     st["value"], st["value_fraction"] = float(L), str(L)
     st["bound"] = _checked_bound(st, float(L), -1)
     st["seconds"] = time.monotonic() - t0
@@ -497,7 +506,8 @@ def solve(r, time_limit=None, stage2_time_limit=None, model_share=0.1):
     model_share: the part of a stage's time given to the textbook model
     before the descent (0 = descent only; 1 = textbook model only).
 
-    Returns {"stage1": {...}, "stage2": {...} or None, "assign": [...]}.
+    Returns {"stage1": {...}, "ranks": {...} (see ranks(); only with stage 1
+    proven), "stage2": {...} or None, "assign": [...]}.
     Each stage has status (optimal / time_limit / infeasible / error), value
     (exact, from the incumbent; None without one), value_fraction (str),
     bound (proven: a lower bound on U* for stage 1, an upper bound on L* for
@@ -505,7 +515,7 @@ def solve(r, time_limit=None, stage2_time_limit=None, model_share=0.1):
     """
     if stage2_time_limit is None:
         stage2_time_limit = time_limit
-    out = {"stage1": None, "stage2": None, "assign": None}
+    out = {"stage1": None, "ranks": None, "stage2": None, "assign": None}
     if any(not e for e in r["eligible"]):
         out["stage1"] = {"status": "infeasible", "value": None, "bound": None,
                          "proof": "no eligible nurse", "seconds": 0.0}
@@ -520,14 +530,237 @@ def solve(r, time_limit=None, stage2_time_limit=None, model_share=0.1):
     out["stage1"], out["assign"] = st1, assign
     if assign is None:
         return out
-    st2, assign2 = _stage2(m, Fraction(st1["value_fraction"]), assign,
-                           stage2_time_limit, model_share)
+    U = Fraction(st1["value_fraction"])
+    levels = None
+    if st1["status"] == "optimal":
+        # Stage ranks (docs/model.md): only on a proven peak.
+        def ask(hi, seconds):
+            res, status, a = m.run(m.load_rows([None] * len(r["nurses"]),
+                                               [hi.get(j) for j in range(len(r["nurses"]))]),
+                                   None, seconds)
+            return status, a
+        def minmax(hi, free, seconds):
+            rows = m.load_rows([None] * len(r["nurses"]),
+                               [hi.get(j) for j in range(len(r["nurses"]))])
+            for j in free:
+                n = r["nurses"][j]
+                rows.append((m.care_row(j) + [(m.nx, -float(n["capacity"]))],
+                             -np.inf, -float(n["duty"])))
+            return m.run(rows, OBJ_SCALE, seconds, float(U) + 1.0)[2]
+        rk = ranks(r, ask, U, assign, time_limit, minmax=minmax)
+        out["ranks"] = rk
+        levels, assign = rk["levels"], rk["assign"]
+    st2, assign2 = _stage2(m, U, assign, stage2_time_limit, model_share, levels)
     out["stage2"], out["assign"] = st2, assign2
     return out
 
 
+# ======================================================================
+# Stage ranks: balance beyond a pinned peak
+# ======================================================================
+#
+# Source: keel's docs/model.md, "Objectives, in order" and "Stage ranks:
+# balance beyond a pinned peak" (the contract; not keel's C code).  With U*
+# proven:
+#   V = U*; every counted nurse free, each held at most V.
+#   while two or more nurses are free:
+#     a free nurse at V in the plan is pinned when no valid plan with every
+#     held nurse at most her level, every free one at most V, has her
+#     strictly below V (a feasibility question HiGHS answers "infeasible");
+#     none pinned: stop; pinned ones are held at V for good; none free: stop;
+#     V' = the least heaviest utilisation of the free nurses over the plans
+#     that keep the levels (a descent: a plan with every free load
+#     <= ceil(v cap) - 1 until HiGHS says infeasible); V' = V: stop; V = V'.
+#   Afterwards level(n) = her pinned level, else the last V; the "rest" (the
+#   heaviest of the free nurses) is reported when some nurse is pinned and
+#   some are free.
+# Loads are whole minutes, so "u(n) <= V" is load <= floor(V cap(n)) and
+# "u(n) < V" is load <= ceil(V cap(n)) - 1, exactly.  Only HiGHS's
+# "infeasible" verdicts are taken as proofs; every plan it returns is
+# checked exactly against the rows asked for.
+
+
+def ranks(r, ask, U, start, time_limit, key="patients", minmax=None):
+    """The ranks of roster r from the proven U* and a plan start with
+    every counted nurse at most U*.
+
+    ask(hi, seconds) -> (HiGHS status, plan or None): a valid plan with
+    every counted nurse j's load (duty + care) at most hi[j], the plan
+    already checked against the hard rules.  minmax(hi, free, seconds) ->
+    plan or None (optional): HiGHS's textbook model of V' (minimise t with
+    every free load <= t cap, the same rows hi), run for half of the time
+    left before the descent; its plan is only a better start for the
+    descent, which alone proves V'.  Returns {"status": optimal /
+    time_limit (a question or the descent ran out of time: nothing after
+    it is proven), "pinned": [(nurse index, level)] in rank order, "rest":
+    the last V or None, "levels": {counted j: level}, "assign": a plan that
+    keeps the levels, "questions", "steps", "seconds"}.
+    """
+    t0 = time.monotonic()
+    deadline = None if time_limit is None else t0 + time_limit
+    nurses = r["nurses"]
+    counted = [j for j, n in enumerate(nurses) if n["counted"]]
+    level, free = {}, set(counted)
+    V, plan = U, start
+    out = {"status": "optimal", "pinned": [], "rest": None, "levels": None,
+           "questions": 0, "steps": 0}
+
+    def u(a, j):
+        return Fraction(loads_of(r, a, key)[j], nurses[j]["capacity"])
+
+    def rows(v_free, fn):
+        hi = {j: math.floor(lv * nurses[j]["capacity"]) for j, lv in level.items()}
+        for j in free:
+            hi[j] = fn(v_free, nurses[j]["capacity"])
+        return hi
+
+    def at_most(v, cap):
+        return math.floor(v * cap)
+
+    def below(v, cap):
+        return math.ceil(v * cap) - 1
+
+    def checked(a, hi):
+        loads = loads_of(r, a, key)
+        if any(loads[j] > h for j, h in hi.items()):
+            raise AssertionError("reference ranks plan breaks its load rows")
+        return a
+
+    def left():
+        return None if deadline is None else deadline - time.monotonic()
+
+    if any(u(plan, j) > U for j in counted):
+        raise AssertionError("reference ranks: the start plan is above U*")
+    while len(free) >= 2 and out["status"] == "optimal":
+        new = []
+        for j in sorted(free):
+            if u(plan, j) != V:
+                continue            # below V in a plan that keeps the levels
+            hi = rows(V, at_most)
+            hi[j] = below(V, nurses[j]["capacity"])
+            out["questions"] += 1
+            if hi[j] < nurses[j]["duty"]:
+                new.append(j)       # her duty alone keeps her at V or above
+                continue
+            if left() is not None and left() <= 0.05:
+                out["status"] = "time_limit"
+                break
+            status, a = ask(hi, left())
+            if a is not None:
+                checked(a, hi)      # a plan has her below V: not pinned
+            elif status == "infeasible":
+                new.append(j)
+            else:
+                out["status"] = "time_limit"
+                break
+        if out["status"] != "optimal" or not new:
+            break
+        for j in new:
+            level[j] = V
+            free.discard(j)
+            out["pinned"].append((j, V))
+        if not free:
+            break
+        # V': the least heaviest of the free nurses, held ones at their levels.
+        if minmax is not None:
+            hi = rows(V, at_most)
+            a = minmax(hi, sorted(free), None if left() is None else left() / 2)
+            if a is not None and max(u(checked(a, hi), j) for j in free) \
+                    < max(u(plan, j) for j in free):
+                plan = a
+        while True:
+            v = max(u(plan, j) for j in free)
+            if left() is not None and left() <= 0.05:
+                out["status"] = "time_limit"
+                break
+            hi = rows(v, below)
+            status, a = ask(hi, left())
+            out["steps"] += 1
+            if a is not None:
+                plan = checked(a, hi)
+            elif status == "infeasible":
+                break
+            else:
+                out["status"] = "time_limit"
+                break
+        if v == V:
+            break
+        V = v
+    if out["pinned"] and free:
+        out["rest"] = V
+    out["levels"] = {j: level.get(j, V) for j in counted}
+    out["assign"] = plan
+    out["seconds"] = time.monotonic() - t0
+    return out
+
+
+def level_ceilings(r, levels):
+    """Whole-minute load ceilings floor(level(n) cap(n)) of the counted
+    nurses (every u(n) <= level(n))."""
+    return {j: math.floor(lv * r["nurses"][j]["capacity"]) for j, lv in levels.items()}
+
+
+def ranks_by_enumeration(loads, caps, counted):
+    """The peak, the ranks and the lift over every valid plan, by their
+    definitions (docs/model.md, "Stage ranks"), exactly.
+
+    loads: an integer array, one row of loads (duty + care) per valid plan
+    (at least one); caps: capacities; counted: a bool per nurse.  Returns
+    {"U", "pinned": [(j, level)] (nurse order within a level), "rest",
+    "levels", "L"} (Fractions).
+    """
+    loads = np.asarray(loads, dtype=np.int64)
+    caps = [int(c) for c in caps]
+    cols = [j for j in range(len(caps)) if counted[j]]
+
+    def within(mask, who, v):
+        # every nurse of `who` at most v, exactly: load * den <= num * cap
+        ok = mask.copy()
+        for j in who:
+            ok &= loads[:, j] * v.denominator <= v.numerator * caps[j]
+        return ok
+
+    def least_top(mask, who):
+        # min over the plans of mask of max over who of load / cap, exact:
+        # floats pick the candidates (distinct fractions with capacities up
+        # to 1440 differ by more than 4e-7), fractions decide.
+        f = np.max(loads[:, who] / np.array([caps[j] for j in who], float), axis=1)
+        f = np.where(mask, f, np.inf)
+        cand = np.nonzero(f <= f.min() + 1e-9)[0]
+        return min(max(Fraction(int(loads[i, j]), caps[j]) for j in who) for i in cand)
+
+    everyone = np.ones(loads.shape[0], dtype=bool)
+    U = least_top(everyone, cols)
+    kept = within(everyone, cols, U)
+    V, free, level, pinned = U, list(cols), {}, []
+    while len(free) >= 2:
+        new = [j for j in free
+               if np.all(loads[kept, j] * V.denominator == V.numerator * caps[j])]
+        if not new:
+            break
+        for j in new:
+            level[j] = V
+            pinned.append((j, V))
+        free = [j for j in free if j not in new]
+        if not free:
+            break
+        V = least_top(kept, free)
+        kept = within(kept, free, V)
+    levels = {j: level.get(j, V) for j in cols}
+    # The lift: the most lightest over the plans that keep every level
+    # (kept is exactly those).
+    f = np.min(loads[:, cols] / np.array([caps[j] for j in cols], float), axis=1)
+    f = np.where(kept, f, -np.inf)
+    cand = np.nonzero(f >= f.max() - 1e-9)[0]
+    L = max(min(Fraction(int(loads[i, j]), caps[j]) for j in cols) for i in cand)
+    return {"U": U, "pinned": pinned, "rest": V if pinned and free else None,
+            "levels": levels, "L": L}
+
+
 def brute_force(r, max_combinations=2_000_000):
-    """Exhaustive lexicographic optimum (U*, L*) as Fractions, or None if infeasible.
+    """Exhaustive optimum (U*, L*, ranks) by enumeration, or None if
+    infeasible: U* and the lift L* (every nurse within her level) as
+    Fractions, ranks as ranks_by_enumeration() gives them.
 
     Enumerates every eligible assignment with numpy; for tiny rosters only.
     """
@@ -556,25 +789,8 @@ def brute_force(r, max_combinations=2_000_000):
     ok = np.all(counts <= limits, axis=1)
     if not ok.any():
         return None
-    loads, choice = loads[ok], choice[ok]
-    util = loads[:, counted] / caps[counted]
-    peak = util.max(axis=1)
-    best = peak.min()
-    # Exact tie handling: candidates within float noise, then exact fractions.
-    cand = np.nonzero(peak <= best + 1e-12)[0]
-    idx = np.nonzero(counted)[0]
-
-    def exact(ci):
-        return max(Fraction(int(loads[ci, j]), int(caps[j])) for j in idx), \
-            min(Fraction(int(loads[ci, j]), int(caps[j])) for j in idx)
-
-    U = min(exact(ci)[0] for ci in cand)
-    mins = util.min(axis=1)
-    lift_cand = np.nonzero(peak <= float(U) + 1e-12)[0]
-    top = mins[lift_cand].max()
-    L = max(exact(ci)[1] for ci in lift_cand[mins[lift_cand] >= top - 1e-12]
-            if exact(ci)[0] <= U)
-    return U, L
+    rk = ranks_by_enumeration(loads[ok], caps, counted)
+    return rk["U"], rk["L"], rk
 
 
 # ======================================================================
@@ -594,9 +810,11 @@ def brute_force(r, max_combinations=2_000_000):
 #   4 high-acuity patients of n <= K      5 no nurse with a protective and a
 #                                           contact/droplet/airborne patient
 #   6 distinct zones of n <= max_zones
-# Stages: 1 peak U* = min max u; 2 lift L* = max min u with u <= U*;
+# Stages: 1 peak U* = min max u; ranks (ranks() above) give each counted
+#   nurse a level (U* without a pinned nurse); 2 lift L* = max min u with
+#   u(n) <= level(n);
 #   3 continuity: max kept within the windows
-#       load(n) <= floor((U* + tol) cap(n)), load(n) >= ceil((L* - tol) cap(n));
+#       load(n) <= floor((level(n) + tol) cap(n)), load(n) >= ceil((L* - tol) cap(n));
 #   4 proximity: same windows, kept >= count*; min Z (sum over nurses of
 #       distinct zones), then min R (distinct rooms).
 #
@@ -860,12 +1078,18 @@ def count_breaks(r, n, held):
     return out
 
 
-def windows(r, U, L, tol):
-    """Per counted nurse (lo, hi) load windows of stages 3 and 4, exact."""
+def windows(r, U, L, tol, levels=None):
+    """Per counted nurse (lo, hi) load windows of stages 3 and 4, exact:
+    hi from her level (levels[j] after the ranks, else U), lo from L.
+    Source: docs/model.md, "Objectives, in order": care(n) <=
+    floor((level(n) + t) capacity(n)) - duty(n), care(n) >=
+    ceil((L* - t) capacity(n)) - duty(n) (here as loads, duty included)."""
     out = {}
     for j, n in enumerate(r["nurses"]):
         if n["counted"]:
-            out[j] = (math.ceil((L - tol) * n["capacity"]), math.floor((U + tol) * n["capacity"]))
+            top = U if levels is None else levels[j]
+            out[j] = (math.ceil((L - tol) * n["capacity"]),
+                      math.floor((top + tol) * n["capacity"]))
     return out
 
 
@@ -1103,8 +1327,16 @@ def _run_stage(r, sg, time_limit, model_share, start, breaks=None):
             accept(a, False)
         if status == "infeasible":
             if start is not None:
-                raise AssertionError("HiGHS: %s infeasible with a known solution" % sg.name)
-            st["status"], st["claim"] = "infeasible", "model"
+                if not sg.holds(start):
+                    raise AssertionError("reference %s start breaks the stage's holds"
+                                         % sg.name)
+                # A wrong verdict: scipy 1.10's HiGHS (presolve off) has called
+                # the lift's textbook model infeasible while its start keeps
+                # every row (a unit-size roster with ranks; the same rows
+                # without the L column solved).  The descent decides.
+                st["refuted"] = True
+            else:
+                st["status"], st["claim"] = "infeasible", "model"
         elif status == "optimal":
             st["claim"] = "model"
             if a is not None and sg.value(a) != sg.value(best):
@@ -1179,8 +1411,12 @@ def _balance_stages(r, model, key):
                       lambda a: peak_lift(r, a, key)[0], +1, objective,
                       lambda db: db / OBJ_SCALE, better)
 
-    def lift(U):
-        hi = {j: math.floor(U * n[j]["capacity"]) for j, x in enumerate(n) if x["counted"]}
+    def lift(U, levels=None):
+        # Every counted nurse within her level (docs/model.md, stage 2 lift:
+        # u(n) <= level(n); U for everyone without the ranks).
+        if levels is None:
+            levels = {j: U for j, x in enumerate(n) if x["counted"]}
+        hi = level_ceilings(r, levels)
 
         def build():
             m = model(r)
@@ -1206,22 +1442,80 @@ def _balance_stages(r, model, key):
 
 
 def run_balance(r, model, key, time_limit, model_share, breaks=None):
-    """Stages 1 and 2 of roster r (see _balance_stages, _run_stage).
+    """Stages 1 and 2 of roster r (see _balance_stages, _run_stage), without
+    the ranks (keel rebalance's options; docs/model.md).
 
     Returns (feasible: True / False / None (unknown), peak status, lift
     status or None, the assignment or None).
     """
+    feasible, st, _, st2, a = run_balance_ranks(r, model, key, time_limit, model_share,
+                                                breaks, with_ranks=False)
+    return feasible, st, st2, a
+
+
+def milp_ask(r, model, key, breaks=None):
+    """ranks()'s question on model(r): a plan with every counted load at
+    most hi[j], checked against the hard rules (breaks(a), default
+    violations)."""
+    if breaks is None:
+        breaks = lambda a: violations(r, a)  # noqa: E731
+
+    def ask(hi, seconds):
+        m = model(r)
+        m.load_rows({}, hi)
+        res, status = m.solve({}, seconds)
+        a = m.assignment(res)
+        if a is not None:
+            bad = breaks(a) if None not in a else [("assignment", "an item without a nurse")]
+            if bad:
+                raise AssertionError("reference ranks plan breaks %s" % (bad[0],))
+        return status, a
+    return ask
+
+
+def milp_minmax(r, model, key, U, breaks=None):
+    """ranks()'s textbook model on model(r): minimise t, every free load
+    <= t capacity, every load within hi; the plan checked as in milp_ask."""
+    if breaks is None:
+        breaks = lambda a: violations(r, a)  # noqa: E731
+
+    def minmax(hi, free, seconds):
+        m = model(r)
+        m.load_rows({}, hi)
+        t = m.col(0.0, float(U) + 1.0, integer=False)
+        for j in free:
+            n = r["nurses"][j]
+            m.row(m.care_terms(j) + [(t, -float(n["capacity"]))], hi=-float(n["duty"]))
+        res, status = m.solve({t: OBJ_SCALE}, seconds)
+        a = m.assignment(res)
+        if a is not None:
+            bad = breaks(a) if None not in a else [("assignment", "an item without a nurse")]
+            if bad:
+                raise AssertionError("reference ranks plan breaks %s" % (bad[0],))
+        return a
+    return minmax
+
+
+def run_balance_ranks(r, model, key, time_limit, model_share, breaks=None, with_ranks=True):
+    """Stages 1, ranks (with_ranks, and only on a proven peak) and 2 of
+    roster r.  Returns (feasible, peak status, ranks (see ranks()) or None,
+    lift status or None, the assignment or None)."""
     if any(not e for e in r["eligible"]):
         return False, {"status": "infeasible", "value": None, "bound": None,
-                       "proof": "no eligible nurse", "seconds": 0.0}, None, None
+                       "proof": "no eligible nurse", "seconds": 0.0}, None, None, None
     peak, lift = _balance_stages(r, model, key)
     st, a = _run_stage(r, peak(), time_limit, model_share, None, breaks)
     if st["status"] == "infeasible":
-        return False, st, None, None
+        return False, st, None, None, None
     if a is None:
-        return None, st, None, None
-    st2, a = _run_stage(r, lift(st["value"]), time_limit, model_share, a, breaks)
-    return True, st, st2, a
+        return None, st, None, None, None
+    rk, levels = None, None
+    if with_ranks and st["status"] == "optimal":
+        rk = ranks(r, milp_ask(r, model, key, breaks), st["value"], a, time_limit, key,
+                   milp_minmax(r, model, key, st["value"], breaks) if model_share > 0 else None)
+        levels, a = rk["levels"], rk["assign"]
+    st2, a = _run_stage(r, lift(st["value"], levels), time_limit, model_share, a, breaks)
+    return True, st, rk, st2, a
 
 
 def _stage_specs(r):
@@ -1290,25 +1584,31 @@ def solve_rules(r, time_limit=None, model_share=0.1, zero_tolerance=True):
     solve().  Returns {"feasible": True / False / None (unknown),
     "stages": {"peak", "lift", "continuity", "proximity", "rooms",
     "continuity0"}: status dicts (None when the stage does not apply),
-    "U", "L": the values the later stages hold (exact), "proven": True when
-    every earlier stage a later one depends on is proven, "assign"}.
+    "U", "L": the values the later stages hold (exact), "ranks" (see
+    ranks(); None when the peak is not proven), "levels": each counted
+    nurse's level (None without the ranks), "proven": True when every
+    earlier stage a later one depends on is proven (the ranks too),
+    "assign"}.
     continuity0 is stage 3 with tol = 0 (kept_at_zero_tolerance).
     """
     out = {"feasible": None, "stages": dict.fromkeys(
         ("peak", "lift", "continuity", "proximity", "rooms", "continuity0")),
-        "U": None, "L": None, "assign": None, "proven": False}
-    out["feasible"], st, st2, a = run_balance(r, RulesModel, "patients", time_limit,
-                                              model_share)
+        "U": None, "L": None, "ranks": None, "levels": None, "assign": None, "proven": False}
+    out["feasible"], st, rk, st2, a = run_balance_ranks(r, RulesModel, "patients", time_limit,
+                                                        model_share)
     out["stages"]["peak"] = st
+    out["ranks"] = rk
     if st2 is None:
         return out
     continuity, zones, rooms = _stage_specs(r)
     U = st["value"]
     out["stages"]["lift"] = st2
     L = st2["value"]
-    out["U"], out["L"], out["assign"] = U, L, a
-    proven = st["status"] == "optimal" and st2["status"] == "optimal"
-    win = windows(r, U, L, r["tol"])
+    levels = None if rk is None else rk["levels"]
+    out["U"], out["L"], out["levels"], out["assign"] = U, L, levels, a
+    proven = st["status"] == "optimal" and st2["status"] == "optimal" \
+        and rk is not None and rk["status"] == "optimal"
+    win = windows(r, U, L, r["tol"], levels)
     kept = 0
     if r["stage3"]:
         st3, a = _run_stage(r, continuity(win), time_limit, model_share, a)
@@ -1318,7 +1618,8 @@ def solve_rules(r, time_limit=None, model_share=0.1, zero_tolerance=True):
             if r["tol"] == 0:
                 out["stages"]["continuity0"] = st3
             else:
-                st0, _ = _run_stage(r, continuity(windows(r, U, L, Fraction(0))), time_limit,
+                st0, _ = _run_stage(r, continuity(windows(r, U, L, Fraction(0), levels)),
+                                    time_limit,
                                     model_share, out["assign"])
                 out["stages"]["continuity0"] = st0
     proven3 = proven and (not r["stage3"] or out["stages"]["continuity"]["status"] == "optimal")
@@ -1363,6 +1664,7 @@ def brute_force_rules(r, max_combinations=300_000):
     Enumerates every nurse for every patient (eligibility is tested by
     violations() itself, not taken from r["eligible"]).  Returns None when
     no assignment keeps the hard rules, else a dict with U, L (Fractions),
+    ranks (ranks_by_enumeration()),
     kept, kept0 (tol = 0) (None when stage 3 does not apply), Z, R (None when
     stage 4 does not apply) and one optimal assignment.
     """
@@ -1384,13 +1686,15 @@ def brute_force_rules(r, max_combinations=300_000):
             feas.append((combo, loads, max(us), min(us)))
     if not feas:
         return None
-    U = min(f[2] for f in feas)
-    L = max(f[3] for f in feas if f[2] <= U)
-    out = {"U": U, "L": L, "kept": None, "kept0": None, "Z": None, "R": None}
+    rk = ranks_by_enumeration([f[1] for f in feas], caps,
+                              [n["counted"] for n in r["nurses"]])
+    U, L, levels = rk["U"], rk["L"], rk["levels"]
+    out = {"U": U, "L": L, "ranks": rk, "kept": None, "kept0": None, "Z": None, "R": None}
 
     def within(f, tol):
-        return all(math.ceil((L - tol) * caps[j]) <= f[1][j] <= math.floor((U + tol) * caps[j])
-                   for j in counted)
+        # The windows of stages 3 and 4 from each nurse's level (docs/model.md).
+        return all(math.ceil((L - tol) * caps[j]) <= f[1][j]
+                   <= math.floor((levels[j] + tol) * caps[j]) for j in counted)
     inside = [f for f in feas if within(f, r["tol"])]
     kept = 0
     if r["stage3"]:

@@ -11,6 +11,7 @@ Imports only the standard library.
 
 import concurrent.futures
 import json
+import math
 import os
 import subprocess
 import tempfile
@@ -95,8 +96,11 @@ def read_stages(r, doc, problems, statuses=None):
     proven; with `statuses`, the overall status one of them.  Returns (st
     by name, proven by name, status, U, L exact) or None when the peak and
     lift values cannot be read."""
-    want_names = ["peak", "lift"] + (["continuity"] if r["stage3"] else []) \
-        + (["proximity"] if r["stage4"] else [])
+    # Stage "ranks" between peak and lift when keel reports ranks
+    # (docs/model.md: the stage and the "ranks" key only when some nurse is
+    # pinned; read_ranks checks the key itself).
+    want_names = ["peak"] + (["ranks"] if doc.get("ranks") is not None else []) + ["lift"] \
+        + (["continuity"] if r["stage3"] else []) + (["proximity"] if r["stage4"] else [])
     stages = doc.get("stages")
     if not isinstance(stages, list) or not all(isinstance(s, dict) for s in stages):
         problems.append("report has no stages list")
@@ -133,6 +137,132 @@ def report_facts(out, doc, check):
     problems, facts = check(doc)
     out["problems"] += problems
     return facts
+
+
+def read_ranks(r, doc, kU, problems):
+    """keel's stage ranks (docs/model.md "Stage ranks", docs/output.md):
+    the "ranks" list and the stage "ranks", checked against each other and
+    keel's peak kU.  Returns {"present", "status" (the stage's), "pinned":
+    [(nurse index, level)], "rest": the last level of the nurses not pinned
+    or None, "rest_status", "levels": {counted j: her ceiling}} (levels
+    kU for everyone without ranks), or None when unreadable."""
+    counted = [j for j, n in enumerate(r["nurses"]) if n["counted"]]
+    stages = doc.get("stages") if isinstance(doc.get("stages"), list) else []
+    stage = next((s for s in stages if isinstance(s, dict) and s.get("name") == "ranks"), None)
+    entries = doc.get("ranks")
+    out = {"present": entries is not None, "status": None, "pinned": [], "rest": None,
+           "rest_status": None, "levels": {j: kU for j in counted}}
+    if entries is None:
+        if stage is not None:
+            problems.append("stage ranks without a \"ranks\" list")
+            return None
+        return out
+    if stage is None:
+        problems.append("a \"ranks\" list without the stage ranks")
+        return None
+    out["status"] = stage.get("status")
+    by_id = {n["id"]: j for j, n in enumerate(r["nurses"])}
+    if not isinstance(entries, list) or not entries:
+        problems.append("\"ranks\" is %r, not a non-empty list" % (entries,))
+        return None
+    last = None
+    for k, e in enumerate(entries):
+        if not isinstance(e, dict):
+            problems.append("ranks entry %r is not an object" % (e,))
+            return None
+        v = exact(e.get("utilisation"), r)
+        if e.get("rank") != k + 1 or v is None:
+            problems.append("ranks entry %d: rank %r, utilisation %r" % (k + 1, e.get("rank"),
+                                                                       e.get("utilisation")))
+            return None
+        if last is not None and v > last:
+            problems.append("ranks entry %d: utilisation %s above the rank before it (%s)"
+                            % (k + 1, v, last))
+        last = v
+        if e.get("pinned") is True:
+            j = by_id.get(e.get("nurse"))
+            if j is None or j not in counted or any(j == i for i, _ in out["pinned"]):
+                problems.append("ranks entry %d: pinned nurse %r unknown, not counted or "
+                                "twice" % (k + 1, e.get("nurse")))
+                return None
+            if out["rest"] is not None:
+                problems.append("ranks entry %d: a pinned nurse after the rest" % (k + 1))
+            if e.get("status") != "optimal":
+                problems.append("ranks entry %d: pinned with status %r (pinned is proven)"
+                                % (k + 1, e.get("status")))
+            out["pinned"].append((j, v))
+        elif e.get("pinned") is False and e.get("nurse") is None and k == len(entries) - 1:
+            out["rest"], out["rest_status"] = v, e.get("status")
+        else:
+            problems.append("ranks entry %d: %r is neither a pinned nurse nor the last rank"
+                            % (k + 1, e))
+            return None
+    if not out["pinned"]:
+        problems.append("\"ranks\" names no pinned nurse (the stage runs only with one)")
+        return None
+    if out["pinned"][0][1] != kU:
+        problems.append("the first pinned nurse is at %s, the peak is %s"
+                        % (out["pinned"][0][1], kU))
+    if (out["rest"] is None) != (len(out["pinned"]) == len(counted)):
+        problems.append("ranks: %d of %d counted nurses pinned, rest %s"
+                        % (len(out["pinned"]), len(counted), out["rest"]))
+    sv = exact(stage.get("value"), r)
+    if sv != last:
+        problems.append("stage ranks value %r, the last rank is %s" % (stage.get("value"), last))
+    if out["rest"] is not None and out["rest_status"] != out["status"]:
+        problems.append("the last rank's status %r, the stage's %r"
+                        % (out["rest_status"], out["status"]))
+    for j in counted:
+        out["levels"][j] = out["rest"] if out["rest"] is not None else kU
+    for j, v in out["pinned"]:
+        out["levels"][j] = v
+    return out
+
+
+def loads_within(r, loads, levels):
+    """The counted nurses whose load is above floor(level cap): [(j, load,
+    ceiling)]."""
+    return [(j, loads[j], math.floor(lv * r["nurses"][j]["capacity"]))
+            for j, lv in levels.items() if loads[j] > math.floor(lv * r["nurses"][j]["capacity"])]
+
+
+def compare_ranks(r, kr, ref_rk, k_peak_proven):
+    """keel's ranks kr (read_ranks) against the reference's ranks ref_rk
+    (highs_model.ranks or ranks_by_enumeration; None when the reference's
+    peak is not proven) on the same proven U*.  Returns (problems, same):
+    same is True when both hold the same levels (the lift's problem is then
+    the same).
+
+    Source: the reference's pinned tests and descent (HiGHS through
+    Debian's python3-scipy 1.10) or exhaustive enumeration, from
+    docs/model.md "Stage ranks"."""
+    out = []
+    if ref_rk is None or kr is None or not k_peak_proven:
+        return out, False
+    if ref_rk.get("status", "optimal") != "optimal":
+        return out, False
+    ids = lambda pins: sorted((r["nurses"][j]["id"], str(v)) for j, v in pins)  # noqa: E731
+    want = ids(ref_rk["pinned"])
+    if not kr["present"]:
+        # No stage ranks says that no nurse is pinned at the proven peak
+        # (docs/model.md: the stage is reported whenever one is).
+        if want:
+            out.append("ranks: keel proves its peak and reports no ranks (no nurse pinned), "
+                       "the reference pins %s" % want)
+        return out, not want
+    got = ids(kr["pinned"])
+    if kr["status"] != "optimal":
+        # keel's ranks stopped on its time limit: what it pinned is still proven.
+        extra = sorted(set(got) - set(want))
+        if extra:
+            out.append("ranks: keel pins %s, the reference does not" % extra)
+        return out, False
+    if got != want:
+        out.append("ranks: keel pins %s, the reference %s" % (got, want))
+    if kr["rest"] != ref_rk["rest"]:
+        out.append("ranks: keel's last rank %s, the reference's %s"
+                   % (kr["rest"], ref_rk["rest"]))
+    return out, got == want and kr["rest"] == ref_rk["rest"]
 
 
 # -------------------------------------------------------- the command line
@@ -194,13 +324,32 @@ def line_end(parts, res):
     return text
 
 
-def finish(results, t0, tmp):
-    """The closing lines; returns the exit status (1 when any failed)."""
+def count_pinned(results, kinds, pinned, min_share):
+    """Print how many rosters of each kind (label, test, how many were
+    made) have a nurse pinned at the peak (pinned(result) true); returns
+    the problems when a kind falls short of min_share of its rosters (the
+    check must keep exercising the ranks)."""
+    out = []
+    for label, test, made in kinds:
+        n = sum(1 for x in results if test(x) and pinned(x))
+        print("# %s rosters with a nurse pinned at the peak (stage ranks): %d of %d"
+              % (label, n, made))
+        if made and n < min_share * made:
+            out.append("only %d of %d %s rosters have a pinned nurse, below the %g required: "
+                       "the generator no longer exercises the ranks" % (n, made, label, min_share))
+    return out
+
+
+def finish(results, t0, tmp, problems=()):
+    """The closing lines; returns the exit status (1 when any failed, or
+    when there are problems of the whole run)."""
     print("# %.0f seconds" % (time.monotonic() - t0))
     if tmp is not None:
         tmp.cleanup()
-    failed = sum(1 for x in results if x["problems"])
-    print("%d passed, %d failed" % (len(results) - failed, failed))
+    for p in problems:
+        print("FAIL: " + p)
+    failed = sum(1 for x in results if x["problems"]) + len(problems)
+    print("%d passed, %d failed" % (len(results) - failed + len(problems), failed))
     return 1 if failed else 0
 
 
