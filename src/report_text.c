@@ -481,6 +481,10 @@ static void write_ranks_stage(FILE *out, const keel_roster *r, const keel_soluti
             fprintf(out, "  pinned    %s at %.1f %%: no valid plan %shas her lower\n",
                     r->nurses[rk->nurse].id, 100.0 * rk->utilisation,
                     rk->utilisation == s->stages[0].value ? "" : "that keeps the nurses above ");
+        else if (rk->status != KEEL_SOLVE_OPTIMAL && st->gap == 0)
+            fprintf(out, "  %-9s not decided: the time limit came before every nurse at %.1f %% "
+                         "was asked whether she is pinned there\n",
+                    k == 0 ? "ranks" : "the rest", 100.0 * rk->utilisation);
         else
             write_stage(out, st, plan, spent_on(s), "the rest", "the best possible is at least");
     }

@@ -74,9 +74,10 @@ static long long strictly_below(const keel_search *S, size_t n, keel_ratio v)
 }
 
 /* Asks whether free nurse n can be below v with the held nurses at their
- * budgets and the other free nurses at most v; *pinned when proven not. */
+ * budgets and the other free nurses at most v; *pinned when proven not,
+ * *unknown when the time ran out first. */
 static keel_status ask_pinned(keel_search *S, size_t n, keel_ratio v, long long deadline_ms,
-                              bool *pinned, keel_error *err)
+                              bool *pinned, bool *unknown, keel_error *err)
 {
     const keel_workload *w = S->w;
     for (size_t k = 0; k < w->nnurses; k++) {
@@ -85,7 +86,7 @@ static keel_status ask_pinned(keel_search *S, size_t n, keel_ratio v, long long 
             S->hi[k] = S->held[k] ? S->peak_hi[k] : keel_stage_search_below(S, k, v);
     }
     S->hi[n] = strictly_below(S, n, v);
-    *pinned = false;
+    *pinned = *unknown = false;
     if (S->hi[n] < 0) { /* she cannot be below v at all */
         *pinned = true;
         return KEEL_OK;
@@ -99,6 +100,7 @@ static keel_status ask_pinned(keel_search *S, size_t n, keel_ratio v, long long 
     keel_answer answer;
     keel_status rc = keel_answer_ask(KEEL_CHAIN_WINDOW, &q, deadline_ms, S->trial, &answer, err);
     *pinned = !rc && answer == KEEL_ANSWER_NO;
+    *unknown = !rc && answer == KEEL_ANSWER_UNKNOWN;
     return rc;
 }
 
@@ -180,17 +182,21 @@ keel_status keel_stage_ranks(keel_search *S, keel_ratio peak, long long deadline
     S->calls = 0;
     S->incumbent = nurse_of;
     keel_ratio v = peak, bound = peak;
-    bool proven = true;
+    bool proven = true, cut = false; /* cut: the time ran out before the ranks ended */
     keel_status rc = KEEL_OK;
-    while (nfree > 1 && keel_budget_now() < deadline_ms) {
+    while (nfree > 1) {
+        if (keel_budget_now() >= deadline_ms) {
+            cut = true;
+            break;
+        }
         /* The free nurses at v that are pinned there are held at v. */
         size_t first = nranks;
-        for (size_t n = 0; n < nn && !rc; n++) {
+        for (size_t n = 0; n < nn && !rc && !cut; n++) {
             if (!keel_workload_counted(w, n) || S->held[n] ||
                 keel_ratio_cmp(keel_measure_utilisation(w, nurse_of, n), v) != 0)
                 continue;
             bool pinned = false;
-            rc = ask_pinned(S, n, v, deadline_ms, &pinned, err);
+            rc = ask_pinned(S, n, v, deadline_ms, &pinned, &cut, err);
             if (pinned)
                 add_rank(ranks, &nranks, (int)n, v, true, true);
         }
@@ -202,7 +208,7 @@ keel_status keel_stage_ranks(keel_search *S, keel_ratio peak, long long deadline
             S->peak_hi[n] = keel_stage_search_below(S, n, v);
             nfree--;
         }
-        if (nfree == 0)
+        if (cut || nfree == 0)
             break;
         /* The heaviest of the free nurses, as low as it goes. */
         keel_ratio was = v;
@@ -216,9 +222,10 @@ keel_status keel_stage_ranks(keel_search *S, keel_ratio peak, long long deadline
             break;
     }
     /* The rank after the held ones: the heaviest of the free nurses (which
-     * of them carries it is a choice: no nurse is named). */
-    if (!rc && nranks > 0 && nfree > 0)
-        add_rank(ranks, &nranks, -1, v, false, proven);
+     * of them carries it is a choice: no nurse is named).  Cut short, the
+     * ranks are reported even with nobody pinned: some nurse may be. */
+    if (!rc && (nranks > 0 || cut) && nfree > 0)
+        add_rank(ranks, &nranks, -1, v, false, proven && !cut);
     for (size_t n = 0; n < nn; n++)
         if (keel_workload_counted(w, n))
             S->peak_hi[n] = keel_stage_search_below(S, n, level[n]);
@@ -228,7 +235,11 @@ keel_status keel_stage_ranks(keel_search *S, keel_ratio peak, long long deadline
     }
     sol->ranks = ranks;
     sol->nranks = nranks;
+    /* Cut short, the levels found hold (the value is proven when its
+     * bound is), but a nurse at the last level may be pinned there. */
     keel_stage_search_finish(st, v, bound, proven, S->calls, started);
+    if (cut)
+        st->status = KEEL_SOLVE_TIME_LIMIT;
     st->name = "ranks";
     return KEEL_OK;
 }
