@@ -15,7 +15,9 @@
  *     none pinned: stop;
  *     V' = the least heaviest utilisation of the free nurses, the held
  *     ones at their levels (the bisection of stage_search.c, on the free
- *     nurses' candidates); V = V'
+ *     nurses' candidates); V' = V: stop (no other nurse can be pinned at
+ *     V: each free one was asked, or was below V in a plan that keeps the
+ *     levels); else V = V'
  *
  * Each held nurse is at her level in every assignment that is
  * lexicographically best on the sorted utilisations down to her rank, so
@@ -24,7 +26,9 @@
  * is not pinned ends the ranks: which free nurse carries V is then a
  * choice, and the free nurses share V as their ceiling.  The ceilings
  * (each held nurse's level, V for the rest) are what stage 2 (lift) and
- * the later stages hold; the search's peak budgets become them.
+ * the later stages hold; the search's peak budgets become them.  When the
+ * time runs out first (a pin is a proof of "no"), the stage says so
+ * (time_limit) rather than "nobody is pinned".
  */
 #include <stdlib.h>
 #include <string.h>
