@@ -718,9 +718,13 @@ keel_status keel_report_text(const keel_report *rep, FILE *out)
         if (s && s->status == KEEL_SOLVE_INFEASIBLE)
             write_findings(out, t, "No valid assignment exists", &s->diagnoses);
         else if (s && s->nstages > 0 && strcmp(s->stages[0].name, "peak") == 0) {
-            fprintf(
-                out, "Best possible heaviest utilisation: %.1f %% (%s)", 100.0 * s->stages[0].value,
-                s->stages[0].status == KEEL_SOLVE_OPTIMAL ? "proven" : "best found, not proven");
+            bool recorded = false; /* a record of the shift: the best is planned from its start */
+            for (size_t p = 0; p < rep->roster->npatients; p++)
+                recorded = recorded || rep->roster->patients[p].nrecord > 0;
+            fprintf(out, "Best possible heaviest utilisation%s: %.1f %% (%s)",
+                    recorded ? ", planning the whole shift from its start" : "",
+                    100.0 * s->stages[0].value,
+                    s->stages[0].status == KEEL_SOLVE_OPTIMAL ? "proven" : "best found, not proven");
             if (rep->nurse_of)
                 fprintf(out, "; this plan's: %.1f %%", 100.0 * rep->metrics->max_utilisation);
             fputc('\n', out);
