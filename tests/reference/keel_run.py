@@ -142,7 +142,8 @@ def report_facts(out, doc, check):
 def read_ranks(r, doc, kU, problems):
     """keel's stage ranks (docs/model.md "Stage ranks", docs/output.md):
     the "ranks" list and the stage "ranks", checked against each other and
-    keel's peak kU.  Returns {"present", "status" (the stage's), "pinned":
+    keel's peak kU; with no pinned nurse only as a stage cut short by the
+    time limit.  Returns {"present", "status" (the stage's), "pinned":
     [(nurse index, level)], "rest": the last level of the nurses not pinned
     or None, "rest_status", "levels": {counted j: her ceiling}} (levels
     kU for everyone without ranks), or None when unreadable."""
@@ -198,9 +199,13 @@ def read_ranks(r, doc, kU, problems):
                             % (k + 1, e))
             return None
     if not out["pinned"]:
-        problems.append("\"ranks\" names no pinned nurse (the stage runs only with one)")
-        return None
-    if out["pinned"][0][1] != kU:
+        # Only a stage cut short by the time limit lists no pinned nurse:
+        # its last rank is then the peak (docs/model.md, "Stage ranks").
+        if out["status"] != "time_limit" or out["rest"] != kU:
+            problems.append("\"ranks\" names no pinned nurse, and is not a stage cut short "
+                            "at the peak (status %r, last rank %s)" % (out["status"], out["rest"]))
+            return None
+    elif out["pinned"][0][1] != kU:
         problems.append("the first pinned nurse is at %s, the peak is %s"
                         % (out["pinned"][0][1], kU))
     if (out["rest"] is None) != (len(out["pinned"]) == len(counted)):
