@@ -77,6 +77,22 @@ static long long strictly_below(const keel_search *S, size_t n, keel_ratio v)
     return under.num < 0 ? -1 : keel_stage_search_below(S, n, under);
 }
 
+/* The care of the patients (parts) only nurse n may take: every valid
+ * assignment gives them to her. */
+static long long only_hers(const keel_workload *w, size_t n)
+{
+    long long care = 0;
+    for (size_t p = 0; p < w->npatients; p++) {
+        if (!keel_workload_eligible(w, p, n))
+            continue;
+        bool alone = true;
+        for (size_t k = 0; k < w->nnurses && alone; k++)
+            alone = k == n || !keel_workload_eligible(w, p, k);
+        care += alone ? w->care_minutes[p] : 0;
+    }
+    return care;
+}
+
 /* Asks whether free nurse n can be below v with the held nurses at their
  * budgets and the other free nurses at most v; *pinned when proven not,
  * *unknown when the time ran out first. */
@@ -91,7 +107,9 @@ static keel_status ask_pinned(keel_search *S, size_t n, keel_ratio v, long long 
     }
     S->hi[n] = strictly_below(S, n, v);
     *pinned = *unknown = false;
-    if (S->hi[n] < 0) { /* she cannot be below v at all */
+    /* She cannot be below v at all, or not with the patients only she may
+     * take: no question needed. */
+    if (S->hi[n] < 0 || only_hers(w, n) > S->hi[n]) {
         *pinned = true;
         return KEEL_OK;
     }
