@@ -37,3 +37,9 @@ bool keelSortIndices(size_t *idx, size_t n, keel_index_cmp cmp, const void *ctx)
     free(tmp);
     return true;
 }
+
+int keelSortCompareLongLong(const void *a, const void *b)
+{
+    long long x = *(const long long *)a, y = *(const long long *)b;
+    return (x > y) - (x < y);
+}

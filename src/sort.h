@@ -2,7 +2,8 @@
 /*
  * sort.h - sorting indices by a comparison that needs context (internal).
  * qsort() passes no context, so a comparison that reads a workload would
- * need a global, which two threads solving at once would share.
+ * need a global, which two threads solving at once would share.  Also the
+ * plain ascending comparison of long longs, for qsort().
  */
 #ifndef KEEL_SORT_H
 #define KEEL_SORT_H
@@ -16,5 +17,8 @@ typedef int (*keel_index_cmp)(const void *ctx, size_t a, size_t b);
 /* Sorts idx[0..n) by cmp, stably (a merge sort).  False when memory ran
  * out (idx is then unchanged). */
 bool keelSortIndices(size_t *idx, size_t n, keel_index_cmp cmp, const void *ctx);
+
+/* qsort() comparison of two long longs, ascending. */
+int keelSortCompareLongLong(const void *a, const void *b);
 
 #endif

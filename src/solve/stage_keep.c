@@ -22,6 +22,7 @@
 #include "answer.h"
 #include "budget.h"
 #include "rule.h"
+#include "sort.h"
 #include "stage.h"
 #include "tally.h"
 
@@ -77,12 +78,6 @@ static keel_status greedy_keep(const keel_workload *w, const long long *lo, cons
     return KEEL_OK;
 }
 
-static int by_care(const void *a, const void *b)
-{
-    long long x = *(const long long *)a, y = *(const long long *)b;
-    return (x > y) - (x < y);
-}
-
 /* A simple upper limit on the patients kept: per previous nurse v, her
  * patients she may take, the lightest first, as many as fit her window
  * hi[v] and (without the clock) her patient limit; cares has room for
@@ -95,7 +90,7 @@ static long long keep_ceiling(const keel_workload *w, const long long *hi, long 
         for (size_t p = 0; p < w->npatients; p++)
             if (w->previous[p] == (int)v && keel_workload_eligible(w, p, v))
                 cares[k++] = w->care_minutes[p];
-        qsort(cares, k, sizeof *cares, by_care);
+        qsort(cares, k, sizeof *cares, keelSortCompareLongLong);
         long long sum = 0, most = keel_workload_counted(w, v) ? hi[v] : LLONG_MAX;
         size_t fit = 0;
         while (fit < k && sum + cares[fit] <= most &&

@@ -29,6 +29,7 @@
 #include "budget.h"
 #include "heur.h"
 #include "rule.h"
+#include "sort.h"
 #include "bound.h"
 #include "stage.h"
 #include "zone.h"
@@ -97,19 +98,13 @@ typedef struct squares_search {
     bool gave_up;
 } squares_search;
 
-static int cmp_ll(const void *a, const void *b)
-{
-    long long x = *(const long long *)a, y = *(const long long *)b;
-    return (x > y) - (x < y);
-}
-
 /* The least sum of squares after pouring r more minutes over the loads,
  * continuously (a floor for whole patients), rounded down. */
 static long long poured(squares_search *S, long long r)
 {
     size_t k = S->k;
     memcpy(S->scratch, S->load, k * sizeof *S->scratch);
-    qsort(S->scratch, k, sizeof *S->scratch, cmp_ll);
+    qsort(S->scratch, k, sizeof *S->scratch, keelSortCompareLongLong);
     /* Raise the lowest j loads to a common level until r is spent. */
     long long spent = 0;
     size_t j = 1;
