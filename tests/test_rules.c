@@ -266,14 +266,6 @@ static keel_solution *solve(tu_case *c)
     return s;
 }
 
-static const keel_stage *stage(const keel_solution *s, const char *name)
-{
-    for (size_t i = 0; i < s->nstages; i++)
-        if (strcmp(s->stages[i].name, name) == 0)
-            return &s->stages[i];
-    return NULL;
-}
-
 static void test_every_stage_matches_exhaustive_enumeration(void **state)
 {
     (void)state;
@@ -304,7 +296,7 @@ static void test_every_stage_matches_exhaustive_enumeration(void **state)
             assert_int_equal(s->status, KEEL_SOLVE_OPTIMAL);
             assert_int_equal(s->diagnoses.n, 0);
             assert_true(keeps_rules(w, s->nurse_of));
-            assert_true(stage(s, "peak")->value == keel_ratio_value(b.peak));
+            assert_true(tu_stage(s, "peak")->value == keel_ratio_value(b.peak));
             ranks_of(&b);
             assert_true(tu_ranks_match(&b.ranks, s));
             ranked += s->nranks > 0;
@@ -314,12 +306,12 @@ static void test_every_stage_matches_exhaustive_enumeration(void **state)
             b.kept = 0;
             visit(&b, 0);
             if (w->ncontinuity > 0) {
-                assert_non_null(stage(s, "continuity"));
-                assert_true(stage(s, "continuity")->value == (double)b.kept);
+                assert_non_null(tu_stage(s, "continuity"));
+                assert_true(tu_stage(s, "continuity")->value == (double)b.kept);
                 assert_int_equal(s->continuity.kept, b.kept);
                 assert_int_equal(keel_measure_kept(w, s->nurse_of), b.kept);
             } else {
-                assert_null(stage(s, "continuity"));
+                assert_null(tu_stage(s, "continuity"));
             }
             b.pass = PASS_NEAR;
             visit(&b, 0);
@@ -400,12 +392,12 @@ static void test_history_stage_matches_exhaustive_enumeration(void **state)
             keel_error_fini(&err);
             assert_int_equal(s->status, KEEL_SOLVE_OPTIMAL);
             assert_true(keeps_rules(w, s->nurse_of));
-            assert_true(stage(s, "peak")->value == keel_ratio_value(b.peak));
+            assert_true(tu_stage(s, "peak")->value == keel_ratio_value(b.peak));
             assert_true(tu_ranks_match(&b.ranks, s));
             if (w->ncontinuity > 0)
-                assert_true(stage(s, "continuity")->value == (double)b.kept);
-            assert_true(stage(s, "proximity")->value == (double)b.zones);
-            assert_true(fabs(stage(s, "history")->value - b.history) < 1e-9);
+                assert_true(tu_stage(s, "continuity")->value == (double)b.kept);
+            assert_true(tu_stage(s, "proximity")->value == (double)b.zones);
+            assert_true(fabs(tu_stage(s, "history")->value - b.history) < 1e-9);
             /* The final plan holds everything the stages before proved. */
             long long zones, rooms, price = (long long)w->npatients + 1;
             keel_measure_spread(w, s->nurse_of, &zones, &rooms);
@@ -476,10 +468,10 @@ static void test_zone_by_zone_matches_exhaustive_enumeration(void **state)
         } else {
             assert_int_not_equal(s->status, KEEL_SOLVE_INFEASIBLE);
             assert_true(keeps_rules(w, s->nurse_of));
-            assert_int_equal(stage(s, "peak")->status, KEEL_SOLVE_OPTIMAL);
-            assert_int_equal(stage(s, "lift")->status, KEEL_SOLVE_OPTIMAL);
-            assert_true(stage(s, "peak")->value == keel_ratio_value(b.peak));
-            assert_true(stage(s, "lift")->value == keel_ratio_value(b.lift));
+            assert_int_equal(tu_stage(s, "peak")->status, KEEL_SOLVE_OPTIMAL);
+            assert_int_equal(tu_stage(s, "lift")->status, KEEL_SOLVE_OPTIMAL);
+            assert_true(tu_stage(s, "peak")->value == keel_ratio_value(b.peak));
+            assert_true(tu_stage(s, "lift")->value == keel_ratio_value(b.lift));
         }
         keel_solution_free(s);
         free(b.a);
