@@ -38,15 +38,21 @@
 #include "budget.h"
 #include "stage_search.h"
 
-/* Ranks positions: candidate i for the free nurses, the held ones at their
+/* The windows with every free nurse at most v, the held ones at their
  * budgets. */
-static void rank_windows(keel_search *S, size_t i)
+static void level_windows(keel_search *S, keel_ratio v)
 {
     for (size_t n = 0; n < S->w->nnurses; n++) {
         S->lo[n] = 0;
         if (keel_workload_counted(S->w, n))
-            S->hi[n] = S->held[n] ? S->peak_hi[n] : keel_stage_search_below(S, n, S->cand[i]);
+            S->hi[n] = S->held[n] ? S->peak_hi[n] : keel_stage_search_below(S, n, v);
     }
+}
+
+/* Ranks positions: candidate i for the free nurses. */
+static void rank_windows(keel_search *S, size_t i)
+{
+    level_windows(S, S->cand[i]);
 }
 
 /* The heaviest utilisation of the free counted nurses under nurse_of. */
@@ -100,11 +106,7 @@ static keel_status ask_pinned(keel_search *S, size_t n, keel_ratio v, long long 
                               bool *pinned, bool *unknown, keel_error *err)
 {
     const keel_workload *w = S->w;
-    for (size_t k = 0; k < w->nnurses; k++) {
-        S->lo[k] = 0;
-        if (keel_workload_counted(w, k))
-            S->hi[k] = S->held[k] ? S->peak_hi[k] : keel_stage_search_below(S, k, v);
-    }
+    level_windows(S, v);
     S->hi[n] = strictly_below(S, n, v);
     *pinned = *unknown = false;
     /* She cannot be below v at all, or not with the patients only she may
