@@ -374,10 +374,8 @@ static void write_details(FILE *out, const keel_report *rep)
             fputs("<p>", out);
             if (rk->pinned) {
                 keel_report_out_html(out, rep->roster->nurses[rk->nurse].id);
-                fprintf(out, " is pinned at %.1f %%: no valid plan %shas her lower.</p>\n",
-                        100.0 * rk->utilisation,
-                        rk->utilisation == s->stages[0].value ? ""
-                                                              : "that keeps the nurses above ");
+                fprintf(out, " is pinned at %.1f %%: %s.</p>\n", 100.0 * rk->utilisation,
+                        keel_report_plan_pinned_why(s, rk));
             } else {
                 fprintf(out,
                         "The heaviest of the others in the most even plan: %.1f %% (%s).</p>\n",

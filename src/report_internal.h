@@ -53,15 +53,20 @@ bool keel_report_plan_holds(const keel_report *rep, size_t p, size_t n);
 /* Minutes of patient p's care that nurse n carries (the parts she holds). */
 long keel_report_plan_care_held(const keel_report *rep, size_t p, size_t n);
 
-/* Next planned hand-off of patient p after part *q (start with *q at the
- * patient's first part): true and fills *at (minutes after the shift's
- * start), *from and *to, moving *q on; false when there are no more. */
 /* The break after the one at index *i (start with *i == c->nbreaks) in
  * time order, ties in the course's own order: true and *i set to it;
  * false after the last.  The course lists breaks by nurse; a unit has few,
  * so each step is a scan. */
 bool keel_report_plan_next_break(const keel_course *c, size_t *i);
 
+/* Why a pinned rank of s (stage "ranks") is where it is, in the words of
+ * every format: "no valid plan has her lower" at the peak, else "no valid
+ * plan that keeps the nurses above has her lower". */
+const char *keel_report_plan_pinned_why(const keel_solution *s, const keel_rank *rk);
+
+/* Next planned hand-off of patient p after part *q (start with *q at the
+ * patient's first part): true and fills *at (minutes after the shift's
+ * start), *from and *to, moving *q on; false when there are no more. */
 bool keel_report_plan_next_handoff(const keel_report *rep, size_t p, int *q, int *at, int *from,
                                    int *to);
 

@@ -56,6 +56,13 @@ bool keel_report_plan_next_handoff(const keel_report *rep, size_t p, int *q, int
     return false;
 }
 
+const char *keel_report_plan_pinned_why(const keel_solution *s, const keel_rank *rk)
+{
+    return rk->utilisation == s->stages[0].value
+               ? "no valid plan has her lower"
+               : "no valid plan that keeps the nurses above has her lower";
+}
+
 bool keel_report_plan_next_break(const keel_course *c, size_t *i)
 {
     bool first = *i >= c->nbreaks;

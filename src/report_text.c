@@ -478,9 +478,8 @@ static void write_ranks_stage(FILE *out, const keel_roster *r, const keel_soluti
     for (size_t k = 0; k < s->nranks; k++) {
         const keel_rank *rk = &s->ranks[k];
         if (rk->pinned)
-            fprintf(out, "  pinned    %s at %.1f %%: no valid plan %shas her lower\n",
-                    r->nurses[rk->nurse].id, 100.0 * rk->utilisation,
-                    rk->utilisation == s->stages[0].value ? "" : "that keeps the nurses above ");
+            fprintf(out, "  pinned    %s at %.1f %%: %s\n", r->nurses[rk->nurse].id,
+                    100.0 * rk->utilisation, keel_report_plan_pinned_why(s, rk));
         else if (rk->status != KEEL_SOLVE_OPTIMAL && st->gap == 0)
             fprintf(out, "  %-9s not decided: the time limit came before every nurse at %.1f %% "
                          "was asked whether she is pinned there\n",
