@@ -204,18 +204,28 @@ def page_checks(name, page, work, one_page):
     return chromium("--dump-dom", url).stdout.decode("utf-8", "replace")
 
 
-def check_rebalance(keel, roster, work):
-    """The rebalance's page: the frontier as a chart, a bar per option."""
-    name = os.path.basename(roster) + " rebalance"
-    page = os.path.join(work, "rebalance.html")
-    subprocess.run([keel, "rebalance", roster, "--format", "html", "-o", page], timeout=300,
+def render(keel, command, path, work, name, printable, timeout):
+    """keel COMMAND PATH as html in Chromium (page_checks) and as json:
+    (the page's DOM, the json), or None when keel wrote no page."""
+    page = os.path.join(work, command + ".html")
+    subprocess.run([keel, command, path, "--format", "html", "-o", page], timeout=timeout,
                    capture_output=True)
     ok(os.path.exists(page), "%s: keel writes the page" % name)
     if not os.path.exists(page):
+        return None
+    dom = page_checks(name, page, work, printable)
+    d = json.loads(subprocess.run([keel, command, path, "--format", "json"],
+                                  capture_output=True, text=True, timeout=timeout).stdout)
+    return dom, d
+
+
+def check_rebalance(keel, roster, work):
+    """The rebalance's page: the frontier as a chart, a bar per option."""
+    name = os.path.basename(roster) + " rebalance"
+    got = render(keel, "rebalance", roster, work, name, True, 300)
+    if got is None:
         return
-    dom = page_checks(name, page, work, True)
-    d = json.loads(subprocess.run([keel, "rebalance", roster, "--format", "json"],
-                                  capture_output=True, text=True, timeout=300).stdout)
+    dom, d = got
     bars = len(re.findall(r'<rect class="bar', dom))
     ok(bars == len(d["options"]), "%s: %d bars for %d options of the frontier"
        % (name, bars, len(d["options"])))
@@ -224,15 +234,10 @@ def check_rebalance(keel, roster, work):
 def check_audit(keel, history, work):
     """The audit's document: a bar per nurse against chance."""
     name = os.path.basename(history) + " audit"
-    page = os.path.join(work, "audit.html")
-    subprocess.run([keel, "audit", history, "--format", "html", "-o", page], timeout=600,
-                   capture_output=True)
-    ok(os.path.exists(page), "%s: keel writes the page" % name)
-    if not os.path.exists(page):
+    got = render(keel, "audit", history, work, name, False, 600)
+    if got is None:
         return
-    dom = page_checks(name, page, work, False)
-    d = json.loads(subprocess.run([keel, "audit", history, "--format", "json"],
-                                  capture_output=True, text=True, timeout=600).stdout)
+    dom, d = got
     bars = len(re.findall(r'<rect class="bar', dom))
     ok(bars == len(d["nurses"]), "%s: %d bars for %d nurses" % (name, bars, len(d["nurses"])))
     marked = len(re.findall(r'<rect class="bar overload"', dom))
