@@ -4,6 +4,12 @@
  * plan of a small roster, by their definitions (docs/model.md, "Stage
  * ranks"), for the exhaustive tests: the enumerations collect each valid
  * plan's loads, this header does the rest.
+ *
+ * Source: exhaustive enumeration of every valid plan, read by the
+ * definition in docs/model.md "Stage ranks" (the sorted utilisations
+ * lexicographically smallest rank by rank while the nurses at each level
+ * are pinned; leximax order as in Ogryczak and Tamir, Information
+ * Processing Letters 85, 2003, from memory).
  */
 #ifndef KEEL_TU_RANKS_H
 #define KEEL_TU_RANKS_H
