@@ -348,6 +348,15 @@ static void solve_loaded(job *J, glp_prob *P)
     glp_init_iocp(&parm);
     parm.msg_lev = GLP_MSG_OFF;
     parm.tm_lim = left < 1 ? 1 : left > INT_MAX ? INT_MAX : (int)left;
+    /* GLPK's mixed-integer rounding, cover and clique cuts: on 21 unit-size
+     * rosters (docs/performance.md, "GLPK's cuts") they prove stage 3 on
+     * all 21 instead of 18 and take medsurg-day from 1.8 s to 0.7 s; its
+     * Gomory cuts were slower there and stay off.  GLPK 5.0 sets up its
+     * cover cuts with glp_add_cols(n), a fatal error when the problem has
+     * no column. */
+    parm.mir_cuts = GLP_ON;
+    parm.cov_cuts = lp->ncols > 0 ? GLP_ON : GLP_OFF;
+    parm.clq_cuts = GLP_ON;
     parm.cb_func = on_event;
     parm.cb_info = J;
     ret = glp_intopt(P, &parm);
