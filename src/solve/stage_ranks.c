@@ -99,11 +99,22 @@ static long long only_hers(const keel_workload *w, size_t n)
     return care;
 }
 
+/* Marks the free counted nurses below v under nurse_of (a plan that keeps
+ * the levels): none of them is pinned at v. */
+static void mark_below(const keel_search *S, const int *nurse_of, keel_ratio v, bool *below)
+{
+    for (size_t n = 0; n < S->w->nnurses; n++)
+        if (keel_workload_counted(S->w, n) && !S->held[n] &&
+            keel_ratio_cmp(keel_measure_utilisation(S->w, nurse_of, n), v) < 0)
+            below[n] = true;
+}
+
 /* Asks whether free nurse n can be below v with the held nurses at their
  * budgets and the other free nurses at most v; *pinned when proven not,
- * *unknown when the time ran out first. */
+ * *unknown when the time ran out first.  A yes marks in below[] every free
+ * nurse its plan has below v. */
 static keel_status ask_pinned(keel_search *S, size_t n, keel_ratio v, long long deadline_ms,
-                              bool *pinned, bool *unknown, keel_error *err)
+                              bool *below, bool *pinned, bool *unknown, keel_error *err)
 {
     const keel_workload *w = S->w;
     level_windows(S, v);
@@ -125,6 +136,8 @@ static keel_status ask_pinned(keel_search *S, size_t n, keel_ratio v, long long 
     keel_status rc = keel_answer_ask(KEEL_CHAIN_WINDOW, &q, deadline_ms, S->trial, &answer, err);
     *pinned = !rc && answer == KEEL_ANSWER_NO;
     *unknown = !rc && answer == KEEL_ANSWER_UNKNOWN;
+    if (!rc && answer == KEEL_ANSWER_YES)
+        mark_below(S, S->trial, v, below);
     return rc;
 }
 
@@ -195,8 +208,12 @@ keel_status keel_stage_ranks(keel_search *S, keel_ratio peak, long long deadline
     size_t nn = w->nnurses;
     long long started = keel_budget_now();
     keel_rank *ranks = keel_calloc(nn ? nn : 1, sizeof *ranks);
-    if (!ranks)
+    bool *below = keel_calloc(nn ? nn : 1, sizeof *below); /* seen below V: not pinned */
+    if (!ranks || !below) {
+        free(ranks);
+        free(below);
         return keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+    }
     size_t nranks = 0, nfree = 0;
     for (size_t n = 0; n < nn; n++) {
         S->held[n] = false;
@@ -213,14 +230,17 @@ keel_status keel_stage_ranks(keel_search *S, keel_ratio peak, long long deadline
             cut = true;
             break;
         }
-        /* The free nurses at v that are pinned there are held at v. */
+        /* The free nurses at v that are pinned there are held at v.  One
+         * below v in a plan that keeps the levels (the incumbent, or the
+         * plan of an earlier yes at this level) is not pinned: not asked. */
         size_t first = nranks;
+        memset(below, 0, nn * sizeof *below);
+        mark_below(S, nurse_of, v, below);
         for (size_t n = 0; n < nn && !rc && !cut; n++) {
-            if (!keel_workload_counted(w, n) || S->held[n] ||
-                keel_ratio_cmp(keel_measure_utilisation(w, nurse_of, n), v) != 0)
+            if (!keel_workload_counted(w, n) || S->held[n] || below[n])
                 continue;
             bool pinned = false;
-            rc = ask_pinned(S, n, v, deadline_ms, &pinned, &cut, err);
+            rc = ask_pinned(S, n, v, deadline_ms, below, &pinned, &cut, err);
             if (pinned)
                 add_rank(ranks, &nranks, (int)n, v, true, true);
         }
@@ -253,6 +273,7 @@ keel_status keel_stage_ranks(keel_search *S, keel_ratio peak, long long deadline
     for (size_t n = 0; n < nn; n++)
         if (keel_workload_counted(w, n))
             S->peak_hi[n] = keel_stage_search_below(S, n, level[n]);
+    free(below);
     if (rc || nranks == 0) {
         free(ranks);
         return rc;
