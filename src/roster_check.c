@@ -135,32 +135,18 @@ static const node *given_id(const node *item)
     return id && id->kind == NODE_SCALAR && !keel_roster_tree_is_null(id) ? id : NULL;
 }
 
-static int compare_ids(const void *ctx, size_t a, size_t b)
-{
-    const node *const *ids = ctx;
-    return strcmp(ids[a]->text, ids[b]->text);
-}
-
-/* The ids of a list of n entries (ids[i] from given_id(), NULL for none)
- * and, for each, the earliest entry with the same id (*first[i]; i when
- * none earlier): one stable sort by id, so that a list of many thousand
- * entries costs n log n, not n squared.  The caller frees *first.  False
- * when memory ran out (ld->nomem is then set and *first is NULL). */
+/* For the n ids of a list (ids[i] from given_id()), the earliest entry
+ * with the same id (*first[i]; i when none earlier), found by one sort
+ * (keelSortFirstSame()).  The caller frees *first.  False when memory ran
+ * out (ld->nomem is then set and *first is NULL). */
 static bool find_first_ids(loader *ld, const node *const *ids, size_t n, size_t **first)
 {
-    size_t *order = keel_malloc((n ? n : 1) * sizeof *order), given = 0;
+    const char **texts = keel_malloc((n ? n : 1) * sizeof *texts);
     *first = keel_malloc((n ? n : 1) * sizeof **first);
-    bool ok = order && *first;
-    for (size_t i = 0; ok && i < n; i++) {
-        (*first)[i] = i;
-        if (ids[i])
-            order[given++] = i;
-    }
-    ok = ok && keelSortIndices(order, given, compare_ids, ids);
-    for (size_t k = 1; ok && k < given; k++) /* stable: a run's head is its earliest */
-        if (compare_ids(ids, order[k - 1], order[k]) == 0)
-            (*first)[order[k]] = (*first)[order[k - 1]];
-    free(order);
+    for (size_t i = 0; texts && i < n; i++)
+        texts[i] = ids[i] ? ids[i]->text : NULL;
+    bool ok = texts && *first && keelSortFirstSame(texts, n, *first);
+    free(texts);
     if (!ok) {
         free(*first);
         *first = NULL;
