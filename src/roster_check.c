@@ -7,10 +7,13 @@
  * after the walk (keel_roster_check_file()).
  */
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 
+#include "alloc.h"
 #include "keel/nas.h"
 #include "roster_loader.h"
+#include "sort.h"
 
 /* The shift's break must leave time for patients. */
 static void check_shift_break(loader *ld, const node *root)
@@ -124,27 +127,50 @@ static void check_record(loader *ld, size_t i, const node *item)
     keel_roster_clock_check_record(ld, i, item);
 }
 
-/* The id of list item i must differ from those before it.  what names the
- * list's entries ("nurse"). */
-static void check_unique_id(loader *ld, const node *list, size_t i, const char *what)
+/* The id of a list entry as a later entry may repeat it: a scalar with a
+ * value; NULL for none. */
+static const node *given_id(const node *item)
 {
-    const node *id = keel_roster_tree_find(list->items[i], "id");
-    char shown[SHOWN_SIZE], key[16];
-    if (!id || id->kind != NODE_SCALAR || keel_roster_tree_is_null(id) ||
-        keel_roster_tree_is_placeholder(id))
-        return;
-    for (size_t j = 0; j < i; j++) {
-        const node *other = keel_roster_tree_find(list->items[j], "id");
-        if (other && other->kind == NODE_SCALAR && !keel_roster_tree_is_null(other) &&
-            strcmp(other->text, id->text) == 0) {
-            snprintf(key, sizeof key, "%ss", what);
-            keel_roster_report_set_path(ld, key, i, "id");
-            keel_roster_report_problem(
-                ld, id->mark, "%s id '%s' is already used on line %d; expected a unique id", what,
-                keel_roster_report_show(shown, id->text), other->mark.line);
-            return;
-        }
+    const node *id = keel_roster_tree_find(item, "id");
+    return id && id->kind == NODE_SCALAR && !keel_roster_tree_is_null(id) ? id : NULL;
+}
+
+/* For the n ids of a list (ids[i] from given_id()), the earliest entry
+ * with the same id (*first[i]; i when none earlier), found by one sort
+ * (keelSortFirstSame()).  The caller frees *first.  False when memory ran
+ * out (ld->nomem is then set and *first is NULL). */
+static bool find_first_ids(loader *ld, const node *const *ids, size_t n, size_t **first)
+{
+    const char **texts = keel_malloc((n ? n : 1) * sizeof *texts);
+    *first = keel_malloc((n ? n : 1) * sizeof **first);
+    for (size_t i = 0; texts && i < n; i++)
+        texts[i] = ids[i] ? ids[i]->text : NULL;
+    bool ok = texts && *first && keelSortFirstSame(texts, n, *first);
+    free(texts);
+    if (!ok) {
+        free(*first);
+        *first = NULL;
+        ld->nomem = true;
     }
+    return ok;
+}
+
+/* Reports entry i's id when an earlier entry has it (first[i] < i, from
+ * find_first_ids()); the caller has set the path. */
+static void report_repeated_id(loader *ld, const node *const *ids, const size_t *first, size_t i,
+                               const char *what)
+{
+    char shown[SHOWN_SIZE];
+    keel_roster_report_problem(
+        ld, ids[i]->mark, "%s id '%s' is already used on line %d; expected a unique id", what,
+        keel_roster_report_show(shown, ids[i]->text), ids[first[i]]->mark.line);
+}
+
+/* Entry i repeats an earlier entry's id (an id left to the unit, the
+ * placeholder, is reported elsewhere). */
+static bool repeats_id(const node *const *ids, const size_t *first, size_t i)
+{
+    return first && first[i] < i && !keel_roster_tree_is_placeholder(ids[i]);
 }
 
 /* True when the nurse's role is known: absent (staff) or read without a
@@ -201,14 +227,27 @@ static void check_preceptor(loader *ld, size_t i, const node *item)
 
 static void check_nurses(loader *ld, const node *list)
 {
-    for (size_t i = 0; i < ld->roster->nnurses; i++) {
+    size_t n = ld->roster->nnurses, *first = NULL;
+    const node **ids = keel_calloc(n, sizeof *ids);
+    if (!ids)
+        ld->nomem = true;
+    for (size_t i = 0; ids && i < n; i++)
+        ids[i] = given_id(list->items[i]);
+    if (ids)
+        find_first_ids(ld, ids, n, &first);
+    for (size_t i = 0; i < n; i++) {
         if (list->items[i]->kind != NODE_MAPPING)
             continue;
-        check_unique_id(ld, list, i, "nurse");
+        if (repeats_id(ids, first, i)) {
+            keel_roster_report_set_path(ld, "nurses", i, "id");
+            report_repeated_id(ld, ids, first, i, "nurse");
+        }
         keel_roster_clock_check_nurse(ld, i, list->items[i]);
         check_preceptor(ld, i, list->items[i]);
         check_covers(ld, i, list->items[i]);
     }
+    free(ids);
+    free(first);
 }
 
 /* Writes the levels of policy.acuity_minutes as ranges, like "1-5" or "1-3, 5". */
@@ -365,33 +404,24 @@ static void check_avoid(loader *ld, size_t i, const node *item)
 
 /* The id of roster->patients[i] differs from those before it, across the
  * patients and the expected admissions. */
-static void check_unique_patient_id(loader *ld, size_t i)
-{
-    const node *id = keel_roster_tree_find(keel_roster_keys_patient_node(ld, i), "id");
-    char shown[SHOWN_SIZE];
-    if (!id || id->kind != NODE_SCALAR || keel_roster_tree_is_null(id) ||
-        keel_roster_tree_is_placeholder(id))
-        return;
-    for (size_t j = 0; j < i; j++) {
-        const node *other = keel_roster_tree_find(keel_roster_keys_patient_node(ld, j), "id");
-        if (other && other->kind == NODE_SCALAR && !keel_roster_tree_is_null(other) &&
-            strcmp(other->text, id->text) == 0) {
-            keel_roster_keys_patient_path(ld, i, "id");
-            keel_roster_report_problem(
-                ld, id->mark, "patient id '%s' is already used on line %d; expected a unique id",
-                keel_roster_report_show(shown, id->text), other->mark.line);
-            return;
-        }
-    }
-}
-
 static void check_patients(loader *ld)
 {
-    for (size_t i = 0; i < ld->roster->npatients; i++) {
+    size_t n = ld->roster->npatients, *first = NULL;
+    const node **ids = keel_calloc(n, sizeof *ids);
+    if (!ids)
+        ld->nomem = true;
+    for (size_t i = 0; ids && i < n; i++)
+        ids[i] = given_id(keel_roster_keys_patient_node(ld, i));
+    if (ids)
+        find_first_ids(ld, ids, n, &first);
+    for (size_t i = 0; i < n; i++) {
         const node *item = keel_roster_keys_patient_node(ld, i);
         if (item->kind != NODE_MAPPING)
             continue;
-        check_unique_patient_id(ld, i);
+        if (repeats_id(ids, first, i)) {
+            keel_roster_keys_patient_path(ld, i, "id");
+            report_repeated_id(ld, ids, first, i, "patient");
+        }
         if (!keel_roster_tree_find(item, "acuity") &&
             !keel_roster_tree_find(item, "care_minutes") && !keel_roster_tree_find(item, "nas")) {
             keel_roster_keys_patient_path(ld, i, "acuity");
@@ -409,6 +439,8 @@ static void check_patients(loader *ld)
         check_handoffs(ld, i, item);
         check_record(ld, i, item);
     }
+    free(ids);
+    free(first);
 }
 
 /* Patients that give an acuity level need the policy's scale: keel has none

@@ -82,6 +82,8 @@ bool keelRuleWhole(const keel_tally *t)
 
 bool keelRuleAdmitsInstead(keel_tally *t, size_t p, size_t q, size_t n)
 {
+    if (!keel_workload_eligible(t->w, p, n))
+        return false; /* what q frees cannot help */
     keel_tally_remove(t, q, n);
     bool ok = keelRuleAdmits(t, p, n);
     keel_tally_add(t, q, n);

@@ -1,5 +1,6 @@
 /* SPDX-License-Identifier: GPL-3.0-or-later */
-/* sort.c - a stable merge sort of indices with a context (see sort.h). */
+/* sort.c - a stable merge sort of indices with a context, and repeated
+ * strings found with it (see sort.h). */
 #include "sort.h"
 
 #include <stdlib.h>
@@ -36,6 +37,30 @@ bool keelSortIndices(size_t *idx, size_t n, keel_index_cmp cmp, const void *ctx)
         memcpy(idx, from, n * sizeof *idx);
     free(tmp);
     return true;
+}
+
+static int compare_texts(const void *ctx, size_t a, size_t b)
+{
+    const char *const *texts = ctx;
+    return strcmp(texts[a], texts[b]);
+}
+
+bool keelSortFirstSame(const char *const *texts, size_t n, size_t *first)
+{
+    size_t *order = keel_malloc((n ? n : 1) * sizeof *order), given = 0;
+    if (!order)
+        return false;
+    for (size_t i = 0; i < n; i++) {
+        first[i] = i;
+        if (texts[i])
+            order[given++] = i;
+    }
+    bool ok = keelSortIndices(order, given, compare_texts, texts);
+    for (size_t k = 1; ok && k < given; k++) /* stable: a run's head is its earliest */
+        if (strcmp(texts[order[k - 1]], texts[order[k]]) == 0)
+            first[order[k]] = first[order[k - 1]];
+    free(order);
+    return ok;
 }
 
 int keelSortCompareLongLong(const void *a, const void *b)

@@ -18,6 +18,12 @@ typedef int (*keel_index_cmp)(const void *ctx, size_t a, size_t b);
  * out (idx is then unchanged). */
 bool keelSortIndices(size_t *idx, size_t n, keel_index_cmp cmp, const void *ctx);
 
+/* For each of the n strings, the index of the first equal one in first[i]
+ * (i itself when none comes before it; NULL strings stay alone): one
+ * stable sort, so that finding repeated ids costs n log n, not n squared.
+ * False when memory ran out (first is then unset). */
+bool keelSortFirstSame(const char *const *texts, size_t n, size_t *first);
+
 /* qsort() comparison of two long longs, ascending. */
 int keelSortCompareLongLong(const void *a, const void *b);
 

@@ -42,7 +42,7 @@ KEEL_API const char *keel_unit_type(size_t i);
  * is a few thousand patients, a year of one unit's shifts some 25 MB. */
 #define KEEL_MAX_FILE_BYTES (16L * 1024 * 1024)    /* a roster or census file */
 #define KEEL_MAX_STREAM_BYTES (256L * 1024 * 1024) /* a file of many shifts (keel audit) */
-#define KEEL_MAX_ITEMS 5000 /* entries of one list: patients, nurses, census rows, ... */
+#define KEEL_MAX_ITEMS 20000 /* entries of one list: patients, nurses, census rows, ... */
 #define KEEL_MAX_TEXT 1000  /* bytes of one value */
 #define KEEL_MAX_DEPTH 16   /* nesting of lists and mappings (a roster needs 5) */
 

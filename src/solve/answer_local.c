@@ -12,9 +12,9 @@
  * outside her window, even when it makes the excess worse, except one that
  * puts a patient back with a nurse it left in the last few steps (a tabu
  * search).  Ties go to a fixed-seed coin, so runs are repeatable for the
- * same number of steps.  It gives up at the deadline or after STALL_STEPS
- * steps without a new lowest excess.  Not used with the clock, nor without
- * a start.
+ * same number of steps.  It gives up at the deadline (read before each
+ * nurse a step looks at) or after STALL_STEPS steps without a new lowest
+ * excess.  Not used with the clock, nor without a start.
  */
 #include <stdlib.h>
 #include <string.h>
@@ -30,6 +30,8 @@
 /* Steps for which a patient may not go back to a nurse it left. */
 #define TABU_MIN 7
 #define TABU_SPREAD 10
+/* Tabu entries alive at once: two a step, for the longest tenure. */
+#define TABU_ENTRIES (2 * (TABU_MIN + TABU_SPREAD))
 /* Steps without a new lowest excess after which the search gives up (on
  * the quick benchmark set the longest such run before success was about
  * 1 700 steps). */
@@ -40,7 +42,7 @@ typedef struct local {
     const long long *lo, *hi;
     int *nurse_of;
     keel_tally t;
-    long *tabu_until; /* [npatients * nnurses]: step until which p may not go to n */
+    keel_tabu tabu;
     long step;
     unsigned long long coin; /* xorshift state */
 } local;
@@ -75,7 +77,7 @@ typedef struct step {
 
 static bool allowed(const local *L, size_t p, size_t n, bool aspire)
 {
-    return aspire || L->tabu_until[p * L->w->nnurses + n] <= L->step;
+    return aspire || keel_measure_tabu_allows(&L->tabu, p, n, L->step);
 }
 
 static void consider(local *L, step *best, bool *have, step s)
@@ -94,9 +96,8 @@ static void steps_from(local *L, size_t a, long long total, step *best, bool *ha
 {
     const keel_workload *w = L->w;
     size_t np = w->npatients, nn = w->nnurses;
-    for (size_t p = 0; p < np; p++) {
-        if (L->nurse_of[p] != (int)a)
-            continue;
+    for (int i = keel_tally_first(&L->t, a); i >= 0; i = keel_tally_next(&L->t, (size_t)i)) {
+        size_t p = (size_t)i;
         long long c = w->care_minutes[p], ca = L->t.care[a];
         bool may_give = keelRuleMinMayGive(&L->t, a);
         for (size_t b = 0; b < nn && may_give; b++) {
@@ -143,7 +144,7 @@ static void steps_to(local *L, size_t a, long long total, step *best, bool *have
 
 static void apply(local *L, const step *s)
 {
-    size_t nn = L->w->nnurses, from = (size_t)L->nurse_of[s->p];
+    size_t from = (size_t)L->nurse_of[s->p];
     long tenure = TABU_MIN + (long)(flip(L) % TABU_SPREAD);
     keel_tally_remove(&L->t, s->p, from);
     if (s->q >= 0) {
@@ -151,11 +152,11 @@ static void apply(local *L, const step *s)
         keel_tally_remove(&L->t, q, s->to);
         keel_tally_add(&L->t, q, from);
         L->nurse_of[q] = (int)from;
-        L->tabu_until[q * nn + s->to] = L->step + tenure;
+        keel_measure_tabu_set(&L->tabu, q, s->to, L->step + tenure);
     }
     keel_tally_add(&L->t, s->p, s->to);
     L->nurse_of[s->p] = (int)s->to;
-    L->tabu_until[s->p * nn + from] = L->step + tenure;
+    keel_measure_tabu_set(&L->tabu, s->p, from, L->step + tenure);
 }
 
 keel_status keel_answer_local(const keel_question *q, long long deadline_ms, int *nurse_of,
@@ -170,9 +171,9 @@ keel_status keel_answer_local(const keel_question *q, long long deadline_ms, int
         return KEEL_OK;
     local L = {.w = w, .lo = lo, .hi = hi, .coin = 0x9e3779b97f4a7c15ULL};
     L.nurse_of = keel_calloc(np ? np : 1, sizeof *L.nurse_of);
-    L.tabu_until = keel_calloc(np * nn > 0 ? np * nn : 1, sizeof *L.tabu_until);
+    bool tabu = keel_measure_tabu_init(&L.tabu, np, TABU_ENTRIES);
     keel_status rc = keel_tally_init(&L.t, w);
-    if (rc || !L.nurse_of || !L.tabu_until) {
+    if (rc || !L.nurse_of || !tabu) {
         rc = KEEL_ERR_NOMEM;
         goto out;
     }
@@ -181,13 +182,17 @@ keel_status keel_answer_local(const keel_question *q, long long deadline_ms, int
     long long total = excess(&L), record = total;
     long since = 0; /* steps since the excess was last at a new low */
     while (total > 0) {
-        if (since >= STALL_STEPS || ((L.step & 15) == 0 && keel_budget_now() >= deadline_ms))
+        if (since >= STALL_STEPS)
             goto out;
         step best;
         bool have = false;
         for (size_t n = 0; n < nn; n++) {
             if (off(&L, n, L.t.care[n]) == 0)
                 continue;
+            /* On a large unit one step looks at many nurses: the clock is
+             * read before each. */
+            if (keel_budget_now() >= deadline_ms)
+                goto out;
             steps_from(&L, n, total, &best, &have);
             if (L.t.care[n] < lo[n])
                 steps_to(&L, n, total, &best, &have);
@@ -204,7 +209,7 @@ keel_status keel_answer_local(const keel_question *q, long long deadline_ms, int
     *answer = KEEL_ANSWER_YES;
 out:
     free(L.nurse_of);
-    free(L.tabu_until);
+    keel_measure_tabu_free(&L.tabu);
     keel_tally_free(&L.t);
     if (rc)
         keel_error_add(err, rc, NULL, 0, 0, NULL, "out of memory");

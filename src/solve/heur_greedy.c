@@ -186,8 +186,11 @@ static bool try_move(const keel_workload *w, int *nurse_of, long long *load, kee
 {
     keel_ratio before = worse((keel_ratio){load[a], w->capacity_minutes[a]},
                               (keel_ratio){load[b], w->capacity_minutes[b]});
-    for (size_t p = 0; p < w->npatients; p++) {
-        if (nurse_of[p] != (int)a || !keelRuleMinMayGive(t, a) || !keelRuleAdmits(t, p, b))
+    if (!keelRuleMinMayGive(t, a))
+        return false;
+    for (int i = keel_tally_first(t, a); i >= 0; i = keel_tally_next(t, (size_t)i)) {
+        size_t p = (size_t)i;
+        if (!keelRuleAdmits(t, p, b))
             continue;
         int c = w->care_minutes[p];
         keel_ratio after = worse((keel_ratio){load[a] - c, w->capacity_minutes[a]},
@@ -211,11 +214,13 @@ static bool try_swap(const keel_workload *w, int *nurse_of, long long *load, kee
 {
     keel_ratio before = worse((keel_ratio){load[a], w->capacity_minutes[a]},
                               (keel_ratio){load[b], w->capacity_minutes[b]});
-    for (size_t p = 0; p < w->npatients; p++) {
-        if (nurse_of[p] != (int)a || !keel_workload_eligible(w, p, b))
+    for (int i = keel_tally_first(t, a); i >= 0; i = keel_tally_next(t, (size_t)i)) {
+        size_t p = (size_t)i;
+        if (!keel_workload_eligible(w, p, b))
             continue;
-        for (size_t q = 0; q < w->npatients; q++) {
-            if (nurse_of[q] != (int)b || !keel_workload_eligible(w, q, a))
+        for (int j = keel_tally_first(t, b); j >= 0; j = keel_tally_next(t, (size_t)j)) {
+            size_t q = (size_t)j;
+            if (!keel_workload_eligible(w, q, a))
                 continue;
             long long d = (long long)w->care_minutes[p] - w->care_minutes[q];
             if (d == 0)
@@ -311,9 +316,10 @@ static bool lift_once(const keel_workload *w, const long long *hi, int *nurse_of
             keel_tally_add(t, p, b);
             return true;
         }
-        for (size_t q = 0; q < w->npatients; q++) {
+        for (int j = keel_tally_first(t, b); j >= 0; j = keel_tally_next(t, (size_t)j)) {
+            size_t q = (size_t)j;
             long long d = c - w->care_minutes[q];
-            if (nurse_of[q] != (int)b || d <= 0 || !keel_workload_eligible(w, q, (size_t)a))
+            if (d <= 0 || !keel_workload_eligible(w, q, (size_t)a))
                 continue;
             keel_ratio swapped_a = {load[a] - d, w->capacity_minutes[a]};
             if (t->care[b] + d > hi[b] || keel_ratio_cmp(swapped_a, low) <= 0)

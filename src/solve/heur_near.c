@@ -35,6 +35,8 @@
 
 #define TABU_MIN 5
 #define TABU_SPREAD 8
+/* Tabu entries alive at once: two a step, for the longest tenure. */
+#define TABU_ENTRIES (2 * (TABU_MIN + TABU_SPREAD))
 /* Steps without a new lowest cost after which the search gives up (on
  * the quick benchmark set the last new low came within 300 steps). */
 #define STALL_STEPS 2000
@@ -46,9 +48,9 @@ typedef struct near {
     const long long *lo, *hi;
     int *nurse_of;
     keel_tally t;
-    int *zone_count;        /* [nnurses * nzones]: n's patients in each zone */
-    int *room_count;        /* [nnurses * nrooms] */
-    long *tabu_until;       /* [npatients * nnurses] */
+    int *zone_count; /* [nnurses * nzones]: n's patients in each zone */
+    int *room_count; /* [nnurses * nrooms] */
+    keel_tabu tabu;
     long long weight;       /* of a zone against a room's 1, and of a minute outside a
                                window against zone_minutes' zone: census + 1 */
     long long zone_minutes; /* scale of the proximity cost against the penalty */
@@ -129,7 +131,7 @@ static long long kept_change(const near *S, size_t p, size_t a, size_t b)
 
 static bool allowed(const near *S, size_t p, size_t n, bool aspire)
 {
-    return aspire || S->tabu_until[p * S->w->nnurses + n] <= S->step;
+    return aspire || keel_measure_tabu_allows(&S->tabu, p, n, S->step);
 }
 
 typedef struct step {
@@ -233,7 +235,7 @@ static void place(near *S, size_t p, size_t n, int sign)
 
 static void apply(near *S, const step *s)
 {
-    size_t nn = S->w->nnurses, from = (size_t)S->nurse_of[s->p];
+    size_t from = (size_t)S->nurse_of[s->p];
     long tenure = TABU_MIN + (long)(flip(S) % TABU_SPREAD);
     S->kept += kept_change(S, s->p, from, s->to);
     place(S, s->p, from, -1);
@@ -243,11 +245,11 @@ static void apply(near *S, const step *s)
         place(S, q, s->to, -1);
         place(S, q, from, +1);
         S->nurse_of[q] = (int)from;
-        S->tabu_until[q * nn + s->to] = S->step + tenure;
+        keel_measure_tabu_set(&S->tabu, q, s->to, S->step + tenure);
     }
     place(S, s->p, s->to, +1);
     S->nurse_of[s->p] = (int)s->to;
-    S->tabu_until[s->p * nn + from] = S->step + tenure;
+    keel_measure_tabu_set(&S->tabu, s->p, from, S->step + tenure);
 }
 
 keel_status keel_heur_near(const keel_workload *w, const long long *lo, const long long *hi,
@@ -267,9 +269,9 @@ keel_status keel_heur_near(const keel_workload *w, const long long *lo, const lo
     S.nurse_of = keel_calloc(np, sizeof *S.nurse_of);
     S.zone_count = keel_calloc(nn * (w->nzones ? w->nzones : 1), sizeof *S.zone_count);
     S.room_count = keel_calloc(nn * (w->nrooms ? w->nrooms : 1), sizeof *S.room_count);
-    S.tabu_until = keel_calloc(np * nn, sizeof *S.tabu_until);
+    bool tabu = keel_measure_tabu_init(&S.tabu, np, TABU_ENTRIES);
     keel_status rc = keel_tally_init(&S.t, w);
-    if (rc || !S.nurse_of || !S.zone_count || !S.room_count || !S.tabu_until) {
+    if (rc || !S.nurse_of || !S.zone_count || !S.room_count || !tabu) {
         rc = KEEL_ERR_NOMEM;
         goto out;
     }
@@ -302,7 +304,7 @@ out:
     free(S.nurse_of);
     free(S.zone_count);
     free(S.room_count);
-    free(S.tabu_until);
+    keel_measure_tabu_free(&S.tabu);
     keel_tally_free(&S.t);
     return rc;
 }

@@ -212,3 +212,40 @@ bool keel_measure_classes(const keel_workload *w, keel_classes *c)
         }
     return true;
 }
+
+bool keel_measure_tabu_init(keel_tabu *tabu, size_t npatients, size_t size)
+{
+    tabu->size = size ? size : 1;
+    tabu->at = 0;
+    tabu->ring = keel_calloc(tabu->size, sizeof *tabu->ring);
+    tabu->latest = keel_calloc(npatients ? npatients : 1, sizeof *tabu->latest);
+    return tabu->ring && tabu->latest;
+}
+
+void keel_measure_tabu_free(keel_tabu *tabu)
+{
+    free(tabu->ring);
+    free(tabu->latest);
+    memset(tabu, 0, sizeof *tabu);
+}
+
+void keel_measure_tabu_set(keel_tabu *tabu, size_t p, size_t n, long until)
+{
+    tabu->ring[tabu->at % tabu->size] = (keel_tabu_entry){.p = p, .n = n, .until = until};
+    tabu->at++;
+    if (until > tabu->latest[p])
+        tabu->latest[p] = until;
+}
+
+bool keel_measure_tabu_allows(const keel_tabu *tabu, size_t p, size_t n, long step)
+{
+    if (tabu->latest[p] <= step)
+        return true;
+    size_t kept = tabu->at < tabu->size ? tabu->at : tabu->size;
+    for (size_t k = 1; k <= kept; k++) {
+        const keel_tabu_entry *e = &tabu->ring[(tabu->at - k) % tabu->size];
+        if (e->p == p && e->n == n)
+            return e->until <= step;
+    }
+    return true;
+}

@@ -140,4 +140,33 @@ static inline unsigned long long keel_measure_coin(unsigned long long *state)
     return *state;
 }
 
+/* The local searches' tabu memory: patient p may not go back to nurse n
+ * until a given step.  Each step forbids at most a few pairs for at most a
+ * few steps, so a ring of the latest entries holds every live one: memory
+ * grows with the census, not with census x nurses, and a patient that has
+ * not moved lately is answered in one look. */
+typedef struct keel_tabu_entry {
+    size_t p, n;
+    long until;
+} keel_tabu_entry;
+
+typedef struct keel_tabu {
+    keel_tabu_entry *ring; /* [size]: the latest entries, ring[at - 1] newest */
+    size_t size, at;
+    long *latest; /* [npatients]: the last step p is tabu anywhere, as far as it was set */
+} keel_tabu;
+
+/* An empty tabu memory for npatients patients holding the last size
+ * entries (size: the most entries written within the longest tenure).
+ * False when memory ran out (free it either way). */
+bool keel_measure_tabu_init(keel_tabu *tabu, size_t npatients, size_t size);
+void keel_measure_tabu_free(keel_tabu *tabu);
+
+/* Patient p may not go back to nurse n before step until. */
+void keel_measure_tabu_set(keel_tabu *tabu, size_t p, size_t n, long until);
+
+/* True when p may go to n at step: the latest entry for the pair, if it is
+ * still in the ring, has run out. */
+bool keel_measure_tabu_allows(const keel_tabu *tabu, size_t p, size_t n, long step);
+
 #endif
