@@ -328,7 +328,11 @@ static void solve_loaded(job *J, glp_prob *P)
     lp_parm.msg_lev = GLP_MSG_OFF;
     lp_parm.tm_lim = J->time_limit_ms > INT_MAX ? INT_MAX : (int)J->time_limit_ms;
     int ret = glp_simplex(P, &lp_parm);
-    if (ret == GLP_ETMLIM)
+    /* GLP_EFAIL: the simplex method failed on this problem (numerically;
+     * met on a 12 000-row question of a 20 000-patient house): this
+     * question goes unanswered, like one out of time, and the solve goes
+     * on with what it has. */
+    if (ret == GLP_ETMLIM || ret == GLP_EFAIL)
         return; /* outcome stays unknown */
     if (ret) {
         J->ret = ret;
@@ -377,7 +381,7 @@ static void solve_loaded(job *J, glp_prob *P)
             lp->x[j] = glp_mip_col_val(P, j);
         return;
     }
-    if (ret != GLP_ETMLIM)
+    if (ret != GLP_ETMLIM && ret != GLP_EFAIL)
         J->ret = ret ? ret : -1;
 }
 

@@ -70,10 +70,7 @@ static keel_status check_skill(const keel_rule_plan *c, size_t n, size_t m, cons
  * them when they may take the same parts. */
 static bool nurses_alike(const keel_workload *w, size_t a, size_t b)
 {
-    for (size_t p = 0; p < w->npatients; p++)
-        if (keel_workload_eligible(w, p, a) != keel_workload_eligible(w, p, b))
-            return false;
-    return true;
+    return keel_workload_same_column(w, a, b);
 }
 
 const keel_rule keel_rule_skill = {

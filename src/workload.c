@@ -180,6 +180,7 @@ void keel_workload_free(keel_workload *w)
     free(w->duty_minutes);
     free(w->max_patients);
     free(w->eligible);
+    free(w->column_kind);
     free(w->ratio_limit);
     free(w->high_acuity);
     free(w->side);
@@ -450,6 +451,61 @@ bool keel_workload_alloc(keel_workload *w)
            w->ratio_limit && w->high_acuity && w->side && w->zone && w->room && w->previous;
 }
 
+/* For keel_workload_kinds(): nurses by the hash of their column, then by
+ * index. */
+static int by_hash(const void *ctx, size_t a, size_t b)
+{
+    const unsigned long long *h = ctx;
+    if (h[a] != h[b])
+        return h[a] < h[b] ? -1 : 1;
+    return (a > b) - (a < b);
+}
+
+bool keel_workload_kinds(keel_workload *w)
+{
+    size_t nn = w->nnurses, np = w->npatients;
+    free(w->column_kind);
+    w->column_kind = keel_malloc((nn ? nn : 1) * sizeof *w->column_kind);
+    unsigned long long *h = keel_calloc(nn ? nn : 1, sizeof *h);
+    size_t *order = keel_malloc((nn ? nn : 1) * sizeof *order);
+    if (!w->column_kind || !h || !order) {
+        free(w->column_kind);
+        w->column_kind = NULL;
+        free(h);
+        free(order);
+        return false;
+    }
+    /* Row by row, as eligible is stored: a hash of each column (FNV-1a),
+     * nurses of one hash sorted together, each given the first of them,
+     * then every column checked against that first one's. */
+    for (size_t n = 0; n < nn; n++) {
+        h[n] = 14695981039346656037ULL;
+        order[n] = n;
+    }
+    for (size_t p = 0; p < np; p++)
+        for (size_t n = 0; n < nn; n++)
+            h[n] = (h[n] ^ (unsigned long long)w->eligible[p * nn + n]) * 1099511628211ULL;
+    bool sorted = keelSortIndices(order, nn, by_hash, h);
+    for (size_t k = 0; k < nn && sorted; k++) {
+        size_t n = order[k];
+        bool same = k > 0 && h[order[k - 1]] == h[n];
+        w->column_kind[n] = same ? w->column_kind[order[k - 1]] : (int)n;
+    }
+    for (size_t p = 0; p < np && sorted; p++) {
+        const bool *row = &w->eligible[p * nn];
+        for (size_t n = 0; n < nn; n++)
+            if (row[n] != row[w->column_kind[n]])
+                w->column_kind[n] = (int)n; /* the hashes met by chance: a kind of her own */
+    }
+    free(h);
+    free(order);
+    if (!sorted) {
+        free(w->column_kind);
+        w->column_kind = NULL;
+    }
+    return sorted;
+}
+
 keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, keel_error *err)
 {
     keel_status rc = KEEL_OK;
@@ -511,6 +567,10 @@ keel_status keel_workload_compute(const keel_roster *r, keel_workload **out, kee
     for (size_t q = 0; q < np; q++)
         for (size_t n = 0; n < nn; n++)
             w->eligible[q * nn + n] = keel_workload_may_take(r, w, q, n);
+    if (!keel_workload_kinds(w)) {
+        rc = keel_error_add(err, KEEL_ERR_NOMEM, NULL, 0, 0, NULL, "out of memory");
+        goto out;
+    }
     keelRuleFlags(w);
 out:
     free(ends);
@@ -613,6 +673,10 @@ keel_workload *keelWorkloadSubset(const keel_workload *w, const size_t *members,
         z->min_patients[n] = w->min_patients[m];
         z->max_care[n] = w->max_care[m];
         z->nurse_end[n] = w->shift_minutes;
+    }
+    if (!keel_workload_kinds(z)) {
+        keel_workload_free(z);
+        return NULL;
     }
     keelRuleFlags(z);
     return z;

@@ -8,6 +8,7 @@
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
+#include <stdlib.h>
 #include <string.h>
 
 #include <cmocka.h>
@@ -417,6 +418,45 @@ static void test_a_record_holds_the_parts_before_the_rebalance(void **state)
     unload(&l);
 }
 
+/* keel_workload_kinds(): nurses share a kind exactly when their columns of
+ * eligible are equal, on random tables with many repeated columns. */
+static void test_nurse_kinds_match_the_columns(void **state)
+{
+    (void)state;
+    unsigned long long seed = 7;
+    for (int round = 0; round < 200; round++) {
+        keel_workload *w = calloc(1, sizeof *w);
+        assert_non_null(w);
+        seed = seed * 6364136223846793005ULL + 1442695040888963407ULL;
+        w->npatients = w->npeople = 1 + (size_t)(seed >> 33) % 12;
+        w->nnurses = 1 + (size_t)(seed >> 45) % 9;
+        assert_true(keel_workload_alloc(w));
+        /* Columns drawn from three patterns, so that many repeat. */
+        for (size_t n = 0; n < w->nnurses; n++) {
+            seed = seed * 6364136223846793005ULL + 1442695040888963407ULL;
+            unsigned pattern = (unsigned)(seed >> 40) % 4;
+            for (size_t p = 0; p < w->npatients; p++) {
+                seed = seed * 6364136223846793005ULL + 1442695040888963407ULL;
+                bool random = (seed >> 50) & 1;
+                w->eligible[p * w->nnurses + n] =
+                    pattern == 3 ? random : ((p + pattern) % 3 != 0);
+            }
+        }
+        assert_true(keel_workload_kinds(w));
+        for (size_t a = 0; a < w->nnurses; a++) {
+            assert_true(w->column_kind[a] >= 0 && (size_t)w->column_kind[a] <= a);
+            for (size_t b = 0; b < w->nnurses; b++) {
+                bool equal = true;
+                for (size_t p = 0; p < w->npatients; p++)
+                    equal = equal && keel_workload_eligible(w, p, a) ==
+                                         keel_workload_eligible(w, p, b);
+                assert_int_equal(keel_workload_same_column(w, a, b), equal);
+            }
+        }
+        keel_workload_free(w);
+    }
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -432,6 +472,7 @@ int main(void)
         cmocka_unit_test(test_planned_handoffs_follow_the_nurse_who_leaves),
         cmocka_unit_test(test_every_stretch_of_a_broken_limit_is_listed),
         cmocka_unit_test(test_a_record_holds_the_parts_before_the_rebalance),
+        cmocka_unit_test(test_nurse_kinds_match_the_columns),
     };
     return cmocka_run_group_tests_name("workload", tests, NULL, NULL);
 }

@@ -198,6 +198,7 @@ static inline void tu_case_free(tu_case *c)
     free(c->w.capacity_minutes);
     free(c->w.duty_minutes);
     free(c->w.max_patients);
+    free(c->w.column_kind);
     free(c->w.eligible);
     free(c->w.ratio_limit);
     free(c->w.high_acuity);

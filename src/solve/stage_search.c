@@ -70,14 +70,6 @@ void keel_stage_search_free(keel_search *S)
 }
 
 /* True when nurses a and b may take the same patients. */
-static bool same_column(const keel_workload *w, size_t a, size_t b)
-{
-    for (size_t p = 0; p < w->npatients; p++)
-        if (keel_workload_eligible(w, p, a) != keel_workload_eligible(w, p, b))
-            return false;
-    return true;
-}
-
 keel_status keel_stage_search_sums(keel_search *S, size_t n, long long smax)
 {
     const keel_workload *w = S->w;
@@ -91,10 +83,6 @@ keel_status keel_stage_search_sums(keel_search *S, size_t n, long long smax)
     /* With the clock the limit holds per moment, not on the parts over the
      * shift: any number of parts may add up. */
     int most = w->clocked ? INT_MAX - 1 : w->max_patients[n];
-    unsigned long hash = 5381;
-    for (size_t p = 0; p < w->npatients; p++)
-        hash = hash * 33 + keel_workload_eligible(w, p, n);
-    out->hash = hash;
     out->most = most;
     if (!out->reach)
         return KEEL_ERR_NOMEM;
@@ -103,8 +91,8 @@ keel_status keel_stage_search_sums(keel_search *S, size_t n, long long smax)
      * depends only on the smaller sums).  A unit has few kinds of nurse. */
     for (size_t m = 0; m < n; m++) {
         const keel_sums *o = &S->sums[m];
-        if (o->reach && o->hash == hash && o->most == most && o->smax >= smax &&
-            same_column(w, m, n)) {
+        if (o->reach && o->most == most && o->smax >= smax &&
+            keel_workload_same_column(w, m, n)) {
             if (smax >= 0)
                 memcpy(out->reach, o->reach, (size_t)(smax + 1) * sizeof *out->reach);
             return KEEL_OK;

@@ -19,7 +19,6 @@
 typedef struct keel_sums {
     long long smax;
     bool *reach;        /* [smax + 1] */
-    unsigned long hash; /* of the nurse's column of eligibility, to find nurses alike */
     int most;           /* the patients she may hold, as the sums count them */
 } keel_sums;
 
