@@ -438,8 +438,7 @@ static void test_nurse_kinds_match_the_columns(void **state)
             for (size_t p = 0; p < w->npatients; p++) {
                 seed = seed * 6364136223846793005ULL + 1442695040888963407ULL;
                 bool random = (seed >> 50) & 1;
-                w->eligible[p * w->nnurses + n] =
-                    pattern == 3 ? random : ((p + pattern) % 3 != 0);
+                w->eligible[p * w->nnurses + n] = pattern == 3 ? random : ((p + pattern) % 3 != 0);
             }
         }
         assert_true(keel_workload_kinds(w));
@@ -448,8 +447,8 @@ static void test_nurse_kinds_match_the_columns(void **state)
             for (size_t b = 0; b < w->nnurses; b++) {
                 bool equal = true;
                 for (size_t p = 0; p < w->npatients; p++)
-                    equal = equal && keel_workload_eligible(w, p, a) ==
-                                         keel_workload_eligible(w, p, b);
+                    equal =
+                        equal && keel_workload_eligible(w, p, a) == keel_workload_eligible(w, p, b);
                 assert_int_equal(keel_workload_same_column(w, a, b), equal);
             }
         }

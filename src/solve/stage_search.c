@@ -91,8 +91,7 @@ keel_status keel_stage_search_sums(keel_search *S, size_t n, long long smax)
      * depends only on the smaller sums).  A unit has few kinds of nurse. */
     for (size_t m = 0; m < n; m++) {
         const keel_sums *o = &S->sums[m];
-        if (o->reach && o->most == most && o->smax >= smax &&
-            keel_workload_same_column(w, m, n)) {
+        if (o->reach && o->most == most && o->smax >= smax && keel_workload_same_column(w, m, n)) {
             if (smax >= 0)
                 memcpy(out->reach, o->reach, (size_t)(smax + 1) * sizeof *out->reach);
             return KEEL_OK;
