@@ -65,7 +65,7 @@ docs/model.md); HiGHS's is the milp call; CBC's is its own wall-clock
 machine's cores) solver processes run at once.
 
 --quick: two rosters per kind, keel at its default 10 s, the references at
-10 s: about 12 minutes on 2 cores with every stage (3-5 without).
+10 s: about 11 minutes with every stage, even at --jobs 1 (3-5 without).
 --held-back: the quick preset on HELD_BACK_SEED, a seed no tuning has used
 (see its comment), reported apart: its own heading and, unless --out says
 otherwise, its own file tests/bench/RESULTS-held-back.md.  Not with --seed.
@@ -895,7 +895,7 @@ def main(argv=None):
                     help="run the HiGHS descent on every roster, not only where a solver "
                     "claims an optimum (more optima known for the greedy gap; slower)")
     ap.add_argument("--quick", action="store_true",
-                    help="few rosters per kind, 10 s limits: about 12 minutes on 2 cores")
+                    help="few rosters per kind, 10 s limits: about 11 minutes")
     ap.add_argument("--held-back", action="store_true",
                     help="the quick preset on the held-back seed %d (never used for tuning), "
                     "reported apart; --out defaults to tests/bench/RESULTS-held-back.md"
