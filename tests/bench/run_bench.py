@@ -7,7 +7,7 @@ Run on demand only (never in CI, not a meson test):
   run_bench.py KEEL [--seed S] [--per-kind N] [--kinds icu,ed,...]
                [--keel-seconds 10] [--ref-seconds 20] [--jobs 2]
                [--out FILE.md] [--json FILE.json] [--workdir DIR] [--descent-all]
-               [--quick]
+               [--quick] [--held-back] [--no-stages]
 
 Generates rosters with gen_bench.py (same seed, same rosters) and measures,
 on each:
@@ -32,7 +32,17 @@ on each:
             -ratioGap 0 -allowableGap 1e-6 -import F.lp -solve -solu F.sol`
   with the same time limit (--ref-seconds): the time to a proven optimum, or
   the gap left at the limit.  The objective is 1000 U on both, so the
-  absolute gap tolerance (1e-6) is 1e-9 in utilisation.
+  absolute gap tolerance (1e-6) is 1e-9 in utilisation;
+- every stage side by side (stages_bench.py; --no-stages leaves it out):
+  HiGHS on the textbook model of each stage in order (peak, ranks, lift,
+  continuity, proximity), --ref-seconds for each stage, each later stage
+  holding the earlier values HiGHS found: tests/reference/check_rules.py's
+  reference chain, reused as it is.  Per stage: keel's and HiGHS's proofs,
+  median and worst times, the keel / HiGHS ratio where both prove, and every
+  roster and stage that HiGHS (or, on stage 1, the plain HiGHS or CBC
+  model) proves and keel does not; keel's whole-process wall median and
+  95th percentile; the issue's targets with the distance measured.  CBC
+  stays on stage 1.
 
 Trust, but check.  Every plan (keel, greedy, HiGHS, CBC) is rounded and
 checked exactly against the hard rules; values are recomputed as exact
@@ -55,7 +65,10 @@ docs/model.md); HiGHS's is the milp call; CBC's is its own wall-clock
 machine's cores) solver processes run at once.
 
 --quick: two rosters per kind, keel at its default 10 s, the references at
-10 s: about 3-5 minutes on 2 cores.
+10 s: about 11 minutes with every stage, even at --jobs 1 (3-5 without).
+--held-back: the quick preset on HELD_BACK_SEED, a seed no tuning has used
+(see its comment), reported apart: its own heading and, unless --out says
+otherwise, its own file tests/bench/RESULTS-held-back.md.  Not with --seed.
 With --descent-all the descent runs on every roster (optima for the greedy
 gap where no solver proved one; slower).
 """
@@ -66,6 +79,7 @@ import datetime
 import json
 import math
 import os
+import pickle
 import re
 import shlex
 import shutil
@@ -81,6 +95,7 @@ sys.path.insert(0, HERE)
 sys.path.insert(0, os.path.join(HERE, "..", "reference"))
 import gen_bench  # noqa: E402
 import highs_model  # noqa: E402  (roster arithmetic, rule checker, RulesModel, HiGHS call)
+import stages_bench  # noqa: E402  (every stage side by side)
 
 PYTHON = "/usr/bin/python3"     # Debian's python3 with scipy (HiGHS)
 CBC = "cbc"
@@ -88,6 +103,13 @@ OBJ_SCALE = 1000.0              # objective = OBJ_SCALE * U (as in highs_model)
 EPS = 1e-9                      # distinct utilisations differ by > 1/1440^2
 
 QUICK = {"per_kind": 2, "per_kind_of": {}, "keel_seconds": 10.0, "ref_seconds": 10.0}
+
+# The held-back seed.  Tuning must never look at it: no change to keel is
+# tried, chosen or measured on its rosters, and no other test, example or
+# document uses it.  It only says whether what the tuning seeds show holds
+# on rosters nobody tuned for.  When it has been looked at (a change chosen
+# because of its figures), it is spent: pick another unused seed.
+HELD_BACK_SEED = 9173
 
 
 # ------------------------------------------------------------ exact values
@@ -360,15 +382,25 @@ def task_keel(keel, roster, method, seconds, workdir, tag):
     return res
 
 
+# Worker results: json, but the stage chain's (Fractions, nurse indices as
+# keys) as a pickle, written and read by this file alone.
+WORKER_STAGES = ("stages", 8)       # (name, its time limit as stages of --ref-seconds)
+
+
 def task_worker(what, roster, seconds, workdir, tag, extra=()):
-    out = os.path.join(workdir, tag + ".json")
+    stages = what == WORKER_STAGES[0]
+    out = os.path.join(workdir, tag + (".pickle" if stages else ".json"))
     cmd = [PYTHON, os.path.abspath(__file__), "--worker", what, "--roster", roster,
            "--seconds", "%g" % seconds, "--result", out] + list(extra)
-    info = run_timed(cmd, seconds * 2 + 120, tag, workdir)
+    info = run_timed(cmd, seconds * (WORKER_STAGES[1] if stages else 2) + 120, tag, workdir)
     res = {"rc": info["rc"], "wall": info["wall"], "maxrss_kb": info.get("maxrss_kb")}
     if info["rc"] == 0 and os.path.exists(out):
-        with open(out, encoding="utf-8") as f:
-            res.update(json.load(f))
+        if stages:
+            with open(out, "rb") as f:
+                res.update(pickle.load(f))
+        else:
+            with open(out, encoding="utf-8") as f:
+                res.update(json.load(f))
     else:
         res["status"] = "error"
         res["message"] = info["stderr"].strip().splitlines()[-3:]
@@ -672,10 +704,20 @@ def keel_identity(keel):
 def report(entries, args, command, started, elapsed, identity):
     kinds = [k for k in gen_bench.KINDS if any(e["kind"] == k for e in entries)]
     out = []
-    out.append("## keel against HiGHS and CBC (seed %d)" % args.seed)
+    if args.held_back:
+        out.append("## keel against HiGHS and CBC (held-back seed %d)" % args.seed)
+        out.append("")
+        out.append("The held-back seed: no change to keel was tried, chosen or measured on "
+                   "these rosters. It is reported apart from the tuning seeds (the quick "
+                   "preset at seed 1 is in RESULTS-quick.md); it says whether their figures "
+                   "hold on rosters nobody tuned for.")
+    else:
+        out.append("## keel against HiGHS and CBC (seed %d)" % args.seed)
     out.append("")
-    out.append("Measured %s on this machine (%d cores), %d rosters, %.0f s in all." % (
-        started, os.cpu_count() or 0, len(entries), elapsed))
+    out.append("Measured %s on this machine (%d cores), %d rosters, %.0f s in all; load "
+               "average (1 min) %.2f at the start, %.2f at the end, other work included." % (
+                   started, os.cpu_count() or 0, len(entries), elapsed, args.load_start,
+                   os.getloadavg()[0]))
     out.append("")
     out.append("```")
     out.append(command)
@@ -757,7 +799,8 @@ def report(entries, args, command, started, elapsed, identity):
     bad = [e for e in entries if e["disagreements"]]
     out.append("Disagreements: %s" % ("none" if not bad else ""))
     for e in bad:
-        out.append("- `%s`: %s" % (e["file"], "; ".join(e["disagreements"])))
+        out.append("- `%s`: %s" % (os.path.basename(e["file"]),
+                                   "; ".join(e["disagreements"])))
     out.append("")
     out.append("<details><summary>Per roster</summary>")
     out.append("")
@@ -793,10 +836,35 @@ def report(entries, args, command, started, elapsed, identity):
                                                            e["optimum_source"])))
     out.append("")
     out.append("</details>")
+    if not args.no_stages:
+        out.append("")
+        out += stages_bench.section(entries, args, 0.42 * args.keel_seconds)
     return "\n".join(out) + "\n"
 
 
 # ------------------------------------------------------------ main
+
+def shown_args(argv, args):
+    """The command line as the report shows it: the keel binary relative to
+    the source tree (or by its name alone), never a path of this machine;
+    the same for --out, --json and --workdir."""
+    top = os.path.abspath(os.path.join(HERE, "..", ".."))
+
+    def rel(path):
+        full = os.path.abspath(path)
+        inside = os.path.commonpath([full, top]) == top
+        return os.path.relpath(full, top) if inside else os.path.basename(full)
+    paths = ("--out", "--json", "--workdir")
+    out = []
+    for k, a in enumerate(argv):
+        key, eq, val = a.partition("=")
+        if (k and argv[k - 1] in paths) or a == args.keel:
+            a = rel(a)
+        elif eq and key in paths:
+            a = key + "=" + rel(val)
+        out.append(a)
+    return out
+
 
 def run_pool(jobs, tasks):
     """Run (key, fn, args) tasks, at most `jobs` at once; {key: result}."""
@@ -813,7 +881,7 @@ def run_pool(jobs, tasks):
 def main(argv=None):
     ap = argparse.ArgumentParser(description="keel benchmark against HiGHS and CBC")
     ap.add_argument("keel", nargs="?", help="the keel binary")
-    ap.add_argument("--seed", type=int, default=1)
+    ap.add_argument("--seed", type=int, default=None, help="roster seed (default 1)")
     ap.add_argument("--per-kind", type=int, default=None, help="rosters per kind (default 4)")
     ap.add_argument("--kinds", default=None, help="comma-separated kinds (default all)")
     ap.add_argument("--keel-seconds", type=float, default=None, help="keel --time-limit (10)")
@@ -827,9 +895,16 @@ def main(argv=None):
                     help="run the HiGHS descent on every roster, not only where a solver "
                     "claims an optimum (more optima known for the greedy gap; slower)")
     ap.add_argument("--quick", action="store_true",
-                    help="few rosters per kind, 10 s limits: 3-5 minutes on 2 cores")
+                    help="few rosters per kind, 10 s limits: about 11 minutes")
+    ap.add_argument("--held-back", action="store_true",
+                    help="the quick preset on the held-back seed %d (never used for tuning), "
+                    "reported apart; --out defaults to tests/bench/RESULTS-held-back.md"
+                    % HELD_BACK_SEED)
+    ap.add_argument("--no-stages", action="store_true",
+                    help="leave out every stage side by side (HiGHS on stage 1 only)")
     # Internal: one reference solve in its own process.
-    ap.add_argument("--worker", choices=["highs", "confirm"], help=argparse.SUPPRESS)
+    ap.add_argument("--worker", choices=["highs", "confirm", WORKER_STAGES[0]],
+                    help=argparse.SUPPRESS)
     ap.add_argument("--roster", help=argparse.SUPPRESS)
     ap.add_argument("--seconds", type=float, help=argparse.SUPPRESS)
     ap.add_argument("--result", help=argparse.SUPPRESS)
@@ -838,6 +913,11 @@ def main(argv=None):
     args = ap.parse_args(argv)
 
     if args.worker:
+        if args.worker == WORKER_STAGES[0]:
+            res = stages_bench.worker(args.roster, args.seconds)
+            with open(args.result, "wb") as f:
+                pickle.dump(res, f)
+            return 0
         if args.worker == "highs":
             res = worker_highs(args.roster, args.seconds)
         else:
@@ -851,6 +931,12 @@ def main(argv=None):
     keel = os.path.abspath(args.keel)
     if not shutil.which(CBC):
         ap.error("cbc not found (Debian package coinor-cbc)")
+    if args.held_back:
+        if args.seed is not None:
+            ap.error("--held-back runs the held-back seed; --seed is not for it")
+        args.seed, args.quick = HELD_BACK_SEED, True
+        args.out = args.out or os.path.join(HERE, "RESULTS-held-back.md")
+    args.seed = 1 if args.seed is None else args.seed
     per_kind_of = {}
     if args.quick:
         per_kind_of = dict(QUICK["per_kind_of"])
@@ -862,9 +948,10 @@ def main(argv=None):
     args.ref_seconds = args.ref_seconds or 20.0
     args.jobs = max(1, min(args.jobs, 2))
     kinds = args.kinds.split(",") if args.kinds else list(gen_bench.KINDS)
-    command = " ".join(shlex.quote(a) for a in ["tests/bench/run_bench.py"] + (
-        argv if argv is not None else sys.argv[1:]))
+    command = " ".join(shlex.quote(a) for a in ["tests/bench/run_bench.py"] + shown_args(
+        argv if argv is not None else sys.argv[1:], args))
     started = datetime.datetime.now().strftime("%Y-%m-%d %H:%M")
+    args.load_start = os.getloadavg()[0]
     t_start = time.monotonic()
 
     workdir = args.workdir or tempfile.mkdtemp(prefix="keel-bench-")
@@ -906,9 +993,13 @@ def main(argv=None):
                                                  base + ".cbc")))
         tasks.append(((base, "greedy"), task_keel,
                       (keel, f, "greedy", args.keel_seconds, workdir, base + ".greedy")))
+        if not args.no_stages:
+            tasks.append(((base, "stages"), task_worker,
+                          (WORKER_STAGES[0], f, args.ref_seconds, workdir, base + ".stages")))
     print("phase 1: %d solver runs on %d rosters" % (len(tasks), len(entries)),
           file=sys.stderr)
     raw = run_pool(args.jobs, tasks)
+    phase1 = raw
     for e in entries:
         base = os.path.basename(e["file"])[:-5]
         r, m = models[e["file"]]
@@ -944,6 +1035,9 @@ def main(argv=None):
         e["results"]["confirm"] = raw.get((base, "confirm"))
         e["_r"] = models[e["file"]][0]
         judge(e)
+        if not args.no_stages:
+            stages_bench.judge(e, e["_r"], phase1[(base, "keel")]["json"],
+                               phase1[(base, "stages")])
         del e["_r"]
 
     elapsed = time.monotonic() - t_start
