@@ -235,8 +235,16 @@ typedef struct job {
     int mem_mb;  /* GLPK's memory limit for this solve */
     char said[160]; /* the last line GLPK printed (its words on a fatal error) */
     bool memory;    /* GLPK said it reached its memory limit */
+    bool cover;     /* it holds cover_cuts (below) */
     jmp_buf env;
 } job;
+
+/* GLPK 5.0's cover cuts solve small knapsacks with a routine that keeps its
+ * working values in static storage: two solves on two threads race there
+ * (Helgrind, tests/test_threads.c), thread-local environments or not.
+ * Solves with cover cuts take turns; the time waited counts against the
+ * waiting solve's limit. */
+static pthread_mutex_t cover_cuts = PTHREAD_MUTEX_INITIALIZER;
 
 static void on_glpk_error(void *info)
 {
@@ -361,9 +369,24 @@ static void solve_loaded(job *J, glp_prob *P)
     parm.mir_cuts = GLP_ON;
     parm.cov_cuts = lp->ncols > 0 ? GLP_ON : GLP_OFF;
     parm.clq_cuts = GLP_ON;
+    if (parm.cov_cuts == GLP_ON) {
+        pthread_mutex_lock(&cover_cuts);
+        J->cover = true;
+        left = J->time_limit_ms - (long)(now_ms() - started);
+        if (left < 1) {
+            J->cover = false;
+            pthread_mutex_unlock(&cover_cuts);
+            return; /* the turn came too late: outcome unknown */
+        }
+        parm.tm_lim = left > INT_MAX ? INT_MAX : (int)left;
+    }
     parm.cb_func = on_event;
     parm.cb_info = J;
     ret = glp_intopt(P, &parm);
+    if (J->cover) {
+        J->cover = false;
+        pthread_mutex_unlock(&cover_cuts);
+    }
     status = glp_mip_status(P);
     if (ret == 0 && status == GLP_NOFEAS) {
         J->res.outcome = KEEL_LP_INFEASIBLE;
@@ -393,6 +416,10 @@ static void run(job *J, bool own_env)
         /* GLPK hit a fatal error: its environment is unusable; free it whole.
          * (Without a thread of keel's own this is the caller's too.) */
         J->faulty = true;
+        if (J->cover) {
+            J->cover = false;
+            pthread_mutex_unlock(&cover_cuts);
+        }
         glp_free_env();
         return;
     }

@@ -17,7 +17,12 @@
  * alongside keel.  This needs a GLPK built with thread-local storage
  * (glp_config("TLS"), as Debian's is); with one built without it, keel's
  * solves take turns in one shared environment, still correct but one at a
- * time, and a GLPK failure frees that shared environment.
+ * time, and a GLPK failure frees that shared environment.  GLPK's cover
+ * cuts keep working values in static storage, so the branch and bound of
+ * solves that use them takes turns between threads (the time waited counts
+ * against the waiting solve's limit); the rest of each solve runs at once.
+ * A program that calls GLPK's own branch and bound with cover cuts on, in
+ * another thread while keel solves, races with keel there.
  */
 #ifndef KEEL_KEEL_H
 #define KEEL_KEEL_H
