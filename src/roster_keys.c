@@ -19,6 +19,7 @@
 #include "alloc.h"
 #include "roster_internal.h"
 #include "roster_loader.h"
+#include "sort.h"
 
 enum {
     MAX_PATIENTS = 99,
@@ -61,19 +62,29 @@ static void read_names(loader *ld, const node *value, char ***names, size_t *cou
     *count = value->nitems;
     for (size_t i = 0; i < value->nitems; i++) {
         size_t old = keel_roster_report_push_index(ld, i);
-        if (keel_roster_words_read_string(ld, value->items[i], &(*names)[i]) && once) {
-            for (size_t j = 0; j < i; j++) {
-                if ((*names)[j] && strcmp((*names)[j], (*names)[i]) == 0) {
-                    keel_roster_report_problem(
-                        ld, value->items[i]->mark,
-                        "'%s' is already listed at [%zu]; expected each name once",
-                        keel_roster_report_show(shown, (*names)[i]), j);
-                    break;
-                }
-            }
-        }
+        keel_roster_words_read_string(ld, value->items[i], &(*names)[i]);
         keel_roster_report_pop_path(ld, old);
     }
+    if (!once || value->nitems < 2)
+        return;
+    /* Repeated names by one sort (a list may hold 20 000): each problem at
+     * its item, so the file order of problems is what a walk would give. */
+    size_t *first = keel_malloc(value->nitems * sizeof *first);
+    if (!first || !keelSortFirstSame((const char *const *)*names, value->nitems, first)) {
+        free(first);
+        ld->nomem = true;
+        return;
+    }
+    for (size_t i = 0; i < value->nitems; i++) {
+        if (first[i] == i)
+            continue;
+        size_t old = keel_roster_report_push_index(ld, i);
+        keel_roster_report_problem(ld, value->items[i]->mark,
+                                   "'%s' is already listed at [%zu]; expected each name once",
+                                   keel_roster_report_show(shown, (*names)[i]), first[i]);
+        keel_roster_report_pop_path(ld, old);
+    }
+    free(first);
 }
 
 /* A list of names (skills, needs, extras): strings, each once. */
