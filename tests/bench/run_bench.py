@@ -96,6 +96,7 @@ sys.path.insert(0, os.path.join(HERE, "..", "reference"))
 import gen_bench  # noqa: E402
 import highs_model  # noqa: E402  (roster arithmetic, rule checker, RulesModel, HiGHS call)
 import stages_bench  # noqa: E402  (every stage side by side)
+from stages_bench import fmt_s, median_inf  # noqa: E402  (the table cells of both)
 
 PYTHON = "/usr/bin/python3"     # Debian's python3 with scipy (HiGHS)
 CBC = "cbc"
@@ -615,30 +616,6 @@ def lowest_claimed(entry, r):
 
 
 # ------------------------------------------------------------ the report
-
-def fmt_s(x, limit=None):
-    if x is None:
-        return "–"
-    if math.isinf(x):
-        return "> %gs" % limit if limit else "> limit"
-    if x < 0.01:
-        return "%.3fs" % x
-    if x < 10:
-        return "%.2fs" % x
-    return "%.1fs" % x
-
-
-def median_inf(xs):
-    """Median with unproven runs as +inf (above every proven time)."""
-    if not xs:
-        return None
-    xs = sorted(xs)
-    n = len(xs)
-    if n % 2:
-        return xs[n // 2]
-    a, b = xs[n // 2 - 1], xs[n // 2]
-    return math.inf if math.isinf(a) or math.isinf(b) else (a + b) / 2
-
 
 def solver_time(entry, name):
     """Seconds to a proven stage-1 optimum, or inf."""

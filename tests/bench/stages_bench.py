@@ -186,7 +186,8 @@ def _ms(x):
     return max(x, 1e-3)
 
 
-def _fmt(x, limit=None):
+def fmt_s(x, limit=None):
+    """Seconds for a table cell; inf (not proven) as "> limit"."""
     if x is None:
         return "–"
     if math.isinf(x):
@@ -198,10 +199,11 @@ def _fmt(x, limit=None):
     return "%.1fs" % x
 
 
-def _median_inf(xs):
-    xs = sorted(xs)
+def median_inf(xs):
+    """Median with unproven runs as +inf (above every proven time)."""
     if not xs:
         return None
+    xs = sorted(xs)
     n = len(xs)
     if n % 2:
         return xs[n // 2]
@@ -248,15 +250,15 @@ def misses(es):
         for name in STAGES:
             k, h = e["stages"]["keel"][name], e["stages"]["highs"][name]
             if h["applies"] and h["proven"] and not k["proven"]:
-                out.append((e, name, "HiGHS (every stage) in %s" % _fmt(h["seconds"])))
+                out.append((e, name, "HiGHS (every stage) in %s" % fmt_s(h["seconds"])))
             elif h["applies"] and e["stages"]["same"][name] and _own(h) and not _own(k):
                 out.append((e, name, "HiGHS in %s, for the same values held before it "
-                            "(not all proven)" % _fmt(h["seconds"])))
+                            "(not all proven)" % fmt_s(h["seconds"])))
         if not e["stages"]["keel"]["peak"]["proven"]:
             for who, label in (("highs", "HiGHS"), ("cbc", "CBC")):
                 if e["proven"][who]:
                     out.append((e, "peak", "%s (plain stage-1 model) in %s"
-                                % (label, _fmt(e["results"][who].get("seconds")))))
+                                % (label, fmt_s(e["results"][who].get("seconds")))))
     return out
 
 
@@ -300,7 +302,7 @@ def _short(c, name):
     if not c["applies"]:
         return "n/a"
     tag = "opt" if c["proven"] else ("opt\\*" if c.get("own_proof") else "lim")
-    return "%s %s %s" % (tag, _fmt(c["seconds"]), _value(name, c["value"]))
+    return "%s %s %s" % (tag, fmt_s(c["seconds"]), _value(name, c["value"]))
 
 
 def section(entries, args, stage1_seconds):
@@ -342,8 +344,8 @@ def section(entries, args, stage1_seconds):
             ts = [_time(c) for c in cs]
             known = [t for t in ts if t is not None]
             cells.append("%d/%d" % (sum(1 for c in cs if c["proven"]), len(cs)))
-            cells.append(_fmt(_median_inf(known), limit))
-            cells.append(_fmt(max(known), limit) if known else "–")
+            cells.append(fmt_s(median_inf(known), limit))
+            cells.append(fmt_s(max(known), limit) if known else "–")
         rs = [x[0] for x in ratios(app) if x[2] == name]
         cells.append("%.2g (%.2g, %d)" % (statistics.median(rs), max(rs), len(rs))
                      if rs else "–")
@@ -380,8 +382,8 @@ def section(entries, args, stage1_seconds):
             k, h = e["stages"]["keel"][name], e["stages"]["highs"][name]
             row.append("n/a" if not k["applies"] else
                        "%s / %s" % (_short(k, name), _short(h, name)))
-        row.append(_fmt(e["results"]["keel"]["wall"]))
-        row.append(_fmt(e.get("stages_highs_seconds")))
+        row.append(fmt_s(e["results"]["keel"]["wall"]))
+        row.append(fmt_s(e.get("stages_highs_seconds")))
         out.append("| " + " | ".join(row) + " |")
     out.append("")
     out.append("</details>")
@@ -400,8 +402,8 @@ def targets(unit, es, args, stage1_seconds):
         out.append("- keel's whole process (wall, `--time-limit %g`): median %s (target "
                    "under 0.05 s: %s), 95th percentile %s (target under 0.5 s: %s; nearest "
                    "rank, with %d rosters the %s)."
-                   % (args.keel_seconds, _fmt(med), "met" if med < 0.05 else
-                      "%.0f× over" % (med / 0.05), _fmt(top),
+                   % (args.keel_seconds, fmt_s(med), "met" if med < 0.05 else
+                      "%.0f× over" % (med / 0.05), fmt_s(top),
                       "met" if top < 0.5 else "%.0f× over" % (top / 0.5), len(walls),
                       "largest" if len(walls) <= 20 else "value at that rank"))
     rk = [e for e in unit if e["stages"]["keel"]["ranks"]["proven"]]
@@ -426,8 +428,8 @@ def targets(unit, es, args, stage1_seconds):
             out.append("  Pairs where keel is slower than HiGHS: %s."
                        % "; ".join("%s %s %.3g (keel %s, HiGHS %s)" % (
                            os.path.basename(e["file"])[:-5], n, x,
-                           _fmt(e["stages"]["keel"][n]["seconds"]),
-                           _fmt(e["stages"]["highs"][n]["seconds"]))
+                           fmt_s(e["stages"]["keel"][n]["seconds"]),
+                           fmt_s(e["stages"]["highs"][n]["seconds"]))
                            for x, e, n in sorted(over, key=lambda y: -y[0])))
     else:
         out.append("- keel ÷ HiGHS: no (roster, stage) pair proven by both.")
@@ -439,7 +441,7 @@ def targets(unit, es, args, stage1_seconds):
         out.append("  - %s, %s: %s; keel %s" % (
             os.path.basename(e["file"])[:-5], name, who,
             "proves it only under unproven values before it" if k.get("own_proof")
-            else "stops at the limit (%s, value %s)" % (_fmt(k["seconds"]),
+            else "stops at the limit (%s, value %s)" % (fmt_s(k["seconds"]),
                                                          _value(name, k["value"]))))
     bp = better_plans(es)
     out.append("- Where HiGHS's plan is better than keel's for the same values held before "
