@@ -30,6 +30,9 @@ its zones stage and its rooms stage (keel's proximity is both, Z then R):
 proven when both are, its time their sum.  keel's continuity stage also
 finds the optimum at zero tolerance; HiGHS's continuity time is its
 continuity stage and its zero-tolerance stage together.
+
+Source: HiGHS through Debian 12's python3-scipy 1.10, scipy.optimize.milp
+(the solver of tests/reference/highs_model.py).
 """
 
 import math
